@@ -1,0 +1,237 @@
+package solve
+
+import (
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// stepper is one integration method. The driver (Solver) owns the output
+// grid, stop times, cancellation, progress and the Result; a stepper owns its
+// step-size control, error estimate, non-negativity handling and dense
+// output.
+type stepper interface {
+	// start begins integration at (t, y) with a trial step h; h == 0 means
+	// choose one (problem.initialStep). It is called at the beginning and
+	// after every stop time (y may have been changed there).
+	start(t float64, y []float64, h float64) error
+	// step advances by one accepted step, retrying rejected steps
+	// internally. It never passes tLimit; when the step would pass it, it
+	// lands exactly on tLimit. It returns a *StepError when the step size
+	// underflows, the Newton iteration keeps failing or the state becomes
+	// non-finite; the current point then stays at the last accepted step.
+	step(tLimit float64) error
+	// current returns the last accepted point. The caller must not modify y.
+	current() (t float64, y []float64)
+	// dense writes the continuous solution at t within the last accepted
+	// step [tPrev, tCur] into out.
+	dense(t float64, out []float64)
+	// stepSize is the step proposed for the next step.
+	stepSize() float64
+}
+
+// problem holds what every method needs: the system, tolerances, counters
+// and shared work space.
+type problem struct {
+	sys     System
+	n       int
+	rtol    float64
+	atol    []float64 // one per component
+	nonneg  bool
+	maxStep float64
+	stats   *Stats
+}
+
+// newProblem applies the defaults of s.
+func newProblem(sys System, s Settings, stats *Stats) *problem {
+	n := sys.Dim()
+	p := &problem{sys: sys, n: n, rtol: s.RTol, nonneg: s.NonNegative, maxStep: s.MaxStep, stats: stats}
+	if p.rtol <= 0 {
+		p.rtol = 1e-6
+	}
+	p.atol = make([]float64, n)
+	for i := range p.atol {
+		switch {
+		case len(s.ATolVec) == n:
+			p.atol[i] = s.ATolVec[i]
+		case s.ATol > 0:
+			p.atol[i] = s.ATol
+		default:
+			p.atol[i] = 1e-10
+		}
+	}
+	return p
+}
+
+// rhs evaluates f and counts it.
+func (p *problem) rhs(t float64, y, dy []float64) {
+	p.stats.RHSEvals++
+	p.sys.RHS(t, y, dy)
+}
+
+// jac evaluates the Jacobian and counts it.
+func (p *problem) jac(t float64, y []float64, j *mat.Dense) {
+	p.stats.JacobianEvals++
+	p.sys.Jacobian(t, y, j)
+}
+
+// errNorm is the weighted RMS norm of e with scale atol + rtol·max(|y0|, |y1|).
+func (p *problem) errNorm(e, y0, y1 []float64) float64 {
+	var sum float64
+	for i, ei := range e {
+		sc := p.atol[i] + p.rtol*math.Max(math.Abs(y0[i]), math.Abs(y1[i]))
+		r := ei / sc
+		sum += r * r
+	}
+	return math.Sqrt(sum / float64(len(e)))
+}
+
+// initialStep chooses a first step by Hairer's algorithm (Hairer, Nørsett &
+// Wanner, Solving ODEs I, 1993, II.4), for a method of the given order.
+// f0 holds f(t0, y0); y1 and f1 are work space of length n.
+func (p *problem) initialStep(t0, tEnd float64, y0, f0 []float64, order int, y1, f1 []float64) float64 {
+	var d0, d1 float64
+	for i := range y0 {
+		sc := p.atol[i] + p.rtol*math.Abs(y0[i])
+		d0 += (y0[i] / sc) * (y0[i] / sc)
+		d1 += (f0[i] / sc) * (f0[i] / sc)
+	}
+	n := float64(len(y0))
+	d0, d1 = math.Sqrt(d0/n), math.Sqrt(d1/n)
+	span := math.Abs(tEnd - t0)
+	var h0 float64
+	if d0 < 1e-5 || d1 < 1e-5 {
+		h0 = 1e-6
+	} else {
+		h0 = 0.01 * d0 / d1
+	}
+	h0 = math.Min(h0, span)
+	for i := range y0 {
+		y1[i] = y0[i] + h0*f0[i]
+	}
+	p.rhs(t0+h0, y1, f1)
+	var d2 float64
+	for i := range y0 {
+		sc := p.atol[i] + p.rtol*math.Abs(y0[i])
+		r := (f1[i] - f0[i]) / sc
+		d2 += r * r
+	}
+	d2 = math.Sqrt(d2/n) / h0
+	var h1 float64
+	if m := math.Max(d1, d2); m <= 1e-15 {
+		h1 = math.Max(1e-6, h0*1e-3)
+	} else {
+		h1 = math.Pow(0.01/m, 1/float64(order+1))
+	}
+	h := math.Min(100*h0, h1)
+	h = math.Min(h, span)
+	if p.maxStep > 0 {
+		h = math.Min(h, p.maxStep)
+	}
+	return h
+}
+
+// StepError reports why an integration stopped early.
+type StepError struct {
+	T      float64 // time of the last accepted step
+	H      float64 // step size at failure
+	Reason string  // plain-language cause
+}
+
+func (e *StepError) Error() string {
+	return fmt.Sprintf("integration stopped at t = %.6g with step size %.3g: %s", e.T, e.H, e.Reason)
+}
+
+// nonFinite returns the index of the first NaN or Inf in v, or -1.
+func nonFinite(v []float64) int {
+	for i, x := range v {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return i
+		}
+	}
+	return -1
+}
+
+// LU is an allocation-free dense LU factorization with partial pivoting,
+// reused across factorizations of matrices of the same size.
+type LU struct {
+	n   int
+	a   []float64 // row-major factors
+	piv []int
+}
+
+// NewLU returns work space for n×n factorizations.
+func NewLU(n int) *LU {
+	return &LU{n: n, a: make([]float64, n*n), piv: make([]int, n)}
+}
+
+// errSingular is returned by Factor for a singular matrix.
+var errSingular = fmt.Errorf("matrix is singular")
+
+// Factor factorizes the n×n row-major matrix m (left unchanged).
+func (f *LU) Factor(m []float64) error {
+	n := f.n
+	a := f.a
+	copy(a, m)
+	for k := 0; k < n; k++ {
+		p := k
+		maxv := math.Abs(a[k*n+k])
+		for i := k + 1; i < n; i++ {
+			if v := math.Abs(a[i*n+k]); v > maxv {
+				maxv, p = v, i
+			}
+		}
+		f.piv[k] = p
+		if maxv == 0 || math.IsNaN(maxv) {
+			return errSingular
+		}
+		if p != k {
+			rk, rp := a[k*n:(k+1)*n], a[p*n:(p+1)*n]
+			for j := range rk {
+				rk[j], rp[j] = rp[j], rk[j]
+			}
+		}
+		inv := 1 / a[k*n+k]
+		rk := a[k*n+k+1 : (k+1)*n]
+		for i := k + 1; i < n; i++ {
+			l := a[i*n+k] * inv
+			a[i*n+k] = l
+			if l == 0 {
+				continue
+			}
+			ri := a[i*n+k+1 : (i+1)*n]
+			for j, v := range rk {
+				ri[j] -= l * v
+			}
+		}
+	}
+	return nil
+}
+
+// Solve overwrites b with the solution of A x = b.
+func (f *LU) Solve(b []float64) {
+	n := f.n
+	a := f.a
+	for k := 0; k < n; k++ {
+		if p := f.piv[k]; p != k {
+			b[k], b[p] = b[p], b[k]
+		}
+	}
+	for i := 1; i < n; i++ {
+		row := a[i*n : i*n+i]
+		s := b[i]
+		for j, v := range row {
+			s -= v * b[j]
+		}
+		b[i] = s
+	}
+	for i := n - 1; i >= 0; i-- {
+		s := b[i]
+		row := a[i*n+i+1 : (i+1)*n]
+		for j, v := range row {
+			s -= v * b[i+1+j]
+		}
+		b[i] = s / a[i*n+i]
+	}
+}
