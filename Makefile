@@ -1,0 +1,50 @@
+# Kinetarium: the two commands a new user needs are `make run` and `make test`.
+GO ?= go
+MODEL ?=
+
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check bench fuzz build batch clean
+
+run: deps
+	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
+
+build: deps
+	$(GO) build -o bin/kinetarium ./app
+	CGO_ENABLED=0 $(GO) build -o bin/kinetarium-batch ./app/batch
+
+batch:
+	CGO_ENABLED=0 $(GO) build -o bin/kinetarium-batch ./app/batch
+
+deps:
+	@scripts/ensure-deps.sh
+
+test-deps:
+	@scripts/ensure-deps.sh --test
+
+test: test-deps fmt-check vet unit screenshot-check
+
+fmt-check:
+	@out=$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go')); \
+	if [ -n "$$out" ]; then echo "gofmt needed on:"; echo "$$out"; exit 1; fi
+
+vet:
+	$(GO) vet ./...
+
+unit:
+	$(GO) test ./...
+
+screenshot-check:
+	app/screenshot_check.sh
+
+# Work-precision report and the benchmarks of every package.
+bench:
+	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/...
+	$(GO) run ./solve/internal/workprecision -out bench/out
+
+FUZZTIME ?= 30s
+fuzz:
+	$(GO) test ./network/expr -run '^$$' -fuzz FuzzParse -fuzztime $(FUZZTIME)
+	$(GO) test ./network -run '^$$' -fuzz FuzzParseEquation -fuzztime $(FUZZTIME)
+	$(GO) test ./network -run '^$$' -fuzz FuzzRead -fuzztime $(FUZZTIME)
+
+clean:
+	rm -rf bin bench/out
