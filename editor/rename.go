@@ -1,0 +1,214 @@
+package editor
+
+import (
+	"strings"
+	"unicode/utf8"
+
+	"kinetarium/network"
+)
+
+// Kind names a kind of named item in a model.
+type Kind int
+
+// The kinds of named items.
+const (
+	KindSpecies Kind = iota
+	KindParameter
+	KindCompartment
+	KindReaction
+)
+
+// String returns the plain word for k ("species", "parameter", …).
+func (k Kind) String() string {
+	switch k {
+	case KindSpecies:
+		return "species"
+	case KindParameter:
+		return "parameter"
+	case KindCompartment:
+		return "compartment"
+	case KindReaction:
+		return "reaction"
+	}
+	return "item"
+}
+
+func isNameStart(c byte) bool {
+	return c == '_' || c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z'
+}
+
+func isNameChar(c byte) bool { return isNameStart(c) || c >= '0' && c <= '9' }
+
+func isDigit(c byte) bool { return c >= '0' && c <= '9' }
+
+// ReplaceName returns s with every whole-name occurrence of old replaced by
+// new, and the number of replacements. A name is a run
+// [A-Za-z_][A-Za-z0-9_]* that does not continue a longer name; numbers are
+// skipped as a whole, exponent included, so "2e5" never matches "e5", while
+// the coefficient in an equation term such as "2A" is split from its species.
+// The rules match both equations and rate expressions.
+func ReplaceName(s, old, new string) (string, int) {
+	if old == "" || !strings.Contains(s, old) {
+		return s, 0
+	}
+	var b strings.Builder
+	n := 0
+	i := 0
+	for i < len(s) {
+		c := s[i]
+		switch {
+		case isDigit(c) || c == '.' && i+1 < len(s) && isDigit(s[i+1]):
+			j := i
+			for j < len(s) && (isDigit(s[j]) || s[j] == '.') {
+				j++
+			}
+			if j < len(s) && (s[j] == 'e' || s[j] == 'E') {
+				k := j + 1
+				if k < len(s) && (s[k] == '+' || s[k] == '-') {
+					k++
+				}
+				if k < len(s) && isDigit(s[k]) {
+					for k < len(s) && isDigit(s[k]) {
+						k++
+					}
+					j = k
+				}
+			}
+			b.WriteString(s[i:j])
+			i = j
+		case isNameStart(c):
+			j := i
+			for j < len(s) && isNameChar(s[j]) {
+				j++
+			}
+			if s[i:j] == old {
+				b.WriteString(new)
+				n++
+			} else {
+				b.WriteString(s[i:j])
+			}
+			i = j
+		default:
+			_, size := utf8.DecodeRuneInString(s[i:])
+			b.WriteString(s[i : i+size])
+			i += size
+		}
+	}
+	return b.String(), n
+}
+
+// Names returns the distinct names used in s, in order of first use, by the
+// rules of ReplaceName.
+func Names(s string) []string {
+	var out []string
+	seen := map[string]bool{}
+	i := 0
+	for i < len(s) {
+		c := s[i]
+		switch {
+		case isDigit(c) || c == '.':
+			j := i
+			for j < len(s) && (isDigit(s[j]) || s[j] == '.') {
+				j++
+			}
+			if j < len(s) && (s[j] == 'e' || s[j] == 'E') {
+				k := j + 1
+				if k < len(s) && (s[k] == '+' || s[k] == '-') {
+					k++
+				}
+				if k < len(s) && isDigit(s[k]) {
+					for k < len(s) && isDigit(s[k]) {
+						k++
+					}
+					j = k
+				}
+			}
+			i = j
+		case isNameStart(c):
+			j := i
+			for j < len(s) && isNameChar(s[j]) {
+				j++
+			}
+			if name := s[i:j]; !seen[name] {
+				seen[name] = true
+				out = append(out, name)
+			}
+			i = j
+		default:
+			_, size := utf8.DecodeRuneInString(s[i:])
+			i += size
+		}
+	}
+	return out
+}
+
+// renameInModel renames the item old of kind k to new in m, and, when
+// everywhere is true, every use of it: equations, rate expressions, rate
+// fields naming it, and species' compartments. It returns the number of
+// uses updated.
+func renameInModel(m *network.Model, k Kind, old, new string, everywhere bool) int {
+	switch k {
+	case KindSpecies:
+		for i := range m.Species {
+			if m.Species[i].Name == old {
+				m.Species[i].Name = new
+			}
+		}
+	case KindParameter:
+		for i := range m.Parameters {
+			if m.Parameters[i].Name == old {
+				m.Parameters[i].Name = new
+			}
+		}
+	case KindCompartment:
+		for i := range m.Compartments {
+			if m.Compartments[i].Name == old {
+				m.Compartments[i].Name = new
+			}
+		}
+	case KindReaction:
+		for i := range m.Reactions {
+			if m.Reactions[i].Name == old {
+				m.Reactions[i].Name = new
+			}
+		}
+		return 0
+	}
+	if !everywhere {
+		return 0
+	}
+	uses := 0
+	if k == KindCompartment {
+		for i := range m.Species {
+			if m.Species[i].Compartment == old {
+				m.Species[i].Compartment = new
+				uses++
+			}
+		}
+		return uses
+	}
+	value := func(v *network.Value) {
+		if v.Set && v.Name == old {
+			v.Name = new
+			uses++
+		}
+	}
+	for i := range m.Reactions {
+		r := &m.Reactions[i]
+		if k == KindSpecies {
+			var n int
+			r.Equation, n = ReplaceName(r.Equation, old, new)
+			uses += n
+		}
+		var n int
+		r.Rate.Expression, n = ReplaceName(r.Rate.Expression, old, new)
+		uses += n
+		value(&r.Rate.K)
+		value(&r.Rate.KReverse)
+		value(&r.Rate.Vmax)
+		value(&r.Rate.Km)
+		value(&r.Rate.Kcat)
+		value(&r.Rate.Enzyme)
+	}
+	return uses
+}
