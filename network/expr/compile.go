@@ -1,0 +1,387 @@
+package expr
+
+import (
+	"fmt"
+	"math"
+)
+
+type opcode uint8
+
+// The machine keeps the top of the stack in a local variable x; "push" saves
+// x on the stack before loading a new value, and binary operators combine
+// the saved value s with x. Suffix V takes the right operand from a variable
+// slot, C from the constant; R marks reversed operands.
+const (
+	opConst  opcode = iota // push; x = c
+	opVar                  // push; x = vars[i]
+	opAdd                  // x = s + x
+	opSub                  // x = s - x
+	opMul                  // x = s * x
+	opDiv                  // x = s / x
+	opPow                  // x = s ^ x
+	opAddV                 // x += vars[i]
+	opSubV                 // x -= vars[i]
+	opRSubV                // x = vars[i] - x
+	opMulV                 // x *= vars[i]
+	opDivV                 // x /= vars[i]
+	opRDivV                // x = vars[i] / x
+	opPowV                 // x = x ^ vars[i]
+	opRPowV                // x = vars[i] ^ x
+	opAddC                 // x += c
+	opRSubC                // x = c - x
+	opMulC                 // x *= c
+	opDivC                 // x /= c
+	opRDivC                // x = c / x
+	opPowC                 // x = x ^ c
+	opRPowC                // x = c ^ x
+	opNeg                  // x = -x
+	opSq                   // x = x*x
+	opCube                 // x = x*x*x
+	opRecip                // x = 1/x
+	opPowI                 // x = x^i for an integer i, by repeated squaring
+	opSqrt
+	opExp
+	opLog
+	opLog10
+	opAbs
+	opSign
+	opMin   // x = min(s, x)
+	opMax   // x = max(s, x)
+	opIfLE  // with saved a, b, p: x = p if a <= b else x
+)
+
+type instr struct {
+	op opcode
+	i  int32
+	c  float64
+}
+
+// Program is a compiled expression. Its Eval method uses scratch space held
+// in the Program, so a Program is not safe for concurrent use; give each
+// goroutine its own Clone.
+type Program struct {
+	code  []instr
+	stack []float64
+	slots int // len(vars) must be at least this
+}
+
+// Compile simplifies n and compiles it into a Program. The function slot maps
+// each variable name to its index in the vars slice later passed to Eval;
+// Compile reports an error naming the first variable slot does not know.
+// Integer powers x^2, x^3, x^-1, ... become multiplications and x^0.5
+// becomes sqrt(x).
+func Compile(n Node, slot func(name string) (int, bool)) (*Program, error) {
+	c := &compiler{slot: slot}
+	if err := c.emit(Simplify(n)); err != nil {
+		return nil, err
+	}
+	return &Program{code: c.code, stack: make([]float64, c.maxDepth), slots: c.slots}, nil
+}
+
+// Clone returns a copy of p with its own scratch space, for use by another
+// goroutine.
+func (p *Program) Clone() *Program {
+	return &Program{code: p.code, stack: make([]float64, len(p.stack)), slots: p.slots}
+}
+
+// Slots returns the length the vars slice passed to Eval must have at least:
+// one more than the largest slot used.
+func (p *Program) Slots() int { return p.slots }
+
+type compiler struct {
+	slot     func(string) (int, bool)
+	code     []instr
+	depth    int // number of values saved on the stack below x
+	maxDepth int
+	slots    int
+}
+
+func (c *compiler) add(op opcode, i int32, v float64) {
+	c.code = append(c.code, instr{op: op, i: i, c: v})
+}
+
+func (c *compiler) push() {
+	if len(c.code) == 0 {
+		return // nothing to save yet
+	}
+	c.depth++
+	c.maxDepth = max(c.maxDepth, c.depth)
+}
+
+func (c *compiler) pop(k int) { c.depth -= k }
+
+func (c *compiler) varSlot(v *varNode) (int32, error) {
+	i, ok := c.slot(v.name)
+	if !ok {
+		return 0, fmt.Errorf("compile: unknown variable %q at column %d", v.name, v.col)
+	}
+	if i < 0 || i > math.MaxInt32-1 {
+		return 0, fmt.Errorf("compile: variable %q mapped to invalid slot %d; expected a non-negative index", v.name, i)
+	}
+	c.slots = max(c.slots, i+1)
+	return int32(i), nil
+}
+
+// Operator codes indexed by (operator, operand kind).
+var (
+	stackOps = map[byte]opcode{'+': opAdd, '-': opSub, '*': opMul, '/': opDiv, '^': opPow}
+	varOps   = map[byte]opcode{'+': opAddV, '-': opSubV, '*': opMulV, '/': opDivV, '^': opPowV}
+	rvarOps  = map[byte]opcode{'+': opAddV, '-': opRSubV, '*': opMulV, '/': opRDivV, '^': opRPowV}
+	constOps = map[byte]opcode{'+': opAddC, '*': opMulC, '/': opDivC, '^': opPowC}
+	rconOps  = map[byte]opcode{'+': opAddC, '-': opRSubC, '*': opMulC, '/': opRDivC, '^': opRPowC}
+	callOps  = [numFuncs]opcode{fnExp: opExp, fnLog: opLog, fnLog10: opLog10, fnSqrt: opSqrt,
+		fnAbs: opAbs, fnMin: opMin, fnMax: opMax, fnPow: opPow, fnSign: opSign, fnIfLE: opIfLE}
+)
+
+func (c *compiler) emit(n Node) error {
+	switch n := n.(type) {
+	case *numNode:
+		c.push()
+		c.add(opConst, 0, n.v)
+	case *varNode:
+		i, err := c.varSlot(n)
+		if err != nil {
+			return err
+		}
+		c.push()
+		c.add(opVar, i, 0)
+	case *negNode:
+		if err := c.emit(n.x); err != nil {
+			return err
+		}
+		c.add(opNeg, 0, 0)
+	case *binNode:
+		return c.emitBin(n)
+	case *callNode:
+		if int(n.fn) >= len(funcs) || len(n.args) != funcs[n.fn].arity {
+			return fmt.Errorf("compile: malformed call at column %d", n.col)
+		}
+		for _, a := range n.args {
+			if err := c.emit(a); err != nil {
+				return err
+			}
+		}
+		c.add(callOps[n.fn], 0, 0)
+		c.pop(len(n.args) - 1)
+	default:
+		return fmt.Errorf("compile: unsupported node %T", n)
+	}
+	return nil
+}
+
+func (c *compiler) emitBin(n *binNode) error {
+	if n.op == '^' {
+		if v, ok := numOf(n.r); ok && c.emitPowConst(n.l, v) {
+			return nil
+		}
+	}
+	// Right operand a leaf: compute the left, then apply an operand form.
+	switch r := n.r.(type) {
+	case *varNode:
+		i, err := c.varSlot(r)
+		if err != nil {
+			return err
+		}
+		if err := c.emit(n.l); err != nil {
+			return err
+		}
+		c.add(varOps[n.op], i, 0)
+		return nil
+	case *numNode:
+		if err := c.emit(n.l); err != nil {
+			return err
+		}
+		switch n.op {
+		case '-':
+			c.add(opAddC, 0, -r.v) // x - c == x + (-c) exactly in IEEE arithmetic
+		default:
+			c.add(constOps[n.op], 0, r.v)
+		}
+		return nil
+	}
+	// Left operand a leaf: compute the right, then apply a reversed form.
+	switch l := n.l.(type) {
+	case *varNode:
+		i, err := c.varSlot(l)
+		if err != nil {
+			return err
+		}
+		if err := c.emit(n.r); err != nil {
+			return err
+		}
+		c.add(rvarOps[n.op], i, 0)
+		return nil
+	case *numNode:
+		if err := c.emit(n.r); err != nil {
+			return err
+		}
+		c.add(rconOps[n.op], 0, l.v)
+		return nil
+	}
+	if err := c.emit(n.l); err != nil {
+		return err
+	}
+	if err := c.emit(n.r); err != nil {
+		return err
+	}
+	c.add(stackOps[n.op], 0, 0)
+	c.pop(1)
+	return nil
+}
+
+// emitPowConst emits base^e with special forms for small integer and half
+// exponents; it reports false, emitting nothing, for other exponents.
+func (c *compiler) emitPowConst(base Node, e float64) bool {
+	var ops []instr
+	switch {
+	case e == 2:
+		ops = []instr{{op: opSq}}
+	case e == 3:
+		ops = []instr{{op: opCube}}
+	case e == -1:
+		ops = []instr{{op: opRecip}}
+	case e == 0.5:
+		ops = []instr{{op: opSqrt}}
+	case e == -0.5:
+		ops = []instr{{op: opSqrt}, {op: opRecip}}
+	case e == math.Trunc(e) && math.Abs(e) <= 64:
+		ops = []instr{{op: opPowI, i: int32(e)}}
+	default:
+		return false
+	}
+	if err := c.emit(base); err != nil {
+		// Report through the general path, which emits base again and
+		// returns the same error.
+		return false
+	}
+	c.code = append(c.code, ops...)
+	return true
+}
+
+// Eval evaluates the program with variable values vars, indexed by the slots
+// given at compile time. It does not allocate. It returns NaN if vars is
+// shorter than p.Slots().
+func (p *Program) Eval(vars []float64) float64 {
+	if len(vars) < p.slots {
+		return math.NaN()
+	}
+	s := p.stack
+	sp := 0 // number of saved values
+	var x float64
+	for k := range p.code {
+		in := &p.code[k]
+		switch in.op {
+		case opConst:
+			if k > 0 {
+				s[sp] = x
+				sp++
+			}
+			x = in.c
+		case opVar:
+			if k > 0 {
+				s[sp] = x
+				sp++
+			}
+			x = vars[in.i]
+		case opAdd:
+			sp--
+			x = s[sp] + x
+		case opSub:
+			sp--
+			x = s[sp] - x
+		case opMul:
+			sp--
+			x = s[sp] * x
+		case opDiv:
+			sp--
+			x = s[sp] / x
+		case opPow:
+			sp--
+			x = math.Pow(s[sp], x)
+		case opAddV:
+			x += vars[in.i]
+		case opSubV:
+			x -= vars[in.i]
+		case opRSubV:
+			x = vars[in.i] - x
+		case opMulV:
+			x *= vars[in.i]
+		case opDivV:
+			x /= vars[in.i]
+		case opRDivV:
+			x = vars[in.i] / x
+		case opPowV:
+			x = math.Pow(x, vars[in.i])
+		case opRPowV:
+			x = math.Pow(vars[in.i], x)
+		case opAddC:
+			x += in.c
+		case opRSubC:
+			x = in.c - x
+		case opMulC:
+			x *= in.c
+		case opDivC:
+			x /= in.c
+		case opRDivC:
+			x = in.c / x
+		case opPowC:
+			x = math.Pow(x, in.c)
+		case opRPowC:
+			x = math.Pow(in.c, x)
+		case opNeg:
+			x = -x
+		case opSq:
+			x *= x
+		case opCube:
+			x = x * x * x
+		case opRecip:
+			x = 1 / x
+		case opPowI:
+			x = powi(x, int(in.i))
+		case opSqrt:
+			x = math.Sqrt(x)
+		case opExp:
+			x = math.Exp(x)
+		case opLog:
+			x = math.Log(x)
+		case opLog10:
+			x = math.Log10(x)
+		case opAbs:
+			x = math.Abs(x)
+		case opSign:
+			x = sign(x)
+		case opMin:
+			sp--
+			x = math.Min(s[sp], x)
+		case opMax:
+			sp--
+			x = math.Max(s[sp], x)
+		case opIfLE:
+			sp -= 3
+			if s[sp] <= s[sp+1] {
+				x = s[sp+2]
+			}
+		}
+	}
+	return x
+}
+
+// powi returns x^n by repeated squaring.
+func powi(x float64, n int) float64 {
+	neg := n < 0
+	if neg {
+		n = -n
+	}
+	r := 1.0
+	for n > 0 {
+		if n&1 == 1 {
+			r *= x
+		}
+		x *= x
+		n >>= 1
+	}
+	if neg {
+		return 1 / r
+	}
+	return r
+}

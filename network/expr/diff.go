@@ -1,0 +1,93 @@
+package expr
+
+import "math"
+
+// Diff returns the exact symbolic derivative ∂n/∂name, simplified. A
+// derivative that is identically zero is the literal 0 (see Const).
+//
+// Powers x^y use the power rule y*x^(y-1)*x' when y does not depend on name,
+// so x^2 differentiates to 2*x and is fine at x = 0; otherwise
+// y*x^(y-1)*x' + x^y*log(x)*y'. The derivative of abs(x) is sign(x)*x', which
+// is 0 at x = 0; min and max differentiate to the derivative of the branch
+// they choose (on a tie, min follows its first argument and max its second),
+// expressed with the internal function ifle(a, b, x, y) that yields x when
+// a <= b and y otherwise.
+func Diff(n Node, name string) Node {
+	return diff(Simplify(n), name)
+}
+
+func diff(n Node, name string) Node {
+	if !dependsOn(n, name) {
+		return &numNode{v: 0}
+	}
+	switch n := n.(type) {
+	case *varNode:
+		return &numNode{v: 1} // dependsOn guarantees n.name == name
+	case *negNode:
+		return neg(diff(n.x, name))
+	case *binNode:
+		u, v := n.l, n.r
+		switch n.op {
+		case '+':
+			return add(diff(u, name), diff(v, name))
+		case '-':
+			return sub(diff(u, name), diff(v, name))
+		case '*':
+			return add(mul(diff(u, name), v), mul(u, diff(v, name)))
+		case '/':
+			du, dv := diff(u, name), diff(v, name)
+			if isNum(dv, 0) {
+				return div(du, v)
+			}
+			// (u/v)' = u'/v - u*v'/v^2
+			return sub(div(du, v), div(mul(u, dv), pow(v, &numNode{v: 2})))
+		case '^':
+			return diffPow(u, v, name)
+		}
+	case *callNode:
+		return diffCall(n, name)
+	}
+	return &numNode{v: math.NaN()} // unreachable for trees of this package
+}
+
+func diffPow(u, v Node, name string) Node {
+	du := diff(u, name)
+	if !dependsOn(v, name) {
+		// v*u^(v-1)*u'
+		return mul(mul(v, pow(u, sub(v, &numNode{v: 1}))), du)
+	}
+	// u^v*log(u)*v', plus v*u^(v-1)*u' when the base depends on name too.
+	dv := diff(v, name)
+	d := mul(mul(pow(u, v), call(fnLog, u)), dv)
+	if dependsOn(u, name) {
+		d = add(mul(mul(v, pow(u, sub(v, &numNode{v: 1}))), du), d)
+	}
+	return d
+}
+
+func diffCall(n *callNode, name string) Node {
+	a := n.args
+	switch n.fn {
+	case fnExp:
+		return mul(n, diff(a[0], name))
+	case fnLog:
+		return div(diff(a[0], name), a[0])
+	case fnLog10:
+		return div(diff(a[0], name), mul(a[0], &numNode{v: math.Ln10}))
+	case fnSqrt:
+		return div(diff(a[0], name), mul(&numNode{v: 2}, n))
+	case fnAbs:
+		return mul(call(fnSign, a[0]), diff(a[0], name))
+	case fnMin:
+		return call(fnIfLE, a[0], a[1], diff(a[0], name), diff(a[1], name))
+	case fnMax:
+		return call(fnIfLE, a[0], a[1], diff(a[1], name), diff(a[0], name))
+	case fnPow:
+		return diffPow(a[0], a[1], name)
+	case fnSign:
+		return &numNode{v: 0}
+	case fnIfLE:
+		return call(fnIfLE, a[0], a[1], diff(a[2], name), diff(a[3], name))
+	}
+	return &numNode{v: math.NaN()} // unreachable for trees of this package
+}

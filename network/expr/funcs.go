@@ -1,0 +1,142 @@
+package expr
+
+import (
+	"math"
+	"strings"
+)
+
+// fnID identifies a function, public or internal.
+type fnID uint8
+
+const (
+	fnExp fnID = iota
+	fnLog
+	fnLog10
+	fnSqrt
+	fnAbs
+	fnMin
+	fnMax
+	fnPow
+	// Internal functions appear only in derivatives; Parse rejects them.
+	fnSign // sign(x): -1, 0 or 1
+	fnIfLE // ifle(a, b, x, y): x when a <= b, else y
+	numFuncs
+)
+
+type funcInfo struct {
+	name   string
+	arity  int
+	public bool
+}
+
+var funcs = [numFuncs]funcInfo{
+	fnExp:   {"exp", 1, true},
+	fnLog:   {"log", 1, true},
+	fnLog10: {"log10", 1, true},
+	fnSqrt:  {"sqrt", 1, true},
+	fnAbs:   {"abs", 1, true},
+	fnMin:   {"min", 2, true},
+	fnMax:   {"max", 2, true},
+	fnPow:   {"pow", 2, true},
+	fnSign:  {"sign", 1, false},
+	fnIfLE:  {"ifle", 4, false},
+}
+
+// lookupFunc returns the public function called name.
+func lookupFunc(name string) (fnID, bool) {
+	for id, f := range funcs {
+		if f.public && f.name == name {
+			return fnID(id), true
+		}
+	}
+	return 0, false
+}
+
+// knownFuncs lists the public function names, comma separated.
+func knownFuncs() string {
+	var names []string
+	for _, f := range funcs {
+		if f.public {
+			names = append(names, f.name)
+		}
+	}
+	return strings.Join(names, ", ")
+}
+
+func sign(x float64) float64 {
+	switch {
+	case x > 0:
+		return 1
+	case x < 0:
+		return -1
+	}
+	return x // 0, -0 or NaN
+}
+
+// apply evaluates function fn at args; len(args) must equal its arity.
+func apply(fn fnID, a []float64) float64 {
+	switch fn {
+	case fnExp:
+		return math.Exp(a[0])
+	case fnLog:
+		return math.Log(a[0])
+	case fnLog10:
+		return math.Log10(a[0])
+	case fnSqrt:
+		return math.Sqrt(a[0])
+	case fnAbs:
+		return math.Abs(a[0])
+	case fnMin:
+		return math.Min(a[0], a[1])
+	case fnMax:
+		return math.Max(a[0], a[1])
+	case fnPow:
+		return math.Pow(a[0], a[1])
+	case fnSign:
+		return sign(a[0])
+	case fnIfLE:
+		if a[0] <= a[1] {
+			return a[2]
+		}
+		return a[3]
+	}
+	return math.NaN()
+}
+
+// evalTree evaluates n directly, looking variables up with env. It is slow
+// and used for constant folding and in tests; use Compile for speed.
+func evalTree(n Node, env func(string) float64) float64 {
+	switch n := n.(type) {
+	case *numNode:
+		return n.v
+	case *varNode:
+		return env(n.name)
+	case *negNode:
+		return -evalTree(n.x, env)
+	case *binNode:
+		return binop(n.op, evalTree(n.l, env), evalTree(n.r, env))
+	case *callNode:
+		a := make([]float64, len(n.args))
+		for i, m := range n.args {
+			a[i] = evalTree(m, env)
+		}
+		return apply(n.fn, a)
+	}
+	return math.NaN()
+}
+
+func binop(op byte, a, b float64) float64 {
+	switch op {
+	case '+':
+		return a + b
+	case '-':
+		return a - b
+	case '*':
+		return a * b
+	case '/':
+		return a / b
+	case '^':
+		return math.Pow(a, b)
+	}
+	return math.NaN()
+}
