@@ -27,6 +27,16 @@ type System interface {
 	Jacobian(t float64, y []float64, jac *mat.Dense)
 }
 
+// AutonomousSystem is implemented by a System that can tell whether its f
+// does not depend on t explicitly. Rosenbrock methods then skip the
+// estimate of ∂f/∂t (one RHS evaluation per step). Reaction networks whose
+// rate laws do not mention time report true.
+type AutonomousSystem interface {
+	System
+	// Autonomous reports whether f(t, y) is independent of t.
+	Autonomous() bool
+}
+
 // Method names an integration method.
 type Method string
 

@@ -1,5 +1,17 @@
 package solve
 
+// Notes for stepper authors (added by the driver's author; the stepper
+// interface itself is unchanged):
+//   - The driver sets problem.tEnd (end of the current solve) and
+//     problem.maxStep (Settings.MaxStep or |tEnd − t0|) before calling start,
+//     so start can call p.initialStep(t, p.tEnd, ...).
+//   - The driver counts Stats.Steps; steppers count Rejected, Factorizations,
+//     LinearSolves and NonNegFixes, and evaluate f and J through p.rhs, p.jac.
+//   - For a non-finite state use p.nonFiniteError(t, h, v); when the step
+//     size underflows use p.tooSmallError(t, h). Both fill StepError.Component.
+//   - The driver obtains steppers from newRosenbrock, newDopri, newRadau and
+//     newBDF; a constructor that returns nil means "not available".
+
 import (
 	"fmt"
 	"math"
@@ -41,12 +53,16 @@ type problem struct {
 	nonneg  bool
 	maxStep float64
 	stats   *Stats
+
+	tEnd       float64 // end of the current solve (set by the driver)
+	autonomous bool    // f does not depend on t (AutonomousSystem)
 }
 
 // newProblem applies the defaults of s.
 func newProblem(sys System, s Settings, stats *Stats) *problem {
 	n := sys.Dim()
 	p := &problem{sys: sys, n: n, rtol: s.RTol, nonneg: s.NonNegative, maxStep: s.MaxStep, stats: stats}
+	p.setSystem(sys)
 	if p.rtol <= 0 {
 		p.rtol = 1e-6
 	}
@@ -62,6 +78,15 @@ func newProblem(sys System, s Settings, stats *Stats) *problem {
 		}
 	}
 	return p
+}
+
+// setSystem switches to sys, which has the same dimension.
+func (p *problem) setSystem(sys System) {
+	p.sys = sys
+	p.autonomous = false
+	if a, ok := sys.(AutonomousSystem); ok {
+		p.autonomous = a.Autonomous()
+	}
 }
 
 // rhs evaluates f and counts it.
@@ -137,10 +162,43 @@ type StepError struct {
 	T      float64 // time of the last accepted step
 	H      float64 // step size at failure
 	Reason string  // plain-language cause
+	// Component is the index of the state variable at fault (for example
+	// the one that became NaN), or -1 when no single one is.
+	Component int
 }
 
+// Error describes the failure with its time, step size and cause.
 func (e *StepError) Error() string {
 	return fmt.Sprintf("integration stopped at t = %.6g with step size %.3g: %s", e.T, e.H, e.Reason)
+}
+
+// eps is the unit roundoff of float64.
+const eps = 0x1p-52
+
+// minStep is the smallest step size that still advances t in a useful way.
+func minStep(t float64) float64 {
+	return math.Max(16*eps*math.Abs(t), 1e-300)
+}
+
+// nonFiniteError reports that component i of v is NaN or infinite at t.
+func (p *problem) nonFiniteError(t, h float64, v []float64, i int) *StepError {
+	what := "NaN"
+	if math.IsInf(v[i], 0) {
+		what = "infinite"
+	}
+	return &StepError{T: t, H: h, Component: i,
+		Reason: fmt.Sprintf("component %d became %s at t = %.6g; a rate expression may be undefined there (division by zero, log or root of a negative number, overflow)", i, what, t)}
+}
+
+// tooSmallError reports that the step size fell below what t can resolve.
+// bad is the index of a component that was non-finite in the last try, or -1.
+func (p *problem) tooSmallError(t, h float64, bad int) *StepError {
+	if bad >= 0 {
+		return &StepError{T: t, H: h, Component: bad,
+			Reason: fmt.Sprintf("component %d became NaN or infinite in every attempted step after t = %.6g; a rate expression may be undefined there or the solution may grow without bound", bad, t)}
+	}
+	return &StepError{T: t, H: h, Component: -1,
+		Reason: "the step size fell below the smallest step the time scale allows; the solution may be growing without bound, or a rate may be discontinuous or singular here"}
 }
 
 // nonFinite returns the index of the first NaN or Inf in v, or -1.

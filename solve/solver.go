@@ -1,0 +1,367 @@
+package solve
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"time"
+)
+
+// Solver integrates systems of one dimension, reusing its work space from
+// one solve to the next. It takes no allocations per step; each Solve
+// allocates only its Result. A Solver is used by one goroutine at a time.
+type Solver struct {
+	set   Settings
+	n     int
+	stats Stats
+	p     *problem
+	err   error // set-up error, reported by Solve
+
+	ros   *rosenbrock
+	dp    *dopri
+	radau stepper
+	bdf   stepper
+
+	y []float64 // state handed to OnStop
+}
+
+// NewSolver returns a Solver for sys with settings s. All work space for the
+// chosen method is allocated here. Invalid settings are reported by Solve.
+func NewSolver(sys System, s Settings) *Solver {
+	sv := &Solver{set: s}
+	sv.set.Times = append([]float64(nil), s.Times...)
+	sv.set.StopTimes = append([]float64(nil), s.StopTimes...)
+	if s.ATolVec != nil {
+		sv.set.ATolVec = append([]float64(nil), s.ATolVec...)
+	}
+	if sys == nil {
+		sv.err = fmt.Errorf("solve: no system given")
+		return sv
+	}
+	sv.alloc(sys)
+	return sv
+}
+
+// alloc creates the problem and the steppers for sys.
+func (sv *Solver) alloc(sys System) {
+	sv.n = sys.Dim()
+	sv.err = nil
+	if sv.n <= 0 {
+		sv.err = fmt.Errorf("solve: the system has %d state variables; at least one is needed", sv.n)
+		return
+	}
+	sv.p = newProblem(sys, sv.set, &sv.stats)
+	sv.y = make([]float64, sv.n)
+	sv.ros, sv.dp, sv.radau, sv.bdf = nil, nil, nil, nil
+	switch sv.set.Method {
+	case Rosenbrock:
+		sv.ros = newRosenbrock(sv.p)
+	case Explicit:
+		sv.dp = newDopri(sv.p)
+	case Radau:
+		sv.radau = newRadau(sv.p)
+	case BDF:
+		sv.bdf = newBDF(sv.p)
+	case Auto:
+		sv.ros = newRosenbrock(sv.p)
+		if sv.n >= autoBDFSize {
+			sv.bdf = newBDF(sv.p)
+		} else {
+			sv.dp = newDopri(sv.p)
+		}
+	}
+}
+
+// SetSystem makes the Solver integrate sys from now on. When sys has the
+// dimension of the previous system the work space is kept; otherwise it is
+// allocated anew.
+func (sv *Solver) SetSystem(sys System) {
+	switch {
+	case sys == nil:
+		sv.err = fmt.Errorf("solve: no system given")
+	case sv.p != nil && sys.Dim() == sv.n:
+		sv.err = nil
+		sv.p.setSystem(sys)
+	default:
+		sv.alloc(sys)
+	}
+}
+
+// validate checks the arguments of a solve and the settings.
+func (sv *Solver) validate(t0, tEnd float64, y0 []float64) error {
+	s := &sv.set
+	switch {
+	case math.IsNaN(t0) || math.IsInf(t0, 0):
+		return fmt.Errorf("solve: start time %v is not a finite number", t0)
+	case math.IsNaN(tEnd) || math.IsInf(tEnd, 0):
+		return fmt.Errorf("solve: end time %v is not a finite number", tEnd)
+	case !(tEnd > t0):
+		return fmt.Errorf("solve: end time %g must be after start time %g", tEnd, t0)
+	case len(y0) != sv.n:
+		return fmt.Errorf("solve: initial state has %d values; the system has %d state variables", len(y0), sv.n)
+	}
+	for i, v := range y0 {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("solve: initial value of component %d is %v; a finite number is expected", i, v)
+		}
+		if s.NonNegative && v < 0 {
+			return fmt.Errorf("solve: initial value of component %d is %g, but non-negative values are required", i, v)
+		}
+	}
+	switch {
+	case math.IsNaN(s.RTol) || s.RTol < 0:
+		return fmt.Errorf("solve: relative tolerance %g must be positive (or 0 for the default 1e-6)", s.RTol)
+	case s.RTol > 0 && s.RTol < 100*eps:
+		return fmt.Errorf("solve: relative tolerance %g is below what float64 arithmetic can deliver; use at least %.1g", s.RTol, 100*eps)
+	case s.RTol >= 1:
+		return fmt.Errorf("solve: relative tolerance %g must be below 1", s.RTol)
+	case math.IsNaN(s.ATol) || s.ATol < 0:
+		return fmt.Errorf("solve: absolute tolerance %g must be positive (or 0 for the default 1e-10)", s.ATol)
+	case s.ATolVec != nil && len(s.ATolVec) != sv.n:
+		return fmt.Errorf("solve: %d absolute tolerances given for %d state variables", len(s.ATolVec), sv.n)
+	case s.MaxSteps < 0:
+		return fmt.Errorf("solve: maximum number of steps %d must not be negative", s.MaxSteps)
+	case math.IsNaN(s.MaxStep) || s.MaxStep < 0:
+		return fmt.Errorf("solve: maximum step %g must not be negative", s.MaxStep)
+	case math.IsNaN(s.InitialStep) || s.InitialStep < 0:
+		return fmt.Errorf("solve: initial step %g must not be negative", s.InitialStep)
+	}
+	for i, v := range s.ATolVec {
+		if math.IsNaN(v) || v < 0 {
+			return fmt.Errorf("solve: absolute tolerance of component %d is %g; a non-negative number is expected", i, v)
+		}
+	}
+	for i, v := range s.Times {
+		if math.IsNaN(v) || v < t0 || v > tEnd {
+			return fmt.Errorf("solve: output time %d (%g) is outside the interval [%g, %g]", i, v, t0, tEnd)
+		}
+		if i > 0 && !(v > s.Times[i-1]) {
+			return fmt.Errorf("solve: output times must increase, but time %d (%g) follows %g", i, v, s.Times[i-1])
+		}
+	}
+	for i, v := range s.StopTimes {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("solve: stop time %d is %v; a finite number is expected", i, v)
+		}
+		if i > 0 && !(v > s.StopTimes[i-1]) {
+			return fmt.Errorf("solve: stop times must increase, but stop time %d (%g) follows %g", i, v, s.StopTimes[i-1])
+		}
+	}
+	return nil
+}
+
+// Solve integrates from (t0, y0) to tEnd, tEnd > t0. It returns the
+// solution at Settings.Times, or at every accepted step when Times is
+// empty. On failure it returns the outputs reached so far together with the
+// error: a *StepError for numerical trouble, or an error wrapping ctx.Err()
+// when ctx is cancelled.
+//
+// At a stop time the solution is reported as it is after OnStop has run; in
+// every-step mode a stop time where OnStop changes the state appears twice,
+// before and after the change. Stop times outside (t0, tEnd) are ignored.
+func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*Result, error) {
+	start := time.Now()
+	if sv.err != nil {
+		return nil, sv.err
+	}
+	if err := sv.validate(t0, tEnd, y0); err != nil {
+		return nil, err
+	}
+	set := &sv.set
+	n := sv.n
+	p := sv.p
+	sv.stats = Stats{Methods: make([]Method, 0, 2)}
+	p.tEnd = tEnd
+	p.maxStep = set.MaxStep
+	if p.maxStep == 0 || p.maxStep > tEnd-t0 {
+		p.maxStep = tEnd - t0
+	}
+	maxSteps := set.MaxSteps
+	if maxSteps == 0 {
+		maxSteps = 500000
+	}
+	every := set.ProgressEvery
+	if every <= 0 {
+		every = 50 * time.Millisecond
+	}
+
+	out := newOutput(set.Times, n)
+	copy(sv.y, y0)
+	out.fillAt(t0, sv.y)
+
+	st, err := sv.choose(t0, tEnd, sv.y)
+	if err != nil {
+		return out.result(sv, start), err
+	}
+	if err := st.start(t0, sv.y, set.InitialStep); err != nil {
+		return out.result(sv, start), err
+	}
+
+	stops := set.StopTimes
+	for len(stops) > 0 && stops[0] <= t0 {
+		stops = stops[1:]
+	}
+	lastProgress := start
+	done := ctx.Done()
+	t := t0
+	for t < tEnd {
+		select {
+		case <-done:
+			return out.result(sv, start), fmt.Errorf("solve: cancelled at t = %g: %w", t, ctx.Err())
+		default:
+		}
+		if sv.stats.Steps >= maxSteps {
+			return out.result(sv, start), &StepError{T: t, H: st.stepSize(), Component: -1,
+				Reason: fmt.Sprintf("took more than %d steps; the problem may need a looser tolerance or a stiff method", maxSteps)}
+		}
+		tLimit := tEnd
+		atStop := len(stops) > 0 && stops[0] < tEnd
+		if atStop {
+			tLimit = stops[0]
+		}
+		if err := st.step(tLimit); err != nil {
+			return out.result(sv, start), err
+		}
+		sv.stats.Steps++
+		tn, yn := st.current()
+		landed := atStop && tn == tLimit
+		out.fillStep(st, tn, yn, !landed)
+		t = tn
+		switch {
+		case landed:
+			stops = stops[1:]
+			copy(sv.y, yn)
+			if set.OnStop != nil {
+				set.OnStop(t, sv.y)
+				if i := nonFinite(sv.y); i >= 0 {
+					return out.result(sv, start), &StepError{T: t, Component: i,
+						Reason: fmt.Sprintf("the stop-time action at t = %g made component %d %v", t, i, sv.y[i])}
+				}
+				if set.NonNegative {
+					for i, v := range sv.y {
+						if v < 0 {
+							return out.result(sv, start), &StepError{T: t, Component: i,
+								Reason: fmt.Sprintf("the stop-time action at t = %g made component %d negative (%g)", t, i, v)}
+						}
+					}
+				}
+			}
+			out.fillStop(t, yn, sv.y)
+			if err := st.start(t, sv.y, st.stepSize()); err != nil {
+				return out.result(sv, start), err
+			}
+		case st == stepper(sv.dp) && set.Method == Auto && sv.dp.stiff():
+			h := st.stepSize()
+			copy(sv.y, yn)
+			st = sv.ros
+			sv.stats.Methods = append(sv.stats.Methods, Rosenbrock)
+			sv.stats.Choice += fmt.Sprintf("; switched to Rosenbrock (RODAS4) at t = %.4g, where the explicit method's steps became limited by stability (stiffness)", t)
+			if err := st.start(t, sv.y, h); err != nil {
+				return out.result(sv, start), err
+			}
+		}
+		if set.Progress != nil {
+			if now := time.Now(); now.Sub(lastProgress) >= every {
+				lastProgress = now
+				set.Progress((t - t0) / (tEnd - t0))
+			}
+		}
+	}
+	if set.Progress != nil {
+		set.Progress(1)
+	}
+	return out.result(sv, start), nil
+}
+
+// output collects the Result: either at fixed times or at every step.
+type output struct {
+	n     int
+	fixed bool
+	times []float64
+	flat  []float64
+	k     int // next fixed output
+}
+
+func newOutput(times []float64, n int) *output {
+	o := &output{n: n, fixed: len(times) > 0}
+	if o.fixed {
+		o.times = append([]float64(nil), times...)
+		o.flat = make([]float64, len(times)*n)
+	} else {
+		o.times = make([]float64, 0, 256)
+		o.flat = make([]float64, 0, 256*n)
+	}
+	return o
+}
+
+// fillAt records the initial state.
+func (o *output) fillAt(t float64, y []float64) {
+	if !o.fixed {
+		o.record(t, y)
+		return
+	}
+	for o.k < len(o.times) && o.times[o.k] == t {
+		copy(o.row(o.k), y)
+		o.k++
+	}
+}
+
+func (o *output) row(k int) []float64 { return o.flat[k*o.n : (k+1)*o.n] }
+
+func (o *output) record(t float64, y []float64) {
+	o.times = append(o.times, t)
+	o.flat = append(o.flat, y...)
+}
+
+// fillStep records the outputs in (tPrev, tn) and, when inclusive, at tn.
+func (o *output) fillStep(st stepper, tn float64, yn []float64, inclusive bool) {
+	if !o.fixed {
+		o.record(tn, yn)
+		return
+	}
+	for o.k < len(o.times) {
+		tk := o.times[o.k]
+		if tk > tn || (tk == tn && !inclusive) {
+			break
+		}
+		if tk == tn {
+			copy(o.row(o.k), yn)
+		} else {
+			st.dense(tk, o.row(o.k))
+		}
+		o.k++
+	}
+}
+
+// fillStop records the state after a stop-time action.
+func (o *output) fillStop(t float64, before, after []float64) {
+	if !o.fixed {
+		for i := range after {
+			if after[i] != before[i] {
+				o.record(t, after)
+				return
+			}
+		}
+		return
+	}
+	// fillStep has already recorded t when the stop landed exactly.
+	for o.k < len(o.times) && o.times[o.k] == t {
+		copy(o.row(o.k), after)
+		o.k++
+	}
+}
+
+// result assembles the Result from what has been recorded.
+func (o *output) result(sv *Solver, start time.Time) *Result {
+	m := len(o.times)
+	if o.fixed {
+		m = o.k
+	}
+	r := &Result{T: o.times[:m], Y: make([][]float64, m)}
+	for i := range r.Y {
+		r.Y[i] = o.row(i)
+	}
+	sv.stats.Wall = time.Since(start)
+	r.Stats = sv.stats
+	return r
+}
