@@ -1,5 +1,3 @@
-//go:build exprready
-
 package network
 
 import (
