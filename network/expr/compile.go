@@ -12,42 +12,42 @@ type opcode uint8
 // the saved value s with x. Suffix V takes the right operand from a variable
 // slot, C from the constant; R marks reversed operands.
 const (
-	opConst  opcode = iota // push; x = c
-	opVar                  // push; x = vars[i]
-	opAdd                  // x = s + x
-	opSub                  // x = s - x
-	opMul                  // x = s * x
-	opDiv                  // x = s / x
-	opPow                  // x = s ^ x
-	opAddV                 // x += vars[i]
-	opSubV                 // x -= vars[i]
-	opRSubV                // x = vars[i] - x
-	opMulV                 // x *= vars[i]
-	opDivV                 // x /= vars[i]
-	opRDivV                // x = vars[i] / x
-	opPowV                 // x = x ^ vars[i]
-	opRPowV                // x = vars[i] ^ x
-	opAddC                 // x += c
-	opRSubC                // x = c - x
-	opMulC                 // x *= c
-	opDivC                 // x /= c
-	opRDivC                // x = c / x
-	opPowC                 // x = x ^ c
-	opRPowC                // x = c ^ x
-	opNeg                  // x = -x
-	opSq                   // x = x*x
-	opCube                 // x = x*x*x
-	opRecip                // x = 1/x
-	opPowI                 // x = x^i for an integer i, by repeated squaring
+	opConst opcode = iota // push; x = c
+	opVar                 // push; x = vars[i]
+	opAdd                 // x = s + x
+	opSub                 // x = s - x
+	opMul                 // x = s * x
+	opDiv                 // x = s / x
+	opPow                 // x = s ^ x
+	opAddV                // x += vars[i]
+	opSubV                // x -= vars[i]
+	opRSubV               // x = vars[i] - x
+	opMulV                // x *= vars[i]
+	opDivV                // x /= vars[i]
+	opRDivV               // x = vars[i] / x
+	opPowV                // x = x ^ vars[i]
+	opRPowV               // x = vars[i] ^ x
+	opAddC                // x += c
+	opRSubC               // x = c - x
+	opMulC                // x *= c
+	opDivC                // x /= c
+	opRDivC               // x = c / x
+	opPowC                // x = x ^ c
+	opRPowC               // x = c ^ x
+	opNeg                 // x = -x
+	opSq                  // x = x*x
+	opCube                // x = x*x*x
+	opRecip               // x = 1/x
+	opPowI                // x = x^i for an integer i, by repeated squaring
 	opSqrt
 	opExp
 	opLog
 	opLog10
 	opAbs
 	opSign
-	opMin   // x = min(s, x)
-	opMax   // x = max(s, x)
-	opIfLE  // with saved a, b, p: x = p if a <= b else x
+	opMin  // x = min(s, x)
+	opMax  // x = max(s, x)
+	opIfLE // with saved a, b, p: x = p if a <= b else x
 )
 
 type instr struct {
@@ -178,11 +178,11 @@ func (c *compiler) emitBin(n *binNode) error {
 	// Right operand a leaf: compute the left, then apply an operand form.
 	switch r := n.r.(type) {
 	case *varNode:
-		i, err := c.varSlot(r)
-		if err != nil {
+		if err := c.emit(n.l); err != nil {
 			return err
 		}
-		if err := c.emit(n.l); err != nil {
+		i, err := c.varSlot(r)
+		if err != nil {
 			return err
 		}
 		c.add(varOps[n.op], i, 0)
