@@ -1,0 +1,226 @@
+package explore
+
+import (
+	"fmt"
+	"math/bits"
+	"math/rand/v2"
+	"strconv"
+	"strings"
+)
+
+// Design is a numbered set of points, each a vector of knob values.
+type Design interface {
+	// Len is the number of points.
+	Len() int
+	// Point writes the knob values of point i, 0 ≤ i < Len(), into x.
+	Point(i int, x []float64)
+}
+
+// Grid is the full factorial design over its axes, each a list of values of
+// one knob. Points are numbered in row-major order: the last axis varies
+// fastest, so with two axes of n1 and n2 values point i has
+// x = (Axes[0][i/n2], Axes[1][i%n2]).
+type Grid struct {
+	Axes [][]float64
+}
+
+// Len implements Design.
+func (g Grid) Len() int {
+	if len(g.Axes) == 0 {
+		return 0
+	}
+	n := 1
+	for _, a := range g.Axes {
+		n *= len(a)
+	}
+	return n
+}
+
+// Point implements Design.
+func (g Grid) Point(i int, x []float64) {
+	for k := len(g.Axes) - 1; k >= 0; k-- {
+		a := g.Axes[k]
+		x[k] = a[i%len(a)]
+		i /= len(a)
+	}
+}
+
+// Points is a design given point by point: Points[i] is point i.
+type Points [][]float64
+
+// Len implements Design.
+func (p Points) Len() int { return len(p) }
+
+// Point implements Design.
+func (p Points) Point(i int, x []float64) { copy(x, p[i]) }
+
+// Sampling is a way of drawing a population.
+type Sampling string
+
+// The sampling methods. The zero value is Random.
+const (
+	// Random draws every knob of every sample independently.
+	Random Sampling = "random"
+	// LatinHypercube splits each knob's probability range into Size
+	// equal strata and puts exactly one sample in each, pairing the strata
+	// of different knobs by independent random permutations (McKay,
+	// Beckman and Conover 1979), with a random position inside the stratum.
+	LatinHypercube Sampling = "latin_hypercube"
+)
+
+// Population describes a virtual population: Size samples, each with one
+// value per knob drawn from that knob's distribution.
+type Population struct {
+	Vary     []Distribution // one per knob
+	Size     int
+	Seed     uint64   // random seed; the same seed gives the same population
+	Sampling Sampling // default Random
+}
+
+// Sample draws the population. The result depends only on p: with Random
+// sampling, sample i depends only on the seed, i and the distributions (so
+// growing Size keeps the first samples); with LatinHypercube it depends on
+// Size too. It never depends on workers or shards, which all call Sample.
+//
+// Every probability u in (0, 1) is made from 53 random bits of a PCG-DXSM
+// generator (math/rand/v2) keyed by the seed and the sample, and turned into
+// a knob value by the distribution's Quantile.
+func (p Population) Sample() (Points, error) {
+	if p.Size <= 0 {
+		return nil, fmt.Errorf("population: size must be positive, got %d", p.Size)
+	}
+	for k, d := range p.Vary {
+		if d == nil {
+			return nil, fmt.Errorf("population: knob %d has no distribution", k)
+		}
+		if err := d.Validate(); err != nil {
+			return nil, fmt.Errorf("population: knob %d: %w", k, err)
+		}
+	}
+	switch p.Sampling {
+	case "", Random, LatinHypercube:
+	default:
+		return nil, fmt.Errorf("population: unknown sampling %q (expected %q or %q)", p.Sampling, Random, LatinHypercube)
+	}
+	nk := len(p.Vary)
+	back := make([]float64, p.Size*nk)
+	pts := make(Points, p.Size)
+	for i := range pts {
+		pts[i] = back[i*nk : (i+1)*nk : (i+1)*nk]
+		src := rand.NewPCG(p.Seed, mix64(uint64(i)))
+		for k := range nk {
+			pts[i][k] = unitOpen(src.Uint64())
+		}
+	}
+	if p.Sampling == LatinHypercube {
+		perm := make([]int, p.Size)
+		for k := range nk {
+			src := rand.NewPCG(p.Seed, mix64(uint64(k)^0x9e3779b97f4a7c15))
+			shuffle(src, perm)
+			n := float64(p.Size)
+			for i := range pts {
+				pts[i][k] = (float64(perm[i]) + pts[i][k]) / n
+			}
+		}
+	}
+	for i := range pts {
+		for k, d := range p.Vary {
+			pts[i][k] = d.Quantile(pts[i][k])
+		}
+	}
+	return pts, nil
+}
+
+// unitOpen maps 64 random bits to a float64 in the open interval (0, 1).
+func unitOpen(r uint64) float64 {
+	return (float64(r>>11) + 0.5) / (1 << 53)
+}
+
+// mix64 is the finalizer of SplitMix64; it decorrelates consecutive keys.
+func mix64(z uint64) uint64 {
+	z += 0x9e3779b97f4a7c15
+	z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9
+	z = (z ^ (z >> 27)) * 0x94d049bb133111eb
+	return z ^ (z >> 31)
+}
+
+// shuffle sets perm to a uniformly random permutation of 0..len(perm)-1 by
+// Fisher–Yates. It is written out here (not rand.Shuffle) so that the
+// sequence is fixed by this code alone.
+func shuffle(src *rand.PCG, perm []int) {
+	for i := range perm {
+		perm[i] = i
+	}
+	for i := len(perm) - 1; i > 0; i-- {
+		j := int(below(src, uint64(i+1)))
+		perm[i], perm[j] = perm[j], perm[i]
+	}
+}
+
+// below returns a uniform integer in [0, n) by Lemire's multiply-and-reject.
+func below(src *rand.PCG, n uint64) uint64 {
+	hi, lo := bits.Mul64(src.Uint64(), n)
+	if lo < n {
+		thresh := -n % n
+		for lo < thresh {
+			hi, lo = bits.Mul64(src.Uint64(), n)
+		}
+	}
+	return hi
+}
+
+// Shard selects the design points of one part of a run split into N parts:
+// point i belongs to shard I when i mod N == I. The zero value selects every
+// point.
+type Shard struct {
+	I, N int
+}
+
+// ParseShard parses "i/n" with 0 ≤ i < n.
+func ParseShard(s string) (Shard, error) {
+	a, b, ok := strings.Cut(s, "/")
+	i, err1 := strconv.Atoi(strings.TrimSpace(a))
+	n, err2 := strconv.Atoi(strings.TrimSpace(b))
+	if !ok || err1 != nil || err2 != nil || n < 1 || i < 0 || i >= n {
+		return Shard{}, fmt.Errorf("shard %q: expected i/n with 0 ≤ i < n, e.g. 0/4", s)
+	}
+	return Shard{I: i, N: n}, nil
+}
+
+// String formats s as "i/n".
+func (s Shard) String() string {
+	if s.N <= 1 {
+		return "0/1"
+	}
+	return fmt.Sprintf("%d/%d", s.I, s.N)
+}
+
+// Has reports whether point i belongs to s.
+func (s Shard) Has(i int) bool {
+	if s.N <= 1 {
+		return true
+	}
+	return i%s.N == s.I
+}
+
+// validate checks 0 ≤ I < N (or the zero value).
+func (s Shard) validate() error {
+	if s.N == 0 && s.I == 0 {
+		return nil
+	}
+	if s.N < 1 || s.I < 0 || s.I >= s.N {
+		return fmt.Errorf("shard %d/%d: expected 0 ≤ i < n", s.I, s.N)
+	}
+	return nil
+}
+
+// indices lists the points of a design of size n that belong to s.
+func (s Shard) indices(n int) []int {
+	var idx []int
+	for i := range n {
+		if s.Has(i) {
+			idx = append(idx, i)
+		}
+	}
+	return idx
+}

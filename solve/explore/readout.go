@@ -1,0 +1,167 @@
+package explore
+
+import (
+	"fmt"
+	"math"
+)
+
+// Trajectory is a solution sampled on an output grid.
+type Trajectory struct {
+	T []float64   // output times, ascending
+	Y [][]float64 // Y[i][j] is component j at T[i]
+}
+
+// Kind names a readout.
+type Kind string
+
+// The readouts. Each is computed from one component y of a trajectory on its
+// output grid t_0 < t_1 < … < t_n only: between grid points the trajectory is
+// taken as the straight line joining them (no dense output is used), so the
+// result is as fine as the grid.
+const (
+	// ValueAt is y at time At: the grid value when At is a grid time, else
+	// the linear interpolation between the two grid points around it; NaN
+	// when At lies outside [t_0, t_n].
+	ValueAt Kind = "value_at"
+	// Max is the largest grid value of y.
+	Max Kind = "max"
+	// TimeOfMax is the earliest grid time at which y equals its Max.
+	TimeOfMax Kind = "time_of_max"
+	// Min is the smallest grid value of y.
+	Min Kind = "min"
+	// TimeOfMin is the earliest grid time at which y equals its Min.
+	TimeOfMin Kind = "time_of_min"
+	// Final is y at the last grid time t_n.
+	Final Kind = "final"
+	// AUC is the area under y over [t_0, t_n] by the trapezoidal rule on the
+	// grid: Σ (t_{i+1} − t_i)·(y_i + y_{i+1})/2. Negative values count
+	// negatively.
+	AUC Kind = "auc"
+	// CrossUp is the first time y rises through Level: the first grid
+	// interval with y_i < Level ≤ y_{i+1}, interpolated linearly,
+	// t_i + (Level − y_i)/(y_{i+1} − y_i)·(t_{i+1} − t_i). A trajectory that
+	// starts at or above Level has not crossed it until it has gone below
+	// and come back. NaN when y never crosses.
+	CrossUp Kind = "cross_up"
+	// CrossDown is the first time y falls through Level: the first grid
+	// interval with y_i > Level ≥ y_{i+1}, interpolated linearly as for
+	// CrossUp. NaN when y never crosses.
+	CrossDown Kind = "cross_down"
+)
+
+// Kinds lists every readout kind, in the order of the constants.
+var Kinds = []Kind{ValueAt, Max, TimeOfMax, Min, TimeOfMin, Final, AUC, CrossUp, CrossDown}
+
+// Readout is one scalar computed from one component of every trajectory.
+type Readout struct {
+	Name      string  // label in results and files
+	Kind      Kind    // what is computed; see the Kind constants
+	Component int     // index of the component in the state vector
+	At        float64 // time, for ValueAt
+	Level     float64 // threshold, for CrossUp and CrossDown
+}
+
+// Validate reports whether r can be computed on a state of dim components.
+func (r Readout) Validate(dim int) error {
+	known := false
+	for _, k := range Kinds {
+		if r.Kind == k {
+			known = true
+		}
+	}
+	switch {
+	case !known:
+		return fmt.Errorf("readout %q: unknown kind %q (expected one of %v)", r.Name, r.Kind, Kinds)
+	case r.Component < 0 || r.Component >= dim:
+		return fmt.Errorf("readout %q: component %d out of range [0, %d)", r.Name, r.Component, dim)
+	case r.Kind == ValueAt && (math.IsNaN(r.At) || math.IsInf(r.At, 0)):
+		return fmt.Errorf("readout %q: time must be finite, got %v", r.Name, r.At)
+	case (r.Kind == CrossUp || r.Kind == CrossDown) && (math.IsNaN(r.Level) || math.IsInf(r.Level, 0)):
+		return fmt.Errorf("readout %q: level must be finite, got %v", r.Name, r.Level)
+	}
+	return nil
+}
+
+// Eval computes the readout on tr. It returns NaN for an empty trajectory or
+// an unknown kind. It does not allocate.
+func (r Readout) Eval(tr Trajectory) float64 {
+	t, y, j := tr.T, tr.Y, r.Component
+	n := len(t)
+	if n == 0 || len(y) < n {
+		return math.NaN()
+	}
+	switch r.Kind {
+	case ValueAt:
+		return valueAt(t, y, j, r.At)
+	case Max, TimeOfMax:
+		best, at := y[0][j], t[0]
+		for i := 1; i < n; i++ {
+			if y[i][j] > best {
+				best, at = y[i][j], t[i]
+			}
+		}
+		if r.Kind == Max {
+			return best
+		}
+		return at
+	case Min, TimeOfMin:
+		best, at := y[0][j], t[0]
+		for i := 1; i < n; i++ {
+			if y[i][j] < best {
+				best, at = y[i][j], t[i]
+			}
+		}
+		if r.Kind == Min {
+			return best
+		}
+		return at
+	case Final:
+		return y[n-1][j]
+	case AUC:
+		var s float64
+		for i := 0; i+1 < n; i++ {
+			s += (t[i+1] - t[i]) * (y[i][j] + y[i+1][j]) / 2
+		}
+		return s
+	case CrossUp:
+		for i := 0; i+1 < n; i++ {
+			a, b := y[i][j], y[i+1][j]
+			if a < r.Level && b >= r.Level {
+				return t[i] + (r.Level-a)/(b-a)*(t[i+1]-t[i])
+			}
+		}
+		return math.NaN()
+	case CrossDown:
+		for i := 0; i+1 < n; i++ {
+			a, b := y[i][j], y[i+1][j]
+			if a > r.Level && b <= r.Level {
+				return t[i] + (r.Level-a)/(b-a)*(t[i+1]-t[i])
+			}
+		}
+		return math.NaN()
+	}
+	return math.NaN()
+}
+
+// valueAt interpolates component j linearly at time at.
+func valueAt(t []float64, y [][]float64, j int, at float64) float64 {
+	n := len(t)
+	if at < t[0] || at > t[n-1] {
+		return math.NaN()
+	}
+	// Binary search for the first grid time ≥ at.
+	lo, hi := 0, n-1
+	for lo < hi {
+		mid := (lo + hi) / 2
+		if t[mid] < at {
+			lo = mid + 1
+		} else {
+			hi = mid
+		}
+	}
+	if t[lo] == at || lo == 0 {
+		return y[lo][j]
+	}
+	a, b := y[lo-1][j], y[lo][j]
+	return a + (at-t[lo-1])/(t[lo]-t[lo-1])*(b-a)
+}

@@ -1,0 +1,271 @@
+package explore
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"runtime"
+	"sync"
+	"sync/atomic"
+	"time"
+)
+
+// Simulator computes one trajectory for one set of knob values. A Simulator
+// is used by one goroutine at a time; the trajectory it returns may be
+// overwritten by its next call.
+type Simulator interface {
+	Simulate(ctx context.Context, x []float64) (Trajectory, error)
+}
+
+// Settings control Run. The zero value of every field means a sensible
+// default.
+type Settings struct {
+	// Knobs names the knobs, in the order of the design's coordinates; the
+	// names are carried into the Result for files and merging.
+	Knobs []string
+	// Readouts are computed on every trajectory.
+	Readouts []Readout
+	// Bands, when not nil, is filled with the trajectories' summaries; make
+	// it with NewBands. Every trajectory must have the output grid
+	// Bands.Times, else its point counts as failed.
+	Bands *Bands
+	// KeepTrajectories keeps a copy of every trajectory in the Result (for
+	// sweeps; populations keep only readouts and bands).
+	KeepTrajectories bool
+
+	// Workers is the number of goroutines; default runtime.GOMAXPROCS(0).
+	// Results do not depend on it.
+	Workers int
+	// Shard restricts the run to one part of the design; default all.
+	Shard Shard
+
+	// Progress, when set, is called with the fraction of the shard's points
+	// done, at most every ProgressEvery (default 100 ms) and once at the
+	// end. Calls never overlap.
+	Progress      func(fraction float64)
+	ProgressEvery time.Duration
+}
+
+// Sample is the outcome of one design point that succeeded.
+type Sample struct {
+	Index    int         // point number in the design
+	X        []float64   // knob values
+	Readouts []float64   // one per Settings.Readouts; NaN where undefined
+	Traj     *Trajectory // a copy of the trajectory, when kept
+}
+
+// Failure is a design point whose simulation failed.
+type Failure struct {
+	Index int       // point number in the design
+	X     []float64 // knob values
+	Err   string    // what went wrong
+}
+
+// Stats report the work of a run.
+type Stats struct {
+	Points int           // points of the shard attempted
+	Failed int           // of which failed
+	Wall   time.Duration // wall time
+}
+
+// Result is the outcome of a run, or of a shard of one, or of merged shards.
+type Result struct {
+	Size     int      // number of points of the whole design
+	Shard    Shard    // the part of the design covered; zero value: all
+	Knobs    []string // knob names
+	Readouts []string // readout names
+	Samples  []Sample // successful points, by increasing Index
+	Failures []Failure
+	Bands    *Bands // nil when not requested
+	Stats
+}
+
+// Values returns readout r for every design point, indexed by point number,
+// with NaN for points that failed or were not run. For a two-axis Grid of
+// n1 × n2 points, element i1·n2 + i2 belongs to (Axes[0][i1], Axes[1][i2]).
+func (r *Result) Values(readout int) []float64 {
+	v := make([]float64, r.Size)
+	for i := range v {
+		v[i] = math.NaN()
+	}
+	for _, s := range r.Samples {
+		v[s.Index] = s.Readouts[readout]
+	}
+	return v
+}
+
+// Run simulates every point of the design (or of the shard s.Shard) with
+// simulators made by newSim, one per worker, and gathers readouts, bands
+// and failures. A point fails when its simulation returns an error or a
+// readout or band value is not finite where it must be; failures are listed
+// in the Result with their knob values, never dropped. Readouts that are
+// undefined by their definition (a threshold never crossed) are NaN and do
+// not make a point fail.
+//
+// The Result is the same for any number of workers. When ctx is cancelled,
+// Run stops and returns the points done so far with ctx's error.
+func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Settings) (*Result, error) {
+	start := time.Now()
+	if err := s.Shard.validate(); err != nil {
+		return nil, err
+	}
+	idx := s.Shard.indices(d.Len())
+	res := &Result{
+		Size:  d.Len(),
+		Shard: s.Shard,
+		Knobs: append([]string(nil), s.Knobs...),
+		Bands: s.Bands,
+	}
+	for _, r := range s.Readouts {
+		res.Readouts = append(res.Readouts, r.Name)
+	}
+	workers := s.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	workers = max(1, min(workers, len(idx)))
+	every := s.ProgressEvery
+	if every <= 0 {
+		every = 100 * time.Millisecond
+	}
+
+	// outcomes[k] is filled by whichever worker runs point idx[k].
+	type outcome struct {
+		sample  *Sample
+		failure *Failure
+	}
+	outcomes := make([]outcome, len(idx))
+	var (
+		next     atomic.Int64
+		done     atomic.Int64
+		mu       sync.Mutex // guards s.Bands and progress
+		lastProg time.Time
+		wg       sync.WaitGroup
+		setupErr error
+		errOnce  sync.Once
+	)
+	progress := func(final bool) {
+		if s.Progress == nil {
+			return
+		}
+		mu.Lock()
+		defer mu.Unlock()
+		now := time.Now()
+		if final || now.Sub(lastProg) >= every {
+			lastProg = now
+			if len(idx) == 0 {
+				s.Progress(1)
+			} else {
+				s.Progress(float64(done.Load()) / float64(len(idx)))
+			}
+		}
+	}
+	nk := len(s.Knobs)
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			sim, err := newSim()
+			if err != nil {
+				errOnce.Do(func() { setupErr = fmt.Errorf("explore: making a simulator: %w", err) })
+				return
+			}
+			x := make([]float64, nk)
+			for ctx.Err() == nil {
+				k := int(next.Add(1) - 1)
+				if k >= len(idx) {
+					return
+				}
+				i := idx[k]
+				d.Point(i, x)
+				tr, err := sim.Simulate(ctx, x)
+				if err == nil {
+					err = checkTrajectory(tr, s.Readouts)
+				}
+				var vals []float64
+				if err == nil {
+					vals = make([]float64, len(s.Readouts))
+					for r, ro := range s.Readouts {
+						vals[r] = ro.Eval(tr)
+					}
+				}
+				if err == nil && s.Bands != nil {
+					if err = s.Bands.Check(tr); err == nil {
+						mu.Lock()
+						_ = s.Bands.Add(tr) // checked above
+						mu.Unlock()
+					}
+				}
+				xc := append([]float64(nil), x...)
+				if err != nil {
+					if ctx.Err() != nil && errors.Is(err, ctx.Err()) {
+						return // cancelled: the point was not done
+					}
+					outcomes[k].failure = &Failure{Index: i, X: xc, Err: err.Error()}
+				} else {
+					smp := &Sample{Index: i, X: xc, Readouts: vals}
+					if s.KeepTrajectories {
+						smp.Traj = copyTrajectory(tr)
+					}
+					outcomes[k].sample = smp
+				}
+				done.Add(1)
+				progress(false)
+			}
+		}()
+	}
+	wg.Wait()
+	if setupErr != nil {
+		return nil, setupErr
+	}
+	for _, o := range outcomes {
+		switch {
+		case o.sample != nil:
+			res.Samples = append(res.Samples, *o.sample)
+		case o.failure != nil:
+			res.Failures = append(res.Failures, *o.failure)
+		}
+	}
+	res.Points = len(res.Samples) + len(res.Failures)
+	res.Failed = len(res.Failures)
+	res.Wall = time.Since(start)
+	progress(true)
+	if err := ctx.Err(); err != nil {
+		return res, fmt.Errorf("explore: stopped after %d of %d points: %w", res.Points, len(idx), err)
+	}
+	return res, nil
+}
+
+// checkTrajectory rejects a trajectory that readouts cannot use.
+func checkTrajectory(tr Trajectory, ro []Readout) error {
+	if len(tr.T) == 0 || len(tr.Y) != len(tr.T) {
+		return fmt.Errorf("trajectory has %d times and %d states", len(tr.T), len(tr.Y))
+	}
+	for i, y := range tr.Y {
+		for _, r := range ro {
+			if r.Component >= len(y) {
+				return fmt.Errorf("readout %q: component %d out of range [0, %d)", r.Name, r.Component, len(y))
+			}
+			if v := y[r.Component]; math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("component %d is %v at t = %v", r.Component, v, tr.T[i])
+			}
+		}
+	}
+	return nil
+}
+
+// copyTrajectory returns a deep copy of tr with one backing array.
+func copyTrajectory(tr Trajectory) *Trajectory {
+	c := &Trajectory{T: append([]float64(nil), tr.T...), Y: make([][]float64, len(tr.Y))}
+	n := 0
+	for _, y := range tr.Y {
+		n += len(y)
+	}
+	back := make([]float64, 0, n)
+	for i, y := range tr.Y {
+		back = append(back, y...)
+		c.Y[i] = back[len(back)-len(y) : len(back) : len(back)]
+	}
+	return c
+}

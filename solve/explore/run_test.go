@@ -1,0 +1,299 @@
+package explore
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"testing"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// decaySim is first-order elimination dC/dt = −k·C in closed form,
+// C(t) = C0·exp(−k·t), with knob 0 = k; the trajectory is exact, so the
+// tests below check the statistics alone.
+type decaySim struct {
+	c0  float64
+	tr  Trajectory
+	bad float64 // k above bad fails, when bad > 0
+}
+
+func newDecaySim(times []float64, c0, bad float64) func() (Simulator, error) {
+	return func() (Simulator, error) {
+		s := &decaySim{c0: c0, bad: bad, tr: Trajectory{T: times, Y: make([][]float64, len(times))}}
+		back := make([]float64, len(times))
+		for i := range s.tr.Y {
+			s.tr.Y[i] = back[i : i+1]
+		}
+		return s, nil
+	}
+}
+
+func (s *decaySim) Simulate(ctx context.Context, x []float64) (Trajectory, error) {
+	k := x[0]
+	if s.bad > 0 && k > s.bad {
+		return Trajectory{}, fmt.Errorf("rate %v too fast", k)
+	}
+	for i, t := range s.tr.T {
+		s.tr.Y[i][0] = s.c0 * math.Exp(-k*t)
+	}
+	return s.tr, nil
+}
+
+func grid(n int, dt float64) []float64 {
+	t := make([]float64, n)
+	for i := range t {
+		t[i] = float64(i) * dt
+	}
+	return t
+}
+
+func TestPopulationBandsMatchLogNormal(t *testing.T) {
+	const (
+		n      = 20000
+		c0     = 10.0
+		median = 0.5
+		cv     = 0.4
+	)
+	times := grid(11, 1)
+	pop := Population{Vary: []Distribution{LogNormal{Median: median, CVPercent: 100 * cv}}, Size: n, Seed: 2026}
+	pts, err := pop.Sample()
+	if err != nil {
+		t.Fatal(err)
+	}
+	bands := NewBands([]int{0}, times)
+	res, err := Run(context.Background(), pts, newDecaySim(times, c0, 0), Settings{Knobs: []string{"k"}, Bands: bands})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Samples) != n || res.Failed != 0 {
+		t.Fatalf("%d samples, %d failed", len(res.Samples), res.Failed)
+	}
+	// k is log-normal with μ = ln(median), σ² = ln(1 + CV²); C(t) is a
+	// decreasing function of k, so the p-quantile of C(t) is
+	// C0·exp(−k_{1−p}·t) and P(C(t) ≤ c) = 1 − F_k(−ln(c/C0)/t), with F_k
+	// from gonum's distuv.LogNormal.
+	kd := distuv.LogNormal{Mu: math.Log(median), Sigma: math.Sqrt(math.Log1p(cv * cv))}
+	for i, tm := range times {
+		for _, p := range []float64{0.05, 0.25, 0.5, 0.75, 0.95} {
+			q := bands.Quantile(0, i, p)
+			if tm == 0 {
+				if q != c0 {
+					t.Errorf("t = 0: quantile %v = %v, want %v exactly", p, q, c0)
+				}
+				continue
+			}
+			cdf := func(c float64) float64 { return 1 - kd.CDF(-math.Log(c/c0)/tm) }
+			// The empirical p-quantile has F(x̂) within 4 binomial standard
+			// errors sqrt(p(1−p)/N) of p (normal approximation of the order
+			// statistic's rank; common practice), and the band quantile is
+			// within one bin, a factor 1 + QuantileRelError, of it.
+			se := math.Sqrt(p * (1 - p) / n)
+			lo, hi := cdf(q/(1+QuantileRelError)), cdf(q*(1+QuantileRelError))
+			if p < lo-4*se || p > hi+4*se {
+				t.Errorf("t = %v, p = %v: band quantile %.6g has F in [%.4f, %.4f], more than 4 se = %.4f from p",
+					tm, p, q, lo, hi, 4*se)
+			}
+			exact := c0 * math.Exp(-kd.Quantile(1-p)*tm)
+			if math.Abs(q-exact) > 0.1*exact {
+				t.Errorf("t = %v, p = %v: band %.6g vs exact quantile %.6g", tm, p, q, exact)
+			}
+		}
+	}
+}
+
+func TestZeroSpreadIsTheSingleRun(t *testing.T) {
+	times := grid(21, 0.5)
+	k := 0.3
+	sim, _ := newDecaySim(times, 4, 0)()
+	single, _ := sim.Simulate(context.Background(), []float64{k})
+	ro := []Readout{{Name: "auc", Kind: AUC}, {Name: "half", Kind: CrossDown, Level: 2}, {Name: "c3", Kind: ValueAt, At: 3.3}}
+	pts, err := Population{Vary: []Distribution{LogNormal{Median: k}}, Size: 50, Seed: 1, Sampling: LatinHypercube}.Sample()
+	if err != nil {
+		t.Fatal(err)
+	}
+	bands := NewBands([]int{0}, times)
+	res, err := Run(context.Background(), pts, newDecaySim(times, 4, 0), Settings{Knobs: []string{"k"}, Readouts: ro, Bands: bands})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range times {
+		for _, p := range []float64{0.05, 0.25, 0.5, 0.75, 0.95} {
+			if got := bands.Quantile(0, i, p); got != single.Y[i][0] {
+				t.Fatalf("t = %v p = %v: %v, single run %v", times[i], p, got, single.Y[i][0])
+			}
+		}
+	}
+	for _, s := range res.Samples {
+		for r := range ro {
+			if s.Readouts[r] != ro[r].Eval(single) {
+				t.Fatalf("sample %d readout %s: %v vs %v", s.Index, ro[r].Name, s.Readouts[r], ro[r].Eval(single))
+			}
+		}
+	}
+}
+
+// runDecay runs a small population with failures, readouts and bands.
+func runDecay(t *testing.T, workers int, shard Shard) *Result {
+	t.Helper()
+	times := grid(9, 0.75)
+	pts, err := Population{
+		Vary: []Distribution{LogNormal{Median: 0.5, CVPercent: 60}, Uniform{0, 1}},
+		Size: 997, Seed: 3, Sampling: LatinHypercube,
+	}.Sample()
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Run(context.Background(), pts, newDecaySim(times, 2, 1.2), Settings{
+		Knobs:    []string{"k", "unused"},
+		Readouts: []Readout{{Name: "auc", Kind: AUC}, {Name: "t1", Kind: CrossDown, Level: 1}},
+		Bands:    NewBands([]int{0}, times),
+		Workers:  workers, Shard: shard,
+		KeepTrajectories: true,
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return res
+}
+
+func TestWorkersAndShardsBitForBit(t *testing.T) {
+	one := runDecay(t, 1, Shard{})
+	if one.Failed == 0 || len(one.Samples) == 0 {
+		t.Fatalf("want both samples and failures, got %d and %d", len(one.Samples), one.Failed)
+	}
+	for _, w := range []int{2, 3} {
+		if !runDecay(t, w, Shard{}).Equal(one) {
+			t.Errorf("%d workers differ from 1 worker", w)
+		}
+	}
+	// Shards written out as JSON, read back, merged in a shuffled order.
+	var parts []*Result
+	for _, i := range []int{2, 0, 1} {
+		var buf bytes.Buffer
+		if err := runDecay(t, 2, Shard{I: i, N: 3}).WriteJSON(&buf); err != nil {
+			t.Fatal(err)
+		}
+		p, err := ReadJSON(&buf)
+		if err != nil {
+			t.Fatal(err)
+		}
+		parts = append(parts, p)
+	}
+	merged, err := Merge(parts...)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !merged.Equal(one) {
+		t.Error("merged shards differ from the single run")
+	}
+	for i := range one.Bands.Cells {
+		a, b := one.Bands.Cells[i], merged.Bands.Cells[i]
+		if a.Quantile(0.05) != b.Quantile(0.05) || a.Quantile(0.95) != b.Quantile(0.95) || a.Min != b.Min || a.Max != b.Max {
+			t.Fatalf("cell %d: quantiles differ", i)
+		}
+	}
+	if merged.Points != one.Points || merged.Failed != one.Failed {
+		t.Errorf("merged stats %+v vs %+v", merged.Stats, one.Stats)
+	}
+	if _, err := Merge(parts[0], parts[1]); err == nil {
+		t.Error("merging 2 of 3 shards: no error")
+	}
+	if _, err := Merge(parts[0], parts[0], parts[1]); err == nil {
+		t.Error("merging a shard twice: no error")
+	}
+}
+
+func TestFailuresAreListed(t *testing.T) {
+	res := runDecay(t, 2, Shard{})
+	want := 0
+	pts, _ := Population{
+		Vary: []Distribution{LogNormal{Median: 0.5, CVPercent: 60}, Uniform{0, 1}},
+		Size: 997, Seed: 3, Sampling: LatinHypercube,
+	}.Sample()
+	for _, p := range pts {
+		if p[0] > 1.2 {
+			want++
+		}
+	}
+	if res.Failed != want || len(res.Failures) != want || len(res.Samples)+want != 997 {
+		t.Fatalf("%d failures listed, %d counted, want %d", len(res.Failures), res.Failed, want)
+	}
+	for _, f := range res.Failures {
+		if f.X[0] != pts[f.Index][0] || f.X[0] <= 1.2 || f.Err == "" {
+			t.Errorf("failure %+v does not match its point %v", f, pts[f.Index])
+		}
+	}
+	if res.Bands.Cells[0].N != uint64(len(res.Samples)) {
+		t.Errorf("bands hold %d trajectories, want %d", res.Bands.Cells[0].N, len(res.Samples))
+	}
+	v := res.Values(0)
+	for _, f := range res.Failures {
+		if !math.IsNaN(v[f.Index]) {
+			t.Errorf("Values: failed point %d is %v, want NaN", f.Index, v[f.Index])
+		}
+	}
+}
+
+// blowUp returns +Inf past its knob, as a diverging simulation might.
+type blowUp struct{ tr Trajectory }
+
+func (b *blowUp) Simulate(ctx context.Context, x []float64) (Trajectory, error) {
+	for i, t := range b.tr.T {
+		b.tr.Y[i][0] = 1 / (x[0] - t) // y' = y², y(0) = 1/x₀: infinite at t = x₀
+		if t >= x[0] {
+			b.tr.Y[i][0] = math.Inf(1)
+		}
+	}
+	return b.tr, nil
+}
+
+func TestNonFiniteTrajectoryFails(t *testing.T) {
+	times := grid(5, 1)
+	newSim := func() (Simulator, error) {
+		tr := Trajectory{T: times, Y: make([][]float64, len(times))}
+		for i := range tr.Y {
+			tr.Y[i] = make([]float64, 1)
+		}
+		return &blowUp{tr}, nil
+	}
+	res, err := Run(context.Background(), Grid{Axes: [][]float64{{2.5, 10}}}, newSim, Settings{
+		Knobs: []string{"x0"}, Readouts: []Readout{{Name: "max", Kind: Max}},
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Failed != 1 || res.Failures[0].Index != 0 || len(res.Samples) != 1 {
+		t.Fatalf("failures %+v, samples %d", res.Failures, len(res.Samples))
+	}
+	t.Logf("failure message: %s", res.Failures[0].Err)
+}
+
+func TestCancelAndProgress(t *testing.T) {
+	times := grid(3, 1)
+	ctx, cancel := context.WithCancel(context.Background())
+	var fractions []float64
+	res, err := Run(ctx, Grid{Axes: [][]float64{grid(1000, 0.001)}}, newDecaySim(times, 1, 0), Settings{
+		Knobs: []string{"k"}, Workers: 1,
+		Progress:      func(f float64) { fractions = append(fractions, f); cancel() },
+		ProgressEvery: 1,
+	})
+	if !errors.Is(err, context.Canceled) {
+		t.Fatalf("error %v, want context.Canceled", err)
+	}
+	if res == nil || len(res.Samples) == 0 || len(res.Samples) >= 1000 {
+		t.Fatalf("partial result not returned")
+	}
+	if len(fractions) == 0 || fractions[len(fractions)-1] >= 1 {
+		t.Errorf("progress %v", fractions)
+	}
+	fractions = nil
+	_, err = Run(context.Background(), Grid{Axes: [][]float64{{1, 2, 3}}}, newDecaySim(times, 1, 0), Settings{
+		Knobs: []string{"k"}, Progress: func(f float64) { fractions = append(fractions, f) },
+	})
+	if err != nil || len(fractions) == 0 || fractions[len(fractions)-1] != 1 {
+		t.Errorf("progress %v, error %v", fractions, err)
+	}
+}
