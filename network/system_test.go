@@ -337,3 +337,5 @@ func TestCompileRefusesErrors(t *testing.T) {
 		t.Errorf("error text lacks the problems: %v", err)
 	}
 }
+
+func newRng() *rand.Rand { return rand.New(rand.NewPCG(5, 6)) }
