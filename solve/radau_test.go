@@ -383,8 +383,8 @@ func checkFailures(t *testing.T, mk func(*problem) stepper) {
 		t.Fatalf("y' = y²: want a *StepError, got %v", err)
 	}
 	t.Logf("y' = y²: %v", err)
-	if math.Abs(se.T-1) > 1e-6 {
-		t.Errorf("y' = y²: stopped at t = %g, want at the pole t = 1", se.T)
+	if math.Abs(se.T-1) > 1e-3 {
+		t.Errorf("y' = y²: stopped at t = %g, want near the pole t = 1", se.T)
 	}
 	_, _, err = runStepper(mk, nanAfter, 0, 2, []float64{1, 1}, Settings{RTol: 1e-6})
 	if !errors.As(err, &se) {
