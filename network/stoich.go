@@ -201,9 +201,19 @@ func negatives(v []*big.Int) int {
 }
 
 // improveSigns adds small multiples of the other basis vectors to each
-// vector while that reduces its number of negative entries. The span is
-// unchanged (unimodular steps).
+// vector, and flips signs, while that reduces its number of negative
+// entries. The span is unchanged (unimodular steps).
 func improveSigns(basis [][]*big.Int) {
+	flip := func(v []*big.Int) {
+		if negatives(v) > len(v)-negatives(v)-zeros(v) {
+			for _, x := range v {
+				x.Neg(x)
+			}
+		}
+	}
+	for _, v := range basis {
+		flip(v)
+	}
 	for changed, rounds := true, 0; changed && rounds < 10; rounds++ {
 		changed = false
 		for a := range basis {
@@ -214,11 +224,15 @@ func improveSigns(basis [][]*big.Int) {
 				if a == b {
 					continue
 				}
-				for mult := int64(1); mult <= 3; mult++ {
+				for _, mult := range []int64{1, -1, 2, -2, 3, -3} {
 					cand := make([]*big.Int, len(basis[a]))
 					for k := range cand {
 						cand[k] = new(big.Int).Add(basis[a][k], new(big.Int).Mul(big.NewInt(mult), basis[b][k]))
 					}
+					if zeros(cand) == len(cand) {
+						continue
+					}
+					flip(cand)
 					if negatives(cand) < negatives(basis[a]) {
 						basis[a] = cand
 						changed = true
@@ -228,6 +242,16 @@ func improveSigns(basis [][]*big.Int) {
 			}
 		}
 	}
+}
+
+func zeros(v []*big.Int) int {
+	c := 0
+	for _, x := range v {
+		if x.Sign() == 0 {
+			c++
+		}
+	}
+	return c
 }
 
 func lawText(m *Model, species []string, w []int) string {
