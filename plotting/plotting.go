@@ -1,0 +1,247 @@
+// Package plotting draws the figures of Kinetarium: species trajectories,
+// parameter families, readouts against a parameter, two-parameter heat
+// maps, population bands and histograms. It builds on gonum.org/v1/plot and
+// knows nothing of the solver or of the user interface; data come in as
+// plain slices.
+//
+// Every figure uses colour-blind-safe colours (the Okabe–Ito palette for
+// series, a viridis-like sequential scale for continuous values), lines at
+// least 1.5 pt wide and, on logarithmic axes, decade ticks labelled 10^k.
+// Points that a logarithmic axis cannot show (values ≤ 0) and non-finite
+// values are left out, and the figure says how many in a note under its
+// title.
+package plotting
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/vg"
+)
+
+// Options control a figure. The zero value gives linear axes, no title, every
+// series shown and colours by position.
+type Options struct {
+	Title  string
+	XLabel string // axis quantity, e.g. "time"
+	YLabel string // axis quantity, e.g. "concentration"
+	XUnit  string // when set, the X label reads "XLabel (XUnit)"
+	YUnit  string // when set, the Y label reads "YLabel (YUnit)"
+
+	LogX, LogY bool // logarithmic axes
+
+	// Visible says which series of a TrajectoryPlot to draw; nil draws all.
+	Visible []bool
+
+	// Width and Height are the preferred figure size, for callers to pass to
+	// Save or Render; see Size. Zero means 16 cm × 10 cm.
+	Width, Height vg.Length
+
+	// Overlay is a previous run drawn faintly and dashed beneath a
+	// TrajectoryPlot, each series in the colour of the series of the same
+	// name.
+	Overlay *Trajectories
+
+	// ColourIndex gives each series of a TrajectoryPlot a stable colour slot
+	// (see Colour), so that a species keeps its colour when others are
+	// hidden; nil colours series by position.
+	ColourIndex []int
+}
+
+// Default figure size.
+const (
+	DefaultWidth  = 16 * vg.Centimeter
+	DefaultHeight = 10 * vg.Centimeter
+)
+
+// Size returns o.Width and o.Height, with defaults for zero values.
+func (o Options) Size() (w, h vg.Length) {
+	w, h = o.Width, o.Height
+	if w <= 0 {
+		w = DefaultWidth
+	}
+	if h <= 0 {
+		h = DefaultHeight
+	}
+	return w, h
+}
+
+// AxisLabel joins a quantity and its unit as "quantity (unit)"; with no
+// unit it returns the quantity alone.
+func AxisLabel(quantity, unit string) string {
+	switch {
+	case unit == "":
+		return quantity
+	case quantity == "":
+		return "(" + unit + ")"
+	}
+	return quantity + " (" + unit + ")"
+}
+
+// lineWidth is the width of data lines.
+const lineWidth = 1.5 // points
+
+// notes collects what a figure leaves out, to be shown under its title.
+type notes []string
+
+func (n *notes) addf(format string, args ...any) {
+	*n = append(*n, fmt.Sprintf(format, args...))
+}
+
+// countNote adds "k <what> not shown" when k > 0.
+func (n *notes) count(k int, what string) {
+	if k > 0 {
+		n.addf("%d %s not shown", k, what)
+	}
+}
+
+// newPlot returns a plot with the labels and scales of o.
+func newPlot(o Options) *plot.Plot {
+	p := plot.New()
+	p.X.Label.Text = AxisLabel(o.XLabel, o.XUnit)
+	p.Y.Label.Text = AxisLabel(o.YLabel, o.YUnit)
+	p.Legend.Top = true
+	p.Title.Padding = vg.Points(6)
+	p.Legend.ThumbnailWidth = vg.Points(24)
+	if o.LogX {
+		p.X.Scale = plot.LogScale{}
+		p.X.Tick.Marker = decadeTicks{}
+		p.X.Tick.Label.Handler = powerLabels
+		p.X.Label.TextStyle.Handler = logAxisLabel{powerLabels.Plain}
+	}
+	if o.LogY {
+		p.Y.Scale = plot.LogScale{}
+		p.Y.Tick.Marker = decadeTicks{}
+		p.Y.Tick.Label.Handler = powerLabels
+		p.Y.Label.TextStyle.Handler = logAxisLabel{powerLabels.Plain}
+	}
+	return p
+}
+
+// finish sets the title with any notes and makes the axis ranges valid for
+// their scales, so that drawing never panics.
+func finish(p *plot.Plot, o Options, n notes) {
+	title := o.Title
+	if len(n) > 0 {
+		note := "(" + strings.Join(n, "; ") + ")"
+		if title == "" {
+			title = note
+		} else {
+			title += "\n" + note
+		}
+	}
+	p.Title.Text = title
+	fixRange(&p.X, o.LogX)
+	fixRange(&p.Y, o.LogY)
+}
+
+// fixRange replaces an empty, infinite or (on a log axis) non-positive range.
+func fixRange(a *plot.Axis, log bool) {
+	lo, hi := a.Min, a.Max
+	bad := func(v float64) bool { return math.IsNaN(v) || math.IsInf(v, 0) }
+	if bad(lo) || bad(hi) || lo > hi {
+		lo, hi = 0, 1
+		if log {
+			lo, hi = 1, 10
+		}
+	}
+	if log {
+		switch {
+		case hi <= 0:
+			lo, hi = 1, 10
+		case lo <= 0:
+			lo = hi / 10
+		}
+		if lo == hi {
+			lo, hi = lo/math.Sqrt(10), hi*math.Sqrt(10)
+		}
+	} else if lo == hi {
+		d := math.Max(math.Abs(lo)*0.1, 1)
+		if lo == 0 {
+			d = 1
+		}
+		lo, hi = lo-d, hi+d
+	}
+	a.Min, a.Max = lo, hi
+}
+
+// usable reports whether v can be drawn on an axis (finite and, on a log
+// axis, positive).
+func usable(v float64, log bool) bool {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return false
+	}
+	return !log || v > 0
+}
+
+// decadeTicks marks a logarithmic axis with major ticks at powers of ten,
+// labelled 10^k, and minor ticks at 2–9 times them. Over many decades it
+// labels every 2nd, 5th, 10th... decade and drops the minor ticks; within
+// about a decade it labels minor ticks too.
+type decadeTicks struct{}
+
+// decadeSteps are the strides between labelled decades.
+var decadeSteps = []int{1, 2, 5, 10, 20, 50, 100}
+
+// Ticks implements plot.Ticker.
+func (decadeTicks) Ticks(min, max float64) []plot.Tick {
+	if !(min > 0) || !(max > 0) || math.IsInf(max, 0) {
+		return nil
+	}
+	if min > max {
+		min, max = max, min
+	}
+	k0 := int(math.Floor(math.Log10(min) + 1e-9))
+	k1 := int(math.Ceil(math.Log10(max) - 1e-9))
+	span := k1 - k0
+	step := decadeSteps[len(decadeSteps)-1]
+	for _, s := range decadeSteps {
+		if span/s <= 8 {
+			step = s
+			break
+		}
+	}
+	inside := func(v float64) bool { return v >= min*(1-1e-9) && v <= max*(1+1e-9) }
+	var ticks []plot.Tick
+	labelled := 0
+	for k := k0; k <= k1; k++ {
+		v := math.Pow(10, float64(k))
+		switch {
+		case !inside(v):
+		case k%step == 0:
+			ticks = append(ticks, plot.Tick{Value: v, Label: fmt.Sprintf("10^%d", k)})
+			labelled++
+		case span <= 30:
+			ticks = append(ticks, plot.Tick{Value: v})
+		}
+		if step == 1 && k < k1 {
+			for m := 2; m <= 9; m++ {
+				if w := float64(m) * v; inside(w) {
+					ticks = append(ticks, plot.Tick{Value: w})
+				}
+			}
+		}
+	}
+	if labelled < 2 {
+		// About a decade or less: label 2× and 5× too, or every tick.
+		label := func(keep func(float64) bool) {
+			for i, t := range ticks {
+				if t.Label == "" && keep(t.Value) {
+					ticks[i].Label = strconv.FormatFloat(t.Value, 'g', 3, 64)
+					labelled++
+				}
+			}
+		}
+		label(func(v float64) bool {
+			m := v / math.Pow(10, math.Floor(math.Log10(v)+1e-9))
+			return math.Abs(m-2) < 1e-6 || math.Abs(m-5) < 1e-6
+		})
+		if labelled < 2 {
+			label(func(float64) bool { return true })
+		}
+	}
+	return ticks
+}
