@@ -44,9 +44,7 @@ func Load(path string) (*Model, error) {
 
 // lineCol converts a byte offset into a 1-based line and column.
 func lineCol(data []byte, off int64) (line, col int) {
-	if off > int64(len(data)) {
-		off = int64(len(data))
-	}
+	off = max(0, min(off, int64(len(data))))
 	line = 1 + bytes.Count(data[:off], []byte("\n"))
 	last := bytes.LastIndexByte(data[:off], '\n')
 	col = int(off) - last // last = -1 gives off+1
@@ -55,15 +53,23 @@ func lineCol(data []byte, off int64) (line, col int) {
 
 func decodeModel(data []byte) (*Model, error) {
 	var probe any
-	if err := json.Unmarshal(data, &probe); err != nil {
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.UseNumber()
+	err := dec.Decode(&probe)
+	if err == nil && dec.More() {
+		off := dec.InputOffset()
+		line, col := lineCol(data, off)
+		return nil, fmt.Errorf("line %d, column %d: unexpected text after the end of the model", line, col)
+	}
+	if err == io.EOF || err == io.ErrUnexpectedEOF || err != nil && strings.Contains(err.Error(), "unexpected end") {
+		line, col := lineCol(data, int64(len(data)))
+		return nil, fmt.Errorf("line %d, column %d: the file ends too early; is a closing brace or bracket missing?", line, col)
+	}
+	if err != nil {
 		var se *json.SyntaxError
 		if errors.As(err, &se) {
-			line, col := lineCol(data, se.Offset)
+			line, col := lineCol(data, se.Offset-1)
 			return nil, fmt.Errorf("line %d, column %d: invalid JSON: %s", line, col, se.Error())
-		}
-		if strings.Contains(err.Error(), "unexpected end of JSON input") {
-			line, col := lineCol(data, int64(len(data)))
-			return nil, fmt.Errorf("line %d, column %d: the file ends too early; is a closing brace or bracket missing?", line, col)
 		}
 		return nil, fmt.Errorf("invalid JSON: %w", err)
 	}

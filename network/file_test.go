@@ -1,0 +1,179 @@
+package network
+
+import (
+	"bytes"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+
+	"kinetarium/examples"
+)
+
+func TestRoundTripExamples(t *testing.T) {
+	for _, name := range examples.Names() {
+		m := loadExample(t, name)
+		var a, b bytes.Buffer
+		if err := m.Write(&a); err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		m2, err := Read(bytes.NewReader(a.Bytes()), name+" (written)")
+		if err != nil {
+			t.Fatalf("%s: reading what Write wrote: %v", name, err)
+		}
+		if !reflect.DeepEqual(m, m2) {
+			t.Errorf("%s: model changed in a write/read round trip", name)
+		}
+		if err := m2.Write(&b); err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Equal(a.Bytes(), b.Bytes()) {
+			t.Errorf("%s: second write differs from the first", name)
+		}
+		if !reflect.DeepEqual(m.Clone(), m) {
+			t.Errorf("%s: Clone differs", name)
+		}
+		if ps := m.Validate(); HasErrors(ps) {
+			t.Errorf("%s: example has errors: %v", name, ps)
+		}
+	}
+}
+
+func TestSaveAtomic(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "m.json")
+	m := loadExample(t, "toggle-repressors.json")
+	if err := m.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	m.Title = "changed"
+	if err := m.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	got, err := Load(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got.Title != "changed" {
+		t.Errorf("title %q after save", got.Title)
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 1 {
+		t.Errorf("directory holds %d files after saving, want 1 (no temporary files left)", len(entries))
+	}
+	if err := m.Save(filepath.Join(dir, "missing", "m.json")); err == nil {
+		t.Error("saving into a missing directory succeeded")
+	}
+}
+
+func TestReadErrors(t *testing.T) {
+	const head = `{"format": "kinetarium.model/1", `
+	cases := []struct{ in, want string }{
+		{`{"format": "kinetarium.model/1",` + "\n" + `  "species": [}`, "line 2, column 15"},
+		{`{"format": "kinetarium.model/1"`, "ends too early"},
+		{`{"title": "x"}`, `missing key "format"`},
+		{`{"format": "kinetarium.model/2"}`, `version this program does not read`},
+		{`{"format": "other"}`, `not a model file format`},
+		{`[1, 2]`, `the top level: expected an object`},
+		{head + `"colour": 1}`, `the top level: unknown key "colour"`},
+		{head + `"reactions": [{}, {}, {"rate": {"kk": 1}}]}`, `reactions[2].rate: unknown key "kk"`},
+		{head + `"species": [{"name": 5}]}`, `species[0].name: expected text`},
+		{head + `"species": [{"name": "A", "initial": "lots"}]}`, `species[0].initial: expected a number, found text`},
+		{head + `"species": {"name": "A"}}`, `species: expected a list`},
+		{head + `"species": [{"name": "A", "fixed": 1}]}`, `species[0].fixed: expected true or false`},
+		{head + `"reactions": [{"rate": {"k": true}}]}`, `reactions[0].rate.k: expected a parameter name in quotes or a number`},
+		{head + `"simulation": {"output": {"points": 2.5}}}`, `simulation.output.points: 2.5 is not a whole number`},
+		{head + `"simulation": {"t_end": 1e999}}`, `simulation.t_end: 1e999 is out of the range`},
+		{head + `"units": {"time": "s", "length": "m"}}`, `units: unknown key "length"`},
+	}
+	for _, c := range cases {
+		_, err := Read(strings.NewReader(c.in), "m.json")
+		if err == nil {
+			t.Errorf("Read(%q) succeeded, want error containing %q", c.in, c.want)
+			continue
+		}
+		if !strings.Contains(err.Error(), c.want) || !strings.HasPrefix(err.Error(), "m.json: ") {
+			t.Errorf("Read(%q) error %q, want it to name m.json and contain %q", c.in, err, c.want)
+		}
+	}
+}
+
+func TestReadBriefExample(t *testing.T) {
+	// Every key of the documented file format.
+	src := `{"format": "kinetarium.model/1", "title": "t", "units": {"time": "s", "amount": "uM"},
+ "compartments": [{"name": "well", "volume": 1.0}],
+ "species": [{"name": "E", "initial": 0.05, "compartment": "well"}, {"name": "S", "initial": 20.0, "note": "substrate"}, {"name": "Buffer", "initial": 1.0, "fixed": true}, {"name": "ES", "initial": 0}, {"name": "P", "initial": 0}, {"name": "U", "initial": 0}],
+ "parameters": [{"name": "kon", "value": 50.0, "unit": "1/(uM*s)"}, {"name": "koff", "value": 5.0}, {"name": "Vmax", "value": 1}, {"name": "Km", "value": 2}, {"name": "kcat", "value": 3}, {"name": "a1", "value": 1}, {"name": "V", "value": 1}, {"name": "K", "value": 1}, {"name": "n", "value": 2}],
+ "reactions": [
+   {"name": "bind", "equation": "E + S <=> ES", "rate": {"law": "mass_action", "k": "kon", "k_reverse": "koff"}},
+   {"name": "turnover", "equation": "ES -> E + P", "rate": {"law": "mass_action", "k": 12.0}},
+   {"name": "leak", "equation": "S -> P", "rate": {"law": "michaelis_menten", "vmax": "Vmax", "km": "Km"}},
+   {"name": "cat", "equation": "S -> P", "rate": {"law": "michaelis_menten", "kcat": "kcat", "enzyme": "E", "km": "Km"}},
+   {"name": "make", "equation": "-> U", "rate": {"law": "expression", "expression": "a1/(1 + (V/K)^n)"}}],
+ "simulation": {"t_end": 5000, "output": {"points": 200, "spacing": "log", "first": 0.01}, "rtol": 1e-6, "atol": 1e-12, "method": "auto", "non_negative": false}}`
+	m, err := Read(strings.NewReader(src), "brief")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m.Reactions[1].Rate.K != Number(12) || m.Reactions[0].Rate.KReverse != Named("koff") || m.Reactions[0].Rate.K.String() != "kon" {
+		t.Errorf("rate values decoded wrongly: %+v", m.Reactions[:2])
+	}
+	if !m.Species[2].Fixed || m.Species[0].Compartment != "well" || m.Simulation.Output.First != 0.01 || m.Simulation.KeepNonNegative() {
+		t.Errorf("fields decoded wrongly: %+v %+v", m.Species, m.Simulation)
+	}
+	if _, err := Compile(m); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func TestDefaults(t *testing.T) {
+	m, err := Read(strings.NewReader(`{"format": "kinetarium.model/1"}`), "x")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := Simulation{TEnd: 100, Output: Output{Points: 200, Spacing: "linear"}, RTol: 1e-6, ATol: 1e-12, Method: "auto"}
+	if !reflect.DeepEqual(m.Simulation, want) || !m.Simulation.KeepNonNegative() {
+		t.Errorf("defaults %+v, want %+v", m.Simulation, want)
+	}
+}
+
+func TestValueString(t *testing.T) {
+	if s := Number(12).String(); s != "12" {
+		t.Errorf("Number(12) = %q", s)
+	}
+	if s := Named("kon").String(); s != "kon" {
+		t.Errorf("Named = %q", s)
+	}
+	if s := (Value{}).String(); s != "" {
+		t.Errorf("unset = %q", s)
+	}
+}
+
+func FuzzRead(f *testing.F) {
+	for _, name := range examples.Names() {
+		b, _ := examples.Open(name)
+		f.Add(b)
+	}
+	f.Add([]byte(`{"format": "kinetarium.model/1", "species": [{"name": "A", "initial": 1}], "reactions": [{"name": "r", "equation": "A -> ", "rate": {"law": "expression", "expression": "A/(A-A)"}}]}`))
+	f.Add([]byte(`{"format": "kinetarium.model/1", "compartments": [{"name": "c", "volume": 0}], "species": [{"name": "A", "compartment": "c"}]}`))
+	f.Add([]byte(`{"format": "kinetarium.model/1", "species": [{"name": "A"}], "reactions": [{"name": "r", "equation": "A -> 2 A", "rate": {"law": "michaelis_menten", "kcat": 1, "enzyme": "A", "km": 0}}]}`))
+	f.Add([]byte(`{`))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		m, err := Read(bytes.NewReader(data), "fuzz")
+		if err != nil {
+			return
+		}
+		m.Validate()
+		m.ConservationLaws()
+		s, err := Compile(m)
+		if err != nil {
+			return
+		}
+		y := s.Initial()
+		f := make([]float64, s.Dim())
+		s.RHS(0, y, f)
+		_, ci := s.JacobianPattern()
+		s.JacobianCSR(0, y, make([]float64, len(ci)))
+	})
+}
