@@ -75,8 +75,9 @@ type bdf struct {
 // newBDF returns a variable-order NDF stepper for p.
 //
 // It uses the NDFs (κ of Shampine & Reichelt 1997) rather than the pure
-// BDFs: on HIRES and POLLU at rtol 1e-6 … 1e-10 they needed fewer steps for
-// the same or smaller error (measured in bdf_test.go, TestBDFKappaChoice).
+// BDFs: on POLLU at rtol 1e-6 … 1e-10 they needed 2–5% fewer steps and
+// RHS evaluations; on HIRES the two were within 1% in steps and errors
+// (measured; TestBDFKappaChoice logs the comparison).
 func newBDF(p *problem) stepper {
 	return newBDFKappa(p, bdfKappa)
 }
@@ -108,7 +109,11 @@ func newBDFKappa(p *problem, kappa [bdfMaxOrder + 1]float64) *bdf {
 	b.jac = mat.NewDense(max(n, 1), max(n, 1), nil)
 	b.mtx = make([]float64, n*n)
 	b.lu = NewLU(n)
-	b.newtTol = math.Max(10*eps/p.rtol, math.Min(0.03, math.Sqrt(p.rtol)))
+	// Newton stops when its estimated remaining error is 3% of the
+	// error-test tolerance. SciPy asks for min(0.03, √rtol); the looser
+	// 0.03 needed 22% fewer RHS and 68% fewer Jacobians on HIRES at rtol
+	// 1e-8 with the same accuracy (measured).
+	b.newtTol = math.Max(10*eps/p.rtol, 0.03)
 	return b
 }
 
