@@ -1,0 +1,229 @@
+package network
+
+import (
+	"strings"
+	"testing"
+)
+
+func baseModel() *Model {
+	return &Model{
+		Compartments: []Compartment{{Name: "cell", Volume: 1}},
+		Species:      []Species{{Name: "E", Initial: 1}, {Name: "S", Initial: 5}, {Name: "ES"}, {Name: "P"}},
+		Parameters:   []Parameter{{Name: "kon", Value: 1}, {Name: "koff", Value: 0.1}, {Name: "kcat", Value: 2}},
+		Reactions: []Reaction{
+			{Name: "bind", Equation: "E + S <=> ES", Rate: Rate{Law: MassAction, K: Named("kon"), KReverse: Named("koff")}},
+			{Name: "cut", Equation: "ES -> E + P", Rate: Rate{Law: MassAction, K: Named("kcat")}},
+		},
+	}
+}
+
+func TestValidateClean(t *testing.T) {
+	if ps := baseModel().Validate(); len(ps) != 0 {
+		t.Errorf("clean model gives %v", ps)
+	}
+}
+
+func TestValidateTable(t *testing.T) {
+	cases := []struct {
+		name    string
+		edit    func(m *Model)
+		section string
+		item    string
+		field   string
+		col     int
+		want    string
+		sev     Severity
+	}{
+		{"unknown species", func(m *Model) { m.Reactions[0].Equation = "E + S <=> Q" }, "reactions", "bind", "equation", 11, `unknown species "Q"; declare it`, Error},
+		{"equation syntax", func(m *Model) { m.Reactions[1].Equation = "ES => E" }, "reactions", "cut", "equation", 4, "unknown arrow", Error},
+		{"parameter as species", func(m *Model) { m.Reactions[1].Equation = "ES -> kon" }, "reactions", "cut", "equation", 7, `"kon" is a parameter, not a species`, Error},
+		{"duplicate across kinds", func(m *Model) { m.Parameters[0].Name = "S"; m.Reactions[0].Rate.K = Number(1) }, "parameters", "S", "name", 0, `already used by species 2`, Error},
+		{"duplicate reaction", func(m *Model) { m.Reactions[1].Name = "bind" }, "reactions", "bind", "name", 0, "already used by reaction 1", Error},
+		{"bad name", func(m *Model) { m.Species[3].Name = "P 2"; m.Reactions[1].Equation = "ES -> E" }, "species", "P 2", "name", 0, "not a valid name", Error},
+		{"reserved t", func(m *Model) { m.Parameters = append(m.Parameters, Parameter{Name: "t", Value: 1}) }, "parameters", "t", "name", 0, "reserved for time", Error},
+		{"negative initial", func(m *Model) { m.Species[1].Initial = -2 }, "species", "S", "initial", 0, "initial concentration -2", Error},
+		{"zero volume", func(m *Model) { m.Compartments[0].Volume = 0 }, "compartments", "cell", "volume", 0, "expected a positive number", Error},
+		{"unknown compartment", func(m *Model) { m.Species[0].Compartment = "nucleus" }, "species", "E", "compartment", 0, `unknown compartment "nucleus"; expected one of cell`, Error},
+		{"missing k_reverse", func(m *Model) { m.Reactions[0].Rate.KReverse = Value{} }, "reactions", "bind", "rate.k_reverse", 0, "mass_action on a reversible reaction needs k_reverse", Error},
+		{"extra k_reverse", func(m *Model) { m.Reactions[1].Rate.KReverse = Number(1) }, "reactions", "cut", "rate.k_reverse", 0, "reversible reactions only", Error},
+		{"missing k", func(m *Model) { m.Reactions[1].Rate.K = Value{} }, "reactions", "cut", "rate.k", 0, "mass_action needs k", Error},
+		{"unknown parameter", func(m *Model) { m.Reactions[1].Rate.K = Named("kk") }, "reactions", "cut", "rate.k", 0, `unknown parameter "kk"`, Error},
+		{"negative constant", func(m *Model) { m.Reactions[1].Rate.K = Number(-1) }, "reactions", "cut", "rate.k", 0, "k = -1 is not allowed", Error},
+		{"unknown law", func(m *Model) { m.Reactions[1].Rate.Law = "hill" }, "reactions", "cut", "rate.law", 0, `unknown rate law "hill"; expected one of mass_action, michaelis_menten, expression`, Error},
+		{"missing law", func(m *Model) { m.Reactions[1].Rate = Rate{} }, "reactions", "cut", "rate.law", 0, "rate law is missing", Error},
+		{"mm both", func(m *Model) {
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Vmax: Number(1), Kcat: Named("kcat"), Enzyme: Named("E"), Km: Number(1)}}
+		}, "reactions", "cut", "rate", 0, "either vmax, or kcat with enzyme, not both", Error},
+		{"mm reversible", func(m *Model) {
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S <=> P", Rate: Rate{Law: MichaelisMenten, Vmax: Number(1), Km: Number(1)}}
+		}, "reactions", "cut", "equation", 0, "irreversible reactions only", Error},
+		{"mm two substrates", func(m *Model) {
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S + ES -> P", Rate: Rate{Law: MichaelisMenten, Vmax: Number(1), Km: Number(1)}}
+		}, "reactions", "cut", "equation", 0, "exactly one substrate", Error},
+		{"mm enzyme not species", func(m *Model) {
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Kcat: Named("kcat"), Enzyme: Named("kon"), Km: Number(1)}}
+		}, "reactions", "cut", "rate.enzyme", 0, `enzyme "kon" is not a species`, Error},
+		{"mm missing km", func(m *Model) {
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Vmax: Number(1)}}
+		}, "reactions", "cut", "rate.km", 0, "michaelis_menten needs km", Error},
+		{"mm kcat no enzyme", func(m *Model) {
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Kcat: Number(1), Km: Number(1)}}
+		}, "reactions", "cut", "rate.enzyme", 0, "needs enzyme", Error},
+		{"mm extra k", func(m *Model) {
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Vmax: Number(1), Km: Number(1), K: Number(2)}}
+		}, "reactions", "cut", "rate.k", 0, "michaelis_menten does not use k", Error},
+		{"expr syntax", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kcat*(ES"} }, "reactions", "cut", "rate.expression", 6, "", Error},
+		{"expr unknown name", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kcat*ESS"} }, "reactions", "cut", "rate.expression", 6, `unknown name "ESS"`, Error},
+		{"expr divide by zero", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kcat*ES/0"} }, "reactions", "cut", "rate.expression", 0, "zero", Error},
+		{"expr empty", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression} }, "reactions", "cut", "rate.expression", 0, "needs an expression", Error},
+		{"t_end", func(m *Model) { m.Simulation.TEnd = -5 }, "simulation", "", "t_end", 0, "expected a positive end time", Error},
+		{"spacing", func(m *Model) { m.Simulation.Output.Spacing = "geometric" }, "simulation", "", "output.spacing", 0, `expected "linear" or "log"`, Error},
+		{"method", func(m *Model) { m.Simulation.Method = "euler" }, "simulation", "", "method", 0, "expected one of auto, rosenbrock", Error},
+		{"unused species", func(m *Model) { m.Species = append(m.Species, Species{Name: "Z"}) }, "species", "Z", "", 0, "takes part in no reaction", Warning},
+		{"unused parameter", func(m *Model) { m.Parameters = append(m.Parameters, Parameter{Name: "spare", Value: 1}) }, "parameters", "spare", "", 0, "used by no rate law", Warning},
+	}
+	for _, c := range cases {
+		m := baseModel()
+		c.edit(m)
+		ps := m.Validate()
+		found := false
+		for _, p := range ps {
+			if p.Section == c.section && p.Item == c.item && p.Field == c.field && p.Severity == c.sev &&
+				strings.Contains(p.Message, c.want) && (c.col == 0 || p.Col == c.col) {
+				found = true
+			}
+		}
+		if !found {
+			t.Errorf("%s: want %s %q %s col %d %q; got %v", c.name, c.section, c.item, c.field, c.col, c.want, ps)
+		}
+	}
+}
+
+func TestValidateCollectsAll(t *testing.T) {
+	m := baseModel()
+	m.Species[0].Initial = -1
+	m.Compartments[0].Volume = -3
+	m.Reactions[1].Equation = "ES -> X + Y"
+	errs := 0
+	for _, p := range m.Validate() {
+		if p.Severity == Error {
+			errs++
+		}
+	}
+	if errs != 4 {
+		t.Errorf("%d errors, want 4: %v", errs, m.Validate())
+	}
+}
+
+func TestProblemString(t *testing.T) {
+	p := Problem{Section: "reactions", Item: "bind", Field: "equation", Col: 9, Message: `unknown species "Q"; declare it under species or fix the name`}
+	want := `reaction "bind", equation, column 9: unknown species "Q"; declare it under species or fix the name`
+	if p.String() != want {
+		t.Errorf("String() = %q, want %q", p.String(), want)
+	}
+}
+
+func TestParseEquation(t *testing.T) {
+	cases := []struct {
+		in   string
+		want string // canonical form
+	}{
+		{"A + 2 B -> C", "A + 2 B -> C"},
+		{"E + S <=> ES", "E + S <=> ES"},
+		{"-> mRNA", "-> mRNA"},
+		{"P ->", "P ->"},
+		{"∅ → X", "-> X"},
+		{"X ⇌ ∅", "X <=>"},
+		{"2A+0.5 B→C_1", "2 A + 0.5 B -> C_1"},
+		{"A + A -> B", "2 A -> B"},
+		{"E + S -> E + P", "E + S -> E + P"},
+	}
+	for _, c := range cases {
+		eq, err := ParseEquation(c.in)
+		if err != nil {
+			t.Errorf("ParseEquation(%q): %v", c.in, err)
+			continue
+		}
+		if eq.String() != c.want {
+			t.Errorf("ParseEquation(%q) = %q, want %q", c.in, eq.String(), c.want)
+		}
+	}
+	eq, _ := ParseEquation("A + 2 B -> C")
+	if eq.Reactants[1].Col != 5 || eq.Products[0].Col != 12 {
+		t.Errorf("columns %+v %+v", eq.Reactants, eq.Products)
+	}
+	bad := []struct {
+		in  string
+		col int
+		msg string
+	}{
+		{"", 1, "empty"},
+		{"A + B", 6, "missing arrow"},
+		{"A <-> B", 3, "unknown arrow"},
+		{"A -> B -> C", 8, "second arrow"},
+		{"A + -> B", 5, "expected a species after"},
+		{"->", 1, "both sides are empty"},
+		{"0 A -> B", 1, "must be positive"},
+		{"A -> 3", 7, "expected a species name"},
+		{"A -> B$", 7, `unexpected "$"`},
+		{"1.2.3 A -> B", 1, "not a number"},
+		{"Ä -> B", 1, "expected a species name"},
+	}
+	for _, c := range bad {
+		_, err := ParseEquation(c.in)
+		se, ok := err.(*SyntaxError)
+		if !ok {
+			t.Errorf("ParseEquation(%q) error %v, want a SyntaxError", c.in, err)
+			continue
+		}
+		if se.Col != c.col || !strings.Contains(se.Msg, c.msg) {
+			t.Errorf("ParseEquation(%q) = %v, want column %d and %q", c.in, se, c.col, c.msg)
+		}
+	}
+}
+
+func FuzzParseEquation(f *testing.F) {
+	for _, s := range []string{"A + 2 B -> C", "E + S <=> ES", "-> mRNA", "P ->", "∅ → X", "2A+0.5B⇌C", "A <-> B", "", "->", "A + + B -> C", "1e5 A -> B"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		eq, err := ParseEquation(s)
+		if err != nil {
+			if se, ok := err.(*SyntaxError); !ok || se.Col < 1 {
+				t.Fatalf("error %v without a column", err)
+			}
+			return
+		}
+		// The canonical form parses to the same equation.
+		eq2, err := ParseEquation(eq.String())
+		if err != nil || eq2.String() != eq.String() {
+			t.Fatalf("canonical form %q does not re-parse: %v", eq.String(), err)
+		}
+	})
+}
+
+func TestOutputTimes(t *testing.T) {
+	lin := OutputTimes(10, Output{Points: 6})
+	want := []float64{0, 2, 4, 6, 8, 10}
+	for i := range want {
+		if lin[i] != want[i] {
+			t.Fatalf("linear grid %v, want %v", lin, want)
+		}
+	}
+	lg := OutputTimes(1e4, Output{Points: 5, Spacing: "log", First: 1})
+	wantLog := []float64{0, 1, 10, 100, 1000, 10000}
+	if len(lg) != len(wantLog) {
+		t.Fatalf("log grid %v, want %v", lg, wantLog)
+	}
+	for i := range wantLog {
+		if d := lg[i] - wantLog[i]; d > 1e-9*wantLog[i] || -d > 1e-9*wantLog[i] {
+			t.Fatalf("log grid %v, want %v", lg, wantLog)
+		}
+	}
+	if lg[5] != 1e4 {
+		t.Errorf("last time %v, want exactly 1e4", lg[5])
+	}
+	if d := OutputTimes(50, Output{Spacing: "log"}); len(d) != 201 || d[1] != 50*1e-6 || d[200] != 50 {
+		t.Errorf("default log grid: %d points from %v to %v", len(d), d[1], d[len(d)-1])
+	}
+}
