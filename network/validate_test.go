@@ -223,7 +223,8 @@ func TestOutputTimes(t *testing.T) {
 	if lg[5] != 1e4 {
 		t.Errorf("last time %v, want exactly 1e4", lg[5])
 	}
-	if d := OutputTimes(50, Output{Spacing: "log"}); len(d) != 201 || d[1] != 50*1e-6 || d[200] != 50 {
+	tEnd := 50.0
+	if d := OutputTimes(tEnd, Output{Spacing: "log"}); len(d) != 201 || d[1] != tEnd*1e-6 || d[200] != 50 {
 		t.Errorf("default log grid: %d points from %v to %v", len(d), d[1], d[len(d)-1])
 	}
 }
