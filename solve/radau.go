@@ -119,7 +119,8 @@ type radau struct {
 // rtol' = 0.1·rtol^(2/3), atol' = atol·rtol'/rtol: its embedded estimate is
 // of order 3 while the solution is of order 5, and this mapping makes the
 // achieved error track the requested tolerance (measured on HIRES and POLLU
-// in radau_test.go).
+// in radau_test.go). Stats.Factorizations counts the real and the complex
+// factorization separately, two for each new iteration matrix.
 func newRadau(p *problem) stepper {
 	n := p.n
 	r := &radau{p: p, n: n}
