@@ -1,0 +1,509 @@
+package editor
+
+import (
+	"fmt"
+	"strings"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/theme"
+	"fyne.io/fyne/v2/widget"
+
+	"kinetarium/network"
+)
+
+// formBase holds what every detail form shares: the row shown and a flag
+// that mutes the inputs' callbacks while the form loads a row.
+type formBase struct {
+	ed      *Editor
+	section string
+	row     int
+	loading bool
+	all     []*field
+	box     *fyne.Container
+}
+
+func (f *formBase) object() fyne.CanvasObject { return f.box }
+func (f *formBase) fields() []*field          { return f.all }
+
+func (f *formBase) addField(label, name string, input fyne.CanvasObject) *field {
+	fl := newField(label, name, input)
+	f.all = append(f.all, fl)
+	f.box.Add(fl.row)
+	return fl
+}
+
+// nameInput is the name of the row, renamed when the user presses Enter or
+// leaves the input. Species, parameters and compartments offer to update
+// every use of the old name.
+func (f *formBase) nameInput(kind Kind, get func(m *network.Model, i int) string) (*commitEntry, func(m *network.Model, i int)) {
+	e := newCommitEntry()
+	e.onCommit = func(text string) {
+		if f.loading {
+			return
+		}
+		i := f.row
+		old := get(f.ed.Doc.Model(), i)
+		text = strings.TrimSpace(text)
+		if text == old {
+			f.ed.setPending(f.section, i, "name", "", "")
+			return
+		}
+		if err := CheckName(text); err != nil {
+			f.ed.setPending(f.section, i, "name", e.Text, err.Error())
+			return
+		}
+		if k, taken := f.ed.Doc.NameTaken(text); taken {
+			f.ed.setPending(f.section, i, "name", e.Text, fmt.Sprintf("the name %q is already used by a %s; choose another", text, k))
+			return
+		}
+		f.ed.setPending(f.section, i, "name", "", "")
+		uses := f.ed.Doc.Uses(kind, old)
+		rename := func(everywhere bool) {
+			f.ed.own = true
+			defer func() { f.ed.own = false }()
+			if _, err := f.ed.Doc.Rename(kind, old, text, everywhere); err != nil {
+				f.ed.setPending(f.section, i, "name", e.Text, err.Error())
+			}
+		}
+		if uses == 0 {
+			rename(false)
+			return
+		}
+		where := "equations and rate laws"
+		if kind == KindCompartment {
+			where = "species"
+		}
+		times := "once"
+		if uses > 1 {
+			times = fmt.Sprintf("%d times", uses)
+		}
+		f.ed.Confirm("Rename "+kind.String(),
+			fmt.Sprintf("%q is used %s in %s.\nUpdate every use to %q as well?", old, times, where, text),
+			"Update every use", "Rename only", rename)
+	}
+	load := func(m *network.Model, i int) {
+		if s, ok := f.ed.pendingText(f.section, i, "name"); ok {
+			e.last = s
+			if e.Text != s {
+				e.SetText(s)
+			}
+			return
+		}
+		e.setLoaded(get(m, i))
+	}
+	return e, load
+}
+
+// numberInput is a number field of the row, taken on every keystroke when
+// it reads as a number and otherwise kept as typed with a message.
+func (f *formBase) numberInput(name, desc string, get func(m *network.Model, i int) float64, set func(m *network.Model, i int, v float64)) (*widget.Entry, func(m *network.Model, i int)) {
+	e := widget.NewEntry()
+	e.OnChanged = func(text string) {
+		if f.loading {
+			return
+		}
+		i := f.row
+		v, msg := parseNumber(text)
+		f.ed.setPending(f.section, i, name, text, msg)
+		if msg == "" {
+			f.ed.editMerged(fmt.Sprintf("%s/%d/%s", f.section, i, name), desc, func(m *network.Model) { set(m, i, v) })
+		}
+	}
+	load := func(m *network.Model, i int) {
+		if s, ok := f.ed.pendingText(f.section, i, name); ok {
+			if e.Text != s {
+				e.SetText(s)
+			}
+			return
+		}
+		if v := get(m, i); !sameNumber(e.Text, v) {
+			e.SetText(formatNumber(v))
+		}
+	}
+	return e, load
+}
+
+// valueInput is a rate-law field: a number or a name.
+func (f *formBase) valueInput(name, desc string, ptr func(m *network.Model, i int) *network.Value) (*widget.Entry, func(m *network.Model, i int)) {
+	e := widget.NewEntry()
+	e.SetPlaceHolder("number or parameter name")
+	e.OnChanged = func(text string) {
+		if f.loading {
+			return
+		}
+		i := f.row
+		v, msg := parseValue(text)
+		f.ed.setPending(f.section, i, name, text, msg)
+		if msg == "" {
+			f.ed.editMerged(fmt.Sprintf("%s/%d/%s", f.section, i, name), desc, func(m *network.Model) { *ptr(m, i) = v })
+		}
+	}
+	load := func(m *network.Model, i int) {
+		if s, ok := f.ed.pendingText(f.section, i, name); ok {
+			if e.Text != s {
+				e.SetText(s)
+			}
+			return
+		}
+		if v := *ptr(m, i); !sameValue(e.Text, v) {
+			e.SetText(v.String())
+		}
+	}
+	return e, load
+}
+
+// textInput is a free-text field, taken on every keystroke as typed.
+func (f *formBase) textInput(name, desc string, ptr func(m *network.Model, i int) *string) (*widget.Entry, func(m *network.Model, i int)) {
+	e := widget.NewEntry()
+	e.OnChanged = func(text string) {
+		if f.loading {
+			return
+		}
+		i := f.row
+		f.ed.editMerged(fmt.Sprintf("%s/%d/%s", f.section, i, name), desc, func(m *network.Model) { *ptr(m, i) = text })
+	}
+	load := func(m *network.Model, i int) {
+		if s := *ptr(m, i); e.Text != s {
+			e.SetText(s)
+		}
+	}
+	return e, load
+}
+
+// loader runs the load functions of a form.
+type loader []func(m *network.Model, i int)
+
+func (l loader) run(m *network.Model, i int) {
+	for _, f := range l {
+		f(m, i)
+	}
+}
+
+// reactionForm edits one reaction.
+type reactionForm struct {
+	formBase
+	loads   loader
+	equ     *widget.Entry
+	declare *widget.Button
+	law     *widget.Select
+	mmForm  *widget.RadioGroup
+	k, kr   *field
+	vmax    *field
+	kcat    *field
+	enzyme  *field
+	km      *field
+	expr    *field
+	mmField *field
+	preview *widget.Label
+}
+
+const (
+	mmVmax = "Vmax·S/(Km + S)"
+	mmKcat = "kcat·E·S/(Km + S)"
+)
+
+func newReactionForm(ed *Editor) *reactionForm {
+	f := &reactionForm{formBase: formBase{ed: ed, section: "reactions", box: container.NewVBox()}}
+	r := func(m *network.Model, i int) *network.Reaction { return &m.Reactions[i] }
+
+	name, load := f.nameInput(KindReaction, func(m *network.Model, i int) string { return m.Reactions[i].Name })
+	f.addField("Name", "name", name)
+	f.loads = append(f.loads, load)
+
+	equ, load := f.textInput("equation", "edit equation", func(m *network.Model, i int) *string { return &r(m, i).Equation })
+	equ.SetPlaceHolder("e.g. E + S <=> ES")
+	f.equ = equ
+	f.addField("Equation", "equation", equ)
+	f.loads = append(f.loads, load)
+
+	f.declare = widget.NewButtonWithIcon("", theme.ContentAddIcon(), func() {
+		i := f.row
+		names := Undeclared(ed.Doc.Model(), ed.Doc.Model().Reactions[i].Equation)
+		if len(names) > 0 {
+			ed.edit("declare "+strings.Join(names, ", "), func(m *network.Model) { declareSpecies(m, names) })
+		}
+	})
+	f.declare.Importance = widget.HighImportance
+	f.box.Add(container.New(labelledLayout{}, widget.NewLabel(""), container.NewHBox(f.declare)))
+	f.declare.Hide()
+
+	titles := make([]string, len(network.Laws))
+	for i, l := range network.Laws {
+		titles[i] = LawTitle(l)
+	}
+	f.law = widget.NewSelect(titles, func(title string) {
+		if f.loading {
+			return
+		}
+		i := f.row
+		law := lawFromTitle(title)
+		ed.edit("change rate law to "+title, func(m *network.Model) { switchLaw(&m.Reactions[i], law) })
+	})
+	f.addField("Rate law", "rate.law", f.law)
+
+	f.mmForm = widget.NewRadioGroup([]string{mmVmax, mmKcat}, func(choice string) {
+		if f.loading || choice == "" {
+			return
+		}
+		i := f.row
+		ed.edit("change Michaelis–Menten form", func(m *network.Model) {
+			rt := &m.Reactions[i].Rate
+			if choice == mmVmax {
+				rt.Kcat, rt.Enzyme = network.Value{}, network.Value{}
+				if !rt.Vmax.Set {
+					rt.Vmax = network.Number(1)
+				}
+			} else {
+				rt.Vmax = network.Value{}
+				if !rt.Kcat.Set {
+					rt.Kcat = network.Number(1)
+				}
+			}
+		})
+	})
+	f.mmForm.Horizontal = true
+	f.mmField = f.addField("Form", "rate.form", f.mmForm)
+
+	value := func(label, name, desc string, ptr func(rt *network.Rate) *network.Value) *field {
+		e, load := f.valueInput(name, desc, func(m *network.Model, i int) *network.Value { return ptr(&m.Reactions[i].Rate) })
+		f.loads = append(f.loads, load)
+		return f.addField(label, name, e)
+	}
+	f.k = value("Rate constant", "rate.k", "edit rate constant", func(rt *network.Rate) *network.Value { return &rt.K })
+	f.kr = value("Reverse constant", "rate.k_reverse", "edit reverse rate constant", func(rt *network.Rate) *network.Value { return &rt.KReverse })
+	f.vmax = value("Vmax", "rate.vmax", "edit Vmax", func(rt *network.Rate) *network.Value { return &rt.Vmax })
+	f.kcat = value("kcat", "rate.kcat", "edit kcat", func(rt *network.Rate) *network.Value { return &rt.Kcat })
+	f.enzyme = value("Enzyme", "rate.enzyme", "edit enzyme", func(rt *network.Rate) *network.Value { return &rt.Enzyme })
+	f.enzyme.input.(*widget.Entry).SetPlaceHolder("species name or number")
+	f.km = value("Km", "rate.km", "edit Km", func(rt *network.Rate) *network.Value { return &rt.Km })
+
+	ex, load := f.textInput("rate.expression", "edit rate expression", func(m *network.Model, i int) *string { return &r(m, i).Rate.Expression })
+	ex.SetPlaceHolder("e.g. k1*A*B/(1 + B/Ki)")
+	f.expr = f.addField("Rate expression", "rate.expression", ex)
+	f.loads = append(f.loads, load)
+
+	f.preview = widget.NewLabel("")
+	f.preview.Wrapping = fyne.TextWrapWord
+	f.preview.TextStyle = fyne.TextStyle{Italic: true}
+	f.addField("Rate", "rate.preview", f.preview)
+
+	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &r(m, i).Note })
+	f.addField("Note", "note", note)
+	f.loads = append(f.loads, load)
+	return f
+}
+
+// switchLaw changes r's rate law, keeping the fields the new law shares
+// with the old one and clearing the rest.
+func switchLaw(r *network.Reaction, law string) {
+	old := r.Rate
+	r.Rate = network.Rate{Law: law}
+	switch law {
+	case network.MassAction:
+		r.Rate.K, r.Rate.KReverse = old.K, old.KReverse
+		if eq, err := network.ParseEquation(r.Equation); err == nil && !eq.Reversible {
+			r.Rate.KReverse = network.Value{}
+		}
+	case network.MichaelisMenten:
+		r.Rate.Vmax, r.Rate.Km, r.Rate.Kcat, r.Rate.Enzyme = old.Vmax, old.Km, old.Kcat, old.Enzyme
+		if !r.Rate.Kcat.Set && !r.Rate.Vmax.Set {
+			r.Rate.Vmax = old.K
+		}
+	case network.Expression:
+		r.Rate.Expression = old.Expression
+		if r.Rate.Expression == "" {
+			r.Rate.Expression = strings.NewReplacer("·", "*", "−", "-", "?", "").Replace(RateFormula(network.Reaction{Equation: r.Equation, Rate: old}))
+		}
+	}
+}
+
+func (f *reactionForm) load(m *network.Model, i int) {
+	f.loading = true
+	defer func() { f.loading = false }()
+	f.row = i
+	f.loads.run(m, i)
+	r := m.Reactions[i]
+	f.law.SetSelected(LawTitle(r.Rate.Law))
+	eq, eqErr := network.ParseEquation(r.Equation)
+	reversible := eqErr == nil && eq.Reversible
+	law := r.Rate.Law
+	mm := law == network.MichaelisMenten
+	kcatForm := mm && (r.Rate.Kcat.Set || r.Rate.Enzyme.Set)
+	if mm {
+		if kcatForm {
+			f.mmForm.SetSelected(mmKcat)
+		} else {
+			f.mmForm.SetSelected(mmVmax)
+		}
+	}
+	f.k.setVisible(law == network.MassAction)
+	f.kr.setVisible(law == network.MassAction && (reversible || r.Rate.KReverse.Set))
+	f.mmField.setVisible(mm)
+	f.vmax.setVisible(mm && !kcatForm)
+	f.kcat.setVisible(kcatForm)
+	f.enzyme.setVisible(kcatForm)
+	f.km.setVisible(mm)
+	f.expr.setVisible(law == network.Expression)
+	if law == network.MassAction {
+		if reversible {
+			f.k.row.Objects[0].(*widget.Label).SetText("Forward constant")
+		} else {
+			f.k.row.Objects[0].(*widget.Label).SetText("Rate constant")
+		}
+	}
+	p := RateFormula(r)
+	if p == "" {
+		p = "(shown when the equation reads correctly)"
+	}
+	f.preview.SetText(p)
+	if names := Undeclared(m, r.Equation); len(names) > 0 {
+		f.declare.SetText(declareLabel(names))
+		f.declare.Show()
+	} else {
+		f.declare.Hide()
+	}
+}
+
+// speciesForm edits one species.
+type speciesForm struct {
+	formBase
+	loads loader
+	comp  *widget.Select
+	fixed *widget.Check
+}
+
+// firstCompartment is how the compartment menu shows an empty compartment.
+const firstCompartment = "(first compartment)"
+
+func newSpeciesForm(ed *Editor) *speciesForm {
+	f := &speciesForm{formBase: formBase{ed: ed, section: "species", box: container.NewVBox()}}
+	name, load := f.nameInput(KindSpecies, func(m *network.Model, i int) string { return m.Species[i].Name })
+	f.addField("Name", "name", name)
+	f.loads = append(f.loads, load)
+	init, load := f.numberInput("initial", "edit initial concentration",
+		func(m *network.Model, i int) float64 { return m.Species[i].Initial },
+		func(m *network.Model, i int, v float64) { m.Species[i].Initial = v })
+	f.addField("Initial concentration", "initial", init)
+	f.loads = append(f.loads, load)
+	f.comp = widget.NewSelect(nil, func(s string) {
+		if f.loading {
+			return
+		}
+		if s == firstCompartment {
+			s = ""
+		}
+		i := f.row
+		ed.edit("change compartment", func(m *network.Model) { m.Species[i].Compartment = s })
+	})
+	f.addField("Compartment", "compartment", f.comp)
+	f.fixed = widget.NewCheck("Held constant (a fixed source or buffer)", func(on bool) {
+		if f.loading {
+			return
+		}
+		i := f.row
+		ed.edit("change held constant", func(m *network.Model) { m.Species[i].Fixed = on })
+	})
+	f.addField("", "fixed", f.fixed)
+	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &m.Species[i].Note })
+	f.addField("Note", "note", note)
+	f.loads = append(f.loads, load)
+	return f
+}
+
+func (f *speciesForm) load(m *network.Model, i int) {
+	f.loading = true
+	defer func() { f.loading = false }()
+	f.row = i
+	f.loads.run(m, i)
+	opts := []string{firstCompartment}
+	for _, c := range m.Compartments {
+		opts = append(opts, c.Name)
+	}
+	s := m.Species[i]
+	if s.Compartment != "" && !containsString(opts, s.Compartment) {
+		opts = append(opts, s.Compartment)
+	}
+	f.comp.SetOptions(opts)
+	if s.Compartment == "" {
+		f.comp.SetSelected(firstCompartment)
+	} else {
+		f.comp.SetSelected(s.Compartment)
+	}
+	f.fixed.SetChecked(s.Fixed)
+}
+
+func containsString(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
+
+// parameterForm edits one parameter.
+type parameterForm struct {
+	formBase
+	loads loader
+}
+
+func newParameterForm(ed *Editor) *parameterForm {
+	f := &parameterForm{formBase: formBase{ed: ed, section: "parameters", box: container.NewVBox()}}
+	name, load := f.nameInput(KindParameter, func(m *network.Model, i int) string { return m.Parameters[i].Name })
+	f.addField("Name", "name", name)
+	f.loads = append(f.loads, load)
+	val, load := f.numberInput("value", "edit parameter value",
+		func(m *network.Model, i int) float64 { return m.Parameters[i].Value },
+		func(m *network.Model, i int, v float64) { m.Parameters[i].Value = v })
+	f.addField("Value", "value", val)
+	f.loads = append(f.loads, load)
+	unit, load := f.textInput("unit", "edit unit", func(m *network.Model, i int) *string { return &m.Parameters[i].Unit })
+	unit.SetPlaceHolder("label only, e.g. 1/s")
+	f.addField("Unit", "unit", unit)
+	f.loads = append(f.loads, load)
+	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &m.Parameters[i].Note })
+	f.addField("Note", "note", note)
+	f.loads = append(f.loads, load)
+	return f
+}
+
+func (f *parameterForm) load(m *network.Model, i int) {
+	f.loading = true
+	defer func() { f.loading = false }()
+	f.row = i
+	f.loads.run(m, i)
+}
+
+// compartmentForm edits one compartment.
+type compartmentForm struct {
+	formBase
+	loads loader
+}
+
+func newCompartmentForm(ed *Editor) *compartmentForm {
+	f := &compartmentForm{formBase: formBase{ed: ed, section: "compartments", box: container.NewVBox()}}
+	name, load := f.nameInput(KindCompartment, func(m *network.Model, i int) string { return m.Compartments[i].Name })
+	f.addField("Name", "name", name)
+	f.loads = append(f.loads, load)
+	vol, load := f.numberInput("volume", "edit volume",
+		func(m *network.Model, i int) float64 { return m.Compartments[i].Volume },
+		func(m *network.Model, i int, v float64) { m.Compartments[i].Volume = v })
+	f.addField("Volume", "volume", vol)
+	f.loads = append(f.loads, load)
+	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &m.Compartments[i].Note })
+	f.addField("Note", "note", note)
+	f.loads = append(f.loads, load)
+	rule := widget.NewLabel("Rule: concentrations are per volume of the species' own compartment; a reaction between compartments converts amounts using the volumes.")
+	rule.Wrapping = fyne.TextWrapWord
+	rule.Importance = widget.LowImportance
+	f.box.Add(rule)
+	return f
+}
+
+func (f *compartmentForm) load(m *network.Model, i int) {
+	f.loading = true
+	defer func() { f.loading = false }()
+	f.row = i
+	f.loads.run(m, i)
+}

@@ -1,0 +1,143 @@
+package editor
+
+import (
+	"fmt"
+	"slices"
+
+	"kinetarium/network"
+)
+
+var reactionKind = rowKind{
+	section: "reactions", noun: "reaction", newName: "r",
+	emptyTip: "No reactions yet. Press “Add reaction” and type an equation such as “A + B -> C”.",
+	count:    func(m *network.Model) int { return len(m.Reactions) },
+	name:     func(m *network.Model, i int) string { return m.Reactions[i].Name },
+	summary:  func(m *network.Model, i int) string { return m.Reactions[i].Equation },
+	add: func(d *Document, m *network.Model, at int) {
+		r := network.Reaction{Name: freshIn(m, "r"), Rate: network.Rate{Law: network.MassAction}}
+		m.Reactions = slices.Insert(m.Reactions, at, r)
+	},
+	dup: func(m *network.Model, i int, name string) {
+		r := m.Reactions[i]
+		r.Name = name
+		m.Reactions = slices.Insert(m.Reactions, i+1, r)
+	},
+	remove: func(m *network.Model, i int) { m.Reactions = slices.Delete(m.Reactions, i, i+1) },
+	swap:   func(m *network.Model, i, j int) { m.Reactions[i], m.Reactions[j] = m.Reactions[j], m.Reactions[i] },
+}
+
+var speciesKind = rowKind{
+	section: "species", noun: "species", newName: "X",
+	emptyTip: "No species yet. Press “Add species”, or type an equation under Reactions and declare its species in one click.",
+	count:    func(m *network.Model) int { return len(m.Species) },
+	name:     func(m *network.Model, i int) string { return m.Species[i].Name },
+	summary: func(m *network.Model, i int) string {
+		s := m.Species[i]
+		t := "start " + formatNumber(s.Initial)
+		if s.Fixed {
+			t += ", held constant"
+		}
+		return t
+	},
+	add: func(d *Document, m *network.Model, at int) {
+		m.Species = slices.Insert(m.Species, at, network.Species{Name: freshIn(m, "X")})
+	},
+	dup: func(m *network.Model, i int, name string) {
+		s := m.Species[i]
+		s.Name = name
+		m.Species = slices.Insert(m.Species, i+1, s)
+	},
+	remove: func(m *network.Model, i int) { m.Species = slices.Delete(m.Species, i, i+1) },
+	swap:   func(m *network.Model, i, j int) { m.Species[i], m.Species[j] = m.Species[j], m.Species[i] },
+}
+
+var parameterKind = rowKind{
+	section: "parameters", noun: "parameter", newName: "k",
+	emptyTip: "No parameters yet. Rate laws may use numbers directly, or names of parameters added here.",
+	count:    func(m *network.Model) int { return len(m.Parameters) },
+	name:     func(m *network.Model, i int) string { return m.Parameters[i].Name },
+	summary: func(m *network.Model, i int) string {
+		p := m.Parameters[i]
+		if p.Unit != "" {
+			return formatNumber(p.Value) + " " + p.Unit
+		}
+		return formatNumber(p.Value)
+	},
+	add: func(d *Document, m *network.Model, at int) {
+		m.Parameters = slices.Insert(m.Parameters, at, network.Parameter{Name: freshIn(m, "k"), Value: 1})
+	},
+	dup: func(m *network.Model, i int, name string) {
+		p := m.Parameters[i]
+		p.Name = name
+		m.Parameters = slices.Insert(m.Parameters, i+1, p)
+	},
+	remove: func(m *network.Model, i int) { m.Parameters = slices.Delete(m.Parameters, i, i+1) },
+	swap:   func(m *network.Model, i, j int) { m.Parameters[i], m.Parameters[j] = m.Parameters[j], m.Parameters[i] },
+}
+
+var compartmentKind = rowKind{
+	section: "compartments", noun: "compartment", newName: "cell",
+	emptyTip: "No compartments: every species lives in one implicit compartment of volume 1. Add compartments to give species different volumes.",
+	count:    func(m *network.Model) int { return len(m.Compartments) },
+	name:     func(m *network.Model, i int) string { return m.Compartments[i].Name },
+	summary:  func(m *network.Model, i int) string { return "volume " + formatNumber(m.Compartments[i].Volume) },
+	add: func(d *Document, m *network.Model, at int) {
+		m.Compartments = slices.Insert(m.Compartments, at, network.Compartment{Name: freshIn(m, "comp"), Volume: 1})
+	},
+	dup: func(m *network.Model, i int, name string) {
+		c := m.Compartments[i]
+		c.Name = name
+		m.Compartments = slices.Insert(m.Compartments, i+1, c)
+	},
+	remove: func(m *network.Model, i int) { m.Compartments = slices.Delete(m.Compartments, i, i+1) },
+	swap:   func(m *network.Model, i, j int) { m.Compartments[i], m.Compartments[j] = m.Compartments[j], m.Compartments[i] },
+}
+
+// freshIn returns prefix followed by the smallest number ≥ 1 that names
+// nothing in m.
+func freshIn(m *network.Model, prefix string) string {
+	d := Document{model: m}
+	return d.FreshName(prefix)
+}
+
+// Undeclared returns the species named in equation that m does not
+// declare as anything, in order of appearance. It returns nil when the
+// equation cannot be read.
+func Undeclared(m *network.Model, equation string) []string {
+	eq, err := network.ParseEquation(equation)
+	if err != nil {
+		return nil
+	}
+	d := Document{model: m}
+	var out []string
+	for _, side := range [][]network.Term{eq.Reactants, eq.Products} {
+		for _, t := range side {
+			if _, taken := d.NameTaken(t.Species); !taken && !slices.Contains(out, t.Species) {
+				out = append(out, t.Species)
+			}
+		}
+	}
+	return out
+}
+
+// declareSpecies adds species with the given names, initial concentration
+// zero, at the end of m's species.
+func declareSpecies(m *network.Model, names []string) {
+	for _, n := range names {
+		m.Species = append(m.Species, network.Species{Name: n})
+	}
+}
+
+func declareLabel(names []string) string {
+	s := "Declare "
+	for i, n := range names {
+		if i > 0 {
+			s += ", "
+		}
+		s += n
+	}
+	if len(names) == 1 {
+		return s + " as a species"
+	}
+	return s + fmt.Sprintf(" as species (%d)", len(names))
+}
