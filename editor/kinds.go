@@ -90,7 +90,9 @@ var compartmentKind = rowKind{
 		m.Compartments = slices.Insert(m.Compartments, i+1, c)
 	},
 	remove: func(m *network.Model, i int) { m.Compartments = slices.Delete(m.Compartments, i, i+1) },
-	swap:   func(m *network.Model, i, j int) { m.Compartments[i], m.Compartments[j] = m.Compartments[j], m.Compartments[i] },
+	swap: func(m *network.Model, i, j int) {
+		m.Compartments[i], m.Compartments[j] = m.Compartments[j], m.Compartments[i]
+	},
 }
 
 // freshIn returns prefix followed by the smallest number ≥ 1 that names
