@@ -1,0 +1,553 @@
+package main
+
+// The sweep subcommand, and what sweep and population share: the strict
+// spec decoder, knobs on a compiled network, readouts and simulation
+// settings.
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"time"
+
+	"kinetarium/network"
+	"kinetarium/solve"
+	"kinetarium/solve/explore"
+)
+
+// SweepFormat is the format tag of a sweep spec.
+const SweepFormat = "kinetarium.sweep/1"
+
+// sweepSpec is a sweep spec file:
+//
+//	{"format": "kinetarium.sweep/1",
+//	 "model": "model.json",
+//	 "parameter": {"target": "kon", "from": 1, "to": 100, "points": 20, "spacing": "log"},
+//	 "second": {...},                       (optional: a two-parameter grid)
+//	 "readouts": [{"name": "peak", "kind": "max", "species": "C"}, ...],
+//	 "plot_species": ["C"],                 (optional: species of the family plots)
+//	 "simulation": {"t_end": 24, "points": 97, "spacing": "linear"}}   (optional)
+type sweepSpec struct {
+	Format      string          `json:"format"`
+	Model       string          `json:"model"`
+	Parameter   json.RawMessage `json:"parameter"`
+	Second      json.RawMessage `json:"second"`
+	Readouts    json.RawMessage `json:"readouts"`
+	PlotSpecies []string        `json:"plot_species"`
+	Simulation  json.RawMessage `json:"simulation"`
+}
+
+// axisSpec is one swept knob.
+type axisSpec struct {
+	Target  string  `json:"target"`
+	From    float64 `json:"from"`
+	To      float64 `json:"to"`
+	Points  int     `json:"points"`
+	Spacing string  `json:"spacing"` // "linear" (default) or "log"
+}
+
+// readoutSpec is one readout of a spec.
+type readoutSpec struct {
+	Name    string   `json:"name"`
+	Kind    string   `json:"kind"`
+	Species string   `json:"species"`
+	Time    *float64 `json:"time"`  // value_at
+	Level   *float64 `json:"level"` // cross_up, cross_down
+}
+
+// simSpec overrides the model's simulation settings.
+type simSpec struct {
+	TEnd    float64 `json:"t_end"`
+	Points  int     `json:"points"`
+	Spacing string  `json:"spacing"`
+}
+
+// strict decodes raw into v, refusing unknown keys; errors name path.
+func strict(raw []byte, v any, path string) error {
+	dec := json.NewDecoder(bytes.NewReader(raw))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(v); err != nil {
+		var te *json.UnmarshalTypeError
+		msg := strings.TrimPrefix(err.Error(), "json: ")
+		if errors.As(err, &te) {
+			field := te.Field
+			if path != "" && field != "" {
+				field = path + "." + field
+			} else if field == "" {
+				field = path
+			}
+			return fmt.Errorf("%s: expected %s, got a JSON %s", field, te.Type, te.Value)
+		}
+		if path == "" {
+			return errors.New(msg)
+		}
+		return fmt.Errorf("%s: %s", path, msg)
+	}
+	if dec.More() {
+		return fmt.Errorf("%s: unexpected data after the JSON value", orTop(path))
+	}
+	return nil
+}
+
+func orTop(path string) string {
+	if path == "" {
+		return "top level"
+	}
+	return path
+}
+
+// readSpec reads a spec file into v (strictly) and checks its format tag.
+func readSpec(path, format string, v any) error {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return fmt.Errorf("reading spec: %w", err)
+	}
+	var head struct {
+		Format *string `json:"format"`
+	}
+	if err := json.Unmarshal(data, &head); err != nil {
+		return fmt.Errorf("%s: not a JSON object: %w", path, err)
+	}
+	if head.Format == nil || *head.Format != format {
+		got := "none"
+		if head.Format != nil {
+			got = strconv.Quote(*head.Format)
+		}
+		return fmt.Errorf("%s: format: expected %q, got %s", path, format, got)
+	}
+	if err := strict(data, v, ""); err != nil {
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	return nil
+}
+
+// knobKind is what a knob sets.
+type knobKind int
+
+const (
+	knobParameter knobKind = iota
+	knobInitial
+	knobVolume
+)
+
+// knob is one resolved knob of a netTarget.
+type knob struct {
+	name  string
+	kind  knobKind
+	index int
+}
+
+// netTarget adapts a compiled network to explore.Target. Knobs are named
+// "NAME" (a parameter), "init:SPECIES" (an initial concentration) or
+// "volume:COMPARTMENT" (a compartment volume).
+type netTarget struct {
+	*network.System
+	knobs []knob
+}
+
+// newNetTarget resolves knob names on sys; errors name the spec key path.
+func newNetTarget(sys *network.System, names, paths []string) (*netTarget, error) {
+	t := &netTarget{System: sys}
+	for k, name := range names {
+		kn := knob{name: name}
+		var ok bool
+		switch {
+		case strings.HasPrefix(name, "init:"):
+			kn.kind = knobInitial
+			kn.index, ok = sys.SpeciesIndex(strings.TrimPrefix(name, "init:"))
+			if !ok {
+				return nil, fmt.Errorf("%s: no species %q in the model (species: %s)", paths[k], strings.TrimPrefix(name, "init:"), strings.Join(sys.Species(), ", "))
+			}
+		case strings.HasPrefix(name, "volume:"):
+			kn.kind = knobVolume
+			kn.index, ok = sys.CompartmentIndex(strings.TrimPrefix(name, "volume:"))
+			if !ok {
+				return nil, fmt.Errorf("%s: no compartment %q in the model (compartments: %s)", paths[k], strings.TrimPrefix(name, "volume:"), strings.Join(sys.Compartments(), ", "))
+			}
+		default:
+			kn.kind = knobParameter
+			kn.index, ok = sys.ParameterIndex(name)
+			if !ok {
+				return nil, fmt.Errorf("%s: no parameter %q in the model (parameters: %s; use init:SPECIES or volume:COMPARTMENT for those)", paths[k], name, strings.Join(sys.Parameters(), ", "))
+			}
+		}
+		t.knobs = append(t.knobs, kn)
+	}
+	return t, nil
+}
+
+// SetKnob implements explore.Target.
+func (t *netTarget) SetKnob(k int, v float64) error {
+	kn := t.knobs[k]
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return fmt.Errorf("%s = %v is not finite", kn.name, v)
+	}
+	switch kn.kind {
+	case knobInitial:
+		if v < 0 {
+			return fmt.Errorf("%s = %v: an initial concentration must be ≥ 0", kn.name, v)
+		}
+		t.SetInitial(kn.index, v)
+	case knobVolume:
+		if v <= 0 {
+			return fmt.Errorf("%s = %v: a volume must be positive", kn.name, v)
+		}
+		t.SetVolume(kn.index, v)
+	default:
+		t.SetParameter(kn.index, v)
+	}
+	return nil
+}
+
+// Initial implements explore.Target.
+func (t *netTarget) Initial(y0 []float64) { copy(y0, t.System.Initial()) }
+
+// Clone implements explore.Target.
+func (t *netTarget) Clone() explore.Target {
+	return &netTarget{System: t.System.Clone(), knobs: t.knobs}
+}
+
+// loaded is a model ready to explore.
+type loaded struct {
+	model *network.Model
+	sys   *network.System
+	sim   network.Simulation
+	times []float64
+}
+
+// loadModel loads the model named by a spec (relative to the spec's
+// folder), applies the simulation override and compiles it.
+func loadModel(specPath, model string, simRaw json.RawMessage) (*loaded, error) {
+	if model == "" {
+		return nil, fmt.Errorf("%s: model: missing (the model file, relative to the spec)", specPath)
+	}
+	if !filepath.IsAbs(model) {
+		model = filepath.Join(filepath.Dir(specPath), model)
+	}
+	m, err := network.Load(model)
+	if err != nil {
+		return nil, err
+	}
+	sim := m.Simulation.WithDefaults()
+	if len(simRaw) > 0 {
+		var o simSpec
+		if err := strict(simRaw, &o, "simulation"); err != nil {
+			return nil, fmt.Errorf("%s: %w", specPath, err)
+		}
+		switch {
+		case o.TEnd < 0 || math.IsInf(o.TEnd, 0):
+			return nil, fmt.Errorf("%s: simulation.t_end: expected a positive time, got %v", specPath, o.TEnd)
+		case o.Points < 0 || o.Points == 1:
+			return nil, fmt.Errorf("%s: simulation.points: expected at least 2, got %d", specPath, o.Points)
+		case o.Spacing != "" && o.Spacing != "linear" && o.Spacing != "log":
+			return nil, fmt.Errorf("%s: simulation.spacing: expected \"linear\" or \"log\", got %q", specPath, o.Spacing)
+		}
+		if o.TEnd > 0 {
+			sim.TEnd = o.TEnd
+		}
+		if o.Points > 0 {
+			sim.Output.Points = o.Points
+		}
+		if o.Spacing != "" {
+			sim.Output.Spacing = o.Spacing
+		}
+	}
+	sys, err := network.Compile(m)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", model, err)
+	}
+	return &loaded{model: m, sys: sys, sim: sim, times: network.OutputTimes(sim.TEnd, sim.Output)}, nil
+}
+
+// settings returns the solve settings of the loaded simulation.
+func (l *loaded) settings() solve.Settings {
+	method := solve.Method(l.sim.Method)
+	if l.sim.Method == "auto" {
+		method = solve.Auto
+	}
+	return solve.Settings{
+		RTol: l.sim.RTol, ATol: l.sim.ATol, Method: method,
+		Times: l.times, NonNegative: l.sim.KeepNonNegative(),
+	}
+}
+
+// readouts decodes and resolves the readouts of a spec.
+func (l *loaded) readouts(specPath string, raw json.RawMessage) ([]explore.Readout, error) {
+	if len(raw) == 0 {
+		return nil, nil
+	}
+	var items []json.RawMessage
+	if err := strict(raw, &items, "readouts"); err != nil {
+		return nil, fmt.Errorf("%s: %w", specPath, err)
+	}
+	var out []explore.Readout
+	seen := map[string]bool{}
+	for i, it := range items {
+		path := fmt.Sprintf("readouts[%d]", i)
+		var rs readoutSpec
+		if err := strict(it, &rs, path); err != nil {
+			return nil, fmt.Errorf("%s: %w", specPath, err)
+		}
+		bad := func(format string, a ...any) error {
+			return fmt.Errorf("%s: %s.%s", specPath, path, fmt.Sprintf(format, a...))
+		}
+		j, ok := l.sys.SpeciesIndex(rs.Species)
+		if !ok {
+			return nil, bad("species: no species %q in the model (species: %s)", rs.Species, strings.Join(l.sys.Species(), ", "))
+		}
+		r := explore.Readout{Name: rs.Name, Kind: explore.Kind(rs.Kind), Component: j}
+		if r.Name == "" {
+			r.Name = rs.Kind + "_" + rs.Species
+		}
+		switch r.Kind {
+		case explore.ValueAt:
+			if rs.Time == nil {
+				return nil, bad("time: missing (value_at needs the time to read at)")
+			}
+			r.At = *rs.Time
+		case explore.CrossUp, explore.CrossDown:
+			if rs.Level == nil {
+				return nil, bad("level: missing (%s needs the threshold)", rs.Kind)
+			}
+			r.Level = *rs.Level
+		}
+		if rs.Time != nil && r.Kind != explore.ValueAt {
+			return nil, bad("time: only value_at takes a time")
+		}
+		if rs.Level != nil && r.Kind != explore.CrossUp && r.Kind != explore.CrossDown {
+			return nil, bad("level: only cross_up and cross_down take a level")
+		}
+		if err := r.Validate(l.sys.Dim()); err != nil {
+			return nil, fmt.Errorf("%s: %s: %w", specPath, path, err)
+		}
+		if seen[r.Name] {
+			return nil, bad("name: %q is used twice", r.Name)
+		}
+		seen[r.Name] = true
+		out = append(out, r)
+	}
+	return out, nil
+}
+
+// axis decodes a swept knob and returns its values.
+func axis(specPath string, raw json.RawMessage, path string) (axisSpec, []float64, error) {
+	var a axisSpec
+	if err := strict(raw, &a, path); err != nil {
+		return a, nil, fmt.Errorf("%s: %w", specPath, err)
+	}
+	bad := func(format string, x ...any) (axisSpec, []float64, error) {
+		return a, nil, fmt.Errorf("%s: %s.%s", specPath, path, fmt.Sprintf(format, x...))
+	}
+	switch {
+	case a.Target == "":
+		return bad("target: missing (a parameter name, init:SPECIES or volume:COMPARTMENT)")
+	case a.Points < 1:
+		return bad("points: expected at least 1, got %d", a.Points)
+	case math.IsNaN(a.From) || math.IsInf(a.From, 0) || math.IsNaN(a.To) || math.IsInf(a.To, 0):
+		return bad("from/to: expected finite numbers")
+	}
+	vals := make([]float64, a.Points)
+	switch a.Spacing {
+	case "", "linear":
+		for i := range vals {
+			if a.Points == 1 {
+				vals[i] = a.From
+				break
+			}
+			vals[i] = a.From + (a.To-a.From)*float64(i)/float64(a.Points-1)
+		}
+	case "log":
+		if !(a.From > 0 && a.To > 0) {
+			return bad("from: log spacing needs positive from and to, got %v and %v", a.From, a.To)
+		}
+		lo, hi := math.Log(a.From), math.Log(a.To)
+		for i := range vals {
+			if a.Points > 1 {
+				vals[i] = math.Exp(lo + (hi-lo)*float64(i)/float64(a.Points-1))
+			}
+		}
+		vals[0] = a.From
+	default:
+		return bad("spacing: expected \"linear\" or \"log\", got %q", a.Spacing)
+	}
+	if a.Points > 1 {
+		vals[a.Points-1] = a.To
+	}
+	return a, vals, nil
+}
+
+// cmdFlags are the options of sweep and population.
+type cmdFlags struct {
+	spec    string
+	out     string
+	shard   explore.Shard
+	workers int
+	quiet   bool
+}
+
+// parseCmd parses "SPEC [--shard i/n] [--out DIR] [--workers N] [--quiet]"
+// with flags before or after the spec.
+func parseCmd(name string, args []string, stderr io.Writer) (*cmdFlags, error) {
+	fs := flag.NewFlagSet(name, flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	var c cmdFlags
+	var shard string
+	fs.StringVar(&c.out, "out", "", "folder for the results (default: the spec's name with -results, beside it)")
+	fs.StringVar(&shard, "shard", "", "run only part i of n (i/n, 0 ≤ i < n) and write a partial result for merge")
+	fs.IntVar(&c.workers, "workers", 0, "number of parallel workers (default: one per CPU)")
+	fs.BoolVar(&c.quiet, "quiet", false, "do not report progress")
+	fs.Usage = func() {
+		fmt.Fprintf(stderr, "usage: batch %s SPEC.json [--shard i/n] [--out DIR] [--workers N] [--quiet]\n", name)
+		fs.PrintDefaults()
+	}
+	var pos []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			return nil, err
+		}
+		args = fs.Args()
+		if len(args) == 0 {
+			break
+		}
+		pos = append(pos, args[0])
+		args = args[1:]
+	}
+	if len(pos) != 1 {
+		fs.Usage()
+		return nil, fmt.Errorf("%s: expected one spec file, got %d arguments", name, len(pos))
+	}
+	c.spec = pos[0]
+	if shard != "" {
+		s, err := explore.ParseShard(shard)
+		if err != nil {
+			return nil, fmt.Errorf("--shard: %w", err)
+		}
+		c.shard = s
+	}
+	if c.workers < 0 {
+		return nil, fmt.Errorf("--workers: expected a positive number, got %d", c.workers)
+	}
+	if c.out == "" {
+		c.out = strings.TrimSuffix(c.spec, filepath.Ext(c.spec)) + "-results"
+	}
+	return &c, nil
+}
+
+// progressPrinter reports progress on w about once a second.
+func progressPrinter(name string, w io.Writer, quiet bool) (func(float64), time.Duration) {
+	if quiet {
+		return nil, 0
+	}
+	return func(f float64) { fmt.Fprintf(w, "%s: %3.0f %%\n", name, 100*f) }, time.Second
+}
+
+// runSweep is the sweep subcommand.
+func runSweep(args []string, stdout, stderr io.Writer) int {
+	if err := sweep(args, stdout, stderr); err != nil {
+		fmt.Fprintln(stderr, "sweep:", err)
+		return 1
+	}
+	return 0
+}
+
+func sweep(args []string, stdout, stderr io.Writer) error {
+	c, err := parseCmd("sweep", args, stderr)
+	if err != nil {
+		return err
+	}
+	var spec sweepSpec
+	if err := readSpec(c.spec, SweepFormat, &spec); err != nil {
+		return err
+	}
+	if len(spec.Parameter) == 0 {
+		return fmt.Errorf("%s: parameter: missing (the knob to sweep)", c.spec)
+	}
+	l, err := loadModel(c.spec, spec.Model, spec.Simulation)
+	if err != nil {
+		return err
+	}
+	a1, v1, err := axis(c.spec, spec.Parameter, "parameter")
+	if err != nil {
+		return err
+	}
+	knobs, paths := []string{a1.Target}, []string{"parameter.target"}
+	axes, logs := [][]float64{v1}, []bool{a1.Spacing == "log"}
+	if len(spec.Second) > 0 && string(spec.Second) != "null" {
+		a2, v2, err := axis(c.spec, spec.Second, "second")
+		if err != nil {
+			return err
+		}
+		if a2.Target == a1.Target {
+			return fmt.Errorf("%s: second.target: %q is already the first parameter", c.spec, a2.Target)
+		}
+		knobs, paths = append(knobs, a2.Target), append(paths, "second.target")
+		axes, logs = append(axes, v2), append(logs, a2.Spacing == "log")
+	}
+	if len(axes) == 2 {
+		for k, vals := range axes {
+			for i := 1; i < len(vals); i++ {
+				if !(vals[i] > vals[i-1]) {
+					return fmt.Errorf("%s: %s: a two-parameter grid needs from < to and distinct values, got %v", c.spec, []string{"parameter", "second"}[k], vals)
+				}
+			}
+		}
+	}
+	tg, err := newNetTarget(l.sys, knobs, paths)
+	if err != nil {
+		return fmt.Errorf("%s: %w", c.spec, err)
+	}
+	ro, err := l.readouts(c.spec, spec.Readouts)
+	if err != nil {
+		return err
+	}
+	plotSp := spec.PlotSpecies
+	for i, sp := range plotSp {
+		if _, ok := l.sys.SpeciesIndex(sp); !ok {
+			return fmt.Errorf("%s: plot_species[%d]: no species %q in the model", c.spec, i, sp)
+		}
+	}
+	if plotSp == nil {
+		for _, r := range ro {
+			sp := l.sys.Species()[r.Component]
+			if !contains(plotSp, sp) {
+				plotSp = append(plotSp, sp)
+			}
+		}
+	}
+	meta := &runMeta{
+		Kind: "sweep", Spec: filepath.Base(c.spec), Title: l.model.Title,
+		TimeUnit: l.model.Units.Time, AmountUnit: l.model.Units.Amount,
+		Knobs: knobs, Axes: axes, AxisLog: logs, Species: l.sys.Species(), PlotSpecies: plotSp,
+	}
+	for _, r := range ro {
+		meta.ReadoutSpecies = append(meta.ReadoutSpecies, l.sys.Species()[r.Component])
+	}
+	ode := &explore.ODE{Target: tg, TEnd: l.sim.TEnd, Settings: l.settings()}
+	prog, every := progressPrinter("sweep", stderr, c.quiet)
+	res, err := explore.Run(context.Background(), explore.Grid{Axes: axes}, ode.NewSimulator, explore.Settings{
+		Knobs: knobs, Readouts: ro, KeepTrajectories: true,
+		Workers: c.workers, Shard: c.shard, Progress: prog, ProgressEvery: every,
+	})
+	if err != nil {
+		return err
+	}
+	return finish(meta, res, c, stdout)
+}
+
+func contains(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
