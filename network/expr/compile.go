@@ -8,7 +8,8 @@ import (
 type opcode uint8
 
 // The machine keeps the top of the stack in a local variable x; "push" saves
-// x on the stack before loading a new value, and binary operators combine
+// x on the stack before loading a new value (the first load saves a
+// meaningless x, which keeps loads branch-free), and binary operators combine
 // the saved value s with x. Suffix V takes the right operand from a variable
 // slot, C from the constant; R marks reversed operands.
 const (
@@ -48,12 +49,23 @@ const (
 	opMin  // x = min(s, x)
 	opMax  // x = max(s, x)
 	opIfLE // with saved a, b, p: x = p if a <= b else x
+
+	// Loads of a whole operation on two leaves: push, then x = ...
+	opAddVV // vars[i] + vars[j]
+	opSubVV // vars[i] - vars[j]
+	opMulVV // vars[i] * vars[j]
+	opDivVV // vars[i] / vars[j]
+	opAddCV // c + vars[i]
+	opSubCV // c - vars[i]
+	opMulCV // c * vars[i]
+	opDivCV // c / vars[i]
+	opDivVC // vars[i] / c
 )
 
 type instr struct {
-	op opcode
-	i  int32
-	c  float64
+	op   opcode
+	i, j int32
+	c    float64
 }
 
 // Program is a compiled expression. Its Eval method uses scratch space held
@@ -100,10 +112,62 @@ func (c *compiler) add(op opcode, i int32, v float64) {
 	c.code = append(c.code, instr{op: op, i: i, c: v})
 }
 
-func (c *compiler) push() {
-	if len(c.code) == 0 {
-		return // nothing to save yet
+// emitLeaves emits l op r as a single load when both are leaves and such an
+// instruction exists, reporting whether it did.
+func (c *compiler) emitLeaves(op byte, l, r Node) (bool, error) {
+	lv, lVar := l.(*varNode)
+	rv, rVar := r.(*varNode)
+	ln, lNum := l.(*numNode)
+	rn, rNum := r.(*numNode)
+	var code instr
+	switch {
+	case lVar && rVar:
+		vv := map[byte]opcode{'+': opAddVV, '-': opSubVV, '*': opMulVV, '/': opDivVV}
+		o, ok := vv[op]
+		if !ok {
+			return false, nil
+		}
+		code.op = o
+	case lNum && rVar:
+		cv := map[byte]opcode{'+': opAddCV, '-': opSubCV, '*': opMulCV, '/': opDivCV}
+		o, ok := cv[op]
+		if !ok {
+			return false, nil
+		}
+		code = instr{op: o, c: ln.v}
+		lv, rv = rv, nil
+	case lVar && rNum:
+		switch op {
+		case '+':
+			code = instr{op: opAddCV, c: rn.v}
+		case '-':
+			code = instr{op: opAddCV, c: -rn.v} // v - c == -c + v exactly
+		case '*':
+			code = instr{op: opMulCV, c: rn.v}
+		case '/':
+			code = instr{op: opDivVC, c: rn.v}
+		default:
+			return false, nil
+		}
+	default:
+		return false, nil
 	}
+	i, err := c.varSlot(lv)
+	if err != nil {
+		return false, err
+	}
+	code.i = i
+	if rv != nil {
+		if code.j, err = c.varSlot(rv); err != nil {
+			return false, err
+		}
+	}
+	c.push()
+	c.code = append(c.code, code)
+	return true, nil
+}
+
+func (c *compiler) push() {
 	c.depth++
 	c.maxDepth = max(c.maxDepth, c.depth)
 }
@@ -174,6 +238,9 @@ func (c *compiler) emitBin(n *binNode) error {
 		if v, ok := numOf(n.r); ok && c.emitPowConst(n.l, v) {
 			return nil
 		}
+	}
+	if ok, err := c.emitLeaves(n.op, n.l, n.r); ok || err != nil {
+		return err
 	}
 	// Right operand a leaf: compute the left, then apply an operand form.
 	switch r := n.r.(type) {
@@ -265,24 +332,56 @@ func (p *Program) Eval(vars []float64) float64 {
 	if len(vars) < p.slots {
 		return math.NaN()
 	}
-	s := p.stack
+	code, s := p.code, p.stack
 	sp := 0 // number of saved values
 	var x float64
-	for k := range p.code {
-		in := &p.code[k]
+	for k := range code {
+		in := &code[k]
 		switch in.op {
 		case opConst:
-			if k > 0 {
-				s[sp] = x
-				sp++
-			}
+			s[sp] = x
+			sp++
 			x = in.c
 		case opVar:
-			if k > 0 {
-				s[sp] = x
-				sp++
-			}
+			s[sp] = x
+			sp++
 			x = vars[in.i]
+		case opAddVV:
+			s[sp] = x
+			sp++
+			x = vars[in.i] + vars[in.j]
+		case opSubVV:
+			s[sp] = x
+			sp++
+			x = vars[in.i] - vars[in.j]
+		case opMulVV:
+			s[sp] = x
+			sp++
+			x = vars[in.i] * vars[in.j]
+		case opDivVV:
+			s[sp] = x
+			sp++
+			x = vars[in.i] / vars[in.j]
+		case opAddCV:
+			s[sp] = x
+			sp++
+			x = in.c + vars[in.i]
+		case opSubCV:
+			s[sp] = x
+			sp++
+			x = in.c - vars[in.i]
+		case opMulCV:
+			s[sp] = x
+			sp++
+			x = in.c * vars[in.i]
+		case opDivCV:
+			s[sp] = x
+			sp++
+			x = in.c / vars[in.i]
+		case opDivVC:
+			s[sp] = x
+			sp++
+			x = vars[in.i] / in.c
 		case opAdd:
 			sp--
 			x = s[sp] + x
