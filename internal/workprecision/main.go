@@ -1,0 +1,295 @@
+// Command workprecision measures the integrators of package solve on
+// published stiff test problems and a generated network, and writes a
+// work-precision report: a Markdown table and log–log figures of error
+// against wall time and against LU factorizations.
+//
+// It is run by `make bench`:
+//
+//	go run ./internal/workprecision -out bench/out
+//
+// Reference solutions: HIRES and POLLU from the Test Set for IVP Solvers
+// (F. Mazzia and C. Magherini, University of Bari, release 2.4); the
+// generated 200-species network against Radau IIA at rtol 1e-12 (the same
+// code's tightest setting, so that row checks consistency, not truth).
+package main
+
+import (
+	"context"
+	"flag"
+	"fmt"
+	"image/color"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"runtime"
+	"slices"
+	"strings"
+	"time"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+
+	"kinetarium/network"
+	"kinetarium/plotting"
+	"kinetarium/solve"
+)
+
+// problem is one test problem with its reference state at TEnd.
+type problem struct {
+	name string
+	sys  *network.System
+	tEnd float64
+	atol float64
+	ref  []float64
+}
+
+// row is one measured point of the report.
+type row struct {
+	problem      string
+	method       solve.Method
+	rtol         float64
+	err          float64 // scaled error max |y−ref|/(atol+rtol|ref|)
+	wall         time.Duration
+	stats        solve.Stats
+	allocsPerStp float64
+	failed       string
+}
+
+func main() {
+	out := flag.String("out", "bench/out", "folder for the report and figures")
+	repeat := flag.Int("repeat", 5, "solves per point; the median wall time is reported")
+	flag.Parse()
+	if err := run(*out, *repeat); err != nil {
+		fmt.Fprintln(os.Stderr, "workprecision:", err)
+		os.Exit(1)
+	}
+}
+
+func run(out string, repeat int) error {
+	probs, err := problems()
+	if err != nil {
+		return err
+	}
+	methods := []solve.Method{solve.Auto, solve.Rosenbrock, solve.Radau, solve.BDF}
+	rtols := []float64{1e-4, 1e-5, 1e-6, 1e-7, 1e-8, 1e-9, 1e-10}
+	var rows []row
+	for _, p := range probs {
+		for _, m := range methods {
+			for _, rt := range rtols {
+				r := measure(p, m, rt, repeat)
+				rows = append(rows, r)
+				fmt.Fprintf(os.Stderr, "%-8s %-10s rtol %.0e: err %8.3g  %9.3f ms  %5d steps %5d LU %s\n",
+					p.name, name(m), rt, r.err, float64(r.wall.Microseconds())/1000, r.stats.Steps, r.stats.Factorizations, r.failed)
+			}
+		}
+	}
+	if err := os.MkdirAll(out, 0o755); err != nil {
+		return err
+	}
+	if err := os.WriteFile(filepath.Join(out, "workprecision.md"), []byte(report(rows, repeat)), 0o644); err != nil {
+		return err
+	}
+	for _, p := range probs {
+		for _, x := range []string{"time", "lu"} {
+			if err := figure(rows, p.name, x, filepath.Join(out, fmt.Sprintf("wp-%s-%s.png", strings.ToLower(p.name), x))); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
+}
+
+func name(m solve.Method) string {
+	if m == solve.Auto {
+		return "auto"
+	}
+	return string(m)
+}
+
+// problems loads HIRES and POLLU from network/testdata and generates the
+// 200-species network.
+func problems() ([]problem, error) {
+	var ps []problem
+	for _, f := range []struct {
+		name, file string
+		tEnd, atol float64
+		ref        []float64
+	}{
+		// Reference values: Test Set for IVP Solvers (Mazzia & Magherini,
+		// University of Bari, release 2.4).
+		{"HIRES", "network/testdata/hires.json", 321.8122, 1e-12, []float64{
+			0.7371312573325668e-3, 0.1442485726316185e-3, 0.5888729740967575e-4, 0.1175651343283149e-2,
+			0.2386356198831331e-2, 0.6238968252742796e-2, 0.2849998395185769e-2, 0.2850001604814231e-2}},
+		{"POLLU", "network/testdata/pollu.json", 60, 1e-14, []float64{
+			0.5646255480022769e-1, 0.1342484130422339, 0.4139734331099427e-8, 0.5523140207484359e-2,
+			0.2018977262302196e-6, 0.1464541863493966e-6, 0.7784249118997964e-1, 0.3245075353396018,
+			0.7494013383880406e-2, 0.1622293157301561e-7, 0.1135863833257075e-7, 0.2230505975721359e-2,
+			0.2087162882798630e-3, 0.1396921016840158e-4, 0.8964884856898295e-2, 0.4352846369330103e-17,
+			0.6899219696263405e-2, 0.1007803037365946e-3, 0.1772146513969984e-5, 0.5682943292316392e-4}},
+	} {
+		m, err := network.Load(f.file)
+		if err != nil {
+			return nil, err
+		}
+		sys, err := network.Compile(m)
+		if err != nil {
+			return nil, err
+		}
+		ps = append(ps, problem{f.name, sys, f.tEnd, f.atol, f.ref})
+	}
+	sys, err := network.Compile(generated(50))
+	if err != nil {
+		return nil, fmt.Errorf("generated network: %w", err)
+	}
+	g := problem{name: "NET200", sys: sys, tEnd: 1000, atol: 1e-12}
+	res, err := solve.Solve(context.Background(), sys, 0, g.tEnd, sys.Initial(),
+		solve.Settings{Method: solve.Radau, RTol: 1e-12, ATol: 1e-16, Times: []float64{g.tEnd}, NonNegative: true})
+	if err != nil {
+		return nil, fmt.Errorf("reference for the generated network: %w", err)
+	}
+	g.ref = slices.Clone(res.Y[len(res.Y)-1])
+	return append(ps, g), nil
+}
+
+// generated builds a stiff signalling-like network of 4·modules species:
+// in module i, A binds B fast and reversibly to C, C turns over slowly to D
+// and releases B, D feeds A of the next module and decays. Rate constants
+// are spread over many decades by a fixed random stream.
+func generated(modules int) *network.Model {
+	rng := rand.New(rand.NewPCG(2026, 12))
+	dec := func(lo, hi float64) float64 { return math.Pow(10, lo+(hi-lo)*rng.Float64()) }
+	m := &network.Model{Title: "generated stiff network"}
+	add := func(name string, v float64) string {
+		m.Parameters = append(m.Parameters, network.Parameter{Name: name, Value: v})
+		return name
+	}
+	for i := 0; i < modules; i++ {
+		for _, s := range "ABCD" {
+			init := 0.0
+			if s == 'B' {
+				init = dec(-1, 0)
+			}
+			if s == 'A' && i == 0 {
+				init = 1
+			}
+			m.Species = append(m.Species, network.Species{Name: fmt.Sprintf("%c%d", s, i), Initial: init})
+		}
+		r := func(eq string, rate network.Rate) {
+			m.Reactions = append(m.Reactions, network.Reaction{Name: fmt.Sprintf("r%d", len(m.Reactions)), Equation: eq, Rate: rate})
+		}
+		r(fmt.Sprintf("A%d + B%d <=> C%d", i, i, i), network.Rate{Law: network.MassAction,
+			K: network.Named(add(fmt.Sprintf("kon%d", i), dec(2, 6))), KReverse: network.Named(add(fmt.Sprintf("koff%d", i), dec(-1, 2)))})
+		r(fmt.Sprintf("C%d -> D%d + B%d", i, i, i), network.Rate{Law: network.MassAction, K: network.Named(add(fmt.Sprintf("kcat%d", i), dec(-2, 1)))})
+		if i+1 < modules {
+			r(fmt.Sprintf("D%d -> A%d", i, i+1), network.Rate{Law: network.MassAction, K: network.Named(add(fmt.Sprintf("kt%d", i), dec(-2, 0)))})
+		}
+		r(fmt.Sprintf("D%d ->", i), network.Rate{Law: network.MassAction, K: network.Named(add(fmt.Sprintf("kd%d", i), dec(-4, -2)))})
+	}
+	m.Reactions = append(m.Reactions, network.Reaction{Name: "feed", Equation: "-> A0",
+		Rate: network.Rate{Law: network.MassAction, K: network.Number(1e-3)}})
+	return m
+}
+
+// measure solves p with method m at rtol, repeat times, and reports the
+// median wall time, the stats of the last solve and the scaled error.
+func measure(p problem, m solve.Method, rtol float64, repeat int) row {
+	r := row{problem: p.name, method: m, rtol: rtol}
+	s := solve.Settings{Method: m, RTol: rtol, ATol: p.atol, Times: []float64{p.tEnd}, NonNegative: true}
+	sv := solve.NewSolver(p.sys, s)
+	y0 := p.sys.Initial()
+	var walls []time.Duration
+	var ms0, ms1 runtime.MemStats
+	for i := 0; i < repeat; i++ {
+		runtime.ReadMemStats(&ms0)
+		t0 := time.Now()
+		res, err := sv.Solve(context.Background(), 0, p.tEnd, y0)
+		walls = append(walls, time.Since(t0))
+		runtime.ReadMemStats(&ms1)
+		if err != nil {
+			r.failed = err.Error()
+			if res != nil {
+				r.stats = res.Stats
+			}
+			r.err = math.Inf(1)
+			break
+		}
+		r.stats = res.Stats
+		y := res.Y[len(res.Y)-1]
+		r.err = 0
+		for j, ref := range p.ref {
+			r.err = math.Max(r.err, math.Abs(y[j]-ref)/(p.atol+rtol*math.Abs(ref)))
+		}
+		if r.stats.Steps > 0 {
+			r.allocsPerStp = float64(ms1.Mallocs-ms0.Mallocs) / float64(r.stats.Steps)
+		}
+	}
+	slices.Sort(walls)
+	r.wall = walls[len(walls)/2]
+	return r
+}
+
+func report(rows []row, repeat int) string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "# Work-precision report\n\nMeasured %s on %s/%s with %d CPUs (GOMAXPROCS %d); wall time is the median of %d solves.\n",
+		time.Now().UTC().Format("2006-01-02"), runtime.GOOS, runtime.GOARCH, runtime.NumCPU(), runtime.GOMAXPROCS(0), repeat)
+	b.WriteString("Scaled error = max_i |y_i − ref_i| / (atol + rtol·|ref_i|) at the final time. Allocations per step count the whole solve (set-up included) divided by its steps.\n\n")
+	b.WriteString("| problem | method | rtol | scaled error | wall (ms) | steps | rejected | RHS | Jacobians | LU | allocs/step |\n|---|---|---|---|---|---|---|---|---|---|---|\n")
+	for _, r := range rows {
+		e := fmt.Sprintf("%.3g", r.err)
+		if r.failed != "" {
+			e = "failed: " + r.failed
+		}
+		fmt.Fprintf(&b, "| %s | %s | %.0e | %s | %.3f | %d | %d | %d | %d | %d | %.2f |\n", r.problem, name(r.method), r.rtol, e,
+			float64(r.wall.Microseconds())/1000, r.stats.Steps, r.stats.Rejected, r.stats.RHSEvals, r.stats.JacobianEvals, r.stats.Factorizations, r.allocsPerStp)
+	}
+	return b.String()
+}
+
+// figure draws scaled error against wall time (x == "time") or against LU
+// factorizations (x == "lu") for one problem, one line per method.
+func figure(rows []row, prob, x, path string) error {
+	p := plot.New()
+	p.Title.Text = prob + ": work against precision"
+	p.X.Scale, p.Y.Scale = plot.LogScale{}, plot.LogScale{}
+	p.X.Tick.Marker, p.Y.Tick.Marker = plot.LogTicks{Prec: -1}, plot.LogTicks{Prec: -1}
+	p.Y.Label.Text = "scaled error at the final time"
+	p.X.Label.Text = "wall time (ms)"
+	if x == "lu" {
+		p.X.Label.Text = "LU factorizations"
+	}
+	slot := 0
+	for _, m := range []solve.Method{solve.Auto, solve.Rosenbrock, solve.Radau, solve.BDF} {
+		var xy plotter.XYs
+		for _, r := range rows {
+			if r.problem != prob || r.method != m || r.failed != "" || r.err <= 0 {
+				continue
+			}
+			v := float64(r.wall.Nanoseconds()) / 1e6
+			if x == "lu" {
+				v = float64(r.stats.Factorizations)
+			}
+			if v > 0 {
+				xy = append(xy, plotter.XY{X: v, Y: r.err})
+			}
+		}
+		if len(xy) == 0 {
+			continue
+		}
+		l, pts, err := plotter.NewLinePoints(xy)
+		if err != nil {
+			return err
+		}
+		l.Color = plotting.Colour(slot)
+		l.Width = vg.Points(1.5)
+		pts.Color = l.Color
+		pts.Shape = nil
+		p.Add(l, pts)
+		p.Legend.Add(name(m), l)
+		slot++
+	}
+	p.Legend.Top = true
+	p.BackgroundColor = color.White
+	return plotting.Save(p, path, 16*vg.Centimeter, 11*vg.Centimeter, 150)
+}
