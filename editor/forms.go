@@ -494,7 +494,7 @@ func newCompartmentForm(ed *Editor) *compartmentForm {
 	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &m.Compartments[i].Note })
 	f.addField("Note", "note", note)
 	f.loads = append(f.loads, load)
-	rule := widget.NewLabel("Rule: concentrations are per volume of the species' own compartment; a reaction between compartments converts amounts using the volumes.")
+	rule := widget.NewLabel("Rule: a species' concentration is per volume of its own compartment. A reaction's rate is per volume of the compartment of its first reactant (of its first product when it has no reactants); a species in another compartment changes by that rate times the ratio of the two volumes.")
 	rule.Wrapping = fyne.TextWrapWord
 	rule.Importance = widget.LowImportance
 	f.box.Add(rule)

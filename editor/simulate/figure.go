@@ -1,0 +1,183 @@
+package simulate
+
+import (
+	"image"
+	"math"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+
+	"kinetarium/plotting"
+)
+
+// Range is a rectangle in data coordinates, for zooming.
+type Range struct {
+	XMin, XMax, YMin, YMax float64
+}
+
+// View is how the user looks at an outcome: the same options give the same
+// figure on screen and in exported files.
+type View struct {
+	LogX, LogY bool
+	// Hidden lists species not drawn, by name.
+	Hidden map[string]bool
+	// Previous is an earlier outcome drawn faintly beneath, or nil.
+	Previous *Outcome
+	// Zoom, when not nil, is the part of the data shown.
+	Zoom *Range
+}
+
+// Trajectories returns the outcome as plotting's series.
+func (o *Outcome) Trajectories() plotting.Trajectories {
+	return plotting.Trajectories{Times: o.T, Names: o.Names, Values: o.Y}
+}
+
+// Figure draws the outcome with the view. Each species keeps the colour of
+// its position in the model, whichever species are hidden.
+func Figure(o *Outcome, v View) (*plot.Plot, error) {
+	opt := plotting.Options{
+		Title:  o.Title,
+		XLabel: "time", XUnit: o.TimeUnit,
+		YLabel: "concentration", YUnit: o.AmountUnit,
+		LogX: v.LogX, LogY: v.LogY,
+		Visible:     make([]bool, len(o.Names)),
+		ColourIndex: make([]int, len(o.Names)),
+	}
+	for j, n := range o.Names {
+		opt.Visible[j] = !v.Hidden[n]
+		opt.ColourIndex[j] = j
+	}
+	if v.Previous != nil && len(v.Previous.T) > 0 {
+		prev := v.Previous.Trajectories()
+		opt.Overlay = &prev
+	}
+	p, err := plotting.TrajectoryPlot(o.Trajectories(), opt)
+	if err != nil {
+		return nil, err
+	}
+	if z := v.Zoom; z != nil && validRange(z, v) {
+		p.X.Min, p.X.Max = z.XMin, z.XMax
+		p.Y.Min, p.Y.Max = z.YMin, z.YMax
+	}
+	return p, nil
+}
+
+func validRange(z *Range, v View) bool {
+	ok := func(a, b float64, log bool) bool {
+		return a < b && !math.IsInf(a, 0) && !math.IsInf(b, 0) && (!log || a > 0)
+	}
+	return ok(z.XMin, z.XMax, v.LogX) && ok(z.YMin, z.YMax, v.LogY)
+}
+
+// screenDPI is the resolution plotting.Render draws at.
+const screenDPI = 96
+
+// Frame maps between pixels of a figure rendered at a given size and data
+// coordinates, using the figure's data area.
+type Frame struct {
+	// Area is the data area in pixels, origin at the top left.
+	Area       image.Rectangle
+	xMin, xMax float64
+	yMin, yMax float64
+	logX, logY bool
+}
+
+// FrameOf returns the frame of p rendered at wPx × hPx pixels with
+// plotting.Render. Call it after Figure and before changing p.
+func FrameOf(p *plot.Plot, wPx, hPx int) Frame {
+	w := vg.Length(wPx) * vg.Inch / screenDPI
+	h := vg.Length(hPx) * vg.Inch / screenDPI
+	c := draw.Canvas{Rectangle: vg.Rectangle{Max: vg.Point{X: w, Y: h}}}
+	da := p.DataCanvas(c)
+	px := func(l vg.Length) int { return int(math.Round(float64(l / vg.Inch * screenDPI))) }
+	_, logX := p.X.Scale.(plot.LogScale)
+	_, logY := p.Y.Scale.(plot.LogScale)
+	return Frame{
+		Area: image.Rect(px(da.Min.X), hPx-px(da.Max.Y), px(da.Max.X), hPx-px(da.Min.Y)),
+		xMin: p.X.Min, xMax: p.X.Max, yMin: p.Y.Min, yMax: p.Y.Max,
+		logX: logX, logY: logY,
+	}
+}
+
+// unnorm maps f in [0, 1] to [lo, hi] on a linear or log scale.
+func unnorm(f, lo, hi float64, log bool) float64 {
+	if log {
+		return math.Exp(math.Log(lo) + f*(math.Log(hi)-math.Log(lo)))
+	}
+	return lo + f*(hi-lo)
+}
+
+// norm maps v in [lo, hi] to [0, 1] on a linear or log scale.
+func norm(v, lo, hi float64, log bool) float64 {
+	if log {
+		return (math.Log(v) - math.Log(lo)) / (math.Log(hi) - math.Log(lo))
+	}
+	return (v - lo) / (hi - lo)
+}
+
+// ToData returns the data coordinates of pixel (x, y) and whether it lies
+// inside the data area.
+func (f Frame) ToData(x, y float64) (dx, dy float64, inside bool) {
+	a := f.Area
+	if a.Dx() <= 0 || a.Dy() <= 0 {
+		return 0, 0, false
+	}
+	fx := (x - float64(a.Min.X)) / float64(a.Dx())
+	fy := (float64(a.Max.Y) - y) / float64(a.Dy())
+	inside = fx >= 0 && fx <= 1 && fy >= 0 && fy <= 1
+	return unnorm(fx, f.xMin, f.xMax, f.logX), unnorm(fy, f.yMin, f.yMax, f.logY), inside
+}
+
+// ToPixel returns the pixel position of data point (x, y); ok is false
+// when a log axis cannot show it.
+func (f Frame) ToPixel(x, y float64) (px, py float64, ok bool) {
+	if f.logX && x <= 0 || f.logY && y <= 0 {
+		return 0, 0, false
+	}
+	a := f.Area
+	px = float64(a.Min.X) + norm(x, f.xMin, f.xMax, f.logX)*float64(a.Dx())
+	py = float64(a.Max.Y) - norm(y, f.yMin, f.yMax, f.logY)*float64(a.Dy())
+	return px, py, true
+}
+
+// Point is a data point of one species.
+type Point struct {
+	Species int // index into Outcome.Names
+	Index   int // index into Outcome.T
+	T, Y    float64
+	Dist    float64 // distance from the pointer in pixels
+}
+
+// Nearest returns the drawn data point nearest to pixel (x, y) among the
+// species not hidden by v, and whether there is one within maxDist pixels.
+func Nearest(o *Outcome, v View, f Frame, x, y, maxDist float64) (Point, bool) {
+	best := Point{Dist: math.Inf(1)}
+	for j, name := range o.Names {
+		if v.Hidden[name] {
+			continue
+		}
+		for i, t := range o.T {
+			val := o.Y[i][j]
+			px, py, ok := f.ToPixel(t, val)
+			if !ok || math.IsNaN(px) || math.IsNaN(py) {
+				continue
+			}
+			if d := math.Hypot(px-x, py-y); d < best.Dist {
+				best = Point{Species: j, Index: i, T: t, Y: val, Dist: d}
+			}
+		}
+	}
+	return best, best.Dist <= maxDist
+}
+
+// Render draws the outcome with the view at wPx × hPx pixels and returns
+// the image with its frame.
+func Render(o *Outcome, v View, wPx, hPx int) (image.Image, Frame, error) {
+	p, err := Figure(o, v)
+	if err != nil {
+		return nil, Frame{}, err
+	}
+	fr := FrameOf(p, wPx, hPx)
+	return plotting.Render(p, wPx, hPx), fr, nil
+}

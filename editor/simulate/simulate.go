@@ -1,0 +1,134 @@
+// Package simulate runs a reaction-network model and draws its time
+// courses, without any widgets: it compiles a model, integrates it with the
+// model's run settings, turns the result into a figure with the on-screen
+// view (log axes, hidden species, zoom, previous run), maps pointer
+// positions on the figure back to data, writes the result as CSV, and
+// coordinates runs started from the user interface so that a stale result
+// is never shown (Controller).
+package simulate
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"time"
+
+	"kinetarium/network"
+	"kinetarium/solve"
+)
+
+// Outcome is the result of one simulation of a model.
+type Outcome struct {
+	Title      string
+	TimeUnit   string
+	AmountUnit string
+	Names      []string    // species, in model order
+	T          []float64   // output times
+	Y          [][]float64 // Y[i][j] is species j at T[i]
+	Stats      solve.Stats
+	Compile    time.Duration // time spent compiling the model
+	Elapsed    time.Duration // compile and solve together
+	// Err is the reason the solve stopped early, or nil. T and Y then hold
+	// the part computed before it stopped.
+	Err error
+}
+
+// Settings converts a model's simulation settings into solver settings
+// and output times.
+func Settings(sim network.Simulation) (solve.Settings, error) {
+	s := sim.WithDefaults()
+	var m solve.Method
+	switch s.Method {
+	case "auto":
+		m = solve.Auto
+	case "rosenbrock":
+		m = solve.Rosenbrock
+	case "radau":
+		m = solve.Radau
+	case "bdf":
+		m = solve.BDF
+	case "explicit":
+		m = solve.Explicit
+	default:
+		return solve.Settings{}, fmt.Errorf("simulation method %q is not known; expected one of %v", s.Method, network.Methods)
+	}
+	return solve.Settings{
+		RTol:        s.RTol,
+		ATol:        s.ATol,
+		Method:      m,
+		Times:       network.OutputTimes(s.TEnd, s.Output),
+		NonNegative: s.KeepNonNegative(),
+	}, nil
+}
+
+// Run compiles m and integrates it from time 0 to the model's end time.
+// progress, when not nil, is called with the fraction done from the
+// solver's goroutine. A model with errors gives an error and no outcome; a
+// solve that fails or is cancelled gives the partial outcome with Err set
+// and the same error.
+func Run(ctx context.Context, m *network.Model, progress func(float64)) (*Outcome, error) {
+	start := time.Now()
+	sys, err := network.Compile(m)
+	if err != nil {
+		return nil, fmt.Errorf("the model cannot be simulated: %w", err)
+	}
+	compiled := time.Since(start)
+	set, err := Settings(m.Simulation)
+	if err != nil {
+		return nil, err
+	}
+	set.Progress = progress
+	sim := m.Simulation.WithDefaults()
+	res, serr := solve.Solve(ctx, sys, 0, sim.TEnd, sys.Initial(), set)
+	out := &Outcome{
+		Title: m.Title, TimeUnit: m.Units.Time, AmountUnit: m.Units.Amount,
+		Names:   append([]string(nil), sys.Species()...),
+		Compile: compiled,
+	}
+	if res != nil {
+		out.T, out.Y, out.Stats = res.T, res.Y, res.Stats
+	}
+	out.Elapsed = time.Since(start)
+	if serr != nil {
+		if errors.Is(serr, context.Canceled) {
+			serr = fmt.Errorf("cancelled: %w", serr)
+		}
+		out.Err = serr
+		return out, serr
+	}
+	return out, nil
+}
+
+// MethodSummary describes in a few words the method or methods used, such
+// as "Rosenbrock (RODAS4)", with the automatic choice's reason when there
+// is one.
+func (o *Outcome) MethodSummary() string {
+	if o == nil {
+		return ""
+	}
+	s := ""
+	for i, m := range o.Stats.Methods {
+		if i > 0 {
+			s += " → "
+		}
+		s += methodName(m)
+	}
+	if s == "" {
+		s = "—"
+	}
+	return s
+}
+
+func methodName(m solve.Method) string {
+	switch m {
+	case solve.Rosenbrock:
+		return "Rosenbrock (RODAS4)"
+	case solve.Radau:
+		return "Radau IIA"
+	case solve.BDF:
+		return "BDF"
+	case solve.Explicit:
+		return "Dormand–Prince"
+	}
+	return string(m)
+}
