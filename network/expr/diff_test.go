@@ -109,6 +109,12 @@ func TestDiffRandom(t *testing.T) {
 		if math.IsNaN(f) || math.Abs(f) > 1e8 || nearKink(n, env, 1e-2) {
 			continue
 		}
+		// The compiled program agrees with the tree walker.
+		if p, err := Compile(n, xyzSlot); err != nil {
+			t.Fatalf("Compile(%s): %v", n, err)
+		} else if got := p.Eval(pt[:]); math.Abs(got-f) > 1e-12*math.Max(1, math.Abs(f)) {
+			t.Errorf("compiled %s at %v = %v, tree walk gives %v", n, pt, got, f)
+		}
 		for k, name := range names {
 			d := Diff(n, name)
 			p, err := Compile(d, xyzSlot)

@@ -64,7 +64,8 @@ func (*negNode) node()  {}
 func (*binNode) node()  {}
 func (*callNode) node() {}
 
-// Num returns a number literal.
+// Num returns a number literal. It should be finite for String to re-parse
+// to the same string.
 func Num(v float64) Node { return &numNode{v: v} }
 
 // Var returns a reference to the variable name. The name should be an

@@ -3,7 +3,7 @@ package expr
 import "math"
 
 // Simplify returns an equivalent tree with constants folded and neutral
-// terms removed: x+0, x-0, 0-x, x*1, x*0, x/1, 0/x, x^1, x^0, 1^x, -(-x),
+// terms removed: x+0, x-0, 0-x, x-x, x*1, x*0, x/1, 0/x, x^1, x^0, 1^x, -(-x),
 // a + -b, a - -b, negations pulled out of products and quotients, and pow(a,b)
 // written as a^b. Numeric constants in products are gathered in front.
 // Folding is skipped where the result would be infinite or NaN, so 1/0 stays
