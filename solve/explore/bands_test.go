@@ -102,3 +102,30 @@ func TestSummaryMemoryBounded(t *testing.T) {
 		t.Errorf("Add inside the used range allocates %v times", a)
 	}
 }
+
+func BenchmarkSummaryAdd(b *testing.B) {
+	var s Summary
+	rng := rand.New(rand.NewPCG(3, 4))
+	vals := make([]float64, 1024)
+	for i := range vals {
+		vals[i] = math.Exp(rng.NormFloat64())
+	}
+	b.ReportAllocs()
+	i := 0
+	for b.Loop() {
+		s.Add(vals[i&1023])
+		i++
+	}
+}
+
+func BenchmarkSummaryQuantile(b *testing.B) {
+	var s Summary
+	rng := rand.New(rand.NewPCG(3, 4))
+	for range 10000 {
+		s.Add(math.Exp(rng.NormFloat64()))
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		_ = s.Quantile(0.95)
+	}
+}

@@ -12,6 +12,8 @@ import (
 type Design interface {
 	// Len is the number of points.
 	Len() int
+	// Dim is the number of knobs, the length of every point.
+	Dim() int
 	// Point writes the knob values of point i, 0 ≤ i < Len(), into x.
 	Point(i int, x []float64)
 }
@@ -36,6 +38,9 @@ func (g Grid) Len() int {
 	return n
 }
 
+// Dim implements Design.
+func (g Grid) Dim() int { return len(g.Axes) }
+
 // Point implements Design.
 func (g Grid) Point(i int, x []float64) {
 	for k := len(g.Axes) - 1; k >= 0; k-- {
@@ -50,6 +55,14 @@ type Points [][]float64
 
 // Len implements Design.
 func (p Points) Len() int { return len(p) }
+
+// Dim implements Design: the length of the first point, 0 when empty.
+func (p Points) Dim() int {
+	if len(p) == 0 {
+		return 0
+	}
+	return len(p[0])
+}
 
 // Point implements Design.
 func (p Points) Point(i int, x []float64) { copy(x, p[i]) }

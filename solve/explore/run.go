@@ -110,6 +110,14 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 	if err := s.Shard.validate(); err != nil {
 		return nil, err
 	}
+	if d.Dim() != len(s.Knobs) {
+		return nil, fmt.Errorf("explore: the design has %d knobs but Settings.Knobs names %d", d.Dim(), len(s.Knobs))
+	}
+	for _, r := range s.Readouts {
+		if err := r.Validate(math.MaxInt); err != nil {
+			return nil, fmt.Errorf("explore: %w", err)
+		}
+	}
 	idx := s.Shard.indices(d.Len())
 	res := &Result{
 		Size:  d.Len(),

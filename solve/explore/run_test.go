@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -295,5 +296,19 @@ func TestCancelAndProgress(t *testing.T) {
 	})
 	if err != nil || len(fractions) == 0 || fractions[len(fractions)-1] != 1 {
 		t.Errorf("progress %v, error %v", fractions, err)
+	}
+}
+
+func TestRunChecksSettings(t *testing.T) {
+	times := grid(3, 1)
+	g := Grid{Axes: [][]float64{{1, 2}, {3}}}
+	if _, err := Run(context.Background(), g, newDecaySim(times, 1, 0), Settings{Knobs: []string{"k"}}); err == nil || !strings.Contains(err.Error(), "2 knobs") {
+		t.Errorf("knob count mismatch: %v", err)
+	}
+	if _, err := Run(context.Background(), g, newDecaySim(times, 1, 0), Settings{Knobs: []string{"k", "j"}, Readouts: []Readout{{Name: "r", Kind: "mean"}}}); err == nil || !strings.Contains(err.Error(), `"r"`) {
+		t.Errorf("bad readout: %v", err)
+	}
+	if _, err := Run(context.Background(), g, newDecaySim(times, 1, 0), Settings{Knobs: []string{"k", "j"}, Shard: Shard{I: 2, N: 2}}); err == nil {
+		t.Error("bad shard: no error")
 	}
 }
