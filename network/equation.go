@@ -226,7 +226,7 @@ func (eq Equation) String() string {
 				b.WriteString(" + ")
 			}
 			if t.Coef != 1 {
-				b.WriteString(strconv.FormatFloat(t.Coef, 'g', -1, 64))
+				b.WriteString(strconv.FormatFloat(t.Coef, 'f', -1, 64))
 				b.WriteByte(' ')
 			}
 			b.WriteString(t.Species)
