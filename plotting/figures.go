@@ -71,10 +71,10 @@ func FamilyPlot(times []float64, curves [][]float64, values []float64, paramName
 				k++
 			}
 		}
-		ns.count(k, "times ≤ 0 (log time axis)")
+		ns.count(k, "time ≤ 0 on the log axis", "times ≤ 0 on the log axis")
 	}
-	ns.count(dropped, "values ≤ 0 (log axis)")
-	ns.count(nonFinite, "NaN or infinite values")
+	ns.count(dropped, "value ≤ 0 on the log axis", "values ≤ 0 on the log axis")
+	ns.count(nonFinite, "NaN or infinite value", "NaN or infinite values")
 	if lo <= hi {
 		p.Add(newColourBar(lo, hi, logScale, paramName))
 	}
@@ -109,8 +109,8 @@ func XYPlot(x, y []float64, o Options) (*plot.Plot, error) {
 			dropped++
 		}
 	}
-	ns.count(dropped, "points ≤ 0 (log axis)")
-	ns.count(nonFinite, "points with NaN or infinite values")
+	ns.count(dropped, "point ≤ 0 on a log axis", "points ≤ 0 on a log axis")
+	ns.count(nonFinite, "point with a NaN or infinite value", "points with NaN or infinite values")
 	finish(p, o, ns)
 	return p, nil
 }
@@ -148,8 +148,8 @@ func HeatMap(xs, ys []float64, z [][]float64, o Options, zLabel string) (*plot.P
 		return idx
 	}
 	ix, iy := keep(xs, o.LogX), keep(ys, o.LogY)
-	ns.count(len(xs)-len(ix), "x values ≤ 0 (log axis)")
-	ns.count(len(ys)-len(iy), "y values ≤ 0 (log axis)")
+	ns.count(len(xs)-len(ix), "x ≤ 0 on the log axis", "x values ≤ 0 on the log axis")
+	ns.count(len(ys)-len(iy), "y ≤ 0 on the log axis", "y values ≤ 0 on the log axis")
 	if len(ix) == 0 || len(iy) == 0 {
 		ns.addf("no data")
 		finish(p, o, ns)
@@ -177,7 +177,7 @@ func HeatMap(xs, ys []float64, z [][]float64, o Options, zLabel string) (*plot.P
 			}
 		}
 	}
-	ns.count(blank, "cells with NaN or infinite values (blank)")
+	ns.count(blank, "cell with a NaN or infinite value", "cells with NaN or infinite values")
 	colour := func(v float64) color.Color {
 		if hi == lo {
 			return ScaleColour(0.5)
@@ -273,10 +273,10 @@ func BandPlot(times []float64, median, lo5, hi95, lo25, hi75 []float64, name str
 				k++
 			}
 		}
-		ns.count(k, "times ≤ 0 (log time axis)")
+		ns.count(k, "time ≤ 0 on the log axis", "times ≤ 0 on the log axis")
 	}
-	ns.count(dropped, "values ≤ 0 (log axis)")
-	ns.count(nonFinite, "NaN or infinite values")
+	ns.count(dropped, "value ≤ 0 on the log axis", "values ≤ 0 on the log axis")
+	ns.count(nonFinite, "NaN or infinite value", "NaN or infinite values")
 	finish(p, o, ns)
 	return p, nil
 }
@@ -306,33 +306,14 @@ func Histogram(values []float64, bins int, o Options) (*plot.Plot, error) {
 			lo, hi = math.Min(lo, v), math.Max(hi, v)
 		}
 	}
-	ns.count(dropped, "values ≤ 0 (log axis)")
-	ns.count(nonFinite, "NaN or infinite values")
+	ns.count(dropped, "value ≤ 0 on the log axis", "values ≤ 0 on the log axis")
+	ns.count(nonFinite, "NaN or infinite value", "NaN or infinite values")
 	if len(kept) == 0 {
 		ns.addf("no data")
 		finish(p, o, ns)
 		return p, nil
 	}
-	if bins <= 0 {
-		bins = int(math.Ceil(math.Log2(float64(len(kept))))) + 1
-	}
-	fwd, inv := func(v float64) float64 { return v }, func(v float64) float64 { return v }
-	if o.LogX {
-		fwd, inv = math.Log10, func(v float64) float64 { return math.Pow(10, v) }
-	}
-	a, b := fwd(lo), fwd(hi)
-	if a == b {
-		a, b = a-0.5, b+0.5
-	}
-	edges := make([]float64, bins+1)
-	for i := range edges {
-		edges[i] = inv(a + (b-a)*float64(i)/float64(bins))
-	}
-	counts := make([]float64, bins)
-	for _, v := range kept {
-		i := int(float64(bins) * (fwd(v) - a) / (b - a))
-		counts[min(max(i, 0), bins-1)]++
-	}
+	edges, counts := histogramBins(kept, lo, hi, bins, o.LogX)
 	p.Add(&bars{
 		edges: edges, counts: counts, logX: o.LogX, logY: o.LogY,
 		fill: withAlpha(Colour(0), 0.6),
@@ -340,4 +321,31 @@ func Histogram(values []float64, bins int, o Options) (*plot.Plot, error) {
 	})
 	finish(p, o, ns)
 	return p, nil
+}
+
+// histogramBins sorts the finite values v, all within [lo, hi], into bins
+// of equal width (in log10 when log) and returns the bins+1 edges and the
+// counts. bins ≤ 0 chooses Sturges' rule, ⌈log2 n⌉ + 1.
+func histogramBins(v []float64, lo, hi float64, bins int, log bool) (edges, counts []float64) {
+	if bins <= 0 {
+		bins = int(math.Ceil(math.Log2(float64(len(v))))) + 1
+	}
+	fwd, inv := func(v float64) float64 { return v }, func(v float64) float64 { return v }
+	if log {
+		fwd, inv = math.Log10, func(v float64) float64 { return math.Pow(10, v) }
+	}
+	a, b := fwd(lo), fwd(hi)
+	if a == b {
+		a, b = a-0.5, b+0.5
+	}
+	edges = make([]float64, bins+1)
+	for i := range edges {
+		edges[i] = inv(a + (b-a)*float64(i)/float64(bins))
+	}
+	counts = make([]float64, bins)
+	for _, x := range v {
+		i := int(float64(bins) * (fwd(x) - a) / (b - a))
+		counts[min(max(i, 0), bins-1)]++
+	}
+	return edges, counts
 }

@@ -2,7 +2,9 @@ package plotting
 
 import (
 	"fmt"
+	"git.sr.ht/~sbinet/gg"
 	"image"
+	"image/color"
 	"io"
 	"os"
 	"path/filepath"
@@ -99,15 +101,38 @@ func writeAtomic(path string, src io.WriterTo) (err error) {
 // screenDPI is the resolution Render assumes: one point is 96/72 pixels.
 const screenDPI = 96
 
-// Render draws p into a new wPx × hPx raster image for display on screen.
-// Sizes below 1 pixel are raised to 1.
+// Render draws p into a new wPx × hPx raster image for display on screen,
+// at 96 dots per inch. Sizes below 1 pixel are raised to 1.
 func Render(p *plot.Plot, wPx, hPx int) image.Image {
-	wPx, hPx = max(wPx, 1), max(hPx, 1)
-	w := vg.Length(wPx) * vg.Inch / screenDPI
-	h := vg.Length(hPx) * vg.Inch / screenDPI
-	c := vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(screenDPI))
+	img := image.NewRGBA(image.Rect(0, 0, max(wPx, 1), max(hPx, 1)))
+	RenderInto(p, img)
+	return img
+}
+
+// RenderInto draws p over the whole of dst at 96 dots per inch, reusing
+// dst's pixels: a display that redraws often can keep one image.
+func RenderInto(p *plot.Plot, dst *image.RGBA) {
+	ctx := gg.NewContextForRGBA(dst)
+	ctx.SetLineCapButt()
+	ctx.InvertY()
+	// The canvas starts cleared to white by a plain fill; a white plot
+	// background need not be filled again, anti-aliased, over the whole area.
+	c := vgimg.NewWith(vgimg.UseImageWithContext(dst, ctx), vgimg.UseDPI(screenDPI))
 	if p != nil {
+		if isWhite(p.BackgroundColor) {
+			saved := p.BackgroundColor
+			p.BackgroundColor = nil
+			defer func() { p.BackgroundColor = saved }()
+		}
 		p.Draw(draw.New(c))
 	}
-	return c.Image()
+}
+
+// isWhite reports whether c is opaque white.
+func isWhite(c color.Color) bool {
+	if c == nil {
+		return false
+	}
+	r, g, b, a := c.RGBA()
+	return r == 0xFFFF && g == 0xFFFF && b == 0xFFFF && a == 0xFFFF
 }

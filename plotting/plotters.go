@@ -24,6 +24,7 @@ type curve struct {
 
 	pts  []vg.Point
 	segs [][]vg.Point
+	keep []bool
 }
 
 // Plot implements plot.Plotter.
@@ -50,7 +51,14 @@ func (c *curve) Plot(dc draw.Canvas, p *plot.Plot) {
 	}
 	c.pts, c.segs = pts, segs
 	if c.line.Width > 0 {
-		dc.StrokeLines(c.line, dc.ClipLinesXY(segs...)...)
+		lines := segs
+		if c.glyph == nil {
+			// Simplify in place: pts is rebuilt on every draw.
+			for i, s := range segs {
+				segs[i], c.keep = simplify(s, simplifyTol, c.keep)
+			}
+		}
+		dc.StrokeLines(c.line, dc.ClipLinesXY(lines...)...)
 	}
 	if c.glyph != nil {
 		for _, pt := range pts {
@@ -59,6 +67,67 @@ func (c *curve) Plot(dc draw.Canvas, p *plot.Plot) {
 			}
 		}
 	}
+}
+
+// simplifyTol is how far, in points, a polyline vertex may lie from the
+// straight line through its neighbours and still be dropped: a fifth of a
+// pixel at 96 dpi, below what the eye or the rasteriser can tell.
+const simplifyTol = 0.15
+
+// simplify returns the vertices of pts that the Douglas–Peucker algorithm
+// keeps at tolerance tol (Douglas & Peucker 1973): every dropped vertex lies
+// within tol of the segment that replaces it. Ends are always kept. Long
+// smooth stretches of a trajectory collapse to a few segments, which makes
+// stroking much cheaper. keep is work space, grown as needed and returned.
+func simplify(pts []vg.Point, tol vg.Length, keep []bool) ([]vg.Point, []bool) {
+	n := len(pts)
+	if n < 3 {
+		return pts, keep
+	}
+	if cap(keep) < n {
+		keep = make([]bool, n)
+	}
+	keep = keep[:n]
+	clear(keep)
+	keep[0], keep[n-1] = true, true
+	type span struct{ i, j int }
+	var stackBuf [64]span
+	stack := append(stackBuf[:0], span{0, n - 1})
+	for len(stack) > 0 {
+		s := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		a, b := pts[s.i], pts[s.j]
+		dx, dy := b.X-a.X, b.Y-a.Y
+		len2 := dx*dx + dy*dy
+		worst, far := vg.Length(-1), -1
+		for k := s.i + 1; k < s.j; k++ {
+			q := pts[k]
+			var d2 vg.Length
+			if len2 == 0 {
+				d2 = (q.X-a.X)*(q.X-a.X) + (q.Y-a.Y)*(q.Y-a.Y)
+			} else {
+				// Squared distance from the segment a–b.
+				t := ((q.X-a.X)*dx + (q.Y-a.Y)*dy) / len2
+				t = max(0, min(1, t))
+				ex, ey := a.X+t*dx-q.X, a.Y+t*dy-q.Y
+				d2 = ex*ex + ey*ey
+			}
+			if d2 > worst {
+				worst, far = d2, k
+			}
+		}
+		if far >= 0 && worst > tol*tol {
+			keep[far] = true
+			stack = append(stack, span{s.i, far}, span{far, s.j})
+		}
+	}
+	out := pts[:0]
+	for i, k := range keep {
+		if k {
+			out = append(out, pts[i])
+		}
+	}
+	return out, keep
 }
 
 // DataRange implements plot.DataRanger over the points that can be shown.

@@ -85,17 +85,36 @@ func AxisLabel(quantity, unit string) string {
 const lineWidth = 1.5 // points
 
 // notes collects what a figure leaves out, to be shown under its title.
-type notes []string
-
-func (n *notes) addf(format string, args ...any) {
-	*n = append(*n, fmt.Sprintf(format, args...))
+type notes struct {
+	info   []string // e.g. "no data"
+	hidden []string // e.g. "3 values ≤ 0 on the log axis"
 }
 
-// countNote adds "k <what> not shown" when k > 0.
-func (n *notes) count(k int, what string) {
-	if k > 0 {
-		n.addf("%d %s not shown", k, what)
+func (n *notes) addf(format string, args ...any) {
+	n.info = append(n.info, fmt.Sprintf(format, args...))
+}
+
+// count records k things left out, described by what (plural) or one (for
+// k = 1), when k > 0.
+func (n *notes) count(k int, one, what string) {
+	switch {
+	case k == 1:
+		n.hidden = append(n.hidden, "1 "+one)
+	case k > 1:
+		n.hidden = append(n.hidden, fmt.Sprintf("%d %s", k, what))
 	}
+}
+
+// line returns the note line, or "".
+func (n notes) line() string {
+	parts := n.info
+	if len(n.hidden) > 0 {
+		parts = append(parts[:len(parts):len(parts)], "not shown: "+strings.Join(n.hidden, ", "))
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	return "(" + strings.Join(parts, "; ") + ")"
 }
 
 // newPlot returns a plot with the labels and scales of o.
@@ -125,8 +144,7 @@ func newPlot(o Options) *plot.Plot {
 // their scales, so that drawing never panics.
 func finish(p *plot.Plot, o Options, n notes) {
 	title := o.Title
-	if len(n) > 0 {
-		note := "(" + strings.Join(n, "; ") + ")"
+	if note := n.line(); note != "" {
 		if title == "" {
 			title = note
 		} else {

@@ -145,10 +145,10 @@ func TrajectoryPlot(tr Trajectories, o Options) (*plot.Plot, error) {
 				dropped++
 			}
 		}
-		ns.count(dropped, "output times ≤ 0 (log time axis)")
+		ns.count(dropped, "time ≤ 0 on the log axis", "times ≤ 0 on the log axis")
 	}
-	ns.count(nonPositive, "values ≤ 0 (log axis)")
-	ns.count(nonFinite, "NaN or infinite values")
+	ns.count(nonPositive, "value ≤ 0 on the log axis", "values ≤ 0 on the log axis")
+	ns.count(nonFinite, "NaN or infinite value", "NaN or infinite values")
 	finish(p, o, ns)
 	return p, nil
 }
