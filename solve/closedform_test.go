@@ -17,10 +17,10 @@ type funcSystem struct {
 	j    func(t float64, y []float64, jac *mat.Dense)
 }
 
-func (s *funcSystem) Dim() int                                     { return s.n }
-func (s *funcSystem) RHS(t float64, y, dy []float64)               { s.f(t, y, dy) }
+func (s *funcSystem) Dim() int                                      { return s.n }
+func (s *funcSystem) RHS(t float64, y, dy []float64)                { s.f(t, y, dy) }
 func (s *funcSystem) Jacobian(t float64, y []float64, j *mat.Dense) { s.j(t, y, j) }
-func (s *funcSystem) Autonomous() bool                             { return s.auto }
+func (s *funcSystem) Autonomous() bool                              { return s.auto }
 
 // closedFormCase is a system with a known exact solution.
 type closedFormCase struct {
