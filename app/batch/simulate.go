@@ -1,0 +1,346 @@
+package main
+
+// The simulate subcommand: one model, one solve, a CSV table, optionally a
+// figure and solver statistics.
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"os/signal"
+	"path/filepath"
+	"regexp"
+	"slices"
+	"sort"
+	"strconv"
+	"strings"
+	"time"
+
+	"kinetarium/network"
+	"kinetarium/plotting"
+	"kinetarium/solve"
+)
+
+// simFlags are the options of simulate. Fields matter only when the flag
+// was given (set records which were).
+type simFlags struct {
+	model   string
+	tEnd    float64
+	points  int
+	spacing string
+	rtol    float64
+	atol    float64
+	method  string
+	out     string
+	figure  string
+	logY    bool
+	stats   bool
+	repeat  int
+	set     map[string]bool
+}
+
+// simInputError is an error in the command line or the model file of
+// simulate (exit status 2).
+type simInputError struct{ err error }
+
+func (e simInputError) Error() string { return e.err.Error() }
+func (e simInputError) Unwrap() error { return e.err }
+
+// simBadf returns a simInputError.
+func simBadf(format string, args ...any) error {
+	return simInputError{fmt.Errorf(format, args...)}
+}
+
+// parseSimFlags parses "MODEL.json [flags]", flags before or after the
+// model, and checks every value.
+func parseSimFlags(args []string) (*simFlags, error) {
+	fs := flag.NewFlagSet("simulate", flag.ContinueOnError)
+	fs.SetOutput(io.Discard) // errors are reported once, by the caller
+	f := &simFlags{set: map[string]bool{}}
+	fs.Float64Var(&f.tEnd, "t-end", 0, "")
+	fs.IntVar(&f.points, "points", 0, "")
+	fs.StringVar(&f.spacing, "spacing", "", "")
+	fs.Float64Var(&f.rtol, "rtol", 0, "")
+	fs.Float64Var(&f.atol, "atol", 0, "")
+	fs.StringVar(&f.method, "method", "", "")
+	fs.StringVar(&f.out, "out", "", "")
+	fs.StringVar(&f.figure, "figure", "", "")
+	fs.BoolVar(&f.logY, "log-y", false, "")
+	fs.BoolVar(&f.stats, "stats", false, "")
+	fs.IntVar(&f.repeat, "repeat", 1, "")
+	var pos []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			if errors.Is(err, flag.ErrHelp) {
+				return nil, err
+			}
+			return nil, simBadf("%v (see batch help)", err)
+		}
+		args = fs.Args()
+		if len(args) == 0 {
+			break
+		}
+		pos = append(pos, args[0])
+		args = args[1:]
+	}
+	fs.Visit(func(fl *flag.Flag) { f.set[fl.Name] = true })
+	if len(pos) != 1 {
+		return nil, simBadf("expected one model file, got %d arguments %q (see batch help)", len(pos), pos)
+	}
+	f.model = pos[0]
+	finite := func(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+	switch {
+	case f.set["t-end"] && !(f.tEnd > 0 && finite(f.tEnd)):
+		return nil, simBadf("--t-end: expected a positive end time, got %v", f.tEnd)
+	case f.set["points"] && f.points < 2:
+		return nil, simBadf("--points: expected at least 2 output times, got %d", f.points)
+	case f.set["spacing"] && f.spacing != "linear" && f.spacing != "log":
+		return nil, simBadf("--spacing: expected linear or log, got %q", f.spacing)
+	case f.set["rtol"] && !(f.rtol > 0 && f.rtol < 1):
+		return nil, simBadf("--rtol: expected a relative tolerance between 0 and 1, got %v", f.rtol)
+	case f.set["atol"] && !(f.atol > 0 && finite(f.atol)):
+		return nil, simBadf("--atol: expected a positive absolute tolerance, got %v", f.atol)
+	case f.set["method"] && !slices.Contains(network.Methods, f.method):
+		return nil, simBadf("--method: expected one of %s, got %q", strings.Join(network.Methods, ", "), f.method)
+	case f.repeat < 1:
+		return nil, simBadf("--repeat: expected at least 1, got %d", f.repeat)
+	case f.set["figure"] && !slices.Contains(plotting.Formats, strings.ToLower(filepath.Ext(f.figure))):
+		return nil, simBadf("--figure: cannot draw %q: expected a file name ending in %s", f.figure, strings.Join(plotting.Formats, ", "))
+	case f.set["out"] && f.out == "":
+		return nil, simBadf("--out: expected a file name")
+	}
+	return f, nil
+}
+
+// runSimulate is the simulate subcommand.
+func runSimulate(args []string, stdout, stderr io.Writer) int {
+	f, err := parseSimFlags(args)
+	if errors.Is(err, flag.ErrHelp) {
+		fmt.Fprint(stdout, usageText)
+		return exitOK
+	}
+	if err == nil {
+		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+		defer stop()
+		err = simulate(ctx, f, stdout)
+	}
+	if err != nil {
+		fmt.Fprintln(stderr, "simulate:", err)
+		var bad simInputError
+		if errors.As(err, &bad) {
+			return exitBadInput
+		}
+		return exitFailed
+	}
+	return exitOK
+}
+
+// simStats is the JSON line --stats prints.
+type simStats struct {
+	Method         string   `json:"method"`    // method(s) used, joined by "+"
+	Requested      string   `json:"requested"` // method asked for
+	Choice         string   `json:"choice"`    // why auto chose as it did
+	Steps          int      `json:"steps"`
+	Rejected       int      `json:"rejected"`
+	RHSEvals       int      `json:"rhs_evals"`
+	JacobianEvals  int      `json:"jacobian_evals"`
+	Factorizations int      `json:"factorizations"`
+	LinearSolves   int      `json:"linear_solves"`
+	NonNegFixes    int      `json:"nonneg_fixes"`
+	SolveSeconds   float64  `json:"solve_seconds"` // median over repeat solves
+	Repeat         int      `json:"repeat"`
+	Species        int      `json:"species"`
+	Points         int      `json:"points"` // output rows written
+	TEnd           float64  `json:"t_end"`
+	RTol           float64  `json:"rtol"`
+	ATol           float64  `json:"atol"`
+	Error          string   `json:"error,omitempty"`
+	Methods        []string `json:"methods"`
+}
+
+// simulate runs the subcommand after the command line was parsed.
+func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
+	m, err := network.Load(f.model)
+	if err != nil {
+		return simInputError{err}
+	}
+	sim := m.Simulation.WithDefaults()
+	if f.set["t-end"] {
+		sim.TEnd = f.tEnd
+	}
+	if f.set["points"] {
+		sim.Output.Points = f.points
+	}
+	if f.set["spacing"] {
+		sim.Output.Spacing = f.spacing
+	}
+	if f.set["rtol"] {
+		sim.RTol = f.rtol
+	}
+	if f.set["atol"] {
+		sim.ATol = f.atol
+	}
+	if f.set["method"] {
+		sim.Method = f.method
+	}
+	m.Simulation = sim
+	sys, err := network.Compile(m)
+	if err != nil {
+		return simInputError{fmt.Errorf("%s: %w", f.model, err)}
+	}
+	times := network.OutputTimes(sim.TEnd, sim.Output)
+	method := solve.Method(sim.Method)
+	if sim.Method == "auto" {
+		method = solve.Auto
+	}
+	settings := solve.Settings{
+		RTol: sim.RTol, ATol: sim.ATol, Method: method,
+		Times: times, NonNegative: sim.KeepNonNegative(),
+	}
+
+	solver := solve.NewSolver(sys, settings)
+	y0 := sys.Initial()
+	var (
+		res      *solve.Result
+		solveErr error
+		walls    []time.Duration
+	)
+	for range f.repeat {
+		start := time.Now()
+		res, solveErr = solver.Solve(ctx, 0, sim.TEnd, slices.Clone(y0))
+		walls = append(walls, time.Since(start))
+		if solveErr != nil {
+			break
+		}
+	}
+	if solveErr != nil {
+		solveErr = fmt.Errorf("%s: %s", f.model, speciesNames(solveErr.Error(), sys.Species()))
+	}
+
+	// Write what was computed, even after a failure.
+	var outErr error
+	csvData := trajectoryCSV(sys.Species(), res)
+	if f.out != "" {
+		if err := network.WriteFileAtomic(f.out, csvData); err != nil {
+			outErr = fmt.Errorf("writing the trajectories: %w", err)
+		}
+	} else if _, err := stdout.Write(csvData); err != nil {
+		outErr = fmt.Errorf("writing the trajectories: %w", err)
+	}
+	if f.figure != "" && res != nil {
+		if err := drawFigure(f.figure, m, sys.Species(), res, sim.Output.Spacing == "log", f.logY); err != nil {
+			outErr = errors.Join(outErr, fmt.Errorf("drawing the figure: %w", err))
+		}
+	}
+	if f.stats {
+		st := simStats{
+			Requested: sim.Method, Repeat: len(walls), Species: sys.Dim(),
+			TEnd: sim.TEnd, RTol: sim.RTol, ATol: sim.ATol, SolveSeconds: median(walls).Seconds(),
+			Methods: []string{},
+		}
+		if res != nil {
+			s := res.Stats
+			st.Choice, st.Steps, st.Rejected, st.RHSEvals = s.Choice, s.Steps, s.Rejected, s.RHSEvals
+			st.JacobianEvals, st.Factorizations, st.LinearSolves, st.NonNegFixes = s.JacobianEvals, s.Factorizations, s.LinearSolves, s.NonNegFixes
+			for _, mm := range s.Methods {
+				st.Methods = append(st.Methods, string(mm))
+			}
+			st.Points = len(res.T)
+		}
+		st.Method = strings.Join(st.Methods, "+")
+		if solveErr != nil {
+			st.Error = solveErr.Error()
+		}
+		line, err := json.Marshal(st)
+		if err != nil {
+			return fmt.Errorf("encoding the statistics: %w", err)
+		}
+		fmt.Fprintf(stdout, "%s\n", line)
+	}
+	return errors.Join(solveErr, outErr)
+}
+
+// trajectoryCSV returns the table "time,<species>" with one row per output
+// time of res (none when res is nil), numbers in the shortest form that
+// reads back exactly.
+func trajectoryCSV(names []string, res *solve.Result) []byte {
+	var b bytes.Buffer
+	b.WriteString("time")
+	for _, n := range names {
+		b.WriteByte(',')
+		b.WriteString(csvField(n))
+	}
+	b.WriteByte('\n')
+	if res == nil {
+		return b.Bytes()
+	}
+	var num []byte
+	for i, t := range res.T {
+		num = strconv.AppendFloat(num[:0], t, 'g', -1, 64)
+		b.Write(num)
+		for _, v := range res.Y[i] {
+			num = strconv.AppendFloat(num[:0], v, 'g', -1, 64)
+			b.WriteByte(',')
+			b.Write(num)
+		}
+		b.WriteByte('\n')
+	}
+	return b.Bytes()
+}
+
+// csvField quotes s when CSV requires it (RFC 4180).
+func csvField(s string) string {
+	if !strings.ContainsAny(s, ",\"\r\n") {
+		return s
+	}
+	return `"` + strings.ReplaceAll(s, `"`, `""`) + `"`
+}
+
+// drawFigure saves the trajectories of res to path.
+func drawFigure(path string, m *network.Model, names []string, res *solve.Result, logX, logY bool) error {
+	tr := plotting.Trajectories{Times: res.T, Names: names, Values: res.Y}
+	p, err := plotting.TrajectoryPlot(tr, plotting.Options{
+		Title:  m.Title,
+		XLabel: "time", XUnit: m.Units.Time,
+		YLabel: "concentration", YUnit: m.Units.Amount,
+		LogX: logX, LogY: logY,
+	})
+	if err != nil {
+		return err
+	}
+	return plotting.Save(p, path, 0, 0, 0)
+}
+
+// componentRef matches the solver's "component 3" in a message.
+var componentRef = regexp.MustCompile(`\bcomponent (\d+)\b`)
+
+// speciesNames replaces the solver's component indices in msg by species
+// names.
+func speciesNames(msg string, names []string) string {
+	return componentRef.ReplaceAllStringFunc(msg, func(s string) string {
+		i, err := strconv.Atoi(componentRef.FindStringSubmatch(s)[1])
+		if err != nil || i < 0 || i >= len(names) {
+			return s
+		}
+		return fmt.Sprintf("species %q", names[i])
+	})
+}
+
+// median returns the median of d (0 for none).
+func median(d []time.Duration) time.Duration {
+	if len(d) == 0 {
+		return 0
+	}
+	s := slices.Clone(d)
+	sort.Slice(s, func(i, j int) bool { return s[i] < s[j] })
+	if len(s)%2 == 1 {
+		return s[len(s)/2]
+	}
+	return (s[len(s)/2-1] + s[len(s)/2]) / 2
+}
