@@ -235,12 +235,12 @@ func TestSpecErrorsNameTheKey(t *testing.T) {
 			t.Fatal(err)
 		}
 		var out, errb bytes.Buffer
-		if rc := c.cmd([]string{path, "--out", dir, "--quiet"}, &out, &errb); rc != 1 || !strings.Contains(errb.String(), c.want) {
+		if rc := c.cmd([]string{path, "--out", dir, "--quiet"}, &out, &errb); rc != 2 || !strings.Contains(errb.String(), c.want) {
 			t.Errorf("case %d: exit %d, stderr %q; want it to contain %q", i, rc, errb.String(), c.want)
 		}
 	}
 	var out, errb bytes.Buffer
-	if rc := runPopulation([]string{testdata + "population.json", "--shard", "3/3"}, &out, &errb); rc != 1 || !strings.Contains(errb.String(), "0 ≤ i < n") {
+	if rc := runPopulation([]string{testdata + "population.json", "--shard", "3/3"}, &out, &errb); rc != 2 || !strings.Contains(errb.String(), "0 ≤ i < n") {
 		t.Errorf("bad shard: exit %d, %q", rc, errb.String())
 	}
 }
@@ -306,4 +306,39 @@ func BenchmarkPopulation20(b *testing.B) {
 		})
 	}
 	_ = solve.Auto
+}
+
+func TestFailedRunsAreListedAndExitStatus(t *testing.T) {
+	dir := t.TempDir()
+	model, _ := filepath.Abs(testdata + "conversion.json")
+	spec := filepath.Join(dir, "neg.json")
+	// Initial amounts from −2 to 2: the negative ones are refused.
+	body := `{"format":"kinetarium.sweep/1","model":` + strconv.Quote(model) +
+		`,"parameter":{"target":"init:A","from":-2,"to":2,"points":5},"readouts":[{"kind":"final","species":"B"}]}`
+	if err := os.WriteFile(spec, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var out, errb bytes.Buffer
+	if rc := dispatch([]string{"sweep", spec, "--out", dir, "--quiet"}, &out, &errb); rc != 0 {
+		t.Fatalf("exit %d: %s", rc, errb.String())
+	}
+	f := readCSV(t, filepath.Join(dir, "failures.csv"))
+	if len(f) != 3 || f[1][1] != "-2" || f[2][1] != "-1" || !strings.Contains(f[1][2], "initial concentration must be ≥ 0") {
+		t.Errorf("failures.csv: %v", f)
+	}
+	if r := readCSV(t, filepath.Join(dir, "runs.csv")); len(r) != 4 {
+		t.Errorf("runs.csv has %d runs, want 3", len(r)-1)
+	}
+	if !strings.Contains(out.String(), "5 runs, 2 failed") {
+		t.Errorf("stdout %q", out.String())
+	}
+	body = strings.Replace(body, `"to":2`, `"to":-1`, 1)
+	if err := os.WriteFile(spec, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out.Reset()
+	errb.Reset()
+	if rc := dispatch([]string{"sweep", spec, "--out", dir, "--quiet"}, &out, &errb); rc != 1 || !strings.Contains(errb.String(), "all 5 runs failed") {
+		t.Errorf("every run failing: exit %d, %q", rc, errb.String())
+	}
 }

@@ -79,11 +79,7 @@ func finish(meta *runMeta, res *explore.Result, c *cmdFlags, stdout io.Writer) e
 
 // runMerge is the merge subcommand.
 func runMerge(args []string, stdout, stderr io.Writer) int {
-	if err := mergeParts(args, stdout, stderr); err != nil {
-		fmt.Fprintln(stderr, "merge:", err)
-		return 1
-	}
-	return 0
+	return exitStatus("merge", mergeParts(args, stdout, stderr), stderr)
 }
 
 func mergeParts(args []string, stdout, stderr io.Writer) error {
@@ -97,7 +93,7 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	var files []string
 	for {
 		if err := fs.Parse(args); err != nil {
-			return err
+			return badInput(err)
 		}
 		args = fs.Args()
 		if len(args) == 0 {
@@ -108,7 +104,7 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	}
 	if len(files) == 0 || *out == "" {
 		fs.Usage()
-		return errors.New("need the partial-result files and --out DIR")
+		return badInput(errors.New("need the partial-result files and --out DIR"))
 	}
 	var (
 		meta     *runMeta
@@ -118,30 +114,30 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	for _, f := range files {
 		data, err := os.ReadFile(f)
 		if err != nil {
-			return fmt.Errorf("reading a part: %w", err)
+			return badInput(fmt.Errorf("reading a part: %w", err))
 		}
 		var p partFile
 		if err := strict(data, &p, ""); err != nil {
-			return fmt.Errorf("%s: %w", f, err)
+			return badInput(fmt.Errorf("%s: %w", f, err))
 		}
 		if p.Format != PartFormat || p.Meta == nil {
-			return fmt.Errorf("%s: format: expected %q with meta and result, got %q", f, PartFormat, p.Format)
+			return badInput(fmt.Errorf("%s: format: expected %q with meta and result, got %q", f, PartFormat, p.Format))
 		}
 		mj, _ := json.Marshal(p.Meta)
 		if meta == nil {
 			meta, metaJSON = p.Meta, mj
 		} else if !bytes.Equal(mj, metaJSON) {
-			return fmt.Errorf("%s: comes from a different run than %s (spec, model or settings differ)", f, files[0])
+			return badInput(fmt.Errorf("%s: comes from a different run than %s (spec, model or settings differ)", f, files[0]))
 		}
 		r, err := explore.ReadJSON(bytes.NewReader(p.Result))
 		if err != nil {
-			return fmt.Errorf("%s: %w", f, err)
+			return badInput(fmt.Errorf("%s: %w", f, err))
 		}
 		parts = append(parts, r)
 	}
 	res, err := explore.Merge(parts...)
 	if err != nil {
-		return err
+		return badInput(err)
 	}
 	if err := os.MkdirAll(*out, 0o755); err != nil {
 		return fmt.Errorf("making the output folder: %w", err)

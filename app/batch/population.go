@@ -3,7 +3,6 @@ package main
 // The population subcommand.
 
 import (
-	"context"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -108,42 +107,43 @@ func (v varySpec) distribution(path string) (explore.Distribution, error) {
 
 // runPopulation is the population subcommand.
 func runPopulation(args []string, stdout, stderr io.Writer) int {
-	if err := population(args, stdout, stderr); err != nil {
-		fmt.Fprintln(stderr, "population:", err)
-		return 1
+	c, job, err := populationJob(args, stderr)
+	if err != nil {
+		return exitStatus("population", badInput(err), stderr)
 	}
-	return 0
+	return exitStatus("population", job.run(c, stdout, stderr), stderr)
 }
 
-func population(args []string, stdout, stderr io.Writer) error {
+// populationJob reads the command line and the spec of a population.
+func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	c, err := parseCmd("population", args, stderr)
 	if err != nil {
-		return err
+		return nil, nil, err
 	}
 	var spec populationSpec
 	if err := readSpec(c.spec, PopulationFormat, &spec); err != nil {
-		return err
+		return nil, nil, err
 	}
 	switch {
 	case spec.Samples < 1:
-		return fmt.Errorf("%s: samples: expected a positive number of samples, got %d", c.spec, spec.Samples)
+		return nil, nil, fmt.Errorf("%s: samples: expected a positive number of samples, got %d", c.spec, spec.Samples)
 	case spec.Seed == nil:
-		return fmt.Errorf("%s: seed: missing (a whole number ≥ 0; the same seed gives the same population)", c.spec)
+		return nil, nil, fmt.Errorf("%s: seed: missing (a whole number ≥ 0; the same seed gives the same population)", c.spec)
 	case spec.Sampling != "" && spec.Sampling != string(explore.Random) && spec.Sampling != string(explore.LatinHypercube):
-		return fmt.Errorf("%s: sampling: expected %q or %q, got %q", c.spec, explore.Random, explore.LatinHypercube, spec.Sampling)
+		return nil, nil, fmt.Errorf("%s: sampling: expected %q or %q, got %q", c.spec, explore.Random, explore.LatinHypercube, spec.Sampling)
 	case len(spec.Vary) == 0:
-		return fmt.Errorf("%s: vary: missing (the knobs to vary and their distributions)", c.spec)
+		return nil, nil, fmt.Errorf("%s: vary: missing (the knobs to vary and their distributions)", c.spec)
 	}
 	l, err := loadModel(c.spec, spec.Model, spec.Simulation)
 	if err != nil {
-		return err
+		return nil, nil, err
 	}
 	var items []json.RawMessage
 	if err := strict(spec.Vary, &items, "vary"); err != nil {
-		return fmt.Errorf("%s: %w", c.spec, err)
+		return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
 	}
 	if len(items) == 0 {
-		return fmt.Errorf("%s: vary: empty; give at least one knob", c.spec)
+		return nil, nil, fmt.Errorf("%s: vary: empty; give at least one knob", c.spec)
 	}
 	var (
 		knobs, paths []string
@@ -153,27 +153,27 @@ func population(args []string, stdout, stderr io.Writer) error {
 		path := fmt.Sprintf("vary[%d]", i)
 		var v varySpec
 		if err := strict(it, &v, path); err != nil {
-			return fmt.Errorf("%s: %w", c.spec, err)
+			return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
 		}
 		if v.Target == "" {
-			return fmt.Errorf("%s: %s.target: missing (a parameter name, init:SPECIES or volume:COMPARTMENT)", c.spec, path)
+			return nil, nil, fmt.Errorf("%s: %s.target: missing (a parameter name, init:SPECIES or volume:COMPARTMENT)", c.spec, path)
 		}
 		if contains(knobs, v.Target) {
-			return fmt.Errorf("%s: %s.target: %q is varied twice", c.spec, path, v.Target)
+			return nil, nil, fmt.Errorf("%s: %s.target: %q is varied twice", c.spec, path, v.Target)
 		}
 		d, err := v.distribution(path)
 		if err != nil {
-			return fmt.Errorf("%s: %w", c.spec, err)
+			return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
 		}
 		knobs, paths, dists = append(knobs, v.Target), append(paths, path+".target"), append(dists, d)
 	}
 	tg, err := newNetTarget(l.sys, knobs, paths)
 	if err != nil {
-		return fmt.Errorf("%s: %w", c.spec, err)
+		return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
 	}
 	ro, err := l.readouts(c.spec, spec.Readouts)
 	if err != nil {
-		return err
+		return nil, nil, err
 	}
 	var bands *explore.Bands
 	var bandSp []string
@@ -182,13 +182,13 @@ func population(args []string, stdout, stderr io.Writer) error {
 			Species []string `json:"species"`
 		}
 		if err := strict(spec.Bands, &b, "bands"); err != nil {
-			return fmt.Errorf("%s: %w", c.spec, err)
+			return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
 		}
 		var comps []int
 		for i, sp := range b.Species {
 			j, ok := l.sys.SpeciesIndex(sp)
 			if !ok {
-				return fmt.Errorf("%s: bands.species[%d]: no species %q in the model", c.spec, i, sp)
+				return nil, nil, fmt.Errorf("%s: bands.species[%d]: no species %q in the model", c.spec, i, sp)
 			}
 			comps = append(comps, j)
 		}
@@ -197,7 +197,7 @@ func population(args []string, stdout, stderr io.Writer) error {
 	}
 	pts, err := explore.Population{Vary: dists, Size: spec.Samples, Seed: *spec.Seed, Sampling: explore.Sampling(spec.Sampling)}.Sample()
 	if err != nil {
-		return fmt.Errorf("%s: %w", c.spec, err)
+		return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
 	}
 	meta := &runMeta{
 		Kind: "population", Spec: filepath.Base(c.spec), Title: l.model.Title,
@@ -207,14 +207,10 @@ func population(args []string, stdout, stderr io.Writer) error {
 	for _, r := range ro {
 		meta.ReadoutSpecies = append(meta.ReadoutSpecies, l.sys.Species()[r.Component])
 	}
-	ode := &explore.ODE{Target: tg, TEnd: l.sim.TEnd, Settings: l.settings()}
-	prog, every := progressPrinter("population", stderr, c.quiet)
-	res, err := explore.Run(context.Background(), pts, ode.NewSimulator, explore.Settings{
-		Knobs: knobs, Readouts: ro, Bands: bands,
-		Workers: c.workers, Shard: c.shard, Progress: prog, ProgressEvery: every,
-	})
-	if err != nil {
-		return err
-	}
-	return finish(meta, res, c, stdout)
+	return c, &job{
+		meta:     meta,
+		design:   pts,
+		ode:      &explore.ODE{Target: tg, TEnd: l.sim.TEnd, Settings: l.settings()},
+		settings: explore.Settings{Knobs: knobs, Readouts: ro, Bands: bands},
+	}, nil
 }

@@ -450,44 +450,103 @@ func progressPrinter(name string, w io.Writer, quiet bool) (func(float64), time.
 	return func(f float64) { fmt.Fprintf(w, "%s: %3.0f %%\n", name, 100*f) }, time.Second
 }
 
+// inputError marks an error in the command line or an input file (exit
+// status 2), as opposed to a run that failed (exit status 1).
+type inputError struct{ error }
+
+func (e inputError) Unwrap() error { return e.error }
+
+// badInput marks err as an input error; nil stays nil.
+func badInput(err error) error {
+	if err == nil {
+		return nil
+	}
+	return inputError{err}
+}
+
+// exitStatus reports err on stderr and returns the exit status for it.
+func exitStatus(name string, err error, stderr io.Writer) int {
+	if err == nil {
+		return 0
+	}
+	fmt.Fprintf(stderr, "%s: %v\n", name, err)
+	var ie inputError
+	if errors.As(err, &ie) {
+		return 2
+	}
+	return 1
+}
+
 // runSweep is the sweep subcommand.
 func runSweep(args []string, stdout, stderr io.Writer) int {
-	if err := sweep(args, stdout, stderr); err != nil {
-		fmt.Fprintln(stderr, "sweep:", err)
-		return 1
-	}
-	return 0
+	return exitStatus("sweep", sweep(args, stdout, stderr), stderr)
 }
 
 func sweep(args []string, stdout, stderr io.Writer) error {
-	c, err := parseCmd("sweep", args, stderr)
+	c, job, err := sweepJob(args, stderr)
+	if err != nil {
+		return badInput(err)
+	}
+	return job.run(c, stdout, stderr)
+}
+
+// job is a prepared sweep or population.
+type job struct {
+	meta     *runMeta
+	design   explore.Design
+	ode      *explore.ODE
+	settings explore.Settings
+}
+
+// run runs the job and writes its outputs. It fails (exit status 1) when
+// every point failed.
+func (j *job) run(c *cmdFlags, stdout, stderr io.Writer) error {
+	s := j.settings
+	s.Workers, s.Shard = c.workers, c.shard
+	s.Progress, s.ProgressEvery = progressPrinter(j.meta.Kind, stderr, c.quiet)
+	res, err := explore.Run(context.Background(), j.design, j.ode.NewSimulator, s)
 	if err != nil {
 		return err
+	}
+	if err := finish(j.meta, res, c, stdout); err != nil {
+		return err
+	}
+	if res.Points > 0 && res.Failed == res.Points {
+		return fmt.Errorf("all %d runs failed; the first: %s", res.Failed, res.Failures[0].Err)
+	}
+	return nil
+}
+
+// sweepJob reads the command line and the spec of a sweep.
+func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
+	c, err := parseCmd("sweep", args, stderr)
+	if err != nil {
+		return nil, nil, err
 	}
 	var spec sweepSpec
 	if err := readSpec(c.spec, SweepFormat, &spec); err != nil {
-		return err
+		return nil, nil, err
 	}
 	if len(spec.Parameter) == 0 {
-		return fmt.Errorf("%s: parameter: missing (the knob to sweep)", c.spec)
+		return nil, nil, fmt.Errorf("%s: parameter: missing (the knob to sweep)", c.spec)
 	}
 	l, err := loadModel(c.spec, spec.Model, spec.Simulation)
 	if err != nil {
-		return err
+		return nil, nil, err
 	}
 	a1, v1, err := axis(c.spec, spec.Parameter, "parameter")
 	if err != nil {
-		return err
+		return nil, nil, err
 	}
 	knobs, paths := []string{a1.Target}, []string{"parameter.target"}
 	axes, logs := [][]float64{v1}, []bool{a1.Spacing == "log"}
 	if len(spec.Second) > 0 && string(spec.Second) != "null" {
 		a2, v2, err := axis(c.spec, spec.Second, "second")
 		if err != nil {
-			return err
+			return nil, nil, err
 		}
 		if a2.Target == a1.Target {
-			return fmt.Errorf("%s: second.target: %q is already the first parameter", c.spec, a2.Target)
+			return nil, nil, fmt.Errorf("%s: second.target: %q is already the first parameter", c.spec, a2.Target)
 		}
 		knobs, paths = append(knobs, a2.Target), append(paths, "second.target")
 		axes, logs = append(axes, v2), append(logs, a2.Spacing == "log")
@@ -496,23 +555,23 @@ func sweep(args []string, stdout, stderr io.Writer) error {
 		for k, vals := range axes {
 			for i := 1; i < len(vals); i++ {
 				if !(vals[i] > vals[i-1]) {
-					return fmt.Errorf("%s: %s: a two-parameter grid needs from < to and distinct values, got %v", c.spec, []string{"parameter", "second"}[k], vals)
+					return nil, nil, fmt.Errorf("%s: %s: a two-parameter grid needs from < to and distinct values, got %v", c.spec, []string{"parameter", "second"}[k], vals)
 				}
 			}
 		}
 	}
 	tg, err := newNetTarget(l.sys, knobs, paths)
 	if err != nil {
-		return fmt.Errorf("%s: %w", c.spec, err)
+		return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
 	}
 	ro, err := l.readouts(c.spec, spec.Readouts)
 	if err != nil {
-		return err
+		return nil, nil, err
 	}
 	plotSp := spec.PlotSpecies
 	for i, sp := range plotSp {
 		if _, ok := l.sys.SpeciesIndex(sp); !ok {
-			return fmt.Errorf("%s: plot_species[%d]: no species %q in the model", c.spec, i, sp)
+			return nil, nil, fmt.Errorf("%s: plot_species[%d]: no species %q in the model", c.spec, i, sp)
 		}
 	}
 	if plotSp == nil {
@@ -531,16 +590,12 @@ func sweep(args []string, stdout, stderr io.Writer) error {
 	for _, r := range ro {
 		meta.ReadoutSpecies = append(meta.ReadoutSpecies, l.sys.Species()[r.Component])
 	}
-	ode := &explore.ODE{Target: tg, TEnd: l.sim.TEnd, Settings: l.settings()}
-	prog, every := progressPrinter("sweep", stderr, c.quiet)
-	res, err := explore.Run(context.Background(), explore.Grid{Axes: axes}, ode.NewSimulator, explore.Settings{
-		Knobs: knobs, Readouts: ro, KeepTrajectories: true,
-		Workers: c.workers, Shard: c.shard, Progress: prog, ProgressEvery: every,
-	})
-	if err != nil {
-		return err
-	}
-	return finish(meta, res, c, stdout)
+	return c, &job{
+		meta:     meta,
+		design:   explore.Grid{Axes: axes},
+		ode:      &explore.ODE{Target: tg, TEnd: l.sim.TEnd, Settings: l.settings()},
+		settings: explore.Settings{Knobs: knobs, Readouts: ro, KeepTrajectories: true},
+	}, nil
 }
 
 func contains(list []string, s string) bool {
