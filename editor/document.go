@@ -88,6 +88,13 @@ func (d *Document) MarkSaved(path string) {
 	d.notify()
 }
 
+// MarkModified records the current state as not saved, for a model that
+// exists only in memory, such as one restored after a crash.
+func (d *Document) MarkModified() {
+	d.savedID = -1
+	d.notify()
+}
+
 // OnChange registers f to be called after every edit, undo, redo, load and
 // save.
 func (d *Document) OnChange(f func()) { d.listeners = append(d.listeners, f) }

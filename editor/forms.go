@@ -186,6 +186,8 @@ type reactionForm struct {
 	loads   loader
 	equ     *widget.Entry
 	declare *widget.Button
+	// declareRow holds declare; hidden with it.
+	declareRow *fyne.Container
 	law     *widget.Select
 	mmForm  *widget.RadioGroup
 	k, kr   *field
@@ -225,7 +227,9 @@ func newReactionForm(ed *Editor) *reactionForm {
 		}
 	})
 	f.declare.Importance = widget.HighImportance
-	f.box.Add(container.New(labelledLayout{}, widget.NewLabel(""), container.NewHBox(f.declare)))
+	f.declareRow = container.New(labelledLayout{}, widget.NewLabel(""), container.NewHBox(f.declare))
+	f.box.Add(f.declareRow)
+	f.declareRow.Hide()
 	f.declare.Hide()
 
 	titles := make([]string, len(network.Laws))
@@ -360,8 +364,10 @@ func (f *reactionForm) load(m *network.Model, i int) {
 	if names := Undeclared(m, r.Equation); len(names) > 0 {
 		f.declare.SetText(declareLabel(names))
 		f.declare.Show()
+		f.declareRow.Show()
 	} else {
 		f.declare.Hide()
+		f.declareRow.Hide()
 	}
 }
 

@@ -52,7 +52,17 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 		prev := v.Previous.Trajectories()
 		opt.Overlay = &prev
 	}
-	p, err := plotting.TrajectoryPlot(o.Trajectories(), opt)
+	tr := o.Trajectories()
+	if v.LogX {
+		// Time 0 has no place on a log axis; leave it out quietly rather
+		// than have every figure note it.
+		tr = positiveTimes(tr)
+		if opt.Overlay != nil {
+			prev := positiveTimes(*opt.Overlay)
+			opt.Overlay = &prev
+		}
+	}
+	p, err := plotting.TrajectoryPlot(tr, opt)
 	if err != nil {
 		return nil, err
 	}
@@ -180,4 +190,14 @@ func Render(o *Outcome, v View, wPx, hPx int) (image.Image, Frame, error) {
 	}
 	fr := FrameOf(p, wPx, hPx)
 	return plotting.Render(p, wPx, hPx), fr, nil
+}
+
+// positiveTimes returns tr without its rows at times ≤ 0.
+func positiveTimes(tr plotting.Trajectories) plotting.Trajectories {
+	i := 0
+	for i < len(tr.Times) && tr.Times[i] <= 0 {
+		i++
+	}
+	tr.Times, tr.Values = tr.Times[i:], tr.Values[i:]
+	return tr
 }

@@ -1,0 +1,138 @@
+package main
+
+import (
+	"fmt"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/storage"
+	"fyne.io/fyne/v2/widget"
+	"gonum.org/v1/plot/vg"
+
+	"kinetarium/editor/simulate"
+	"kinetarium/plotting"
+)
+
+// figureFormats are the choices of the figure export.
+var figureFormats = []string{"PNG image", "SVG drawing", "PDF document"}
+
+func formatExt(f string) string {
+	switch f {
+	case "SVG drawing":
+		return ".svg"
+	case "PDF document":
+		return ".pdf"
+	}
+	return ".png"
+}
+
+// exportFigure asks for the size, resolution and format of the figure,
+// then for the file, and saves the figure as shown on screen.
+func (w *mainWindow) exportFigure() {
+	if w.current == nil {
+		w.status.SetText("Nothing to export yet: simulate the model first.")
+		return
+	}
+	width := widget.NewEntry()
+	width.SetText("16")
+	height := widget.NewEntry()
+	height.SetText("10")
+	dpi := widget.NewEntry()
+	dpi.SetText(strconv.Itoa(plotting.DefaultDPI))
+	format := widget.NewSelect(figureFormats, func(f string) {
+		if f == "PNG image" {
+			dpi.Enable()
+		} else {
+			dpi.Disable()
+		}
+	})
+	format.SetSelected(figureFormats[0])
+	items := []*widget.FormItem{
+		widget.NewFormItem("Format", format),
+		widget.NewFormItem("Width (cm)", width),
+		widget.NewFormItem("Height (cm)", height),
+		widget.NewFormItem("Resolution (dpi)", dpi),
+	}
+	dialog.ShowForm("Export figure", "Choose file…", "Cancel", items, func(ok bool) {
+		if !ok {
+			return
+		}
+		wcm, err1 := positive(width.Text, "width")
+		hcm, err2 := positive(height.Text, "height")
+		d, err3 := positive(dpi.Text, "resolution")
+		for _, err := range []error{err1, err2, err3} {
+			if err != nil {
+				w.showError(err)
+				return
+			}
+		}
+		ext := formatExt(format.Selected)
+		w.saveFileDialog("figure"+ext, ext, func(path string) {
+			p, err := simulate.Figure(w.current, w.view())
+			if err == nil {
+				err = plotting.Save(p, path, vg.Length(wcm)*vg.Centimeter, vg.Length(hcm)*vg.Centimeter, int(d))
+			}
+			if err != nil {
+				w.showError(err)
+				return
+			}
+			w.status.SetText("Figure saved to " + path)
+		})
+	}, w.win)
+}
+
+// positive reads a positive number typed into the named field.
+func positive(s, name string) (float64, error) {
+	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
+	if err != nil || !(v > 0) || v > 1e5 {
+		return 0, fmt.Errorf("the %s %q is not usable; expected a positive number", name, s)
+	}
+	return v, nil
+}
+
+// exportData saves the results as CSV.
+func (w *mainWindow) exportData() {
+	if w.current == nil {
+		w.status.SetText("Nothing to export yet: simulate the model first.")
+		return
+	}
+	o := w.current
+	w.saveFileDialog("results.csv", ".csv", func(path string) {
+		if err := simulate.SaveCSV(path, o); err != nil {
+			w.showError(err)
+			return
+		}
+		w.status.SetText("Data saved to " + path)
+	})
+}
+
+// saveFileDialog asks for a file to write, adds ext when the name has no
+// extension, and calls save with the path. The file itself is written by
+// save (atomically), not through the dialog.
+func (w *mainWindow) saveFileDialog(name, ext string, save func(path string)) {
+	d := dialog.NewFileSave(func(wc fyne.URIWriteCloser, err error) {
+		if err != nil {
+			w.showError(err)
+			return
+		}
+		if wc == nil {
+			return
+		}
+		path := wc.URI().Path()
+		wc.Close()
+		if filepath.Ext(path) == "" {
+			path += ext
+		}
+		save(path)
+	}, w.win)
+	d.SetFilter(storage.NewExtensionFileFilter([]string{ext}))
+	d.SetFileName(name)
+	if dir := w.lastDir(); dir != nil {
+		d.SetLocation(dir)
+	}
+	d.Resize(fyne.NewSize(900, 600))
+	d.Show()
+}

@@ -1,0 +1,308 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/storage"
+	"fyne.io/fyne/v2/widget"
+
+	"kinetarium/examples"
+	"kinetarium/network"
+)
+
+// maxRecent is the number of recent files remembered.
+const maxRecent = 8
+
+// recentKey is the preference holding the recent files, newest first.
+const recentKey = "recentFiles"
+
+// openStart opens path, or the default example when path is empty, and
+// simulates it.
+func (w *mainWindow) openStart(path string) error {
+	if path == "" {
+		if err := w.loadExample(examples.Default); err != nil {
+			return err
+		}
+	} else if err := w.loadFile(path); err != nil {
+		return err
+	}
+	w.logX.SetChecked(true)
+	w.simulate()
+	return nil
+}
+
+// loadFile reads the model file at path into the document.
+func (w *mainWindow) loadFile(path string) error {
+	m, err := network.Load(path)
+	if err != nil {
+		return err
+	}
+	w.exampleOf = ""
+	w.setModel(m, path)
+	w.addRecent(path)
+	return nil
+}
+
+func (w *mainWindow) loadExample(name string) error {
+	b, err := examples.Open(name)
+	if err != nil {
+		return err
+	}
+	m, err := network.Read(bytes.NewReader(b), name)
+	if err != nil {
+		return err
+	}
+	w.exampleOf = name
+	w.setModel(m, "")
+	return nil
+}
+
+// setModel replaces the document's model and forgets the old results.
+func (w *mainWindow) setModel(m *network.Model, path string) {
+	w.ctrl.Cancel()
+	w.current, w.previous = nil, nil
+	w.hidden = map[string]bool{}
+	w.plot.view.Zoom = nil
+	w.plot.Set(nil, w.plot.view)
+	w.refreshSpecies()
+	w.doc.Replace(m, path)
+	w.removeRecovery()
+	w.updateTitle()
+}
+
+func (w *mainWindow) openExample(name string) {
+	if err := w.loadExample(name); err != nil {
+		w.showError(err)
+		return
+	}
+	w.simulate()
+}
+
+func (w *mainWindow) newModel() {
+	w.exampleOf = ""
+	w.setModel(&network.Model{Title: "New model"}, "")
+	w.status.SetText("New model. Add reactions under Reactions: type an equation such as “A + B -> C”.")
+	w.ed.SelectTab("Reactions")
+}
+
+func (w *mainWindow) openDialog() {
+	d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
+		if err != nil {
+			w.showError(err)
+			return
+		}
+		if r == nil {
+			return
+		}
+		path := r.URI().Path()
+		r.Close()
+		w.openPath(path)
+	}, w.win)
+	d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
+	if dir := w.lastDir(); dir != nil {
+		d.SetLocation(dir)
+	}
+	d.Resize(fyne.NewSize(900, 600))
+	d.Show()
+}
+
+func (w *mainWindow) openPath(path string) {
+	if err := w.loadFile(path); err != nil {
+		w.showError(err)
+		return
+	}
+	w.simulate()
+}
+
+func (w *mainWindow) lastDir() fyne.ListableURI {
+	dir := ""
+	if w.doc.Path != "" {
+		dir = filepath.Dir(w.doc.Path)
+	} else if r := w.recent(); len(r) > 0 {
+		dir = filepath.Dir(r[0])
+	}
+	if dir == "" {
+		return nil
+	}
+	l, err := storage.ListerForURI(storage.NewFileURI(dir))
+	if err != nil {
+		return nil
+	}
+	return l
+}
+
+// save writes the model to its file, or asks for one.
+func (w *mainWindow) save() {
+	if w.doc.Path == "" {
+		w.saveAs()
+		return
+	}
+	w.saveTo(w.doc.Path)
+}
+
+func (w *mainWindow) saveTo(path string) {
+	if err := w.doc.Model().Save(path); err != nil {
+		w.showError(err)
+		return
+	}
+	w.exampleOf = ""
+	w.doc.MarkSaved(path)
+	w.addRecent(path)
+	w.removeRecovery()
+	w.updateTitle()
+	w.status.SetText("Saved " + path)
+}
+
+func (w *mainWindow) saveAs() {
+	d := dialog.NewFileSave(func(wc fyne.URIWriteCloser, err error) {
+		if err != nil {
+			w.showError(err)
+			return
+		}
+		if wc == nil {
+			return
+		}
+		path := wc.URI().Path()
+		wc.Close() // the file is written atomically by saveTo
+		if filepath.Ext(path) == "" {
+			path += ".json"
+		}
+		w.saveTo(path)
+	}, w.win)
+	d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
+	name := "model.json"
+	if w.doc.Path != "" {
+		name = filepath.Base(w.doc.Path)
+	} else if w.exampleOf != "" {
+		name = w.exampleOf
+	}
+	d.SetFileName(name)
+	if dir := w.lastDir(); dir != nil {
+		d.SetLocation(dir)
+	}
+	d.Resize(fyne.NewSize(900, 600))
+	d.Show()
+}
+
+// recent returns the recent files, newest first.
+func (w *mainWindow) recent() []string {
+	return w.app.Preferences().StringList(recentKey)
+}
+
+func (w *mainWindow) addRecent(path string) {
+	abs, err := filepath.Abs(path)
+	if err == nil {
+		path = abs
+	}
+	list := []string{path}
+	for _, p := range w.recent() {
+		if p != path && len(list) < maxRecent {
+			list = append(list, p)
+		}
+	}
+	w.app.Preferences().SetStringList(recentKey, list)
+	if w.mainMenu != nil {
+		w.fillRecent(w.mainMenu.Items[0].Items[3])
+		w.mainMenu.Refresh()
+	}
+}
+
+// fillRecent lists the recent files under item.
+func (w *mainWindow) fillRecent(item *fyne.MenuItem) {
+	item.ChildMenu = fyne.NewMenu("")
+	for _, p := range w.recent() {
+		item.ChildMenu.Items = append(item.ChildMenu.Items, fyne.NewMenuItem(p, func() {
+			w.confirmDiscard("opening another model", func() { w.openPath(p) })
+		}))
+	}
+	if len(item.ChildMenu.Items) == 0 {
+		none := fyne.NewMenuItem("(no recent files)", nil)
+		none.Disabled = true
+		item.ChildMenu.Items = append(item.ChildMenu.Items, none)
+	}
+}
+
+// recoveryPath is where unsaved work is kept between autosaves.
+func recoveryPath() string {
+	dir, err := os.UserConfigDir()
+	if err != nil {
+		dir = os.TempDir()
+	}
+	return filepath.Join(dir, "kinetarium", "recovery.json")
+}
+
+// startAutosave writes the model to the recovery file every 30 s while it
+// has unsaved changes.
+func (w *mainWindow) startAutosave() {
+	if w.screenshotMode {
+		return
+	}
+	go func() {
+		for range time.Tick(30 * time.Second) {
+			fyne.Do(w.autosave)
+		}
+	}()
+}
+
+func (w *mainWindow) autosave() {
+	if !w.doc.Dirty() {
+		return
+	}
+	b, err := modelBytes(w.doc.Model())
+	if err != nil {
+		return // a model that cannot be written (NaN) is saved on the next change
+	}
+	p := recoveryPath()
+	if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
+		return
+	}
+	if err := network.WriteFileAtomic(p, b); err == nil {
+		w.status.SetText("Unsaved changes kept in " + p + " at " + time.Now().Format("15:04:05"))
+	}
+}
+
+func (w *mainWindow) removeRecovery() {
+	if w.screenshotMode {
+		return
+	}
+	os.Remove(recoveryPath())
+}
+
+// offerRecovery offers to restore unsaved work left by an earlier session.
+func (w *mainWindow) offerRecovery() {
+	p := recoveryPath()
+	fi, err := os.Stat(p)
+	if err != nil {
+		return
+	}
+	m, err := network.Load(p)
+	if err != nil {
+		os.Remove(p)
+		return
+	}
+	title := m.Title
+	if title == "" {
+		title = "untitled"
+	}
+	msg := widget.NewLabel(fmt.Sprintf("Kinetarium kept unsaved work from %s (model “%s”).\nRestore it? The restored model opens as a new, unsaved file.",
+		fi.ModTime().Format("2 Jan 15:04"), strings.TrimSpace(title)))
+	d := dialog.NewCustomConfirm("Restore unsaved work?", "Restore", "Discard it", msg, func(ok bool) {
+		if !ok {
+			os.Remove(p)
+			return
+		}
+		w.exampleOf = ""
+		w.setModel(m, "")
+		// The restored work exists only in the recovery file until saved.
+		w.doc.MarkModified()
+		w.simulate()
+	}, w.win)
+	fyne.Do(d.Show)
+}

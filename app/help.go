@@ -1,0 +1,76 @@
+package main
+
+import (
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/widget"
+)
+
+// caution is shown in the About box and at the end of the guide.
+const caution = "Simulation results are research aids, not clinical or dosing advice. " +
+	"Decisions about treatment or dosing rest with qualified professionals and local regulations."
+
+// guide is the short guide to writing models, in Markdown.
+const guide = `## Equations
+
+Write each reaction in chemical notation, one per row:
+
+* ` + "`A + 2 B -> C`" + ` — one A and two B make one C (irreversible).
+* ` + "`E + S <=> ES`" + ` — reversible binding; ` + "`⇌`" + ` works too.
+* ` + "`-> X`" + ` — X is made from nothing (a source, e.g. constant synthesis).
+* ` + "`X ->`" + ` — X is removed (degradation or outflow).
+
+A coefficient may be written with or without a space (` + "`2 B`" + ` or ` + "`2B`" + `).
+Names start with a letter or _ and contain letters, digits and _.
+If an equation names species that are not declared yet, the form offers
+to declare them in one click.
+
+## Rate laws
+
+* **Mass action** — rate = k · product of the reactants (each to the power of
+  its coefficient). A reversible reaction also has a reverse constant:
+  rate = k·[reactants] − k_reverse·[products].
+* **Michaelis–Menten** — for one substrate S: rate = Vmax·S/(Km + S), or with
+  an explicit enzyme E: rate = kcat·E·S/(Km + S).
+* **Custom expression** — any formula of species, parameters and time.
+  For a reversible reaction it is the net rate.
+
+Each rate field takes a number (0.5, 1e-3) or the name of a parameter.
+
+## Expressions
+
+Operators ` + "`+ - * / ^`" + ` and parentheses; numbers such as 2, 0.5, 1e-3;
+functions ` + "`exp`, `log` (natural), `log10`, `sqrt`, `abs`, `min(a, b)`, `max(a, b)`, `pow(a, b)`" + `;
+` + "`t`" + ` is time. Example: ` + "`Vmax*S^n/(K^n + S^n)`" + `.
+
+## Compartments
+
+A species' concentration is per volume of its own compartment. A reaction's
+rate is per volume of the compartment of its first reactant (of its first
+product when it has no reactants); a species in another compartment changes
+by that rate times the ratio of the two volumes. With no compartments, every
+species lives in one compartment of volume 1.
+
+## Caution
+
+` + caution + `
+`
+
+// showHelp opens the guide in its own window.
+func (w *mainWindow) showHelp() {
+	hw := w.app.NewWindow("Writing equations and rate laws — Kinetarium")
+	rt := widget.NewRichTextFromMarkdown(guide)
+	rt.Wrapping = fyne.TextWrapWord
+	hw.SetContent(container.NewVScroll(container.NewPadded(rt)))
+	hw.Resize(fyne.NewSize(640, 720))
+	hw.Show()
+}
+
+// showAbout shows what the program is, with the caution.
+func (w *mainWindow) showAbout() {
+	l := widget.NewLabel("Kinetarium drafts and simulates chemical and biochemical reaction networks.\n\n" + caution)
+	l.Wrapping = fyne.TextWrapWord
+	d := dialog.NewCustom("About Kinetarium", "Close", container.NewGridWrap(fyne.NewSize(460, 160), l), w.win)
+	d.Show()
+}

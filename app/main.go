@@ -1,0 +1,53 @@
+// Command app is the Kinetarium desktop program: it edits a reaction
+// network in tables, simulates it and plots the time courses.
+//
+// Usage:
+//
+//	app [--model FILE] [--screenshot OUT.png]
+//
+// Without --model it opens the default example. With --screenshot it opens
+// the window, runs the model, waits until the plot is drawn, saves a
+// picture of the window to OUT.png and exits (status 1 with a message on
+// failure, after at most a minute).
+package main
+
+import (
+	"flag"
+	"fmt"
+	"os"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/app"
+)
+
+// appID identifies the program's preferences (recent files).
+const appID = "org.kinetarium.desktop"
+
+func main() {
+	model := flag.String("model", "", "model `file` to open (default: the default example)")
+	shot := flag.String("screenshot", "", "save a picture of the window to `file` (PNG) once the plot is drawn, then exit")
+	flag.Parse()
+	if flag.NArg() > 0 && *model == "" {
+		*model = flag.Arg(0)
+	}
+
+	a := app.NewWithID(appID)
+	a.Settings().SetTheme(newTheme())
+	w := newMainWindow(a, *shot != "")
+	if *shot != "" {
+		w.screenshot(*shot)
+	}
+	if err := w.openStart(*model); err != nil {
+		if *shot != "" {
+			fmt.Fprintln(os.Stderr, "app:", err)
+			os.Exit(1)
+		}
+		w.showError(err)
+	}
+	if *shot == "" {
+		w.offerRecovery()
+	}
+	w.win.Resize(fyne.NewSize(1280, 800))
+	w.win.ShowAndRun()
+	os.Exit(w.exitCode)
+}

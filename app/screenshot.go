@@ -1,0 +1,98 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"image"
+	"image/png"
+	"os"
+	"time"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/driver/software"
+
+	"kinetarium/editor/simulate"
+	"kinetarium/network"
+)
+
+// screenshotTimeout is the longest the screenshot mode waits for the plot.
+const screenshotTimeout = 60 * time.Second
+
+// screenshot arranges for the window to be captured to path once the
+// first plot is drawn, and for the program to exit afterwards.
+func (w *mainWindow) screenshot(path string) {
+	timer := time.AfterFunc(screenshotTimeout, func() {
+		fmt.Fprintf(os.Stderr, "app: no plot was drawn within %v; no screenshot saved\n", screenshotTimeout)
+		os.Exit(1)
+	})
+	w.onDrawn = func() {
+		// Let the window paint the new image, then capture it.
+		time.AfterFunc(2*time.Second, func() {
+			fyne.Do(func() {
+				timer.Stop()
+				if err := capture(w.win, path); err != nil {
+					fmt.Fprintln(os.Stderr, "app:", err)
+					w.exitCode = 1
+				}
+				w.app.Quit()
+			})
+		})
+	}
+	// A failed run draws nothing: report it instead of waiting.
+	done := w.ctrl.OnDone
+	w.ctrl.OnDone = func(gen int, o *simulate.Outcome, err error) {
+		done(gen, o, err)
+		if o == nil {
+			timer.Stop()
+			fmt.Fprintln(os.Stderr, "app: the model could not be simulated:", err)
+			w.exitCode = 1
+			w.app.Quit()
+		}
+	}
+}
+
+// capture writes a PNG picture of the window's canvas to path atomically.
+//
+// Some virtual displays (Xvfb with software OpenGL) read the window's
+// front buffer back blank; the window's content is then drawn again by
+// Fyne's software painter at the window's size.
+func capture(win fyne.Window, path string) error {
+	img := win.Canvas().Capture()
+	if uniform(img) {
+		fmt.Fprintln(os.Stderr, "app: the window read back blank (usual on virtual displays); drawing it with the software painter instead")
+		c := software.NewCanvas()
+		c.SetPadded(false)
+		size := win.Canvas().Size()
+		content := win.Content()
+		c.SetContent(content)
+		c.Resize(size)
+		content.Resize(size)
+		img = c.Capture()
+	}
+	var b bytes.Buffer
+	if err := png.Encode(&b, img); err != nil {
+		return fmt.Errorf("encoding screenshot: %w", err)
+	}
+	if err := network.WriteFileAtomic(path, b.Bytes()); err != nil {
+		return fmt.Errorf("saving screenshot: %w", err)
+	}
+	return nil
+}
+
+// uniform reports whether every pixel of img has the same colour.
+func uniform(img image.Image) bool {
+	b := img.Bounds()
+	if b.Empty() {
+		return true
+	}
+	r0, g0, b0, a0 := img.At(b.Min.X, b.Min.Y).RGBA()
+	for y := b.Min.Y; y < b.Max.Y; y += 3 {
+		for x := b.Min.X; x < b.Max.X; x += 3 {
+			r, g, bb, a := img.At(x, y).RGBA()
+			if r != r0 || g != g0 || bb != b0 || a != a0 {
+				return false
+			}
+		}
+	}
+	return true
+}

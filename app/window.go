@@ -1,0 +1,437 @@
+package main
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"path/filepath"
+	"sort"
+	"strings"
+	"time"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/driver/desktop"
+	"fyne.io/fyne/v2/theme"
+	"fyne.io/fyne/v2/widget"
+
+	"kinetarium/editor"
+	"kinetarium/editor/simulate"
+	"kinetarium/examples"
+	"kinetarium/network"
+)
+
+// mainWindow is the program's window: the model editor on the left, the
+// figure on the right and the status line at the bottom.
+type mainWindow struct {
+	app  fyne.App
+	win  fyne.Window
+	doc  *editor.Document
+	ed   *editor.Editor
+	ctrl *simulate.Controller
+
+	plot      *plotView
+	current   *simulate.Outcome // shown
+	previous  *simulate.Outcome // the run before, for the overlay
+	hidden    map[string]bool
+	overlay   bool
+	autoRerun bool
+	exampleOf string // name of the example the document came from, if any
+
+	logX, logY   *widget.Check
+	overlayChk   *widget.Check
+	filter       *widget.Entry
+	speciesList  *widget.List
+	shownSpecies []int // indices into current.Names passing the filter
+
+	status    *widget.Label
+	counts    *widget.Label
+	progress  *widget.ProgressBar
+	cancelBtn *widget.Button
+	runBtn    *widget.Button
+
+	rerunItem *fyne.MenuItem
+	mainMenu  *fyne.MainMenu
+
+	screenshotMode bool
+	exitCode       int
+	onDrawn        func()
+}
+
+func newMainWindow(a fyne.App, screenshotMode bool) *mainWindow {
+	w := &mainWindow{app: a, win: a.NewWindow("Kinetarium"), hidden: map[string]bool{}, overlay: true, autoRerun: true,
+		screenshotMode: screenshotMode}
+	w.doc = editor.NewDocument(nil, "")
+	w.ed = editor.New(w.doc, w.win)
+	w.ctrl = &simulate.Controller{Deliver: fyne.Do}
+	w.ctrl.OnStart = w.runStarted
+	w.ctrl.OnProgress = func(_ int, f float64) { w.progress.SetValue(f) }
+	w.ctrl.OnDone = w.runDone
+	w.doc.OnChange(w.docChanged)
+	w.build()
+	w.win.SetMaster()
+	w.win.SetCloseIntercept(func() { w.confirmDiscard("closing", w.quit) })
+	w.startAutosave()
+	return w
+}
+
+// build lays out the window.
+func (w *mainWindow) build() {
+	// Left: tables and messages.
+	msgTitle := widget.NewLabelWithStyle("Messages", fyne.TextAlignLeading, fyne.TextStyle{Bold: true})
+	w.counts = widget.NewLabel("")
+	msgs := container.NewBorder(container.NewHBox(msgTitle, w.counts), nil, nil, nil, w.ed.MessageList())
+	left := container.NewVSplit(w.ed.Tabs(), msgs)
+	left.Offset = 0.74
+	w.ed.OnMessages = func(nerr, nwarn int) {
+		switch {
+		case nerr == 0 && nwarn == 0:
+			w.counts.SetText("none — the model is ready to run")
+		default:
+			w.counts.SetText(fmt.Sprintf("%d %s, %d %s", nerr, plural(nerr, "error", "errors"), nwarn, plural(nwarn, "warning", "warnings")))
+		}
+	}
+	w.ed.OnMessages(0, 0)
+
+	// Right: figure toolbar, figure, species list.
+	w.plot = newPlotView()
+	w.plot.errorText = func(s string) { w.status.SetText(s) }
+	w.plot.OnZoom = func() {}
+	w.plot.OnDrawn = func() {
+		if w.onDrawn != nil {
+			f := w.onDrawn
+			w.onDrawn = nil
+			f()
+		}
+	}
+	w.logX = widget.NewCheck("Log time", func(bool) { w.redraw() })
+	w.logY = widget.NewCheck("Log concentration", func(bool) { w.redraw() })
+	w.overlayChk = widget.NewCheck("Show previous run", func(on bool) { w.overlay = on; w.redraw() })
+	w.overlayChk.SetChecked(true)
+	fullView := widget.NewButtonWithIcon("Full view", theme.ZoomFitIcon(), func() { w.plot.view.Zoom = nil; w.redraw() })
+	exportFig := widget.NewButtonWithIcon("Figure…", theme.DocumentSaveIcon(), w.exportFigure)
+	exportCSV := widget.NewButtonWithIcon("Data…", theme.DocumentSaveIcon(), w.exportData)
+	w.runBtn = widget.NewButtonWithIcon("Simulate", theme.MediaPlayIcon(), w.simulate)
+	w.runBtn.Importance = widget.HighImportance
+	bar := container.NewHBox(w.runBtn, widget.NewSeparator(), w.logX, w.logY, w.overlayChk, fullView,
+		widget.NewSeparator(), widget.NewLabel("Export:"), exportFig, exportCSV)
+
+	w.filter = widget.NewEntry()
+	w.filter.SetPlaceHolder("Filter species…")
+	w.filter.OnChanged = func(string) { w.refreshSpecies() }
+	w.speciesList = widget.NewList(
+		func() int { return len(w.shownSpecies) },
+		func() fyne.CanvasObject {
+			sw := newSwatch()
+			return container.NewBorder(nil, nil, sw, nil, widget.NewCheck("", nil))
+		},
+		func(id widget.ListItemID, o fyne.CanvasObject) {
+			if w.current == nil || id >= len(w.shownSpecies) {
+				return
+			}
+			j := w.shownSpecies[id]
+			name := w.current.Names[j]
+			c := o.(*fyne.Container)
+			c.Objects[1].(*swatch).setSlot(j)
+			chk := c.Objects[0].(*widget.Check)
+			chk.OnChanged = nil
+			chk.SetText(name)
+			chk.SetChecked(!w.hidden[name])
+			chk.OnChanged = func(on bool) { w.hidden[name] = !on; w.redraw() }
+		})
+	all := widget.NewButton("All", func() { w.setVisibleFiltered(true) })
+	none := widget.NewButton("None", func() { w.setVisibleFiltered(false) })
+	speciesTitle := widget.NewLabelWithStyle("Species shown", fyne.TextAlignLeading, fyne.TextStyle{Bold: true})
+	side := container.NewBorder(container.NewVBox(speciesTitle, w.filter, container.NewGridWithColumns(2, all, none)), nil, nil, nil, w.speciesList)
+	plotArea := container.NewHSplit(w.plot, side)
+	plotArea.Offset = 0.8
+	right := container.NewBorder(container.NewPadded(bar), nil, nil, nil, plotArea)
+
+	// Bottom: status line.
+	w.status = widget.NewLabel("Ready.")
+	w.status.Truncation = fyne.TextTruncateEllipsis
+	w.progress = widget.NewProgressBar()
+	w.progress.Hide()
+	w.cancelBtn = widget.NewButtonWithIcon("Cancel", theme.CancelIcon(), func() { w.ctrl.Cancel() })
+	w.cancelBtn.Hide()
+	prog := container.NewGridWrap(fyne.NewSize(220, w.cancelBtn.MinSize().Height), w.progress)
+	statusBar := container.NewBorder(widget.NewSeparator(), nil, nil, container.NewHBox(prog, w.cancelBtn), w.status)
+
+	main := container.NewHSplit(left, right)
+	main.Offset = 0.4
+	w.win.SetContent(container.NewBorder(nil, statusBar, nil, nil, main))
+	w.buildMenus()
+}
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}
+
+// buildMenus sets the main menu and keyboard shortcuts.
+func (w *mainWindow) buildMenus() {
+	ctrl := fyne.KeyModifierShortcutDefault
+	newItem := fyne.NewMenuItem("New", func() { w.confirmDiscard("starting a new model", w.newModel) })
+	newItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyN, Modifier: ctrl}
+	openItem := fyne.NewMenuItem("Open…", func() { w.confirmDiscard("opening another model", w.openDialog) })
+	openItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyO, Modifier: ctrl}
+	exItem := fyne.NewMenuItem("Open example", nil)
+	for _, name := range examples.Names() {
+		exItem.ChildMenu = appendItem(exItem.ChildMenu, fyne.NewMenuItem(exampleTitle(name), func() {
+			w.confirmDiscard("opening an example", func() { w.openExample(name) })
+		}))
+	}
+	recentItem := fyne.NewMenuItem("Open recent", nil)
+	recentItem.ChildMenu = fyne.NewMenu("")
+	w.fillRecent(recentItem)
+	saveItem := fyne.NewMenuItem("Save", w.save)
+	saveItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyS, Modifier: ctrl}
+	saveAsItem := fyne.NewMenuItem("Save as…", w.saveAs)
+	saveAsItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyS, Modifier: ctrl | fyne.KeyModifierShift}
+	figItem := fyne.NewMenuItem("Export figure…", w.exportFigure)
+	csvItem := fyne.NewMenuItem("Export data (CSV)…", w.exportData)
+	quitItem := fyne.NewMenuItem("Quit", func() { w.confirmDiscard("quitting", w.quit) })
+	quitItem.IsQuit = true
+	quitItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyQ, Modifier: ctrl}
+	file := fyne.NewMenu("File", newItem, openItem, exItem, recentItem, fyne.NewMenuItemSeparator(),
+		saveItem, saveAsItem, fyne.NewMenuItemSeparator(), figItem, csvItem, fyne.NewMenuItemSeparator(), quitItem)
+
+	undoItem := fyne.NewMenuItem("Undo", func() { w.doc.Undo() })
+	undoItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyZ, Modifier: ctrl}
+	redoItem := fyne.NewMenuItem("Redo", func() { w.doc.Redo() })
+	redoItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyY, Modifier: ctrl}
+	edit := fyne.NewMenu("Edit", undoItem, redoItem)
+
+	simItem := fyne.NewMenuItem("Simulate", w.simulate)
+	simItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyReturn, Modifier: ctrl}
+	cancelItem := fyne.NewMenuItem("Cancel", func() { w.ctrl.Cancel() })
+	w.rerunItem = fyne.NewMenuItem("Re-run on edit", nil)
+	w.rerunItem.Checked = w.autoRerun
+	w.rerunItem.Action = func() {
+		w.autoRerun = !w.autoRerun
+		w.rerunItem.Checked = w.autoRerun
+		w.mainMenu.Refresh()
+	}
+	run := fyne.NewMenu("Run", simItem, cancelItem, fyne.NewMenuItemSeparator(), w.rerunItem)
+
+	help := fyne.NewMenu("Help",
+		fyne.NewMenuItem("Writing equations and rate laws", w.showHelp),
+		fyne.NewMenuItem("About and caution", w.showAbout))
+	w.mainMenu = fyne.NewMainMenu(file, edit, run, help)
+	w.win.SetMainMenu(w.mainMenu)
+
+	for _, it := range []*fyne.MenuItem{newItem, openItem, saveItem, saveAsItem, undoItem, redoItem, simItem, quitItem} {
+		it := it
+		w.win.Canvas().AddShortcut(it.Shortcut, func(fyne.Shortcut) { it.Action() })
+	}
+	// Enter on the numeric keypad as well.
+	w.win.Canvas().AddShortcut(&desktop.CustomShortcut{KeyName: fyne.KeyEnter, Modifier: ctrl}, func(fyne.Shortcut) { w.simulate() })
+}
+
+func appendItem(m *fyne.Menu, it *fyne.MenuItem) *fyne.Menu {
+	if m == nil {
+		return fyne.NewMenu("", it)
+	}
+	m.Items = append(m.Items, it)
+	return m
+}
+
+// exampleTitle turns "two-compartment-drug.json" into "Two compartment drug".
+func exampleTitle(name string) string {
+	s := strings.TrimSuffix(name, filepath.Ext(name))
+	s = strings.ReplaceAll(s, "-", " ")
+	if s == "" {
+		return name
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
+}
+
+// docChanged follows every change of the document.
+func (w *mainWindow) docChanged() {
+	w.updateTitle()
+	if w.autoRerun && !w.ed.HasErrors() && w.current != nil {
+		w.ctrl.Changed(func() *network.Model {
+			if w.ed.HasErrors() {
+				return nil
+			}
+			return w.doc.Snapshot()
+		})
+	}
+}
+
+func (w *mainWindow) updateTitle() {
+	name := "untitled"
+	switch {
+	case w.doc.Path != "":
+		name = filepath.Base(w.doc.Path)
+	case w.exampleOf != "":
+		name = exampleTitle(w.exampleOf) + " (example)"
+	}
+	mark := ""
+	if w.doc.Dirty() {
+		mark = "• "
+	}
+	w.win.SetTitle(mark + name + " — Kinetarium")
+}
+
+// simulate starts a run of the current model.
+func (w *mainWindow) simulate() {
+	if w.ed.HasErrors() {
+		for _, m := range w.ed.Messages() {
+			if m.Severity == network.Error {
+				w.status.SetText("Cannot simulate yet: " + m.String())
+				w.ed.Focus(m.Problem)
+				return
+			}
+		}
+	}
+	w.ctrl.Start(w.doc.Snapshot())
+}
+
+func (w *mainWindow) runStarted(int) {
+	w.progress.SetValue(0)
+	w.progress.Show()
+	w.cancelBtn.Show()
+	w.status.SetText("Simulating…")
+}
+
+func (w *mainWindow) runDone(_ int, o *simulate.Outcome, err error) {
+	w.progress.Hide()
+	w.cancelBtn.Hide()
+	if o == nil {
+		w.status.SetText(plainError(err))
+		return
+	}
+	if w.current != nil && len(w.current.T) > 0 {
+		w.previous = w.current
+	}
+	w.current = o
+	line := fmt.Sprintf("Method: %s · %d steps (%d rejected) · %s", o.MethodSummary(), o.Stats.Steps, o.Stats.Rejected, roundDuration(o.Elapsed))
+	if o.Stats.Choice != "" {
+		line += " · " + o.Stats.Choice
+	}
+	if err != nil {
+		end := 0.0
+		if len(o.T) > 0 {
+			end = o.T[len(o.T)-1]
+		}
+		line = fmt.Sprintf("The run stopped at t = %s: %s. Showing the part computed. %s", short(end), plainError(err), line)
+	}
+	w.status.SetText(line)
+	w.refreshSpecies()
+	w.redraw()
+}
+
+func roundDuration(d time.Duration) string {
+	switch {
+	case d < time.Millisecond:
+		return d.Round(time.Microsecond).String()
+	case d < time.Second:
+		return d.Round(100 * time.Microsecond).String()
+	}
+	return d.Round(10 * time.Millisecond).String()
+}
+
+// plainError writes err as one readable sentence.
+func plainError(err error) string {
+	if err == nil {
+		return ""
+	}
+	var pe *network.ProblemsError
+	if errors.As(err, &pe) {
+		return "The model has mistakes; see Messages."
+	}
+	s := err.Error()
+	return strings.ToUpper(s[:1]) + s[1:]
+}
+
+// redraw draws the current outcome with the current view.
+func (w *mainWindow) redraw() {
+	if w.current == nil {
+		return
+	}
+	v := simulate.View{LogX: w.logX.Checked, LogY: w.logY.Checked, Hidden: w.hidden, Zoom: w.plot.view.Zoom}
+	if v.Zoom != nil && (v.LogX != w.plot.view.LogX || v.LogY != w.plot.view.LogY) {
+		v.Zoom = nil // a zoom on one scale means little on the other
+	}
+	if w.overlay {
+		v.Previous = w.previous
+	}
+	w.plot.Set(w.current, v)
+}
+
+// view returns the view as on screen, for exports.
+func (w *mainWindow) view() simulate.View { return w.plot.view }
+
+// refreshSpecies updates the species checklist for the current outcome and
+// filter.
+func (w *mainWindow) refreshSpecies() {
+	w.shownSpecies = w.shownSpecies[:0]
+	if w.current != nil {
+		f := strings.ToLower(strings.TrimSpace(w.filter.Text))
+		for j, n := range w.current.Names {
+			if f == "" || strings.Contains(strings.ToLower(n), f) {
+				w.shownSpecies = append(w.shownSpecies, j)
+			}
+		}
+	}
+	w.speciesList.Refresh()
+}
+
+func (w *mainWindow) setVisibleFiltered(on bool) {
+	if w.current == nil {
+		return
+	}
+	for _, j := range w.shownSpecies {
+		w.hidden[w.current.Names[j]] = !on
+	}
+	w.speciesList.Refresh()
+	w.redraw()
+}
+
+// confirmDiscard runs then at once when there are no unsaved changes, and
+// otherwise asks first.
+func (w *mainWindow) confirmDiscard(what string, then func()) {
+	if !w.doc.Dirty() {
+		then()
+		return
+	}
+	d := dialog.NewConfirm("Unsaved changes",
+		"The model has changes that are not saved.\nDiscard them before "+what+"?", func(ok bool) {
+			if ok {
+				then()
+			}
+		}, w.win)
+	d.SetConfirmText("Discard changes")
+	d.SetDismissText("Keep editing")
+	d.Show()
+}
+
+func (w *mainWindow) quit() {
+	w.removeRecovery()
+	w.app.Quit()
+}
+
+func (w *mainWindow) showError(err error) {
+	dialog.ShowError(err, w.win)
+}
+
+// sortedKeys returns the keys of m, sorted.
+func sortedKeys(m map[string]bool) []string {
+	var out []string
+	for k := range m {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
+}
+
+// modelBytes returns the model file text of m.
+func modelBytes(m *network.Model) ([]byte, error) {
+	var b bytes.Buffer
+	err := m.Write(&b)
+	return b.Bytes(), err
+}
