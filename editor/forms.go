@@ -188,16 +188,16 @@ type reactionForm struct {
 	declare *widget.Button
 	// declareRow holds declare; hidden with it.
 	declareRow *fyne.Container
-	law     *widget.Select
-	mmForm  *widget.RadioGroup
-	k, kr   *field
-	vmax    *field
-	kcat    *field
-	enzyme  *field
-	km      *field
-	expr    *field
-	mmField *field
-	preview *widget.Label
+	law        *widget.Select
+	mmForm     *widget.RadioGroup
+	k, kr      *field
+	vmax       *field
+	kcat       *field
+	enzyme     *field
+	km         *field
+	expr       *field
+	mmField    *field
+	preview    *widget.Label
 }
 
 const (
