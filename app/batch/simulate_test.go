@@ -1,0 +1,343 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"encoding/xml"
+	"image/png"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"kinetarium/network"
+)
+
+// simTestdata holds the models of these tests.
+const simTestdata = "testdata/simulate/"
+
+// simRun calls the simulate subcommand in-process.
+func simRun(args ...string) (rc int, stdout, stderr string) {
+	var out, errb bytes.Buffer
+	rc = runSimulate(args, &out, &errb)
+	return rc, out.String(), errb.String()
+}
+
+// parseTable parses CSV text and checks that every number reads back to the
+// same text, so the file round-trips exactly.
+func parseTable(t *testing.T, text string) (header []string, times []float64, rows [][]float64) {
+	t.Helper()
+	recs, err := csv.NewReader(strings.NewReader(text)).ReadAll()
+	if err != nil {
+		t.Fatalf("CSV does not parse: %v\n%s", err, text)
+	}
+	if len(recs) == 0 {
+		t.Fatal("empty CSV")
+	}
+	header = recs[0]
+	for i, r := range recs[1:] {
+		if len(r) != len(header) {
+			t.Fatalf("row %d has %d fields, header %d", i+1, len(r), len(header))
+		}
+		vals := make([]float64, len(r))
+		for j, s := range r {
+			v, err := strconv.ParseFloat(s, 64)
+			if err != nil {
+				t.Fatalf("row %d field %d: %v", i+1, j, err)
+			}
+			if back := strconv.FormatFloat(v, 'g', -1, 64); back != s {
+				t.Fatalf("row %d field %d: %q reads back as %q", i+1, j, s, back)
+			}
+			vals[j] = v
+		}
+		times = append(times, vals[0])
+		rows = append(rows, vals[1:])
+	}
+	return header, times, rows
+}
+
+// TestSimulateExamples runs every shipped example with its own settings.
+func TestSimulateExamples(t *testing.T) {
+	files, err := filepath.Glob("../../examples/*.json")
+	if err != nil || len(files) == 0 {
+		t.Fatalf("no examples found: %v", err)
+	}
+	for _, path := range files {
+		t.Run(filepath.Base(path), func(t *testing.T) {
+			rc, out, errs := simRun(path)
+			if rc != 0 {
+				t.Fatalf("exit %d: %s", rc, errs)
+			}
+			m, err := network.Load(path)
+			if err != nil {
+				t.Fatal(err)
+			}
+			sim := m.Simulation.WithDefaults()
+			header, times, _ := parseTable(t, out)
+			want := []string{"time"}
+			for _, s := range m.Species {
+				want = append(want, s.Name)
+			}
+			if strings.Join(header, ",") != strings.Join(want, ",") {
+				t.Errorf("header %v, want %v", header, want)
+			}
+			if grid := network.OutputTimes(sim.TEnd, sim.Output); len(times) != len(grid) {
+				t.Errorf("%d rows, want %d output times", len(times), len(grid))
+			}
+			if last := times[len(times)-1]; last != sim.TEnd {
+				t.Errorf("last time %v, want exactly t_end = %v", last, sim.TEnd)
+			}
+		})
+	}
+}
+
+// TestSimulateFirstOrderClosedForm checks the table against the closed form
+// of first-order conversion A → B with rate k·A: A(t) = A0·exp(−k·t),
+// B(t) = A0 − A(t) (first-order kinetics; common practice).
+func TestSimulateFirstOrderClosedForm(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "traj.csv")
+	rc, stdout, errs := simRun(simTestdata+"decay.json", "--out", out)
+	if rc != 0 {
+		t.Fatalf("exit %d: %s", rc, errs)
+	}
+	if stdout != "" {
+		t.Errorf("with --out, stdout should be empty; got %q", stdout)
+	}
+	data, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	header, times, rows := parseTable(t, string(data))
+	if strings.Join(header, ",") != "time,A,B" {
+		t.Fatalf("header %v", header)
+	}
+	if len(times) != 9 || times[8] != 4 {
+		t.Fatalf("times %v, want 9 from 0 to exactly 4", times)
+	}
+	const a0, k = 2.0, 0.5
+	for i, tt := range times {
+		if want := 4 * float64(i) / 8; tt != want {
+			t.Errorf("time %d = %v, want %v", i, tt, want)
+		}
+		a := a0 * math.Exp(-k*tt)
+		if d := math.Abs(rows[i][0] - a); d > 1e-7*a0 {
+			t.Errorf("A(%v) = %v, want %v (error %.2g)", tt, rows[i][0], a, d)
+		}
+		if d := math.Abs(rows[i][1] - (a0 - a)); d > 1e-7*a0 {
+			t.Errorf("B(%v) = %v, want %v (error %.2g)", tt, rows[i][1], a0-a, d)
+		}
+	}
+}
+
+// TestSimulateBlowUp: 2X → 3X at rate k·X² gives dX/dt = k·X², whose
+// solution X0/(1 − k·X0·t) grows without bound at t = 1/(k·X0) = 1 (closed
+// form; common practice). The solve must fail with exit status 1, name the
+// time, and still write the rows it reached.
+func TestSimulateBlowUp(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "traj.csv")
+	rc, _, errs := simRun(simTestdata+"blowup.json", "--out", out)
+	if rc != 1 {
+		t.Fatalf("exit %d, want 1; stderr: %s", rc, errs)
+	}
+	if !strings.Contains(errs, "blowup.json") || !strings.Contains(errs, "t = ") {
+		t.Errorf("message %q should name the file and the time", errs)
+	}
+	data, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatalf("no partial CSV: %v", err)
+	}
+	_, times, _ := parseTable(t, string(data))
+	if len(times) == 0 || len(times) >= 11 {
+		t.Fatalf("partial CSV has %d rows, want between 1 and 10", len(times))
+	}
+	if last := times[len(times)-1]; last > 1 {
+		t.Errorf("partial CSV reaches t = %v, beyond the blow-up at t = 1", last)
+	}
+}
+
+func TestSimulateBadInput(t *testing.T) {
+	model := simTestdata + "decay.json"
+	cases := []struct {
+		name string
+		args []string
+		want []string // substrings of the message
+	}{
+		{"broken JSON", []string{simTestdata + "broken.json"}, []string{"broken.json", "line 5"}},
+		{"unknown species", []string{simTestdata + "unknown-species.json"}, []string{"unknown-species.json", `reaction "leak"`, "equation", `"Z"`}},
+		{"missing file", []string{simTestdata + "absent.json"}, []string{"absent.json"}},
+		{"no model", nil, []string{"expected one model file"}},
+		{"two models", []string{model, model}, []string{"expected one model file"}},
+		{"unknown flag", []string{model, "--colour"}, []string{"-colour"}},
+		{"t-end text", []string{model, "--t-end", "soon"}, []string{"t-end"}},
+		{"t-end negative", []string{model, "--t-end", "-1"}, []string{"--t-end", "positive"}},
+		{"points", []string{model, "--points", "1"}, []string{"--points", "at least 2"}},
+		{"spacing", []string{model, "--spacing", "cubic"}, []string{"--spacing", "linear or log", "cubic"}},
+		{"rtol", []string{model, "--rtol", "0"}, []string{"--rtol"}},
+		{"atol", []string{model, "--atol", "-1e-9"}, []string{"--atol"}},
+		{"method", []string{model, "--method", "fast"}, []string{"--method", "rosenbrock", "fast"}},
+		{"repeat", []string{model, "--repeat", "0"}, []string{"--repeat"}},
+		{"figure format", []string{model, "--figure", "fig.gif"}, []string{"--figure", ".png"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			rc, _, errs := simRun(c.args...)
+			if rc != 2 {
+				t.Fatalf("exit %d, want 2; stderr: %s", rc, errs)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(errs, w) {
+					t.Errorf("message %q lacks %q", errs, w)
+				}
+			}
+		})
+	}
+}
+
+// simStatsLine returns the stats decoded from the last line of stdout and
+// the text before it.
+func simStatsLine(t *testing.T, stdout string) (simStats, string) {
+	t.Helper()
+	text := strings.TrimRight(stdout, "\n")
+	i := strings.LastIndexByte(text, '\n')
+	var st simStats
+	if err := json.Unmarshal([]byte(text[i+1:]), &st); err != nil {
+		t.Fatalf("last line %q is not JSON: %v", text[i+1:], err)
+	}
+	var raw map[string]any
+	json.Unmarshal([]byte(text[i+1:]), &raw)
+	for _, key := range []string{"method", "steps", "rejected", "rhs_evals", "jacobian_evals", "factorizations", "linear_solves", "solve_seconds", "choice"} {
+		if _, ok := raw[key]; !ok {
+			t.Errorf("stats lack %q: %s", key, text[i+1:])
+		}
+	}
+	return st, text[:i+1]
+}
+
+func TestSimulateStats(t *testing.T) {
+	rc, out, errs := simRun(simTestdata+"decay.json", "--stats", "--repeat", "3")
+	if rc != 0 {
+		t.Fatalf("exit %d: %s", rc, errs)
+	}
+	st, table := simStatsLine(t, out)
+	_, times, _ := parseTable(t, table)
+	if len(times) != 9 || st.Points != 9 {
+		t.Errorf("%d rows, stats say %d; want 9", len(times), st.Points)
+	}
+	if st.Repeat != 3 || !(st.SolveSeconds > 0) {
+		t.Errorf("repeat %d, solve_seconds %v", st.Repeat, st.SolveSeconds)
+	}
+	if st.Steps <= 0 || st.RHSEvals < st.Steps || st.Method == "" {
+		t.Errorf("implausible counters: %+v", st)
+	}
+}
+
+// TestSimulateFlagsOverrideFile: every flag replaces the model's setting.
+func TestSimulateFlagsOverrideFile(t *testing.T) {
+	rc, out, errs := simRun(simTestdata+"decay.json", "--t-end", "2", "--points", "5", "--spacing", "log",
+		"--method", "radau", "--rtol", "1e-5", "--atol", "1e-8", "--stats")
+	if rc != 0 {
+		t.Fatalf("exit %d: %s", rc, errs)
+	}
+	st, table := simStatsLine(t, out)
+	_, times, rows := parseTable(t, table)
+	want := network.OutputTimes(2, network.Output{Points: 5, Spacing: "log"})
+	if len(times) != len(want) {
+		t.Fatalf("times %v, want %v", times, want)
+	}
+	for i := range want {
+		if times[i] != want[i] {
+			t.Errorf("time %d = %v, want %v", i, times[i], want[i])
+		}
+	}
+	if times[0] != 0 || times[len(times)-1] != 2 {
+		t.Errorf("grid %v should run from 0 to exactly 2", times)
+	}
+	if st.Method != "radau" || st.Requested != "radau" || st.RTol != 1e-5 || st.ATol != 1e-8 || st.TEnd != 2 {
+		t.Errorf("stats %+v do not reflect the flags", st)
+	}
+	// Closed form at the end, to the looser tolerance (first-order kinetics).
+	if a := 2 * math.Exp(-0.5*2); math.Abs(rows[len(rows)-1][0]-a) > 1e-4 {
+		t.Errorf("A(2) = %v, want %v", rows[len(rows)-1][0], a)
+	}
+	// Flags after or before the model.
+	if rc, _, errs := simRun("--points", "3", simTestdata+"decay.json"); rc != 0 {
+		t.Errorf("flag before the model: exit %d: %s", rc, errs)
+	}
+}
+
+func TestSimulateFigures(t *testing.T) {
+	dir := t.TempDir()
+	for _, ext := range []string{".png", ".svg", ".pdf"} {
+		path := filepath.Join(dir, "fig"+ext)
+		rc, _, errs := simRun(simTestdata+"decay.json", "--figure", path, "--spacing", "log", "--log-y", "--out", filepath.Join(dir, "t.csv"))
+		if rc != 0 {
+			t.Fatalf("%s: exit %d: %s", ext, rc, errs)
+		}
+		data, err := os.ReadFile(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		switch ext {
+		case ".png":
+			if _, err := png.Decode(bytes.NewReader(data)); err != nil {
+				t.Errorf("PNG does not decode: %v", err)
+			}
+		case ".svg":
+			dec := xml.NewDecoder(bytes.NewReader(data))
+			root := ""
+			for {
+				tok, err := dec.Token()
+				if err == io.EOF {
+					break
+				}
+				if err != nil {
+					t.Fatalf("SVG not well-formed: %v", err)
+				}
+				if se, ok := tok.(xml.StartElement); ok && root == "" {
+					root = se.Name.Local
+				}
+			}
+			if root != "svg" {
+				t.Errorf("SVG root %q", root)
+			}
+		case ".pdf":
+			if !bytes.HasPrefix(data, []byte("%PDF-")) || !bytes.HasSuffix(bytes.TrimSpace(data), []byte("%%EOF")) {
+				t.Errorf("PDF lacks the header %q or the trailer %q", "%PDF-", "%%EOF")
+			}
+		}
+	}
+}
+
+func TestDispatch(t *testing.T) {
+	var out, errb bytes.Buffer
+	if rc := dispatch([]string{"help"}, &out, &errb); rc != 0 || !strings.Contains(out.String(), "simulate MODEL.json") {
+		t.Errorf("help: exit %d, output %q", rc, out.String())
+	}
+	for _, name := range []string{"simulate", "sweep", "population", "merge"} {
+		if commands[name] == nil {
+			t.Errorf("subcommand %s not registered", name)
+		}
+	}
+	out.Reset()
+	if rc := dispatch([]string{"simulate", "-h"}, &out, &errb); rc != 0 || out.String() != usageText {
+		t.Errorf("simulate -h: exit %d", rc)
+	}
+	errb.Reset()
+	if rc := dispatch([]string{"frobnicate"}, &out, &errb); rc != 2 || !strings.Contains(errb.String(), `"frobnicate"`) {
+		t.Errorf("unknown command: exit %d, %q", rc, errb.String())
+	}
+	if rc := dispatch(nil, &out, &errb); rc != 2 {
+		t.Errorf("no command: exit %d", rc)
+	}
+}
+
+func TestSpeciesNamesInMessages(t *testing.T) {
+	got := speciesNames("component 1 became NaN at t = 3; component 7 too", []string{"A", "B"})
+	if want := `species "B" became NaN at t = 3; component 7 too`; got != want {
+		t.Errorf("got %q, want %q", got, want)
+	}
+}
