@@ -100,6 +100,7 @@ type rosenbrock struct {
 	errAcc   float64
 	accepted int
 	rejected bool
+	bad      int // first component whose f was non-finite in the last attempt, or -1
 }
 
 // newRosenbrock allocates the work space of a RODAS4 stepper.
@@ -142,8 +143,16 @@ func (r *rosenbrock) prepare() error {
 	p.jac(r.t, r.y, r.jac)
 	if !p.autonomous {
 		// ∂f/∂t by a forward difference: one extra RHS evaluation per step.
+		// A backward difference is tried when f is undefined just after t.
 		dt := math.Sqrt(eps) * math.Max(1e-5, math.Abs(r.t))
 		p.rhs(r.t+dt, r.y, r.ft)
+		if nonFinite(r.ft) >= 0 {
+			dt = -dt
+			p.rhs(r.t+dt, r.y, r.ft)
+			if i := nonFinite(r.ft); i >= 0 {
+				return p.nonFiniteError(r.t, r.h, r.ft, i)
+			}
+		}
 		for i := range r.ft {
 			r.ft[i] = (r.ft[i] - r.f0[i]) / dt
 		}
@@ -172,6 +181,15 @@ func (r *rosenbrock) factor(h float64) error {
 	}
 	r.luH = h
 	return nil
+}
+
+// check remembers the first non-finite component of a stage's f, so that
+// a failure can name the component at fault rather than one that the
+// linear solves contaminated.
+func (r *rosenbrock) check(f []float64) {
+	if r.bad < 0 {
+		r.bad = nonFinite(f)
+	}
 }
 
 // solve overwrites b with M⁻¹ b.
@@ -203,6 +221,7 @@ func (r *rosenbrock) attempt(h float64) (errNorm float64, clipped bool) {
 		w[i] = y[i] + rosA21*k1[i]
 	}
 	p.rhs(t+rosC2*h, w, k2)
+	r.check(k2)
 	for i := range k2 {
 		k2[i] += rosC21 / h * k1[i]
 		if !auto {
@@ -215,6 +234,7 @@ func (r *rosenbrock) attempt(h float64) (errNorm float64, clipped bool) {
 		w[i] = y[i] + rosA31*k1[i] + rosA32*k2[i]
 	}
 	p.rhs(t+rosC3*h, w, k3)
+	r.check(k3)
 	for i := range k3 {
 		k3[i] += (rosC31*k1[i] + rosC32*k2[i]) / h
 		if !auto {
@@ -227,6 +247,7 @@ func (r *rosenbrock) attempt(h float64) (errNorm float64, clipped bool) {
 		w[i] = y[i] + rosA41*k1[i] + rosA42*k2[i] + rosA43*k3[i]
 	}
 	p.rhs(t+rosC4*h, w, k4)
+	r.check(k4)
 	for i := range k4 {
 		k4[i] += (rosC41*k1[i] + rosC42*k2[i] + rosC43*k3[i]) / h
 		if !auto {
@@ -239,6 +260,7 @@ func (r *rosenbrock) attempt(h float64) (errNorm float64, clipped bool) {
 		yn[i] = y[i] + rosA51*k1[i] + rosA52*k2[i] + rosA53*k3[i] + rosA54*k4[i]
 	}
 	p.rhs(t+h, yn, k5)
+	r.check(k5)
 	for i := range k5 {
 		k5[i] += (rosC51*k1[i] + rosC52*k2[i] + rosC53*k3[i] + rosC54*k4[i]) / h
 	}
@@ -248,6 +270,7 @@ func (r *rosenbrock) attempt(h float64) (errNorm float64, clipped bool) {
 		yn[i] += k5[i]
 	}
 	p.rhs(t+h, yn, k6)
+	r.check(k6)
 	for i := range k6 {
 		k6[i] += (rosC61*k1[i] + rosC62*k2[i] + rosC63*k3[i] + rosC64*k4[i] + rosC65*k5[i]) / h
 	}
@@ -300,10 +323,13 @@ func (r *rosenbrock) step(tLimit float64) error {
 				continue
 			}
 		}
+		r.bad = -1
 		errNorm, clipped := r.attempt(h)
 		if math.IsNaN(errNorm) || math.IsInf(errNorm, 0) {
 			// Non-finite trial: shrink hard and remember which component.
-			if i := nonFinite(r.yNew); i >= 0 {
+			if r.bad >= 0 {
+				bad = r.bad
+			} else if i := nonFinite(r.yNew); i >= 0 {
 				bad = i
 			}
 			p.stats.Rejected++
