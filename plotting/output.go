@@ -110,7 +110,9 @@ func Render(p *plot.Plot, wPx, hPx int) image.Image {
 }
 
 // RenderInto draws p over the whole of dst at 96 dots per inch, reusing
-// dst's pixels: a display that redraws often can keep one image.
+// dst's pixels: a display that redraws often can keep one image. Like any
+// drawing of a plot.Plot, it must not run concurrently with another drawing
+// of p.
 func RenderInto(p *plot.Plot, dst *image.RGBA) {
 	ctx := gg.NewContextForRGBA(dst)
 	ctx.SetLineCapButt()
