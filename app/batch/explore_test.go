@@ -14,7 +14,6 @@ import (
 	"time"
 
 	"kinetarium/network"
-	"kinetarium/solve"
 	"kinetarium/solve/explore"
 )
 
@@ -305,7 +304,6 @@ func BenchmarkPopulation20(b *testing.B) {
 			}
 		})
 	}
-	_ = solve.Auto
 }
 
 func TestFailedRunsAreListedAndExitStatus(t *testing.T) {
