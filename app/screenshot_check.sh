@@ -1,0 +1,10 @@
+#!/usr/bin/env bash
+# screenshot_check.sh opens the real Kinetarium window under a virtual X
+# display (xvfb-run), runs the default example (or the model file $1),
+# saves a screenshot and checks it is a real picture: a PNG of at least
+# 800×500 pixels with more than 50 distinct colours, not nearly one colour.
+# Set SHOT=path to keep the picture.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+if [[ $# -gt 0 ]]; then export MODEL=$(realpath "$1"); fi
+go test -count=1 -tags xvfb -run '^TestScreenshot$' ./app

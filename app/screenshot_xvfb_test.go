@@ -1,0 +1,74 @@
+//go:build xvfb
+
+package main
+
+import (
+	"image"
+	"image/png"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"testing"
+)
+
+// TestScreenshot opens the real window under xvfb-run with the default
+// example, lets it simulate and plot, and checks the saved picture is a
+// real one: at least 800×500 pixels, more than 50 distinct colours, and not
+// one colour. Run with: go test -tags xvfb -run TestScreenshot ./app
+func TestScreenshot(t *testing.T) {
+	if _, err := exec.LookPath("xvfb-run"); err != nil {
+		t.Skip("xvfb-run is not installed")
+	}
+	dir := t.TempDir()
+	bin := filepath.Join(dir, "kinetarium")
+	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		t.Fatalf("build: %v\n%s", err, out)
+	}
+	shot := os.Getenv("SHOT")
+	if shot == "" {
+		shot = filepath.Join(dir, "shot.png")
+	}
+	args := []string{"-a", "-s", "-screen 0 1400x900x24", bin, "--screenshot", shot}
+	if m := os.Getenv("MODEL"); m != "" {
+		args = append(args, "--model", m)
+	}
+	cmd := exec.Command("xvfb-run", args...)
+	cmd.Env = append(os.Environ(), "LANG=C.UTF-8")
+	if out, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("screenshot run: %v\n%s", err, out)
+	}
+	f, err := os.Open(shot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	img, err := png.Decode(f)
+	if err != nil {
+		t.Fatalf("screenshot is not a PNG: %v", err)
+	}
+	checkPicture(t, img)
+}
+
+func checkPicture(t *testing.T, img image.Image) {
+	b := img.Bounds()
+	if b.Dx() < 800 || b.Dy() < 500 {
+		t.Errorf("screenshot is %d×%d, want at least 800×500", b.Dx(), b.Dy())
+	}
+	colours := map[[4]uint32]int{}
+	for y := b.Min.Y; y < b.Max.Y; y++ {
+		for x := b.Min.X; x < b.Max.X; x++ {
+			r, g, bl, a := img.At(x, y).RGBA()
+			colours[[4]uint32{r, g, bl, a}]++
+		}
+	}
+	if len(colours) <= 50 {
+		t.Errorf("screenshot has %d distinct colours, want more than 50", len(colours))
+	}
+	most := 0
+	for _, n := range colours {
+		most = max(most, n)
+	}
+	if most > b.Dx()*b.Dy()*95/100 {
+		t.Errorf("one colour covers %d of %d pixels: the picture is nearly blank", most, b.Dx()*b.Dy())
+	}
+}
