@@ -141,6 +141,7 @@ func (r *rosenbrock) prepare() error {
 		return p.nonFiniteError(r.t, r.h, r.f0, i)
 	}
 	p.jac(r.t, r.y, r.jac)
+	r.luH = 0 // the factorization belongs to the old Jacobian
 	if !p.autonomous {
 		// ∂f/∂t by a forward difference: one extra RHS evaluation per step.
 		// A backward difference is tried when f is undefined just after t.
