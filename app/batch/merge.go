@@ -82,6 +82,7 @@ func runMerge(args []string, stdout, stderr io.Writer) int {
 	return exitStatus("merge", mergeParts(args, stdout, stderr), stderr)
 }
 
+// mergeParts reads partial results, merges them and writes the outputs.
 func mergeParts(args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("merge", flag.ContinueOnError)
 	fs.SetOutput(stderr)
@@ -159,6 +160,7 @@ func writeCSV(dir, name string, rows [][]string) (string, error) {
 	return path, network.WriteFileAtomic(path, buf.Bytes())
 }
 
+// unsafeName matches runs of characters kept out of file names.
 var unsafeName = regexp.MustCompile(`[^A-Za-z0-9_.-]+`)
 
 // fileName makes s safe to use in a file name.

@@ -98,6 +98,7 @@ func strict(raw []byte, v any, path string) error {
 	return nil
 }
 
+// orTop names an empty path "top level" in messages.
 func orTop(path string) string {
 	if path == "" {
 		return "top level"
@@ -133,6 +134,7 @@ func readSpec(path, format string, v any) error {
 // knobKind is what a knob sets.
 type knobKind int
 
+// The knob kinds.
 const (
 	knobParameter knobKind = iota
 	knobInitial
@@ -454,6 +456,7 @@ func progressPrinter(name string, w io.Writer, quiet bool) (func(float64), time.
 // status 2), as opposed to a run that failed (exit status 1).
 type inputError struct{ error }
 
+// Unwrap returns the underlying error.
 func (e inputError) Unwrap() error { return e.error }
 
 // badInput marks err as an input error; nil stays nil.
@@ -482,6 +485,7 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 	return exitStatus("sweep", sweep(args, stdout, stderr), stderr)
 }
 
+// sweep prepares and runs a sweep.
 func sweep(args []string, stdout, stderr io.Writer) error {
 	c, job, err := sweepJob(args, stderr)
 	if err != nil {
@@ -598,6 +602,7 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	}, nil
 }
 
+// contains reports whether list holds s.
 func contains(list []string, s string) bool {
 	for _, x := range list {
 		if x == s {

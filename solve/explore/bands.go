@@ -190,12 +190,9 @@ func (s *Summary) Quantile(p float64) float64 {
 			b := s.Offset + i
 			lo, hi := s.bounds(b)
 			var v float64
-			switch {
-			case b == 0 || b == histZero || b == histTop:
+			if b == 0 || b == histZero || b == histTop {
 				v = lo + f*(hi-lo)
-			case b < histZero: // negative: magnitude shrinks from -lo to -hi
-				v = lo * math.Pow(hi/lo, f)
-			default:
+			} else { // log bin, of either sign: geometric
 				v = lo * math.Pow(hi/lo, f)
 			}
 			return max(s.Min, min(s.Max, v))

@@ -129,6 +129,7 @@ func (f *num) UnmarshalJSON(b []byte) error {
 	return nil
 }
 
+// toNums converts to the JSON-safe number type.
 func toNums(v []float64) []num {
 	out := make([]num, len(v))
 	for i, x := range v {
@@ -137,6 +138,7 @@ func toNums(v []float64) []num {
 	return out
 }
 
+// fromNums converts back from the JSON-safe number type.
 func fromNums(v []num) []float64 {
 	out := make([]float64, len(v))
 	for i, x := range v {
