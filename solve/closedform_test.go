@@ -9,18 +9,18 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// funcSystem is a test System from closures.
-type funcSystem struct {
+// closureSystem is a test System from closures.
+type closureSystem struct {
 	n    int
 	auto bool
 	f    func(t float64, y, dy []float64)
 	j    func(t float64, y []float64, jac *mat.Dense)
 }
 
-func (s *funcSystem) Dim() int                                      { return s.n }
-func (s *funcSystem) RHS(t float64, y, dy []float64)                { s.f(t, y, dy) }
-func (s *funcSystem) Jacobian(t float64, y []float64, j *mat.Dense) { s.j(t, y, j) }
-func (s *funcSystem) Autonomous() bool                              { return s.auto }
+func (s *closureSystem) Dim() int                                      { return s.n }
+func (s *closureSystem) RHS(t float64, y, dy []float64)                { s.f(t, y, dy) }
+func (s *closureSystem) Jacobian(t float64, y []float64, j *mat.Dense) { s.j(t, y, j) }
+func (s *closureSystem) Autonomous() bool                              { return s.auto }
 
 // closedFormCase is a system with a known exact solution.
 type closedFormCase struct {
@@ -41,7 +41,7 @@ func closedFormCases() []closedFormCase {
 	return []closedFormCase{{
 		// First-order decay y = y0·e^(−kt): common practice.
 		name: "decay",
-		sys: &funcSystem{n: 1, auto: true,
+		sys: &closureSystem{n: 1, auto: true,
 			f: func(_ float64, y, dy []float64) { dy[0] = -k * y[0] },
 			j: func(_ float64, _ []float64, j *mat.Dense) { j.Set(0, 0, -k) }},
 		y0: []float64{2}, tEnd: 10,
@@ -50,7 +50,7 @@ func closedFormCases() []closedFormCase {
 		// Reversible A ⇌ B relaxes exponentially with rate kf + kb to
 		// A∞ = kb/(kf+kb)·(A0+B0): common practice.
 		name: "reversible",
-		sys: &funcSystem{n: 2, auto: true,
+		sys: &closureSystem{n: 2, auto: true,
 			f: func(_ float64, y, dy []float64) { r := kf*y[0] - kb*y[1]; dy[0], dy[1] = -r, r },
 			j: func(_ float64, _ []float64, j *mat.Dense) {
 				j.Set(0, 0, -kf)
@@ -67,7 +67,7 @@ func closedFormCases() []closedFormCase {
 	}, {
 		// Chain A → B → C: Bateman (1910), Proc. Cambridge Phil. Soc. 15, 423.
 		name: "bateman",
-		sys: &funcSystem{n: 3, auto: true,
+		sys: &closureSystem{n: 3, auto: true,
 			f: func(_ float64, y, dy []float64) {
 				dy[0] = -k1 * y[0]
 				dy[1] = k1*y[0] - k2*y[1]
@@ -91,7 +91,7 @@ func closedFormCases() []closedFormCase {
 		// S(t) = Km·W((S0/Km)·exp((S0 − Vmax·t)/Km)): Schnell & Mendoza,
 		// J. Theor. Biol. 187 (1997) 207–212.
 		name: "michaelis-menten",
-		sys: &funcSystem{n: 1, auto: true,
+		sys: &closureSystem{n: 1, auto: true,
 			f: func(_ float64, y, dy []float64) { dy[0] = -vmax * y[0] / (km + y[0]) },
 			j: func(_ float64, y []float64, j *mat.Dense) { j.Set(0, 0, -vmax*km/((km+y[0])*(km+y[0]))) }},
 		y0: []float64{s0}, tEnd: 6,
@@ -102,7 +102,7 @@ func closedFormCases() []closedFormCase {
 		// Non-autonomous y' = −2t·y, y = e^(−t²): common practice. It
 		// exercises the ∂f/∂t terms of Rosenbrock methods.
 		name: "time-dependent",
-		sys: &funcSystem{n: 1,
+		sys: &closureSystem{n: 1,
 			f: func(t float64, y, dy []float64) { dy[0] = -2 * t * y[0] },
 			j: func(t float64, _ []float64, j *mat.Dense) { j.Set(0, 0, -2*t) }},
 		y0: []float64{1}, tEnd: 3,
@@ -110,11 +110,11 @@ func closedFormCases() []closedFormCase {
 	}}
 }
 
-// checkClosedForms solves every closed-form case with method m at rtol
+// checkMethodClosedForms solves every closed-form case with method m at rtol
 // (atol = rtol·1e-3) and requires the scaled error at 31 output times,
 // max |y − exact| / (atol + rtol·|exact|), to stay below bound. It returns
 // the largest scaled error per case.
-func checkClosedForms(t *testing.T, m Method, rtol, bound float64) map[string]float64 {
+func checkMethodClosedForms(t *testing.T, m Method, rtol, bound float64) map[string]float64 {
 	t.Helper()
 	worst := map[string]float64{}
 	for _, c := range closedFormCases() {
@@ -150,7 +150,7 @@ func TestClosedForms(t *testing.T) {
 	for _, m := range []Method{Rosenbrock, Explicit, Auto} {
 		for _, rtol := range []float64{1e-5, 1e-8} {
 			t.Run(fmt.Sprintf("%s/rtol=%g", m, rtol), func(t *testing.T) {
-				checkClosedForms(t, m, rtol, 20)
+				checkMethodClosedForms(t, m, rtol, 20)
 			})
 		}
 	}

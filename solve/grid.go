@@ -29,9 +29,10 @@ func LogTimes(first, last float64, n int) []float64 {
 	}
 	ts := make([]float64, n)
 	ts[0] = first
-	lf, ll := math.Log(first), math.Log(last)
+	// Base 10, so that decade grids come out exact.
+	lf, ll := math.Log10(first), math.Log10(last)
 	for i := 1; i < n; i++ {
-		ts[i] = math.Exp(lf + (ll-lf)*float64(i)/float64(n-1))
+		ts[i] = math.Pow(10, lf+(ll-lf)*float64(i)/float64(n-1))
 	}
 	if n > 1 {
 		ts[n-1] = last

@@ -13,8 +13,8 @@ import (
 )
 
 // decaySystem is y' = −k·y for every component.
-func decaySystem(n int, k float64) *funcSystem {
-	return &funcSystem{n: n, auto: true,
+func decaySystem(n int, k float64) *closureSystem {
+	return &closureSystem{n: n, auto: true,
 		f: func(_ float64, y, dy []float64) {
 			for i := range y {
 				dy[i] = -k * y[i]
@@ -95,7 +95,7 @@ func TestWideScalesNonNegative(t *testing.T) {
 		k[i] = math.Pow(10, 8-float64(i))
 	}
 	k[n-2] = 1e-12
-	sys := &funcSystem{n: n, auto: true,
+	sys := &closureSystem{n: n, auto: true,
 		f: func(_ float64, y, dy []float64) {
 			for i := range dy {
 				dy[i] = 0
@@ -151,7 +151,7 @@ func TestWideScalesNonNegative(t *testing.T) {
 // (common practice). The solve must stop there with a *StepError, a
 // message giving the time and a plain cause, and the partial solution.
 func TestBlowUp(t *testing.T) {
-	sys := &funcSystem{n: 1, auto: true,
+	sys := &closureSystem{n: 1, auto: true,
 		f: func(_ float64, y, dy []float64) { dy[0] = y[0] * y[0] },
 		j: func(_ float64, y []float64, j *mat.Dense) { j.Set(0, 0, 2*y[0]) }}
 	for _, m := range []Method{Rosenbrock, Explicit, Auto} {
@@ -181,7 +181,7 @@ func TestBlowUp(t *testing.T) {
 // TestNaNNamesComponent: a rate that turns NaN must be reported with the
 // index of its component.
 func TestNaNNamesComponent(t *testing.T) {
-	sys := &funcSystem{n: 3,
+	sys := &closureSystem{n: 3,
 		f: func(tt float64, y, dy []float64) {
 			dy[0] = -y[0]
 			dy[1] = -y[1]
@@ -213,7 +213,7 @@ func TestNaNNamesComponent(t *testing.T) {
 // wrapping ctx.Err() (a responsiveness check, not a speed target).
 func TestCancel(t *testing.T) {
 	// Harmonic oscillator over a very long span at a tight tolerance.
-	sys := &funcSystem{n: 2, auto: true,
+	sys := &closureSystem{n: 2, auto: true,
 		f: func(_ float64, y, dy []float64) { dy[0], dy[1] = y[1], -y[0] },
 		j: func(_ float64, _ []float64, j *mat.Dense) {
 			j.Set(0, 0, 0)
