@@ -125,6 +125,7 @@ func newPlot(o Options) *plot.Plot {
 	p.Legend.Top = true
 	p.Title.Padding = vg.Points(6)
 	p.Legend.ThumbnailWidth = vg.Points(24)
+	p.X.Tick.Marker, p.Y.Tick.Marker = niceTicks{}, niceTicks{}
 	if o.LogX {
 		p.X.Scale = plot.LogScale{}
 		p.X.Tick.Marker = decadeTicks{}
