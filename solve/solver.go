@@ -68,6 +68,7 @@ func (sv *Solver) alloc(sys System) {
 			sv.bdf = newBDF(sv.p)
 		} else {
 			sv.dp = newDopri(sv.p)
+			sv.radau = newRadau(sv.p)
 		}
 	}
 }
@@ -250,12 +251,13 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 			if err := st.start(t, sv.y, st.stepSize()); err != nil {
 				return out.result(sv, start), err
 			}
-		case st == stepper(sv.dp) && set.Method == Auto && sv.dp.stiff():
+		case set.Method == Auto && st == stepper(sv.dp) && sv.dp.stiff():
 			h := st.stepSize()
 			copy(sv.y, yn)
-			st = sv.ros
-			sv.stats.Methods = append(sv.stats.Methods, Rosenbrock)
-			sv.stats.Choice += fmt.Sprintf("; switched to Rosenbrock (RODAS4) at t = %.4g, where the explicit method's steps became limited by stability (stiffness)", t)
+			var m Method
+			st, m = sv.stiffStepper()
+			sv.stats.Methods = append(sv.stats.Methods, m)
+			sv.stats.Choice += fmt.Sprintf("; switched to %s at t = %.4g, where the explicit method's steps became limited by stability (stiffness)", methodTitle(m), t)
 			if err := st.start(t, sv.y, h); err != nil {
 				return out.result(sv, start), err
 			}
