@@ -3,7 +3,7 @@
 //
 // Usage:
 //
-//	app [--model FILE] [--screenshot OUT.png]
+//	app [--model FILE] [--tab TAB] [--screenshot OUT.png]
 //
 // Without --model it opens the default example. With --screenshot it opens
 // the window, runs the model, waits until the plot is drawn, saves a
@@ -25,6 +25,7 @@ const appID = "org.kinetarium.desktop"
 
 func main() {
 	model := flag.String("model", "", "model `file` to open (default: the default example)")
+	tab := flag.String("tab", "", "editor `tab` to show first: Reactions, Species, Parameters, Compartments or \"Run settings\"")
 	shot := flag.String("screenshot", "", "save a picture of the window to `file` (PNG) once the plot is drawn, then exit")
 	flag.Parse()
 	if flag.NArg() > 0 && *model == "" {
@@ -43,6 +44,9 @@ func main() {
 			os.Exit(1)
 		}
 		w.showError(err)
+	}
+	if *tab != "" {
+		w.ed.SelectTab(*tab)
 	}
 	if *shot == "" {
 		w.offerRecovery()

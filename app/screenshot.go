@@ -25,8 +25,9 @@ func (w *mainWindow) screenshot(path string) {
 		fmt.Fprintf(os.Stderr, "app: no plot was drawn within %v; no screenshot saved\n", screenshotTimeout)
 		os.Exit(1)
 	})
-	w.onDrawn = func() {
-		// Let the window paint the new image, then capture it.
+	w.captureSoon = func() {
+		w.captureSoon = nil
+		// Let the window paint, then capture it.
 		time.AfterFunc(2*time.Second, func() {
 			fyne.Do(func() {
 				timer.Stop()
@@ -38,15 +39,17 @@ func (w *mainWindow) screenshot(path string) {
 			})
 		})
 	}
-	// A failed run draws nothing: report it instead of waiting.
+	w.onDrawn = func() {
+		if w.captureSoon != nil {
+			w.captureSoon()
+		}
+	}
+	// A run that fails to start draws nothing: capture the window as it is.
 	done := w.ctrl.OnDone
 	w.ctrl.OnDone = func(gen int, o *simulate.Outcome, err error) {
 		done(gen, o, err)
-		if o == nil {
-			timer.Stop()
-			fmt.Fprintln(os.Stderr, "app: the model could not be simulated:", err)
-			w.exitCode = 1
-			w.app.Quit()
+		if o == nil && w.captureSoon != nil {
+			w.captureSoon()
 		}
 	}
 }

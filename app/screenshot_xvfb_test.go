@@ -33,7 +33,7 @@ func TestScreenshot(t *testing.T) {
 		args = append(args, "--model", m)
 	}
 	cmd := exec.Command("xvfb-run", args...)
-	cmd.Env = append(os.Environ(), "LANG=C.UTF-8")
+	cmd.Env = append(os.Environ(), "LANG=en_US.UTF-8")
 	if out, err := cmd.CombinedOutput(); err != nil {
 		t.Fatalf("screenshot run: %v\n%s", err, out)
 	}

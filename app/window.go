@@ -57,6 +57,7 @@ type mainWindow struct {
 	screenshotMode bool
 	exitCode       int
 	onDrawn        func()
+	captureSoon    func() // in screenshot mode: capture the window shortly
 }
 
 func newMainWindow(a fyne.App, screenshotMode bool) *mainWindow {
@@ -284,6 +285,9 @@ func (w *mainWindow) simulate() {
 			if m.Severity == network.Error {
 				w.status.SetText("Cannot simulate yet: " + m.String())
 				w.ed.Focus(m.Problem)
+				if w.captureSoon != nil {
+					w.captureSoon()
+				}
 				return
 			}
 		}
