@@ -52,6 +52,8 @@ type mainWindow struct {
 	runBtn    *widget.Button
 
 	rerunItem *fyne.MenuItem
+	undoItem  *fyne.MenuItem
+	redoItem  *fyne.MenuItem
 	mainMenu  *fyne.MainMenu
 
 	screenshotMode bool
@@ -201,8 +203,10 @@ func (w *mainWindow) buildMenus() {
 		saveItem, saveAsItem, fyne.NewMenuItemSeparator(), figItem, csvItem, fyne.NewMenuItemSeparator(), quitItem)
 
 	undoItem := fyne.NewMenuItem("Undo", func() { w.doc.Undo() })
+	w.undoItem = undoItem
 	undoItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyZ, Modifier: ctrl}
 	redoItem := fyne.NewMenuItem("Redo", func() { w.doc.Redo() })
+	w.redoItem = redoItem
 	redoItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyY, Modifier: ctrl}
 	edit := fyne.NewMenu("Edit", undoItem, redoItem)
 
@@ -223,6 +227,7 @@ func (w *mainWindow) buildMenus() {
 		fyne.NewMenuItem("About and caution", w.showAbout))
 	w.mainMenu = fyne.NewMainMenu(file, edit, run, help)
 	w.win.SetMainMenu(w.mainMenu)
+	w.updateUndoItems()
 
 	for _, it := range []*fyne.MenuItem{newItem, openItem, saveItem, saveAsItem, undoItem, redoItem, simItem, quitItem} {
 		it := it
@@ -253,6 +258,7 @@ func exampleTitle(name string) string {
 // docChanged follows every change of the document.
 func (w *mainWindow) docChanged() {
 	w.updateTitle()
+	w.updateUndoItems()
 	if w.autoRerun && !w.ed.HasErrors() && w.current != nil {
 		w.ctrl.Changed(func() *network.Model {
 			if w.ed.HasErrors() {
@@ -261,6 +267,25 @@ func (w *mainWindow) docChanged() {
 			return w.doc.Snapshot()
 		})
 	}
+}
+
+// updateUndoItems names the edit that Undo and Redo would act on.
+func (w *mainWindow) updateUndoItems() {
+	if w.undoItem == nil {
+		return
+	}
+	label := func(item *fyne.MenuItem, verb string, desc string, ok bool) {
+		item.Label = verb
+		if ok {
+			item.Label = verb + " " + desc
+		}
+		item.Disabled = !ok
+	}
+	d, ok := w.doc.CanUndo()
+	label(w.undoItem, "Undo", d, ok)
+	d, ok = w.doc.CanRedo()
+	label(w.redoItem, "Redo", d, ok)
+	w.mainMenu.Refresh()
 }
 
 func (w *mainWindow) updateTitle() {

@@ -279,3 +279,21 @@ func BenchmarkRender50(b *testing.B) {
 		}
 	}
 }
+
+// Nearest runs on every pointer move: it must not allocate.
+func TestNearestAllocatesNothing(t *testing.T) {
+	m := loadExample(t, "signalling-cascade-50.json")
+	o, err := Run(context.Background(), m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	v := View{LogX: true, Hidden: map[string]bool{o.Names[0]: true}}
+	_, fr, err := Render(o, v, 800, 500)
+	if err != nil {
+		t.Fatal(err)
+	}
+	allocs := testing.AllocsPerRun(20, func() { Nearest(o, v, fr, 400, 250, 20) })
+	if allocs != 0 {
+		t.Errorf("Nearest allocates %v times per call", allocs)
+	}
+}
