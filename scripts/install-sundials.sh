@@ -5,8 +5,10 @@
 #	$PREFIX/include/   cvode/, sundials/, nvector/, sunmatrix/, sunlinsol/ ...
 #	$PREFIX/lib/libsundials_cvode.so   (link-time name for -lsundials_cvode)
 #
-# PREFIX is /opt/sundials-dev unless given as the first argument. The harness
-# is built only with `go build -tags sundials`, so nothing else needs this.
+# PREFIX is /opt/sundials-dev unless given as the first argument; the cgo
+# flags in internal/cvodecmp/cvode.go name /opt/sundials-dev, so another
+# PREFIX needs CGO_CFLAGS/CGO_LDFLAGS set to match. The harness is built only
+# with `go build -tags sundials`, so nothing else needs this.
 #
 # Why not `apt-get install libsundials-dev`: on Debian 12 (bookworm) that
 # package depends on petsc-dev, libhypre-dev, mpi-default-dev, gfortran and
@@ -76,7 +78,13 @@ for deb in "${debs[@]}"; do
 	dpkg -x "$deb" "$work/root"
 done
 
-mkdir -p "$PREFIX" 2>/dev/null || "${as_root[@]}" mkdir -p "$PREFIX"
+if ! mkdir -p "$PREFIX" 2>/dev/null || [[ ! -w $PREFIX ]]; then
+	if [[ ${as_root[*]:-} == none ]]; then
+		echo "install-sundials.sh: cannot write $PREFIX; run as root or give a writable folder as the first argument." >&2
+		exit 1
+	fi
+	"${as_root[@]}" mkdir -p "$PREFIX"
+fi
 stage="$work/stage"
 mkdir -p "$stage/lib"
 cp -a "$work/root/usr/include" "$stage/include"
@@ -134,4 +142,4 @@ EOF
 	"$work/check"
 fi
 echo "CVODE headers in $PREFIX/include, library in $PREFIX/lib."
-echo "Run the comparison with: go run -tags sundials ./internal/cvodecmp"
+echo "Run the comparison with: go run -tags sundials ./internal/cvodecmp/cmd"
