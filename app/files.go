@@ -73,6 +73,7 @@ func (w *mainWindow) setModel(m *network.Model, path string) {
 	w.plot.Set(nil, w.plot.view)
 	w.refreshSpecies()
 	w.doc.Replace(m, path)
+	w.ed.Reset()
 	w.removeRecovery()
 	w.updateTitle()
 }

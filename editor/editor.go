@@ -130,6 +130,17 @@ func New(doc *Document, win fyne.Window) *Editor {
 	return e
 }
 
+// Reset selects the first row of every table and scrolls the tables to
+// the top, for a newly opened model.
+func (e *Editor) Reset() {
+	for _, p := range e.panes {
+		p.selected = -1
+		p.list.UnselectAll()
+		p.refresh()
+		p.list.ScrollToTop()
+	}
+}
+
 // Tabs returns the tabs with the model's tables.
 func (e *Editor) Tabs() *container.AppTabs { return e.tabs }
 
