@@ -63,12 +63,13 @@ func (sv *Solver) alloc(sys System) {
 	case BDF:
 		sv.bdf = newBDF(sv.p)
 	case Auto:
-		sv.ros = newRosenbrock(sv.p)
-		if sv.n >= autoBDFSize {
-			sv.bdf = newBDF(sv.p)
-		} else {
+		sv.ros = newRosenbrock(sv.p) // its Jacobian is the work space of the stiffness test
+		sv.bdf = newBDF(sv.p)
+		if sv.n < autoBDFSize {
 			sv.dp = newDopri(sv.p)
-			sv.radau = newRadau(sv.p)
+			if sv.p.rtol < autoRadauRTol {
+				sv.radau = newRadau(sv.p)
+			}
 		}
 	}
 }
@@ -255,7 +256,7 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 			h := st.stepSize()
 			copy(sv.y, yn)
 			var m Method
-			st, m = sv.stiffStepper()
+			st, m, _ = sv.stiffStepper()
 			sv.stats.Methods = append(sv.stats.Methods, m)
 			sv.stats.Choice += fmt.Sprintf("; switched to %s at t = %.4g, where the explicit method's steps became limited by stability (stiffness)", methodTitle(m), t)
 			if err := st.start(t, sv.y, h); err != nil {
