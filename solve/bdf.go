@@ -471,6 +471,9 @@ func (b *bdf) accept() {
 			b.d[j][i] += v
 		}
 	}
+	// The sum above equals ynew up to rounding; take ynew itself, so that
+	// the projected (non-negative) solution is exactly the current state.
+	copy(b.d[0], b.ynew)
 	b.tOld = b.t - b.hAbs
 	b.dOrder, b.dH = k, b.hAbs
 	for j := 0; j <= k; j++ {
