@@ -119,9 +119,12 @@ func (d *dopri) start(t float64, y []float64, h float64) error {
 // estimated from the last two stages.
 func (d *dopri) stiff() bool { return d.isStiff }
 
-// attempt computes a step of size h from (t, y) into yNew (and k[6] =
-// f(t+h, yNew)) and returns the scaled error.
-func (d *dopri) attempt(h float64) float64 {
+// attempt computes a step of size h from (t, y) into yNew and k[6] and
+// returns the scaled error and whether the non-negativity projection
+// acted. k[6] is f(t+h, yNew) before the projection; when clipped is true,
+// yNew is the projected solution and k[6] must be evaluated again at it
+// once the step is accepted.
+func (d *dopri) attempt(h float64) (errNorm float64, clipped bool) {
 	p, t, y, w := d.p, d.t, d.y, d.w
 	k1, k2, k3, k4, k5, k6, k7 := d.k[0], d.k[1], d.k[2], d.k[3], d.k[4], d.k[5], d.k[6]
 	for i := range w {
@@ -154,7 +157,21 @@ func (d *dopri) attempt(h float64) float64 {
 	for i := range e {
 		e[i] = h * (dpE1*k1[i] + dpE3*k3[i] + dpE4*k4[i] + dpE5*k5[i] + dpE6*k6[i] + dpE7*k7[i])
 	}
-	return p.errNorm(e, y, yn)
+	clipped = false
+	if p.nonneg {
+		// Shampine, Thompson, Kierzenka & Byrne, Appl. Math. Comput. 170
+		// (2005): project onto y ≥ 0 and count the change as error, so
+		// that a step which jumps past a component's depletion is
+		// rejected rather than accepted with the wrong sign.
+		for i, v := range yn {
+			if v < 0 {
+				yn[i] = 0
+				e[i] = math.Abs(e[i]) - v
+				clipped = true
+			}
+		}
+	}
+	return p.errNorm(e, y, yn), clipped
 }
 
 func (d *dopri) step(tLimit float64) error {
@@ -170,9 +187,19 @@ func (d *dopri) step(tLimit float64) error {
 		if h < minStep(d.t) || rejectsInRow > 100 {
 			return p.tooSmallError(d.t, h, bad)
 		}
-		errNorm := d.attempt(h)
+		errNorm, clipped := d.attempt(h)
+		if !math.IsNaN(errNorm) && errNorm <= 1 && clipped {
+			// First same as last: the next step starts from the
+			// projected solution, so its derivative is evaluated there.
+			p.rhs(d.t+h, d.yNew, d.k[6])
+			if nonFinite(d.k[6]) >= 0 {
+				errNorm = math.Inf(1)
+			}
+		}
 		if math.IsNaN(errNorm) || math.IsInf(errNorm, 0) {
 			if i := nonFinite(d.yNew); i >= 0 {
+				bad = i
+			} else if i := nonFinite(d.k[6]); i >= 0 {
 				bad = i
 			}
 			p.stats.Rejected++
@@ -198,6 +225,9 @@ func (d *dopri) step(tLimit float64) error {
 			hNew = math.Min(hNew, h)
 		}
 		d.rejected = false
+		if clipped {
+			p.stats.NonNegFixes++
+		}
 		d.stiffTest(h)
 		d.prepareDense(h)
 		d.y, d.yNew = d.yNew, d.y
