@@ -3,6 +3,7 @@ package expr
 import (
 	"fmt"
 	"math"
+	"slices"
 )
 
 type opcode uint8
@@ -60,12 +61,31 @@ const (
 	opMulCV // c * vars[i]
 	opDivCV // c / vars[i]
 	opDivVC // vars[i] / c
+
+	// Products of leaves fused with the operation that uses them; see
+	// product for the shapes. A = vars[i], B = vars[j], C = vars[k].
+	opMulVVV    // push; x = A*B*C
+	opMulCVV    // push; x = c*A*B
+	opAddMulVV  // x += A*B
+	opSubMulVV  // x -= A*B
+	opAddMulVVV // x += A*B*C
+	opSubMulVVV // x -= A*B*C
+	opAddMulCV  // x += c*A
+	opSubMulCV  // x -= c*A
+	opAddMulCVV // x += c*A*B
+	opSubMulCVV // x -= c*A*B
+	opAddMulVSq // x += A*(B*B)
+	opSubMulVSq // x -= A*(B*B)
+	opRDivMulVV // x = A*B/x
+	opRDivMulCV // x = c*A/x
+	opMM        // push; x = A*B/(C + vars[l]), the Michaelis–Menten form
+	opMMC       // push; x = A*B/(c + C)
 )
 
 type instr struct {
-	op   opcode
-	i, j int32
-	c    float64
+	op         opcode
+	i, j, k, l int32
+	c          float64
 }
 
 // Program is a compiled expression. Its Eval method uses scratch space held
@@ -215,6 +235,15 @@ func (c *compiler) emit(n Node) error {
 		}
 		c.add(opNeg, 0, 0)
 	case *binNode:
+		pr, err := c.product(n)
+		if err != nil {
+			return err
+		}
+		if op := pushProduct[pr.shape]; op != 0 {
+			c.push()
+			c.addProduct(op, pr)
+			return nil
+		}
 		return c.emitBin(n)
 	case *callNode:
 		if int(n.fn) >= len(funcs) || len(n.args) != funcs[n.fn].arity {
@@ -238,6 +267,9 @@ func (c *compiler) emitBin(n *binNode) error {
 		if v, ok := numOf(n.r); ok && c.emitPowConst(n.l, v) {
 			return nil
 		}
+	}
+	if ok, err := c.emitMM(n); ok || err != nil {
+		return err
 	}
 	if ok, err := c.emitLeaves(n.op, n.l, n.r); ok || err != nil {
 		return err
@@ -285,6 +317,20 @@ func (c *compiler) emitBin(n *binNode) error {
 		c.add(rconOps[n.op], 0, l.v)
 		return nil
 	}
+	// An operand a product of leaves: compute the other side, then apply
+	// the operation with the product.
+	if ops, ok := productOps[n.op]; ok {
+		done, err := c.emitWithProduct(n.l, n.r, ops)
+		if done || err != nil {
+			return err
+		}
+	}
+	if ops, ok := rproductOps[n.op]; ok {
+		done, err := c.emitWithProduct(n.r, n.l, ops)
+		if done || err != nil {
+			return err
+		}
+	}
 	if err := c.emit(n.l); err != nil {
 		return err
 	}
@@ -294,6 +340,171 @@ func (c *compiler) emitBin(n *binNode) error {
 	c.add(stackOps[n.op], 0, 0)
 	c.pop(1)
 	return nil
+}
+
+// emitMM emits n as one instruction when it has the form A*B/(C + D) of the
+// Michaelis–Menten law, with A, B and at least one of C and D variables,
+// reporting whether it did.
+func (c *compiler) emitMM(n *binNode) (bool, error) {
+	sum, ok := n.r.(*binNode)
+	if n.op != '/' || !ok || sum.op != '+' {
+		return false, nil
+	}
+	pr, err := c.product(n.l)
+	if err != nil || pr.shape != prodVV {
+		return false, err
+	}
+	in := instr{op: opMM, i: pr.i, j: pr.j}
+	lv, lVar := sum.l.(*varNode)
+	rv, rVar := sum.r.(*varNode)
+	ln, lNum := sum.l.(*numNode)
+	rn, rNum := sum.r.(*numNode)
+	switch {
+	case lVar && rVar:
+		if in.k, err = c.varSlot(lv); err != nil {
+			return false, err
+		}
+		if in.l, err = c.varSlot(rv); err != nil {
+			return false, err
+		}
+	case lNum && rVar:
+		in.op, in.c = opMMC, ln.v
+		if in.k, err = c.varSlot(rv); err != nil {
+			return false, err
+		}
+	case lVar && rNum: // C + c == c + C exactly
+		in.op, in.c = opMMC, rn.v
+		if in.k, err = c.varSlot(lv); err != nil {
+			return false, err
+		}
+	default:
+		return false, nil
+	}
+	c.push()
+	c.code = append(c.code, in)
+	return true, nil
+}
+
+// emitWithProduct emits other and then the operation ops[shape] with the
+// product p, reporting whether p is a product of such a shape.
+func (c *compiler) emitWithProduct(other, p Node, ops map[shape]opcode) (bool, error) {
+	pr, err := c.product(p)
+	if err != nil {
+		return false, err
+	}
+	op, ok := ops[pr.shape]
+	if !ok {
+		return false, nil
+	}
+	if err := c.emit(other); err != nil {
+		return false, err
+	}
+	c.addProduct(op, pr)
+	return true, nil
+}
+
+// A shape is the form of a product of leaves with its own instructions.
+type shape uint8
+
+const (
+	notProduct shape = iota
+	prodVV           // A*B
+	prodVVV          // A*B*C
+	prodCV           // c*A
+	prodCVV          // c*A*B
+	prodVSq          // A*B^2
+)
+
+// Instructions by product shape: loads, and operations with the product
+// on the right (x op product) and on the left (product op x).
+var (
+	pushProduct = [...]opcode{prodVVV: opMulVVV, prodCVV: opMulCVV, prodVSq: 0}
+	productOps  = map[byte]map[shape]opcode{
+		'+': {prodVV: opAddMulVV, prodVVV: opAddMulVVV, prodCV: opAddMulCV, prodCVV: opAddMulCVV, prodVSq: opAddMulVSq},
+		'-': {prodVV: opSubMulVV, prodVVV: opSubMulVVV, prodCV: opSubMulCV, prodCVV: opSubMulCVV, prodVSq: opSubMulVSq},
+	}
+	rproductOps = map[byte]map[shape]opcode{
+		'+': productOps['+'], // addition commutes exactly
+		'/': {prodVV: opRDivMulVV, prodCV: opRDivMulCV},
+	}
+)
+
+type productForm struct {
+	shape   shape
+	i, j, k int32
+	c       float64
+}
+
+// product classifies n as a product of leaves of one of the shapes. A
+// product is multiplied left to right, as written; a constant second factor
+// is moved first, which changes no result since multiplication commutes
+// exactly, and B^2 is B*B as in emitPowConst.
+func (c *compiler) product(n Node) (productForm, error) {
+	var fs []Node // factors, last first
+	for {
+		b, isMul := n.(*binNode)
+		if !isMul || b.op != '*' {
+			break
+		}
+		fs = append(fs, b.r)
+		n = b.l
+	}
+	fs = append(fs, n)
+	slices.Reverse(fs)
+	var pr productForm
+	if len(fs) < 2 || len(fs) > 3 {
+		return pr, nil
+	}
+	if num, ok := fs[1].(*numNode); ok {
+		if _, ok := fs[0].(*varNode); !ok {
+			return pr, nil
+		}
+		fs[0], fs[1] = num, fs[0]
+	}
+	if num, ok := fs[0].(*numNode); ok {
+		pr.c, pr.shape = num.v, prodCV
+		fs = fs[1:]
+	}
+	var slots [3]int32
+	for m, f := range fs {
+		v, ok := f.(*varNode)
+		if !ok {
+			// The last factor of A*B^2 may be a square.
+			b, isBin := f.(*binNode)
+			if m != 1 || len(fs) != 2 || pr.shape != notProduct || !isBin || b.op != '^' {
+				return productForm{}, nil
+			}
+			e, isNum := numOf(b.r)
+			if v, ok = b.l.(*varNode); !ok || !isNum || e != 2 {
+				return productForm{}, nil
+			}
+			pr.shape = prodVSq
+		}
+		s, err := c.varSlot(v)
+		if err != nil {
+			return productForm{}, err
+		}
+		slots[m] = s
+	}
+	pr.i, pr.j, pr.k = slots[0], slots[1], slots[2]
+	switch {
+	case pr.shape == prodVSq:
+	case pr.shape == prodCV && len(fs) == 2:
+		pr.shape = prodCVV
+	case pr.shape == prodCV && len(fs) == 1:
+	case len(fs) == 2:
+		pr.shape = prodVV
+	case len(fs) == 3:
+		pr.shape = prodVVV
+	default:
+		return productForm{}, nil
+	}
+	return pr, nil
+}
+
+// addProduct emits op with the product pr.
+func (c *compiler) addProduct(op opcode, pr productForm) {
+	c.code = append(c.code, instr{op: op, i: pr.i, j: pr.j, k: pr.k, c: pr.c})
 }
 
 // emitPowConst emits base^e with special forms for small integer and half
@@ -460,6 +671,48 @@ func (p *Program) Eval(vars []float64) float64 {
 			if s[sp] <= s[sp+1] {
 				x = s[sp+2]
 			}
+		case opMulVVV:
+			s[sp] = x
+			sp++
+			x = vars[in.i] * vars[in.j] * vars[in.k]
+		case opMulCVV:
+			s[sp] = x
+			sp++
+			x = in.c * vars[in.i] * vars[in.j]
+		case opAddMulVV:
+			x += vars[in.i] * vars[in.j]
+		case opSubMulVV:
+			x -= vars[in.i] * vars[in.j]
+		case opAddMulVVV:
+			x += vars[in.i] * vars[in.j] * vars[in.k]
+		case opSubMulVVV:
+			x -= vars[in.i] * vars[in.j] * vars[in.k]
+		case opAddMulCV:
+			x += in.c * vars[in.i]
+		case opSubMulCV:
+			x -= in.c * vars[in.i]
+		case opAddMulCVV:
+			x += in.c * vars[in.i] * vars[in.j]
+		case opSubMulCVV:
+			x -= in.c * vars[in.i] * vars[in.j]
+		case opAddMulVSq:
+			b := vars[in.j]
+			x += vars[in.i] * (b * b)
+		case opSubMulVSq:
+			b := vars[in.j]
+			x -= vars[in.i] * (b * b)
+		case opRDivMulVV:
+			x = vars[in.i] * vars[in.j] / x
+		case opRDivMulCV:
+			x = in.c * vars[in.i] / x
+		case opMM:
+			s[sp] = x
+			sp++
+			x = vars[in.i] * vars[in.j] / (vars[in.k] + vars[in.l])
+		case opMMC:
+			s[sp] = x
+			sp++
+			x = vars[in.i] * vars[in.j] / (in.c + vars[in.k])
 		}
 	}
 	return x
