@@ -52,8 +52,9 @@ type System struct {
 	comps    []string
 	volumes  []float64
 
-	vars    []float64 // [y (n) | parameters | t]
-	hasExpr bool
+	vars     []float64 // [y (n) | parameters | t]
+	hasExpr  bool
+	usesTime bool // some rate expression reads t
 
 	rx     []rxn
 	terms  []term
@@ -68,6 +69,10 @@ type System struct {
 	jpos           []int     // CSR position of each (contribution, dependency) pair
 	jvals          []float64 // scratch for the dense Jacobian
 }
+
+// Autonomous reports whether f does not depend on t explicitly (no rate
+// expression reads t), so integrators may skip ∂f/∂t.
+func (s *System) Autonomous() bool { return !s.usesTime }
 
 // val is a rate constant: a parameter (p ≥ 0) or the constant c.
 type val struct {
@@ -152,6 +157,7 @@ func Compile(m *Model) (*System, error) {
 			return n + i, true
 		}
 		if name == TimeName {
+			s.usesTime = true
 			return len(s.vars) - 1, true
 		}
 		return 0, false

@@ -339,3 +339,25 @@ func TestCompileRefusesErrors(t *testing.T) {
 }
 
 func newRng() *rand.Rand { return rand.New(rand.NewPCG(5, 6)) }
+
+// A network is autonomous unless a rate expression reads the time t
+// (common practice: ∂f/∂t = 0 exactly then).
+func TestAutonomous(t *testing.T) {
+	for _, c := range []struct {
+		expr string
+		want bool
+	}{{"k*A", true}, {"k*A*exp(-t)", false}} {
+		m := &Model{
+			Species:    []Species{{Name: "A", Initial: 1}},
+			Parameters: []Parameter{{Name: "k", Value: 1}},
+			Reactions:  []Reaction{{Name: "r", Equation: "A ->", Rate: Rate{Law: Expression, Expression: c.expr}}},
+		}
+		s, err := Compile(m)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if s.Autonomous() != c.want || s.Clone().Autonomous() != c.want {
+			t.Errorf("%s: Autonomous() = %v, want %v", c.expr, s.Autonomous(), c.want)
+		}
+	}
+}
