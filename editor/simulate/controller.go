@@ -69,7 +69,8 @@ func (c *Controller) Running() bool {
 
 // Start cancels any run in progress and simulates m (which the caller must
 // not change afterwards; pass a snapshot) in a new goroutine. It returns the
-// run's generation.
+// run's generation. Call it where the callbacks may run (the interface's
+// goroutine): it calls OnStart directly.
 func (c *Controller) Start(m *network.Model) int {
 	c.mu.Lock()
 	if c.cancel != nil {
@@ -90,11 +91,9 @@ func (c *Controller) Start(m *network.Model) int {
 	}
 	c.mu.Unlock()
 
-	c.deliver(func() {
-		if c.current(gen) && c.OnStart != nil {
-			c.OnStart(gen)
-		}
-	})
+	if c.OnStart != nil {
+		c.OnStart(gen)
+	}
 	go func() {
 		defer cancel()
 		start := time.Now()
