@@ -18,6 +18,8 @@ import (
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/app"
+
+	"kinetarium/assets"
 )
 
 // appID identifies the program's preferences (recent files).
@@ -34,6 +36,7 @@ func main() {
 
 	a := app.NewWithID(appID)
 	a.Settings().SetTheme(newTheme())
+	a.SetIcon(fyne.NewStaticResource("kinetarium.svg", assets.Icon))
 	w := newMainWindow(a, *shot != "")
 	if *shot != "" {
 		w.screenshot(*shot)
