@@ -83,6 +83,11 @@ type Settings struct {
 	// at most every ProgressEvery (default 50 ms) and once at the end.
 	Progress      func(fraction float64)
 	ProgressEvery time.Duration
+
+	// LinearSolver, when set, makes the linear solver for the real n×n
+	// iteration matrices of the implicit methods; nil means the built-in
+	// dense LU. (Radau's complex system always uses the built-in solver.)
+	LinearSolver func(n int) LinearSolver
 }
 
 // Stats report the work a solve did.

@@ -60,7 +60,7 @@ type bdf struct {
 	jac      *mat.Dense
 	haveJac  bool
 	mtx      []float64 // I − c·J, row-major
-	lu       *LU
+	lu       LinearSolver
 	luC      float64 // c of the current factorization; 0 when none
 	badComp  int
 	lastIter int
@@ -108,7 +108,7 @@ func newBDFKappa(p *problem, kappa [bdfMaxOrder + 1]float64) *bdf {
 	b.f, b.dy, b.scale, b.clip = vec(), vec(), vec(), vec()
 	b.jac = mat.NewDense(max(n, 1), max(n, 1), nil)
 	b.mtx = make([]float64, n*n)
-	b.lu = NewLU(n)
+	b.lu = p.newLinear()
 	// Newton stops when its estimated remaining error is 3% of the
 	// error-test tolerance. SciPy asks for min(0.03, √rtol); the looser
 	// 0.03 needed 22% fewer RHS and 68% fewer Jacobians on HIRES at rtol

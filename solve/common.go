@@ -53,6 +53,7 @@ type problem struct {
 	nonneg  bool
 	maxStep float64
 	stats   *Stats
+	linear  func(n int) LinearSolver // nil: dense LU
 
 	tEnd       float64 // end of the current solve (set by the driver)
 	autonomous bool    // f does not depend on t (AutonomousSystem)
@@ -61,7 +62,7 @@ type problem struct {
 // newProblem applies the defaults of s.
 func newProblem(sys System, s Settings, stats *Stats) *problem {
 	n := sys.Dim()
-	p := &problem{sys: sys, n: n, rtol: s.RTol, nonneg: s.NonNegative, maxStep: s.MaxStep, stats: stats}
+	p := &problem{sys: sys, n: n, rtol: s.RTol, nonneg: s.NonNegative, maxStep: s.MaxStep, stats: stats, linear: s.LinearSolver}
 	p.setSystem(sys)
 	if p.rtol <= 0 {
 		p.rtol = 1e-6
@@ -209,6 +210,28 @@ func nonFinite(v []float64) int {
 		}
 	}
 	return -1
+}
+
+// LinearSolver factorizes the real n×n iteration matrix of an implicit
+// method, given dense and row-major, and solves systems with the factors.
+// Implementations must not allocate in Factor or Solve. The dense LU is the
+// default; Settings.LinearSolver lets another (a sparse one, say) take its
+// place.
+type LinearSolver interface {
+	// Factor factorizes m, which it must not retain or change.
+	Factor(m []float64) error
+	// Solve overwrites b with the solution of M x = b.
+	Solve(b []float64)
+}
+
+// newLinear returns the problem's linear solver for n×n systems.
+func (p *problem) newLinear() LinearSolver {
+	if p.linear != nil {
+		if ls := p.linear(p.n); ls != nil {
+			return ls
+		}
+	}
+	return NewLU(p.n)
 }
 
 // LU is an allocation-free dense LU factorization with partial pivoting,

@@ -97,7 +97,7 @@ type radau struct {
 	jac      *mat.Dense
 	e1       []float64 // γ/h·I − J, row-major
 	e2r, e2i []float64 // (α+iβ)/h·I − J
-	lu       *LU
+	lu       LinearSolver
 	clu      *cLU
 	hFact    float64 // h of the current factorizations; 0 when none
 	jacFresh bool    // the Jacobian was evaluated at (t, y)
@@ -132,7 +132,7 @@ func newRadau(p *problem) stepper {
 	r.dc1, r.dc2, r.dc3 = vec(), vec(), vec()
 	r.jac = mat.NewDense(max(n, 1), max(n, 1), nil)
 	r.e1, r.e2r, r.e2i = make([]float64, n*n), make([]float64, n*n), make([]float64, n*n)
-	r.lu = NewLU(n)
+	r.lu = p.newLinear()
 	r.clu = newCLU(n)
 
 	r.rtol = 0.1 * math.Pow(p.rtol, 2.0/3)

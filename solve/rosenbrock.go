@@ -102,7 +102,7 @@ type rosenbrock struct {
 
 	jac      *mat.Dense
 	m        []float64 // I/(γh) − J, row-major
-	lu       *LU
+	lu       LinearSolver
 	haveJac  bool    // J, f0 (and ft) are valid at (t, y)
 	luH      float64 // step size the factorization belongs to, 0 if none
 	hAcc     float64 // last accepted step and its error, for the predictive controller
@@ -115,7 +115,7 @@ type rosenbrock struct {
 // newRosenbrock allocates the work space of a RODAS4 stepper.
 func newRosenbrock(p *problem) *rosenbrock {
 	n := p.n
-	r := &rosenbrock{p: p, n: n, jac: mat.NewDense(n, n, nil), m: make([]float64, n*n), lu: NewLU(n)}
+	r := &rosenbrock{p: p, n: n, jac: mat.NewDense(n, n, nil), m: make([]float64, n*n), lu: p.newLinear()}
 	vec := func() []float64 { return make([]float64, n) }
 	r.y, r.yOld, r.yNew, r.f0, r.ft, r.work, r.errVec = vec(), vec(), vec(), vec(), vec(), vec(), vec()
 	for i := range r.k {

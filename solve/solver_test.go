@@ -371,3 +371,26 @@ func TestAllocsPerStep(t *testing.T) {
 		}
 	}
 }
+
+// countingLU wraps the dense LU to check that Settings.LinearSolver reaches
+// every implicit method.
+type countingLU struct {
+	*LU
+	factors *int
+}
+
+func (c countingLU) Factor(m []float64) error { *c.factors++; return c.LU.Factor(m) }
+
+func TestLinearSolverSetting(t *testing.T) {
+	for _, m := range []Method{Rosenbrock, Radau, BDF} {
+		var n int
+		s := Settings{Method: m, LinearSolver: func(dim int) LinearSolver { return countingLU{NewLU(dim), &n} }}
+		res, err := Solve(context.Background(), hiresSystem{}, 0, 321.8122, hiresY0(), s)
+		if err != nil {
+			t.Fatalf("%s: %v", m, err)
+		}
+		if n == 0 || n > res.Factorizations {
+			t.Errorf("%s: the custom solver factorized %d times; the solve counted %d factorizations", m, n, res.Factorizations)
+		}
+	}
+}
