@@ -158,6 +158,24 @@ func (p *problem) initialStep(t0, tEnd float64, y0, f0 []float64, order int, y1,
 	return h
 }
 
+// project keeps a candidate solution non-negative (Shampine, Thompson,
+// Kierzenka & Byrne, "Non-negative solutions of ODEs", Appl. Math. Comput.
+// 170, 2005): it sets negative components of yn to zero and adds the change
+// to the error estimate e, so that a step that jumps past a component's
+// depletion is rejected rather than accepted with the wrong sign. It
+// reports whether anything changed.
+func project(yn, e []float64) bool {
+	clipped := false
+	for i, v := range yn {
+		if v < 0 {
+			yn[i] = 0
+			e[i] = math.Abs(e[i]) - v
+			clipped = true
+		}
+	}
+	return clipped
+}
+
 // StepError reports why an integration stopped early.
 type StepError struct {
 	T      float64 // time of the last accepted step

@@ -157,20 +157,7 @@ func (d *dopri) attempt(h float64) (errNorm float64, clipped bool) {
 	for i := range e {
 		e[i] = h * (dpE1*k1[i] + dpE3*k3[i] + dpE4*k4[i] + dpE5*k5[i] + dpE6*k6[i] + dpE7*k7[i])
 	}
-	clipped = false
-	if p.nonneg {
-		// Shampine, Thompson, Kierzenka & Byrne, Appl. Math. Comput. 170
-		// (2005): project onto y ≥ 0 and count the change as error, so
-		// that a step which jumps past a component's depletion is
-		// rejected rather than accepted with the wrong sign.
-		for i, v := range yn {
-			if v < 0 {
-				yn[i] = 0
-				e[i] = math.Abs(e[i]) - v
-				clipped = true
-			}
-		}
-	}
+	clipped = p.nonneg && project(yn, e)
 	return p.errNorm(e, y, yn), clipped
 }
 

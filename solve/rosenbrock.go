@@ -291,17 +291,7 @@ func (r *rosenbrock) attempt(h float64) (errNorm float64, clipped bool) {
 		yn[i] += k6[i]
 		e[i] = k6[i]
 	}
-	if p.nonneg {
-		// Shampine, Thompson, Kierzenka & Byrne, Appl. Math. Comput. 170
-		// (2005): project onto y ≥ 0 and count the change as error.
-		for i, v := range yn {
-			if v < 0 {
-				yn[i] = 0
-				e[i] = math.Abs(e[i]) - v
-				clipped = true
-			}
-		}
-	}
+	clipped = p.nonneg && project(yn, e)
 	return p.errNorm(e, y, yn), clipped
 }
 
