@@ -114,12 +114,9 @@ func Render(p *plot.Plot, wPx, hPx int) image.Image {
 // drawing of a plot.Plot, it must not run concurrently with another drawing
 // of p.
 func RenderInto(p *plot.Plot, dst *image.RGBA) {
-	ctx := gg.NewContextForRGBA(dst)
-	ctx.SetLineCapButt()
-	ctx.InvertY()
 	// The canvas starts cleared to white by a plain fill; a white plot
 	// background need not be filled again, anti-aliased, over the whole area.
-	c := vgimg.NewWith(vgimg.UseImageWithContext(dst, ctx), vgimg.UseDPI(screenDPI))
+	c := newScreenCanvas(dst)
 	if p != nil {
 		if isWhite(p.BackgroundColor) {
 			saved := p.BackgroundColor
@@ -137,4 +134,13 @@ func isWhite(c color.Color) bool {
 	}
 	r, g, b, a := c.RGBA()
 	return r == 0xFFFF && g == 0xFFFF && b == 0xFFFF && a == 0xFFFF
+}
+
+// newScreenCanvas returns a canvas that draws straight into dst at 96 dots
+// per inch, cleared to white.
+func newScreenCanvas(dst *image.RGBA) *vgimg.Canvas {
+	ctx := gg.NewContextForRGBA(dst)
+	ctx.SetLineCapButt()
+	ctx.InvertY()
+	return vgimg.NewWith(vgimg.UseImageWithContext(dst, ctx), vgimg.UseDPI(screenDPI))
 }

@@ -25,6 +25,8 @@ type curve struct {
 	pts  []vg.Point
 	segs [][]vg.Point
 	keep []bool
+	dash dasher
+	path vg.Path
 }
 
 // Plot implements plot.Plotter.
@@ -51,14 +53,22 @@ func (c *curve) Plot(dc draw.Canvas, p *plot.Plot) {
 	}
 	c.pts, c.segs = pts, segs
 	if c.line.Width > 0 {
-		lines := segs
+		dpi, raster := rasterDPI(dc.Canvas)
 		if c.glyph == nil {
-			// Simplify in place: pts is rebuilt on every draw.
+			// Thin and simplify in place: pts is rebuilt on every draw.
 			for i, s := range segs {
+				if raster {
+					s = decimateColumns(s, vg.Inch/vg.Length(dpi))
+				}
 				segs[i], c.keep = simplify(s, simplifyTol, c.keep)
 			}
 		}
-		dc.StrokeLines(c.line, dc.ClipLinesXY(lines...)...)
+		lines := dc.ClipLinesXY(segs...)
+		if raster && len(c.line.Dashes) > 0 {
+			strokeDashed(dc, c.line, lines, &c.dash, &c.path)
+		} else {
+			dc.StrokeLines(c.line, lines...)
+		}
 	}
 	if c.glyph != nil {
 		for _, pt := range pts {
@@ -484,6 +494,7 @@ type legendEntry struct {
 type sideLegend struct {
 	entries []legendEntry
 	style   text.Style
+	width   vg.Length // of the margin, once measured; 0 before
 }
 
 // Lengths of the side legend, in points.
@@ -504,6 +515,7 @@ func newSideLegend(p *plot.Plot) *sideLegend {
 // add appends an entry.
 func (l *sideLegend) add(text string, thumb plot.Thumbnailer) {
 	l.entries = append(l.entries, legendEntry{text, thumb})
+	l.width = 0
 }
 
 // GlyphBoxes implements plot.GlyphBoxer: it claims the right margin.
@@ -511,12 +523,16 @@ func (l *sideLegend) GlyphBoxes(*plot.Plot) []plot.GlyphBox {
 	if len(l.entries) == 0 {
 		return nil
 	}
-	w := l.style.Width("… and 999 more")
-	for _, e := range l.entries {
-		w = max(w, l.style.Width(e.text))
+	if l.width == 0 {
+		// Measured once: drawing a plot asks for its glyph boxes several
+		// times, and measuring every entry is a good part of the work.
+		w := l.style.Width("… and 999 more")
+		for _, e := range l.entries {
+			w = max(w, l.style.Width(e.text))
+		}
+		l.width = w + vg.Points(legendGap+legendThumb+legendPad)
 	}
-	w += vg.Points(legendGap + legendThumb + legendPad)
-	return []plot.GlyphBox{{X: 1, Y: 0.5, Rectangle: vg.Rectangle{Max: vg.Point{X: w}}}}
+	return []plot.GlyphBox{{X: 1, Y: 0.5, Rectangle: vg.Rectangle{Max: vg.Point{X: l.width}}}}
 }
 
 // Plot implements plot.Plotter.

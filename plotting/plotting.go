@@ -49,6 +49,12 @@ type Options struct {
 	// (see Colour), so that a species keeps its colour when others are
 	// hidden; nil colours series by position.
 	ColourIndex []int
+
+	// NoLegend leaves out the legend of a TrajectoryPlot, giving its margin
+	// to the data. It suits a display that lists the series with their
+	// colours beside the figure; a figure saved for readers should keep its
+	// legend.
+	NoLegend bool
 }
 
 // Default figure size.

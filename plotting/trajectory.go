@@ -39,8 +39,9 @@ func (tr *Trajectories) column(j int) []float64 {
 }
 
 // TrajectoryPlot draws every visible series of tr against time, one colour
-// slot per series (o.ColourIndex, or position), with a legend beside the data. A previous
-// run in o.Overlay is drawn beneath, faint and dashed, in the same colours.
+// slot per series (o.ColourIndex, or position), with a legend beside the
+// data unless o.NoLegend. A previous run in o.Overlay is drawn beneath, faint
+// and dashed, in the same colours.
 //
 // On a log time axis, points at t ≤ 0 are dropped; on a log value axis,
 // values ≤ 0 are; both, and any NaN or infinite values, are counted in a note
@@ -130,7 +131,9 @@ func TrajectoryPlot(tr Trajectories, o Options) (*plot.Plot, error) {
 			}
 		}
 	}
-	p.Add(legend)
+	if !o.NoLegend {
+		p.Add(legend)
+	}
 
 	var ns notes
 	if len(tr.Times) == 0 || len(tr.Names) == 0 {
