@@ -32,6 +32,7 @@ type mainWindow struct {
 	ctrl *simulate.Controller
 
 	plot      *plotView
+	tune      *tunePanel        // sliders under the figure
 	current   *simulate.Outcome // shown
 	previous  *simulate.Outcome // the run before, for the overlay
 	hidden    map[string]bool
@@ -108,6 +109,7 @@ func (w *mainWindow) build() {
 			f()
 		}
 	}
+	w.tune = newTunePanel(w)
 	w.logX = widget.NewCheck("Log time", func(bool) { w.redraw() })
 	w.logY = widget.NewCheck("Log concentration", func(bool) { w.redraw() })
 	w.overlayChk = widget.NewCheck("Show previous run", func(on bool) { w.overlay = on; w.redraw() })
@@ -149,7 +151,7 @@ func (w *mainWindow) build() {
 	side := container.NewBorder(container.NewVBox(speciesTitle, w.filter, container.NewGridWithColumns(2, all, none)), nil, nil, nil, w.speciesList)
 	plotArea := container.NewHSplit(w.plot, side)
 	plotArea.Offset = 0.8
-	right := container.NewBorder(container.NewPadded(bar), nil, nil, nil, plotArea)
+	right := container.NewBorder(container.NewPadded(bar), w.tune.content, nil, nil, plotArea)
 
 	// Bottom: status line.
 	w.status = widget.NewLabel("Ready.")
@@ -388,6 +390,9 @@ func (w *mainWindow) redraw() {
 	}
 	if w.overlay {
 		v.Previous = w.previous
+	}
+	if ref := w.tune.reference(); ref != nil {
+		v.Previous = ref
 	}
 	w.plot.Set(w.current, v)
 }
