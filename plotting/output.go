@@ -2,7 +2,6 @@ package plotting
 
 import (
 	"fmt"
-	"git.sr.ht/~sbinet/gg"
 	"image"
 	"image/color"
 	"io"
@@ -134,13 +133,4 @@ func isWhite(c color.Color) bool {
 	}
 	r, g, b, a := c.RGBA()
 	return r == 0xFFFF && g == 0xFFFF && b == 0xFFFF && a == 0xFFFF
-}
-
-// newScreenCanvas returns a canvas that draws straight into dst at 96 dots
-// per inch, cleared to white.
-func newScreenCanvas(dst *image.RGBA) *vgimg.Canvas {
-	ctx := gg.NewContextForRGBA(dst)
-	ctx.SetLineCapButt()
-	ctx.InvertY()
-	return vgimg.NewWith(vgimg.UseImageWithContext(dst, ctx), vgimg.UseDPI(screenDPI))
 }

@@ -20,6 +20,8 @@ func rasterDPI(c vg.Canvas) (dpi float64, ok bool) {
 		switch v := c.(type) {
 		case *vgimg.Canvas:
 			return v.DPI(), true
+		case *screenCanvas:
+			return v.DPI(), true
 		case draw.Canvas:
 			c = v.Canvas
 		case *draw.Canvas:

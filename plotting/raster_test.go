@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
@@ -297,11 +298,13 @@ func TestNoLegendWidensData(t *testing.T) {
 }
 
 // plainCanvas hides the raster canvas from rasterDPI, so that a figure is
-// drawn as a vector canvas would draw it: native dashes, no thinning.
+// drawn as a vector canvas would draw it: native dashes, no thinning; and
+// its text is drawn by vgimg itself.
 type plainCanvas struct{ *vgimg.Canvas }
 
 // A whole figure drawn on screen looks as it did before the raster-only
-// paths: dashes cut here, lines thinned by pixel columns.
+// paths: dashes cut here, lines thinned by pixel columns, text from cached
+// glyphs.
 func TestRenderMatchesPlainDrawing(t *testing.T) {
 	tr := decay(40, 400)
 	p, err := TrajectoryPlot(tr, Options{Title: "forty", LogX: true, Overlay: &tr})
@@ -310,10 +313,58 @@ func TestRenderMatchesPlainDrawing(t *testing.T) {
 	}
 	fast := Render(p, 800, 500).(*image.RGBA)
 	plain := image.NewRGBA(fast.Bounds())
-	p.Draw(draw.New(plainCanvas{newScreenCanvas(plain)}))
+	p.Draw(draw.New(plainCanvas{newScreenCanvas(plain).Canvas}))
 	maxDiff, mean := pixelDiff(fast, plain)
 	t.Logf("largest channel difference %d/255, mean %.4f/255", maxDiff, mean)
 	if mean > 0.05 {
 		t.Errorf("on-screen figure differs from the plain drawing by %.4f/255 on average; want ≤ 0.05", mean)
+	}
+}
+
+// Text drawn from cached glyphs matches vgimg's own text, at fractional
+// positions, in several sizes, upright and rotated, twice over (the second
+// time from the cache).
+func TestScreenTextMatchesVgimg(t *testing.T) {
+	p := plot.New()
+	sty := p.X.Tick.Label
+	texts := []string{"concentration (µM)", "time (s)", "10^−3 AVWa", "0.25", "… and 12 more", "fi ffl Ǆ ∑ 🜁"}
+	drawAll := func(c vg.Canvas) {
+		for pass := range 2 {
+			for i, txt := range texts {
+				s := sty
+				s.Font.Size = vg.Points(8 + 1.7*float64(i))
+				s.Color = Colour(i)
+				if i == 2 {
+					s.Handler = powerLabels
+				}
+				if i == 3 && pass == 1 {
+					s.Rotation = math.Pi / 2
+				}
+				at := vg.Point{X: vg.Length(13.37*float64(i) + 0.21*float64(pass)), Y: vg.Length(20 + 25*float64(i) + 0.4*float64(pass))}
+				s.Handler.Draw(c, txt, s, at)
+			}
+		}
+	}
+	ours := image.NewRGBA(image.Rect(0, 0, 400, 260))
+	drawAll(newScreenCanvas(ours))
+	theirs := image.NewRGBA(ours.Bounds())
+	drawAll(newScreenCanvas(theirs).Canvas)
+	if _, m := pixelDiff(theirs, rasterOf(400, 260, func(draw.Canvas) {})); m < 1 {
+		t.Fatalf("the text changes the image by only %.3f/255 on average", m)
+	}
+	maxDiff, mean := pixelDiff(ours, theirs)
+	t.Logf("largest channel difference %d/255, mean %.5f/255", maxDiff, mean)
+	if maxDiff > 2 {
+		t.Errorf("cached text differs from vgimg's by up to %d/255; want ≤ 2", maxDiff)
+	}
+}
+
+func BenchmarkScreenText(b *testing.B) {
+	img := image.NewRGBA(image.Rect(0, 0, 400, 260))
+	c := newScreenCanvas(img)
+	sty := plot.New().X.Tick.Label
+	b.ReportAllocs()
+	for b.Loop() {
+		sty.Handler.Draw(c, "concentration (µM)", sty, vg.Point{X: 20, Y: 30})
 	}
 }
