@@ -79,3 +79,27 @@ func BenchmarkSliderDrag50(b *testing.B) {
 	b.ReportMetric(solveTime.Seconds()*1e3/n, "solve-ms/op")
 	b.ReportMetric(drawTime.Seconds()*1e3/n, "draw-ms/op")
 }
+
+// BenchmarkSliderSolve50 is the set-value and solve part of a frame alone,
+// without the drawing.
+func BenchmarkSliderSolve50(b *testing.B) {
+	m := loadExample(b, "signalling-cascade-50.json")
+	s, err := NewSession(m)
+	if err != nil {
+		b.Fatal(err)
+	}
+	knob := Candidates(m)[0]
+	knobs := []Knob{knob}
+	i := 0
+	b.ReportAllocs()
+	for b.Loop() {
+		knobs[0].Value = knob.At(float64(i%101) / 100)
+		i++
+		if err := s.Set(knobs); err != nil {
+			b.Fatal(err)
+		}
+		if _, err := s.Run(context.Background()); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
