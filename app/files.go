@@ -68,6 +68,7 @@ func (w *mainWindow) loadExample(name string) error {
 func (w *mainWindow) setModel(m *network.Model, path string) {
 	w.ctrl.Cancel()
 	w.current, w.previous = nil, nil
+	w.fresh = true
 	w.hidden = map[string]bool{}
 	w.plot.view.Zoom = nil
 	w.plot.Set(nil, w.plot.view)

@@ -41,6 +41,7 @@ type mainWindow struct {
 	exampleOf string // name of the example the document came from, if any
 
 	logX, logY   *widget.Check
+	fresh        bool // no run yet since the model was opened
 	overlayChk   *widget.Check
 	filter       *widget.Entry
 	speciesList  *widget.List
@@ -340,6 +341,12 @@ func (w *mainWindow) runDone(_ int, o *simulate.Outcome, err error) {
 		w.previous = w.current
 	}
 	w.current = o
+	if w.fresh {
+		// The first run of a model just opened: read values that span
+		// many decades on a log axis, as a modeller would.
+		w.fresh = false
+		w.logY.SetChecked(simulate.SpansDecades(o, 3))
+	}
 	line := fmt.Sprintf("Method: %s · %d steps (%d rejected) · %s", o.MethodSummary(), o.Stats.Steps, o.Stats.Rejected, roundDuration(o.Elapsed))
 	if o.Stats.Choice != "" {
 		line += " · " + o.Stats.Choice
@@ -392,7 +399,7 @@ func (w *mainWindow) redraw() {
 		v.Previous = w.previous
 	}
 	if ref := w.tune.reference(); ref != nil {
-		v.Previous = ref
+		v.Previous, v.PreviousLabel = ref, "pinned reference (faint, dashed)"
 	}
 	w.plot.Set(w.current, v)
 }

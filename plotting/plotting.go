@@ -44,6 +44,9 @@ type Options struct {
 	// TrajectoryPlot, each series in the colour of the series of the same
 	// name.
 	Overlay *Trajectories
+	// OverlayLabel names the overlay in the legend; empty means
+	// "previous run (faint, dashed)".
+	OverlayLabel string
 
 	// ColourIndex gives each series of a TrajectoryPlot a stable colour slot
 	// (see Colour), so that a species keeps its colour when others are

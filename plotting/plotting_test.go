@@ -615,3 +615,24 @@ func BenchmarkRenderTrajectories50(b *testing.B) {
 	}
 	b.ReportMetric(float64(cpuTime()-start)/float64(b.N), "cpu-ns/op")
 }
+
+func TestOverlayLabel(t *testing.T) {
+	tr := Trajectories{Times: []float64{0, 1, 2}, Names: []string{"A"}, Values: [][]float64{{1}, {0.5}, {0.25}}}
+	for _, c := range []struct{ label, want string }{{"", "previous run (faint, dashed)"}, {"pinned reference", "pinned reference"}} {
+		p, err := TrajectoryPlot(tr, Options{Overlay: &tr, OverlayLabel: c.label})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var buf bytes.Buffer
+		wt, err := p.WriterTo(4*vg.Inch, 3*vg.Inch, "svg")
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := wt.WriteTo(&buf); err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Contains(buf.Bytes(), []byte(c.want)) {
+			t.Errorf("label %q: the figure does not name the overlay %q", c.label, c.want)
+		}
+	}
+}

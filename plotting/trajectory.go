@@ -99,7 +99,11 @@ func TrajectoryPlot(tr Trajectories, o Options) (*plot.Plot, error) {
 			}
 			p.Add(c)
 			if first {
-				legend.add("previous run (faint, dashed)", &curve{line: draw.LineStyle{Color: withAlpha(Colour(6), 0.4), Width: vg.Points(lineWidth), Dashes: c.line.Dashes}})
+				label := o.OverlayLabel
+				if label == "" {
+					label = "previous run (faint, dashed)"
+				}
+				legend.add(label, &curve{line: draw.LineStyle{Color: withAlpha(Colour(6), 0.4), Width: vg.Points(lineWidth), Dashes: c.line.Dashes}})
 				first = false
 			}
 		}

@@ -24,6 +24,9 @@ type View struct {
 	Hidden map[string]bool
 	// Previous is an earlier outcome drawn faintly beneath, or nil.
 	Previous *Outcome
+	// PreviousLabel names Previous in the legend; empty means the previous
+	// run.
+	PreviousLabel string
 	// Zoom, when not nil, is the part of the data shown.
 	Zoom *Range
 }
@@ -51,6 +54,7 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 	if v.Previous != nil && len(v.Previous.T) > 0 {
 		prev := v.Previous.Trajectories()
 		opt.Overlay = &prev
+		opt.OverlayLabel = v.PreviousLabel
 	}
 	tr := o.Trajectories()
 	if v.LogX {
@@ -200,4 +204,19 @@ func positiveTimes(tr plotting.Trajectories) plotting.Trajectories {
 	}
 	tr.Times, tr.Values = tr.Times[i:], tr.Values[i:]
 	return tr
+}
+
+// SpansDecades reports whether the positive values of o, over all species
+// and times, span more than the given number of decades — a sign that a log
+// concentration axis will show more than a linear one.
+func SpansDecades(o *Outcome, decades float64) bool {
+	lo, hi := math.Inf(1), 0.0
+	for _, row := range o.Y {
+		for _, v := range row {
+			if v > 0 && !math.IsInf(v, 0) {
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+		}
+	}
+	return hi > 0 && math.Log10(hi/lo) > decades
 }
