@@ -47,4 +47,4 @@ fuzz:
 	$(GO) test ./network -run '^$$' -fuzz FuzzRead -fuzztime $(FUZZTIME)
 
 clean:
-	rm -rf bin bench/out
+	rm -rf bin
