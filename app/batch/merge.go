@@ -43,6 +43,7 @@ type runMeta struct {
 	PlotSpecies    []string    `json:"plot_species,omitempty"` // sweep
 	ReadoutSpecies []string    `json:"readout_species"`
 	BandSpecies    []string    `json:"band_species,omitempty"` // population
+	LogTime        bool        `json:"log_time,omitempty"`     // the output grid is log-spaced
 }
 
 // partFile is a partial-result file.
@@ -317,7 +318,7 @@ func writeSweep(meta *runMeta, res *explore.Result, dir string, add func(string,
 			curves, values = append(curves, c), append(values, s.X[0])
 		}
 		p, err := plotting.FamilyPlot(times, curves, values, meta.Knobs[0], plotting.Options{
-			Title: sp, XLabel: "time", XUnit: meta.TimeUnit, YLabel: sp, YUnit: meta.AmountUnit,
+			Title: sp, XLabel: "time", XUnit: meta.TimeUnit, YLabel: sp, YUnit: meta.AmountUnit, LogX: meta.LogTime,
 		})
 		if err := savePlot(p, err, dir, "family_"+fileName(sp)+".png", add); err != nil {
 			return err
@@ -393,6 +394,7 @@ func writePopulation(meta *runMeta, res *explore.Result, dir string, add func(st
 		}
 		p, err := plotting.BandPlot(b.Times, q[2], q[0], q[4], q[1], q[3], sp, plotting.Options{
 			Title: sp + ": median, 25–75 % and 5–95 %", XLabel: "time", XUnit: meta.TimeUnit, YLabel: sp, YUnit: meta.AmountUnit,
+			LogX: meta.LogTime,
 		})
 		if err := savePlot(p, err, dir, "bands_"+fileName(sp)+".png", add); err != nil {
 			return err

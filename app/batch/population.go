@@ -202,7 +202,7 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	meta := &runMeta{
 		Kind: "population", Spec: filepath.Base(c.spec), Title: l.model.Title,
 		TimeUnit: l.model.Units.Time, AmountUnit: l.model.Units.Amount,
-		Knobs: knobs, Species: l.sys.Species(), BandSpecies: bandSp,
+		Knobs: knobs, Species: l.sys.Species(), BandSpecies: bandSp, LogTime: l.sim.Output.Spacing == "log",
 	}
 	for _, r := range ro {
 		meta.ReadoutSpecies = append(meta.ReadoutSpecies, l.sys.Species()[r.Component])

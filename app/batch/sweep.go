@@ -589,7 +589,7 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	meta := &runMeta{
 		Kind: "sweep", Spec: filepath.Base(c.spec), Title: l.model.Title,
 		TimeUnit: l.model.Units.Time, AmountUnit: l.model.Units.Amount,
-		Knobs: knobs, Axes: axes, AxisLog: logs, Species: l.sys.Species(), PlotSpecies: plotSp,
+		Knobs: knobs, Axes: axes, AxisLog: logs, Species: l.sys.Species(), PlotSpecies: plotSp, LogTime: l.sim.Output.Spacing == "log",
 	}
 	for _, r := range ro {
 		meta.ReadoutSpecies = append(meta.ReadoutSpecies, l.sys.Species()[r.Component])
