@@ -327,6 +327,16 @@ func TestDispatch(t *testing.T) {
 		t.Errorf("simulate -h: exit %d", rc)
 	}
 	errb.Reset()
+	// The other subcommands print their own usage for -h and succeed too.
+	for _, cmd := range []string{"sweep", "population", "merge"} {
+		out.Reset()
+		errb.Reset()
+		if rc := dispatch([]string{cmd, "-h"}, &out, &errb); rc != 0 || !strings.Contains(errb.String(), "usage: batch "+cmd) || strings.Contains(errb.String(), "help requested") {
+			t.Errorf("%s -h: status %d, stderr %q; want 0 and the usage alone", cmd, rc, errb.String())
+		}
+	}
+	out.Reset()
+	errb.Reset()
 	if rc := dispatch([]string{"frobnicate"}, &out, &errb); rc != 2 || !strings.Contains(errb.String(), `"frobnicate"`) {
 		t.Errorf("unknown command: exit %d, %q", rc, errb.String())
 	}

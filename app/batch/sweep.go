@@ -468,16 +468,17 @@ func badInput(err error) error {
 }
 
 // exitStatus reports err on stderr and returns the exit status for it.
+// A request for help (-h) has already printed the usage and succeeds.
 func exitStatus(name string, err error, stderr io.Writer) int {
-	if err == nil {
-		return 0
+	if err == nil || errors.Is(err, flag.ErrHelp) {
+		return exitOK
 	}
 	fmt.Fprintf(stderr, "%s: %v\n", name, err)
 	var ie inputError
 	if errors.As(err, &ie) {
-		return 2
+		return exitBadInput
 	}
-	return 1
+	return exitFailed
 }
 
 // runSweep is the sweep subcommand.
