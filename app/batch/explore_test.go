@@ -244,7 +244,7 @@ func TestSpecErrorsNameTheKey(t *testing.T) {
 	}
 }
 
-// BenchmarkPopulation20 runs populations of 16 samples of the invented
+// BenchmarkPopulation20 runs populations of 256 samples of the invented
 // 20-species signalling cascade (examples/signalling-cascade-20.json), two
 // rate constants log-normal with CV 30 %, with 1 and 2 workers, and reports
 // samples per second and, for 2 workers, the parallel efficiency
@@ -270,7 +270,7 @@ func BenchmarkPopulation20(b *testing.B) {
 	}
 	sim := m.Simulation.WithDefaults()
 	times := network.OutputTimes(sim.TEnd, sim.Output)
-	const size = 16
+	const size = 256
 	pts, err := explore.Population{Vary: dists, Size: size, Seed: 1}.Sample()
 	if err != nil {
 		b.Fatal(err)
