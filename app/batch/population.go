@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"slices"
 
 	"kinetarium/solve/explore"
 )
@@ -158,7 +159,7 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		if v.Target == "" {
 			return nil, nil, fmt.Errorf("%s: %s.target: missing (a parameter name, init:SPECIES or volume:COMPARTMENT)", c.spec, path)
 		}
-		if contains(knobs, v.Target) {
+		if slices.Contains(knobs, v.Target) {
 			return nil, nil, fmt.Errorf("%s: %s.target: %q is varied twice", c.spec, path, v.Target)
 		}
 		d, err := v.distribution(path)

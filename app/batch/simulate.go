@@ -45,16 +45,9 @@ type simFlags struct {
 	set     map[string]bool
 }
 
-// simInputError is an error in the command line or the model file of
-// simulate (exit status 2).
-type simInputError struct{ err error }
-
-func (e simInputError) Error() string { return e.err.Error() }
-func (e simInputError) Unwrap() error { return e.err }
-
-// simBadf returns a simInputError.
+// simBadf returns an input error (exit status 2) of the command line.
 func simBadf(format string, args ...any) error {
-	return simInputError{fmt.Errorf(format, args...)}
+	return badInput(fmt.Errorf(format, args...))
 }
 
 // parseSimFlags parses "MODEL.json [flags]", flags before or after the
@@ -130,15 +123,7 @@ func runSimulate(args []string, stdout, stderr io.Writer) int {
 		defer stop()
 		err = simulate(ctx, f, stdout)
 	}
-	if err != nil {
-		fmt.Fprintln(stderr, "simulate:", err)
-		var bad simInputError
-		if errors.As(err, &bad) {
-			return exitBadInput
-		}
-		return exitFailed
-	}
-	return exitOK
+	return exitStatus("simulate", err, stderr)
 }
 
 // simStats is the JSON line --stats prints.
@@ -168,7 +153,7 @@ type simStats struct {
 func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 	m, err := network.Load(f.model)
 	if err != nil {
-		return simInputError{err}
+		return badInput(err)
 	}
 	sim := m.Simulation.WithDefaults()
 	if f.set["t-end"] {
@@ -192,7 +177,7 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 	m.Simulation = sim
 	sys, err := network.Compile(m)
 	if err != nil {
-		return simInputError{fmt.Errorf("%s: %w", f.model, err)}
+		return badInput(fmt.Errorf("%s: %w", f.model, err))
 	}
 	times := network.OutputTimes(sim.TEnd, sim.Output)
 	method := solve.Method(sim.Method)

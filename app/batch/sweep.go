@@ -15,6 +15,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -582,7 +583,7 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	if plotSp == nil {
 		for _, r := range ro {
 			sp := l.sys.Species()[r.Component]
-			if !contains(plotSp, sp) {
+			if !slices.Contains(plotSp, sp) {
 				plotSp = append(plotSp, sp)
 			}
 		}
@@ -601,14 +602,4 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		ode:      &explore.ODE{Target: tg, TEnd: l.sim.TEnd, Settings: l.settings()},
 		settings: explore.Settings{Knobs: knobs, Readouts: ro, KeepTrajectories: true},
 	}, nil
-}
-
-// contains reports whether list holds s.
-func contains(list []string, s string) bool {
-	for _, x := range list {
-		if x == s {
-			return true
-		}
-	}
-	return false
 }
