@@ -416,12 +416,12 @@ func (p *tunePanel) say(msg string, warn bool) {
 // result shows the outcome of the newest values.
 func (p *tunePanel) result(_ int, req tune.Request, o *simulate.Outcome, err error) {
 	w := p.w
+	if req.Model != p.model {
+		return // the model changed since
+	}
 	if o == nil {
 		p.say(plainError(err), true)
 		return
-	}
-	if req.Model != p.model {
-		return // the model changed since
 	}
 	newNames := w.current == nil || !slices.Equal(w.current.Names, o.Names)
 	w.current = o
@@ -498,6 +498,7 @@ func (p *tunePanel) writeBack() {
 // modelChanged follows edits, undo and loading: the sliders go to the
 // model's new values, and sliders of values no longer in the model go.
 func (p *tunePanel) modelChanged() {
+	p.model = nil // drops the results of solves of the old model
 	m := p.w.doc.Model()
 	kept := p.knobs[:0]
 	for _, k := range p.knobs {

@@ -359,3 +359,48 @@ func TestTuneScreenshot(t *testing.T) {
 		t.Fatal(err)
 	}
 }
+
+// A slider solve still running when the model is edited belongs to the old
+// model: its result must not replace the figure.
+func TestTuneDropsResultOfEditedModel(t *testing.T) {
+	w := openTuneWindow(t, tuneDecayModel())
+	release := make(chan struct{})
+	started := make(chan struct{}, 1)
+	var stale *simulate.Outcome // written by the runner's goroutine before delivery
+	w.tune.runner.Solve = func(ctx context.Context, req tune.Request) (*simulate.Outcome, error) {
+		started <- struct{}{}
+		<-release
+		s, err := tune.NewSession(req.Model)
+		if err != nil {
+			return nil, err
+		}
+		if err := s.Set(req.Knobs); err != nil {
+			return nil, err
+		}
+		o, err := s.Run(context.Background())
+		stale = o
+		return o, err
+	}
+	var before *simulate.Outcome
+	onUI(func() {
+		w.autoRerun = false // only the slider's solve delivers
+		before = w.current
+		w.tune.rows[knobIndex(t, w.tune, "k")].slider.SetValue(900)
+	})
+	<-started
+	onUI(func() {
+		if !w.doc.Apply("set A's initial value", func(m *network.Model) { m.Species[0].Initial = 5 }) {
+			t.Fatal("the edit did nothing")
+		}
+	})
+	close(release)
+	waitFor(t, "the slider's result", func() bool { _, shown := w.tune.runner.Counts(); return shown == 1 })
+	onUI(func() {
+		if stale == nil || w.current == stale {
+			t.Error("the figure shows a slider run of the model as it was before the edit")
+		}
+		if w.current != before {
+			t.Error("the figure changed without a run of the edited model")
+		}
+	})
+}
