@@ -383,7 +383,13 @@ func plainError(err error) string {
 		return "The model has mistakes; see Messages."
 	}
 	s := err.Error()
-	return strings.ToUpper(s[:1]) + s[1:]
+	if s == "" {
+		return "The run failed."
+	}
+	if c := s[0]; 'a' <= c && c <= 'z' {
+		return string(c-'a'+'A') + s[1:]
+	}
+	return s // a message starting with a symbol such as μ keeps it
 }
 
 // redraw draws the current outcome with the current view.

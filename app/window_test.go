@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"sync"
 	"testing"
 	"time"
@@ -78,5 +79,20 @@ func TestWindowRunsAndRerunsOnEdit(t *testing.T) {
 	}
 	if !w.doc.Dirty() {
 		t.Error("edited document not marked unsaved")
+	}
+}
+
+// plainError starts the sentence with a capital letter, leaves a message
+// that starts with a symbol of more than one byte whole, and does not fail
+// on an empty message.
+func TestPlainError(t *testing.T) {
+	for _, c := range []struct{ err, want string }{
+		{"step size too small", "Step size too small"},
+		{"μ is negative", "μ is negative"},
+		{"", "The run failed."},
+	} {
+		if got := plainError(errors.New(c.err)); got != c.want {
+			t.Errorf("plainError(%q) = %q, want %q", c.err, got, c.want)
+		}
 	}
 }
