@@ -163,34 +163,13 @@ func (w *mainWindow) saveTo(path string) {
 }
 
 func (w *mainWindow) saveAs() {
-	d := dialog.NewFileSave(func(wc fyne.URIWriteCloser, err error) {
-		if err != nil {
-			w.showError(err)
-			return
-		}
-		if wc == nil {
-			return
-		}
-		path := wc.URI().Path()
-		wc.Close() // the file is written atomically by saveTo
-		if filepath.Ext(path) == "" {
-			path += ".json"
-		}
-		w.saveTo(path)
-	}, w.win)
-	d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
 	name := "model.json"
 	if w.doc.Path != "" {
 		name = filepath.Base(w.doc.Path)
 	} else if w.exampleOf != "" {
 		name = w.exampleOf
 	}
-	d.SetFileName(name)
-	if dir := w.lastDir(); dir != nil {
-		d.SetLocation(dir)
-	}
-	d.Resize(fyne.NewSize(900, 600))
-	d.Show()
+	w.saveFileDialog(name, ".json", w.saveTo)
 }
 
 // recent returns the recent files, newest first.
