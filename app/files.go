@@ -281,8 +281,10 @@ func (w *mainWindow) offerRecovery() {
 		}
 		w.exampleOf = ""
 		w.setModel(m, "")
-		// The restored work exists only in the recovery file until saved.
+		// The restored work exists only in the recovery file until saved;
+		// setModel removed that file, so write it again at once.
 		w.doc.MarkModified()
+		w.autosave()
 		w.simulate()
 	}, w.win)
 	fyne.Do(d.Show)
