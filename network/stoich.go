@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/big"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
@@ -64,7 +65,10 @@ type ConservationLaw struct {
 // not fixed. The totals are in amounts (concentration × volume of each
 // species' compartment): Σ w_i·V_i·[i] stays constant. Their number is the
 // number of non-fixed species minus the rank of N. The basis is chosen with
-// few negative weights where simple combinations allow.
+// few negative weights where simple combinations allow. Coefficients are
+// taken as the decimals they are written as (0.1 is 1/10). A law whose
+// integer weights do not fit in an int (coefficients spanning more than
+// about 18 orders of magnitude) is left out rather than listed wrongly.
 func (m *Model) ConservationLaws() []ConservationLaw {
 	species, _, n := m.Stoichiometry()
 	var free []int // non-fixed species
@@ -88,7 +92,10 @@ func (m *Model) ConservationLaws() []ConservationLaw {
 			}
 			r := new(big.Rat)
 			if !math.IsNaN(x) && !math.IsInf(x, 0) {
-				r.SetFloat64(x)
+				// The shortest decimal that reads back as x: a coefficient
+				// written 0.1 is the rational 1/10, not the binary
+				// fraction nearest to it.
+				r.SetString(strconv.FormatFloat(x, 'g', -1, 64))
 			}
 			rows[j][k] = r
 		}
@@ -146,9 +153,13 @@ func (m *Model) ConservationLaws() []ConservationLaw {
 	improveSigns(basis)
 	shrink(basis)
 	var laws []ConservationLaw
+basis:
 	for _, b := range basis {
 		law := ConservationLaw{Weights: make([]int, len(m.Species))}
 		for k, i := range free {
+			if !b[k].IsInt64() || int64(int(b[k].Int64())) != b[k].Int64() {
+				continue basis // a weight too large for an int: not listed
+			}
 			law.Weights[i] = int(b[k].Int64())
 		}
 		law.Text = lawText(m, species, law.Weights)

@@ -3,6 +3,7 @@ package network
 import (
 	"math"
 	"math/rand/v2"
+	"slices"
 	"strings"
 	"testing"
 
@@ -122,5 +123,42 @@ func TestStoichiometry(t *testing.T) {
 	want := mat.NewDense(3, 2, []float64{-2, 1, 0, 0, 3, -1})
 	if !mat.Equal(n, want) {
 		t.Errorf("N =\n%v\nwant\n%v", mat.Formatted(n), mat.Formatted(want))
+	}
+}
+
+// TestConservationDecimalCoefficients checks laws with decimal coefficients:
+// for A -> c B, the conserved total is c·A + B (the stoichiometry of the
+// reaction; common practice), scaled to coprime integers.
+func TestConservationDecimalCoefficients(t *testing.T) {
+	for _, tc := range []struct{ eq, want string }{
+		{"A -> 0.1 B", "A + 10 B = constant"},
+		{"A -> 0.000001 B", "A + 1000000 B = constant"},
+		{"A -> 0.3 B + 0.7 C", ""}, // two laws, basis not unique: weights checked only
+	} {
+		m := &Model{
+			Species:   []Species{{Name: "A", Initial: 1}, {Name: "B"}, {Name: "C"}},
+			Reactions: []Reaction{{Name: "r", Equation: tc.eq, Rate: Rate{Law: MassAction, K: Number(1)}}},
+		}
+		laws := checkLaws(t, m)
+		var texts []string
+		for _, l := range laws {
+			texts = append(texts, l.Text)
+			for i, w := range l.Weights {
+				if w > 1e6 || w < -1e6 {
+					t.Errorf("%s: law %q has weight %d for %s; expected small decimal-derived weights", tc.eq, l.Text, w, m.Species[i].Name)
+				}
+			}
+		}
+		if tc.want != "" && !slices.Contains(texts, tc.want) {
+			t.Errorf("%s: laws %q, want %q", tc.eq, texts, tc.want)
+		}
+	}
+	// Weights beyond an int are left out, not truncated into a wrong law.
+	m := &Model{
+		Species:   []Species{{Name: "A", Initial: 1}, {Name: "B"}},
+		Reactions: []Reaction{{Name: "r", Equation: "A -> 1000000000000000000000 B", Rate: Rate{Law: MassAction, K: Number(1)}}},
+	}
+	if laws := m.ConservationLaws(); len(laws) != 0 {
+		t.Errorf("A -> 1e21 B: laws %+v, want none (weights do not fit an int)", laws)
 	}
 }
