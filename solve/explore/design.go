@@ -2,6 +2,7 @@ package explore
 
 import (
 	"fmt"
+	"math"
 	"math/bits"
 	"math/rand/v2"
 	"strconv"
@@ -26,13 +27,20 @@ type Grid struct {
 	Axes [][]float64
 }
 
-// Len implements Design.
+// Len implements Design. It returns -1 when the number of points does not
+// fit in an int (Run refuses such a design).
 func (g Grid) Len() int {
 	if len(g.Axes) == 0 {
 		return 0
 	}
 	n := 1
 	for _, a := range g.Axes {
+		if len(a) == 0 {
+			return 0
+		}
+		if n > math.MaxInt/len(a) {
+			return -1
+		}
 		n *= len(a)
 	}
 	return n

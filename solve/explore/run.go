@@ -110,6 +110,9 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 	if err := s.Shard.validate(); err != nil {
 		return nil, err
 	}
+	if d.Len() < 0 {
+		return nil, fmt.Errorf("explore: the design has more points than can be counted (%d knobs); use fewer values per knob", d.Dim())
+	}
 	if d.Dim() != len(s.Knobs) {
 		return nil, fmt.Errorf("explore: the design has %d knobs but Settings.Knobs names %d", d.Dim(), len(s.Knobs))
 	}

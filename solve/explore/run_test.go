@@ -312,3 +312,28 @@ func TestRunChecksSettings(t *testing.T) {
 		t.Error("bad shard: no error")
 	}
 }
+
+// TestRunRefusesOverflowingGrid checks that a grid of 256⁸ = 2⁶⁴ points,
+// which wraps an int to 0, is refused rather than run as an empty design.
+func TestRunRefusesOverflowingGrid(t *testing.T) {
+	axis := make([]float64, 256)
+	for i := range axis {
+		axis[i] = float64(i + 1)
+	}
+	var g Grid
+	knobs := make([]string, 8)
+	for i := range knobs {
+		g.Axes = append(g.Axes, axis)
+		knobs[i] = fmt.Sprintf("k%d", i)
+	}
+	if n := g.Len(); n != -1 {
+		t.Errorf("Len of 256^8 points = %d, want -1", n)
+	}
+	_, err := Run(context.Background(), g, newDecaySim(grid(3, 1), 1, 0), Settings{Knobs: knobs})
+	if err == nil || !strings.Contains(err.Error(), "more points than can be counted") {
+		t.Errorf("Run on 256^8 points: error %v, want a refusal", err)
+	}
+	if n := (Grid{Axes: [][]float64{{1, 2}, {}}}).Len(); n != 0 {
+		t.Errorf("Len with an empty axis = %d, want 0", n)
+	}
+}
