@@ -244,6 +244,9 @@ func ReadJSON(rd io.Reader) (*Result, error) {
 	if sh.N == 1 {
 		sh = Shard{}
 	}
+	if wr.Size < 0 {
+		return nil, fmt.Errorf("reading a partial result: size is %d, expected a number of points ≥ 0", wr.Size)
+	}
 	r := &Result{
 		Size: wr.Size, Shard: sh, Knobs: wr.Knobs, Readouts: wr.Readouts,
 		Stats: Stats{Points: wr.Points, Failed: wr.Failed},
@@ -273,7 +276,7 @@ func ReadJSON(rd io.Reader) (*Result, error) {
 		r.Samples = append(r.Samples, smp)
 	}
 	for k, f := range wr.Failures {
-		if f.Index < 0 || f.Index >= wr.Size || len(f.X) != len(wr.Knobs) {
+		if f.Index < 0 || f.Index >= wr.Size || !sh.Has(f.Index) || len(f.X) != len(wr.Knobs) {
 			return bad("failure %d: index %d or %d knob values do not fit", k, f.Index, len(f.X))
 		}
 		r.Failures = append(r.Failures, Failure{Index: f.Index, X: fromNums(f.X), Err: f.Err})

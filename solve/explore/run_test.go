@@ -337,3 +337,28 @@ func TestRunRefusesOverflowingGrid(t *testing.T) {
 		t.Errorf("Len with an empty axis = %d, want 0", n)
 	}
 }
+
+// TestReadJSONRejectsBadParts checks that a part file with a negative size,
+// or a failure outside its shard, is refused with a message instead of
+// being accepted (a negative size made Result.Values panic).
+func TestReadJSONRejectsBadParts(t *testing.T) {
+	for _, tc := range []struct{ name, json, want string }{
+		{"negative size", `{"format":"` + PartFormat + `","size":-1,"shard":"0/1","knobs":["k"],"readouts":["r"],"samples":[],"failures":[],"points":0,"failed":0,"wall_ns":0}`, "size is -1"},
+		{"failure outside shard", `{"format":"` + PartFormat + `","size":4,"shard":"0/2","knobs":["k"],"readouts":["r"],"samples":[],"failures":[{"i":1,"x":[1],"error":"e"}],"points":1,"failed":1,"wall_ns":0}`, "failure 0"},
+	} {
+		r, err := ReadJSON(strings.NewReader(tc.json))
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%s: error %v, want one containing %q", tc.name, err, tc.want)
+			if r != nil {
+				func() {
+					defer func() {
+						if p := recover(); p != nil {
+							t.Errorf("%s: Values panics: %v", tc.name, p)
+						}
+					}()
+					r.Values(0)
+				}()
+			}
+		}
+	}
+}
