@@ -166,13 +166,26 @@ func (c *Controller) Changed(snapshot func() *network.Model) bool {
 	if c.last >= quick {
 		return false
 	}
-	c.timer = time.AfterFunc(debounce, func() {
+	var t *time.Timer
+	t = time.AfterFunc(debounce, func() {
 		c.deliver(func() {
+			// A Cancel, Start or newer change between the timer firing
+			// and this delivery stops the re-run.
+			c.mu.Lock()
+			live := c.timer == t
+			if live {
+				c.timer = nil
+			}
+			c.mu.Unlock()
+			if !live {
+				return
+			}
 			if m := snapshot(); m != nil {
 				c.Start(m)
 			}
 		})
 	})
+	c.timer = t
 	return true
 }
 

@@ -297,3 +297,38 @@ func TestNearestAllocatesNothing(t *testing.T) {
 		t.Errorf("Nearest allocates %v times per call", allocs)
 	}
 }
+
+// A Cancel that comes after the re-run's timer fired, but before its
+// delivery ran, still stops the re-run.
+func TestControllerCancelStopsFiredRerun(t *testing.T) {
+	var queued []func()
+	var mu sync.Mutex
+	started := 0
+	c := &Controller{
+		Debounce: time.Millisecond,
+		Deliver: func(f func()) {
+			mu.Lock()
+			queued = append(queued, f)
+			mu.Unlock()
+		},
+		OnStart: func(int) { started++ },
+	}
+	c.Changed(func() *network.Model { return &network.Model{} })
+	for {
+		mu.Lock()
+		n := len(queued)
+		mu.Unlock()
+		if n > 0 {
+			break
+		}
+		time.Sleep(time.Millisecond)
+	}
+	c.Cancel()
+	mu.Lock()
+	f := queued[0]
+	mu.Unlock()
+	f()
+	if started != 0 {
+		t.Errorf("a re-run started after Cancel")
+	}
+}
