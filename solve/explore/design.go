@@ -75,6 +75,17 @@ func (p Points) Dim() int {
 // Point implements Design.
 func (p Points) Point(i int, x []float64) { copy(x, p[i]) }
 
+// check reports a point whose length differs from the first point's
+// (Point would leave knobs of the previous point in place).
+func (p Points) check() error {
+	for i, x := range p {
+		if len(x) != p.Dim() {
+			return fmt.Errorf("point %d has %d knob values, expected %d like point 0", i, len(x), p.Dim())
+		}
+	}
+	return nil
+}
+
 // Sampling is a way of drawing a population.
 type Sampling string
 

@@ -113,6 +113,11 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 	if d.Len() < 0 {
 		return nil, fmt.Errorf("explore: the design has more points than can be counted (%d knobs); use fewer values per knob", d.Dim())
 	}
+	if p, ok := d.(Points); ok {
+		if err := p.check(); err != nil {
+			return nil, fmt.Errorf("explore: %w", err)
+		}
+	}
 	if d.Dim() != len(s.Knobs) {
 		return nil, fmt.Errorf("explore: the design has %d knobs but Settings.Knobs names %d", d.Dim(), len(s.Knobs))
 	}

@@ -362,3 +362,14 @@ func TestReadJSONRejectsBadParts(t *testing.T) {
 		}
 	}
 }
+
+// TestRunRefusesRaggedPoints checks that a Points design whose points have
+// different lengths is refused: a short point used to keep the previous
+// point's value for its missing knob.
+func TestRunRefusesRaggedPoints(t *testing.T) {
+	d := Points{{1, 2}, {3}}
+	_, err := Run(context.Background(), d, newDecaySim(grid(3, 1), 1, 0), Settings{Knobs: []string{"k", "j"}, Workers: 1})
+	if err == nil || !strings.Contains(err.Error(), "point 1 has 1 knob values, expected 2") {
+		t.Errorf("ragged points: error %v, want a refusal naming point 1", err)
+	}
+}
