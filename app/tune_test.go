@@ -52,7 +52,15 @@ func openTuneWindow(t *testing.T, m *network.Model) *mainWindow {
 	a := test.NewTempApp(t)
 	a.Settings().SetTheme(newTheme())
 	w := newMainWindow(a, true)
-	t.Cleanup(func() { w.tune.runner.Close(); w.win.Close() })
+	t.Cleanup(func() {
+		// Stop runs and pending re-runs: they would touch this window's
+		// widgets during the next test.
+		onUI(w.ctrl.Cancel)
+		waitFor(t, "the runs to stop", func() bool { return !w.ctrl.Running() })
+		onUI(func() {})
+		w.tune.runner.Close()
+		w.win.Close()
+	})
 	w.ctrl.Deliver = onUI
 	w.tune.runner.Deliver = onUI
 	w.win.Resize(fyne.NewSize(1280, 800))
