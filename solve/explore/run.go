@@ -152,6 +152,9 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 		failure *Failure
 	}
 	outcomes := make([]outcome, len(idx))
+	// runCtx also stops the other workers when one cannot make a simulator.
+	runCtx, cancel := context.WithCancel(ctx)
+	defer cancel()
 	var (
 		next     atomic.Int64
 		done     atomic.Int64
@@ -185,17 +188,18 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 			sim, err := newSim()
 			if err != nil {
 				errOnce.Do(func() { setupErr = fmt.Errorf("explore: making a simulator: %w", err) })
+				cancel()
 				return
 			}
 			x := make([]float64, nk)
-			for ctx.Err() == nil {
+			for runCtx.Err() == nil {
 				k := int(next.Add(1) - 1)
 				if k >= len(idx) {
 					return
 				}
 				i := idx[k]
 				d.Point(i, x)
-				tr, err := sim.Simulate(ctx, x)
+				tr, err := sim.Simulate(runCtx, x)
 				if err == nil {
 					err = checkTrajectory(tr, s.Readouts)
 				}
@@ -215,7 +219,7 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 				}
 				xc := append([]float64(nil), x...)
 				if err != nil {
-					if ctx.Err() != nil && errors.Is(err, ctx.Err()) {
+					if runCtx.Err() != nil && errors.Is(err, runCtx.Err()) {
 						return // cancelled: the point was not done
 					}
 					outcomes[k].failure = &Failure{Index: i, X: xc, Err: err.Error()}

@@ -7,7 +7,9 @@ import (
 	"fmt"
 	"math"
 	"strings"
+	"sync/atomic"
 	"testing"
+	"time"
 
 	"gonum.org/v1/gonum/stat/distuv"
 )
@@ -371,5 +373,45 @@ func TestRunRefusesRaggedPoints(t *testing.T) {
 	_, err := Run(context.Background(), d, newDecaySim(grid(3, 1), 1, 0), Settings{Knobs: []string{"k", "j"}, Workers: 1})
 	if err == nil || !strings.Contains(err.Error(), "point 1 has 1 knob values, expected 2") {
 		t.Errorf("ragged points: error %v, want a refusal naming point 1", err)
+	}
+}
+
+// slowSim waits up to wait for each point, or until its context ends.
+type slowSim struct {
+	wait  time.Duration
+	calls *atomic.Int64
+}
+
+func (s slowSim) Simulate(ctx context.Context, x []float64) (Trajectory, error) {
+	s.calls.Add(1)
+	select {
+	case <-ctx.Done():
+		return Trajectory{}, ctx.Err()
+	case <-time.After(s.wait):
+		return Trajectory{}, fmt.Errorf("slow")
+	}
+}
+
+// TestRunStopsWhenASimulatorCannotBeMade checks that when one worker cannot
+// make its simulator, the other workers stop instead of running the whole
+// design for a result that is thrown away.
+func TestRunStopsWhenASimulatorCannotBeMade(t *testing.T) {
+	var made, calls atomic.Int64
+	newSim := func() (Simulator, error) {
+		if made.Add(1) == 2 {
+			return nil, fmt.Errorf("no licence for a second simulator")
+		}
+		return slowSim{wait: 100 * time.Millisecond, calls: &calls}, nil
+	}
+	pts := make(Points, 20)
+	for i := range pts {
+		pts[i] = []float64{float64(i)}
+	}
+	_, err := Run(context.Background(), pts, newSim, Settings{Knobs: []string{"k"}, Workers: 2})
+	if err == nil || !strings.Contains(err.Error(), "no licence") {
+		t.Errorf("error %v, want the simulator's set-up error", err)
+	}
+	if n := calls.Load(); n > 2 {
+		t.Errorf("the working simulator ran %d points after the other failed, want at most 2", n)
 	}
 }
