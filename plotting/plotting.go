@@ -19,6 +19,7 @@ import (
 	"strings"
 
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 )
 
@@ -272,4 +273,11 @@ func (decadeTicks) Ticks(min, max float64) []plot.Tick {
 		}
 	}
 	return ticks
+}
+
+// Figures use the sans-serif Liberation face, which reads better at small
+// sizes on screen and in reports than gonum/plot's default serif.
+func init() {
+	plot.DefaultFont.Variant = "Sans"
+	plotter.DefaultFont = plot.DefaultFont
 }
