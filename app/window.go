@@ -18,6 +18,7 @@ import (
 
 	"kinetarium/editor"
 	"kinetarium/editor/simulate"
+	"kinetarium/solve"
 	"kinetarium/examples"
 	"kinetarium/network"
 )
@@ -48,6 +49,7 @@ type mainWindow struct {
 	shownSpecies []int // indices into current.Names passing the filter
 
 	status    *widget.Label
+	runInfo   *widget.Button // details of the last run
 	counts    *widget.Label
 	progress  *widget.ProgressBar
 	cancelBtn *widget.Button
@@ -162,7 +164,10 @@ func (w *mainWindow) build() {
 	w.cancelBtn = widget.NewButtonWithIcon("Cancel", theme.CancelIcon(), func() { w.ctrl.Cancel() })
 	w.cancelBtn.Hide()
 	prog := container.NewGridWrap(fyne.NewSize(220, w.cancelBtn.MinSize().Height), w.progress)
-	statusBar := container.NewBorder(widget.NewSeparator(), nil, nil, container.NewHBox(prog, w.cancelBtn), w.status)
+	w.runInfo = widget.NewButtonWithIcon("", theme.InfoIcon(), w.showRunInfo)
+	w.runInfo.Importance = widget.LowImportance
+	w.runInfo.Hide()
+	statusBar := container.NewBorder(widget.NewSeparator(), nil, w.runInfo, container.NewHBox(prog, w.cancelBtn), w.status)
 
 	main := container.NewHSplit(left, right)
 	main.Offset = 0.4
@@ -223,7 +228,10 @@ func (w *mainWindow) buildMenus() {
 		w.rerunItem.Checked = w.autoRerun
 		w.mainMenu.Refresh()
 	}
-	run := fyne.NewMenu("Run", simItem, cancelItem, fyne.NewMenuItemSeparator(), w.rerunItem)
+	sweepItem := fyne.NewMenuItem("Sweep…", w.openSweep)
+	popItem := fyne.NewMenuItem("Population…", w.openPopulation)
+	run := fyne.NewMenu("Run", simItem, cancelItem, fyne.NewMenuItemSeparator(), w.rerunItem,
+		fyne.NewMenuItemSeparator(), sweepItem, popItem)
 
 	help := fyne.NewMenu("Help",
 		fyne.NewMenuItem("Writing equations and rate laws", w.showHelp),
@@ -347,10 +355,8 @@ func (w *mainWindow) runDone(_ int, o *simulate.Outcome, err error) {
 		w.fresh = false
 		w.logY.SetChecked(simulate.SpansDecades(o, 3))
 	}
-	line := fmt.Sprintf("Method: %s · %d steps (%d rejected) · %s", o.MethodSummary(), o.Stats.Steps, o.Stats.Rejected, roundDuration(o.Elapsed))
-	if o.Stats.Choice != "" {
-		line += " · " + o.Stats.Choice
-	}
+	line := fmt.Sprintf("Solved in %s with %s (%d steps). ⓘ tells more.", roundDuration(o.Elapsed), plainMethod(o), o.Stats.Steps)
+	w.runInfo.Show()
 	if err != nil {
 		end := 0.0
 		if len(o.T) > 0 {
@@ -481,4 +487,42 @@ func modelBytes(m *network.Model) ([]byte, error) {
 	var b bytes.Buffer
 	err := m.Write(&b)
 	return b.Bytes(), err
+}
+
+// plainMethod names the method of an outcome for the status line, in words
+// for people who are not numerical analysts.
+func plainMethod(o *simulate.Outcome) string {
+	stiff := false
+	for _, m := range o.Stats.Methods {
+		if m != solve.Explicit {
+			stiff = true
+		}
+	}
+	if stiff {
+		return o.MethodSummary() + ", a method for stiff systems (fast and slow reactions together)"
+	}
+	return o.MethodSummary() + ", a method for systems without very fast reactions"
+}
+
+// showRunInfo shows what the last run did: the method and why it was
+// chosen, and the solver's statistics.
+func (w *mainWindow) showRunInfo() {
+	o := w.current
+	if o == nil {
+		return
+	}
+	st := o.Stats
+	text := fmt.Sprintf("Method: %s\n", o.MethodSummary())
+	if st.Choice != "" {
+		text += "Why: " + st.Choice + "\n"
+	}
+	text += fmt.Sprintf("\nTime taken: %s\nSteps: %d (%d redone with a smaller step)\n"+
+		"Right-hand side evaluations: %d\nJacobian evaluations: %d\nMatrix factorizations: %d\n"+
+		"Steps where a concentration was kept from going negative: %d",
+		roundDuration(o.Elapsed), st.Steps, st.Rejected, st.RHSEvals, st.JacobianEvals, st.Factorizations, st.NonNegFixes)
+	l := widget.NewLabel(text)
+	l.Wrapping = fyne.TextWrapWord
+	d := dialog.NewCustom("About the last run", "Close", container.NewVScroll(l), w.win)
+	d.Resize(fyne.NewSize(560, 360))
+	d.Show()
 }

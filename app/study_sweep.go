@@ -1,0 +1,447 @@
+package main
+
+// The Sweep window: run the model for a range of values of one quantity,
+// or a grid of two, and show the curves and readouts.
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/theme"
+	"fyne.io/fyne/v2/widget"
+	"gonum.org/v1/plot"
+
+	"kinetarium/editor/study"
+	"kinetarium/network"
+	"kinetarium/plotting"
+	"kinetarium/solve/explore"
+)
+
+// Spacing choices of a swept range.
+const (
+	spacingLinear = "Linear"
+	spacingLog    = "Logarithmic"
+)
+
+// axisForm is the widgets of one swept quantity.
+type axisForm struct {
+	qs       []quantity
+	quantity *widget.Select
+	from, to *widget.Entry
+	points   *widget.Entry
+	spacing  *widget.RadioGroup
+	form     *widget.Form
+}
+
+func newAxisForm(qs []quantity, points int) *axisForm {
+	a := &axisForm{qs: qs, from: widget.NewEntry(), to: widget.NewEntry(), points: widget.NewEntry()}
+	a.spacing = widget.NewRadioGroup([]string{spacingLinear, spacingLog}, nil)
+	a.spacing.Horizontal = true
+	a.spacing.Required = true
+	a.points.SetText(strconv.Itoa(points))
+	a.quantity = widget.NewSelect(quantityLabels(qs), a.chosen)
+	a.quantity.PlaceHolder = "Choose a quantity…"
+	a.form = widget.NewForm(
+		widget.NewFormItem("Quantity", a.quantity),
+		widget.NewFormItem("From", a.from),
+		widget.NewFormItem("To", a.to),
+		widget.NewFormItem("Points", a.points),
+		widget.NewFormItem("Spacing", a.spacing),
+	)
+	return a
+}
+
+// chosen fills in a range around the model's value: a tenth to ten times
+// it on a log scale, or 0 to 1 when the value is 0.
+func (a *axisForm) chosen(label string) {
+	q, ok := findQuantity(a.qs, label)
+	if !ok {
+		return
+	}
+	if q.value > 0 {
+		a.from.SetText(short(q.value / 10))
+		a.to.SetText(short(q.value * 10))
+		a.spacing.SetSelected(spacingLog)
+		return
+	}
+	a.from.SetText("0")
+	a.to.SetText("1")
+	a.spacing.SetSelected(spacingLinear)
+}
+
+// axis reads the form; what names the form in errors.
+func (a *axisForm) axis(what string) (study.Axis, error) {
+	q, ok := findQuantity(a.qs, a.quantity.Selected)
+	if !ok {
+		return study.Axis{}, fmt.Errorf("%s: choose the quantity to vary", what)
+	}
+	from, err := number(a.from.Text, what+": from")
+	if err != nil {
+		return study.Axis{}, err
+	}
+	to, err := number(a.to.Text, what+": to")
+	if err != nil {
+		return study.Axis{}, err
+	}
+	n, err := count(a.points.Text, what+": the number of points", 1, 1000)
+	if err != nil {
+		return study.Axis{}, err
+	}
+	return study.Axis{Knob: q.knob, From: from, To: to, Points: n, Log: a.spacing.Selected == spacingLog}, nil
+}
+
+// sweepWindow is the Sweep window of one model (as it was when the window
+// was opened).
+type sweepWindow struct {
+	win    fyne.Window
+	model  *network.Model
+	prep   *study.Prepared
+	qs     []quantity
+	first  *axisForm
+	second *axisForm
+	useTwo *widget.Check
+	ro     *readoutEditor
+	ctl    *runControls
+
+	job *study.Job
+	res *explore.Result
+
+	tabs       *container.AppTabs
+	species    *widget.Select
+	secondAt   *widget.Select
+	logTime    *widget.Check
+	curves     *studyFigure
+	readoutSel *widget.Select
+	readouts   *studyFigure
+	failures   *failureList
+}
+
+// newSweepWindow makes the Sweep window for m in a.
+func newSweepWindow(a fyne.App, m *network.Model, name string) (*sweepWindow, error) {
+	prep, err := study.Prepare(m)
+	if err != nil {
+		return nil, err
+	}
+	s := &sweepWindow{win: a.NewWindow("Sweep — " + name), model: m, prep: prep, qs: quantities(m)}
+	s.first = newAxisForm(s.qs, 9)
+	s.second = newAxisForm(s.qs, 7)
+	s.second.form.Hide()
+	s.useTwo = widget.NewCheck("Vary a second quantity (a grid of runs)", func(on bool) {
+		if on {
+			s.second.form.Show()
+		} else {
+			s.second.form.Hide()
+		}
+	})
+	species := prep.Sys.Species()
+	s.ro = newReadoutEditor(species)
+	s.ctl = newRunControls(s.start)
+	if len(s.qs) > 0 {
+		s.first.quantity.SetSelected(s.qs[0].label)
+	}
+	s.ro.add(explore.Final, "", 0)
+	s.ro.add(explore.Max, "", 0)
+
+	setup := container.NewVBox(
+		sectionTitle("What varies"), s.first.form, s.useTwo, s.second.form,
+		widget.NewSeparator(), sectionTitle("Readouts"), s.ro.content,
+		widget.NewSeparator(), s.ctl.content)
+	left := container.NewVScroll(container.NewPadded(setup))
+
+	s.curves = newStudyFigure("Press Run to simulate the model for every value.")
+	s.readouts = newStudyFigure("Press Run; each readout is then drawn against the varied quantity.")
+	s.species = widget.NewSelect(species, func(string) { s.drawCurves() })
+	if len(species) > 0 {
+		s.species.SetSelected(species[0])
+	}
+	s.secondAt = widget.NewSelect(nil, func(string) { s.drawCurves() })
+	s.secondAt.Hide()
+	s.logTime = widget.NewCheck("Log time", func(bool) { s.drawCurves() })
+	s.logTime.SetChecked(prep.Sim.Output.Spacing == "log")
+	s.readoutSel = widget.NewSelect(nil, func(string) { s.drawReadout() })
+	s.failures = newFailureList("run")
+
+	curveBar := container.NewHBox(widget.NewLabel("Species"), s.species, s.secondAt, s.logTime)
+	readoutBar := container.NewHBox(widget.NewLabel("Readout"), s.readoutSel)
+	s.tabs = container.NewAppTabs(
+		container.NewTabItem("Curves", container.NewBorder(curveBar, nil, nil, nil, s.curves)),
+		container.NewTabItem("Readouts", container.NewBorder(readoutBar, nil, nil, nil, s.readouts)),
+		container.NewTabItem("Failed runs", s.failures.content),
+	)
+	exportFig := widget.NewButtonWithIcon("Figure…", theme.DocumentSaveIcon(), s.exportFigure)
+	exportCSV := widget.NewButtonWithIcon("Table (CSV)…", theme.DocumentSaveIcon(), s.exportTable)
+	top := container.NewHBox(widget.NewLabel("Export:"), exportFig, exportCSV)
+	right := container.NewBorder(container.NewBorder(nil, nil, nil, top), nil, nil, nil, s.tabs)
+
+	split := container.NewHSplit(left, container.NewPadded(right))
+	split.Offset = 0.34
+	s.win.SetContent(split)
+	s.win.Resize(fyne.NewSize(1180, 740))
+	return s, nil
+}
+
+// start reads the form and runs the sweep off the UI goroutine.
+func (s *sweepWindow) start() {
+	job, err := s.prepare()
+	if err != nil {
+		s.ctl.status.SetText(plainError(err))
+		return
+	}
+	s.ctl.begin(func(ctx context.Context, progress func(float64)) (*explore.Result, error) {
+		return job.Run(ctx, 0, progress)
+	}, func(res *explore.Result, err error) { s.finished(job, res, err) })
+}
+
+// prepare reads the form into a job.
+func (s *sweepWindow) prepare() (*study.Job, error) {
+	a1, err := s.first.axis("First quantity")
+	if err != nil {
+		return nil, err
+	}
+	axes := []study.Axis{a1}
+	if s.useTwo.Checked {
+		a2, err := s.second.axis("Second quantity")
+		if err != nil {
+			return nil, err
+		}
+		axes = append(axes, a2)
+	}
+	specs, err := s.ro.specs()
+	if err != nil {
+		return nil, err
+	}
+	return s.prep.Sweep(axes, specs)
+}
+
+// finished shows the outcome of a run.
+func (s *sweepWindow) finished(job *study.Job, res *explore.Result, err error) {
+	if res == nil {
+		s.ctl.status.SetText(plainError(err))
+		return
+	}
+	s.job, s.res = job, res
+	line := fmt.Sprintf("%d of %d runs done in %s.", res.Points-res.Failed, res.Size, roundDuration(res.Wall))
+	if errors.Is(err, context.Canceled) {
+		line = fmt.Sprintf("Cancelled: %d of %d runs done; the results show those.", res.Points, res.Size)
+	} else if err != nil {
+		line = plainError(err)
+	}
+	s.ctl.status.SetText(line + failureText(res, "run"))
+	s.failures.set(res)
+	if len(job.Axes) == 2 {
+		var opts []string
+		for _, v := range job.Axes[1] {
+			opts = append(opts, knobLabel(res.Knobs[1])+" = "+short(v))
+		}
+		s.secondAt.SetOptions(opts)
+		s.secondAt.SetSelected(opts[0])
+		s.secondAt.Show()
+	} else {
+		s.secondAt.Hide()
+	}
+	s.readoutSel.SetOptions(res.Readouts)
+	if len(res.Readouts) > 0 {
+		s.readoutSel.SetSelected(res.Readouts[0])
+	}
+	s.drawCurves()
+	s.drawReadout()
+}
+
+// knobLabel writes a knob name for people: "init:A" is "A₀ (initial)".
+func knobLabel(k string) string {
+	switch {
+	case len(k) > 5 && k[:5] == "init:":
+		return "initial " + k[5:]
+	case len(k) > 7 && k[:7] == "volume:":
+		return "volume of " + k[7:]
+	}
+	return k
+}
+
+// curveFigure is the family of curves of the chosen species.
+func (s *sweepWindow) curveFigure() (*plot.Plot, error) {
+	if s.res == nil || len(s.res.Samples) == 0 {
+		return nil, errors.New("no runs to draw yet")
+	}
+	j := slices.Index(s.prep.Sys.Species(), s.species.Selected)
+	if j < 0 {
+		return nil, errors.New("choose a species")
+	}
+	at := math.NaN()
+	if len(s.job.Axes) == 2 {
+		if i := slices.Index(s.secondAt.Options, s.secondAt.Selected); i >= 0 {
+			at = s.job.Axes[1][i]
+		}
+	}
+	var curves [][]float64
+	var values, times []float64
+	for _, smp := range s.res.Samples {
+		if smp.Traj == nil || (len(smp.X) == 2 && smp.X[1] != at) {
+			continue
+		}
+		times = smp.Traj.T
+		c := make([]float64, len(times))
+		for i := range c {
+			c[i] = smp.Traj.Y[i][j]
+		}
+		curves, values = append(curves, c), append(values, smp.X[0])
+	}
+	if len(curves) == 0 {
+		return nil, errors.New("every run of this choice failed")
+	}
+	title := s.species.Selected
+	if len(s.job.Axes) == 2 {
+		title += " at " + s.secondAt.Selected
+	}
+	u := s.model.Units
+	return plotting.FamilyPlot(times, curves, values, knobLabel(s.res.Knobs[0]), plotting.Options{
+		Title: title, XLabel: "time", XUnit: u.Time, YLabel: s.species.Selected, YUnit: u.Amount, LogX: s.logTime.Checked,
+	})
+}
+
+// readoutFigure is the chosen readout against the varied quantity, or a
+// heat map over a grid of two.
+func (s *sweepWindow) readoutFigure() (*plot.Plot, error) {
+	if s.res == nil {
+		return nil, errors.New("no runs to draw yet")
+	}
+	r := slices.Index(s.res.Readouts, s.readoutSel.Selected)
+	if r < 0 {
+		return nil, errors.New("no readout chosen; add one under Readouts and run again")
+	}
+	vals := s.res.Values(r)
+	name := s.res.Readouts[r]
+	label := name + " (" + s.job.Species[r] + ")"
+	if len(s.job.Axes) == 2 {
+		xs, ys := s.job.Axes[1], s.job.Axes[0]
+		z := make([][]float64, len(ys))
+		for i := range ys {
+			z[i] = vals[i*len(xs) : (i+1)*len(xs)]
+		}
+		return plotting.HeatMap(xs, ys, z, plotting.Options{
+			Title: name, XLabel: knobLabel(s.res.Knobs[1]), YLabel: knobLabel(s.res.Knobs[0]),
+			LogX: s.job.AxisLog[1], LogY: s.job.AxisLog[0],
+		}, name)
+	}
+	return plotting.XYPlot(s.job.Axes[0], vals, plotting.Options{
+		Title: name, XLabel: knobLabel(s.res.Knobs[0]), YLabel: label, LogX: s.job.AxisLog[0],
+	})
+}
+
+func (s *sweepWindow) drawCurves() {
+	if s.curves == nil || s.res == nil {
+		return
+	}
+	p, err := s.curveFigure()
+	hint := ""
+	if err != nil {
+		hint = plainError(err)
+	}
+	s.curves.set(p, hint)
+}
+
+func (s *sweepWindow) drawReadout() {
+	if s.readouts == nil || s.res == nil {
+		return
+	}
+	p, err := s.readoutFigure()
+	hint := ""
+	if err != nil {
+		hint = plainError(err)
+	}
+	s.readouts.set(p, hint)
+}
+
+// exportFigure saves the figure of the tab shown.
+func (s *sweepWindow) exportFigure() {
+	if s.res == nil {
+		s.ctl.status.SetText("Nothing to export yet: press Run first.")
+		return
+	}
+	fig, base := s.curveFigure, "family_"+fileSafe(s.species.Selected)
+	if s.tabs.Selected() != nil && s.tabs.Selected().Text == "Readouts" {
+		fig, base = s.readoutFigure, "readout_"+fileSafe(s.readoutSel.Selected)
+	}
+	exportFigureAs(s.win, base, fig, func(path string) { s.ctl.status.SetText("Figure saved to " + path) })
+}
+
+// exportTable saves every run's values and readouts as CSV.
+func (s *sweepWindow) exportTable() {
+	if s.res == nil {
+		s.ctl.status.SetText("Nothing to export yet: press Run first.")
+		return
+	}
+	saveAs(s.win, "runs.csv", ".csv", s.saveRuns, func(path string) { s.ctl.status.SetText("Table saved to " + path) })
+}
+
+// saveRuns writes the runs table (the batch command's runs.csv layout).
+func (s *sweepWindow) saveRuns(path string) error {
+	if s.res == nil {
+		return errors.New("nothing to save yet: press Run first")
+	}
+	return study.WriteCSV(path, study.RunRows(s.res))
+}
+
+// fileSafe makes s usable in a file name.
+func fileSafe(s string) string {
+	out := []rune(s)
+	for i, r := range out {
+		if !(r == '-' || r == '_' || r == '.' || r >= '0' && r <= '9' || r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z') {
+			out[i] = '_'
+		}
+	}
+	return string(out)
+}
+
+// failureList lists the failed points of a result with their values and
+// reasons.
+type failureList struct {
+	what    string
+	summary *widget.Label
+	lines   []string
+	list    *widget.List
+	content fyne.CanvasObject
+}
+
+func newFailureList(what string) *failureList {
+	f := &failureList{what: what, summary: widget.NewLabel("No results yet.")}
+	f.summary.Wrapping = fyne.TextWrapWord
+	f.list = widget.NewList(func() int { return len(f.lines) },
+		func() fyne.CanvasObject {
+			l := widget.NewLabel("")
+			l.Truncation = fyne.TextTruncateEllipsis
+			return l
+		},
+		func(id widget.ListItemID, o fyne.CanvasObject) { o.(*widget.Label).SetText(f.lines[id]) })
+	f.content = container.NewBorder(f.summary, nil, nil, nil, f.list)
+	return f
+}
+
+// set lists the failures of res.
+func (f *failureList) set(res *explore.Result) {
+	f.lines = f.lines[:0]
+	for _, fl := range res.Failures {
+		line := fmt.Sprintf("%s %d:", f.what, fl.Index+1)
+		for k, v := range fl.X {
+			line += fmt.Sprintf(" %s = %s", knobLabel(res.Knobs[k]), short(v))
+			if k+1 < len(fl.X) {
+				line += ","
+			}
+		}
+		f.lines = append(f.lines, line+" — "+fl.Err)
+	}
+	switch res.Failed {
+	case 0:
+		f.summary.SetText(fmt.Sprintf("None of the %d %ss failed.", res.Points, f.what))
+	default:
+		f.summary.SetText(fmt.Sprintf("%d of %d %ss failed. They are left out of the figures and tables and listed here with their values and the reason.",
+			res.Failed, res.Points, f.what))
+	}
+	f.list.Refresh()
+}

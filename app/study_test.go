@@ -1,0 +1,363 @@
+package main
+
+import (
+	"context"
+	"encoding/csv"
+	"image/png"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/test"
+
+	"kinetarium/editor/study"
+	"kinetarium/examples"
+	"kinetarium/network"
+	"kinetarium/solve"
+	"kinetarium/solve/explore"
+)
+
+// newStudyApp is a test app with the program's theme.
+func newStudyApp(t *testing.T) fyne.App {
+	t.Helper()
+	a := test.NewTempApp(t)
+	a.Settings().SetTheme(newTheme())
+	return a
+}
+
+// openSweep opens a Sweep window on m whose runs report through onUI.
+func openSweep(t *testing.T, m *network.Model) *sweepWindow {
+	t.Helper()
+	s, err := newSweepWindow(newStudyApp(t), m, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s.ctl.deliver = onUI
+	s.win.Show()
+	t.Cleanup(func() { onUI(s.ctl.stopRun); waitFor(t, "the run to stop", func() bool { return !s.ctl.running }); s.win.Close() })
+	return s
+}
+
+// openPopulation opens a Population window on m whose runs report through
+// onUI.
+func openPopulation(t *testing.T, m *network.Model) *populationWindow {
+	t.Helper()
+	p, err := newPopulationWindow(newStudyApp(t), m, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p.ctl.deliver = onUI
+	p.win.Show()
+	t.Cleanup(func() { onUI(p.ctl.stopRun); waitFor(t, "the run to stop", func() bool { return !p.ctl.running }); p.win.Close() })
+	return p
+}
+
+// runAndWait presses Run and waits for the run to end.
+func runAndWait(t *testing.T, c *runControls) {
+	t.Helper()
+	onUI(func() { c.run.OnTapped() })
+	waitFor(t, "the run to end", func() bool { return !c.running })
+}
+
+// A sweep of k over first-order decay A -> B gives final values
+// A(T) = A0·exp(−k T) (closed form, common practice), and the saved table
+// has the batch command's runs.csv layout: index, knob, readouts.
+func TestSweepDecayClosedForm(t *testing.T) {
+	s := openSweep(t, tuneDecayModel())
+	onUI(func() {
+		s.first.quantity.SetSelected("k (parameter)")
+		s.first.from.SetText("0.1")
+		s.first.to.SetText("2")
+		s.first.points.SetText("6")
+		s.first.spacing.SetSelected(spacingLog)
+		s.ro.rows = nil
+		s.ro.list.RemoveAll()
+		s.ro.add(explore.Final, "A", 0)
+	})
+	runAndWait(t, s.ctl)
+	if s.res == nil || len(s.res.Samples) != 6 || s.res.Failed != 0 {
+		t.Fatalf("result %+v, status %q", s.res, s.ctl.status.Text)
+	}
+	ks, _ := study.AxisValues(0.1, 2, 6, true)
+	const a0, tEnd = 2.0, 5.0
+	for i, smp := range s.res.Samples {
+		if smp.X[0] != ks[i] {
+			t.Errorf("run %d has k = %v, want %v", i, smp.X[0], ks[i])
+		}
+		want := a0 * math.Exp(-ks[i]*tEnd)
+		if got := smp.Readouts[0]; math.Abs(got-want) > 1e-6*a0 {
+			t.Errorf("k = %g: final A = %.10g, want %.10g", ks[i], got, want)
+		}
+	}
+	if s.curves.plot == nil || s.readouts.plot == nil {
+		t.Error("the curves or the readout figure was not drawn")
+	}
+	path := filepath.Join(t.TempDir(), "runs.csv")
+	if err := s.saveRuns(path); err != nil {
+		t.Fatal(err)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 7 || strings.Join(rows[0], ",") != "index,k,final_A" {
+		t.Fatalf("runs.csv starts %v with %d rows", rows[0], len(rows))
+	}
+	for i, row := range rows[1:] {
+		k, _ := strconv.ParseFloat(row[1], 64)
+		v, _ := strconv.ParseFloat(row[2], 64)
+		if row[0] != strconv.Itoa(i) || k != ks[i] || math.Abs(v-a0*math.Exp(-k*tEnd)) > 1e-6*a0 {
+			t.Errorf("runs.csv row %d = %v", i+1, row)
+		}
+	}
+}
+
+// A grid of two quantities draws a heat map and one family per value of
+// the second.
+func TestSweepGrid(t *testing.T) {
+	s := openSweep(t, tuneDecayModel())
+	onUI(func() {
+		s.first.quantity.SetSelected("k (parameter)")
+		s.first.points.SetText("4")
+		s.useTwo.SetChecked(true)
+		s.second.quantity.SetSelected("A (initial concentration)")
+		s.second.points.SetText("3")
+	})
+	runAndWait(t, s.ctl)
+	if s.res == nil || s.res.Size != 12 || s.res.Failed != 0 {
+		t.Fatalf("result %+v, status %q", s.res, s.ctl.status.Text)
+	}
+	if len(s.secondAt.Options) != 3 || s.readouts.plot == nil || s.curves.plot == nil {
+		t.Errorf("grid results not shown: options %v", s.secondAt.Options)
+	}
+}
+
+// Bad input is named in the status line, and nothing runs.
+func TestSweepBadInput(t *testing.T) {
+	s := openSweep(t, tuneDecayModel())
+	onUI(func() {
+		s.first.from.SetText("ten")
+		s.ctl.run.OnTapped()
+	})
+	if s.ctl.running || !strings.Contains(s.ctl.status.Text, `First quantity: from "ten" is not a number`) {
+		t.Errorf("status %q", s.ctl.status.Text)
+	}
+	onUI(func() {
+		s.first.from.SetText("-1")
+		s.first.spacing.SetSelected(spacingLog)
+		s.ctl.run.OnTapped()
+	})
+	if !strings.Contains(s.ctl.status.Text, "log spacing needs positive from and to") {
+		t.Errorf("status %q", s.ctl.status.Text)
+	}
+}
+
+// A population with zero spread (CV 0) reproduces the single run exactly:
+// every readout and every band equals the plain simulation of the model,
+// which itself follows A0·exp(−k t) (closed form, common practice).
+func TestPopulationZeroSpread(t *testing.T) {
+	m := tuneDecayModel()
+	p := openPopulation(t, m)
+	onUI(func() {
+		p.rows[0].quantity.SetSelected("k (parameter)")
+		p.rows[0].b.SetText("0")
+		p.rows[1].quantity.SetSelected("A (initial concentration)")
+		p.rows[1].b.SetText("0")
+		p.size.SetText("40")
+		p.ro.rows = nil
+		p.ro.list.RemoveAll()
+		p.ro.add(explore.Final, "A", 0)
+		p.ro.add(explore.AUC, "B", 0)
+	})
+	runAndWait(t, p.ctl)
+	if p.res == nil || len(p.res.Samples) != 40 {
+		t.Fatalf("result %+v, status %q", p.res, p.ctl.status.Text)
+	}
+	// The single run, solved directly.
+	prep, err := study.Prepare(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	single, err := solve.NewSolver(prep.Sys, study.SolveSettings(prep.Sim, prep.Times)).Solve(context.Background(), 0, prep.Sim.TEnd, prep.Sys.Initial())
+	if err != nil {
+		t.Fatal(err)
+	}
+	tr := explore.Trajectory{T: single.T, Y: single.Y}
+	want := []float64{
+		explore.Readout{Kind: explore.Final, Component: 0}.Eval(tr),
+		explore.Readout{Kind: explore.AUC, Component: 1}.Eval(tr),
+	}
+	if math.Abs(want[0]-2*math.Exp(-0.7*5)) > 1e-6 {
+		t.Fatalf("the single run ends at A = %v, not at the closed form", want[0])
+	}
+	for _, smp := range p.res.Samples {
+		for r := range want {
+			if smp.Readouts[r] != want[r] {
+				t.Fatalf("sample %d readout %d = %v, the single run gives %v", smp.Index, r, smp.Readouts[r], want[r])
+			}
+		}
+	}
+	for c := 0; c < 2; c++ {
+		q := study.BandCurves(p.res.Bands, c)
+		for i := range tr.T {
+			for k := range q {
+				if q[k][i] != tr.Y[i][c] {
+					t.Fatalf("band %d of species %d at t = %v is %v, the single run gives %v", k, c, tr.T[i], q[k][i], tr.Y[i][c])
+				}
+			}
+		}
+	}
+	if p.bands.plot == nil || p.hist.plot == nil {
+		t.Error("the bands or the histogram were not drawn")
+	}
+}
+
+// Cancel stops a run early: fewer points are done than asked for and the
+// status line says so.
+func TestStudyCancel(t *testing.T) {
+	p := openPopulation(t, tuneDecayModel())
+	onUI(func() {
+		p.size.SetText("1000000")
+		p.ctl.run.OnTapped()
+	})
+	waitFor(t, "some progress", func() bool { return p.ctl.progress.Value > 0 })
+	onUI(func() { p.ctl.cancel.OnTapped() })
+	waitFor(t, "the run to stop", func() bool { return !p.ctl.running })
+	if p.res == nil || p.res.Points >= p.res.Size || !strings.HasPrefix(p.ctl.status.Text, "Cancelled:") {
+		t.Fatalf("after Cancel: result %+v, status %q", p.res, p.ctl.status.Text)
+	}
+	if p.ctl.cancel.Disabled() == false || p.ctl.run.Disabled() {
+		t.Error("Run and Cancel were not put back")
+	}
+}
+
+// Samples that fail (here: a negative initial concentration drawn from a
+// uniform distribution) are counted and listed with their values and the
+// reason, never dropped.
+func TestPopulationFailuresListed(t *testing.T) {
+	p := openPopulation(t, tuneDecayModel())
+	onUI(func() {
+		p.rows[0].quantity.SetSelected("A (initial concentration)")
+		p.rows[0].dist.SetSelected(distributions[2].label)
+		p.rows[0].a.SetText("-1")
+		p.rows[0].b.SetText("3")
+		p.list.Remove(p.rows[1].object)
+		p.rows = p.rows[:1]
+		p.size.SetText("60")
+		p.seed.SetText("5")
+	})
+	runAndWait(t, p.ctl)
+	pts, err := explore.Population{Vary: []explore.Distribution{explore.Uniform{Low: -1, High: 3}}, Size: 60, Seed: 5, Sampling: explore.LatinHypercube}.Sample()
+	if err != nil {
+		t.Fatal(err)
+	}
+	negative := 0
+	for _, x := range pts {
+		if x[0] < 0 {
+			negative++
+		}
+	}
+	if negative == 0 || p.res == nil || p.res.Failed != negative || len(p.res.Samples)+negative != 60 {
+		t.Fatalf("%d negative draws; result %+v", negative, p.res)
+	}
+	if len(p.failures.lines) != negative || !strings.Contains(p.failures.lines[0], "an initial concentration must be ≥ 0") ||
+		!strings.Contains(p.failures.lines[0], "initial A = -") {
+		t.Errorf("failure list %q", p.failures.lines)
+	}
+	if !strings.Contains(p.ctl.status.Text, strconv.Itoa(negative)+" samples failed") ||
+		!strings.HasPrefix(p.failures.summary.Text, strconv.Itoa(negative)+" of 60 samples failed") {
+		t.Errorf("status %q, summary %q", p.ctl.status.Text, p.failures.summary.Text)
+	}
+}
+
+// exampleModel reads an example model.
+func exampleModel(t *testing.T, name string) *network.Model {
+	t.Helper()
+	data, err := examples.Open(name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := network.Read(strings.NewReader(string(data)), name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+// shotDir is where screenshots go: $KINETARIUM_SHOTS when set, else a
+// temporary folder.
+func shotDir(t *testing.T) string {
+	if d := os.Getenv("KINETARIUM_SHOTS"); d != "" {
+		return d
+	}
+	return t.TempDir()
+}
+
+// saveShot captures win to dir/name.
+func saveShot(t *testing.T, win fyne.Window, dir, name string) {
+	t.Helper()
+	var err error
+	onUI(func() {
+		img := win.Canvas().Capture()
+		var f *os.File
+		if f, err = os.Create(filepath.Join(dir, name)); err == nil {
+			err = png.Encode(f, img)
+			f.Close()
+		}
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+}
+
+// The windows with results on the examples, captured for review.
+func TestStudyScreenshots(t *testing.T) {
+	dir := shotDir(t)
+	s := openSweep(t, exampleModel(t, "protease-inhibitor.json"))
+	onUI(func() {
+		s.first.quantity.SetSelected("I (initial concentration)")
+		s.first.from.SetText("0.001")
+		s.first.to.SetText("0.1")
+		s.first.spacing.SetSelected(spacingLog)
+		s.species.SetSelected("P")
+		s.ro.rows = nil
+		s.ro.list.RemoveAll()
+		s.ro.add(explore.Final, "P", 0)
+		s.ro.add(explore.CrossUp, "P", 10)
+	})
+	runAndWait(t, s.ctl)
+	if s.res == nil || s.res.Failed != 0 {
+		t.Fatalf("sweep: %q", s.ctl.status.Text)
+	}
+	saveShot(t, s.win, dir, "kinetarium-sweep-curves.png")
+	onUI(func() { s.tabs.SelectIndex(1) })
+	saveShot(t, s.win, dir, "kinetarium-sweep-readouts.png")
+
+	p := openPopulation(t, exampleModel(t, "two-compartment-drug.json"))
+	onUI(func() {
+		p.size.SetText("300")
+		p.species.SetSelected("D_plasma")
+		p.ro.rows = nil
+		p.ro.list.RemoveAll()
+		p.ro.add(explore.Max, "D_plasma", 0)
+		p.ro.add(explore.AUC, "D_plasma", 0)
+	})
+	runAndWait(t, p.ctl)
+	if p.res == nil {
+		t.Fatalf("population: %q", p.ctl.status.Text)
+	}
+	saveShot(t, p.win, dir, "kinetarium-population-bands.png")
+	onUI(func() { p.tabs.SelectIndex(1) })
+	saveShot(t, p.win, dir, "kinetarium-population-readouts.png")
+	onUI(func() { p.tabs.SelectIndex(2) })
+	saveShot(t, p.win, dir, "kinetarium-population-failed.png")
+}

@@ -1,0 +1,357 @@
+// Package study prepares parameter sweeps and virtual populations of a
+// network model for package explore: it resolves the model values that
+// vary (knobs) and the readouts by name, builds the design and the
+// simulator, and lays out the results as CSV tables. It holds no widgets
+// and builds without cgo, so the desktop window and the batch command share
+// it.
+//
+// Knobs are named "NAME" (a parameter), "init:SPECIES" (an initial
+// concentration) or "volume:COMPARTMENT" (a compartment volume).
+package study
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"strings"
+
+	"kinetarium/network"
+	"kinetarium/solve"
+	"kinetarium/solve/explore"
+)
+
+// KnobError is a knob name that the model does not have; Index is its
+// position in the list given to NewTarget.
+type KnobError struct {
+	Index int
+	Err   error
+}
+
+// Error implements error.
+func (e *KnobError) Error() string { return e.Err.Error() }
+
+// Unwrap returns the underlying error.
+func (e *KnobError) Unwrap() error { return e.Err }
+
+// knobKind is what a knob sets.
+type knobKind int
+
+// The knob kinds.
+const (
+	knobParameter knobKind = iota
+	knobInitial
+	knobVolume
+)
+
+// knob is one resolved knob of a Target.
+type knob struct {
+	name  string
+	kind  knobKind
+	index int
+}
+
+// Target adapts a compiled network to explore.Target.
+type Target struct {
+	*network.System
+	knobs []knob
+}
+
+// NewTarget resolves knob names on sys. An unknown name gives a *KnobError
+// that lists what the model has.
+func NewTarget(sys *network.System, names []string) (*Target, error) {
+	t := &Target{System: sys}
+	for k, name := range names {
+		kn := knob{name: name}
+		var ok bool
+		var err error
+		switch {
+		case strings.HasPrefix(name, "init:"):
+			kn.kind = knobInitial
+			kn.index, ok = sys.SpeciesIndex(strings.TrimPrefix(name, "init:"))
+			if !ok {
+				err = fmt.Errorf("no species %q in the model (species: %s)", strings.TrimPrefix(name, "init:"), strings.Join(sys.Species(), ", "))
+			}
+		case strings.HasPrefix(name, "volume:"):
+			kn.kind = knobVolume
+			kn.index, ok = sys.CompartmentIndex(strings.TrimPrefix(name, "volume:"))
+			if !ok {
+				err = fmt.Errorf("no compartment %q in the model (compartments: %s)", strings.TrimPrefix(name, "volume:"), strings.Join(sys.Compartments(), ", "))
+			}
+		default:
+			kn.kind = knobParameter
+			kn.index, ok = sys.ParameterIndex(name)
+			if !ok {
+				err = fmt.Errorf("no parameter %q in the model (parameters: %s; use init:SPECIES or volume:COMPARTMENT for those)", name, strings.Join(sys.Parameters(), ", "))
+			}
+		}
+		if err != nil {
+			return nil, &KnobError{Index: k, Err: err}
+		}
+		t.knobs = append(t.knobs, kn)
+	}
+	return t, nil
+}
+
+// SetKnob implements explore.Target.
+func (t *Target) SetKnob(k int, v float64) error {
+	kn := t.knobs[k]
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return fmt.Errorf("%s = %v is not finite", kn.name, v)
+	}
+	switch kn.kind {
+	case knobInitial:
+		if v < 0 {
+			return fmt.Errorf("%s = %v: an initial concentration must be ≥ 0", kn.name, v)
+		}
+		t.SetInitial(kn.index, v)
+	case knobVolume:
+		if v <= 0 {
+			return fmt.Errorf("%s = %v: a volume must be positive", kn.name, v)
+		}
+		t.SetVolume(kn.index, v)
+	default:
+		t.SetParameter(kn.index, v)
+	}
+	return nil
+}
+
+// Initial implements explore.Target.
+func (t *Target) Initial(y0 []float64) { copy(y0, t.System.Initial()) }
+
+// Clone implements explore.Target.
+func (t *Target) Clone() explore.Target {
+	return &Target{System: t.System.Clone(), knobs: t.knobs}
+}
+
+// SolveSettings returns the solver settings of a simulation (defaults
+// filled in) on the output grid times.
+func SolveSettings(sim network.Simulation, times []float64) solve.Settings {
+	sim = sim.WithDefaults()
+	method := solve.Method(sim.Method)
+	if sim.Method == "auto" {
+		method = solve.Auto
+	}
+	return solve.Settings{
+		RTol: sim.RTol, ATol: sim.ATol, Method: method,
+		Times: times, NonNegative: sim.KeepNonNegative(),
+	}
+}
+
+// AxisValues returns n values from from to to, equally spaced or (log)
+// equally spaced in their logarithm. The ends are exact.
+func AxisValues(from, to float64, n int, log bool) ([]float64, error) {
+	switch {
+	case n < 1:
+		return nil, fmt.Errorf("number of points: expected at least 1, got %d", n)
+	case math.IsNaN(from) || math.IsInf(from, 0) || math.IsNaN(to) || math.IsInf(to, 0):
+		return nil, fmt.Errorf("from and to: expected finite numbers, got %v and %v", from, to)
+	case log && !(from > 0 && to > 0):
+		return nil, fmt.Errorf("log spacing needs positive from and to, got %v and %v", from, to)
+	}
+	vals := make([]float64, n)
+	if n == 1 {
+		vals[0] = from
+		return vals, nil
+	}
+	lo, hi := from, to
+	if log {
+		lo, hi = math.Log(from), math.Log(to)
+	}
+	for i := range vals {
+		v := lo + (hi-lo)*float64(i)/float64(n-1)
+		if log {
+			v = math.Exp(v)
+		}
+		vals[i] = v
+	}
+	vals[0], vals[n-1] = from, to
+	return vals, nil
+}
+
+// Prepared is a model compiled for a study, with its output grid.
+type Prepared struct {
+	Model *network.Model
+	Sys   *network.System
+	Sim   network.Simulation // defaults filled in
+	Times []float64          // the output grid
+}
+
+// Prepare compiles m for a study with its own simulation settings.
+func Prepare(m *network.Model) (*Prepared, error) {
+	sys, err := network.Compile(m)
+	if err != nil {
+		return nil, fmt.Errorf("compiling the model: %w", err)
+	}
+	sim := m.Simulation.WithDefaults()
+	return &Prepared{Model: m, Sys: sys, Sim: sim, Times: network.OutputTimes(sim.TEnd, sim.Output)}, nil
+}
+
+// ReadoutSpec names a readout by species.
+type ReadoutSpec struct {
+	Name    string       // label in results; default KIND_SPECIES
+	Kind    explore.Kind // what is computed
+	Species string       // the species it is computed on
+	Time    float64      // for explore.ValueAt
+	Level   float64      // for explore.CrossUp and explore.CrossDown
+}
+
+// Readouts resolves readout specs on the model. Errors name the readout
+// by its position, counting from 1.
+func (p *Prepared) Readouts(specs []ReadoutSpec) ([]explore.Readout, error) {
+	var out []explore.Readout
+	seen := map[string]bool{}
+	for i, rs := range specs {
+		j, ok := p.Sys.SpeciesIndex(rs.Species)
+		if !ok {
+			return nil, fmt.Errorf("readout %d: no species %q in the model (species: %s)", i+1, rs.Species, strings.Join(p.Sys.Species(), ", "))
+		}
+		r := explore.Readout{Name: rs.Name, Kind: rs.Kind, Component: j, At: rs.Time, Level: rs.Level}
+		if r.Name == "" {
+			r.Name = string(rs.Kind) + "_" + rs.Species
+		}
+		if err := r.Validate(p.Sys.Dim()); err != nil {
+			return nil, fmt.Errorf("readout %d: %w", i+1, err)
+		}
+		if seen[r.Name] {
+			return nil, fmt.Errorf("readout %d: the name %q is used twice", i+1, r.Name)
+		}
+		seen[r.Name] = true
+		out = append(out, r)
+	}
+	return out, nil
+}
+
+// Axis is one swept knob.
+type Axis struct {
+	Knob     string
+	From, To float64
+	Points   int
+	Log      bool // logarithmic spacing
+}
+
+// Vary is one knob of a population and its distribution.
+type Vary struct {
+	Knob string
+	Dist explore.Distribution
+}
+
+// Job is a prepared sweep or population, ready to Run.
+type Job struct {
+	Prepared *Prepared
+	Design   explore.Design
+	ODE      *explore.ODE
+	Settings explore.Settings
+	Axes     [][]float64 // a sweep's axis values, one list per knob
+	AxisLog  []bool      // a sweep's spacing, per knob
+	Readouts []explore.Readout
+	Species  []string // the species each readout is computed on
+}
+
+// Sweep prepares a sweep over one axis, or a grid over two. The values of
+// a two-axis grid must increase strictly.
+func (p *Prepared) Sweep(axes []Axis, readouts []ReadoutSpec) (*Job, error) {
+	if len(axes) < 1 || len(axes) > 2 {
+		return nil, fmt.Errorf("a sweep varies one or two quantities, got %d", len(axes))
+	}
+	j := &Job{Prepared: p}
+	var knobs []string
+	for k, a := range axes {
+		if k == 1 && a.Knob == axes[0].Knob {
+			return nil, fmt.Errorf("the second quantity %q is already the first", a.Knob)
+		}
+		vals, err := AxisValues(a.From, a.To, a.Points, a.Log)
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", a.Knob, err)
+		}
+		if len(axes) == 2 {
+			for i := 1; i < len(vals); i++ {
+				if !(vals[i] > vals[i-1]) {
+					return nil, fmt.Errorf("%s: a grid of two needs from < to and distinct values", a.Knob)
+				}
+			}
+		}
+		knobs = append(knobs, a.Knob)
+		j.Axes = append(j.Axes, vals)
+		j.AxisLog = append(j.AxisLog, a.Log)
+	}
+	if err := j.finish(knobs, readouts); err != nil {
+		return nil, err
+	}
+	j.Design = explore.Grid{Axes: j.Axes}
+	j.Settings.KeepTrajectories = true
+	return j, nil
+}
+
+// Population prepares a virtual population of size samples. When
+// bandSpecies is not empty, the run gathers percentile bands of those
+// species on the output grid.
+func (p *Prepared) Population(vary []Vary, size int, seed uint64, sampling explore.Sampling, readouts []ReadoutSpec, bandSpecies []string) (*Job, error) {
+	if len(vary) == 0 {
+		return nil, fmt.Errorf("a population needs at least one varied quantity")
+	}
+	j := &Job{Prepared: p}
+	var knobs []string
+	var dists []explore.Distribution
+	for k, v := range vary {
+		for _, prev := range vary[:k] {
+			if prev.Knob == v.Knob {
+				return nil, fmt.Errorf("%s is varied twice", v.Knob)
+			}
+		}
+		knobs, dists = append(knobs, v.Knob), append(dists, v.Dist)
+	}
+	if err := j.finish(knobs, readouts); err != nil {
+		return nil, err
+	}
+	pts, err := explore.Population{Vary: dists, Size: size, Seed: seed, Sampling: sampling}.Sample()
+	if err != nil {
+		return nil, err
+	}
+	j.Design = pts
+	if len(bandSpecies) > 0 {
+		var comps []int
+		for _, sp := range bandSpecies {
+			c, ok := p.Sys.SpeciesIndex(sp)
+			if !ok {
+				return nil, fmt.Errorf("bands: no species %q in the model", sp)
+			}
+			comps = append(comps, c)
+		}
+		j.Settings.Bands = explore.NewBands(comps, p.Times)
+	}
+	return j, nil
+}
+
+// finish resolves knobs and readouts and makes the simulator.
+func (j *Job) finish(knobs []string, readouts []ReadoutSpec) error {
+	p := j.Prepared
+	tg, err := NewTarget(p.Sys.Clone(), knobs)
+	if err != nil {
+		return err
+	}
+	ro, err := p.Readouts(readouts)
+	if err != nil {
+		return err
+	}
+	j.Readouts = ro
+	for _, r := range ro {
+		j.Species = append(j.Species, p.Sys.Species()[r.Component])
+	}
+	j.ODE = &explore.ODE{Target: tg, TEnd: p.Sim.TEnd, Settings: SolveSettings(p.Sim, p.Times)}
+	j.Settings.Knobs = knobs
+	j.Settings.Readouts = ro
+	return nil
+}
+
+// Run runs the job on workers goroutines (0: one per CPU), reporting
+// progress (a fraction) when progress is not nil. Cancelling ctx stops the
+// run; what was done is returned with the error.
+func (j *Job) Run(ctx context.Context, workers int, progress func(float64)) (*explore.Result, error) {
+	s := j.Settings
+	s.Workers, s.Progress = workers, progress
+	if s.Bands != nil {
+		// A fresh accumulator, so that the job can be run again.
+		s.Bands = explore.NewBands(s.Bands.Components, s.Bands.Times)
+	}
+	return explore.Run(ctx, j.Design, j.ODE.NewSimulator, s)
+}
