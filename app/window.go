@@ -18,9 +18,9 @@ import (
 
 	"kinetarium/editor"
 	"kinetarium/editor/simulate"
-	"kinetarium/solve"
 	"kinetarium/examples"
 	"kinetarium/network"
+	"kinetarium/solve"
 )
 
 // mainWindow is the program's window: the model editor on the left, the
@@ -355,7 +355,7 @@ func (w *mainWindow) runDone(_ int, o *simulate.Outcome, err error) {
 		w.fresh = false
 		w.logY.SetChecked(simulate.SpansDecades(o, 3))
 	}
-	line := fmt.Sprintf("Solved in %s with %s (%d steps). ⓘ tells more.", roundDuration(o.Elapsed), plainMethod(o), o.Stats.Steps)
+	line := fmt.Sprintf("Solved in %s with %s (%d steps).", roundDuration(o.Elapsed), plainMethod(o), o.Stats.Steps)
 	w.runInfo.Show()
 	if err != nil {
 		end := 0.0
