@@ -111,7 +111,17 @@ func newReadoutEditor(species []string) *readoutEditor {
 	e := &readoutEditor{species: species, list: container.NewVBox()}
 	add := widget.NewButtonWithIcon("Add readout", theme.ContentAddIcon(), func() { e.add(explore.Final, "", 0) })
 	add.Importance = widget.LowImportance
-	e.content = container.NewVBox(e.list, container.NewHBox(add))
+	caption := func(s string, w float32) fyne.CanvasObject {
+		l := widget.NewLabel(s)
+		l.Importance = widget.LowImportance
+		if w == 0 {
+			return l
+		}
+		return container.NewGridWrap(fyne.NewSize(w, l.MinSize().Height), l)
+	}
+	captions := container.NewBorder(nil, nil, nil,
+		container.NewHBox(caption("Species", 120), caption("Time, level", 80), caption("", 34)), caption("Compute", 0))
+	e.content = container.NewVBox(captions, e.list, container.NewHBox(add))
 	return e
 }
 
@@ -156,9 +166,10 @@ func (e *readoutEditor) add(kind explore.Kind, species string, number float64) *
 		}
 	})
 	remove.Importance = widget.LowImportance
-	num := container.NewGridWrap(fyne.NewSize(90, r.number.MinSize().Height), r.number)
-	r.object = container.NewBorder(nil, nil, nil, container.NewHBox(num, remove),
-		container.NewGridWithColumns(2, r.kind, r.species))
+	h := r.number.MinSize().Height
+	right := container.NewHBox(container.NewGridWrap(fyne.NewSize(120, h), r.species),
+		container.NewGridWrap(fyne.NewSize(80, h), r.number), remove)
+	r.object = container.NewBorder(nil, nil, nil, right, r.kind)
 	e.rows = append(e.rows, r)
 	e.list.Add(r.object)
 	return r
@@ -232,6 +243,32 @@ func readoutName(k explore.Kind, species string) string {
 		return "t_down_" + species
 	}
 	return string(k) + "_" + species
+}
+
+// readoutLabel describes readout r of a job in words, for axis labels:
+// "final value of P", "time P rises past 10".
+func readoutLabel(job *study.Job, r int) string {
+	ro, sp := job.Readouts[r], job.Species[r]
+	switch ro.Kind {
+	case explore.ValueAt:
+		return sp + " at t = " + short(ro.At)
+	case explore.CrossUp:
+		return "time " + sp + " rises past " + short(ro.Level)
+	case explore.CrossDown:
+		return "time " + sp + " falls past " + short(ro.Level)
+	}
+	label, _ := kindLabelOf(ro.Kind)
+	return strings.ToLower(label[:1]) + label[1:] + " of " + sp
+}
+
+// kindLabelOf returns the plain-words label of a readout kind.
+func kindLabelOf(k explore.Kind) (string, bool) {
+	for _, rk := range readoutKinds {
+		if rk.kind == k {
+			return rk.label, true
+		}
+	}
+	return string(k), false
 }
 
 // number reads a finite number typed into the named field.

@@ -163,7 +163,8 @@ func newPopulationWindow(a fyne.App, m *network.Model, name string) (*population
 	p.failures = newFailureList("sample")
 
 	bandBar := container.NewHBox(widget.NewLabel("Species"), p.species, p.logTime, p.logY)
-	histBar := container.NewVBox(container.NewHBox(widget.NewLabel("Readout"), p.readoutSel), p.summary)
+	histBar := container.NewVBox(container.NewHBox(widget.NewLabel("Readout"),
+		container.NewGridWrap(fyne.NewSize(220, p.readoutSel.MinSize().Height), p.readoutSel)), p.summary)
 	p.tabs = container.NewAppTabs(
 		container.NewTabItem("Bands", container.NewBorder(bandBar, nil, nil, nil, p.bands)),
 		container.NewTabItem("Readouts", container.NewBorder(histBar, nil, nil, nil, p.hist)),
@@ -224,15 +225,9 @@ func (p *populationWindow) addRow(label string) *varyRow {
 	if label != "" {
 		r.quantity.SetSelected(label)
 	}
-	remove := widget.NewButtonWithIcon("", theme.DeleteIcon(), func() {
-		if i := slices.Index(p.rows, r); i >= 0 {
-			p.rows = slices.Delete(p.rows, i, i+1)
-			p.list.Remove(r.object)
-		}
-	})
+	remove := widget.NewButtonWithIcon("", theme.DeleteIcon(), func() { p.removeRow(r) })
 	remove.Importance = widget.LowImportance
 	entry := func(l *widget.Label, e *widget.Entry) fyne.CanvasObject {
-		l.Importance = widget.LowImportance
 		return container.NewBorder(nil, nil, l, nil, e)
 	}
 	line1 := container.NewGridWithColumns(2, r.quantity, r.dist)
@@ -241,6 +236,15 @@ func (p *populationWindow) addRow(label string) *varyRow {
 	p.rows = append(p.rows, r)
 	p.list.Add(r.object)
 	return r
+}
+
+// removeRow removes a varied quantity.
+func (p *populationWindow) removeRow(r *varyRow) {
+	if i := slices.Index(p.rows, r); i >= 0 {
+		p.rows = slices.Delete(p.rows, i, i+1)
+		p.list.Remove(r.object)
+		p.win.Content().Refresh()
+	}
 }
 
 // prepare reads the form into a job with bands on every species.
@@ -329,7 +333,7 @@ func (p *populationWindow) bandFigure() (*plot.Plot, error) {
 	}
 	q := study.BandCurves(p.res.Bands, c)
 	sp, u := p.species.Selected, p.model.Units
-	return plotting.BandPlot(p.res.Bands.Times, q[2], q[0], q[4], q[1], q[3], sp+" (median)", plotting.Options{
+	return plotting.BandPlot(p.res.Bands.Times, q[2], q[0], q[4], q[1], q[3], sp, plotting.Options{
 		Title: sp + ": median, 25–75 % and 5–95 %", XLabel: "time", XUnit: u.Time, YLabel: sp, YUnit: u.Amount,
 		LogX: p.logTime.Checked, LogY: p.logY.Checked,
 	})
@@ -346,7 +350,7 @@ func (p *populationWindow) histogramFigure() (*plot.Plot, error) {
 	}
 	vals, _ := study.ReadoutValues(p.res, r)
 	name := p.res.Readouts[r]
-	return plotting.Histogram(vals, 0, plotting.Options{Title: name, XLabel: name + " (" + p.job.Species[r] + ")"})
+	return plotting.Histogram(vals, 0, plotting.Options{Title: readoutLabel(p.job, r), XLabel: name, YLabel: "samples"})
 }
 
 func (p *populationWindow) drawBands() {

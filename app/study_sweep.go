@@ -10,6 +10,7 @@ import (
 	"math"
 	"slices"
 	"strconv"
+	"strings"
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/container"
@@ -168,7 +169,7 @@ func newSweepWindow(a fyne.App, m *network.Model, name string) (*sweepWindow, er
 	s.failures = newFailureList("run")
 
 	curveBar := container.NewHBox(widget.NewLabel("Species"), s.species, s.secondAt, s.logTime)
-	readoutBar := container.NewHBox(widget.NewLabel("Readout"), s.readoutSel)
+	readoutBar := container.NewHBox(widget.NewLabel("Readout"), container.NewGridWrap(fyne.NewSize(220, s.readoutSel.MinSize().Height), s.readoutSel))
 	s.tabs = container.NewAppTabs(
 		container.NewTabItem("Curves", container.NewBorder(curveBar, nil, nil, nil, s.curves)),
 		container.NewTabItem("Readouts", container.NewBorder(readoutBar, nil, nil, nil, s.readouts)),
@@ -317,7 +318,7 @@ func (s *sweepWindow) readoutFigure() (*plot.Plot, error) {
 	}
 	vals := s.res.Values(r)
 	name := s.res.Readouts[r]
-	label := name + " (" + s.job.Species[r] + ")"
+	label := readoutLabel(s.job, r)
 	if len(s.job.Axes) == 2 {
 		xs, ys := s.job.Axes[1], s.job.Axes[0]
 		z := make([][]float64, len(ys))
@@ -325,12 +326,12 @@ func (s *sweepWindow) readoutFigure() (*plot.Plot, error) {
 			z[i] = vals[i*len(xs) : (i+1)*len(xs)]
 		}
 		return plotting.HeatMap(xs, ys, z, plotting.Options{
-			Title: name, XLabel: knobLabel(s.res.Knobs[1]), YLabel: knobLabel(s.res.Knobs[0]),
+			Title: readoutLabel(s.job, r), XLabel: knobLabel(s.res.Knobs[1]), YLabel: knobLabel(s.res.Knobs[0]),
 			LogX: s.job.AxisLog[1], LogY: s.job.AxisLog[0],
 		}, name)
 	}
 	return plotting.XYPlot(s.job.Axes[0], vals, plotting.Options{
-		Title: name, XLabel: knobLabel(s.res.Knobs[0]), YLabel: label, LogX: s.job.AxisLog[0],
+		Title: label, XLabel: knobLabel(s.res.Knobs[0]), YLabel: name, LogX: s.job.AxisLog[0],
 	})
 }
 
@@ -427,14 +428,14 @@ func newFailureList(what string) *failureList {
 func (f *failureList) set(res *explore.Result) {
 	f.lines = f.lines[:0]
 	for _, fl := range res.Failures {
-		line := fmt.Sprintf("%s %d:", f.what, fl.Index+1)
+		line := fmt.Sprintf("%s %d:", strings.ToUpper(f.what[:1])+f.what[1:], fl.Index+1)
 		for k, v := range fl.X {
 			line += fmt.Sprintf(" %s = %s", knobLabel(res.Knobs[k]), short(v))
 			if k+1 < len(fl.X) {
 				line += ","
 			}
 		}
-		f.lines = append(f.lines, line+" — "+fl.Err)
+		f.lines = append(f.lines, line+" — "+failureReason(fl.Err))
 	}
 	switch res.Failed {
 	case 0:
@@ -444,4 +445,17 @@ func (f *failureList) set(res *explore.Result) {
 			res.Failed, res.Points, f.what))
 	}
 	f.list.Refresh()
+}
+
+// failureReason drops from a failure's message the knob number and value
+// that the list already shows.
+func failureReason(msg string) string {
+	if !strings.HasPrefix(msg, "knob ") {
+		return msg
+	}
+	_, rest, _ := strings.Cut(msg, ": ")
+	if k := strings.Index(rest, ": "); k > 0 && strings.Contains(rest[:k], " = ") {
+		rest = rest[k+2:]
+	}
+	return rest
 }

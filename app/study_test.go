@@ -38,7 +38,11 @@ func openSweep(t *testing.T, m *network.Model) *sweepWindow {
 	}
 	s.ctl.deliver = onUI
 	s.win.Show()
-	t.Cleanup(func() { onUI(s.ctl.stopRun); waitFor(t, "the run to stop", func() bool { return !s.ctl.running }); s.win.Close() })
+	t.Cleanup(func() {
+		onUI(s.ctl.stopRun)
+		waitFor(t, "the run to stop", func() bool { return !s.ctl.running })
+		s.win.Close()
+	})
 	return s
 }
 
@@ -52,7 +56,11 @@ func openPopulation(t *testing.T, m *network.Model) *populationWindow {
 	}
 	p.ctl.deliver = onUI
 	p.win.Show()
-	t.Cleanup(func() { onUI(p.ctl.stopRun); waitFor(t, "the run to stop", func() bool { return !p.ctl.running }); p.win.Close() })
+	t.Cleanup(func() {
+		onUI(p.ctl.stopRun)
+		waitFor(t, "the run to stop", func() bool { return !p.ctl.running })
+		p.win.Close()
+	})
 	return p
 }
 
@@ -250,8 +258,7 @@ func TestPopulationFailuresListed(t *testing.T) {
 		p.rows[0].dist.SetSelected(distributions[2].label)
 		p.rows[0].a.SetText("-1")
 		p.rows[0].b.SetText("3")
-		p.list.Remove(p.rows[1].object)
-		p.rows = p.rows[:1]
+		p.removeRow(p.rows[1])
 		p.size.SetText("60")
 		p.seed.SetText("5")
 	})
@@ -272,6 +279,10 @@ func TestPopulationFailuresListed(t *testing.T) {
 	if len(p.failures.lines) != negative || !strings.Contains(p.failures.lines[0], "an initial concentration must be ≥ 0") ||
 		!strings.Contains(p.failures.lines[0], "initial A = -") {
 		t.Errorf("failure list %q", p.failures.lines)
+	}
+	if d := os.Getenv("KINETARIUM_SHOTS"); d != "" {
+		onUI(func() { p.tabs.SelectIndex(2) })
+		saveShot(t, p.win, d, "kinetarium-population-failures.png")
 	}
 	if !strings.Contains(p.ctl.status.Text, strconv.Itoa(negative)+" samples failed") ||
 		!strings.HasPrefix(p.failures.summary.Text, strconv.Itoa(negative)+" of 60 samples failed") {
