@@ -7,7 +7,6 @@ package main
 import (
 	"context"
 	"fmt"
-	"image"
 	"math"
 	"path/filepath"
 	"strconv"
@@ -352,9 +351,6 @@ func (f *studyFigure) CreateRenderer() fyne.WidgetRenderer {
 
 // MinSize keeps a figure legible.
 func (f *studyFigure) MinSize() fyne.Size { return fyne.NewSize(360, 240) }
-
-// image returns the last drawing, for tests.
-func (f *studyFigure) image() image.Image { return f.img.Image }
 
 // runControls are the Run button, the progress bar and Cancel of a study
 // window. The work runs on its own goroutine; every widget update goes
