@@ -13,6 +13,7 @@ import (
 	"testing"
 	"time"
 
+	"kinetarium/editor/study"
 	"kinetarium/network"
 	"kinetarium/solve/explore"
 )
@@ -259,7 +260,7 @@ func BenchmarkPopulation20(b *testing.B) {
 		b.Fatal(err)
 	}
 	names := sys.Parameters()[:2]
-	tg, err := newNetTarget(sys, names, names)
+	tg, err := study.NewTarget(sys, names)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -275,8 +276,7 @@ func BenchmarkPopulation20(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	l := &loaded{model: m, sys: sys, sim: sim, times: times}
-	ode := &explore.ODE{Target: tg, TEnd: sim.TEnd, Settings: l.settings()}
+	ode := &explore.ODE{Target: tg, TEnd: sim.TEnd, Settings: study.SolveSettings(sim, times)}
 	var rate1 float64
 	for _, w := range []int{1, 2} {
 		b.Run("workers="+strconv.Itoa(w), func(b *testing.B) {

@@ -5,13 +5,11 @@ package main
 
 import (
 	"bytes"
-	"encoding/csv"
 	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -20,6 +18,7 @@ import (
 
 	"gonum.org/v1/plot"
 
+	"kinetarium/editor/study"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
@@ -147,18 +146,10 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	return writeOutputs(meta, res, *out, stdout)
 }
 
-// fmtNum formats v so that it reads back to the same float64.
-func fmtNum(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-
 // writeCSV writes rows to dir/name atomically.
 func writeCSV(dir, name string, rows [][]string) (string, error) {
-	var buf bytes.Buffer
-	w := csv.NewWriter(&buf)
-	if err := w.WriteAll(rows); err != nil {
-		return "", fmt.Errorf("writing %s: %w", name, err)
-	}
 	path := filepath.Join(dir, name)
-	return path, network.WriteFileAtomic(path, buf.Bytes())
+	return path, study.WriteCSV(path, rows)
 }
 
 // unsafeName matches runs of characters kept out of file names.
@@ -166,15 +157,6 @@ var unsafeName = regexp.MustCompile(`[^A-Za-z0-9_.-]+`)
 
 // fileName makes s safe to use in a file name.
 func fileName(s string) string { return unsafeName.ReplaceAllString(s, "_") }
-
-// percentiles are the quantiles of band and readout summaries.
-var percentiles = []float64{0.05, 0.25, 0.5, 0.75, 0.95}
-
-// empiricalQuantile is the k-th smallest of sorted values, k = max(1, ⌈p·n⌉).
-func empiricalQuantile(sorted []float64, p float64) float64 {
-	k := max(1, int(math.Ceil(p*float64(len(sorted)))))
-	return sorted[k-1]
-}
 
 // writeOutputs writes the CSV files and figures of a complete result.
 func writeOutputs(meta *runMeta, res *explore.Result, dir string, stdout io.Writer) error {
@@ -186,19 +168,7 @@ func writeOutputs(meta *runMeta, res *explore.Result, dir string, stdout io.Writ
 		return err
 	}
 	// Per-point knob values and readouts.
-	head := append([]string{"index"}, meta.Knobs...)
-	head = append(head, res.Readouts...)
-	rows := [][]string{head}
-	for _, s := range res.Samples {
-		row := []string{strconv.Itoa(s.Index)}
-		for _, v := range s.X {
-			row = append(row, fmtNum(v))
-		}
-		for _, v := range s.Readouts {
-			row = append(row, fmtNum(v))
-		}
-		rows = append(rows, row)
-	}
+	rows := study.RunRows(res)
 	name := "samples.csv"
 	if meta.Kind == "sweep" {
 		name = "runs.csv"
@@ -206,14 +176,7 @@ func writeOutputs(meta *runMeta, res *explore.Result, dir string, stdout io.Writ
 	if err := add(writeCSV(dir, name, rows)); err != nil {
 		return err
 	}
-	rows = [][]string{append(append([]string{"index"}, meta.Knobs...), "error")}
-	for _, f := range res.Failures {
-		row := []string{strconv.Itoa(f.Index)}
-		for _, v := range f.X {
-			row = append(row, fmtNum(v))
-		}
-		rows = append(rows, append(row, f.Err))
-	}
+	rows = study.FailureRows(res)
 	if err := add(writeCSV(dir, "failures.csv", rows)); err != nil {
 		return err
 	}
@@ -259,11 +222,11 @@ func writeSweep(meta *runMeta, res *explore.Result, dir string, add func(string,
 		for i, t := range s.Traj.T {
 			row := []string{strconv.Itoa(s.Index)}
 			for _, v := range s.X {
-				row = append(row, fmtNum(v))
+				row = append(row, study.FormatNumber(v))
 			}
-			row = append(row, fmtNum(t))
+			row = append(row, study.FormatNumber(t))
 			for _, v := range s.Traj.Y[i] {
-				row = append(row, fmtNum(v))
+				row = append(row, study.FormatNumber(v))
 			}
 			rows = append(rows, row)
 		}
@@ -278,13 +241,13 @@ func writeSweep(meta *runMeta, res *explore.Result, dir string, add func(string,
 			z := make([][]float64, len(ys))
 			rows := [][]string{{meta.Knobs[0] + " \\ " + meta.Knobs[1]}}
 			for _, x := range xs {
-				rows[0] = append(rows[0], fmtNum(x))
+				rows[0] = append(rows[0], study.FormatNumber(x))
 			}
 			for i1 := range ys {
 				z[i1] = vals[i1*len(xs) : (i1+1)*len(xs)]
-				row := []string{fmtNum(ys[i1])}
+				row := []string{study.FormatNumber(ys[i1])}
 				for _, v := range z[i1] {
-					row = append(row, fmtNum(v))
+					row = append(row, study.FormatNumber(v))
 				}
 				rows = append(rows, row)
 			}
@@ -342,23 +305,10 @@ func writePopulation(meta *runMeta, res *explore.Result, dir string, add func(st
 	// are counted apart.
 	rows := [][]string{{"readout", "species", "n", "undefined", "p5", "p25", "p50", "p75", "p95"}}
 	for r, name := range res.Readouts {
-		var vals []float64
-		undefined := 0
-		for _, s := range res.Samples {
-			if v := s.Readouts[r]; math.IsNaN(v) {
-				undefined++
-			} else {
-				vals = append(vals, v)
-			}
-		}
-		slices.Sort(vals)
+		vals, undefined := study.ReadoutValues(res, r)
 		row := []string{name, meta.ReadoutSpecies[r], strconv.Itoa(len(vals)), strconv.Itoa(undefined)}
-		for _, p := range percentiles {
-			q := math.NaN()
-			if len(vals) > 0 {
-				q = empiricalQuantile(vals, p)
-			}
-			row = append(row, fmtNum(q))
+		for _, p := range study.Percentiles {
+			row = append(row, study.FormatNumber(study.EmpiricalQuantile(vals, p)))
 		}
 		rows = append(rows, row)
 		pl, err := plotting.Histogram(vals, 0, plotting.Options{Title: name, XLabel: name + " (" + meta.ReadoutSpecies[r] + ")"})
@@ -373,25 +323,8 @@ func writePopulation(meta *runMeta, res *explore.Result, dir string, add func(st
 	if b == nil {
 		return nil
 	}
-	rows = [][]string{{"species", "time", "p5", "p25", "p50", "p75", "p95", "min", "max", "n"}}
 	for c, sp := range meta.BandSpecies {
-		q := make([][]float64, len(percentiles))
-		for k := range q {
-			q[k] = make([]float64, len(b.Times))
-		}
-		for i, t := range b.Times {
-			cell := &b.Cells[c*len(b.Times)+i]
-			row := []string{sp, fmtNum(t)}
-			for k, p := range percentiles {
-				q[k][i] = cell.Quantile(p)
-				row = append(row, fmtNum(q[k][i]))
-			}
-			row = append(row, fmtNum(cell.Min), fmtNum(cell.Max), strconv.FormatUint(cell.N, 10))
-			if cell.N == 0 {
-				row[7], row[8] = "NaN", "NaN"
-			}
-			rows = append(rows, row)
-		}
+		q := study.BandCurves(b, c)
 		p, err := plotting.BandPlot(b.Times, q[2], q[0], q[4], q[1], q[3], sp, plotting.Options{
 			Title: sp + ": median, 25–75 % and 5–95 %", XLabel: "time", XUnit: meta.TimeUnit, YLabel: sp, YUnit: meta.AmountUnit,
 			LogX: meta.LogTime,
@@ -400,5 +333,5 @@ func writePopulation(meta *runMeta, res *explore.Result, dir string, add func(st
 			return err
 		}
 	}
-	return add(writeCSV(dir, "bands.csv", rows))
+	return add(writeCSV(dir, "bands.csv", study.BandRows(b, meta.BandSpecies)))
 }

@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"slices"
 
+	"kinetarium/editor/study"
 	"kinetarium/solve/explore"
 )
 
@@ -168,11 +169,11 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		}
 		knobs, paths, dists = append(knobs, v.Target), append(paths, path+".target"), append(dists, d)
 	}
-	tg, err := newNetTarget(l.sys, knobs, paths)
+	tg, err := newTarget(c.spec, l.Sys, knobs, paths)
 	if err != nil {
-		return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
+		return nil, nil, err
 	}
-	ro, err := l.readouts(c.spec, spec.Readouts)
+	ro, err := readouts(l, c.spec, spec.Readouts)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -187,31 +188,31 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		}
 		var comps []int
 		for i, sp := range b.Species {
-			j, ok := l.sys.SpeciesIndex(sp)
+			j, ok := l.Sys.SpeciesIndex(sp)
 			if !ok {
 				return nil, nil, fmt.Errorf("%s: bands.species[%d]: no species %q in the model", c.spec, i, sp)
 			}
 			comps = append(comps, j)
 		}
 		bandSp = b.Species
-		bands = explore.NewBands(comps, l.times)
+		bands = explore.NewBands(comps, l.Times)
 	}
 	pts, err := explore.Population{Vary: dists, Size: spec.Samples, Seed: *spec.Seed, Sampling: explore.Sampling(spec.Sampling)}.Sample()
 	if err != nil {
 		return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
 	}
 	meta := &runMeta{
-		Kind: "population", Spec: filepath.Base(c.spec), Title: l.model.Title,
-		TimeUnit: l.model.Units.Time, AmountUnit: l.model.Units.Amount,
-		Knobs: knobs, Species: l.sys.Species(), BandSpecies: bandSp, LogTime: l.sim.Output.Spacing == "log",
+		Kind: "population", Spec: filepath.Base(c.spec), Title: l.Model.Title,
+		TimeUnit: l.Model.Units.Time, AmountUnit: l.Model.Units.Amount,
+		Knobs: knobs, Species: l.Sys.Species(), BandSpecies: bandSp, LogTime: l.Sim.Output.Spacing == "log",
 	}
 	for _, r := range ro {
-		meta.ReadoutSpecies = append(meta.ReadoutSpecies, l.sys.Species()[r.Component])
+		meta.ReadoutSpecies = append(meta.ReadoutSpecies, l.Sys.Species()[r.Component])
 	}
 	return c, &job{
 		meta:     meta,
 		design:   pts,
-		ode:      &explore.ODE{Target: tg, TEnd: l.sim.TEnd, Settings: l.settings()},
+		ode:      &explore.ODE{Target: tg, TEnd: l.Sim.TEnd, Settings: study.SolveSettings(l.Sim, l.Times)},
 		settings: explore.Settings{Knobs: knobs, Readouts: ro, Bands: bands},
 	}, nil
 }

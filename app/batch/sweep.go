@@ -20,8 +20,8 @@ import (
 	"strings"
 	"time"
 
+	"kinetarium/editor/study"
 	"kinetarium/network"
-	"kinetarium/solve"
 	"kinetarium/solve/explore"
 )
 
@@ -132,104 +132,23 @@ func readSpec(path, format string, v any) error {
 	return nil
 }
 
-// knobKind is what a knob sets.
-type knobKind int
-
-// The knob kinds.
-const (
-	knobParameter knobKind = iota
-	knobInitial
-	knobVolume
-)
-
-// knob is one resolved knob of a netTarget.
-type knob struct {
-	name  string
-	kind  knobKind
-	index int
-}
-
-// netTarget adapts a compiled network to explore.Target. Knobs are named
-// "NAME" (a parameter), "init:SPECIES" (an initial concentration) or
-// "volume:COMPARTMENT" (a compartment volume).
-type netTarget struct {
-	*network.System
-	knobs []knob
-}
-
-// newNetTarget resolves knob names on sys; errors name the spec key path.
-func newNetTarget(sys *network.System, names, paths []string) (*netTarget, error) {
-	t := &netTarget{System: sys}
-	for k, name := range names {
-		kn := knob{name: name}
-		var ok bool
-		switch {
-		case strings.HasPrefix(name, "init:"):
-			kn.kind = knobInitial
-			kn.index, ok = sys.SpeciesIndex(strings.TrimPrefix(name, "init:"))
-			if !ok {
-				return nil, fmt.Errorf("%s: no species %q in the model (species: %s)", paths[k], strings.TrimPrefix(name, "init:"), strings.Join(sys.Species(), ", "))
-			}
-		case strings.HasPrefix(name, "volume:"):
-			kn.kind = knobVolume
-			kn.index, ok = sys.CompartmentIndex(strings.TrimPrefix(name, "volume:"))
-			if !ok {
-				return nil, fmt.Errorf("%s: no compartment %q in the model (compartments: %s)", paths[k], strings.TrimPrefix(name, "volume:"), strings.Join(sys.Compartments(), ", "))
-			}
-		default:
-			kn.kind = knobParameter
-			kn.index, ok = sys.ParameterIndex(name)
-			if !ok {
-				return nil, fmt.Errorf("%s: no parameter %q in the model (parameters: %s; use init:SPECIES or volume:COMPARTMENT for those)", paths[k], name, strings.Join(sys.Parameters(), ", "))
-			}
-		}
-		t.knobs = append(t.knobs, kn)
+// newTarget resolves knob names on sys with study.NewTarget; errors name
+// the spec key path of the unknown knob.
+func newTarget(specPath string, sys *network.System, names, paths []string) (*study.Target, error) {
+	tg, err := study.NewTarget(sys, names)
+	var ke *study.KnobError
+	if errors.As(err, &ke) {
+		return nil, fmt.Errorf("%s: %s: %w", specPath, paths[ke.Index], ke.Err)
 	}
-	return t, nil
-}
-
-// SetKnob implements explore.Target.
-func (t *netTarget) SetKnob(k int, v float64) error {
-	kn := t.knobs[k]
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return fmt.Errorf("%s = %v is not finite", kn.name, v)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", specPath, err)
 	}
-	switch kn.kind {
-	case knobInitial:
-		if v < 0 {
-			return fmt.Errorf("%s = %v: an initial concentration must be ≥ 0", kn.name, v)
-		}
-		t.SetInitial(kn.index, v)
-	case knobVolume:
-		if v <= 0 {
-			return fmt.Errorf("%s = %v: a volume must be positive", kn.name, v)
-		}
-		t.SetVolume(kn.index, v)
-	default:
-		t.SetParameter(kn.index, v)
-	}
-	return nil
-}
-
-// Initial implements explore.Target.
-func (t *netTarget) Initial(y0 []float64) { copy(y0, t.System.Initial()) }
-
-// Clone implements explore.Target.
-func (t *netTarget) Clone() explore.Target {
-	return &netTarget{System: t.System.Clone(), knobs: t.knobs}
-}
-
-// loaded is a model ready to explore.
-type loaded struct {
-	model *network.Model
-	sys   *network.System
-	sim   network.Simulation
-	times []float64
+	return tg, nil
 }
 
 // loadModel loads the model named by a spec (relative to the spec's
 // folder), applies the simulation override and compiles it.
-func loadModel(specPath, model string, simRaw json.RawMessage) (*loaded, error) {
+func loadModel(specPath, model string, simRaw json.RawMessage) (*study.Prepared, error) {
 	if model == "" {
 		return nil, fmt.Errorf("%s: model: missing (the model file, relative to the spec)", specPath)
 	}
@@ -268,23 +187,11 @@ func loadModel(specPath, model string, simRaw json.RawMessage) (*loaded, error) 
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", model, err)
 	}
-	return &loaded{model: m, sys: sys, sim: sim, times: network.OutputTimes(sim.TEnd, sim.Output)}, nil
-}
-
-// settings returns the solve settings of the loaded simulation.
-func (l *loaded) settings() solve.Settings {
-	method := solve.Method(l.sim.Method)
-	if l.sim.Method == "auto" {
-		method = solve.Auto
-	}
-	return solve.Settings{
-		RTol: l.sim.RTol, ATol: l.sim.ATol, Method: method,
-		Times: l.times, NonNegative: l.sim.KeepNonNegative(),
-	}
+	return &study.Prepared{Model: m, Sys: sys, Sim: sim, Times: network.OutputTimes(sim.TEnd, sim.Output)}, nil
 }
 
 // readouts decodes and resolves the readouts of a spec.
-func (l *loaded) readouts(specPath string, raw json.RawMessage) ([]explore.Readout, error) {
+func readouts(l *study.Prepared, specPath string, raw json.RawMessage) ([]explore.Readout, error) {
 	if len(raw) == 0 {
 		return nil, nil
 	}
@@ -303,9 +210,9 @@ func (l *loaded) readouts(specPath string, raw json.RawMessage) ([]explore.Reado
 		bad := func(format string, a ...any) error {
 			return fmt.Errorf("%s: %s.%s", specPath, path, fmt.Sprintf(format, a...))
 		}
-		j, ok := l.sys.SpeciesIndex(rs.Species)
+		j, ok := l.Sys.SpeciesIndex(rs.Species)
 		if !ok {
-			return nil, bad("species: no species %q in the model (species: %s)", rs.Species, strings.Join(l.sys.Species(), ", "))
+			return nil, bad("species: no species %q in the model (species: %s)", rs.Species, strings.Join(l.Sys.Species(), ", "))
 		}
 		r := explore.Readout{Name: rs.Name, Kind: explore.Kind(rs.Kind), Component: j}
 		if r.Name == "" {
@@ -329,7 +236,7 @@ func (l *loaded) readouts(specPath string, raw json.RawMessage) ([]explore.Reado
 		if rs.Level != nil && r.Kind != explore.CrossUp && r.Kind != explore.CrossDown {
 			return nil, bad("level: only cross_up and cross_down take a level")
 		}
-		if err := r.Validate(l.sys.Dim()); err != nil {
+		if err := r.Validate(l.Sys.Dim()); err != nil {
 			return nil, fmt.Errorf("%s: %s: %w", specPath, path, err)
 		}
 		if seen[r.Name] {
@@ -358,32 +265,18 @@ func axis(specPath string, raw json.RawMessage, path string) (axisSpec, []float6
 	case math.IsNaN(a.From) || math.IsInf(a.From, 0) || math.IsNaN(a.To) || math.IsInf(a.To, 0):
 		return bad("from/to: expected finite numbers")
 	}
-	vals := make([]float64, a.Points)
 	switch a.Spacing {
 	case "", "linear":
-		for i := range vals {
-			if a.Points == 1 {
-				vals[i] = a.From
-				break
-			}
-			vals[i] = a.From + (a.To-a.From)*float64(i)/float64(a.Points-1)
-		}
 	case "log":
 		if !(a.From > 0 && a.To > 0) {
 			return bad("from: log spacing needs positive from and to, got %v and %v", a.From, a.To)
 		}
-		lo, hi := math.Log(a.From), math.Log(a.To)
-		for i := range vals {
-			if a.Points > 1 {
-				vals[i] = math.Exp(lo + (hi-lo)*float64(i)/float64(a.Points-1))
-			}
-		}
-		vals[0] = a.From
 	default:
 		return bad("spacing: expected \"linear\" or \"log\", got %q", a.Spacing)
 	}
-	if a.Points > 1 {
-		vals[a.Points-1] = a.To
+	vals, err := study.AxisValues(a.From, a.To, a.Points, a.Spacing == "log")
+	if err != nil {
+		return a, nil, fmt.Errorf("%s: %s: %w", specPath, path, err)
 	}
 	return a, vals, nil
 }
@@ -566,40 +459,40 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 			}
 		}
 	}
-	tg, err := newNetTarget(l.sys, knobs, paths)
+	tg, err := newTarget(c.spec, l.Sys, knobs, paths)
 	if err != nil {
-		return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
+		return nil, nil, err
 	}
-	ro, err := l.readouts(c.spec, spec.Readouts)
+	ro, err := readouts(l, c.spec, spec.Readouts)
 	if err != nil {
 		return nil, nil, err
 	}
 	plotSp := spec.PlotSpecies
 	for i, sp := range plotSp {
-		if _, ok := l.sys.SpeciesIndex(sp); !ok {
+		if _, ok := l.Sys.SpeciesIndex(sp); !ok {
 			return nil, nil, fmt.Errorf("%s: plot_species[%d]: no species %q in the model", c.spec, i, sp)
 		}
 	}
 	if plotSp == nil {
 		for _, r := range ro {
-			sp := l.sys.Species()[r.Component]
+			sp := l.Sys.Species()[r.Component]
 			if !slices.Contains(plotSp, sp) {
 				plotSp = append(plotSp, sp)
 			}
 		}
 	}
 	meta := &runMeta{
-		Kind: "sweep", Spec: filepath.Base(c.spec), Title: l.model.Title,
-		TimeUnit: l.model.Units.Time, AmountUnit: l.model.Units.Amount,
-		Knobs: knobs, Axes: axes, AxisLog: logs, Species: l.sys.Species(), PlotSpecies: plotSp, LogTime: l.sim.Output.Spacing == "log",
+		Kind: "sweep", Spec: filepath.Base(c.spec), Title: l.Model.Title,
+		TimeUnit: l.Model.Units.Time, AmountUnit: l.Model.Units.Amount,
+		Knobs: knobs, Axes: axes, AxisLog: logs, Species: l.Sys.Species(), PlotSpecies: plotSp, LogTime: l.Sim.Output.Spacing == "log",
 	}
 	for _, r := range ro {
-		meta.ReadoutSpecies = append(meta.ReadoutSpecies, l.sys.Species()[r.Component])
+		meta.ReadoutSpecies = append(meta.ReadoutSpecies, l.Sys.Species()[r.Component])
 	}
 	return c, &job{
 		meta:     meta,
 		design:   explore.Grid{Axes: axes},
-		ode:      &explore.ODE{Target: tg, TEnd: l.sim.TEnd, Settings: l.settings()},
+		ode:      &explore.ODE{Target: tg, TEnd: l.Sim.TEnd, Settings: study.SolveSettings(l.Sim, l.Times)},
 		settings: explore.Settings{Knobs: knobs, Readouts: ro, KeepTrajectories: true},
 	}, nil
 }
