@@ -113,9 +113,17 @@ func (w *mainWindow) exportData() {
 // extension, and calls save with the path. The file itself is written by
 // save (atomically), not through the dialog.
 func (w *mainWindow) saveFileDialog(name, ext string, save func(path string)) {
+	saveDialog(w.win, name, ext, w.lastDir(), save)
+}
+
+// saveDialog is the file dialog behind every save and export: it asks for a
+// file in win (starting in dir when not nil), adds ext when the chosen name
+// has no extension, and calls save with the path. The dialog only picks the
+// name; save writes the file, atomically.
+func saveDialog(win fyne.Window, name, ext string, dir fyne.ListableURI, save func(path string)) {
 	d := dialog.NewFileSave(func(wc fyne.URIWriteCloser, err error) {
 		if err != nil {
-			w.showError(err)
+			dialog.ShowError(err, win)
 			return
 		}
 		if wc == nil {
@@ -127,10 +135,10 @@ func (w *mainWindow) saveFileDialog(name, ext string, save func(path string)) {
 			path += ext
 		}
 		save(path)
-	}, w.win)
+	}, win)
 	d.SetFilter(storage.NewExtensionFileFilter([]string{ext}))
 	d.SetFileName(name)
-	if dir := w.lastDir(); dir != nil {
+	if dir != nil {
 		d.SetLocation(dir)
 	}
 	d.Resize(fyne.NewSize(900, 600))

@@ -16,7 +16,6 @@ import (
 	"fyne.io/fyne/v2/canvas"
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/dialog"
-	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
@@ -414,29 +413,13 @@ func (c *runControls) begin(work func(ctx context.Context, progress func(float64
 // saveAs asks for a file to write in win, adds ext when the name has none,
 // and calls save with the path; save writes the file (atomically).
 func saveAs(win fyne.Window, name, ext string, save func(path string) error, saved func(path string)) {
-	d := dialog.NewFileSave(func(wc fyne.URIWriteCloser, err error) {
-		if err != nil {
-			dialog.ShowError(err, win)
-			return
-		}
-		if wc == nil {
-			return
-		}
-		path := wc.URI().Path()
-		wc.Close()
-		if filepath.Ext(path) == "" {
-			path += ext
-		}
+	saveDialog(win, name, ext, nil, func(path string) {
 		if err := save(path); err != nil {
 			dialog.ShowError(err, win)
 			return
 		}
 		saved(path)
-	}, win)
-	d.SetFilter(storage.NewExtensionFileFilter([]string{ext}))
-	d.SetFileName(name)
-	d.Resize(fyne.NewSize(900, 600))
-	d.Show()
+	})
 }
 
 // exportFigureAs asks for a format, then a file, and saves the figure made
