@@ -80,21 +80,29 @@ func Run(ctx context.Context, m *network.Model, progress func(float64)) (*Outcom
 	set.Progress = progress
 	sim := m.Simulation.WithDefaults()
 	res, serr := solve.Solve(ctx, sys, 0, sim.TEnd, sys.Initial(), set)
+	out, err := NewOutcome(m, append([]string(nil), sys.Species()...), res, serr, start)
+	out.Compile = compiled
+	return out, err
+}
+
+// NewOutcome packs the result of a solve of m begun at start — complete, or
+// partial when err is not nil — with the species names. A cancelled solve's
+// error says so.
+func NewOutcome(m *network.Model, names []string, res *solve.Result, err error, start time.Time) (*Outcome, error) {
 	out := &Outcome{
 		Title: m.Title, TimeUnit: m.Units.Time, AmountUnit: m.Units.Amount,
-		Names:   append([]string(nil), sys.Species()...),
-		Compile: compiled,
+		Names: names,
 	}
 	if res != nil {
 		out.T, out.Y, out.Stats = res.T, res.Y, res.Stats
 	}
 	out.Elapsed = time.Since(start)
-	if serr != nil {
-		if errors.Is(serr, context.Canceled) {
-			serr = fmt.Errorf("cancelled: %w", serr)
+	if err != nil {
+		if errors.Is(err, context.Canceled) {
+			err = fmt.Errorf("cancelled: %w", err)
 		}
-		out.Err = serr
-		return out, serr
+		out.Err = err
+		return out, err
 	}
 	return out, nil
 }

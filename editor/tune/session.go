@@ -2,7 +2,6 @@ package tune
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"time"
 
@@ -125,21 +124,5 @@ func (s *Session) setInitial(i int, v float64) {
 func (s *Session) Run(ctx context.Context) (*simulate.Outcome, error) {
 	start := time.Now()
 	res, err := s.solver.Solve(ctx, 0, s.tEnd, s.y0)
-	m := s.model
-	out := &simulate.Outcome{
-		Title: m.Title, TimeUnit: m.Units.Time, AmountUnit: m.Units.Amount,
-		Names: s.names,
-	}
-	if res != nil {
-		out.T, out.Y, out.Stats = res.T, res.Y, res.Stats
-	}
-	out.Elapsed = time.Since(start)
-	if err != nil {
-		if errors.Is(err, context.Canceled) {
-			err = fmt.Errorf("cancelled: %w", err)
-		}
-		out.Err = err
-		return out, err
-	}
-	return out, nil
+	return simulate.NewOutcome(s.model, s.names, res, err, start)
 }
