@@ -37,6 +37,20 @@ type AutonomousSystem interface {
 	Autonomous() bool
 }
 
+// SparsePatternSystem is implemented by a System that can tell which
+// entries of its Jacobian may be nonzero. For large systems with few
+// nonzeros per row the implicit methods then factorize their iteration
+// matrices with a SparseLU instead of the dense LU (see NewSolver).
+// The pattern must not change while a Solver uses the system.
+type SparsePatternSystem interface {
+	System
+	// JacobianPattern returns the pattern of ∂f/∂y in compressed sparse
+	// row form: the columns of row i are colIdx[rowPtr[i]:rowPtr[i+1]].
+	// Entries outside it must be zero. The caller does not modify the
+	// slices.
+	JacobianPattern() (rowPtr, colIdx []int)
+}
+
 // Method names an integration method.
 type Method string
 

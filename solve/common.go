@@ -55,6 +55,9 @@ type problem struct {
 	stats   *Stats
 	linear  func(n int) LinearSolver // nil: dense LU
 
+	sparse      *SparseLU // symbolic analysis shared by the steppers, or nil
+	sparseTried bool      // sparse has been decided
+
 	tEnd       float64 // end of the current solve (set by the driver)
 	autonomous bool    // f does not depend on t (AutonomousSystem)
 }
@@ -242,12 +245,21 @@ type LinearSolver interface {
 	Solve(b []float64)
 }
 
-// newLinear returns the problem's linear solver for n×n systems.
+// newLinear returns the problem's linear solver for n×n systems: the one
+// of Settings.LinearSolver, else a SparseLU for a large, sparse
+// SparsePatternSystem (see sparseFor), else the dense LU.
 func (p *problem) newLinear() LinearSolver {
 	if p.linear != nil {
 		if ls := p.linear(p.n); ls != nil {
 			return ls
 		}
+	}
+	if p.sparse == nil && !p.sparseTried {
+		p.sparseTried = true
+		p.sparse = sparseFor(p.sys)
+	}
+	if p.sparse != nil {
+		return p.sparse.share()
 	}
 	return NewLU(p.n)
 }

@@ -75,13 +75,13 @@ func (sv *Solver) alloc(sys System) {
 }
 
 // SetSystem makes the Solver integrate sys from now on. When sys has the
-// dimension of the previous system the work space is kept; otherwise it is
-// allocated anew.
+// dimension (and, for a SparsePatternSystem, the Jacobian pattern) of the
+// previous system the work space is kept; otherwise it is allocated anew.
 func (sv *Solver) SetSystem(sys System) {
 	switch {
 	case sys == nil:
 		sv.err = fmt.Errorf("solve: no system given")
-	case sv.p != nil && sys.Dim() == sv.n:
+	case sv.p != nil && sys.Dim() == sv.n && samePattern(sv.p.sys, sys):
 		sv.err = nil
 		sv.p.setSystem(sys)
 	default:

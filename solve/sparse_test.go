@@ -1,0 +1,469 @@
+package solve
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// randomSparse returns a random n×n row-major matrix with about perRow
+// off-diagonal entries per row, its CSR pattern (off-diagonal only, to check
+// that the diagonal is added), and, when dominant, a diagonal that
+// dominates its column strictly.
+func randomSparse(rng *rand.Rand, n, perRow int, dominant bool) (m []float64, rowPtr, colIdx []int) {
+	m = make([]float64, n*n)
+	rowPtr = []int{0}
+	for i := range n {
+		for range perRow {
+			j := rng.IntN(n)
+			if j == i {
+				continue
+			}
+			m[i*n+j] = rng.Float64()*2 - 1
+			colIdx = append(colIdx, j) // duplicates allowed
+		}
+		rowPtr = append(rowPtr, len(colIdx))
+	}
+	for j := range n {
+		var s float64
+		for i := range n {
+			s += math.Abs(m[i*n+j])
+		}
+		if dominant {
+			m[j*n+j] = (1 + s + rng.Float64()) * float64(1-2*rng.IntN(2))
+		} else {
+			m[j*n+j] = rng.Float64()*2 - 1
+		}
+	}
+	return m, rowPtr, colIdx
+}
+
+// TestSparseLURandom compares SparseLU with the dense LU (partial pivoting)
+// on random sparse diagonally dominant systems: relative difference of the
+// solutions ≤ 1e-12 (both are backward stable here, and the systems are
+// well conditioned; common practice).
+func TestSparseLURandom(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	for _, n := range []int{1, 2, 5, 40, 200, 500} {
+		for _, per := range []int{0, 1, 3, 8} {
+			m, rp, ci := randomSparse(rng, n, per, true)
+			f, err := NewSparseLU(n, rp, ci)
+			if err != nil {
+				t.Fatal(err)
+			}
+			d := NewLU(n)
+			if err := f.Factor(m); err != nil {
+				t.Fatalf("n %d: %v", n, err)
+			}
+			if err := d.Factor(m); err != nil {
+				t.Fatal(err)
+			}
+			if s, dn := f.Counts(); s != 1 || dn != 0 {
+				t.Errorf("n %d per row %d: %d sparse and %d dense factorizations, want 1 and 0", n, per, s, dn)
+			}
+			b := make([]float64, n)
+			for i := range b {
+				b[i] = rng.NormFloat64()
+			}
+			xs := append([]float64(nil), b...)
+			xd := append([]float64(nil), b...)
+			f.Solve(xs)
+			d.Solve(xd)
+			var diff, norm float64
+			for i := range xs {
+				diff = math.Max(diff, math.Abs(xs[i]-xd[i]))
+				norm = math.Max(norm, math.Abs(xd[i]))
+			}
+			if diff > 1e-12*norm {
+				t.Errorf("n %d per row %d: sparse and dense solutions differ by %.3g (norm %.3g)", n, per, diff, norm)
+			}
+			// Residual of the sparse solution against the matrix itself.
+			var res float64
+			for i := range n {
+				s := -b[i]
+				for j := range n {
+					s += m[i*n+j] * xs[j]
+				}
+				res = math.Max(res, math.Abs(s))
+			}
+			if res > 1e-12*(1+norm)*float64(per+2) {
+				t.Errorf("n %d per row %d: residual %.3g", n, per, res)
+			}
+			if n >= 200 && per == 3 {
+				t.Logf("n %d, %d pattern entries: %d entries in L+U", n, len(ci)+n, f.FactorNonzeros())
+			}
+		}
+	}
+}
+
+// TestSparseLUFallback checks the pivot test: a nonsingular matrix whose
+// static pivot is zero (or tiny) is factorized densely with the right
+// solution, and a singular matrix is reported.
+func TestSparseLUFallback(t *testing.T) {
+	// [[0 1 0],[1 0 2],[0 3 1]]: zero diagonal entry first.
+	m := []float64{0, 1, 0, 1, 0, 2, 0, 3, 1}
+	rp := []int{0, 1, 3, 4}
+	ci := []int{1, 0, 2, 1}
+	f, err := NewSparseLU(3, rp, ci)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := f.Factor(m); err != nil {
+		t.Fatal(err)
+	}
+	if s, d := f.Counts(); s != 0 || d != 1 {
+		t.Errorf("%d sparse and %d dense factorizations, want 0 and 1", s, d)
+	}
+	// Solution of M x = (1, 9, 7): x = (1, 1, 4) by hand.
+	b := []float64{1, 9, 7}
+	f.Solve(b)
+	for i, want := range []float64{1, 1, 4} {
+		if math.Abs(b[i]-want) > 1e-14 {
+			t.Errorf("x[%d] = %v, want %v", i, b[i], want)
+		}
+	}
+	// A diagonally dominant matrix afterwards goes the sparse way again.
+	m2 := []float64{4, 1, 0, 1, 4, 2, 0, 3, 4}
+	if err := f.Factor(m2); err != nil {
+		t.Fatal(err)
+	}
+	if s, d := f.Counts(); s != 1 || d != 1 {
+		t.Errorf("%d sparse and %d dense factorizations, want 1 and 1", s, d)
+	}
+	// Tiny pivot: 1e-9 below a 1 in its column fails the 1e-3 threshold.
+	m3 := []float64{1e-9, 1, 0, 1, 1, 2, 0, 3, 1}
+	if err := f.Factor(m3); err != nil {
+		t.Fatal(err)
+	}
+	if _, d := f.Counts(); d != 2 {
+		t.Errorf("tiny pivot: %d dense factorizations, want 2", d)
+	}
+	// Singular: the third row is twice the first.
+	sing := []float64{0, 1, 0, 1, 0, 2, 0, 2, 0}
+	if err := f.Factor(sing); err == nil {
+		t.Error("singular matrix factorized without error")
+	}
+	// NaN entries are reported too.
+	nan := []float64{math.NaN(), 1, 0, 1, 4, 2, 0, 3, 4}
+	if err := f.Factor(nan); err == nil {
+		t.Error("matrix with NaN factorized without error")
+	}
+}
+
+// TestSparseLUBadPattern checks the messages for malformed patterns.
+func TestSparseLUBadPattern(t *testing.T) {
+	for _, c := range []struct {
+		n      int
+		rp, ci []int
+		want   string
+	}{
+		{0, []int{0}, nil, "order 0"},
+		{2, []int{0, 1}, []int{0}, "2 rows need 3"},
+		{2, []int{0, 1, 3}, []int{0, 1}, "within the 2 column indices"},
+		{2, []int{0, 2, 1}, []int{0, 1}, "decreases at row 1"},
+		{2, []int{0, 1, 2}, []int{0, 5}, "row 1 has column index 5"},
+	} {
+		_, err := NewSparseLU(c.n, c.rp, c.ci)
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("NewSparseLU(%d, %v, %v) = %v, want an error mentioning %q", c.n, c.rp, c.ci, err, c.want)
+		}
+	}
+}
+
+// TestSparseLUAllocs checks that Factor and Solve do not allocate, on the
+// sparse path and (after its first use) on the dense fallback.
+func TestSparseLUAllocs(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	m, rp, ci := randomSparse(rng, 100, 3, true)
+	f, err := NewSparseLU(100, rp, ci)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := make([]float64, 100)
+	if a := testing.AllocsPerRun(20, func() { _ = f.Factor(m); f.Solve(b) }); a != 0 {
+		t.Errorf("sparse Factor+Solve: %v allocations per run", a)
+	}
+	bad := append([]float64(nil), m...)
+	bad[0] = 0
+	_ = f.Factor(bad) // allocates the fallback once
+	if a := testing.AllocsPerRun(20, func() { _ = f.Factor(bad); f.Solve(b) }); a != 0 {
+		t.Errorf("fallback Factor+Solve: %v allocations per run", a)
+	}
+	if _, d := f.Counts(); d < 21 {
+		t.Errorf("%d dense factorizations, want ≥ 21", d)
+	}
+}
+
+// patterned adds a Jacobian pattern, read off the Jacobian at a random
+// positive state, to a System.
+type patterned struct {
+	System
+	rp, ci []int
+}
+
+func (p patterned) JacobianPattern() ([]int, []int) { return p.rp, p.ci }
+
+func withPattern(sys System) patterned {
+	n := sys.Dim()
+	rng := rand.New(rand.NewPCG(5, 6))
+	y := make([]float64, n)
+	for i := range y {
+		y[i] = 0.5 + rng.Float64()
+	}
+	j := mat.NewDense(n, n, nil)
+	sys.Jacobian(0, y, j)
+	p := patterned{System: sys, rp: []int{0}}
+	for r := range n {
+		for c := range n {
+			if j.At(r, c) != 0 {
+				p.ci = append(p.ci, c)
+			}
+		}
+		p.rp = append(p.rp, len(p.ci))
+	}
+	return p
+}
+
+// TestSparseTestSet solves HIRES and POLLU with SparseLU given through
+// Settings.LinearSolver and checks the published reference solutions (Test
+// Set for IVP Solvers, Mazzia & Magherini, release 2.4): scaled error ≤ 10,
+// as for the dense solver, for every implicit method.
+func TestSparseTestSet(t *testing.T) {
+	for _, c := range testSetCases {
+		p := withPattern(c.sys())
+		for _, m := range []Method{Rosenbrock, Radau, BDF} {
+			t.Run(fmt.Sprintf("%s/%s", c.name, m), func(t *testing.T) {
+				var made []*SparseLU
+				s := Settings{Method: m, RTol: 1e-8, ATol: c.atol, Times: []float64{c.tEnd},
+					LinearSolver: func(n int) LinearSolver {
+						f, err := NewSparseLU(n, p.rp, p.ci)
+						if err != nil {
+							t.Fatal(err)
+						}
+						made = append(made, f)
+						return f
+					}}
+				res, err := Solve(context.Background(), c.sys(), 0, c.tEnd, c.y0(), s)
+				if err != nil {
+					t.Fatal(err)
+				}
+				e := scaledError(res.Y[0], c.ref, 1e-8, c.atol)
+				var sp, dn int
+				for _, f := range made {
+					a, b := f.Counts()
+					sp, dn = sp+a, dn+b
+				}
+				t.Logf("%s %s sparse: scaled error %.3g, %d sparse and %d dense factorizations", c.name, m, e, sp, dn)
+				if e > 10 {
+					t.Errorf("scaled error %.3g > 10", e)
+				}
+				if sp == 0 {
+					t.Error("the sparse factorization was never used")
+				}
+			})
+		}
+	}
+}
+
+// bindingChain is sequential binding of a ligand L to a polymer with m
+// sites: S_i + L ⇌ S_{i+1} (i = 0..m−1), mass action with forward rate
+// constants kf[i] and backward kb[i]. State: S_0..S_m, then L.
+type bindingChain struct {
+	m      int
+	kf, kb []float64
+}
+
+func newBindingChain(m int) *bindingChain {
+	c := &bindingChain{m: m, kf: make([]float64, m), kb: make([]float64, m)}
+	rng := rand.New(rand.NewPCG(7, 8))
+	for i := range m {
+		c.kf[i] = math.Pow(10, 3*rng.Float64()) // 1 … 1000 per unit time and concentration
+		// K_i·L ≈ 1 at L = 100, between 0.7 and 1.4.
+		c.kb[i] = c.kf[i] * 100 / (0.7 + 0.7*rng.Float64())
+	}
+	return c
+}
+
+func (c *bindingChain) Dim() int         { return c.m + 2 }
+func (c *bindingChain) Autonomous() bool { return true }
+
+func (c *bindingChain) RHS(_ float64, y, f []float64) {
+	l := c.m + 1
+	for i := range f {
+		f[i] = 0
+	}
+	for i := range c.m {
+		v := c.kf[i]*y[i]*y[l] - c.kb[i]*y[i+1]
+		f[i] -= v
+		f[i+1] += v
+		f[l] -= v
+	}
+}
+
+func (c *bindingChain) Jacobian(_ float64, y []float64, j *mat.Dense) {
+	l := c.m + 1
+	j.Zero()
+	for i := range c.m {
+		a, b, d := c.kf[i]*y[l], c.kf[i]*y[i], -c.kb[i] // ∂v/∂S_i, ∂v/∂L, ∂v/∂S_{i+1}
+		for _, r := range []struct {
+			row int
+			s   float64
+		}{{i, -1}, {i + 1, 1}, {l, -1}} {
+			j.Set(r.row, i, j.At(r.row, i)+r.s*a)
+			j.Set(r.row, l, j.At(r.row, l)+r.s*b)
+			j.Set(r.row, i+1, j.At(r.row, i+1)+r.s*d)
+		}
+	}
+}
+
+// JacobianPattern: row S_i has S_{i−1}, S_i, S_{i+1}, L; row L has all.
+func (c *bindingChain) JacobianPattern() (rowPtr, colIdx []int) {
+	n, l := c.m+2, c.m+1
+	rowPtr = []int{0}
+	for i := 0; i <= c.m; i++ {
+		for _, k := range []int{i - 1, i, i + 1, l} {
+			if k >= 0 && k <= l { // i+1 == l for the last S: a duplicate
+				colIdx = append(colIdx, k)
+			}
+		}
+		rowPtr = append(rowPtr, len(colIdx))
+	}
+	for k := range n {
+		colIdx = append(colIdx, k)
+	}
+	rowPtr = append(rowPtr, len(colIdx))
+	return rowPtr, colIdx
+}
+
+// equilibrium returns the equilibrium of the chain for total polymer p and
+// total ligand lt from the binding polynomial (Wyman & Gill, Binding and
+// Linkage, 1990): S_i ∝ c_i·L^i with c_i = ∏_{k<i} kf_k/kb_k, and the free
+// ligand L solves lt = L + p·Σ i c_i L^i / Σ c_i L^i (bisection; the right
+// side increases with L).
+func (c *bindingChain) equilibrium(p, lt float64) []float64 {
+	logc := make([]float64, c.m+1)
+	for i := range c.m {
+		logc[i+1] = logc[i] + math.Log(c.kf[i]/c.kb[i])
+	}
+	weights := func(l float64) []float64 {
+		w := make([]float64, c.m+1)
+		mx := math.Inf(-1)
+		for i := range w {
+			w[i] = logc[i] + float64(i)*math.Log(l)
+			mx = math.Max(mx, w[i])
+		}
+		var s float64
+		for i := range w {
+			w[i] = math.Exp(w[i] - mx)
+			s += w[i]
+		}
+		for i := range w {
+			w[i] /= s
+		}
+		return w
+	}
+	lo, hi := 0.0, lt
+	for range 200 {
+		mid := (lo + hi) / 2
+		var bound float64
+		for i, w := range weights(mid) {
+			bound += float64(i) * w
+		}
+		if mid+p*bound > lt {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	l := (lo + hi) / 2
+	y := weights(l)
+	for i := range y {
+		y[i] *= p
+	}
+	return append(y, l)
+}
+
+// TestSparseBindingChain solves a 300-species binding chain, which the
+// driver factorizes with SparseLU on its own (SparsePatternSystem), with
+// each implicit method. At t = 0.05 it compares with the same solve through
+// the dense LU (scaled difference ≤ 10), and at t = 1e4 with the
+// equilibrium from the binding polynomial (scaled error ≤ 10).
+func TestSparseBindingChain(t *testing.T) {
+	c := newBindingChain(298)
+	n := c.Dim()
+	y0 := make([]float64, n)
+	y0[0], y0[n-1] = 1, 300 // polymer 1, ligand 300
+	eq := c.equilibrium(1, 300)
+	const rtol, atol = 1e-7, 1e-12
+	times := []float64{0.05, 1e4}
+	for _, m := range []Method{Rosenbrock, Radau, BDF} {
+		t.Run(string(m), func(t *testing.T) {
+			sv := NewSolver(c, Settings{Method: m, RTol: rtol, ATol: atol, Times: times, NonNegative: true})
+			var ls LinearSolver
+			switch m {
+			case Rosenbrock:
+				ls = sv.ros.lu
+			case Radau:
+				ls = sv.radau.(*radau).lu
+			case BDF:
+				ls = sv.bdf.(*bdf).lu
+			}
+			sp, ok := ls.(*SparseLU)
+			if !ok {
+				t.Fatalf("the driver chose %T for a %d-species sparse system, want *SparseLU", ls, n)
+			}
+			res, err := sv.Solve(context.Background(), 0, times[1], y0)
+			if err != nil {
+				t.Fatal(err)
+			}
+			s, d := sp.Counts()
+			dense, err := Solve(context.Background(), c, 0, times[1], y0, Settings{Method: m, RTol: rtol, ATol: atol,
+				Times: times, NonNegative: true, LinearSolver: func(n int) LinearSolver { return NewLU(n) }})
+			if err != nil {
+				t.Fatal(err)
+			}
+			diff := scaledError(res.Y[0], dense.Y[0], rtol, atol)
+			e := scaledError(res.Y[1], eq, rtol, atol)
+			t.Logf("steps %d/%d rejected %d/%d, dense equilibrium error %.3g", res.Steps, dense.Steps, res.Rejected, dense.Rejected, scaledError(dense.Y[1], eq, rtol, atol))
+			t.Logf("%s: %d sparse / %d dense factorizations (%d in the dense run), sparse vs dense at t = %g: %.3g, equilibrium error %.3g; %v vs %v",
+				m, s, d, dense.Factorizations, times[0], diff, e, res.Wall, dense.Wall)
+			if s == 0 {
+				t.Error("no sparse factorization")
+			}
+			if diff > 10 {
+				t.Errorf("sparse and dense solutions differ at t = %g: scaled %.3g > 10", times[0], diff)
+			}
+			if e > 10 {
+				t.Errorf("scaled error at equilibrium %.3g > 10", e)
+			}
+		})
+	}
+}
+
+// TestSparseSetSystem checks that a Solver keeps its work space for a
+// system with the same Jacobian pattern and rebuilds it for another one.
+func TestSparseSetSystem(t *testing.T) {
+	c := newBindingChain(98)
+	sv := NewSolver(c, Settings{Method: BDF})
+	p0 := sv.p
+	if _, ok := sv.bdf.(*bdf).lu.(*SparseLU); !ok {
+		t.Fatal("no sparse LU for the chain")
+	}
+	sv.SetSystem(newBindingChain(98))
+	if sv.p != p0 {
+		t.Error("SetSystem rebuilt the work space for a system with the same pattern")
+	}
+	other := patterned{System: c, rp: make([]int, c.Dim()+1)} // diagonal only
+	sv.SetSystem(other)
+	if sv.p == p0 {
+		t.Fatal("SetSystem kept the work space for a system with another pattern")
+	}
+	if f, ok := sv.bdf.(*bdf).lu.(*SparseLU); !ok || f.FactorNonzeros() != c.Dim() {
+		t.Errorf("after SetSystem the linear solver is %T, want a diagonal *SparseLU", sv.bdf.(*bdf).lu)
+	}
+}
