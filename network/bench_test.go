@@ -1,11 +1,14 @@
 package network
 
 import (
+	"context"
 	"fmt"
 	"math/rand/v2"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
+
+	"kinetarium/solve"
 )
 
 // bigModel generates a network of n species and 3n reactions: unimolecular
@@ -90,4 +93,97 @@ func BenchmarkCompile1000(b *testing.B) {
 func TestBigModelJacobian(t *testing.T) {
 	s := mustCompile(t, bigModel(60))
 	checkJacobianFD(t, "generated network", s, randomState(newRng(), s))
+}
+
+// iterationMatrix returns c·I − J at the initial state of bigModel(n), the
+// matrix the implicit solvers factorize, with c = 1/(0.25·h) for h = 0.01.
+func iterationMatrix(b *testing.B, n int) (*System, []float64) {
+	s, err := Compile(bigModel(n))
+	if err != nil {
+		b.Fatal(err)
+	}
+	j := mat.NewDense(n, n, nil)
+	s.Jacobian(0, s.Initial(), j)
+	m := make([]float64, n*n)
+	for i := range n {
+		for k := range n {
+			m[i*n+k] = -j.At(i, k)
+		}
+		m[i*n+i] += 1 / (0.25 * 0.01)
+	}
+	return s, m
+}
+
+// BenchmarkLinearSolvers times one factorization and one solve of the
+// iteration matrix of generated networks with the dense LU and the sparse
+// LU; it is how solve's sparse threshold was chosen.
+func BenchmarkLinearSolvers(b *testing.B) {
+	for _, n := range []int{20, 50, 100, 200, 1000} {
+		s, m := iterationMatrix(b, n)
+		rp, ci := s.JacobianPattern()
+		sp, err := solve.NewSparseLU(n, rp, ci)
+		if err != nil {
+			b.Fatal(err)
+		}
+		rhs := make([]float64, n)
+		for _, c := range []struct {
+			name string
+			ls   solve.LinearSolver
+		}{{"dense", solve.NewLU(n)}, {"sparse", sp}} {
+			b.Run(fmt.Sprintf("n=%d/%s", n, c.name), func(b *testing.B) {
+				b.ReportAllocs()
+				for b.Loop() {
+					if err := c.ls.Factor(m); err != nil {
+						b.Fatal(err)
+					}
+					c.ls.Solve(rhs)
+				}
+				if c.name == "dense" {
+					b.ReportMetric(2*float64(n)*float64(n)*float64(n)/3, "flops")
+				}
+				if c.name == "sparse" {
+					b.ReportMetric(float64(sp.FactorNonzeros())/float64(n), "LU-nnz/row")
+					b.ReportMetric(sp.FactorFlops(), "flops")
+				}
+			})
+		}
+	}
+}
+
+// BenchmarkSolveBDF1000 times whole BDF solves of the generated 1000-species
+// network over [0, 10] at rtol 1e-6 with the driver's choice of linear
+// solver (sparse) and with the dense LU forced.
+func BenchmarkSolveBDF1000(b *testing.B) { benchSolve(b, 1000, solve.BDF) }
+
+// BenchmarkSolveBDF200: see BenchmarkSolveBDF1000, for 200 species.
+func BenchmarkSolveBDF200(b *testing.B) { benchSolve(b, 200, solve.BDF) }
+
+// BenchmarkSolveRadau200: see BenchmarkSolveBDF1000, Radau IIA on 200 species.
+func BenchmarkSolveRadau200(b *testing.B) { benchSolve(b, 200, solve.Radau) }
+
+func benchSolve(b *testing.B, n int, method solve.Method) {
+	s, err := Compile(bigModel(n))
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, dense := range []bool{false, true} {
+		name := "auto-linear"
+		set := solve.Settings{Method: method, RTol: 1e-6, NonNegative: true, Times: []float64{10}}
+		if dense {
+			name = "dense"
+			set.LinearSolver = func(n int) solve.LinearSolver { return solve.NewLU(n) }
+		}
+		b.Run(name, func(b *testing.B) {
+			sv := solve.NewSolver(s, set)
+			var res *solve.Result
+			for b.Loop() {
+				res, err = sv.Solve(context.Background(), 0, 10, s.Initial())
+				if err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(res.Steps), "steps")
+			b.ReportMetric(float64(res.Factorizations), "LU")
+		})
+	}
 }

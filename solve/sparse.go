@@ -6,15 +6,18 @@ import (
 	"slices"
 )
 
-// sparseMinSize is the system size from which the driver uses a SparseLU
-// for a SparsePatternSystem (when Settings.LinearSolver is nil). It was
-// measured with BenchmarkLinearSolvers on generated reaction networks:
-// below about 40 species the dense LU is as fast or faster.
-const sparseMinSize = 40
+// sparseMinSize is the system size from which the driver considers a
+// SparseLU for a SparsePatternSystem (when Settings.LinearSolver is nil).
+// Measured with BenchmarkLinearSolvers in package network on generated
+// networks: at 20 and 50 species the dense LU is faster (its loops are
+// contiguous), at 100 they are even, from 200 the sparse one wins.
+const sparseMinSize = 100
 
-// sparseMaxDensity is the largest fill ratio, nonzeros of L+U over n², for
-// which the driver prefers the sparse factorization to the dense one.
-const sparseMaxDensity = 0.25
+// sparseFlopRatio is how much more one floating-point operation of the
+// sparse factorization costs than one of the dense LU (indirect addressing;
+// measured 2–6 with BenchmarkLinearSolvers for n = 100 to 1000). The driver
+// uses the sparse LU only when it is cheaper by this measure.
+const sparseFlopRatio = 4
 
 // pivotTol is the threshold of the static-pivot test: a pivot is accepted
 // when it is at least pivotTol times the largest entry below it in its
@@ -140,6 +143,17 @@ func (f *SparseLU) Dim() int { return f.n }
 // FactorNonzeros is the number of entries of L and U together, diagonal
 // included.
 func (f *SparseLU) FactorNonzeros() int { return f.n + len(f.lRow) + len(f.uRow) }
+
+// FactorFlops is the number of floating-point operations of one sparse
+// numeric factorization (the dense LU takes about 2n³/3).
+func (f *SparseLU) FactorFlops() float64 {
+	var fl float64
+	for j := range f.n {
+		d := float64(f.lPtr[j+1] - f.lPtr[j])
+		fl += d + 2*d*d // scaling of L's column, update of the trailing block
+	}
+	return fl
+}
 
 // Counts reports how many factorizations were sparse and how many fell back
 // to the dense LU.
@@ -367,7 +381,8 @@ func minimumDegree(n int, g *sparseGraph) (perm []int, elim [][]int) {
 }
 
 // sparseFor returns a SparseLU for sys when it is a SparsePatternSystem of
-// at least sparseMinSize variables whose factors stay sparse, else nil.
+// at least sparseMinSize variables whose sparse factorization is expected
+// to be faster than the dense one, else nil.
 func sparseFor(sys System) *SparseLU {
 	ps, ok := sys.(SparsePatternSystem)
 	n := sys.Dim()
@@ -376,7 +391,7 @@ func sparseFor(sys System) *SparseLU {
 	}
 	rp, ci := ps.JacobianPattern()
 	f, err := NewSparseLU(n, rp, ci)
-	if err != nil || float64(f.FactorNonzeros()) > sparseMaxDensity*float64(n)*float64(n) {
+	if err != nil || sparseFlopRatio*f.FactorFlops() > 2*float64(n)*float64(n)*float64(n)/3 {
 		return nil
 	}
 	return f

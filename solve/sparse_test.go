@@ -448,13 +448,13 @@ func TestSparseBindingChain(t *testing.T) {
 // TestSparseSetSystem checks that a Solver keeps its work space for a
 // system with the same Jacobian pattern and rebuilds it for another one.
 func TestSparseSetSystem(t *testing.T) {
-	c := newBindingChain(98)
+	c := newBindingChain(148)
 	sv := NewSolver(c, Settings{Method: BDF})
 	p0 := sv.p
 	if _, ok := sv.bdf.(*bdf).lu.(*SparseLU); !ok {
 		t.Fatal("no sparse LU for the chain")
 	}
-	sv.SetSystem(newBindingChain(98))
+	sv.SetSystem(newBindingChain(148))
 	if sv.p != p0 {
 		t.Error("SetSystem rebuilt the work space for a system with the same pattern")
 	}
