@@ -1,7 +1,6 @@
 package network
 
 import (
-	"context"
 	"fmt"
 	"math/rand/v2"
 	"testing"
@@ -147,43 +146,5 @@ func BenchmarkLinearSolvers(b *testing.B) {
 				}
 			})
 		}
-	}
-}
-
-// BenchmarkSolveBDF1000 times whole BDF solves of the generated 1000-species
-// network over [0, 10] at rtol 1e-6 with the driver's choice of linear
-// solver (sparse) and with the dense LU forced.
-func BenchmarkSolveBDF1000(b *testing.B) { benchSolve(b, 1000, solve.BDF) }
-
-// BenchmarkSolveBDF200: see BenchmarkSolveBDF1000, for 200 species.
-func BenchmarkSolveBDF200(b *testing.B) { benchSolve(b, 200, solve.BDF) }
-
-// BenchmarkSolveRadau200: see BenchmarkSolveBDF1000, Radau IIA on 200 species.
-func BenchmarkSolveRadau200(b *testing.B) { benchSolve(b, 200, solve.Radau) }
-
-func benchSolve(b *testing.B, n int, method solve.Method) {
-	s, err := Compile(bigModel(n))
-	if err != nil {
-		b.Fatal(err)
-	}
-	for _, dense := range []bool{false, true} {
-		name := "auto-linear"
-		set := solve.Settings{Method: method, RTol: 1e-6, NonNegative: true, Times: []float64{10}}
-		if dense {
-			name = "dense"
-			set.LinearSolver = func(n int) solve.LinearSolver { return solve.NewLU(n) }
-		}
-		b.Run(name, func(b *testing.B) {
-			sv := solve.NewSolver(s, set)
-			var res *solve.Result
-			for b.Loop() {
-				res, err = sv.Solve(context.Background(), 0, 10, s.Initial())
-				if err != nil {
-					b.Fatal(err)
-				}
-			}
-			b.ReportMetric(float64(res.Steps), "steps")
-			b.ReportMetric(float64(res.Factorizations), "LU")
-		})
 	}
 }
