@@ -52,6 +52,20 @@ product when it has no reactants); a species in another compartment changes
 by that rate times the ratio of the two volumes. With no compartments, every
 species lives in one compartment of volume 1.
 
+## Exploring
+
+* **Sliders** (the panel under the plot): add a slider for a parameter, an
+  initial concentration or a volume and drag it; the model re-runs as you
+  move. Nothing in the model changes until you press Write into model.
+* **Run ▸ Sweep…** runs the model for a range of values of one quantity (or a
+  grid of two) and plots the curves and readouts against the value.
+* **Run ▸ Population…** draws many individuals from the distributions you
+  give and shows the median with 25–75 % and 5–95 % bands. Failed samples are
+  listed with their values and the reason.
+* Readouts are read off the output grid with straight lines between points:
+  value at a time, maximum and minimum (and when), final value, area under
+  the curve (trapezoids), and the first time a level is crossed.
+
 ## Caution
 
 ` + caution + `
