@@ -56,10 +56,14 @@ func decodeModel(data []byte) (*Model, error) {
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.UseNumber()
 	err := dec.Decode(&probe)
-	if err == nil && dec.More() {
+	if err == nil {
+		// dec.More is false before a stray '}' or ']', so look at the rest.
 		off := dec.InputOffset()
-		line, col := lineCol(data, off)
-		return nil, fmt.Errorf("line %d, column %d: unexpected text after the end of the model", line, col)
+		if rest := data[off:]; len(bytes.TrimSpace(rest)) > 0 {
+			off += int64(len(rest) - len(bytes.TrimLeft(rest, " \t\r\n")))
+			line, col := lineCol(data, off)
+			return nil, fmt.Errorf("line %d, column %d: unexpected text after the end of the model", line, col)
+		}
 	}
 	if err == io.EOF || err == io.ErrUnexpectedEOF || err != nil && strings.Contains(err.Error(), "unexpected end") {
 		line, col := lineCol(data, int64(len(data)))
@@ -182,7 +186,7 @@ func decodeModel(data []byte) (*Model, error) {
 			if p, ok := oo["points"]; ok {
 				f := d.num(p, "simulation.output.points")
 				if d.err == nil && (f != math.Trunc(f) || math.Abs(f) > 1e9) {
-					d.fail("simulation.output.points: %v is not a whole number; expected a count such as 200", f)
+					d.fail("simulation.output.points: %v is not a whole number up to 1e9; expected a count such as 200", f)
 				}
 				s.Output.Points = int(f)
 			}
@@ -231,9 +235,30 @@ func object(raw json.RawMessage, path string, allowed ...string) (map[string]jso
 	if where == "" {
 		where = "the top level"
 	}
-	var o map[string]json.RawMessage
-	if jsonKind(raw) != "an object" || json.Unmarshal(raw, &o) != nil {
+	if jsonKind(raw) != "an object" {
 		return nil, fmt.Errorf("%s: expected an object {...}, found %s", where, jsonKind(raw))
+	}
+	// Decode key by key: json.Unmarshal into a map would keep the last of
+	// two equal keys silently.
+	o := map[string]json.RawMessage{}
+	dec := json.NewDecoder(bytes.NewReader(raw))
+	if _, err := dec.Token(); err != nil { // '{'
+		return nil, fmt.Errorf("%s: expected an object {...}: %w", where, err)
+	}
+	for dec.More() {
+		tok, err := dec.Token()
+		if err != nil {
+			return nil, fmt.Errorf("%s: expected an object {...}: %w", where, err)
+		}
+		k, _ := tok.(string)
+		var v json.RawMessage
+		if err := dec.Decode(&v); err != nil {
+			return nil, fmt.Errorf("%s.%s: %w", where, k, err)
+		}
+		if _, dup := o[k]; dup {
+			return nil, fmt.Errorf("%s: the key %q appears twice; keep one", where, k)
+		}
+		o[k] = v
 	}
 	keys := make([]string, 0, len(o))
 	for k := range o {

@@ -86,6 +86,15 @@ func TestReadErrors(t *testing.T) {
 		{head + `"simulation": {"output": {"points": 2.5}}}`, `simulation.output.points: 2.5 is not a whole number`},
 		{head + `"simulation": {"t_end": 1e999}}`, `simulation.t_end: 1e999 is out of the range`},
 		{head + `"units": {"time": "s", "length": "m"}}`, `units: unknown key "length"`},
+		// Review regressions: a repeated key used to keep the last value
+		// silently; a stray closing brace was reported as "expected an
+		// object, found an object"; 1e20 points was called "not a whole
+		// number".
+		{head + `"species": [{"name": "A", "name": "B"}]}`, `species[0]: the key "name" appears twice`},
+		{head + `"title": "a", "title": "b"}`, `the top level: the key "title" appears twice`},
+		{`{"format": "kinetarium.model/1"}}`, `line 1, column 33: unexpected text after the end`},
+		{`{"format": "kinetarium.model/1"}` + "\n ]", `line 2, column 2: unexpected text after the end`},
+		{head + `"simulation": {"output": {"points": 1e20}}}`, `1e+20 is not a whole number up to 1e9`},
 	}
 	for _, c := range cases {
 		_, err := Read(strings.NewReader(c.in), "m.json")
