@@ -160,7 +160,9 @@ func newPopulationWindow(a fyne.App, m *network.Model, name string) (*population
 	p.readoutSel = widget.NewSelect(nil, func(string) { p.drawHistogram() })
 	p.summary = widget.NewLabel("")
 	p.summary.Wrapping = fyne.TextWrapWord
-	p.failures = newFailureList("sample")
+	p.failures = newFailureList("sample", func() {
+		p.failures.exportAs(p.win, func(path string) { p.ctl.status.SetText("Failures saved to " + path) })
+	})
 
 	bandBar := container.NewHBox(widget.NewLabel("Species"), p.species, p.logTime, p.logY)
 	histBar := container.NewVBox(container.NewHBox(widget.NewLabel("Readout"),
@@ -173,7 +175,7 @@ func newPopulationWindow(a fyne.App, m *network.Model, name string) (*population
 	exportFig := widget.NewButtonWithIcon("Figure…", theme.DocumentSaveIcon(), p.exportFigure)
 	exportSamples := widget.NewButtonWithIcon("Samples (CSV)…", theme.DocumentSaveIcon(), func() { p.exportTable("samples.csv", p.saveSamples) })
 	exportBands := widget.NewButtonWithIcon("Bands (CSV)…", theme.DocumentSaveIcon(), func() { p.exportTable("bands.csv", p.saveBands) })
-	top := container.NewHBox(widget.NewLabel("Export:"), exportFig, exportSamples, exportBands)
+	top := container.NewHBox(widget.NewLabel("Export:"), exportFig, exportSamples, exportBands, p.failures.export)
 	right := container.NewBorder(container.NewBorder(nil, nil, nil, top), nil, nil, nil, p.tabs)
 
 	split := container.NewHSplit(left, container.NewPadded(right))

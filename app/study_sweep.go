@@ -166,7 +166,9 @@ func newSweepWindow(a fyne.App, m *network.Model, name string) (*sweepWindow, er
 	s.logTime = widget.NewCheck("Log time", func(bool) { s.drawCurves() })
 	s.logTime.SetChecked(prep.Sim.Output.Spacing == "log")
 	s.readoutSel = widget.NewSelect(nil, func(string) { s.drawReadout() })
-	s.failures = newFailureList("run")
+	s.failures = newFailureList("run", func() {
+		s.failures.exportAs(s.win, func(path string) { s.ctl.status.SetText("Failures saved to " + path) })
+	})
 
 	curveBar := container.NewHBox(widget.NewLabel("Species"), s.species, s.secondAt, s.logTime)
 	readoutBar := container.NewHBox(widget.NewLabel("Readout"), container.NewGridWrap(fyne.NewSize(220, s.readoutSel.MinSize().Height), s.readoutSel))
@@ -177,7 +179,7 @@ func newSweepWindow(a fyne.App, m *network.Model, name string) (*sweepWindow, er
 	)
 	exportFig := widget.NewButtonWithIcon("Figure…", theme.DocumentSaveIcon(), s.exportFigure)
 	exportCSV := widget.NewButtonWithIcon("Table (CSV)…", theme.DocumentSaveIcon(), s.exportTable)
-	top := container.NewHBox(widget.NewLabel("Export:"), exportFig, exportCSV)
+	top := container.NewHBox(widget.NewLabel("Export:"), exportFig, exportCSV, s.failures.export)
 	right := container.NewBorder(container.NewBorder(nil, nil, nil, top), nil, nil, nil, s.tabs)
 
 	split := container.NewHSplit(left, container.NewPadded(right))
@@ -401,16 +403,22 @@ func fileSafe(s string) string {
 }
 
 // failureList lists the failed points of a result with their values and
-// reasons.
+// reasons, and holds the button that exports them. Points are numbered
+// from 0, as in the index column of the exported tables.
 type failureList struct {
 	what    string
+	res     *explore.Result
 	summary *widget.Label
 	lines   []string
 	list    *widget.List
+	export  *widget.Button
 	content fyne.CanvasObject
 }
 
-func newFailureList(what string) *failureList {
+// newFailureList makes the list of failed points called what ("run",
+// "sample"); its export button, disabled until a result has failures,
+// calls export.
+func newFailureList(what string, export func()) *failureList {
 	f := &failureList{what: what, summary: widget.NewLabel("No results yet.")}
 	f.summary.Wrapping = fyne.TextWrapWord
 	f.list = widget.NewList(func() int { return len(f.lines) },
@@ -420,15 +428,18 @@ func newFailureList(what string) *failureList {
 			return l
 		},
 		func(id widget.ListItemID, o fyne.CanvasObject) { o.(*widget.Label).SetText(f.lines[id]) })
+	f.export = widget.NewButtonWithIcon("Failures (CSV)…", theme.DocumentSaveIcon(), export)
+	f.export.Disable()
 	f.content = container.NewBorder(f.summary, nil, nil, nil, f.list)
 	return f
 }
 
-// set lists the failures of res.
+// set lists the failures of res and enables the export when there are any.
 func (f *failureList) set(res *explore.Result) {
+	f.res = res
 	f.lines = f.lines[:0]
 	for _, fl := range res.Failures {
-		line := fmt.Sprintf("%s %d:", strings.ToUpper(f.what[:1])+f.what[1:], fl.Index+1)
+		line := fmt.Sprintf("%s %d:", strings.ToUpper(f.what[:1])+f.what[1:], fl.Index)
 		for k, v := range fl.X {
 			line += fmt.Sprintf(" %s = %s", knobLabel(res.Knobs[k]), short(v))
 			if k+1 < len(fl.X) {
@@ -441,10 +452,34 @@ func (f *failureList) set(res *explore.Result) {
 	case 0:
 		f.summary.SetText(fmt.Sprintf("None of the %d %ss failed.", res.Points, f.what))
 	default:
-		f.summary.SetText(fmt.Sprintf("%d of %d %ss failed. They are left out of the figures and tables and listed here with their values and the reason.",
+		f.summary.SetText(fmt.Sprintf("%d of %d %ss failed. They are left out of the figures and tables and listed here "+
+			"with their values and the reason, numbered from 0 as in the index column of the exported tables.",
 			res.Failed, res.Points, f.what))
 	}
+	if len(res.Failures) > 0 {
+		f.export.Enable()
+	} else {
+		f.export.Disable()
+	}
 	f.list.Refresh()
+}
+
+// save writes the failed points (the batch command's failures.csv layout:
+// index, knob values, error).
+func (f *failureList) save(path string) error {
+	if f.res == nil {
+		return errors.New("nothing to save yet: press Run first")
+	}
+	if len(f.res.Failures) == 0 {
+		return fmt.Errorf("no %s failed; there is nothing to save", f.what)
+	}
+	return study.WriteCSV(path, study.FailureRows(f.res))
+}
+
+// exportAs asks for a file in win and saves the failed points there;
+// saved reports the path.
+func (f *failureList) exportAs(win fyne.Window, saved func(path string)) {
+	saveAs(win, "failures.csv", ".csv", f.save, saved)
 }
 
 // failureReason drops from a failure's message the knob number and value

@@ -104,6 +104,9 @@ func TestSweepDecayClosedForm(t *testing.T) {
 	if s.curves.plot == nil || s.readouts.plot == nil {
 		t.Error("the curves or the readout figure was not drawn")
 	}
+	if !s.failures.export.Disabled() || s.failures.save(filepath.Join(t.TempDir(), "failures.csv")) == nil {
+		t.Error("Failures (CSV)… is usable although no run failed")
+	}
 	path := filepath.Join(t.TempDir(), "runs.csv")
 	if err := s.saveRuns(path); err != nil {
 		t.Fatal(err)
@@ -248,10 +251,13 @@ func TestStudyCancel(t *testing.T) {
 	}
 }
 
-// Samples that fail (here: a negative initial concentration drawn from a
-// uniform distribution) are counted and listed with their values and the
-// reason, never dropped.
-func TestPopulationFailuresListed(t *testing.T) {
+// runFailingPopulation runs 60 samples with the initial concentration of
+// A drawn uniformly from [−1, 3], so that some draws are negative and fail
+// (a concentration below zero is not physical: common practice). It
+// returns the window and the number of negative draws, counted from the
+// same draws made directly.
+func runFailingPopulation(t *testing.T) (*populationWindow, int) {
+	t.Helper()
 	p := openPopulation(t, tuneDecayModel())
 	onUI(func() {
 		p.rows[0].quantity.SetSelected("A (initial concentration)")
@@ -262,6 +268,9 @@ func TestPopulationFailuresListed(t *testing.T) {
 		p.size.SetText("60")
 		p.seed.SetText("5")
 	})
+	if !p.failures.export.Disabled() {
+		t.Error("Failures (CSV)… is enabled before any run")
+	}
 	runAndWait(t, p.ctl)
 	pts, err := explore.Population{Vary: []explore.Distribution{explore.Uniform{Low: -1, High: 3}}, Size: 60, Seed: 5, Sampling: explore.LatinHypercube}.Sample()
 	if err != nil {
@@ -276,6 +285,14 @@ func TestPopulationFailuresListed(t *testing.T) {
 	if negative == 0 || p.res == nil || p.res.Failed != negative || len(p.res.Samples)+negative != 60 {
 		t.Fatalf("%d negative draws; result %+v", negative, p.res)
 	}
+	return p, negative
+}
+
+// Samples that fail (here: a negative initial concentration drawn from a
+// uniform distribution) are counted and listed with their values and the
+// reason, never dropped.
+func TestPopulationFailuresListed(t *testing.T) {
+	p, negative := runFailingPopulation(t)
 	if len(p.failures.lines) != negative || !strings.Contains(p.failures.lines[0], "an initial concentration must be ≥ 0") ||
 		!strings.Contains(p.failures.lines[0], "initial A = -") {
 		t.Errorf("failure list %q", p.failures.lines)
@@ -287,6 +304,83 @@ func TestPopulationFailuresListed(t *testing.T) {
 	if !strings.Contains(p.ctl.status.Text, strconv.Itoa(negative)+" samples failed") ||
 		!strings.HasPrefix(p.failures.summary.Text, strconv.Itoa(negative)+" of 60 samples failed") {
 		t.Errorf("status %q, summary %q", p.ctl.status.Text, p.failures.summary.Text)
+	}
+}
+
+// readCSV reads a whole CSV file.
+func readCSV(t *testing.T, path string) [][]string {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return rows
+}
+
+// The failed samples export in the batch command's failures.csv layout
+// (index, knob, error), one row per failure, each a negative draw; the
+// on-screen list numbers them with the same index.
+func TestPopulationFailuresExport(t *testing.T) {
+	p, negative := runFailingPopulation(t)
+	if p.failures.export.Disabled() {
+		t.Fatal("Failures (CSV)… is disabled although samples failed")
+	}
+	path := filepath.Join(t.TempDir(), "failures.csv")
+	if err := p.failures.save(path); err != nil {
+		t.Fatal(err)
+	}
+	rows := readCSV(t, path)
+	if len(rows) != negative+1 || strings.Join(rows[0], ",") != "index,init:A,error" {
+		t.Fatalf("failures.csv has header %v and %d rows, want index,init:A,error and %d", rows[0], len(rows)-1, negative)
+	}
+	for i, row := range rows[1:] {
+		a, err := strconv.ParseFloat(row[1], 64)
+		if err != nil || a >= 0 || !strings.Contains(row[2], "initial concentration must be ≥ 0") {
+			t.Errorf("failures.csv row %d = %v", i+1, row)
+		}
+		if want := "Sample " + row[0] + ":"; !strings.HasPrefix(p.failures.lines[i], want) {
+			t.Errorf("list line %d = %q, want it to start %q as the CSV row %v", i, p.failures.lines[i], want, row)
+		}
+	}
+	// The temporary file of the atomic write is gone.
+	if ents, _ := os.ReadDir(filepath.Dir(path)); len(ents) != 1 {
+		t.Errorf("the folder holds %d files after saving, want 1", len(ents))
+	}
+}
+
+// A sweep of A₀ over −2…2 fails at −2 and −1 (a negative concentration is
+// not physical: common practice): the list and failures.csv number those
+// runs 0 and 1, the positions in the sweep.
+func TestSweepFailuresExport(t *testing.T) {
+	s := openSweep(t, tuneDecayModel())
+	onUI(func() {
+		s.first.quantity.SetSelected("A (initial concentration)")
+		s.first.from.SetText("-2")
+		s.first.to.SetText("2")
+		s.first.points.SetText("5")
+		s.first.spacing.SetSelected(spacingLinear)
+	})
+	runAndWait(t, s.ctl)
+	if s.res == nil || s.res.Failed != 2 || s.failures.export.Disabled() {
+		t.Fatalf("result %+v, status %q", s.res, s.ctl.status.Text)
+	}
+	if len(s.failures.lines) != 2 || !strings.HasPrefix(s.failures.lines[0], "Run 0: initial A = -2 — ") ||
+		!strings.HasPrefix(s.failures.lines[1], "Run 1: initial A = -1 — ") {
+		t.Errorf("failure list %q", s.failures.lines)
+	}
+	path := filepath.Join(t.TempDir(), "failures.csv")
+	if err := s.failures.save(path); err != nil {
+		t.Fatal(err)
+	}
+	rows := readCSV(t, path)
+	if len(rows) != 3 || strings.Join(rows[0], ",") != "index,init:A,error" ||
+		rows[1][0] != "0" || rows[1][1] != "-2" || rows[2][0] != "1" || rows[2][1] != "-1" {
+		t.Errorf("failures.csv = %v", rows)
 	}
 }
 
