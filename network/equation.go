@@ -1,6 +1,7 @@
 package network
 
 import (
+	"errors"
 	"fmt"
 	"strconv"
 	"strings"
@@ -139,6 +140,10 @@ func (p *eqParser) side() ([]Term, error) {
 	p.skipSpace()
 	if p.pos < len(p.src) && p.src[p.pos] == '∅' {
 		p.pos++
+		p.skipSpace()
+		if !p.atSideEnd() {
+			return nil, p.errf(p.pos, "unexpected %q after \"∅\"; ∅ stands for an empty side, so write it alone or list species instead", string(p.src[p.pos]))
+		}
 		return nil, nil
 	}
 	if p.atSideEnd() {
@@ -191,6 +196,9 @@ func (p *eqParser) term() (Term, error) {
 		}
 		num := string(p.src[start:p.pos])
 		v, err := strconv.ParseFloat(num, 64)
+		if errors.Is(err, strconv.ErrRange) {
+			return t, p.errf(start, "coefficient %.20s… is too large; expected a coefficient such as 2 or 0.5", num)
+		}
 		if err != nil {
 			return t, p.errf(start, "%q is not a number; expected a coefficient such as 2 or 0.5", num)
 		}

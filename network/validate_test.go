@@ -168,6 +168,11 @@ func TestParseEquation(t *testing.T) {
 		{"A -> B$", 7, `unexpected "$"`},
 		{"1.2.3 A -> B", 1, "not a number"},
 		{"Ä -> B", 1, "expected a species name"},
+		// Review regressions: "∅ + A" was answered `unexpected "+"; expected
+		// "+", ...`, and a 400-digit coefficient was called "not a number".
+		{"∅ + A -> B", 3, "∅ stands for an empty side"},
+		{"A -> ∅ B", 8, "∅ stands for an empty side"},
+		{strings.Repeat("9", 400) + " A -> B", 1, "too large"},
 	}
 	for _, c := range bad {
 		_, err := ParseEquation(c.in)
