@@ -62,6 +62,7 @@ type bdf struct {
 	mtx      []float64 // I − c·J, row-major
 	lu       LinearSolver
 	luC      float64 // c of the current factorization; 0 when none
+	hWanted  float64 // natural step of the last step shortened to land on tLimit; 0 if none
 	badComp  int
 	lastIter int
 
@@ -153,7 +154,10 @@ func (b *bdf) start(t float64, y []float64, h float64) error {
 
 func (b *bdf) current() (float64, []float64) { return b.t, b.d[0] }
 
-func (b *bdf) stepSize() float64 { return b.hAbs }
+// stepSize is the step to restart with: after a step shortened to land on
+// tLimit, the step the controller wanted, so that a restart at a stop time
+// does not begin with the (possibly tiny) remnant.
+func (b *bdf) stepSize() float64 { return math.Max(b.hAbs, b.hWanted) }
 
 // dense evaluates the interpolating polynomial of the differences saved at
 // the last accepted step.
@@ -321,6 +325,7 @@ func wrms(v, scale []float64) float64 {
 
 func (b *bdf) step(tLimit float64) error {
 	b.badComp = -1
+	b.hWanted = 0
 	if b.p.maxStep > 0 && b.hAbs > b.p.maxStep {
 		b.changeH(b.p.maxStep / b.hAbs)
 		b.hAbs = b.p.maxStep
@@ -336,6 +341,7 @@ func (b *bdf) step(tLimit float64) error {
 		tNew := b.t + h
 		if tNew >= tLimit {
 			tNew = tLimit
+			b.hWanted = h
 			b.changeH((tNew - b.t) / h)
 			b.hAbs = tNew - b.t
 			h = b.hAbs
@@ -395,6 +401,7 @@ func (b *bdf) step(tLimit float64) error {
 		}
 		if !(errNorm <= 1) {
 			b.p.stats.Rejected++
+			b.hWanted = 0
 			factor := bdfMinFactor
 			if !math.IsNaN(errNorm) {
 				factor = math.Max(bdfMinFactor, safety*math.Pow(errNorm, -1/float64(b.order+1)))

@@ -396,7 +396,9 @@ func (r *radau) step(tLimit float64) error {
 		if r.t+1.01*h >= tLimit {
 			h, last = tLimit-r.t, true
 		}
-		if h <= math.Max(1e-14*math.Abs(r.t), minStep(r.t)) || tries >= radMaxRej {
+		// The floor applies to the step the controller wants; the landing
+		// step may be shorter still (two close stop times).
+		if hNatural <= math.Max(1e-14*math.Abs(r.t), minStep(r.t)) || !(h > 0) || tries >= radMaxRej {
 			return r.p.tooSmallError(r.t, h, r.badComp)
 		}
 		for i := 0; i < n; i++ {

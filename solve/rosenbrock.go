@@ -305,11 +305,14 @@ func (r *rosenbrock) step(tLimit float64) error {
 	singular, bad, rejectsInRow := 0, -1, 0
 	for {
 		h := math.Min(r.h, p.maxStep)
+		hNatural := h
 		last := false
 		if r.t+1.0001*h >= tLimit {
 			h, last = tLimit-r.t, true
 		}
-		if h < minStep(r.t) || rejectsInRow > 100 {
+		// The floor applies to the step the controller wants; the landing
+		// step may be shorter still (tLimit a few ulps ahead).
+		if hNatural < minStep(r.t) || !(h > 0) || rejectsInRow > 100 {
 			return p.tooSmallError(r.t, h, bad)
 		}
 		if h != r.luH {
