@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"kinetarium/network/expr"
 )
 
 // Severity grades a Problem.
@@ -170,6 +172,9 @@ func (v *validator) declare(section string, index int, name string, ix map[strin
 		return
 	case name == TimeName && section != "compartments":
 		v.add(Error, section, index, name, "name", 0, "the name %q is reserved for time in rate expressions; choose another", name)
+		return
+	case section != "compartments" && !usableInExpressions(name):
+		v.add(Error, section, index, name, "name", 0, "the name %q is a function of rate expressions (exp, log, log10, sqrt, abs, min, max, pow); choose another", name)
 		return
 	}
 	if prev, ok := v.kinds[name]; ok {
@@ -470,4 +475,11 @@ func (v *validator) simulation() {
 			errf("method", "unknown method %q; expected one of %s", s.Method, strings.Join(Methods, ", "))
 		}
 	}
+}
+
+// usableInExpressions reports whether name reads as a variable in a rate
+// expression (function names such as exp do not).
+func usableInExpressions(name string) bool {
+	_, err := expr.Parse(name)
+	return err == nil
 }

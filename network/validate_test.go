@@ -41,6 +41,8 @@ func TestValidateTable(t *testing.T) {
 		{"duplicate reaction", func(m *Model) { m.Reactions[1].Name = "bind" }, "reactions", "bind", "name", 0, "already used by reaction 1", Error},
 		{"bad name", func(m *Model) { m.Species[3].Name = "P 2"; m.Reactions[1].Equation = "ES -> E" }, "species", "P 2", "name", 0, "not a valid name", Error},
 		{"reserved t", func(m *Model) { m.Parameters = append(m.Parameters, Parameter{Name: "t", Value: 1}) }, "parameters", "t", "name", 0, "reserved for time", Error},
+		// A species named like a function could never be read in an expression.
+		{"function name", func(m *Model) { m.Species = append(m.Species, Species{Name: "exp", Initial: 1}) }, "species", "exp", "name", 0, "is a function of rate expressions", Error},
 		{"negative initial", func(m *Model) { m.Species[1].Initial = -2 }, "species", "S", "initial", 0, "initial concentration -2", Error},
 		{"zero volume", func(m *Model) { m.Compartments[0].Volume = 0 }, "compartments", "cell", "volume", 0, "expected a positive number", Error},
 		{"unknown compartment", func(m *Model) { m.Species[0].Compartment = "nucleus" }, "species", "E", "compartment", 0, `unknown compartment "nucleus"; expected one of cell`, Error},
