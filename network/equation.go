@@ -194,6 +194,7 @@ func (p *eqParser) term() (Term, error) {
 		for p.pos < len(p.src) && (p.src[p.pos] >= '0' && p.src[p.pos] <= '9' || p.src[p.pos] == '.') {
 			p.pos++
 		}
+		p.pos = p.exponent(p.pos)
 		num := string(p.src[start:p.pos])
 		v, err := strconv.ParseFloat(num, 64)
 		if errors.Is(err, strconv.ErrRange) {
@@ -223,6 +224,36 @@ func (p *eqParser) term() (Term, error) {
 	}
 	t.Species = string(p.src[ns:p.pos])
 	return t, nil
+}
+
+// exponent returns the end of an exponent such as "e3" or "E-2" starting at
+// i, when it is one: digits after e, an optional sign, and then a space and
+// a species name, as in "1e3 A". Otherwise it returns i, so that "2e3"
+// followed by an arrow stays two of the species e3.
+func (p *eqParser) exponent(i int) int {
+	src := p.src
+	if i >= len(src) || src[i] != 'e' && src[i] != 'E' {
+		return i
+	}
+	j := i + 1
+	if j < len(src) && (src[j] == '+' || src[j] == '-') {
+		j++
+	}
+	d := j
+	for j < len(src) && src[j] >= '0' && src[j] <= '9' {
+		j++
+	}
+	if j == d || j >= len(src) || src[j] != ' ' && src[j] != '\t' {
+		return i
+	}
+	k := j
+	for k < len(src) && (src[k] == ' ' || src[k] == '\t') {
+		k++
+	}
+	if k < len(src) && isNameStart(src[k]) {
+		return j
+	}
+	return i
 }
 
 // String writes the equation in canonical form, e.g. "2 A + B <=> C".

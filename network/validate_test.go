@@ -139,6 +139,12 @@ func TestParseEquation(t *testing.T) {
 		{"2A+0.5 B→C_1", "2 A + 0.5 B -> C_1"},
 		{"A + A -> B", "2 A -> B"},
 		{"E + S -> E + P", "E + S -> E + P"},
+		// A coefficient in exponent notation followed by a name, and a
+		// coefficient stuck to a species whose name starts with e.
+		{"1e3 A -> B", "1000 A -> B"},
+		{"2.5E-1 A -> B", "0.25 A -> B"},
+		{"2e3 -> B", "2 e3 -> B"},
+		{"2e3+X -> B", "2 e3 + X -> B"},
 	}
 	for _, c := range cases {
 		eq, err := ParseEquation(c.in)
