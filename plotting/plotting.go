@@ -49,6 +49,12 @@ type Options struct {
 	// "previous run (faint, dashed)".
 	OverlayLabel string
 
+	// Decades limits a logarithmic value axis of a TrajectoryPlot to this
+	// many decades below its largest value, so that vanishing early or
+	// late values do not squeeze the curves that matter into a strip;
+	// zero means 12, a negative value means no limit.
+	Decades int
+
 	// ColourIndex gives each series of a TrajectoryPlot a stable colour slot
 	// (see Colour), so that a species keeps its colour when others are
 	// hidden; nil colours series by position.

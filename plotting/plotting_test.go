@@ -636,3 +636,21 @@ func TestOverlayLabel(t *testing.T) {
 		}
 	}
 }
+
+// A log value axis shows at most Options.Decades decades below the largest
+// value (12 by default; negative: no limit).
+func TestLogAxisDecades(t *testing.T) {
+	tr := Trajectories{Times: []float64{1, 2, 3}, Names: []string{"A"}, Values: [][]float64{{1e-40}, {1e-3}, {10}}}
+	for _, c := range []struct {
+		decades int
+		wantMin float64
+	}{{0, 1e-11}, {4, 1e-3}, {-1, 1e-40}} {
+		p, err := TrajectoryPlot(tr, Options{LogX: true, LogY: true, Decades: c.decades})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if math.Abs(math.Log10(p.Y.Min)-math.Log10(c.wantMin)) > 0.05 {
+			t.Errorf("Decades %d: axis starts at %g, want about %g (max %g)", c.decades, p.Y.Min, c.wantMin, p.Y.Max)
+		}
+	}
+}

@@ -2,6 +2,7 @@ package plotting
 
 import (
 	"fmt"
+	"math"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
@@ -157,7 +158,22 @@ func TrajectoryPlot(tr Trajectories, o Options) (*plot.Plot, error) {
 	ns.count(nonPositive, "value ≤ 0 on the log axis", "values ≤ 0 on the log axis")
 	ns.count(nonFinite, "NaN or infinite value", "NaN or infinite values")
 	finish(p, o, ns)
+	limitDecades(p, o)
 	return p, nil
+}
+
+// limitDecades applies Options.Decades to a logarithmic value axis.
+func limitDecades(p *plot.Plot, o Options) {
+	d := o.Decades
+	if !o.LogY || d < 0 {
+		return
+	}
+	if d == 0 {
+		d = 12
+	}
+	if lo := p.Y.Max / math.Pow(10, float64(d)); p.Y.Min < lo {
+		p.Y.Min = lo
+	}
 }
 
 // indexOf returns the index of s in list, or -1.
