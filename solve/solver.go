@@ -213,8 +213,7 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 		default:
 		}
 		if sv.stats.Steps >= maxSteps {
-			return out.result(sv, start), &StepError{T: t, H: st.stepSize(), Component: -1,
-				Reason: fmt.Sprintf("took more than %d steps; the problem may need a looser tolerance or a stiff method", maxSteps)}
+			return out.result(sv, start), sv.tooManySteps(st, maxSteps)
 		}
 		tLimit := tEnd
 		atStop := len(stops) > 0 && stops[0] < tEnd
@@ -367,4 +366,32 @@ func (o *output) result(sv *Solver, start time.Time) *Result {
 	sv.stats.Wall = time.Since(start)
 	r.Stats = sv.stats
 	return r
+}
+
+// tooManySteps explains why a solve ran out of steps. When the
+// non-negativity projection acted on most steps, the likely cause is a rate
+// that keeps pushing a component at zero below zero; it names that
+// component.
+func (sv *Solver) tooManySteps(st stepper, maxSteps int) *StepError {
+	t, y := st.current()
+	e := &StepError{T: t, H: st.stepSize(), Component: -1,
+		Reason: fmt.Sprintf("took more than %d steps; the problem may need a looser tolerance or a stiff method", maxSteps)}
+	if !sv.p.nonneg || 2*sv.stats.NonNegFixes < sv.stats.Steps {
+		return e
+	}
+	f := make([]float64, sv.n)
+	sv.p.rhs(t, y, f)
+	worst, rate := -1, 0.0
+	for i, v := range y {
+		if v <= sv.p.atol[i] && f[i] < 0 && (worst < 0 || f[i] < rate) {
+			worst, rate = i, f[i]
+		}
+	}
+	if worst >= 0 {
+		e.Component = worst
+		e.Reason = fmt.Sprintf("took more than %d steps: component %d is at zero but its rate of change is still negative (%.3g), "+
+			"so keeping it non-negative stalls the solver; a rate law may go negative there (check custom expressions), "+
+			"or switch off non-negativity to see the negative values", maxSteps, worst, rate)
+	}
+	return e
 }

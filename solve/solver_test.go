@@ -394,3 +394,25 @@ func TestLinearSolverSetting(t *testing.T) {
 		}
 	}
 }
+
+// negSource is y' = −1: a rate that keeps pushing y below zero.
+type negSource struct{}
+
+func (negSource) Dim() int                                      { return 1 }
+func (negSource) RHS(_ float64, _, dy []float64)                { dy[0] = -1 }
+func (negSource) Jacobian(_ float64, _ []float64, j *mat.Dense) { j.Set(0, 0, 0) }
+
+// A rate that stays negative at zero cannot be honoured with non-negativity
+// on; the error must name the component instead of blaming the tolerance
+// (common practice: y(t) = 1 − t reaches 0 at t = 1).
+func TestNonNegativityStallNamed(t *testing.T) {
+	_, err := Solve(context.Background(), negSource{}, 0, 10, []float64{1},
+		Settings{NonNegative: true, MaxSteps: 2000, Method: Explicit})
+	var se *StepError
+	if !errors.As(err, &se) {
+		t.Fatalf("want a *StepError, got %v", err)
+	}
+	if se.Component != 0 || !strings.Contains(se.Error(), "component 0 is at zero") || math.Abs(se.T-1) > 1e-3 {
+		t.Errorf("error %q (component %d, t = %g): want component 0 named, stalled near t = 1", se, se.Component, se.T)
+	}
+}

@@ -15,13 +15,13 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
-	"regexp"
 	"slices"
 	"sort"
 	"strconv"
 	"strings"
 	"time"
 
+	edsim "kinetarium/editor/simulate"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve"
@@ -205,7 +205,7 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 		}
 	}
 	if solveErr != nil {
-		solveErr = fmt.Errorf("%s: %s", f.model, speciesNames(solveErr.Error(), sys.Species()))
+		solveErr = fmt.Errorf("%s: %s", f.model, edsim.SpeciesNames(solveErr.Error(), sys.Species()))
 	}
 
 	// Write what was computed, even after a failure.
@@ -300,21 +300,6 @@ func drawFigure(path string, m *network.Model, names []string, res *solve.Result
 		return err
 	}
 	return plotting.Save(p, path, 0, 0, 0)
-}
-
-// componentRef matches the solver's "component 3" in a message.
-var componentRef = regexp.MustCompile(`\bcomponent (\d+)\b`)
-
-// speciesNames replaces the solver's component indices in msg by species
-// names.
-func speciesNames(msg string, names []string) string {
-	return componentRef.ReplaceAllStringFunc(msg, func(s string) string {
-		i, err := strconv.Atoi(componentRef.FindStringSubmatch(s)[1])
-		if err != nil || i < 0 || i >= len(names) {
-			return s
-		}
-		return fmt.Sprintf("species %q", names[i])
-	})
 }
 
 // median returns the median of d (0 for none).

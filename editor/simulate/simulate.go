@@ -11,6 +11,8 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"regexp"
+	"strconv"
 	"time"
 
 	"kinetarium/network"
@@ -100,12 +102,24 @@ func NewOutcome(m *network.Model, names []string, res *solve.Result, err error, 
 	if err != nil {
 		if errors.Is(err, context.Canceled) {
 			err = fmt.Errorf("cancelled: %w", err)
+		} else {
+			err = namedError{err, SpeciesNames(err.Error(), names)}
 		}
 		out.Err = err
 		return out, err
 	}
 	return out, nil
 }
+
+// namedError is a solver error whose message names species; it unwraps to
+// the solver's error.
+type namedError struct {
+	err error
+	msg string
+}
+
+func (e namedError) Error() string { return e.msg }
+func (e namedError) Unwrap() error { return e.err }
 
 // MethodSummary describes in a few words the method or methods used, such
 // as "Rosenbrock (RODAS4)", with the automatic choice's reason when there
@@ -139,4 +153,20 @@ func methodName(m solve.Method) string {
 		return "Dormand–Prince"
 	}
 	return string(m)
+}
+
+// componentRef matches the solver's "component 3" in a message.
+var componentRef = regexp.MustCompile(`\bcomponent (\d+)\b`)
+
+// SpeciesNames replaces the solver's component indices in msg ("component
+// 3") by the species names ("species \"ES\""), for people who think in
+// species, not indices.
+func SpeciesNames(msg string, names []string) string {
+	return componentRef.ReplaceAllStringFunc(msg, func(s string) string {
+		i, err := strconv.Atoi(componentRef.FindStringSubmatch(s)[1])
+		if err != nil || i < 0 || i >= len(names) {
+			return s
+		}
+		return fmt.Sprintf("species %q", names[i])
+	})
 }
