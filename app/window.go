@@ -350,9 +350,11 @@ func (w *mainWindow) runDone(_ int, o *simulate.Outcome, err error) {
 	}
 	w.current = o
 	if w.fresh {
-		// The first run of a model just opened: read values that span
-		// many decades on a log axis, as a modeller would.
+		// The first run of a model just opened: time on the axis its
+		// output grid was made for, and values that span many decades on
+		// a log axis, as a modeller would read them.
 		w.fresh = false
+		w.logX.SetChecked(w.doc.Model().Simulation.Output.Spacing == "log")
 		w.logY.SetChecked(simulate.SpansDecades(o, 3))
 	}
 	line := fmt.Sprintf("Solved in %s with %s (%d steps).", roundDuration(o.Elapsed), plainMethod(o), o.Stats.Steps)
