@@ -80,12 +80,35 @@ const (
 	opRDivMulCV // x = c*A/x
 	opMM        // push; x = A*B/(C + vars[l]), the Michaelis–Menten form
 	opMMC       // push; x = A*B/(c + C)
+
+	// Two signed product terms added in turn: x = (x + t1) + t2, where
+	// t1 is a term of the kind named first, over c and vars i, j, k, and
+	// t2 one of the kind named second, over d and vars l, m, n. A term
+	// carries its sign in its constant (see term); the kinds are
+	// 1: c*A, 2: (c*A)*B, 3: ((c*A)*B)*C and Q: (c*A)*(B*B). The conversions
+	// to float64 in Eval keep the terms rounded, never fused into the sums.
+	opAdd2T11
+	opAdd2T12
+	opAdd2T13
+	opAdd2T1Q
+	opAdd2T21
+	opAdd2T22
+	opAdd2T23
+	opAdd2T2Q
+	opAdd2T31
+	opAdd2T32
+	opAdd2T33
+	opAdd2T3Q
+	opAdd2TQ1
+	opAdd2TQ2
+	opAdd2TQ3
+	opAdd2TQQ
 )
 
 type instr struct {
-	op         opcode
-	i, j, k, l int32
-	c          float64
+	op               opcode
+	i, j, k, l, m, n int32
+	c, d             float64
 }
 
 // Program is a compiled expression. Its Eval method uses scratch space held
@@ -317,6 +340,9 @@ func (c *compiler) emitBin(n *binNode) error {
 		c.add(rconOps[n.op], 0, l.v)
 		return nil
 	}
+	if ok, err := c.emitTwoTerms(n); ok || err != nil {
+		return err
+	}
 	// An operand a product of leaves: compute the other side, then apply
 	// the operation with the product.
 	if ops, ok := productOps[n.op]; ok {
@@ -382,6 +408,72 @@ func (c *compiler) emitMM(n *binNode) (bool, error) {
 	}
 	c.push()
 	c.code = append(c.code, in)
+	return true, nil
+}
+
+// A term is a product of leaves with the sign of the sum it is added to
+// folded into its constant: x - c*A*B is x + (-c)*A*B, and x - A*B is
+// x + (-1*A)*B, exactly, since negation and multiplication by one are exact
+// and rounding is symmetric about zero.
+type term struct {
+	kind    uint8 // 0 (none), 1, 2, 3 or 4 for the kinds 1, 2, 3 and Q of opAdd2T11
+	i, j, k int32
+	c       float64
+}
+
+// termOf returns the term of sign*pr, with kind 0 if pr has no term kind.
+func termOf(pr productForm, sign float64) term {
+	t := term{i: pr.i, j: pr.j, k: pr.k, c: sign}
+	switch pr.shape {
+	case prodCV:
+		t.kind, t.c = 1, sign*pr.c
+	case prodVV:
+		t.kind = 2
+	case prodCVV:
+		t.kind, t.c = 2, sign*pr.c
+	case prodVVV:
+		t.kind = 3
+	case prodVSq:
+		t.kind = 4
+	}
+	return t
+}
+
+// emitTwoTerms emits n as one instruction after its innermost operand when n
+// has the form (X ± t1) ± t2 with products t1 and t2 of a term kind,
+// reporting whether it did.
+func (c *compiler) emitTwoTerms(n *binNode) (bool, error) {
+	inner, ok := n.l.(*binNode)
+	if n.op != '+' && n.op != '-' || !ok || inner.op != '+' && inner.op != '-' {
+		return false, nil
+	}
+	sign := func(op byte) float64 {
+		if op == '-' {
+			return -1
+		}
+		return 1
+	}
+	p1, err := c.product(inner.r)
+	if err != nil {
+		return false, err
+	}
+	t1 := termOf(p1, sign(inner.op))
+	if t1.kind == 0 {
+		return false, nil
+	}
+	p2, err := c.product(n.r)
+	if err != nil {
+		return false, err
+	}
+	t2 := termOf(p2, sign(n.op))
+	if t2.kind == 0 {
+		return false, nil
+	}
+	if err := c.emit(inner.l); err != nil {
+		return false, err
+	}
+	c.code = append(c.code, instr{op: opAdd2T11 + opcode(4*(t1.kind-1)+t2.kind-1),
+		i: t1.i, j: t1.j, k: t1.k, c: t1.c, l: t2.i, m: t2.j, n: t2.k, d: t2.c})
 	return true, nil
 }
 
@@ -713,6 +805,38 @@ func (p *Program) Eval(vars []float64) float64 {
 			s[sp] = x
 			sp++
 			x = vars[in.i] * vars[in.j] / (in.c + vars[in.k])
+		case opAdd2T11:
+			x = x + float64(in.c*vars[in.i]) + float64(in.d*vars[in.l])
+		case opAdd2T12:
+			x = x + float64(in.c*vars[in.i]) + float64(in.d*vars[in.l]*vars[in.m])
+		case opAdd2T13:
+			x = x + float64(in.c*vars[in.i]) + float64(in.d*vars[in.l]*vars[in.m]*vars[in.n])
+		case opAdd2T1Q:
+			x = x + float64(in.c*vars[in.i]) + float64(in.d*vars[in.l]*(vars[in.m]*vars[in.m]))
+		case opAdd2T21:
+			x = x + float64(in.c*vars[in.i]*vars[in.j]) + float64(in.d*vars[in.l])
+		case opAdd2T22:
+			x = x + float64(in.c*vars[in.i]*vars[in.j]) + float64(in.d*vars[in.l]*vars[in.m])
+		case opAdd2T23:
+			x = x + float64(in.c*vars[in.i]*vars[in.j]) + float64(in.d*vars[in.l]*vars[in.m]*vars[in.n])
+		case opAdd2T2Q:
+			x = x + float64(in.c*vars[in.i]*vars[in.j]) + float64(in.d*vars[in.l]*(vars[in.m]*vars[in.m]))
+		case opAdd2T31:
+			x = x + float64(in.c*vars[in.i]*vars[in.j]*vars[in.k]) + float64(in.d*vars[in.l])
+		case opAdd2T32:
+			x = x + float64(in.c*vars[in.i]*vars[in.j]*vars[in.k]) + float64(in.d*vars[in.l]*vars[in.m])
+		case opAdd2T33:
+			x = x + float64(in.c*vars[in.i]*vars[in.j]*vars[in.k]) + float64(in.d*vars[in.l]*vars[in.m]*vars[in.n])
+		case opAdd2T3Q:
+			x = x + float64(in.c*vars[in.i]*vars[in.j]*vars[in.k]) + float64(in.d*vars[in.l]*(vars[in.m]*vars[in.m]))
+		case opAdd2TQ1:
+			x = x + float64(in.c*vars[in.i]*(vars[in.j]*vars[in.j])) + float64(in.d*vars[in.l])
+		case opAdd2TQ2:
+			x = x + float64(in.c*vars[in.i]*(vars[in.j]*vars[in.j])) + float64(in.d*vars[in.l]*vars[in.m])
+		case opAdd2TQ3:
+			x = x + float64(in.c*vars[in.i]*(vars[in.j]*vars[in.j])) + float64(in.d*vars[in.l]*vars[in.m]*vars[in.n])
+		case opAdd2TQQ:
+			x = x + float64(in.c*vars[in.i]*(vars[in.j]*vars[in.j])) + float64(in.d*vars[in.l]*(vars[in.m]*vars[in.m]))
 		}
 	}
 	return x
