@@ -40,7 +40,7 @@ const (
 	opSq                  // x = x*x
 	opCube                // x = x*x*x
 	opRecip               // x = 1/x
-	opPowI                // x = x^i for an integer i, by repeated squaring
+	opPowI                // x = x^int32(i), by repeated squaring
 	opSqrt
 	opExp
 	opLog
@@ -107,7 +107,7 @@ const (
 
 type instr struct {
 	op               opcode
-	i, j, k, l, m, n int32
+	i, j, k, l, m, n uint32
 	c, d             float64
 }
 
@@ -151,7 +151,7 @@ type compiler struct {
 	slots    int
 }
 
-func (c *compiler) add(op opcode, i int32, v float64) {
+func (c *compiler) add(op opcode, i uint32, v float64) {
 	c.code = append(c.code, instr{op: op, i: i, c: v})
 }
 
@@ -217,7 +217,7 @@ func (c *compiler) push() {
 
 func (c *compiler) pop(k int) { c.depth -= k }
 
-func (c *compiler) varSlot(v *varNode) (int32, error) {
+func (c *compiler) varSlot(v *varNode) (uint32, error) {
 	i, ok := c.slot(v.name)
 	if !ok {
 		return 0, fmt.Errorf("compile: unknown variable %q at column %d", v.name, v.col)
@@ -226,7 +226,7 @@ func (c *compiler) varSlot(v *varNode) (int32, error) {
 		return 0, fmt.Errorf("compile: variable %q mapped to invalid slot %d; expected a non-negative index", v.name, i)
 	}
 	c.slots = max(c.slots, i+1)
-	return int32(i), nil
+	return uint32(i), nil
 }
 
 // Operator codes indexed by (operator, operand kind).
@@ -417,7 +417,7 @@ func (c *compiler) emitMM(n *binNode) (bool, error) {
 // and rounding is symmetric about zero.
 type term struct {
 	kind    uint8 // 0 (none), 1, 2, 3 or 4 for the kinds 1, 2, 3 and Q of opAdd2T11
-	i, j, k int32
+	i, j, k uint32
 	c       float64
 }
 
@@ -523,7 +523,7 @@ var (
 
 type productForm struct {
 	shape   shape
-	i, j, k int32
+	i, j, k uint32
 	c       float64
 }
 
@@ -557,7 +557,7 @@ func (c *compiler) product(n Node) (productForm, error) {
 		pr.c, pr.shape = num.v, prodCV
 		fs = fs[1:]
 	}
-	var slots [3]int32
+	var slots [3]uint32
 	for m, f := range fs {
 		v, ok := f.(*varNode)
 		if !ok {
@@ -615,7 +615,7 @@ func (c *compiler) emitPowConst(base Node, e float64) bool {
 	case e == -0.5:
 		ops = []instr{{op: opSqrt}, {op: opRecip}}
 	case e == math.Trunc(e) && math.Abs(e) <= 64:
-		ops = []instr{{op: opPowI, i: int32(e)}}
+		ops = []instr{{op: opPowI, i: uint32(int32(e))}}
 	default:
 		return false
 	}
@@ -739,7 +739,7 @@ func (p *Program) Eval(vars []float64) float64 {
 		case opRecip:
 			x = 1 / x
 		case opPowI:
-			x = powi(x, int(in.i))
+			x = powi(x, int(int32(in.i)))
 		case opSqrt:
 			x = math.Sqrt(x)
 		case opExp:
