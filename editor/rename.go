@@ -53,47 +53,14 @@ func ReplaceName(s, old, new string) (string, int) {
 	}
 	var b strings.Builder
 	n := 0
-	i := 0
-	for i < len(s) {
-		c := s[i]
-		switch {
-		case isDigit(c) || c == '.' && i+1 < len(s) && isDigit(s[i+1]):
-			j := i
-			for j < len(s) && (isDigit(s[j]) || s[j] == '.') {
-				j++
-			}
-			if j < len(s) && (s[j] == 'e' || s[j] == 'E') {
-				k := j + 1
-				if k < len(s) && (s[k] == '+' || s[k] == '-') {
-					k++
-				}
-				if k < len(s) && isDigit(s[k]) {
-					for k < len(s) && isDigit(s[k]) {
-						k++
-					}
-					j = k
-				}
-			}
-			b.WriteString(s[i:j])
-			i = j
-		case isNameStart(c):
-			j := i
-			for j < len(s) && isNameChar(s[j]) {
-				j++
-			}
-			if s[i:j] == old {
-				b.WriteString(new)
-				n++
-			} else {
-				b.WriteString(s[i:j])
-			}
-			i = j
-		default:
-			_, size := utf8.DecodeRuneInString(s[i:])
-			b.WriteString(s[i : i+size])
-			i += size
+	scanTokens(s, func(tok string, name bool) {
+		if name && tok == old {
+			b.WriteString(new)
+			n++
+			return
 		}
-	}
+		b.WriteString(tok)
+	})
 	return b.String(), n
 }
 
@@ -102,12 +69,25 @@ func ReplaceName(s, old, new string) (string, int) {
 func Names(s string) []string {
 	var out []string
 	seen := map[string]bool{}
+	scanTokens(s, func(tok string, name bool) {
+		if name && !seen[tok] {
+			seen[tok] = true
+			out = append(out, tok)
+		}
+	})
+	return out
+}
+
+// scanTokens splits s into names, numbers (exponent included) and single
+// other characters, in order, and calls f with each; name tells the names
+// apart. The pieces put together give s back.
+func scanTokens(s string, f func(tok string, name bool)) {
 	i := 0
 	for i < len(s) {
 		c := s[i]
+		j := i
 		switch {
-		case isDigit(c) || c == '.':
-			j := i
+		case isDigit(c) || c == '.' && i+1 < len(s) && isDigit(s[i+1]):
 			for j < len(s) && (isDigit(s[j]) || s[j] == '.') {
 				j++
 			}
@@ -123,23 +103,19 @@ func Names(s string) []string {
 					j = k
 				}
 			}
-			i = j
+			f(s[i:j], false)
 		case isNameStart(c):
-			j := i
 			for j < len(s) && isNameChar(s[j]) {
 				j++
 			}
-			if name := s[i:j]; !seen[name] {
-				seen[name] = true
-				out = append(out, name)
-			}
-			i = j
+			f(s[i:j], true)
 		default:
 			_, size := utf8.DecodeRuneInString(s[i:])
-			i += size
+			j += size
+			f(s[i:j], false)
 		}
+		i = j
 	}
-	return out
 }
 
 // renameInModel renames the item old of kind k to new in m, and, when
