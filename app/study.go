@@ -410,6 +410,30 @@ func (c *runControls) begin(work func(ctx context.Context, progress func(float64
 	}()
 }
 
+// runJob reads the window's form with prepare and runs the job on every
+// core; finished gets the outcome on the UI goroutine. A form that cannot
+// be read is reported on the status line.
+func (c *runControls) runJob(prepare func() (*study.Job, error), finished func(*study.Job, *explore.Result, error)) {
+	job, err := prepare()
+	if err != nil {
+		c.status.SetText(plainError(err))
+		return
+	}
+	c.begin(func(ctx context.Context, progress func(float64)) (*explore.Result, error) {
+		return job.Run(ctx, 0, progress)
+	}, func(res *explore.Result, err error) { finished(job, res, err) })
+}
+
+// exportTable asks for a CSV file in win and writes it with save, once
+// there is a result to save (have).
+func (c *runControls) exportTable(win fyne.Window, have bool, name string, save func(path string) error) {
+	if !have {
+		c.status.SetText("Nothing to export yet: press Run first.")
+		return
+	}
+	saveAs(win, name, ".csv", save, func(path string) { c.status.SetText("Table saved to " + path) })
+}
+
 // saveAs asks for a file to write in win, adds ext when the name has none,
 // and calls save with the path; save writes the file (atomically).
 func saveAs(win fyne.Window, name, ext string, save func(path string) error, saved func(path string)) {

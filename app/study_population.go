@@ -287,16 +287,7 @@ func (p *populationWindow) prepare() (*study.Job, error) {
 
 // start reads the form and runs the population on every core, off the UI
 // goroutine.
-func (p *populationWindow) start() {
-	job, err := p.prepare()
-	if err != nil {
-		p.ctl.status.SetText(plainError(err))
-		return
-	}
-	p.ctl.begin(func(ctx context.Context, progress func(float64)) (*explore.Result, error) {
-		return job.Run(ctx, 0, progress)
-	}, func(res *explore.Result, err error) { p.finished(job, res, err) })
-}
+func (p *populationWindow) start() { p.ctl.runJob(p.prepare, p.finished) }
 
 // finished shows the outcome of a run.
 func (p *populationWindow) finished(job *study.Job, res *explore.Result, err error) {
@@ -416,11 +407,7 @@ func (p *populationWindow) exportFigure() {
 
 // exportTable asks for a file and saves a table there.
 func (p *populationWindow) exportTable(name string, save func(string) error) {
-	if p.res == nil {
-		p.ctl.status.SetText("Nothing to export yet: press Run first.")
-		return
-	}
-	saveAs(p.win, name, ".csv", save, func(path string) { p.ctl.status.SetText("Table saved to " + path) })
+	p.ctl.exportTable(p.win, p.res != nil, name, save)
 }
 
 // saveSamples writes every sample's values and readouts (the batch

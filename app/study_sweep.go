@@ -190,16 +190,7 @@ func newSweepWindow(a fyne.App, m *network.Model, name string) (*sweepWindow, er
 }
 
 // start reads the form and runs the sweep off the UI goroutine.
-func (s *sweepWindow) start() {
-	job, err := s.prepare()
-	if err != nil {
-		s.ctl.status.SetText(plainError(err))
-		return
-	}
-	s.ctl.begin(func(ctx context.Context, progress func(float64)) (*explore.Result, error) {
-		return job.Run(ctx, 0, progress)
-	}, func(res *explore.Result, err error) { s.finished(job, res, err) })
-}
+func (s *sweepWindow) start() { s.ctl.runJob(s.prepare, s.finished) }
 
 // prepare reads the form into a job.
 func (s *sweepWindow) prepare() (*study.Job, error) {
@@ -376,11 +367,7 @@ func (s *sweepWindow) exportFigure() {
 
 // exportTable saves every run's values and readouts as CSV.
 func (s *sweepWindow) exportTable() {
-	if s.res == nil {
-		s.ctl.status.SetText("Nothing to export yet: press Run first.")
-		return
-	}
-	saveAs(s.win, "runs.csv", ".csv", s.saveRuns, func(path string) { s.ctl.status.SetText("Table saved to " + path) })
+	s.ctl.exportTable(s.win, s.res != nil, "runs.csv", s.saveRuns)
 }
 
 // saveRuns writes the runs table (the batch command's runs.csv layout).
