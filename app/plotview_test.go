@@ -21,7 +21,7 @@ func decayOutcome(t *testing.T) *simulate.Outcome {
 		Species:    []network.Species{{Name: "A", Initial: 1}, {Name: "B"}},
 		Parameters: []network.Parameter{{Name: "k", Value: 1}},
 		Reactions: []network.Reaction{{Name: "r", Equation: "A -> B",
-			Rate: network.Rate{Law: network.MassAction, K: network.Named("k")}}},
+			Rate: network.NewRate(network.MassAction, "k", network.Named("k"))}},
 		Simulation: network.Simulation{TEnd: 4, Output: network.Output{Points: 401}},
 	}
 	o, err := simulate.Run(context.Background(), m, nil)

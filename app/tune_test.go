@@ -25,7 +25,7 @@ func tuneDecayModel() *network.Model {
 		Species:      []network.Species{{Name: "A", Initial: 2, Compartment: "cell"}, {Name: "B", Compartment: "cell"}},
 		Parameters:   []network.Parameter{{Name: "k", Value: 0.7, Unit: "1/s"}},
 		Reactions: []network.Reaction{{Name: "r", Equation: "A -> B",
-			Rate: network.Rate{Law: network.MassAction, K: network.Named("k")}}},
+			Rate: network.NewRate(network.MassAction, "k", network.Named("k"))}},
 		Simulation: network.Simulation{TEnd: 5, Output: network.Output{Points: 51}, RTol: 1e-8, ATol: 1e-12},
 	}
 }

@@ -386,7 +386,7 @@ func plainError(err error) string {
 	if err == nil {
 		return ""
 	}
-	var pe *network.ProblemsError
+	var pe network.ErrorList
 	if errors.As(err, &pe) {
 		return "The model has mistakes; see Messages."
 	}

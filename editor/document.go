@@ -51,6 +51,7 @@ type Document struct {
 	mergeTime time.Time
 
 	listeners []func()
+	net       *network.Net // the model checked; see Net
 }
 
 // NewDocument returns a Document holding m (nil means an empty model), with
@@ -59,7 +60,7 @@ func NewDocument(m *network.Model, path string) *Document {
 	if m == nil {
 		m = &network.Model{}
 	}
-	d := &Document{model: m, Path: path}
+	d := &Document{model: m.Clone(), Path: path}
 	d.next = 1
 	return d
 }
@@ -67,6 +68,15 @@ func NewDocument(m *network.Model, path string) *Document {
 // Model returns the current model. Callers must not modify it; make
 // changes with Apply.
 func (d *Document) Model() *network.Model { return d.model }
+
+// Net returns the current model checked (see network.Check): parsed once
+// per version and shared by the messages, the forms and the previews.
+func (d *Document) Net() *network.Net {
+	if d.net == nil || d.net.Model != d.model {
+		d.net, _ = network.Check(d.model)
+	}
+	return d.net
+}
 
 // Snapshot returns an independent copy of the current model, safe to hand
 // to another goroutine.
@@ -195,7 +205,7 @@ func (d *Document) Replace(m *network.Model, path string) {
 	if m == nil {
 		m = &network.Model{}
 	}
-	d.model = m
+	d.model = m.Clone() // edits compare clones, which leave out file positions
 	d.Path = path
 	d.undo, d.redo = nil, nil
 	d.id = d.next

@@ -17,7 +17,7 @@ func enzymeModel() *network.Model {
 			{Name: "k1", Value: 2}, {Name: "k1r", Value: 0.5}, {Name: "k2", Value: 0.1},
 		},
 		Reactions: []network.Reaction{
-			{Name: "bind", Equation: "E + S <=> ES", Rate: network.Rate{Law: network.MassAction, K: network.Named("k1"), KReverse: network.Named("k1r")}},
+			{Name: "bind", Equation: "E + S <=> ES", Rate: network.NewRate(network.MassAction, "k", network.Named("k1"), "k_reverse", network.Named("k1r"))},
 			{Name: "make", Equation: "ES -> E + P", Rate: network.Rate{Law: network.Expression, Expression: "k2*ES + 0*k1r*S2 + 1e-3*S"}},
 			{Name: "feed", Equation: "-> 2S", Rate: network.Rate{Law: network.Expression, Expression: "k1*(1+S2)"}},
 		},
@@ -42,7 +42,7 @@ func TestUndoRedoRestoreExactStates(t *testing.T) {
 	d.Apply("set S", func(m *network.Model) { m.Species[1].Initial = 20 })
 	s1 := modelBytes(t, d.Model())
 	d.Apply("add reaction", func(m *network.Model) {
-		m.Reactions = append(m.Reactions, network.Reaction{Name: "r4", Equation: "P ->", Rate: network.Rate{Law: network.MassAction, K: network.Number(3)}})
+		m.Reactions = append(m.Reactions, network.Reaction{Name: "r4", Equation: "P ->", Rate: network.NewRate(network.MassAction, "k", network.Number(3))})
 	})
 	s2 := modelBytes(t, d.Model())
 	if !d.Dirty() {
@@ -130,8 +130,8 @@ func TestRenamePropagatesAsWholeNames(t *testing.T) {
 		t.Fatal(err)
 	}
 	m = d.Model()
-	if m.Reactions[0].Rate.K.Name != "kon" || m.Reactions[0].Rate.KReverse.Name != "k1r" {
-		t.Errorf("rate fields = %q, %q; want kon, k1r", m.Reactions[0].Rate.K.Name, m.Reactions[0].Rate.KReverse.Name)
+	if m.Reactions[0].Rate.Arg("k").Name != "kon" || m.Reactions[0].Rate.Arg("k_reverse").Name != "k1r" {
+		t.Errorf("rate fields = %q, %q; want kon, k1r", m.Reactions[0].Rate.Arg("k").Name, m.Reactions[0].Rate.Arg("k_reverse").Name)
 	}
 	if got, want := m.Reactions[2].Rate.Expression, "kon*(1+S2)"; got != want {
 		t.Errorf("expression = %q, want %q", got, want)

@@ -208,11 +208,11 @@ func (e *Editor) revalidate() {
 		if p := e.panes[sec]; p != nil && idx < p.kind.count(m) {
 			item = p.kind.name(m, idx)
 		}
-		pend = append(pend, Message{network.Problem{Severity: network.Error, Section: sec, Index: idx, Item: item, Field: fld,
+		pend = append(pend, Message{network.Problem{Severity: network.Error, Pos: network.Pos{Section: sec, Index: idx, Item: item, Field: fld},
 			Message: pt.msg + " (not taken yet; the model keeps the previous value)"}})
 	}
 	sortMessages(pend)
-	for _, p := range e.Doc.Model().Validate() {
+	for _, p := range e.Doc.Net().Problems {
 		if _, ok := e.pending[fmt.Sprintf("%s/%d/%s", p.Section, p.Index, p.Field)]; ok {
 			continue
 		}

@@ -68,13 +68,13 @@ func TestInvalidInputShowsMessageAndKeepsText(t *testing.T) {
 	}
 
 	// A bad number is kept in its input, not taken, and reported.
-	k := rf.k.input.(*widget.Entry)
+	k := rf.rate["k"].input.(*widget.Entry)
 	k.SetText("")
 	test.Type(k, "1e-")
 	if k.Text != "1e-" {
 		t.Fatalf("rate constant input = %q, want the typed text", k.Text)
 	}
-	if got := d.Model().Reactions[0].Rate.K; got.Set && got.Name == "" {
+	if got := d.Model().Reactions[0].Rate.Arg("k"); got.Set && got.Name == "" {
 		// The last taken value is the number 1 (from typing "1"), never "1e-".
 		if got.Num != 1 {
 			t.Errorf("model rate constant = %v", got)
@@ -89,7 +89,7 @@ func TestInvalidInputShowsMessageAndKeepsText(t *testing.T) {
 		t.Fatalf("after another edit the input shows %q", k.Text)
 	}
 	test.Type(k, "3")
-	if got := d.Model().Reactions[0].Rate.K; got != network.Number(1e-3) {
+	if got := d.Model().Reactions[0].Rate.Arg("k"); got != network.Number(1e-3) {
 		t.Fatalf("model rate constant = %v, want 0.001", got)
 	}
 	if k.Text != "1e-3" {
@@ -202,14 +202,15 @@ func TestPreviewFormula(t *testing.T) {
 		want string
 	}{
 		{m.Reactions[0], "k1·E·S − k1r·ES"},
-		{network.Reaction{Equation: "2 A + B -> C", Rate: network.Rate{Law: network.MassAction, K: network.Number(0.5)}}, "0.5·A²·B"},
-		{network.Reaction{Equation: "S -> P", Rate: network.Rate{Law: network.MichaelisMenten, Vmax: network.Named("V"), Km: network.Named("Km")}}, "V·S/(Km + S)"},
-		{network.Reaction{Equation: "S -> P", Rate: network.Rate{Law: network.MichaelisMenten, Kcat: network.Named("kc"), Enzyme: network.Named("E"), Km: network.Number(2)}}, "kc·E·S/(2 + S)"},
+		{network.Reaction{Equation: "2 A + B -> C", Rate: network.NewRate(network.MassAction, "k", network.Number(0.5))}, "0.5·A²·B"},
+		{network.Reaction{Equation: "S -> P", Rate: network.NewRate(network.MichaelisMenten, "vmax", network.Named("V"), "km", network.Named("Km"))}, "V·S/(Km + S)"},
+		{network.Reaction{Equation: "S -> P", Rate: network.NewRate(network.MichaelisMenten, "kcat", network.Named("kc"), "enzyme", network.Named("E"), "km", network.Number(2))}, "kc·E·S/(2 + S)"},
 		{network.Reaction{Equation: "A ->", Rate: network.Rate{Law: network.Expression, Expression: "k*A - 1e-3*de-2"}}, "k·A − 1e-3·de−2"},
 	}
 	for _, c := range cases {
-		if got := RateFormula(c.r); got != c.want {
-			t.Errorf("RateFormula(%q) = %q, want %q", c.r.Equation, got, c.want)
+		net, _ := network.Check(&network.Model{Reactions: []network.Reaction{c.r}})
+		if got := net.Formula(0); got != c.want {
+			t.Errorf("Formula(%q) = %q, want %q", c.r.Equation, got, c.want)
 		}
 	}
 }

@@ -125,7 +125,7 @@ func (f *formBase) numberInput(name, desc string, get func(m *network.Model, i i
 }
 
 // valueInput is a rate-law field: a number or a name.
-func (f *formBase) valueInput(name, desc string, ptr func(m *network.Model, i int) *network.Value) (*widget.Entry, func(m *network.Model, i int)) {
+func (f *formBase) valueInput(name, desc string, get func(m *network.Model, i int) network.Value, set func(m *network.Model, i int, v network.Value)) (*widget.Entry, func(m *network.Model, i int)) {
 	e := widget.NewEntry()
 	e.SetPlaceHolder("number or parameter name")
 	e.OnChanged = func(text string) {
@@ -136,7 +136,7 @@ func (f *formBase) valueInput(name, desc string, ptr func(m *network.Model, i in
 		v, msg := parseValue(text)
 		f.ed.setPending(f.section, i, name, text, msg)
 		if msg == "" {
-			f.ed.editMerged(fmt.Sprintf("%s/%d/%s", f.section, i, name), desc, func(m *network.Model) { *ptr(m, i) = v })
+			f.ed.editMerged(fmt.Sprintf("%s/%d/%s", f.section, i, name), desc, func(m *network.Model) { set(m, i, v) })
 		}
 	}
 	load := func(m *network.Model, i int) {
@@ -146,7 +146,7 @@ func (f *formBase) valueInput(name, desc string, ptr func(m *network.Model, i in
 			}
 			return
 		}
-		if v := *ptr(m, i); !sameValue(e.Text, v) {
+		if v := get(m, i); !sameValue(e.Text, v) {
 			e.SetText(v.String())
 		}
 	}
@@ -190,14 +190,11 @@ type reactionForm struct {
 	declareRow *fyne.Container
 	law        *widget.Select
 	mmForm     *widget.RadioGroup
-	k, kr      *field
-	vmax       *field
-	kcat       *field
-	enzyme     *field
-	km         *field
-	expr       *field
 	mmField    *field
-	preview    *widget.Label
+	// rate holds a field for every key of every law, in registry order;
+	// load shows those the reaction's law reads.
+	rate    map[string]*field
+	preview *widget.Label
 }
 
 const (
@@ -221,7 +218,7 @@ func newReactionForm(ed *Editor) *reactionForm {
 
 	f.declare = widget.NewButtonWithIcon("", theme.ContentAddIcon(), func() {
 		i := f.row
-		names := Undeclared(ed.Doc.Model(), ed.Doc.Model().Reactions[i].Equation)
+		names := Undeclared(ed.Doc.Net(), i)
 		if len(names) > 0 {
 			ed.edit("declare "+strings.Join(names, ", "), func(m *network.Model) { declareSpecies(m, names) })
 		}
@@ -242,7 +239,8 @@ func newReactionForm(ed *Editor) *reactionForm {
 		}
 		i := f.row
 		law := lawFromTitle(title)
-		ed.edit("change rate law to "+title, func(m *network.Model) { switchLaw(&m.Reactions[i], law) })
+		net := ed.Doc.Net()
+		ed.edit("change rate law to "+title, func(m *network.Model) { switchLaw(m, net, i, law) })
 	})
 	f.addField("Rate law", "rate.law", f.law)
 
@@ -254,14 +252,14 @@ func newReactionForm(ed *Editor) *reactionForm {
 		ed.edit("change Michaelis–Menten form", func(m *network.Model) {
 			rt := &m.Reactions[i].Rate
 			if choice == mmVmax {
-				rt.Kcat, rt.Enzyme = network.Value{}, network.Value{}
-				if !rt.Vmax.Set {
-					rt.Vmax = network.Number(1)
+				*rt = rt.With("kcat", network.Value{}).With("enzyme", network.Value{})
+				if !rt.Arg("vmax").Set {
+					*rt = rt.With("vmax", network.Number(1))
 				}
 			} else {
-				rt.Vmax = network.Value{}
-				if !rt.Kcat.Set {
-					rt.Kcat = network.Number(1)
+				*rt = rt.With("vmax", network.Value{})
+				if !rt.Arg("kcat").Set {
+					*rt = rt.With("kcat", network.Number(1))
 				}
 			}
 		})
@@ -269,23 +267,31 @@ func newReactionForm(ed *Editor) *reactionForm {
 	f.mmForm.Horizontal = true
 	f.mmField = f.addField("Form", "rate.form", f.mmForm)
 
-	value := func(label, name, desc string, ptr func(rt *network.Rate) *network.Value) *field {
-		e, load := f.valueInput(name, desc, func(m *network.Model, i int) *network.Value { return ptr(&m.Reactions[i].Rate) })
-		f.loads = append(f.loads, load)
-		return f.addField(label, name, e)
+	f.rate = map[string]*field{}
+	for _, name := range network.Laws {
+		law, _ := network.LawNamed(name)
+		for _, lf := range law.Fields() {
+			if f.rate[lf.Key] != nil {
+				continue
+			}
+			key, name := lf.Key, "rate."+lf.Key
+			if lf.Kind == network.ExprField {
+				ex, load := f.textInput(name, "edit rate expression", func(m *network.Model, i int) *string { return &r(m, i).Rate.Expression })
+				ex.SetPlaceHolder("e.g. k1*A*B/(1 + B/Ki)")
+				f.rate[key] = f.addField(lf.Label, name, ex)
+				f.loads = append(f.loads, load)
+				continue
+			}
+			e, load := f.valueInput(name, "edit "+lf.Label,
+				func(m *network.Model, i int) network.Value { return m.Reactions[i].Rate.Arg(key) },
+				func(m *network.Model, i int, v network.Value) { m.Reactions[i].Rate = m.Reactions[i].Rate.With(key, v) })
+			if lf.Kind == network.SpeciesField {
+				e.SetPlaceHolder("species name")
+			}
+			f.loads = append(f.loads, load)
+			f.rate[key] = f.addField(lf.Label, name, e)
+		}
 	}
-	f.k = value("Rate constant", "rate.k", "edit rate constant", func(rt *network.Rate) *network.Value { return &rt.K })
-	f.kr = value("Reverse constant", "rate.k_reverse", "edit reverse rate constant", func(rt *network.Rate) *network.Value { return &rt.KReverse })
-	f.vmax = value("Vmax", "rate.vmax", "edit Vmax", func(rt *network.Rate) *network.Value { return &rt.Vmax })
-	f.kcat = value("kcat", "rate.kcat", "edit kcat", func(rt *network.Rate) *network.Value { return &rt.Kcat })
-	f.enzyme = value("Enzyme", "rate.enzyme", "edit enzyme", func(rt *network.Rate) *network.Value { return &rt.Enzyme })
-	f.enzyme.input.(*widget.Entry).SetPlaceHolder("species name or number")
-	f.km = value("Km", "rate.km", "edit Km", func(rt *network.Rate) *network.Value { return &rt.Km })
-
-	ex, load := f.textInput("rate.expression", "edit rate expression", func(m *network.Model, i int) *string { return &r(m, i).Rate.Expression })
-	ex.SetPlaceHolder("e.g. k1*A*B/(1 + B/Ki)")
-	f.expr = f.addField("Rate expression", "rate.expression", ex)
-	f.loads = append(f.loads, load)
 
 	f.preview = widget.NewLabel("")
 	f.preview.Wrapping = fyne.TextWrapWord
@@ -298,26 +304,37 @@ func newReactionForm(ed *Editor) *reactionForm {
 	return f
 }
 
-// switchLaw changes r's rate law, keeping the fields the new law shares
-// with the old one and clearing the rest.
-func switchLaw(r *network.Reaction, law string) {
+// switchLaw changes reaction i's rate law, keeping the fields the new law
+// shares with the old one and clearing the rest. A reaction switched to
+// an expression starts from its old rate written out, when it was
+// complete.
+func switchLaw(m *network.Model, net *network.Net, i int, name string) {
+	r := &m.Reactions[i]
 	old := r.Rate
-	r.Rate = network.Rate{Law: law}
-	switch law {
+	r.Rate = network.Rate{Law: name}
+	law, ok := network.LawNamed(name)
+	if !ok {
+		return
+	}
+	for _, lf := range law.Fields() {
+		if v := old.Arg(lf.Key); v.Set {
+			r.Rate = r.Rate.With(lf.Key, v)
+		}
+	}
+	cr := net.Reactions[i]
+	switch name {
 	case network.MassAction:
-		r.Rate.K, r.Rate.KReverse = old.K, old.KReverse
-		if eq, err := network.ParseEquation(r.Equation); err == nil && !eq.Reversible {
-			r.Rate.KReverse = network.Value{}
+		if cr.EqOK && !cr.Equation.Reversible {
+			r.Rate = r.Rate.With("k_reverse", network.Value{})
 		}
 	case network.MichaelisMenten:
-		r.Rate.Vmax, r.Rate.Km, r.Rate.Kcat, r.Rate.Enzyme = old.Vmax, old.Km, old.Kcat, old.Enzyme
-		if !r.Rate.Kcat.Set && !r.Rate.Vmax.Set {
-			r.Rate.Vmax = old.K
+		if !r.Rate.Arg("kcat").Set && !r.Rate.Arg("vmax").Set {
+			r.Rate = r.Rate.With("vmax", old.Arg("k"))
 		}
 	case network.Expression:
 		r.Rate.Expression = old.Expression
-		if r.Rate.Expression == "" {
-			r.Rate.Expression = strings.NewReplacer("·", "*", "−", "-", "?", "").Replace(RateFormula(network.Reaction{Equation: r.Equation, Rate: old}))
+		if r.Rate.Expression == "" && cr.Expr != nil {
+			r.Rate.Expression = cr.Expr.String()
 		}
 	}
 }
@@ -328,40 +345,46 @@ func (f *reactionForm) load(m *network.Model, i int) {
 	f.row = i
 	f.loads.run(m, i)
 	r := m.Reactions[i]
+	net := f.ed.Doc.Net()
+	cr := net.Reactions[i]
 	f.law.SetSelected(LawTitle(r.Rate.Law))
-	eq, eqErr := network.ParseEquation(r.Equation)
-	reversible := eqErr == nil && eq.Reversible
-	law := r.Rate.Law
-	mm := law == network.MichaelisMenten
-	kcatForm := mm && (r.Rate.Kcat.Set || r.Rate.Enzyme.Set)
+	reversible := cr.EqOK && cr.Equation.Reversible
+	mm := r.Rate.Law == network.MichaelisMenten
 	if mm {
-		if kcatForm {
+		if r.Rate.Arg("kcat").Set || r.Rate.Arg("enzyme").Set {
 			f.mmForm.SetSelected(mmKcat)
 		} else {
 			f.mmForm.SetSelected(mmVmax)
 		}
 	}
-	f.k.setVisible(law == network.MassAction)
-	f.kr.setVisible(law == network.MassAction && (reversible || r.Rate.KReverse.Set))
 	f.mmField.setVisible(mm)
-	f.vmax.setVisible(mm && !kcatForm)
-	f.kcat.setVisible(kcatForm)
-	f.enzyme.setVisible(kcatForm)
-	f.km.setVisible(mm)
-	f.expr.setVisible(law == network.Expression)
-	if law == network.MassAction {
-		if reversible {
-			f.k.row.Objects[0].(*widget.Label).SetText("Forward constant")
-		} else {
-			f.k.row.Objects[0].(*widget.Label).SetText("Rate constant")
+	show := map[string]bool{}
+	for _, k := range net.FieldsInUse(i) {
+		show[k] = true
+	}
+	if law, ok := network.LawNamed(r.Rate.Law); ok {
+		for _, lf := range law.Fields() {
+			// A field given but not used stays visible, so its message
+			// can point at it.
+			show[lf.Key] = show[lf.Key] || r.Rate.Arg(lf.Key).Set
 		}
 	}
-	p := RateFormula(r)
+	for k, fl := range f.rate {
+		fl.setVisible(show[k])
+	}
+	if r.Rate.Law == network.MassAction {
+		if reversible {
+			f.rate["k"].row.Objects[0].(*widget.Label).SetText("Forward constant")
+		} else {
+			f.rate["k"].row.Objects[0].(*widget.Label).SetText("Rate constant")
+		}
+	}
+	p := net.Formula(i)
 	if p == "" {
 		p = "(shown when the equation reads correctly)"
 	}
 	f.preview.SetText(p)
-	if names := Undeclared(m, r.Equation); len(names) > 0 {
+	if names := Undeclared(net, i); len(names) > 0 {
 		f.declare.SetText(declareLabel(names))
 		f.declare.Show()
 		f.declareRow.Show()

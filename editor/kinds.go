@@ -102,15 +102,16 @@ func freshIn(m *network.Model, prefix string) string {
 	return d.FreshName(prefix)
 }
 
-// Undeclared returns the species named in equation that m does not
-// declare as anything, in order of appearance. It returns nil when the
-// equation cannot be read.
-func Undeclared(m *network.Model, equation string) []string {
-	eq, err := network.ParseEquation(equation)
-	if err != nil {
+// Undeclared returns the species named in the equation of reaction i that
+// the checked model does not declare as anything, in order of appearance.
+// It returns nil when the equation cannot be read.
+func Undeclared(net *network.Net, i int) []string {
+	cr := net.Reactions[i]
+	if !cr.EqOK {
 		return nil
 	}
-	d := Document{model: m}
+	eq := cr.Equation
+	d := Document{model: net.Model}
 	var out []string
 	for _, side := range [][]network.Term{eq.Reactants, eq.Products} {
 		for _, t := range side {

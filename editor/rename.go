@@ -163,11 +163,10 @@ func renameInModel(m *network.Model, k Kind, old, new string, everywhere bool) i
 		}
 		return uses
 	}
-	value := func(v *network.Value) {
-		if v.Set && v.Name == old {
-			v.Name = new
-			uses++
-		}
+	for i := range m.Assignments {
+		var n int
+		m.Assignments[i].Expression, n = ReplaceName(m.Assignments[i].Expression, old, new)
+		uses += n
 	}
 	for i := range m.Reactions {
 		r := &m.Reactions[i]
@@ -179,12 +178,12 @@ func renameInModel(m *network.Model, k Kind, old, new string, everywhere bool) i
 		var n int
 		r.Rate.Expression, n = ReplaceName(r.Rate.Expression, old, new)
 		uses += n
-		value(&r.Rate.K)
-		value(&r.Rate.KReverse)
-		value(&r.Rate.Vmax)
-		value(&r.Rate.Km)
-		value(&r.Rate.Kcat)
-		value(&r.Rate.Enzyme)
+		for key, v := range r.Rate.Args {
+			if v.Set && v.Name == old {
+				r.Rate = r.Rate.With(key, network.Named(new))
+				uses++
+			}
+		}
 	}
 	return uses
 }

@@ -27,13 +27,13 @@ func bigModel(n int) *Model {
 		switch k := rng.IntN(10); {
 		case k < 4:
 			rx.Equation = x() + " -> " + x()
-			rx.Rate = Rate{Law: MassAction, K: Named("kf")}
+			rx.Rate = NewRate(MassAction, "k", Named("kf"))
 		case k < 7:
 			rx.Equation = x() + " + " + x() + " <=> " + x()
-			rx.Rate = Rate{Law: MassAction, K: Named("kf"), KReverse: Named("kb")}
+			rx.Rate = NewRate(MassAction, "k", Named("kf"), "k_reverse", Named("kb"))
 		case k < 9:
 			rx.Equation = x() + " -> " + x()
-			rx.Rate = Rate{Law: MichaelisMenten, Vmax: Named("Vm"), Km: Named("Km")}
+			rx.Rate = NewRate(MichaelisMenten, "vmax", Named("Vm"), "km", Named("Km"))
 		default:
 			rx.Equation = x() + " -> " + x()
 			rx.Rate = Rate{Law: Expression, Expression: "a*" + x() + "/(1 + (" + x() + "/K)^h)"}

@@ -27,7 +27,7 @@ func ExampleRead() {
 		return
 	}
 	fmt.Println(m.Title, len(m.Species), "species,", len(m.Reactions), "reactions")
-	fmt.Println("k of bind:", m.Reactions[0].Rate.K)
+	fmt.Println("k of bind:", m.Reactions[0].Rate.Arg("k"))
 	for _, law := range m.ConservationLaws() {
 		fmt.Println(law.Text)
 	}
@@ -64,5 +64,5 @@ func ExampleModel_Validate() {
 		fmt.Println(p)
 	}
 	// Output:
-	// reaction "bind", equation, column 11: unknown species "EQ"; declare it under species or fix the name
+	// enzyme.json:7:45: reaction "bind", equation, column 11: unknown species "EQ"; declare it under species or fix the name
 }

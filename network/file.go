@@ -15,19 +15,21 @@ import (
 
 // Read decodes a model file (JSON, format "kinetarium.model/1") from r.
 // Source names the input in error messages (a file name, say). Decoding is
-// strict: a syntax error is reported with its line and column, and an
-// unknown key or a value of the wrong type with its place in the file, e.g.
-// `reactions[2].rate: unknown key "kk"` (indices count from 0). Missing
-// simulation settings get their defaults. Read does not validate the
-// model's content; see Validate.
+// strict, and reports every problem it finds at once as an ErrorList, each
+// with its line and column and its place in the model, e.g.
+// `m.json:3:20: reactions[2].rate: unknown key "kk"` (indices count from
+// 0). A JSON syntax error stops reading at the first one. Missing
+// simulation settings get their defaults. Read does not check the model's
+// content (see Check), but remembers where each item was in the file so
+// that Check's problems name their lines too.
 func Read(r io.Reader, source string) (*Model, error) {
 	data, err := io.ReadAll(r)
 	if err != nil {
 		return nil, fmt.Errorf("reading %s: %w", source, err)
 	}
-	m, err := decodeModel(data)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", source, err)
+	m, errs := decodeModel(data, source)
+	if err := errs.Err(); err != nil {
+		return nil, err
 	}
 	return m, nil
 }
@@ -51,320 +53,314 @@ func lineCol(data []byte, off int64) (line, col int) {
 	return line, col
 }
 
-func decodeModel(data []byte) (*Model, error) {
-	var probe any
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.UseNumber()
-	err := dec.Decode(&probe)
-	if err == nil {
-		// dec.More is false before a stray '}' or ']', so look at the rest.
-		off := dec.InputOffset()
-		if rest := data[off:]; len(bytes.TrimSpace(rest)) > 0 {
-			off += int64(len(rest) - len(bytes.TrimLeft(rest, " \t\r\n")))
-			line, col := lineCol(data, off)
-			return nil, fmt.Errorf("line %d, column %d: unexpected text after the end of the model", line, col)
+// sourceMap remembers where the items of a model were in its file.
+type sourceMap struct {
+	file string
+	data []byte
+	at   map[string]int64 // "section/index/field" to byte offset
+}
+
+func sourceKey(section string, index int, field string) string {
+	return fmt.Sprintf("%s/%d/%s", section, index, field)
+}
+
+// locate fills in the file, line and column of each problem whose item or
+// field the file holds. A nil map locates nothing.
+func (sm *sourceMap) locate(l ErrorList) {
+	if sm == nil {
+		return
+	}
+	for i := range l {
+		p := &l[i].Pos
+		off, ok := sm.at[sourceKey(p.Section, p.Index, p.Field)]
+		exact := ok
+		if !ok {
+			off, ok = sm.at[sourceKey(p.Section, p.Index, "")]
+		}
+		if !ok {
+			continue
+		}
+		p.File = sm.file
+		p.Line, p.Column = lineCol(sm.data, off)
+		if exact && p.Col > 0 && p.Field != "" && p.Field != "name" {
+			p.Column += p.Col // the text starts after its opening quote
 		}
 	}
-	if err == io.EOF || err == io.ErrUnexpectedEOF || err != nil && strings.Contains(err.Error(), "unexpected end") {
-		line, col := lineCol(data, int64(len(data)))
-		return nil, fmt.Errorf("line %d, column %d: the file ends too early; is a closing brace or bracket missing?", line, col)
+}
+
+// decoder turns the JSON tree of a model file into a Model, collecting
+// every problem.
+type decoder struct {
+	data []byte
+	file string
+	errs ErrorList
+	src  *sourceMap
+}
+
+// fail reports a problem at the place of n (or of the whole file when n is
+// nil), path being the JSON path ("reactions[2].rate").
+func (d *decoder) fail(n *jnode, path, format string, args ...any) {
+	d.failAt(n.off, path, format, args...)
+}
+
+func (d *decoder) failAt(off int64, path, format string, args ...any) {
+	line, col := lineCol(d.data, off)
+	if path == "" {
+		path = "the top level"
 	}
+	d.errs.Add(Pos{File: d.file, Line: line, Column: col, Field: path}, Error, format, args...)
+}
+
+// mark remembers where a model item's field starts.
+func (d *decoder) mark(section string, index int, field string, n *jnode) {
+	if n != nil {
+		d.src.at[sourceKey(section, index, field)] = n.off
+	}
+}
+
+func decodeModel(data []byte, file string) (*Model, ErrorList) {
+	d := &decoder{data: data, file: file, src: &sourceMap{file: file, data: data, at: map[string]int64{}}}
+	root, err := parseJSON(data)
 	if err != nil {
-		var se *json.SyntaxError
+		var se *syntaxError
 		if errors.As(err, &se) {
-			line, col := lineCol(data, se.Offset-1)
-			return nil, fmt.Errorf("line %d, column %d: invalid JSON: %s", line, col, se.Error())
+			d.failAt(se.off, "", "%s", se.msg)
+		} else {
+			d.failAt(0, "", "%v", err)
 		}
-		return nil, fmt.Errorf("invalid JSON: %w", err)
+		d.errs[0].Field = ""
+		return nil, d.errs
 	}
-	top, err := object(data, "", "format", "title", "note", "units", "compartments", "species", "parameters", "reactions", "simulation")
-	if err != nil {
-		return nil, err
+	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "simulation")
+	if top == nil {
+		return nil, d.errs
 	}
-	m := &Model{}
-	d := &decoder{}
-	raw, ok := top["format"]
+	m := &Model{source: d.src}
+	raw, ok := top.get("format")
 	if !ok {
-		return nil, fmt.Errorf("missing key \"format\"; a model file starts with \"format\": %q", Format)
+		d.fail(root, "", "missing key \"format\"; a model file starts with \"format\": %q", Format)
+		return nil, d.errs
 	}
 	format := d.str(raw, "format")
-	if d.err == nil && format != Format {
+	if format != Format && raw.kind == '"' {
 		if strings.HasPrefix(format, "kinetarium.model/") {
-			return nil, fmt.Errorf("format %q is a version this program does not read; expected %q", format, Format)
+			d.fail(raw, "format", "format %q is a version this program does not read; expected %q", format, Format)
+		} else {
+			d.fail(raw, "format", "format %q is not a model file format; expected %q", format, Format)
 		}
-		return nil, fmt.Errorf("format %q is not a model file format; expected %q", format, Format)
+		return nil, d.errs
 	}
-	if v, ok := top["title"]; ok {
-		m.Title = d.str(v, "title")
-	}
-	if v, ok := top["note"]; ok {
-		m.Note = d.str(v, "note")
-	}
-	if v, ok := top["units"]; ok {
-		o := d.object(v, "units", "time", "amount")
-		if x, ok := o["time"]; ok {
-			m.Units.Time = d.str(x, "units.time")
-		}
-		if x, ok := o["amount"]; ok {
-			m.Units.Amount = d.str(x, "units.amount")
+	m.Title = d.optStr(top, "title", "")
+	m.Note = d.optStr(top, "note", "")
+	if v, ok := top.get("units"); ok {
+		if o := d.object(v, "units", "time", "amount"); o != nil {
+			m.Units.Time = d.optStr(o, "time", "units")
+			m.Units.Amount = d.optStr(o, "amount", "units")
 		}
 	}
-	if v, ok := top["compartments"]; ok {
-		for i, item := range d.array(v, "compartments") {
-			path := fmt.Sprintf("compartments[%d]", i)
-			o := d.object(item, path, "name", "volume", "note")
-			var c Compartment
-			c.Name = d.optStr(o, "name", path)
-			c.Volume = d.optNum(o, "volume", path)
-			c.Note = d.optStr(o, "note", path)
-			m.Compartments = append(m.Compartments, c)
+	d.items(top, "compartments", []string{"name", "volume", "note"}, func(i int, o *jnode, path string) {
+		m.Compartments = append(m.Compartments, Compartment{
+			Name: d.optStr(o, "name", path), Volume: d.optNum(o, "volume", path), Note: d.optStr(o, "note", path)})
+	})
+	d.items(top, "species", []string{"name", "initial", "compartment", "fixed", "note"}, func(i int, o *jnode, path string) {
+		s := Species{Name: d.optStr(o, "name", path), Initial: d.optNum(o, "initial", path),
+			Compartment: d.optStr(o, "compartment", path), Note: d.optStr(o, "note", path)}
+		if x, ok := o.get("fixed"); ok {
+			s.Fixed = d.boolean(x, path+".fixed")
 		}
-	}
-	if v, ok := top["species"]; ok {
-		for i, item := range d.array(v, "species") {
-			path := fmt.Sprintf("species[%d]", i)
-			o := d.object(item, path, "name", "initial", "compartment", "fixed", "note")
-			var s Species
-			s.Name = d.optStr(o, "name", path)
-			s.Initial = d.optNum(o, "initial", path)
-			s.Compartment = d.optStr(o, "compartment", path)
-			if x, ok := o["fixed"]; ok {
-				s.Fixed = d.boolean(x, path+".fixed")
-			}
-			s.Note = d.optStr(o, "note", path)
-			m.Species = append(m.Species, s)
-		}
-	}
-	if v, ok := top["parameters"]; ok {
-		for i, item := range d.array(v, "parameters") {
-			path := fmt.Sprintf("parameters[%d]", i)
-			o := d.object(item, path, "name", "value", "unit", "note")
-			var p Parameter
-			p.Name = d.optStr(o, "name", path)
-			p.Value = d.optNum(o, "value", path)
-			p.Unit = d.optStr(o, "unit", path)
-			p.Note = d.optStr(o, "note", path)
-			m.Parameters = append(m.Parameters, p)
-		}
-	}
-	if v, ok := top["reactions"]; ok {
-		for i, item := range d.array(v, "reactions") {
-			path := fmt.Sprintf("reactions[%d]", i)
-			o := d.object(item, path, "name", "equation", "rate", "note")
-			var r Reaction
-			r.Name = d.optStr(o, "name", path)
-			r.Equation = d.optStr(o, "equation", path)
-			r.Note = d.optStr(o, "note", path)
-			if x, ok := o["rate"]; ok {
-				rp := path + ".rate"
-				ro := d.object(x, rp, "law", "k", "k_reverse", "vmax", "km", "kcat", "enzyme", "expression")
+		m.Species = append(m.Species, s)
+	})
+	d.items(top, "parameters", []string{"name", "value", "unit", "note"}, func(i int, o *jnode, path string) {
+		m.Parameters = append(m.Parameters, Parameter{Name: d.optStr(o, "name", path), Value: d.optNum(o, "value", path),
+			Unit: d.optStr(o, "unit", path), Note: d.optStr(o, "note", path)})
+	})
+	d.items(top, "assignments", []string{"name", "expression", "unit", "note"}, func(i int, o *jnode, path string) {
+		m.Assignments = append(m.Assignments, Assignment{Name: d.optStr(o, "name", path), Expression: d.optStr(o, "expression", path),
+			Unit: d.optStr(o, "unit", path), Note: d.optStr(o, "note", path)})
+	})
+	keys := rateKeys()
+	d.items(top, "reactions", []string{"name", "equation", "rate", "note"}, func(i int, o *jnode, path string) {
+		r := Reaction{Name: d.optStr(o, "name", path), Equation: d.optStr(o, "equation", path), Note: d.optStr(o, "note", path)}
+		if x, ok := o.get("rate"); ok {
+			rp := path + ".rate"
+			if ro := d.object(x, rp, keys...); ro != nil {
 				r.Rate.Law = d.optStr(ro, "law", rp)
-				r.Rate.K = d.value(ro, "k", rp)
-				r.Rate.KReverse = d.value(ro, "k_reverse", rp)
-				r.Rate.Vmax = d.value(ro, "vmax", rp)
-				r.Rate.Km = d.value(ro, "km", rp)
-				r.Rate.Kcat = d.value(ro, "kcat", rp)
-				r.Rate.Enzyme = d.value(ro, "enzyme", rp)
-				r.Rate.Expression = d.optStr(ro, "expression", rp)
-			}
-			m.Reactions = append(m.Reactions, r)
-		}
-	}
-	if v, ok := top["simulation"]; ok {
-		o := d.object(v, "simulation", "t_end", "output", "rtol", "atol", "method", "non_negative")
-		s := &m.Simulation
-		s.TEnd = d.optNum(o, "t_end", "simulation")
-		s.RTol = d.optNum(o, "rtol", "simulation")
-		s.ATol = d.optNum(o, "atol", "simulation")
-		s.Method = d.optStr(o, "method", "simulation")
-		if x, ok := o["non_negative"]; ok {
-			b := d.boolean(x, "simulation.non_negative")
-			s.NonNegative = &b
-		}
-		if x, ok := o["output"]; ok {
-			oo := d.object(x, "simulation.output", "points", "spacing", "first")
-			if p, ok := oo["points"]; ok {
-				f := d.num(p, "simulation.output.points")
-				if d.err == nil && (f != math.Trunc(f) || math.Abs(f) > 1e9) {
-					d.fail("simulation.output.points: %v is not a whole number up to 1e9; expected a count such as 200", f)
+				for j, k := range ro.keys {
+					if k == "law" || k == "expression" {
+						d.mark("reactions", i, "rate."+k, ro.vals[j])
+						continue
+					}
+					if v, ok := d.value(ro.vals[j], rp+"."+k); ok {
+						r.Rate = r.Rate.With(k, v)
+					}
+					d.mark("reactions", i, "rate."+k, ro.vals[j])
 				}
-				s.Output.Points = int(f)
+				r.Rate.Expression = d.optStr(ro, "expression", rp)
+				d.mark("reactions", i, "rate", x)
 			}
-			s.Output.Spacing = d.optStr(oo, "spacing", "simulation.output")
-			s.Output.First = d.optNum(oo, "first", "simulation.output")
+		}
+		m.Reactions = append(m.Reactions, r)
+	})
+	if v, ok := top.get("simulation"); ok {
+		d.mark("simulation", 0, "", v)
+		if o := d.object(v, "simulation", "t_end", "output", "rtol", "atol", "method", "non_negative"); o != nil {
+			s := &m.Simulation
+			s.TEnd = d.optNum(o, "t_end", "simulation")
+			s.RTol = d.optNum(o, "rtol", "simulation")
+			s.ATol = d.optNum(o, "atol", "simulation")
+			s.Method = d.optStr(o, "method", "simulation")
+			for j, k := range o.keys {
+				d.mark("simulation", 0, k, o.vals[j])
+			}
+			if x, ok := o.get("non_negative"); ok {
+				b := d.boolean(x, "simulation.non_negative")
+				s.NonNegative = &b
+			}
+			if x, ok := o.get("output"); ok {
+				if oo := d.object(x, "simulation.output", "points", "spacing", "first"); oo != nil {
+					for j, k := range oo.keys {
+						d.mark("simulation", 0, "output."+k, oo.vals[j])
+					}
+					if p, ok := oo.get("points"); ok {
+						f, ok := d.num(p, "simulation.output.points")
+						if ok && (f != math.Trunc(f) || math.Abs(f) > 1e9) {
+							d.fail(p, "simulation.output.points", "%v is not a whole number up to 1e9; expected a count such as 200", f)
+						} else {
+							s.Output.Points = int(f)
+						}
+					}
+					s.Output.Spacing = d.optStr(oo, "spacing", "simulation.output")
+					s.Output.First = d.optNum(oo, "first", "simulation.output")
+				}
+			}
 		}
 	}
-	if d.err != nil {
-		return nil, d.err
+	if d.errs.HasErrors() {
+		d.errs.Sort()
+		return nil, d.errs
 	}
 	m.Simulation = m.Simulation.WithDefaults()
 	return m, nil
 }
 
-// decoder remembers the first error so the decoding code reads straight.
-type decoder struct{ err error }
-
-func (d *decoder) fail(format string, args ...any) {
-	if d.err == nil {
-		d.err = fmt.Errorf(format, args...)
+// items decodes the list under key of top, calling item for each object in
+// it, and remembers where each item and each of its fields is.
+func (d *decoder) items(top *jnode, key string, allowed []string, item func(i int, o *jnode, path string)) {
+	v, ok := top.get(key)
+	if !ok {
+		return
+	}
+	for i, x := range d.array(v, key) {
+		path := fmt.Sprintf("%s[%d]", key, i)
+		d.mark(key, i, "", x)
+		o := d.object(x, path, allowed...)
+		if o == nil {
+			o = &jnode{kind: '{'}
+		}
+		for j, k := range o.keys {
+			d.mark(key, i, k, o.vals[j])
+		}
+		item(i, o, path)
 	}
 }
 
-func jsonKind(raw json.RawMessage) string {
-	t := bytes.TrimSpace(raw)
-	if len(t) == 0 {
-		return "nothing"
-	}
-	switch t[0] {
-	case '{':
-		return "an object"
-	case '[':
-		return "a list"
-	case '"':
-		return "text"
-	case 't', 'f':
-		return "true/false"
-	case 'n':
-		return "null"
-	}
-	return "a number"
-}
-
-func object(raw json.RawMessage, path string, allowed ...string) (map[string]json.RawMessage, error) {
+// object checks that n is an object with no repeated and no unknown keys,
+// reporting each; it returns nil when n is not an object.
+func (d *decoder) object(n *jnode, path string, allowed ...string) *jnode {
 	where := path
 	if where == "" {
 		where = "the top level"
 	}
-	if jsonKind(raw) != "an object" {
-		return nil, fmt.Errorf("%s: expected an object {...}, found %s", where, jsonKind(raw))
+	if n.kind != '{' {
+		d.fail(n, path, "expected an object {...}, found %s", n.what())
+		return nil
 	}
-	// Decode key by key: json.Unmarshal into a map would keep the last of
-	// two equal keys silently.
-	o := map[string]json.RawMessage{}
-	dec := json.NewDecoder(bytes.NewReader(raw))
-	if _, err := dec.Token(); err != nil { // '{'
-		return nil, fmt.Errorf("%s: expected an object {...}: %w", where, err)
-	}
-	for dec.More() {
-		tok, err := dec.Token()
-		if err != nil {
-			return nil, fmt.Errorf("%s: expected an object {...}: %w", where, err)
+	seen := map[string]bool{}
+	for i, k := range n.keys {
+		if seen[k] {
+			d.failAt(n.kOffs[i], path, "the key %q appears twice; keep one", k)
+			continue
 		}
-		k, _ := tok.(string)
-		var v json.RawMessage
-		if err := dec.Decode(&v); err != nil {
-			return nil, fmt.Errorf("%s.%s: %w", where, k, err)
-		}
-		if _, dup := o[k]; dup {
-			return nil, fmt.Errorf("%s: the key %q appears twice; keep one", where, k)
-		}
-		o[k] = v
-	}
-	keys := make([]string, 0, len(o))
-	for k := range o {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
-	for _, k := range keys {
+		seen[k] = true
 		known := false
 		for _, a := range allowed {
-			if k == a {
-				known = true
-				break
-			}
+			known = known || k == a
 		}
 		if !known {
-			return nil, fmt.Errorf("%s: unknown key %q; expected one of %s", where, k, strings.Join(allowed, ", "))
+			d.failAt(n.kOffs[i], path, "unknown key %q; expected one of %s", k, strings.Join(allowed, ", "))
 		}
 	}
-	return o, nil
+	return n
 }
 
-func (d *decoder) object(raw json.RawMessage, path string, allowed ...string) map[string]json.RawMessage {
-	if d.err != nil {
+func (d *decoder) array(n *jnode, path string) []*jnode {
+	if n.kind != '[' {
+		d.fail(n, path, "expected a list [...], found %s", n.what())
 		return nil
 	}
-	o, err := object(raw, path, allowed...)
-	if err != nil {
-		d.err = err
-	}
-	return o
+	return n.items
 }
 
-func (d *decoder) array(raw json.RawMessage, path string) []json.RawMessage {
-	if d.err != nil {
-		return nil
+func (d *decoder) str(n *jnode, path string) string {
+	if n.kind != '"' {
+		d.fail(n, path, "expected text in quotes, found %s", n.what())
 	}
-	var a []json.RawMessage
-	if jsonKind(raw) != "a list" || json.Unmarshal(raw, &a) != nil {
-		d.fail("%s: expected a list [...], found %s", path, jsonKind(raw))
-	}
-	return a
+	return n.str
 }
 
-func (d *decoder) str(raw json.RawMessage, path string) string {
-	if d.err != nil {
-		return ""
+func (d *decoder) num(n *jnode, path string) (float64, bool) {
+	if n.kind != '0' {
+		d.fail(n, path, "expected a number, found %s", n.what())
+		return 0, false
 	}
-	var s string
-	if jsonKind(raw) != "text" || json.Unmarshal(raw, &s) != nil {
-		d.fail("%s: expected text in quotes, found %s", path, jsonKind(raw))
+	f, err := n.num.Float64()
+	if err != nil || math.IsInf(f, 0) {
+		d.fail(n, path, "%s is out of the range of numbers this program handles", n.num)
+		return 0, false
 	}
-	return s
+	return f, true
 }
 
-func (d *decoder) num(raw json.RawMessage, path string) float64 {
-	if d.err != nil {
-		return 0
+func (d *decoder) boolean(n *jnode, path string) bool {
+	if n.kind != 'b' {
+		d.fail(n, path, "expected true or false, found %s", n.what())
 	}
-	var f float64
-	if jsonKind(raw) != "a number" {
-		d.fail("%s: expected a number, found %s", path, jsonKind(raw))
-	} else if err := json.Unmarshal(raw, &f); err != nil {
-		d.fail("%s: %s is out of the range of numbers this program handles", path, bytes.TrimSpace(raw))
-	}
-	return f
+	return n.b
 }
 
-func (d *decoder) boolean(raw json.RawMessage, path string) bool {
-	if d.err != nil {
-		return false
-	}
-	var b bool
-	if jsonKind(raw) != "true/false" || json.Unmarshal(raw, &b) != nil {
-		d.fail("%s: expected true or false, found %s", path, jsonKind(raw))
-	}
-	return b
-}
-
-func (d *decoder) optStr(o map[string]json.RawMessage, key, path string) string {
-	if v, ok := o[key]; ok {
-		return d.str(v, path+"."+key)
+func (d *decoder) optStr(o *jnode, key, path string) string {
+	if v, ok := o.get(key); ok {
+		return d.str(v, join(path, key))
 	}
 	return ""
 }
 
-func (d *decoder) optNum(o map[string]json.RawMessage, key, path string) float64 {
-	if v, ok := o[key]; ok {
-		return d.num(v, path+"."+key)
+func (d *decoder) optNum(o *jnode, key, path string) float64 {
+	if v, ok := o.get(key); ok {
+		f, _ := d.num(v, join(path, key))
+		return f
 	}
 	return 0
 }
 
-// value decodes a rate field: a parameter name (text) or a number.
-func (d *decoder) value(o map[string]json.RawMessage, key, path string) Value {
-	v, ok := o[key]
-	if !ok || d.err != nil {
-		return Value{}
+func join(path, key string) string {
+	if path == "" {
+		return key
 	}
-	switch jsonKind(v) {
-	case "text":
-		return Value{Name: d.str(v, path+"."+key), Set: true}
-	case "a number":
-		return Value{Num: d.num(v, path+"."+key), Set: true}
+	return path + "." + key
+}
+
+// value decodes a rate field: a name (text) or a number.
+func (d *decoder) value(n *jnode, path string) (Value, bool) {
+	switch n.kind {
+	case '"':
+		return Value{Name: n.str, Set: true}, true
+	case '0':
+		f, ok := d.num(n, path)
+		return Value{Num: f, Set: true}, ok
 	}
-	d.fail("%s.%s: expected a parameter name in quotes or a number, found %s", path, key, jsonKind(v))
-	return Value{}
+	d.fail(n, path, "expected a parameter name in quotes or a number, found %s", n.what())
+	return Value{}, false
 }
 
 // The file form, in the key order Write uses.
@@ -377,6 +373,7 @@ type (
 		Compartments []fileCompartment `json:"compartments,omitempty"`
 		Species      []fileSpecies     `json:"species"`
 		Parameters   []fileParameter   `json:"parameters,omitempty"`
+		Assignments  []fileAssignment  `json:"assignments,omitempty"`
 		Reactions    []fileReaction    `json:"reactions"`
 		Simulation   *fileSimulation   `json:"simulation,omitempty"`
 	}
@@ -408,16 +405,13 @@ type (
 		Rate     fileRate `json:"rate"`
 		Note     string   `json:"note,omitempty"`
 	}
-	fileRate struct {
-		Law        string     `json:"law"`
-		K          *fileValue `json:"k,omitempty"`
-		KReverse   *fileValue `json:"k_reverse,omitempty"`
-		Vmax       *fileValue `json:"vmax,omitempty"`
-		Km         *fileValue `json:"km,omitempty"`
-		Kcat       *fileValue `json:"kcat,omitempty"`
-		Enzyme     *fileValue `json:"enzyme,omitempty"`
-		Expression string     `json:"expression,omitempty"`
+	fileAssignment struct {
+		Name       string `json:"name"`
+		Expression string `json:"expression"`
+		Unit       string `json:"unit,omitempty"`
+		Note       string `json:"note,omitempty"`
 	}
+	fileRate       Rate
 	fileValue      Value
 	fileSimulation struct {
 		TEnd        float64     `json:"t_end,omitempty"`
@@ -442,12 +436,65 @@ func (v *fileValue) MarshalJSON() ([]byte, error) {
 	return json.Marshal(v.Num)
 }
 
-func toFileValue(v Value) *fileValue {
-	if !v.Set {
+// MarshalJSON writes "law" first, then the law's fields in the order the
+// law lists them, then any other fields in key order, then "expression".
+func (r fileRate) MarshalJSON() ([]byte, error) {
+	var b bytes.Buffer
+	b.WriteString("{")
+	put := func(k string, v any) error {
+		x, err := json.Marshal(v)
+		if err != nil {
+			return fmt.Errorf("rate field %s: %w", k, err)
+		}
+		if b.Len() > 1 {
+			b.WriteString(",")
+		}
+		kb, _ := json.Marshal(k)
+		b.Write(kb)
+		b.WriteString(":")
+		b.Write(x)
 		return nil
 	}
-	f := fileValue(v)
-	return &f
+	if err := put("law", r.Law); err != nil {
+		return nil, err
+	}
+	var order []string
+	if law, ok := LawNamed(r.Law); ok {
+		for _, f := range law.Fields() {
+			if _, ok := r.Args[f.Key]; ok {
+				order = append(order, f.Key)
+			}
+		}
+	}
+	var rest []string
+	for k := range r.Args {
+		if !contains(order, k) {
+			rest = append(rest, k)
+		}
+	}
+	sort.Strings(rest)
+	for _, k := range append(order, rest...) {
+		v := fileValue(r.Args[k])
+		if err := put(k, &v); err != nil {
+			return nil, err
+		}
+	}
+	if r.Expression != "" {
+		if err := put("expression", r.Expression); err != nil {
+			return nil, err
+		}
+	}
+	b.WriteString("}")
+	return b.Bytes(), nil
+}
+
+func contains(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
 }
 
 // Write encodes m as a model file: keys in a fixed order, two-space indent,
@@ -468,11 +515,11 @@ func (m *Model) Write(w io.Writer) error {
 	for _, p := range m.Parameters {
 		f.Parameters = append(f.Parameters, fileParameter(p))
 	}
+	for _, a := range m.Assignments {
+		f.Assignments = append(f.Assignments, fileAssignment(a))
+	}
 	for _, r := range m.Reactions {
-		f.Reactions = append(f.Reactions, fileReaction{Name: r.Name, Equation: r.Equation, Note: r.Note,
-			Rate: fileRate{Law: r.Rate.Law, K: toFileValue(r.Rate.K), KReverse: toFileValue(r.Rate.KReverse),
-				Vmax: toFileValue(r.Rate.Vmax), Km: toFileValue(r.Rate.Km), Kcat: toFileValue(r.Rate.Kcat),
-				Enzyme: toFileValue(r.Rate.Enzyme), Expression: r.Rate.Expression}})
+		f.Reactions = append(f.Reactions, fileReaction{Name: r.Name, Equation: r.Equation, Note: r.Note, Rate: fileRate(r.Rate)})
 	}
 	s := m.Simulation
 	fs := fileSimulation{TEnd: s.TEnd, RTol: s.RTol, ATol: s.ATol, Method: s.Method, NonNegative: s.NonNegative}

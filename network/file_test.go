@@ -22,7 +22,7 @@ func TestRoundTripExamples(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: reading what Write wrote: %v", name, err)
 		}
-		if !reflect.DeepEqual(m, m2) {
+		if !reflect.DeepEqual(m.Clone(), m2.Clone()) { // Clone leaves out where items were in the file
 			t.Errorf("%s: model changed in a write/read round trip", name)
 		}
 		if err := m2.Write(&b); err != nil {
@@ -31,7 +31,7 @@ func TestRoundTripExamples(t *testing.T) {
 		if !bytes.Equal(a.Bytes(), b.Bytes()) {
 			t.Errorf("%s: second write differs from the first", name)
 		}
-		if !reflect.DeepEqual(m.Clone(), m) {
+		if c := m.Clone(); !reflect.DeepEqual(c, m.Clone()) || c.source != nil {
 			t.Errorf("%s: Clone differs", name)
 		}
 		if ps := m.Validate(); HasErrors(ps) {
@@ -70,7 +70,7 @@ func TestSaveAtomic(t *testing.T) {
 func TestReadErrors(t *testing.T) {
 	const head = `{"format": "kinetarium.model/1", `
 	cases := []struct{ in, want string }{
-		{`{"format": "kinetarium.model/1",` + "\n" + `  "species": [}`, "line 2, column 15"},
+		{`{"format": "kinetarium.model/1",` + "\n" + `  "species": [}`, "m.json:2:15: invalid JSON"},
 		{`{"format": "kinetarium.model/1"`, "ends too early"},
 		{`{"title": "x"}`, `missing key "format"`},
 		{`{"format": "kinetarium.model/2"}`, `version this program does not read`},
@@ -92,8 +92,8 @@ func TestReadErrors(t *testing.T) {
 		// number".
 		{head + `"species": [{"name": "A", "name": "B"}]}`, `species[0]: the key "name" appears twice`},
 		{head + `"title": "a", "title": "b"}`, `the top level: the key "title" appears twice`},
-		{`{"format": "kinetarium.model/1"}}`, `line 1, column 33: unexpected text after the end`},
-		{`{"format": "kinetarium.model/1"}` + "\n ]", `line 2, column 2: unexpected text after the end`},
+		{`{"format": "kinetarium.model/1"}}`, `m.json:1:33: unexpected text after the end`},
+		{`{"format": "kinetarium.model/1"}` + "\n ]", `m.json:2:2: unexpected text after the end`},
 		{head + `"simulation": {"output": {"points": 1e20}}}`, `1e+20 is not a whole number up to 1e9`},
 	}
 	for _, c := range cases {
@@ -102,7 +102,7 @@ func TestReadErrors(t *testing.T) {
 			t.Errorf("Read(%q) succeeded, want error containing %q", c.in, c.want)
 			continue
 		}
-		if !strings.Contains(err.Error(), c.want) || !strings.HasPrefix(err.Error(), "m.json: ") {
+		if !strings.Contains(err.Error(), c.want) || !strings.HasPrefix(err.Error(), "m.json:") {
 			t.Errorf("Read(%q) error %q, want it to name m.json and contain %q", c.in, err, c.want)
 		}
 	}
@@ -125,7 +125,7 @@ func TestReadBriefExample(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if m.Reactions[1].Rate.K != Number(12) || m.Reactions[0].Rate.KReverse != Named("koff") || m.Reactions[0].Rate.K.String() != "kon" {
+	if m.Reactions[1].Rate.Arg("k") != Number(12) || m.Reactions[0].Rate.Arg("k_reverse") != Named("koff") || m.Reactions[0].Rate.Arg("k").String() != "kon" {
 		t.Errorf("rate values decoded wrongly: %+v", m.Reactions[:2])
 	}
 	if !m.Species[2].Fixed || m.Species[0].Compartment != "well" || m.Simulation.Output.First != 0.01 || m.Simulation.KeepNonNegative() {

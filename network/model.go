@@ -10,21 +10,19 @@
 package network
 
 import (
+	"fmt"
 	"strconv"
 )
 
 // Format is the value of the "format" key that model files must carry.
 const Format = "kinetarium.model/1"
 
-// Rate law names.
+// Names of the built-in rate laws (see Laws and LawNamed for all).
 const (
 	MassAction      = "mass_action"      // k·Π[reactant]^coef (− k_reverse·Π[product]^coef)
 	MichaelisMenten = "michaelis_menten" // vmax·S/(km+S) or kcat·E·S/(km+S)
-	Expression      = "expression"       // any expression over species, parameters and t
+	Expression      = "expression"       // any expression over species, parameters, assignments and t
 )
-
-// Laws lists the rate law names in the order menus show them.
-var Laws = []string{MassAction, MichaelisMenten, Expression}
 
 // DefaultCompartment is the name of the implicit compartment of volume 1
 // used when a model declares none.
@@ -38,8 +36,11 @@ type Model struct {
 	Compartments []Compartment
 	Species      []Species
 	Parameters   []Parameter
+	Assignments  []Assignment
 	Reactions    []Reaction
 	Simulation   Simulation
+
+	source *sourceMap // where Read found each item; nil for models built in code
 }
 
 // Units name the units of time and amount (concentration) used by the
@@ -75,6 +76,17 @@ type Parameter struct {
 	Note  string
 }
 
+// Assignment is a named quantity computed from species, parameters, other
+// assignments and t, such as E_total = E + ES. Assignments can be used in
+// rate expressions, are plotted and exported beside the species, and can be
+// read out and fitted.
+type Assignment struct {
+	Name       string
+	Expression string
+	Unit       string
+	Note       string
+}
+
 // Reaction is one reaction: an equation such as "E + S <=> ES" and its rate
 // law.
 type Reaction struct {
@@ -84,22 +96,79 @@ type Reaction struct {
 	Note     string
 }
 
-// Rate is a rate law. Law is one of MassAction, MichaelisMenten and
-// Expression; the other fields are used according to the law:
-//
-//   - mass_action: K, and KReverse for reversible reactions;
-//   - michaelis_menten: Vmax and Km, or Kcat, Enzyme (a species) and Km;
-//   - expression: Expression, the rate (for a reversible reaction, the net
-//     rate).
+// Rate is a rate law: the law's name and the values of its fields (see
+// Law.Fields). Args holds the parameter and species fields by their keys
+// in model files ("k", "k_reverse", "vmax", "km", "kcat", "enzyme", …);
+// treat it as read-only and change a field with With, so that copies of a
+// Rate never share changes. Expression is the text of the expression law.
 type Rate struct {
 	Law        string
-	K          Value
-	KReverse   Value
-	Vmax       Value
-	Km         Value
-	Kcat       Value
-	Enzyme     Value
+	Args       map[string]Value
 	Expression string
+}
+
+// Arg returns the value of the field key (unset when absent).
+func (r Rate) Arg(key string) Value { return r.Args[key] }
+
+// With returns a copy of r whose field key holds v (an unset v removes
+// it). r itself is not changed.
+func (r Rate) With(key string, v Value) Rate {
+	args := make(map[string]Value, len(r.Args)+1)
+	for k, x := range r.Args {
+		args[k] = x
+	}
+	if v.Set {
+		args[key] = v
+	} else {
+		delete(args, key)
+	}
+	r.Args = args
+	return r
+}
+
+// Equal reports whether r and o are the same law with the same fields.
+func (r Rate) Equal(o Rate) bool {
+	if r.Law != o.Law || r.Expression != o.Expression || len(r.Args) != len(o.Args) {
+		return false
+	}
+	for k, v := range r.Args {
+		if w, ok := o.Args[k]; !ok || w != v {
+			return false
+		}
+	}
+	return true
+}
+
+// NewRate returns a rate of the given law with fields given as key, value
+// pairs: NewRate(MassAction, "k", Named("kon"), "k_reverse", Number(0.1)).
+// It panics on an odd number of arguments or a key that is not a string,
+// which are programming mistakes.
+func NewRate(law string, kv ...any) Rate {
+	if len(kv)%2 != 0 {
+		panic("network.NewRate: odd number of key/value arguments")
+	}
+	r := Rate{Law: law, Args: map[string]Value{}}
+	for i := 0; i < len(kv); i += 2 {
+		k, ok := kv[i].(string)
+		if !ok {
+			panic(fmt.Sprintf("network.NewRate: key %v is not a string", kv[i]))
+		}
+		switch v := kv[i+1].(type) {
+		case Value:
+			if v.Set {
+				r.Args[k] = v
+			}
+		case string:
+			r.Args[k] = Named(v)
+		case float64:
+			r.Args[k] = Number(v)
+		case int:
+			r.Args[k] = Number(float64(v))
+		default:
+			panic(fmt.Sprintf("network.NewRate: value %v of %q is not a Value, name or number", v, k))
+		}
+	}
+	return r
 }
 
 // Value is a rate-law field given either as the name of a parameter (Name
@@ -194,10 +263,17 @@ func (s Simulation) KeepNonNegative() bool { return s.NonNegative == nil || *s.N
 // Clone returns a deep copy of m.
 func (m *Model) Clone() *Model {
 	c := *m
+	c.source = nil // positions in the file need not hold for an edited copy
 	c.Compartments = append([]Compartment(nil), m.Compartments...)
 	c.Species = append([]Species(nil), m.Species...)
 	c.Parameters = append([]Parameter(nil), m.Parameters...)
 	c.Reactions = append([]Reaction(nil), m.Reactions...)
+	for i := range c.Reactions {
+		if c.Reactions[i].Rate.Args != nil {
+			c.Reactions[i].Rate = c.Reactions[i].Rate.With("", Value{}) // a map of its own
+		}
+	}
+	c.Assignments = append([]Assignment(nil), m.Assignments...)
 	if m.Simulation.NonNegative != nil {
 		b := *m.Simulation.NonNegative
 		c.Simulation.NonNegative = &b

@@ -16,6 +16,14 @@ import (
 // parse get a zero column. The matrix is nil when the model has no species
 // or no reactions.
 func (m *Model) Stoichiometry() (species []string, reactions []string, n *mat.Dense) {
+	net, _ := Check(m)
+	return net.Stoichiometry()
+}
+
+// Stoichiometry returns the net stoichiometry matrix of the checked
+// network, as Model.Stoichiometry describes.
+func (net *Net) Stoichiometry() (species []string, reactions []string, n *mat.Dense) {
+	m := net.Model
 	ix := map[string]int{}
 	for i, s := range m.Species {
 		species = append(species, s.Name)
@@ -30,9 +38,9 @@ func (m *Model) Stoichiometry() (species []string, reactions []string, n *mat.De
 		return species, reactions, nil
 	}
 	n = mat.NewDense(len(species), len(reactions), nil)
-	for j, r := range m.Reactions {
-		eq, err := ParseEquation(r.Equation)
-		if err != nil {
+	for _, cr := range net.Reactions {
+		j, eq := cr.Index, cr.Equation
+		if !cr.EqOK {
 			continue
 		}
 		for _, t := range eq.Reactants {
@@ -70,7 +78,15 @@ type ConservationLaw struct {
 // integer weights do not fit in an int (coefficients spanning more than
 // about 18 orders of magnitude) is left out rather than listed wrongly.
 func (m *Model) ConservationLaws() []ConservationLaw {
-	species, _, n := m.Stoichiometry()
+	net, _ := Check(m)
+	return net.ConservationLaws()
+}
+
+// ConservationLaws returns the conserved totals of the checked network, as
+// Model.ConservationLaws describes.
+func (net *Net) ConservationLaws() []ConservationLaw {
+	m := net.Model
+	species, _, n := net.Stoichiometry()
 	var free []int // non-fixed species
 	for i, s := range m.Species {
 		if !s.Fixed {

@@ -70,8 +70,8 @@ func TestConservationEnzyme(t *testing.T) {
 	m := &Model{
 		Species: []Species{{Name: "E", Initial: 1}, {Name: "S", Initial: 10}, {Name: "ES"}, {Name: "P"}},
 		Reactions: []Reaction{
-			{Name: "bind", Equation: "E + S <=> ES", Rate: Rate{Law: MassAction, K: Number(2), KReverse: Number(1)}},
-			{Name: "cat", Equation: "ES -> E + P", Rate: Rate{Law: MassAction, K: Number(3)}},
+			{Name: "bind", Equation: "E + S <=> ES", Rate: NewRate(MassAction, "k", Number(2), "k_reverse", Number(1))},
+			{Name: "cat", Equation: "ES -> E + P", Rate: NewRate(MassAction, "k", Number(3))},
 		},
 	}
 	laws := checkLaws(t, m)
@@ -92,9 +92,9 @@ func TestConservationCompartmentsAndCoefficients(t *testing.T) {
 		Species: []Species{{Name: "A", Initial: 1, Compartment: "blood"}, {Name: "A_t", Compartment: "tissue"},
 			{Name: "D", Compartment: "tissue"}, {Name: "F", Initial: 1, Fixed: true}},
 		Reactions: []Reaction{
-			{Name: "move", Equation: "A <=> A_t", Rate: Rate{Law: MassAction, K: Number(0.4), KReverse: Number(0.2)}},
-			{Name: "dimer", Equation: "2 A_t <=> D", Rate: Rate{Law: MassAction, K: Number(1.5), KReverse: Number(0.1)}},
-			{Name: "feed", Equation: "F + A -> F + A", Rate: Rate{Law: MassAction, K: Number(1)}},
+			{Name: "move", Equation: "A <=> A_t", Rate: NewRate(MassAction, "k", Number(0.4), "k_reverse", Number(0.2))},
+			{Name: "dimer", Equation: "2 A_t <=> D", Rate: NewRate(MassAction, "k", Number(1.5), "k_reverse", Number(0.1))},
+			{Name: "feed", Equation: "F + A -> F + A", Rate: NewRate(MassAction, "k", Number(1))},
 		},
 	}
 	laws := checkLaws(t, m)
@@ -137,7 +137,7 @@ func TestConservationDecimalCoefficients(t *testing.T) {
 	} {
 		m := &Model{
 			Species:   []Species{{Name: "A", Initial: 1}, {Name: "B"}, {Name: "C"}},
-			Reactions: []Reaction{{Name: "r", Equation: tc.eq, Rate: Rate{Law: MassAction, K: Number(1)}}},
+			Reactions: []Reaction{{Name: "r", Equation: tc.eq, Rate: NewRate(MassAction, "k", Number(1))}},
 		}
 		laws := checkLaws(t, m)
 		var texts []string
@@ -156,7 +156,7 @@ func TestConservationDecimalCoefficients(t *testing.T) {
 	// Weights beyond an int are left out, not truncated into a wrong law.
 	m := &Model{
 		Species:   []Species{{Name: "A", Initial: 1}, {Name: "B"}},
-		Reactions: []Reaction{{Name: "r", Equation: "A -> 1000000000000000000000 B", Rate: Rate{Law: MassAction, K: Number(1)}}},
+		Reactions: []Reaction{{Name: "r", Equation: "A -> 1000000000000000000000 B", Rate: NewRate(MassAction, "k", Number(1))}},
 	}
 	if laws := m.ConservationLaws(); len(laws) != 0 {
 		t.Errorf("A -> 1e21 B: laws %+v, want none (weights do not fit an int)", laws)

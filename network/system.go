@@ -4,32 +4,11 @@ import (
 	"fmt"
 	"math"
 	"sort"
-	"strings"
 
 	"gonum.org/v1/gonum/mat"
+
+	"kinetarium/network/expr"
 )
-
-// ProblemsError is returned by Compile for a model with errors. It lists
-// every error Validate found.
-type ProblemsError struct {
-	Problems []Problem // the errors (warnings left out)
-}
-
-// Error lists the problems, one a line.
-func (e *ProblemsError) Error() string {
-	var b strings.Builder
-	if len(e.Problems) == 1 {
-		b.WriteString("the model has 1 error: ")
-		b.WriteString(e.Problems[0].String())
-		return b.String()
-	}
-	fmt.Fprintf(&b, "the model has %d errors:", len(e.Problems))
-	for _, p := range e.Problems {
-		b.WriteString("\n  ")
-		b.WriteString(p.String())
-	}
-	return b.String()
-}
 
 // System is a compiled reaction network: the ODE system
 // d[species]/dt = f(t, [species]) with its exact Jacobian. It satisfies the
@@ -63,11 +42,21 @@ type System struct {
 	cScale []float64 // cNet·V(rate compartment)/V(species compartment)
 	depSp  []int     // species each rate depends on
 	dr     []float64 // ∂rate/∂y for each dependency (scratch)
+	depPar []int     // parameters each rate depends on
+	dp     []float64 // ∂rate/∂p for each parameter dependency (scratch)
 	progs  []program
+
+	asgNames []string
+	asgProgs []program // each assignment, inlined, over [y | parameters | t]
 
 	rowPtr, colIdx []int
 	jpos           []int     // CSR position of each (contribution, dependency) pair
 	jvals          []float64 // scratch for the dense Jacobian
+
+	pColPtr, pRowIdx []int     // CSC pattern of ∂f/∂(parameters, volumes)
+	ppos             []int     // CSC position of each (contribution, parameter dependency) pair
+	vpos             []int     // CSC positions of each contribution's volume entries (2 per contribution)
+	pvals            []float64 // scratch for the dense parameter Jacobian
 }
 
 // Autonomous reports whether f does not depend on t explicitly (no rate
@@ -96,8 +85,10 @@ type rxn struct {
 	kind       int
 	comp       int // compartment whose concentration units the rate uses
 	c0, c1     int // contributions
-	d0, d1     int // dependencies
+	d0, d1     int // species dependencies
+	p0, p1     int // parameter dependencies
 	j0         int // start in jpos
+	q0         int // start in ppos
 	k, kr      val
 	reversible bool
 	f0, f1     int // forward (reactant) terms
@@ -108,22 +99,136 @@ type rxn struct {
 	sub, enz   int
 	subSlot    int
 	enzSlot    int
-	prog       int // progs[prog] is the rate, progs[prog+1+i] its derivative by dependency i
+	// progs[prog] is the rate, progs[prog+1+i] its derivative by species
+	// dependency i, then its derivatives by parameter dependency.
+	prog int
 }
 
-// Compile turns m into a System. A model with errors (see Validate) is
-// refused with a *ProblemsError listing them; warnings are ignored.
+// Compile checks m and turns it into a System. A model with errors is
+// refused with an ErrorList (see Check) listing them; warnings are
+// ignored.
 func Compile(m *Model) (*System, error) {
-	var errs []Problem
-	for _, p := range m.Validate() {
-		if p.Severity == Error {
-			errs = append(errs, p)
+	net, probs := Check(m)
+	if err := probs.Err(); err != nil {
+		return nil, err
+	}
+	return net.Compile()
+}
+
+// builder assembles a System from a Net.
+type builder struct {
+	s       *System
+	net     *Net
+	inlined map[string]expr.Node // each assignment with assignments inlined
+}
+
+// value returns the compiled form of a rate field.
+func (b *builder) value(v Value) val {
+	if v.Name != "" {
+		return val{p: b.s.parIx[v.Name]}
+	}
+	return val{p: -1, c: v.Num}
+}
+
+// depSlot returns the dependency slot of species sp in reaction r, adding
+// one if needed.
+func (b *builder) depSlot(r *rxn, sp int) int {
+	s := b.s
+	for d := r.d0; d < len(s.depSp); d++ {
+		if s.depSp[d] == sp {
+			return d
 		}
 	}
-	if len(errs) > 0 {
-		return nil, &ProblemsError{Problems: errs}
+	s.depSp = append(s.depSp, sp)
+	return len(s.depSp) - 1
+}
+
+// paramDep declares that reaction r depends on the parameter of v (a
+// number declares nothing).
+func (b *builder) paramDep(r *rxn, v val) {
+	if v.p < 0 {
+		return
 	}
+	s := b.s
+	for d := r.p0; d < len(s.depPar); d++ {
+		if s.depPar[d] == v.p {
+			return
+		}
+	}
+	s.depPar = append(s.depPar, v.p)
+}
+
+// addTerms adds the terms of an equation side to reaction r.
+func (b *builder) addTerms(r *rxn, ts []Term) (int, int) {
+	s := b.s
+	a := len(s.terms)
+	for _, t := range ts {
+		sp := s.spIx[t.Species]
+		s.terms = append(s.terms, term{sp: sp, coef: t.Coef, slot: b.depSlot(r, sp)})
+	}
+	return a, len(s.terms)
+}
+
+// slot maps a name of an expression to its place in System.vars.
+func (b *builder) slot(name string) (int, bool) {
+	s := b.s
+	if i, ok := s.spIx[name]; ok {
+		return i, true
+	}
+	if i, ok := s.parIx[name]; ok {
+		return s.n + i, true
+	}
+	if name == TimeName {
+		s.usesTime = true
+		return len(s.vars) - 1, true
+	}
+	return 0, false
+}
+
+// compile compiles an expression tree.
+func (b *builder) compile(n expr.Node) (program, error) { return expr.Compile(n, b.slot) }
+
+// compileExpression sets up a reaction whose rate is compiled bytecode,
+// with its derivatives by species and by parameters.
+func (b *builder) compileExpression(r *rxn, cr *CheckedReaction) error {
+	s := b.s
+	r.kind = kindExpr
+	s.hasExpr = true
+	tree := b.inline(cr.Expr)
+	var wrtSp, wrtPar []string
+	for _, v := range expr.Vars(tree) {
+		if sp, ok := s.spIx[v]; ok {
+			b.depSlot(r, sp)
+			wrtSp = append(wrtSp, v)
+		} else if p, ok := s.parIx[v]; ok {
+			b.paramDep(r, val{p: p})
+			wrtPar = append(wrtPar, v)
+		}
+	}
+	rate, err := b.compile(tree)
+	if err != nil {
+		return err
+	}
+	r.prog = len(s.progs)
+	s.progs = append(s.progs, rate)
+	for _, w := range append(wrtSp, wrtPar...) {
+		d, err := b.compile(expr.Simplify(expr.Diff(tree, w)))
+		if err != nil {
+			return fmt.Errorf("derivative by %s: %w", w, err)
+		}
+		s.progs = append(s.progs, d)
+	}
+	return nil
+}
+
+// Compile turns a checked network without errors into a System.
+func (net *Net) Compile() (*System, error) {
+	if err := net.Problems.Err(); err != nil {
+		return nil, err
+	}
+	m := net.Model
 	s := &System{n: len(m.Species), parIx: map[string]int{}, spIx: map[string]int{}}
+	b := &builder{s: s, net: net}
 	n := s.n
 	compIx := map[string]int{}
 	if len(m.Compartments) == 0 {
@@ -149,99 +254,28 @@ func Compile(m *Model) (*System, error) {
 		s.parIx[p.Name] = i
 		s.vars[n+i] = p.Value
 	}
-	slot := func(name string) (int, bool) {
-		if i, ok := s.spIx[name]; ok {
-			return i, true
-		}
-		if i, ok := s.parIx[name]; ok {
-			return n + i, true
-		}
-		if name == TimeName {
-			s.usesTime = true
-			return len(s.vars) - 1, true
-		}
-		return 0, false
-	}
-	value := func(v Value) val {
-		if v.Name != "" {
-			return val{p: s.parIx[v.Name]}
-		}
-		return val{p: -1, c: v.Num}
-	}
-	for ri := range m.Reactions {
-		mr := &m.Reactions[ri]
-		s.rxNames = append(s.rxNames, mr.Name)
-		eq, err := ParseEquation(mr.Equation)
-		if err != nil { // Validate already checked it
-			return nil, fmt.Errorf("reaction %q: %w", mr.Name, err)
-		}
-		r := rxn{reversible: eq.Reversible, k: val{p: -1}, kr: val{p: -1}}
+	for ci := range net.Reactions {
+		cr := &net.Reactions[ci]
+		s.rxNames = append(s.rxNames, cr.Name)
+		eq := cr.Equation
+		r := rxn{k: val{p: -1}, kr: val{p: -1}, vmax: val{p: -1}, kcat: val{p: -1}, km: val{p: -1}}
 		if len(eq.Reactants) > 0 {
 			r.comp = s.spComp[s.spIx[eq.Reactants[0].Species]]
 		} else {
 			r.comp = s.spComp[s.spIx[eq.Products[0].Species]]
 		}
-		// Dependencies: each species the rate depends on gets one slot.
-		r.d0 = len(s.depSp)
-		depSlot := func(sp int) int {
-			for d := r.d0; d < len(s.depSp); d++ {
-				if s.depSp[d] == sp {
-					return d
-				}
+		r.d0, r.p0 = len(s.depSp), len(s.depPar)
+		switch cr.Law.(type) {
+		case massAction:
+			b.compileMassAction(&r, cr)
+		case michaelisMenten:
+			b.compileMichaelisMenten(&r, cr)
+		default:
+			if err := b.compileExpression(&r, cr); err != nil {
+				return nil, fmt.Errorf("reaction %q: rate: %w", cr.Name, err)
 			}
-			s.depSp = append(s.depSp, sp)
-			return len(s.depSp) - 1
 		}
-		addTerms := func(ts []Term) (int, int) {
-			a := len(s.terms)
-			for _, t := range ts {
-				sp := s.spIx[t.Species]
-				s.terms = append(s.terms, term{sp: sp, coef: t.Coef, slot: depSlot(sp)})
-			}
-			return a, len(s.terms)
-		}
-		switch mr.Rate.Law {
-		case MassAction:
-			r.kind = kindMassAction
-			r.k = value(mr.Rate.K)
-			r.f0, r.f1 = addTerms(eq.Reactants)
-			r.b0, r.b1 = r.f1, r.f1
-			if eq.Reversible {
-				r.kr = value(mr.Rate.KReverse)
-				r.b0, r.b1 = addTerms(eq.Products)
-			}
-		case MichaelisMenten:
-			r.kind = kindMM
-			r.km = value(mr.Rate.Km)
-			r.sub = s.spIx[eq.Reactants[0].Species]
-			r.subSlot = depSlot(r.sub)
-			if mr.Rate.Kcat.Set {
-				r.useKcat = true
-				r.kcat = value(mr.Rate.Kcat)
-				r.enz = s.spIx[mr.Rate.Enzyme.Name]
-				r.enzSlot = depSlot(r.enz)
-			} else {
-				r.vmax = value(mr.Rate.Vmax)
-			}
-		case Expression:
-			r.kind = kindExpr
-			s.hasExpr = true
-			var wrt []string
-			for _, v := range exprVars(mr.Rate.Expression) {
-				if sp, ok := s.spIx[v]; ok {
-					depSlot(sp)
-					wrt = append(wrt, v)
-				}
-			}
-			rate, ders, err := compileExpr(mr.Rate.Expression, slot, wrt)
-			if err != nil {
-				return nil, fmt.Errorf("reaction %q: rate expression: %w", mr.Name, err)
-			}
-			r.prog = len(s.progs)
-			s.progs = append(s.progs, rate)
-			s.progs = append(s.progs, ders...)
-		}
-		r.d1 = len(s.depSp)
+		r.d1, r.p1 = len(s.depSp), len(s.depPar)
 		// Contributions: net coefficient of each non-fixed species.
 		r.c0 = len(s.cSp)
 		net := map[int]float64{}
@@ -269,11 +303,17 @@ func Compile(m *Model) (*System, error) {
 		r.c1 = len(s.cSp)
 		s.rx = append(s.rx, r)
 	}
+	if err := b.compileAssignments(); err != nil {
+		return nil, err
+	}
 	s.cScale = make([]float64, len(s.cSp))
 	s.updateScales()
 	s.dr = make([]float64, len(s.depSp))
+	s.dp = make([]float64, len(s.depPar))
 	s.buildPattern()
+	s.buildParamPattern()
 	s.jvals = make([]float64, len(s.colIdx))
+	s.pvals = make([]float64, len(s.pRowIdx))
 	return s, nil
 }
 
@@ -365,43 +405,15 @@ func (s *System) load(t float64, y []float64) {
 func (s *System) rate(r *rxn, y []float64) float64 {
 	switch r.kind {
 	case kindMassAction:
-		f := s.get(r.k)
-		for _, tm := range s.terms[r.f0:r.f1] {
-			f *= pw(y[tm.sp], tm.coef)
-		}
-		if r.reversible {
-			b := s.get(r.kr)
-			for _, tm := range s.terms[r.b0:r.b1] {
-				b *= pw(y[tm.sp], tm.coef)
-			}
-			f -= b
-		}
-		return f
+		return s.massActionRate(r, y)
 	case kindMM:
-		v := s.get(r.vmax)
-		if r.useKcat {
-			v = s.get(r.kcat) * y[r.enz]
-		}
-		S := y[r.sub]
-		return v * S / (s.get(r.km) + S)
+		return s.mmRate(r, y)
 	default:
 		return s.progs[r.prog].Eval(s.vars)
 	}
 }
 
-// massActionDeriv adds sign·∂(k·Π y^coef)/∂y into dr.
-func (s *System) massActionDeriv(k float64, ts []term, y []float64, sign float64) {
-	for j, tj := range ts {
-		p := sign * k * dpw(y[tj.sp], tj.coef)
-		for i, ti := range ts {
-			if i != j {
-				p *= pw(y[ti.sp], ti.coef)
-			}
-		}
-		s.dr[tj.slot] += p
-	}
-}
-
+// rateDeriv writes ∂rate/∂y of reaction r into its dependency slots of dr.
 func (s *System) rateDeriv(r *rxn, y []float64) {
 	dr := s.dr[r.d0:r.d1]
 	for i := range dr {
@@ -409,25 +421,44 @@ func (s *System) rateDeriv(r *rxn, y []float64) {
 	}
 	switch r.kind {
 	case kindMassAction:
-		s.massActionDeriv(s.get(r.k), s.terms[r.f0:r.f1], y, 1)
-		if r.reversible {
-			s.massActionDeriv(s.get(r.kr), s.terms[r.b0:r.b1], y, -1)
-		}
+		s.massActionSpeciesDeriv(r, y)
 	case kindMM:
-		km := s.get(r.km)
-		S := y[r.sub]
-		den := km + S
-		v := s.get(r.vmax)
-		if r.useKcat {
-			v = s.get(r.kcat) * y[r.enz]
-			s.dr[r.enzSlot] += s.get(r.kcat) * S / den
-		}
-		s.dr[r.subSlot] += v * km / (den * den)
+		s.mmSpeciesDeriv(r, y)
 	default:
 		for i := range dr {
 			dr[i] = s.progs[r.prog+1+i].Eval(s.vars)
 		}
 	}
+}
+
+// rateParamDeriv writes ∂rate/∂p of reaction r into its parameter slots of
+// dp.
+func (s *System) rateParamDeriv(r *rxn, y []float64) {
+	dp := s.dp[r.p0:r.p1]
+	for i := range dp {
+		dp[i] = 0
+	}
+	switch r.kind {
+	case kindMassAction:
+		s.massActionParamDeriv(r, y)
+	case kindMM:
+		s.mmParamDeriv(r, y)
+	default:
+		first := r.prog + 1 + (r.d1 - r.d0)
+		for i := range dp {
+			dp[i] = s.progs[first+i].Eval(s.vars)
+		}
+	}
+}
+
+// pslot returns the slot in dp of parameter p of reaction r.
+func (s *System) pslot(r *rxn, p int) int {
+	for d := r.p0; d < r.p1; d++ {
+		if s.depPar[d] == p {
+			return d
+		}
+	}
+	panic("network: parameter slot missing") // compileX declared every parameter it reads
 }
 
 // Dim returns the number of species.
@@ -577,6 +608,12 @@ func (s *System) Clone() *System {
 	c.vars = append([]float64(nil), s.vars...)
 	c.cScale = append([]float64(nil), s.cScale...)
 	c.dr = make([]float64, len(s.dr))
+	c.dp = make([]float64, len(s.dp))
+	c.pvals = make([]float64, len(s.pvals))
+	c.asgProgs = make([]program, len(s.asgProgs))
+	for i, p := range s.asgProgs {
+		c.asgProgs[i] = cloneProgram(p)
+	}
 	c.jvals = make([]float64, len(s.jvals))
 	c.progs = make([]program, len(s.progs))
 	for i, p := range s.progs {

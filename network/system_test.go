@@ -1,6 +1,7 @@
 package network
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -177,10 +178,10 @@ func randomModel(rng *rand.Rand) *Model {
 				rhs = sp()
 			}
 			rev := lhs != "" && rhs != "" && rng.IntN(2) == 0
-			rx.Rate = Rate{Law: MassAction, K: Named(par())}
+			rx.Rate = NewRate(MassAction, "k", Named(par()))
 			if rev {
 				rx.Equation = lhs + " <=> " + rhs
-				rx.Rate.KReverse = Number(0.1 + rng.Float64())
+				rx.Rate = rx.Rate.With("k_reverse", Number(0.1+rng.Float64()))
 			} else {
 				rx.Equation = lhs + " -> " + rhs
 			}
@@ -188,9 +189,9 @@ func randomModel(rng *rand.Rand) *Model {
 			s := sp()
 			rx.Equation = s + " -> " + side(2)
 			if rng.IntN(2) == 0 {
-				rx.Rate = Rate{Law: MichaelisMenten, Vmax: Named(par()), Km: Number(0.5)}
+				rx.Rate = NewRate(MichaelisMenten, "vmax", Named(par()), "km", Number(0.5))
 			} else {
-				rx.Rate = Rate{Law: MichaelisMenten, Kcat: Named(par()), Enzyme: Named(sp()), Km: Named(par())}
+				rx.Rate = NewRate(MichaelisMenten, "kcat", Named(par()), "enzyme", Named(sp()), "km", Named(par()))
 			}
 		default:
 			lhs, rhs := side(2), side(2)
@@ -233,7 +234,7 @@ func TestTransportBetweenCompartments(t *testing.T) {
 	m := &Model{
 		Compartments: []Compartment{{Name: "blood", Volume: 5}, {Name: "tissue", Volume: 1}},
 		Species:      []Species{{Name: "A_blood", Initial: 2, Compartment: "blood"}, {Name: "A_tissue", Compartment: "tissue"}},
-		Reactions:    []Reaction{{Name: "move", Equation: "A_blood -> A_tissue", Rate: Rate{Law: MassAction, K: Number(0.3)}}},
+		Reactions:    []Reaction{{Name: "move", Equation: "A_blood -> A_tissue", Rate: NewRate(MassAction, "k", Number(0.3))}},
 	}
 	s := mustCompile(t, m)
 	y := []float64{2, 0.5}
@@ -258,8 +259,8 @@ func TestMichaelisMentenAndSetters(t *testing.T) {
 		Species:    []Species{{Name: "S", Initial: 3}, {Name: "E", Initial: 0.2}, {Name: "P"}},
 		Parameters: []Parameter{{Name: "Vmax", Value: 2}, {Name: "Km", Value: 1.5}, {Name: "kcat", Value: 7}},
 		Reactions: []Reaction{
-			{Name: "a", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Vmax: Named("Vmax"), Km: Named("Km")}},
-			{Name: "b", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Kcat: Named("kcat"), Enzyme: Named("E"), Km: Number(0.5)}},
+			{Name: "a", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "vmax", Named("Vmax"), "km", Named("Km"))},
+			{Name: "b", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "kcat", Named("kcat"), "enzyme", Named("E"), "km", Number(0.5))},
 		},
 	}
 	s := mustCompile(t, m)
@@ -287,7 +288,7 @@ func TestMichaelisMentenAndSetters(t *testing.T) {
 func TestFixedSpecies(t *testing.T) {
 	m := &Model{
 		Species:   []Species{{Name: "B", Initial: 2, Fixed: true}, {Name: "X", Initial: 1}},
-		Reactions: []Reaction{{Name: "r", Equation: "B + X -> 2 X", Rate: Rate{Law: MassAction, K: Number(3)}}},
+		Reactions: []Reaction{{Name: "r", Equation: "B + X -> 2 X", Rate: NewRate(MassAction, "k", Number(3))}},
 	}
 	s := mustCompile(t, m)
 	f := make([]float64, 2)
@@ -324,14 +325,14 @@ func TestNoAllocations(t *testing.T) {
 
 func TestCompileRefusesErrors(t *testing.T) {
 	m := &Model{Species: []Species{{Name: "A", Initial: -1}},
-		Reactions: []Reaction{{Name: "r", Equation: "A -> Q", Rate: Rate{Law: MassAction, K: Number(1)}}}}
+		Reactions: []Reaction{{Name: "r", Equation: "A -> Q", Rate: NewRate(MassAction, "k", Number(1))}}}
 	_, err := Compile(m)
 	if err == nil {
 		t.Fatal("Compile accepted a model with errors")
 	}
-	pe, ok := err.(*ProblemsError)
-	if !ok || len(pe.Problems) != 2 {
-		t.Fatalf("error = %v, want a ProblemsError with 2 problems", err)
+	var pe ErrorList
+	if !errors.As(err, &pe) || len(pe) != 2 {
+		t.Fatalf("error = %v, want an ErrorList with 2 problems", err)
 	}
 	if !strings.Contains(err.Error(), `unknown species "Q"`) || !strings.Contains(err.Error(), "initial concentration -1") {
 		t.Errorf("error text lacks the problems: %v", err)

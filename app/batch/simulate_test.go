@@ -167,7 +167,7 @@ func TestSimulateBadInput(t *testing.T) {
 		args []string
 		want []string // substrings of the message
 	}{
-		{"broken JSON", []string{simTestdata + "broken.json"}, []string{"broken.json", "line 5"}},
+		{"broken JSON", []string{simTestdata + "broken.json"}, []string{"broken.json", "broken.json:5:"}},
 		{"unknown species", []string{simTestdata + "unknown-species.json"}, []string{"unknown-species.json", `reaction "leak"`, "equation", `"Z"`}},
 		{"missing file", []string{simTestdata + "absent.json"}, []string{"absent.json"}},
 		{"no model", nil, []string{"expected one model file"}},

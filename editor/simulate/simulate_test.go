@@ -22,7 +22,7 @@ func decayModel(k, a0, tEnd float64) *network.Model {
 		Species:    []network.Species{{Name: "A", Initial: a0}, {Name: "B"}},
 		Parameters: []network.Parameter{{Name: "k", Value: k}},
 		Reactions: []network.Reaction{{Name: "r", Equation: "A -> B",
-			Rate: network.Rate{Law: network.MassAction, K: network.Named("k")}}},
+			Rate: network.NewRate(network.MassAction, "k", network.Named("k"))}},
 		Simulation: network.Simulation{TEnd: tEnd, Output: network.Output{Points: 51}, RTol: 1e-8, ATol: 1e-12},
 	}
 }

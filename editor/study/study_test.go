@@ -34,7 +34,7 @@ func TestNewTargetUnknown(t *testing.T) {
 		Compartments: []network.Compartment{{Name: "cell", Volume: 1}},
 		Species:      []network.Species{{Name: "A", Initial: 1, Compartment: "cell"}},
 		Parameters:   []network.Parameter{{Name: "k", Value: 1}},
-		Reactions:    []network.Reaction{{Name: "r", Equation: "A ->", Rate: network.Rate{Law: network.MassAction, K: network.Named("k")}}},
+		Reactions:    []network.Reaction{{Name: "r", Equation: "A ->", Rate: network.NewRate(network.MassAction, "k", network.Named("k"))}},
 	}
 	sys, err := network.Compile(m)
 	if err != nil {

@@ -16,7 +16,7 @@ func ExampleSession() {
 		Species:    []network.Species{{Name: "A", Initial: 1}, {Name: "B"}},
 		Parameters: []network.Parameter{{Name: "k", Value: 0.5}},
 		Reactions: []network.Reaction{{Name: "r", Equation: "A -> B",
-			Rate: network.Rate{Law: network.MassAction, K: network.Named("k")}}},
+			Rate: network.NewRate(network.MassAction, "k", network.Named("k"))}},
 		Simulation: network.Simulation{TEnd: 1, Output: network.Output{Points: 2}, RTol: 1e-9},
 	}
 	s, err := tune.NewSession(m)

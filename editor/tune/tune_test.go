@@ -21,7 +21,7 @@ func decayModel(k, a0 float64) *network.Model {
 		Species:      []network.Species{{Name: "A", Initial: a0}, {Name: "B"}},
 		Parameters:   []network.Parameter{{Name: "k", Value: k}},
 		Reactions: []network.Reaction{{Name: "r", Equation: "A -> B",
-			Rate: network.Rate{Law: network.MassAction, K: network.Named("k")}}},
+			Rate: network.NewRate(network.MassAction, "k", network.Named("k"))}},
 		Simulation: network.Simulation{TEnd: 5, Output: network.Output{Points: 51}, RTol: 1e-8, ATol: 1e-12},
 	}
 }
@@ -188,7 +188,7 @@ func TestSessionVolumeAgreesWithCompiling(t *testing.T) {
 		Species:      []network.Species{{Name: "Cb", Initial: 10, Compartment: "blood"}, {Name: "Ct", Compartment: "tissue"}},
 		Parameters:   []network.Parameter{{Name: "q", Value: 0.3}},
 		Reactions: []network.Reaction{{Name: "move", Equation: "Cb -> Ct",
-			Rate: network.Rate{Law: network.MassAction, K: network.Named("q")}}},
+			Rate: network.NewRate(network.MassAction, "k", network.Named("q"))}},
 		Simulation: network.Simulation{TEnd: 10, Output: network.Output{Points: 11}},
 	}
 	s, err := NewSession(m)

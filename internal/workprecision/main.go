@@ -180,16 +180,15 @@ func generated(modules int) *network.Model {
 		r := func(eq string, rate network.Rate) {
 			m.Reactions = append(m.Reactions, network.Reaction{Name: fmt.Sprintf("r%d", len(m.Reactions)), Equation: eq, Rate: rate})
 		}
-		r(fmt.Sprintf("A%d + B%d <=> C%d", i, i, i), network.Rate{Law: network.MassAction,
-			K: network.Named(add(fmt.Sprintf("kon%d", i), dec(2, 6))), KReverse: network.Named(add(fmt.Sprintf("koff%d", i), dec(-1, 2)))})
-		r(fmt.Sprintf("C%d -> D%d + B%d", i, i, i), network.Rate{Law: network.MassAction, K: network.Named(add(fmt.Sprintf("kcat%d", i), dec(-2, 1)))})
+		r(fmt.Sprintf("A%d + B%d <=> C%d", i, i, i), network.NewRate(network.MassAction, "k", network.Named(add(fmt.Sprintf("kon%d", i), dec(2, 6))), "k_reverse", network.Named(add(fmt.Sprintf("koff%d", i), dec(-1, 2)))))
+		r(fmt.Sprintf("C%d -> D%d + B%d", i, i, i), network.NewRate(network.MassAction, "k", network.Named(add(fmt.Sprintf("kcat%d", i), dec(-2, 1)))))
 		if i+1 < modules {
-			r(fmt.Sprintf("D%d -> A%d", i, i+1), network.Rate{Law: network.MassAction, K: network.Named(add(fmt.Sprintf("kt%d", i), dec(-2, 0)))})
+			r(fmt.Sprintf("D%d -> A%d", i, i+1), network.NewRate(network.MassAction, "k", network.Named(add(fmt.Sprintf("kt%d", i), dec(-2, 0)))))
 		}
-		r(fmt.Sprintf("D%d ->", i), network.Rate{Law: network.MassAction, K: network.Named(add(fmt.Sprintf("kd%d", i), dec(-4, -2)))})
+		r(fmt.Sprintf("D%d ->", i), network.NewRate(network.MassAction, "k", network.Named(add(fmt.Sprintf("kd%d", i), dec(-4, -2)))))
 	}
 	m.Reactions = append(m.Reactions, network.Reaction{Name: "feed", Equation: "-> A0",
-		Rate: network.Rate{Law: network.MassAction, K: network.Number(1e-3)}})
+		Rate: network.NewRate(network.MassAction, "k", network.Number(1e-3))})
 	return m
 }
 

@@ -11,8 +11,8 @@ func baseModel() *Model {
 		Species:      []Species{{Name: "E", Initial: 1}, {Name: "S", Initial: 5}, {Name: "ES"}, {Name: "P"}},
 		Parameters:   []Parameter{{Name: "kon", Value: 1}, {Name: "koff", Value: 0.1}, {Name: "kcat", Value: 2}},
 		Reactions: []Reaction{
-			{Name: "bind", Equation: "E + S <=> ES", Rate: Rate{Law: MassAction, K: Named("kon"), KReverse: Named("koff")}},
-			{Name: "cut", Equation: "ES -> E + P", Rate: Rate{Law: MassAction, K: Named("kcat")}},
+			{Name: "bind", Equation: "E + S <=> ES", Rate: NewRate(MassAction, "k", Named("kon"), "k_reverse", Named("koff"))},
+			{Name: "cut", Equation: "ES -> E + P", Rate: NewRate(MassAction, "k", Named("kcat"))},
 		},
 	}
 }
@@ -37,7 +37,10 @@ func TestValidateTable(t *testing.T) {
 		{"unknown species", func(m *Model) { m.Reactions[0].Equation = "E + S <=> Q" }, "reactions", "bind", "equation", 11, `unknown species "Q"; declare it`, Error},
 		{"equation syntax", func(m *Model) { m.Reactions[1].Equation = "ES => E" }, "reactions", "cut", "equation", 4, "unknown arrow", Error},
 		{"parameter as species", func(m *Model) { m.Reactions[1].Equation = "ES -> kon" }, "reactions", "cut", "equation", 7, `"kon" is a parameter, not a species`, Error},
-		{"duplicate across kinds", func(m *Model) { m.Parameters[0].Name = "S"; m.Reactions[0].Rate.K = Number(1) }, "parameters", "S", "name", 0, `already used by species 2`, Error},
+		{"duplicate across kinds", func(m *Model) {
+			m.Parameters[0].Name = "S"
+			m.Reactions[0].Rate = m.Reactions[0].Rate.With("k", Number(1))
+		}, "parameters", "S", "name", 0, `already used by species 2`, Error},
 		{"duplicate reaction", func(m *Model) { m.Reactions[1].Name = "bind" }, "reactions", "bind", "name", 0, "already used by reaction 1", Error},
 		{"bad name", func(m *Model) { m.Species[3].Name = "P 2"; m.Reactions[1].Equation = "ES -> E" }, "species", "P 2", "name", 0, "not a valid name", Error},
 		{"reserved t", func(m *Model) { m.Parameters = append(m.Parameters, Parameter{Name: "t", Value: 1}) }, "parameters", "t", "name", 0, "reserved for time", Error},
@@ -46,33 +49,33 @@ func TestValidateTable(t *testing.T) {
 		{"negative initial", func(m *Model) { m.Species[1].Initial = -2 }, "species", "S", "initial", 0, "initial concentration -2", Error},
 		{"zero volume", func(m *Model) { m.Compartments[0].Volume = 0 }, "compartments", "cell", "volume", 0, "expected a positive number", Error},
 		{"unknown compartment", func(m *Model) { m.Species[0].Compartment = "nucleus" }, "species", "E", "compartment", 0, `unknown compartment "nucleus"; expected one of cell`, Error},
-		{"missing k_reverse", func(m *Model) { m.Reactions[0].Rate.KReverse = Value{} }, "reactions", "bind", "rate.k_reverse", 0, "mass_action on a reversible reaction needs k_reverse", Error},
-		{"extra k_reverse", func(m *Model) { m.Reactions[1].Rate.KReverse = Number(1) }, "reactions", "cut", "rate.k_reverse", 0, "reversible reactions only", Error},
-		{"missing k", func(m *Model) { m.Reactions[1].Rate.K = Value{} }, "reactions", "cut", "rate.k", 0, "mass_action needs k", Error},
-		{"unknown parameter", func(m *Model) { m.Reactions[1].Rate.K = Named("kk") }, "reactions", "cut", "rate.k", 0, `unknown parameter "kk"`, Error},
-		{"negative constant", func(m *Model) { m.Reactions[1].Rate.K = Number(-1) }, "reactions", "cut", "rate.k", 0, "k = -1 is not allowed", Error},
+		{"missing k_reverse", func(m *Model) { m.Reactions[0].Rate = m.Reactions[0].Rate.With("k_reverse", Value{}) }, "reactions", "bind", "rate.k_reverse", 0, "mass_action on a reversible reaction needs k_reverse", Error},
+		{"extra k_reverse", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k_reverse", Number(1)) }, "reactions", "cut", "rate.k_reverse", 0, "reversible reactions only", Error},
+		{"missing k", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Value{}) }, "reactions", "cut", "rate.k", 0, "mass_action needs k", Error},
+		{"unknown parameter", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Named("kk")) }, "reactions", "cut", "rate.k", 0, `unknown parameter "kk"`, Error},
+		{"negative constant", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Number(-1)) }, "reactions", "cut", "rate.k", 0, "k = -1 is not allowed", Error},
 		{"unknown law", func(m *Model) { m.Reactions[1].Rate.Law = "hill" }, "reactions", "cut", "rate.law", 0, `unknown rate law "hill"; expected one of mass_action, michaelis_menten, expression`, Error},
 		{"missing law", func(m *Model) { m.Reactions[1].Rate = Rate{} }, "reactions", "cut", "rate.law", 0, "rate law is missing", Error},
 		{"mm both", func(m *Model) {
-			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Vmax: Number(1), Kcat: Named("kcat"), Enzyme: Named("E"), Km: Number(1)}}
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "vmax", Number(1), "kcat", Named("kcat"), "enzyme", Named("E"), "km", Number(1))}
 		}, "reactions", "cut", "rate", 0, "either vmax, or kcat with enzyme, not both", Error},
 		{"mm reversible", func(m *Model) {
-			m.Reactions[1] = Reaction{Name: "cut", Equation: "S <=> P", Rate: Rate{Law: MichaelisMenten, Vmax: Number(1), Km: Number(1)}}
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S <=> P", Rate: NewRate(MichaelisMenten, "vmax", Number(1), "km", Number(1))}
 		}, "reactions", "cut", "equation", 0, "irreversible reactions only", Error},
 		{"mm two substrates", func(m *Model) {
-			m.Reactions[1] = Reaction{Name: "cut", Equation: "S + ES -> P", Rate: Rate{Law: MichaelisMenten, Vmax: Number(1), Km: Number(1)}}
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S + ES -> P", Rate: NewRate(MichaelisMenten, "vmax", Number(1), "km", Number(1))}
 		}, "reactions", "cut", "equation", 0, "exactly one substrate", Error},
 		{"mm enzyme not species", func(m *Model) {
-			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Kcat: Named("kcat"), Enzyme: Named("kon"), Km: Number(1)}}
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "kcat", Named("kcat"), "enzyme", Named("kon"), "km", Number(1))}
 		}, "reactions", "cut", "rate.enzyme", 0, `enzyme "kon" is not a species`, Error},
 		{"mm missing km", func(m *Model) {
-			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Vmax: Number(1)}}
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "vmax", Number(1))}
 		}, "reactions", "cut", "rate.km", 0, "michaelis_menten needs km", Error},
 		{"mm kcat no enzyme", func(m *Model) {
-			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Kcat: Number(1), Km: Number(1)}}
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "kcat", Number(1), "km", Number(1))}
 		}, "reactions", "cut", "rate.enzyme", 0, "needs enzyme", Error},
 		{"mm extra k", func(m *Model) {
-			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: Rate{Law: MichaelisMenten, Vmax: Number(1), Km: Number(1), K: Number(2)}}
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "vmax", Number(1), "km", Number(1), "k", Number(2))}
 		}, "reactions", "cut", "rate.k", 0, "michaelis_menten does not use k", Error},
 		{"expr syntax", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kcat*(ES"} }, "reactions", "cut", "rate.expression", 6, "", Error},
 		{"expr unknown name", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kcat*ESS"} }, "reactions", "cut", "rate.expression", 6, `unknown name "ESS"`, Error},
@@ -118,7 +121,7 @@ func TestValidateCollectsAll(t *testing.T) {
 }
 
 func TestProblemString(t *testing.T) {
-	p := Problem{Section: "reactions", Item: "bind", Field: "equation", Col: 9, Message: `unknown species "Q"; declare it under species or fix the name`}
+	p := Problem{Pos: Pos{Section: "reactions", Item: "bind", Field: "equation", Col: 9}, Message: `unknown species "Q"; declare it under species or fix the name`}
 	want := `reaction "bind", equation, column 9: unknown species "Q"; declare it under species or fix the name`
 	if p.String() != want {
 		t.Errorf("String() = %q, want %q", p.String(), want)

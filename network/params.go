@@ -1,0 +1,135 @@
+package network
+
+import (
+	"sort"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// The parameter Jacobian ∂f/∂q has one column per parameter, in model
+// order, then one per compartment volume. Derivatives by initial
+// concentrations are not here: they enter a sensitivity analysis through
+// its initial condition.
+
+// ParamDim returns the number of columns of the parameter Jacobian: the
+// number of parameters plus the number of compartments.
+func (s *System) ParamDim() int { return len(s.parNames) + len(s.volumes) }
+
+// buildParamPattern builds the CSC pattern of ∂f/∂q and the positions of
+// each (contribution, parameter dependency) pair and of each contribution's
+// volume entries.
+func (s *System) buildParamPattern() {
+	np := len(s.parNames)
+	cols := make([]map[int]bool, s.ParamDim())
+	for j := range cols {
+		cols[j] = map[int]bool{}
+	}
+	for _, r := range s.rx {
+		for c := r.c0; c < r.c1; c++ {
+			i := s.cSp[c]
+			for d := r.p0; d < r.p1; d++ {
+				cols[s.depPar[d]][i] = true
+			}
+			if sc := s.spComp[i]; sc != r.comp {
+				cols[np+r.comp][i] = true
+				cols[np+sc][i] = true
+			}
+		}
+	}
+	s.pColPtr = make([]int, len(cols)+1)
+	s.pRowIdx = nil
+	for j, col := range cols {
+		rows := make([]int, 0, len(col))
+		for i := range col {
+			rows = append(rows, i)
+		}
+		sort.Ints(rows)
+		s.pRowIdx = append(s.pRowIdx, rows...)
+		s.pColPtr[j+1] = len(s.pRowIdx)
+	}
+	at := func(i, j int) int {
+		rows := s.pRowIdx[s.pColPtr[j]:s.pColPtr[j+1]]
+		return s.pColPtr[j] + sort.SearchInts(rows, i)
+	}
+	s.ppos = s.ppos[:0]
+	s.vpos = make([]int, 2*len(s.cSp))
+	for ri := range s.rx {
+		r := &s.rx[ri]
+		r.q0 = len(s.ppos)
+		for c := r.c0; c < r.c1; c++ {
+			i := s.cSp[c]
+			for d := r.p0; d < r.p1; d++ {
+				s.ppos = append(s.ppos, at(i, s.depPar[d]))
+			}
+			s.vpos[2*c], s.vpos[2*c+1] = -1, -1
+			if sc := s.spComp[i]; sc != r.comp {
+				s.vpos[2*c] = at(i, np+r.comp)
+				s.vpos[2*c+1] = at(i, np+sc)
+			}
+		}
+	}
+}
+
+// ParamJacobianPattern returns the sparsity pattern of ∂f/∂q in
+// compressed sparse column form: the rows of column j are
+// rowIdx[colPtr[j]:colPtr[j+1]], ascending. Columns are the parameters in
+// model order, then the compartment volumes. The caller must not modify
+// the slices.
+func (s *System) ParamJacobianPattern() (colPtr, rowIdx []int) { return s.pColPtr, s.pRowIdx }
+
+// ParamJacobianCSC writes the values of ∂f/∂q at (t, y) into vals, in the
+// order of ParamJacobianPattern. It allocates nothing.
+func (s *System) ParamJacobianCSC(t float64, y []float64, vals []float64) {
+	s.load(t, y)
+	for i := range vals[:len(s.pRowIdx)] {
+		vals[i] = 0
+	}
+	for ri := range s.rx {
+		r := &s.rx[ri]
+		if r.c0 == r.c1 {
+			continue
+		}
+		if r.p1 > r.p0 {
+			s.rateParamDeriv(r, y)
+			q := r.q0
+			for c := r.c0; c < r.c1; c++ {
+				sc := s.cScale[c]
+				for d := r.p0; d < r.p1; d++ {
+					vals[s.ppos[q]] += sc * s.dp[d]
+					q++
+				}
+			}
+		}
+		rate, have := 0.0, false
+		for c := r.c0; c < r.c1; c++ {
+			if s.vpos[2*c] < 0 {
+				continue
+			}
+			if !have {
+				rate, have = s.rate(r, y), true
+			}
+			// f_i += cNet·V_r/V_i·rate: by V_r it is cNet/V_i·rate, by V_i
+			// it is −cNet·V_r/V_i²·rate.
+			vi := s.volumes[s.spComp[s.cSp[c]]]
+			vals[s.vpos[2*c]] += s.cNet[c] / vi * rate
+			vals[s.vpos[2*c+1]] -= s.cScale[c] / vi * rate
+		}
+	}
+}
+
+// ParamJacobian writes ∂f/∂q at (t, y) into dfdp, a Dim()×ParamDim()
+// matrix (an empty dfdp is sized first): columns are the parameters in
+// model order, then the compartment volumes.
+func (s *System) ParamJacobian(t float64, y []float64, dfdp *mat.Dense) {
+	if dfdp.IsEmpty() {
+		dfdp.ReuseAs(s.n, s.ParamDim())
+	}
+	s.ParamJacobianCSC(t, y, s.pvals)
+	dfdp.Zero()
+	raw := dfdp.RawMatrix()
+	for j := 0; j+1 < len(s.pColPtr); j++ {
+		for p := s.pColPtr[j]; p < s.pColPtr[j+1]; p++ {
+			raw.Data[s.pRowIdx[p]*raw.Stride+j] = s.pvals[p]
+		}
+	}
+}
