@@ -248,7 +248,7 @@ func (d *Document) Uses(k Kind, name string) int {
 }
 
 // NameTaken reports whether name is used by a species, parameter,
-// compartment or reaction, and by which kind.
+// compartment, assignment or reaction, and by which kind.
 func (d *Document) NameTaken(name string) (Kind, bool) {
 	m := d.model
 	for _, s := range m.Species {
@@ -264,6 +264,11 @@ func (d *Document) NameTaken(name string) (Kind, bool) {
 	for _, c := range m.Compartments {
 		if c.Name == name {
 			return KindCompartment, true
+		}
+	}
+	for _, a := range m.Assignments {
+		if a.Name == name {
+			return KindAssignment, true
 		}
 	}
 	for _, r := range m.Reactions {

@@ -18,6 +18,7 @@ const (
 	TabReactions    = "Reactions"
 	TabSpecies      = "Species"
 	TabParameters   = "Parameters"
+	TabAssignments  = "Assignments"
 	TabCompartments = "Compartments"
 	TabRun          = "Run settings"
 )
@@ -85,10 +86,11 @@ func New(doc *Document, win fyne.Window) *Editor {
 	e.panes["species"] = newRowPane(e, speciesKind, newSpeciesForm(e))
 	e.panes["parameters"] = newRowPane(e, parameterKind, newParameterForm(e))
 	e.panes["compartments"] = newRowPane(e, compartmentKind, newCompartmentForm(e))
+	e.panes["assignments"] = newRowPane(e, assignmentKind, newAssignmentForm(e))
 	e.run = newRunForm(e)
 	e.tabs = container.NewAppTabs()
 	for _, t := range []struct{ title, section string }{
-		{TabReactions, "reactions"}, {TabSpecies, "species"}, {TabParameters, "parameters"}, {TabCompartments, "compartments"},
+		{TabReactions, "reactions"}, {TabSpecies, "species"}, {TabParameters, "parameters"}, {TabAssignments, "assignments"}, {TabCompartments, "compartments"},
 	} {
 		item := container.NewTabItem(t.title, e.panes[t.section].content)
 		e.tabOf[t.section] = item

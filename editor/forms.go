@@ -504,6 +504,38 @@ func (f *parameterForm) load(m *network.Model, i int) {
 	f.loads.run(m, i)
 }
 
+// assignmentForm edits one assignment.
+type assignmentForm struct {
+	formBase
+	loads loader
+}
+
+func newAssignmentForm(ed *Editor) *assignmentForm {
+	f := &assignmentForm{formBase: formBase{ed: ed, section: "assignments", box: container.NewVBox()}}
+	name, load := f.nameInput(KindAssignment, func(m *network.Model, i int) string { return m.Assignments[i].Name })
+	f.addField("Name", "name", name)
+	f.loads = append(f.loads, load)
+	ex, load := f.textInput("expression", "edit assignment", func(m *network.Model, i int) *string { return &m.Assignments[i].Expression })
+	ex.SetPlaceHolder("e.g. E + ES, or ES/(E + ES)")
+	f.addField("Expression", "expression", ex)
+	f.loads = append(f.loads, load)
+	unit, load := f.textInput("unit", "edit unit", func(m *network.Model, i int) *string { return &m.Assignments[i].Unit })
+	unit.SetPlaceHolder("label only, e.g. uM")
+	f.addField("Unit", "unit", unit)
+	f.loads = append(f.loads, load)
+	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &m.Assignments[i].Note })
+	f.addField("Note", "note", note)
+	f.loads = append(f.loads, load)
+	return f
+}
+
+func (f *assignmentForm) load(m *network.Model, i int) {
+	f.loading = true
+	defer func() { f.loading = false }()
+	f.row = i
+	f.loads.run(m, i)
+}
+
 // compartmentForm edits one compartment.
 type compartmentForm struct {
 	formBase

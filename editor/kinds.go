@@ -75,6 +75,26 @@ var parameterKind = rowKind{
 	swap:   func(m *network.Model, i, j int) { m.Parameters[i], m.Parameters[j] = m.Parameters[j], m.Parameters[i] },
 }
 
+var assignmentKind = rowKind{
+	section: "assignments", noun: "assignment", newName: "q",
+	emptyTip: "No assignments yet. An assignment names a quantity computed from species and parameters, such as E_total = E + ES; it is plotted and exported beside the species and can be used in rate expressions.",
+	count:    func(m *network.Model) int { return len(m.Assignments) },
+	name:     func(m *network.Model, i int) string { return m.Assignments[i].Name },
+	summary:  func(m *network.Model, i int) string { return "= " + m.Assignments[i].Expression },
+	add: func(d *Document, m *network.Model, at int) {
+		m.Assignments = slices.Insert(m.Assignments, at, network.Assignment{Name: freshIn(m, "q")})
+	},
+	dup: func(m *network.Model, i int, name string) {
+		a := m.Assignments[i]
+		a.Name = name
+		m.Assignments = slices.Insert(m.Assignments, i+1, a)
+	},
+	remove: func(m *network.Model, i int) { m.Assignments = slices.Delete(m.Assignments, i, i+1) },
+	swap: func(m *network.Model, i, j int) {
+		m.Assignments[i], m.Assignments[j] = m.Assignments[j], m.Assignments[i]
+	},
+}
+
 var compartmentKind = rowKind{
 	section: "compartments", noun: "compartment", newName: "cell",
 	emptyTip: "No compartments: every species lives in one implicit compartment of volume 1. Add compartments to give species different volumes.",

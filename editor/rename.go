@@ -16,6 +16,7 @@ const (
 	KindParameter
 	KindCompartment
 	KindReaction
+	KindAssignment
 )
 
 // String returns the plain word for k ("species", "parameter", …).
@@ -29,6 +30,8 @@ func (k Kind) String() string {
 		return "compartment"
 	case KindReaction:
 		return "reaction"
+	case KindAssignment:
+		return "assignment"
 	}
 	return "item"
 }
@@ -140,6 +143,12 @@ func renameInModel(m *network.Model, k Kind, old, new string, everywhere bool) i
 		for i := range m.Compartments {
 			if m.Compartments[i].Name == old {
 				m.Compartments[i].Name = new
+			}
+		}
+	case KindAssignment:
+		for i := range m.Assignments {
+			if m.Assignments[i].Name == old {
+				m.Assignments[i].Name = new
 			}
 		}
 	case KindReaction:

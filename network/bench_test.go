@@ -148,3 +148,22 @@ func BenchmarkLinearSolvers(b *testing.B) {
 		}
 	}
 }
+
+func BenchmarkParamJacobianCSC1000(b *testing.B) {
+	s, y := benchSystem(b)
+	_, ri := s.ParamJacobianPattern()
+	vals := make([]float64, len(ri))
+	b.ReportAllocs()
+	for b.Loop() {
+		s.ParamJacobianCSC(1, y, vals)
+	}
+}
+
+func BenchmarkParamJacobian1000(b *testing.B) {
+	s, y := benchSystem(b)
+	var jac mat.Dense
+	b.ReportAllocs()
+	for b.Loop() {
+		s.ParamJacobian(1, y, &jac)
+	}
+}

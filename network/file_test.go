@@ -2,6 +2,7 @@ package network
 
 import (
 	"bytes"
+	"errors"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -185,4 +186,63 @@ func FuzzRead(f *testing.F) {
 		_, ci := s.JacobianPattern()
 		s.JacobianCSR(0, y, make([]float64, len(ci)))
 	})
+}
+
+// A file with three mistakes in three sections gives three messages at
+// once, each with its line and column.
+func TestReadReportsEveryProblem(t *testing.T) {
+	src := `{
+  "format": "kinetarium.model/1",
+  "species": [{"name": "A", "initial": "lots"}],
+  "parameters": [{"name": "k", "vlaue": 1}],
+  "reactions": [{"name": "r", "equation": "A ->", "rate": {"law": "mass_action", "k": true}}]
+}`
+	_, err := Read(strings.NewReader(src), "three.json")
+	var l ErrorList
+	if !errors.As(err, &l) {
+		t.Fatalf("error %v is not an ErrorList", err)
+	}
+	want := []string{
+		`three.json:3:40: species[0].initial: expected a number, found text`,
+		`three.json:4:32: parameters[0]: unknown key "vlaue"`,
+		`three.json:5:87: reactions[0].rate.k: expected a parameter name in quotes or a number, found true/false`,
+	}
+	if len(l) != len(want) {
+		t.Fatalf("%d problems, want %d:\n%v", len(l), len(want), err)
+	}
+	for i, w := range want {
+		if !strings.HasPrefix(l[i].String(), w) {
+			t.Errorf("problem %d = %q, want it to start with %q", i, l[i].String(), w)
+		}
+	}
+}
+
+// Check's problems on a model read from a file carry the line and column
+// of the item or field they are about.
+func TestCheckLocatesProblemsInFile(t *testing.T) {
+	src := `{
+  "format": "kinetarium.model/1",
+  "species": [{"name": "A", "initial": -1}],
+  "parameters": [{"name": "k", "value": 1}],
+  "reactions": [{"name": "r", "equation": "A -> Q", "rate": {"law": "mass_action", "k": "kk"}}]
+}`
+	m, err := Read(strings.NewReader(src), "m.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, l := Check(m)
+	want := []string{
+		`m.json:3:40: species "A", initial: initial concentration -1`,
+		`m.json:5:49: reaction "r", equation, column 6: unknown species "Q"`,
+		`m.json:5:89: reaction "r", rate.k: unknown parameter "kk"`,
+	}
+	errs := l.Errors()
+	if len(errs) != len(want) {
+		t.Fatalf("%d errors, want %d:\n%v", len(errs), len(want), errs)
+	}
+	for i, w := range want {
+		if !strings.HasPrefix(errs[i].String(), w) {
+			t.Errorf("error %d = %q, want it to start with %q", i, errs[i].String(), w)
+		}
+	}
 }
