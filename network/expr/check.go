@@ -1,61 +1,172 @@
 package expr
 
-import "fmt"
+import (
+	"fmt"
+	"math"
+)
 
-// Check returns the semantic problems of n, in order of appearance: division
-// by a literal zero, a literal argument outside the domain of log, log10 or
-// sqrt, an unknown function and a wrong number of function arguments. The
-// last two are already reported by Parse; Check repeats them for trees built
-// by other means. Each problem carries the column of the offending literal or
-// function name (0 for nodes built without a source position).
+// Check returns the problems of n, in order of appearance.
+//
+// Semantic problems are division by a literal zero and a literal argument
+// outside the domain of log, log10 or sqrt. The other problems can only
+// occur in trees not made by Parse: a missing (nil) node, an operator that
+// is not one of + - * / ^ (or - for a Unary), an unknown function, a wrong
+// number of function arguments, a variable name that is not an identifier
+// or is the name of a function, and a number that is not finite. A tree
+// that has none of these prints to text that Parse reads back as an equal
+// tree, unless it calls sign or ifle (see Call).
+//
+// Each problem carries the column of the offending node (the literal, the
+// variable, the operator or the function name; for a missing node, its
+// parent's), which is 0 for nodes built without a source position.
 func Check(n Node) []*Error {
+	return check(n, true)
+}
+
+// check returns the problems of n: all of them if all is set, otherwise only
+// those that make n meaningless to Simplify, Diff and Compile (a missing
+// node, an unknown operator or function, a wrong number of arguments and a
+// node type of another package).
+func check(n Node, all bool) []*Error {
 	var errs []*Error
-	walk(n, func(m Node) {
+	report := func(col int, format string, args ...any) {
+		errs = append(errs, &Error{Col: col, Msg: fmt.Sprintf(format, args...)})
+	}
+	if isNil(n) {
+		report(0, "missing expression: the node is nil")
+		return errs
+	}
+	Walk(n, func(m Node) bool {
 		switch m := m.(type) {
-		case *binNode:
-			if m.op == '/' {
-				if v, ok := Const(m.r); ok && v == 0 {
-					errs = append(errs, &Error{Col: colOf(m.r), Msg: "division by zero: the divisor is the literal 0; expected a nonzero divisor"})
+		case *Number:
+			if all && (math.IsInf(m.Value, 0) || math.IsNaN(m.Value)) {
+				report(m.Col, "number %v is not finite; expected a finite literal", m.Value)
+			}
+		case *Variable:
+			if all {
+				if !isIdent(m.Name) {
+					report(m.Col, "variable name %q is not a name of the form [A-Za-z_][A-Za-z0-9_]*", m.Name)
+				} else if _, ok := lookupFunc(m.Name); ok {
+					report(m.Col, "variable name %q is the name of a function; expected another name", m.Name)
 				}
 			}
-		case *callNode:
-			if int(m.fn) >= len(funcs) {
-				errs = append(errs, &Error{Col: m.col, Msg: fmt.Sprintf("unknown function; known: %s", knownFuncs())})
-				return
+		case *Unary:
+			if m.Op != OpSub {
+				report(m.Col, "unknown unary operator %v; expected - (negation)", m.Op)
 			}
-			f := funcs[m.fn]
-			if len(m.args) != f.arity {
-				errs = append(errs, &Error{Col: m.col, Msg: fmt.Sprintf("%s takes %s, found %d", f.name, argWords(f.arity), len(m.args))})
-				return
+			if isNil(m.X) {
+				report(m.Col, "negation has no operand (nil)")
 			}
-			v, ok := Const(m.args[0])
+		case *Binary:
+			if !m.Op.binary() {
+				report(m.Col, "unknown operator %v; expected one of + - * / ^", m.Op)
+			}
+			if isNil(m.L) {
+				report(m.Col, "operator %v has no left operand (nil)", m.Op)
+			}
+			if isNil(m.R) {
+				report(m.Col, "operator %v has no right operand (nil)", m.Op)
+			}
+			if all && m.Op == OpDiv {
+				if v, ok := Const(m.R); ok && v == 0 {
+					report(colOf(m.R), "division by zero: the divisor is the literal 0; expected a nonzero divisor")
+				}
+			}
+		case *Call:
+			id, ok := funcByName(m.Func)
 			if !ok {
-				return
+				report(m.Col, "%s", unknownFuncMsg(m.Func))
+				return true
+			}
+			f := funcs[id]
+			if len(m.Args) != f.arity {
+				report(m.Col, "%s", arityMsg(f.name, f.arity, len(m.Args)))
+				return true
+			}
+			for i, a := range m.Args {
+				if isNil(a) {
+					report(m.Col, "%s", nilArgMsg(f.name, i))
+				}
+			}
+			if !all {
+				return true
+			}
+			v, ok := Const(m.Args[0])
+			if !ok {
+				return true
 			}
 			switch {
-			case (m.fn == fnLog || m.fn == fnLog10) && v <= 0:
-				errs = append(errs, &Error{Col: colOf(m.args[0]), Msg: fmt.Sprintf("%s of %s is undefined; expected a positive argument", f.name, formatNum(v))})
-			case m.fn == fnSqrt && v < 0:
-				errs = append(errs, &Error{Col: colOf(m.args[0]), Msg: fmt.Sprintf("sqrt of %s is undefined; expected a non-negative argument", formatNum(v))})
+			case (id == fnLog || id == fnLog10) && v <= 0:
+				report(colOf(m.Args[0]), "%s of %s is undefined; expected a positive argument", f.name, formatNum(v))
+			case id == fnSqrt && v < 0:
+				report(colOf(m.Args[0]), "sqrt of %s is undefined; expected a non-negative argument", formatNum(v))
 			}
+		default:
+			report(0, "unsupported node type %T; expected a node of package expr", m)
 		}
+		return true
 	})
 	return errs
 }
 
+// wellFormed reports whether n has none of the problems that make it
+// meaningless to Simplify, Diff and Compile. It does not allocate for trees
+// that have none.
+func wellFormed(n Node) bool {
+	if isNil(n) {
+		return false
+	}
+	switch n := n.(type) {
+	case *Number, *Variable:
+		return true
+	case *Unary:
+		return n.Op == OpSub && wellFormed(n.X)
+	case *Binary:
+		return n.Op.binary() && wellFormed(n.L) && wellFormed(n.R)
+	case *Call:
+		id, ok := funcByName(n.Func)
+		if !ok || len(n.Args) != funcs[id].arity {
+			return false
+		}
+		for _, a := range n.Args {
+			if !wellFormed(a) {
+				return false
+			}
+		}
+		return true
+	}
+	return false
+}
+
+// isIdent reports whether s has the form [A-Za-z_][A-Za-z0-9_]*.
+func isIdent(s string) bool {
+	if s == "" || isDigit(rune(s[0])) {
+		return false
+	}
+	for _, c := range s {
+		if !isNameRune(c) {
+			return false
+		}
+	}
+	return true
+}
+
 // colOf returns the source column of a node, or 0 if it has none.
 func colOf(n Node) int {
+	if isNil(n) {
+		return 0
+	}
 	switch n := n.(type) {
-	case *numNode:
-		return n.col
-	case *varNode:
-		return n.col
-	case *negNode:
-		return n.col
-	case *binNode:
-		return n.col
-	case *callNode:
-		return n.col
+	case *Number:
+		return n.Col
+	case *Variable:
+		return n.Col
+	case *Unary:
+		return n.Col
+	case *Binary:
+		return n.Col
+	case *Call:
+		return n.Col
 	}
 	return 0
 }

@@ -125,9 +125,16 @@ type Program struct {
 // Compile reports an error naming the first variable slot does not know.
 // Integer powers x^2, x^3, x^-1, ... become multiplications and x^0.5
 // becomes sqrt(x).
+//
+// A tree with a problem that makes it meaningless (a missing node, an
+// unknown operator or function, a wrong number of arguments; see Check) is
+// an error naming the first problem and its column.
 func Compile(n Node, slot func(name string) (int, bool)) (*Program, error) {
+	if !wellFormed(n) {
+		return nil, fmt.Errorf("compile: %w", check(n, false)[0])
+	}
 	c := &compiler{slot: slot}
-	if err := c.emit(Simplify(n)); err != nil {
+	if err := c.emit(simplify(n)); err != nil {
 		return nil, err
 	}
 	return &Program{code: c.code, stack: make([]float64, c.maxDepth), slots: c.slots}, nil
@@ -157,38 +164,38 @@ func (c *compiler) add(op opcode, i uint32, v float64) {
 
 // emitLeaves emits l op r as a single load when both are leaves and such an
 // instruction exists, reporting whether it did.
-func (c *compiler) emitLeaves(op byte, l, r Node) (bool, error) {
-	lv, lVar := l.(*varNode)
-	rv, rVar := r.(*varNode)
-	ln, lNum := l.(*numNode)
-	rn, rNum := r.(*numNode)
+func (c *compiler) emitLeaves(op Op, l, r Node) (bool, error) {
+	lv, lVar := l.(*Variable)
+	rv, rVar := r.(*Variable)
+	ln, lNum := l.(*Number)
+	rn, rNum := r.(*Number)
 	var code instr
 	switch {
 	case lVar && rVar:
-		vv := map[byte]opcode{'+': opAddVV, '-': opSubVV, '*': opMulVV, '/': opDivVV}
+		vv := map[Op]opcode{OpAdd: opAddVV, OpSub: opSubVV, OpMul: opMulVV, OpDiv: opDivVV}
 		o, ok := vv[op]
 		if !ok {
 			return false, nil
 		}
 		code.op = o
 	case lNum && rVar:
-		cv := map[byte]opcode{'+': opAddCV, '-': opSubCV, '*': opMulCV, '/': opDivCV}
+		cv := map[Op]opcode{OpAdd: opAddCV, OpSub: opSubCV, OpMul: opMulCV, OpDiv: opDivCV}
 		o, ok := cv[op]
 		if !ok {
 			return false, nil
 		}
-		code = instr{op: o, c: ln.v}
+		code = instr{op: o, c: ln.Value}
 		lv, rv = rv, nil
 	case lVar && rNum:
 		switch op {
-		case '+':
-			code = instr{op: opAddCV, c: rn.v}
-		case '-':
-			code = instr{op: opAddCV, c: -rn.v} // v - c == -c + v exactly
-		case '*':
-			code = instr{op: opMulCV, c: rn.v}
-		case '/':
-			code = instr{op: opDivVC, c: rn.v}
+		case OpAdd:
+			code = instr{op: opAddCV, c: rn.Value}
+		case OpSub:
+			code = instr{op: opAddCV, c: -rn.Value} // v - c == -c + v exactly
+		case OpMul:
+			code = instr{op: opMulCV, c: rn.Value}
+		case OpDiv:
+			code = instr{op: opDivVC, c: rn.Value}
 		default:
 			return false, nil
 		}
@@ -217,13 +224,13 @@ func (c *compiler) push() {
 
 func (c *compiler) pop(k int) { c.depth -= k }
 
-func (c *compiler) varSlot(v *varNode) (uint32, error) {
-	i, ok := c.slot(v.name)
+func (c *compiler) varSlot(v *Variable) (uint32, error) {
+	i, ok := c.slot(v.Name)
 	if !ok {
-		return 0, fmt.Errorf("compile: unknown variable %q at column %d", v.name, v.col)
+		return 0, fmt.Errorf("compile: unknown variable %q at column %d", v.Name, v.Col)
 	}
 	if i < 0 || i > math.MaxInt32-1 {
-		return 0, fmt.Errorf("compile: variable %q mapped to invalid slot %d; expected a non-negative index", v.name, i)
+		return 0, fmt.Errorf("compile: variable %q mapped to invalid slot %d; expected a non-negative index", v.Name, i)
 	}
 	c.slots = max(c.slots, i+1)
 	return uint32(i), nil
@@ -231,33 +238,33 @@ func (c *compiler) varSlot(v *varNode) (uint32, error) {
 
 // Operator codes indexed by (operator, operand kind).
 var (
-	stackOps = map[byte]opcode{'+': opAdd, '-': opSub, '*': opMul, '/': opDiv, '^': opPow}
-	varOps   = map[byte]opcode{'+': opAddV, '-': opSubV, '*': opMulV, '/': opDivV, '^': opPowV}
-	rvarOps  = map[byte]opcode{'+': opAddV, '-': opRSubV, '*': opMulV, '/': opRDivV, '^': opRPowV}
-	constOps = map[byte]opcode{'+': opAddC, '*': opMulC, '/': opDivC, '^': opPowC}
-	rconOps  = map[byte]opcode{'+': opAddC, '-': opRSubC, '*': opMulC, '/': opRDivC, '^': opRPowC}
+	stackOps = map[Op]opcode{OpAdd: opAdd, OpSub: opSub, OpMul: opMul, OpDiv: opDiv, OpPow: opPow}
+	varOps   = map[Op]opcode{OpAdd: opAddV, OpSub: opSubV, OpMul: opMulV, OpDiv: opDivV, OpPow: opPowV}
+	rvarOps  = map[Op]opcode{OpAdd: opAddV, OpSub: opRSubV, OpMul: opMulV, OpDiv: opRDivV, OpPow: opRPowV}
+	constOps = map[Op]opcode{OpAdd: opAddC, OpMul: opMulC, OpDiv: opDivC, OpPow: opPowC}
+	rconOps  = map[Op]opcode{OpAdd: opAddC, OpSub: opRSubC, OpMul: opMulC, OpDiv: opRDivC, OpPow: opRPowC}
 	callOps  = [numFuncs]opcode{fnExp: opExp, fnLog: opLog, fnLog10: opLog10, fnSqrt: opSqrt,
 		fnAbs: opAbs, fnMin: opMin, fnMax: opMax, fnPow: opPow, fnSign: opSign, fnIfLE: opIfLE}
 )
 
 func (c *compiler) emit(n Node) error {
 	switch n := n.(type) {
-	case *numNode:
+	case *Number:
 		c.push()
-		c.add(opConst, 0, n.v)
-	case *varNode:
+		c.add(opConst, 0, n.Value)
+	case *Variable:
 		i, err := c.varSlot(n)
 		if err != nil {
 			return err
 		}
 		c.push()
 		c.add(opVar, i, 0)
-	case *negNode:
-		if err := c.emit(n.x); err != nil {
+	case *Unary:
+		if err := c.emit(n.X); err != nil {
 			return err
 		}
 		c.add(opNeg, 0, 0)
-	case *binNode:
+	case *Binary:
 		pr, err := c.product(n)
 		if err != nil {
 			return err
@@ -268,76 +275,74 @@ func (c *compiler) emit(n Node) error {
 			return nil
 		}
 		return c.emitBin(n)
-	case *callNode:
-		if int(n.fn) >= len(funcs) || len(n.args) != funcs[n.fn].arity {
-			return fmt.Errorf("compile: malformed call at column %d", n.col)
-		}
-		for _, a := range n.args {
+	case *Call:
+		id, _ := funcByName(n.Func) // known, with the right arity: n is well formed
+		for _, a := range n.Args {
 			if err := c.emit(a); err != nil {
 				return err
 			}
 		}
-		c.add(callOps[n.fn], 0, 0)
-		c.pop(len(n.args) - 1)
+		c.add(callOps[id], 0, 0)
+		c.pop(len(n.Args) - 1)
 	default:
 		return fmt.Errorf("compile: unsupported node %T", n)
 	}
 	return nil
 }
 
-func (c *compiler) emitBin(n *binNode) error {
-	if n.op == '^' {
-		if v, ok := numOf(n.r); ok && c.emitPowConst(n.l, v) {
+func (c *compiler) emitBin(n *Binary) error {
+	if n.Op == OpPow {
+		if v, ok := numOf(n.R); ok && c.emitPowConst(n.L, v) {
 			return nil
 		}
 	}
 	if ok, err := c.emitMM(n); ok || err != nil {
 		return err
 	}
-	if ok, err := c.emitLeaves(n.op, n.l, n.r); ok || err != nil {
+	if ok, err := c.emitLeaves(n.Op, n.L, n.R); ok || err != nil {
 		return err
 	}
 	// Right operand a leaf: compute the left, then apply an operand form.
-	switch r := n.r.(type) {
-	case *varNode:
-		if err := c.emit(n.l); err != nil {
+	switch r := n.R.(type) {
+	case *Variable:
+		if err := c.emit(n.L); err != nil {
 			return err
 		}
 		i, err := c.varSlot(r)
 		if err != nil {
 			return err
 		}
-		c.add(varOps[n.op], i, 0)
+		c.add(varOps[n.Op], i, 0)
 		return nil
-	case *numNode:
-		if err := c.emit(n.l); err != nil {
+	case *Number:
+		if err := c.emit(n.L); err != nil {
 			return err
 		}
-		switch n.op {
-		case '-':
-			c.add(opAddC, 0, -r.v) // x - c == x + (-c) exactly in IEEE arithmetic
+		switch n.Op {
+		case OpSub:
+			c.add(opAddC, 0, -r.Value) // x - c == x + (-c) exactly in IEEE arithmetic
 		default:
-			c.add(constOps[n.op], 0, r.v)
+			c.add(constOps[n.Op], 0, r.Value)
 		}
 		return nil
 	}
 	// Left operand a leaf: compute the right, then apply a reversed form.
-	switch l := n.l.(type) {
-	case *varNode:
+	switch l := n.L.(type) {
+	case *Variable:
 		i, err := c.varSlot(l)
 		if err != nil {
 			return err
 		}
-		if err := c.emit(n.r); err != nil {
+		if err := c.emit(n.R); err != nil {
 			return err
 		}
-		c.add(rvarOps[n.op], i, 0)
+		c.add(rvarOps[n.Op], i, 0)
 		return nil
-	case *numNode:
-		if err := c.emit(n.r); err != nil {
+	case *Number:
+		if err := c.emit(n.R); err != nil {
 			return err
 		}
-		c.add(rconOps[n.op], 0, l.v)
+		c.add(rconOps[n.Op], 0, l.Value)
 		return nil
 	}
 	if ok, err := c.emitTwoTerms(n); ok || err != nil {
@@ -345,25 +350,25 @@ func (c *compiler) emitBin(n *binNode) error {
 	}
 	// An operand a product of leaves: compute the other side, then apply
 	// the operation with the product.
-	if ops, ok := productOps[n.op]; ok {
-		done, err := c.emitWithProduct(n.l, n.r, ops)
+	if ops, ok := productOps[n.Op]; ok {
+		done, err := c.emitWithProduct(n.L, n.R, ops)
 		if done || err != nil {
 			return err
 		}
 	}
-	if ops, ok := rproductOps[n.op]; ok {
-		done, err := c.emitWithProduct(n.r, n.l, ops)
+	if ops, ok := rproductOps[n.Op]; ok {
+		done, err := c.emitWithProduct(n.R, n.L, ops)
 		if done || err != nil {
 			return err
 		}
 	}
-	if err := c.emit(n.l); err != nil {
+	if err := c.emit(n.L); err != nil {
 		return err
 	}
-	if err := c.emit(n.r); err != nil {
+	if err := c.emit(n.R); err != nil {
 		return err
 	}
-	c.add(stackOps[n.op], 0, 0)
+	c.add(stackOps[n.Op], 0, 0)
 	c.pop(1)
 	return nil
 }
@@ -371,20 +376,20 @@ func (c *compiler) emitBin(n *binNode) error {
 // emitMM emits n as one instruction when it has the form A*B/(C + D) of the
 // Michaelis–Menten law, with A, B and at least one of C and D variables,
 // reporting whether it did.
-func (c *compiler) emitMM(n *binNode) (bool, error) {
-	sum, ok := n.r.(*binNode)
-	if n.op != '/' || !ok || sum.op != '+' {
+func (c *compiler) emitMM(n *Binary) (bool, error) {
+	sum, ok := n.R.(*Binary)
+	if n.Op != OpDiv || !ok || sum.Op != OpAdd {
 		return false, nil
 	}
-	pr, err := c.product(n.l)
+	pr, err := c.product(n.L)
 	if err != nil || pr.shape != prodVV {
 		return false, err
 	}
 	in := instr{op: opMM, i: pr.i, j: pr.j}
-	lv, lVar := sum.l.(*varNode)
-	rv, rVar := sum.r.(*varNode)
-	ln, lNum := sum.l.(*numNode)
-	rn, rNum := sum.r.(*numNode)
+	lv, lVar := sum.L.(*Variable)
+	rv, rVar := sum.R.(*Variable)
+	ln, lNum := sum.L.(*Number)
+	rn, rNum := sum.R.(*Number)
 	switch {
 	case lVar && rVar:
 		if in.k, err = c.varSlot(lv); err != nil {
@@ -394,12 +399,12 @@ func (c *compiler) emitMM(n *binNode) (bool, error) {
 			return false, err
 		}
 	case lNum && rVar:
-		in.op, in.c = opMMC, ln.v
+		in.op, in.c = opMMC, ln.Value
 		if in.k, err = c.varSlot(rv); err != nil {
 			return false, err
 		}
 	case lVar && rNum: // C + c == c + C exactly
-		in.op, in.c = opMMC, rn.v
+		in.op, in.c = opMMC, rn.Value
 		if in.k, err = c.varSlot(lv); err != nil {
 			return false, err
 		}
@@ -442,34 +447,34 @@ func termOf(pr productForm, sign float64) term {
 // emitTwoTerms emits n as one instruction after its innermost operand when n
 // has the form (X ± t1) ± t2 with products t1 and t2 of a term kind,
 // reporting whether it did.
-func (c *compiler) emitTwoTerms(n *binNode) (bool, error) {
-	inner, ok := n.l.(*binNode)
-	if n.op != '+' && n.op != '-' || !ok || inner.op != '+' && inner.op != '-' {
+func (c *compiler) emitTwoTerms(n *Binary) (bool, error) {
+	inner, ok := n.L.(*Binary)
+	if n.Op != OpAdd && n.Op != OpSub || !ok || inner.Op != OpAdd && inner.Op != OpSub {
 		return false, nil
 	}
-	sign := func(op byte) float64 {
-		if op == '-' {
+	sign := func(op Op) float64 {
+		if op == OpSub {
 			return -1
 		}
 		return 1
 	}
-	p1, err := c.product(inner.r)
+	p1, err := c.product(inner.R)
 	if err != nil {
 		return false, err
 	}
-	t1 := termOf(p1, sign(inner.op))
+	t1 := termOf(p1, sign(inner.Op))
 	if t1.kind == 0 {
 		return false, nil
 	}
-	p2, err := c.product(n.r)
+	p2, err := c.product(n.R)
 	if err != nil {
 		return false, err
 	}
-	t2 := termOf(p2, sign(n.op))
+	t2 := termOf(p2, sign(n.Op))
 	if t2.kind == 0 {
 		return false, nil
 	}
-	if err := c.emit(inner.l); err != nil {
+	if err := c.emit(inner.L); err != nil {
 		return false, err
 	}
 	c.code = append(c.code, instr{op: opAdd2T11 + opcode(4*(t1.kind-1)+t2.kind-1),
@@ -511,13 +516,13 @@ const (
 // on the right (x op product) and on the left (product op x).
 var (
 	pushProduct = [...]opcode{prodVVV: opMulVVV, prodCVV: opMulCVV, prodVSq: 0}
-	productOps  = map[byte]map[shape]opcode{
-		'+': {prodVV: opAddMulVV, prodVVV: opAddMulVVV, prodCV: opAddMulCV, prodCVV: opAddMulCVV, prodVSq: opAddMulVSq},
-		'-': {prodVV: opSubMulVV, prodVVV: opSubMulVVV, prodCV: opSubMulCV, prodCVV: opSubMulCVV, prodVSq: opSubMulVSq},
+	productOps  = map[Op]map[shape]opcode{
+		OpAdd: {prodVV: opAddMulVV, prodVVV: opAddMulVVV, prodCV: opAddMulCV, prodCVV: opAddMulCVV, prodVSq: opAddMulVSq},
+		OpSub: {prodVV: opSubMulVV, prodVVV: opSubMulVVV, prodCV: opSubMulCV, prodCVV: opSubMulCVV, prodVSq: opSubMulVSq},
 	}
-	rproductOps = map[byte]map[shape]opcode{
-		'+': productOps['+'], // addition commutes exactly
-		'/': {prodVV: opRDivMulVV, prodCV: opRDivMulCV},
+	rproductOps = map[Op]map[shape]opcode{
+		OpAdd: productOps[OpAdd], // addition commutes exactly
+		OpDiv: {prodVV: opRDivMulVV, prodCV: opRDivMulCV},
 	}
 )
 
@@ -534,12 +539,12 @@ type productForm struct {
 func (c *compiler) product(n Node) (productForm, error) {
 	var fs []Node // factors, last first
 	for {
-		b, isMul := n.(*binNode)
-		if !isMul || b.op != '*' {
+		b, isMul := n.(*Binary)
+		if !isMul || b.Op != OpMul {
 			break
 		}
-		fs = append(fs, b.r)
-		n = b.l
+		fs = append(fs, b.R)
+		n = b.L
 	}
 	fs = append(fs, n)
 	slices.Reverse(fs)
@@ -547,27 +552,27 @@ func (c *compiler) product(n Node) (productForm, error) {
 	if len(fs) < 2 || len(fs) > 3 {
 		return pr, nil
 	}
-	if num, ok := fs[1].(*numNode); ok {
-		if _, ok := fs[0].(*varNode); !ok {
+	if num, ok := fs[1].(*Number); ok {
+		if _, ok := fs[0].(*Variable); !ok {
 			return pr, nil
 		}
 		fs[0], fs[1] = num, fs[0]
 	}
-	if num, ok := fs[0].(*numNode); ok {
-		pr.c, pr.shape = num.v, prodCV
+	if num, ok := fs[0].(*Number); ok {
+		pr.c, pr.shape = num.Value, prodCV
 		fs = fs[1:]
 	}
 	var slots [3]uint32
 	for m, f := range fs {
-		v, ok := f.(*varNode)
+		v, ok := f.(*Variable)
 		if !ok {
 			// The last factor of A*B^2 may be a square.
-			b, isBin := f.(*binNode)
-			if m != 1 || len(fs) != 2 || pr.shape != notProduct || !isBin || b.op != '^' {
+			b, isBin := f.(*Binary)
+			if m != 1 || len(fs) != 2 || pr.shape != notProduct || !isBin || b.Op != OpPow {
 				return productForm{}, nil
 			}
-			e, isNum := numOf(b.r)
-			if v, ok = b.l.(*varNode); !ok || !isNum || e != 2 {
+			e, isNum := numOf(b.R)
+			if v, ok = b.L.(*Variable); !ok || !isNum || e != 2 {
 				return productForm{}, nil
 			}
 			pr.shape = prodVSq

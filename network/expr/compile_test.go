@@ -13,15 +13,15 @@ import (
 // instructions must give bit-identical results.
 func evalAsCompiled(n Node, env func(string) float64) float64 {
 	switch n := n.(type) {
-	case *numNode:
-		return n.v
-	case *varNode:
-		return env(n.name)
-	case *negNode:
-		return -evalAsCompiled(n.x, env)
-	case *binNode:
-		l := evalAsCompiled(n.l, env)
-		if e, ok := numOf(n.r); ok && n.op == '^' {
+	case *Number:
+		return n.Value
+	case *Variable:
+		return env(n.Name)
+	case *Unary:
+		return -evalAsCompiled(n.X, env)
+	case *Binary:
+		l := evalAsCompiled(n.L, env)
+		if e, ok := numOf(n.R); ok && n.Op == OpPow {
 			switch {
 			case e == 2:
 				return l * l
@@ -37,13 +37,14 @@ func evalAsCompiled(n Node, env func(string) float64) float64 {
 				return powi(l, int(e))
 			}
 		}
-		return binop(n.op, l, evalAsCompiled(n.r, env))
-	case *callNode:
-		a := make([]float64, len(n.args))
-		for i, m := range n.args {
+		return binop(n.Op, l, evalAsCompiled(n.R, env))
+	case *Call:
+		a := make([]float64, len(n.Args))
+		for i, m := range n.Args {
 			a[i] = evalAsCompiled(m, env)
 		}
-		return apply(n.fn, a)
+		id, _ := funcByName(n.Func)
+		return apply(id, a)
 	}
 	return math.NaN()
 }

@@ -11,71 +11,80 @@ import "math"
 // is 0 at x = 0; min and max differentiate to the derivative of the branch
 // they choose (on a tie, min follows its first argument and max its second),
 // expressed with the internal function ifle(a, b, x, y) that yields x when
-// a <= b and y otherwise.
+// a <= b and y otherwise (see Call).
+//
+// A tree with a problem that makes it meaningless (a missing node, an
+// unknown operator or function, a wrong number of arguments; see Check) is
+// returned unchanged, so that Check and Compile report the problem in the
+// derivative too rather than it yielding a wrong number.
 func Diff(n Node, name string) Node {
-	return diff(Simplify(n), name)
+	if !wellFormed(n) {
+		return n
+	}
+	return diff(simplify(n), name)
 }
 
 func diff(n Node, name string) Node {
 	if !dependsOn(n, name) {
-		return &numNode{v: 0}
+		return &Number{Value: 0}
 	}
 	switch n := n.(type) {
-	case *varNode:
-		return &numNode{v: 1} // dependsOn guarantees n.name == name
-	case *negNode:
-		return neg(diff(n.x, name))
-	case *binNode:
-		u, v := n.l, n.r
-		switch n.op {
-		case '+':
+	case *Variable:
+		return &Number{Value: 1} // dependsOn guarantees n.name == name
+	case *Unary:
+		return neg(diff(n.X, name))
+	case *Binary:
+		u, v := n.L, n.R
+		switch n.Op {
+		case OpAdd:
 			return add(diff(u, name), diff(v, name))
-		case '-':
+		case OpSub:
 			return sub(diff(u, name), diff(v, name))
-		case '*':
+		case OpMul:
 			return add(mul(diff(u, name), v), mul(u, diff(v, name)))
-		case '/':
+		case OpDiv:
 			du, dv := diff(u, name), diff(v, name)
 			if isNum(dv, 0) {
 				return div(du, v)
 			}
 			// (u/v)' = u'/v - u*v'/v^2
-			return sub(div(du, v), div(mul(u, dv), pow(v, &numNode{v: 2})))
-		case '^':
+			return sub(div(du, v), div(mul(u, dv), pow(v, &Number{Value: 2})))
+		case OpPow:
 			return diffPow(u, v, name)
 		}
-	case *callNode:
+	case *Call:
 		return diffCall(n, name)
 	}
-	return &numNode{v: math.NaN()} // unreachable for trees of this package
+	return &Number{Value: math.NaN()} // unreachable: n is well formed
 }
 
 func diffPow(u, v Node, name string) Node {
 	du := diff(u, name)
 	if !dependsOn(v, name) {
 		// v*u^(v-1)*u'
-		return mul(mul(v, pow(u, sub(v, &numNode{v: 1}))), du)
+		return mul(mul(v, pow(u, sub(v, &Number{Value: 1}))), du)
 	}
 	// u^v*log(u)*v', plus v*u^(v-1)*u' when the base depends on name too.
 	dv := diff(v, name)
 	d := mul(mul(pow(u, v), call(fnLog, u)), dv)
 	if dependsOn(u, name) {
-		d = add(mul(mul(v, pow(u, sub(v, &numNode{v: 1}))), du), d)
+		d = add(mul(mul(v, pow(u, sub(v, &Number{Value: 1}))), du), d)
 	}
 	return d
 }
 
-func diffCall(n *callNode, name string) Node {
-	a := n.args
-	switch n.fn {
+func diffCall(n *Call, name string) Node {
+	a := n.Args
+	id, _ := funcByName(n.Func)
+	switch id {
 	case fnExp:
 		return mul(n, diff(a[0], name))
 	case fnLog:
 		return div(diff(a[0], name), a[0])
 	case fnLog10:
-		return div(diff(a[0], name), mul(a[0], &numNode{v: math.Ln10}))
+		return div(diff(a[0], name), mul(a[0], &Number{Value: math.Ln10}))
 	case fnSqrt:
-		return div(diff(a[0], name), mul(&numNode{v: 2}, n))
+		return div(diff(a[0], name), mul(&Number{Value: 2}, n))
 	case fnAbs:
 		return mul(call(fnSign, a[0]), diff(a[0], name))
 	case fnMin:
@@ -85,9 +94,9 @@ func diffCall(n *callNode, name string) Node {
 	case fnPow:
 		return diffPow(a[0], a[1], name)
 	case fnSign:
-		return &numNode{v: 0}
+		return &Number{Value: 0}
 	case fnIfLE:
 		return call(fnIfLE, a[0], a[1], diff(a[2], name), diff(a[3], name))
 	}
-	return &numNode{v: math.NaN()} // unreachable for trees of this package
+	return &Number{Value: math.NaN()} // unreachable: n is well formed
 }

@@ -39,17 +39,17 @@ func genPos(r *rand.Rand, depth int) Node {
 	case 4:
 		return Pow(a(), genAny(r, depth-1)) // variable exponent
 	case 5:
-		return &callNode{fn: fnExp, args: []Node{Div(genAny(r, depth-1), a())}}
+		return &Call{Func: "exp", Args: []Node{Div(genAny(r, depth-1), a())}}
 	case 6:
-		return &callNode{fn: fnSqrt, args: []Node{a()}}
+		return &Call{Func: "sqrt", Args: []Node{a()}}
 	case 7:
-		return &callNode{fn: fnPow, args: []Node{a(), Num(0.5 + r.Float64())}}
+		return &Call{Func: "pow", Args: []Node{a(), Num(0.5 + r.Float64())}}
 	case 8:
-		return &callNode{fn: fnAbs, args: []Node{genAny(r, depth-1)}}
+		return &Call{Func: "abs", Args: []Node{genAny(r, depth-1)}}
 	case 9:
-		return &callNode{fn: fnMin, args: []Node{a(), a()}}
+		return &Call{Func: "min", Args: []Node{a(), a()}}
 	default:
-		return &callNode{fn: fnMax, args: []Node{a(), a()}}
+		return &Call{Func: "max", Args: []Node{a(), a()}}
 	}
 }
 
@@ -66,9 +66,9 @@ func genAny(r *rand.Rand, depth int) Node {
 	case 1:
 		return Neg(a())
 	case 2:
-		return &callNode{fn: fnLog, args: []Node{a()}}
+		return &Call{Func: "log", Args: []Node{a()}}
 	case 3:
-		return &callNode{fn: fnLog10, args: []Node{a()}}
+		return &Call{Func: "log10", Args: []Node{a()}}
 	case 4:
 		return Mul(genAny(r, depth-1), a())
 	default:
@@ -80,17 +80,18 @@ func genAny(r *rand.Rand, depth int) Node {
 // point where it switches branches.
 func nearKink(n Node, env func(string) float64, tol float64) bool {
 	near := false
-	walk(n, func(m Node) {
-		c, ok := m.(*callNode)
+	Walk(n, func(m Node) bool {
+		c, ok := m.(*Call)
 		if !ok {
-			return
+			return true
 		}
-		switch c.fn {
-		case fnAbs:
-			near = near || math.Abs(evalTree(c.args[0], env)) < tol
-		case fnMin, fnMax:
-			near = near || math.Abs(evalTree(c.args[0], env)-evalTree(c.args[1], env)) < tol
+		switch c.Func {
+		case "abs":
+			near = near || math.Abs(evalTree(c.Args[0], env)) < tol
+		case "min", "max":
+			near = near || math.Abs(evalTree(c.Args[0], env)-evalTree(c.Args[1], env)) < tol
 		}
+		return true
 	})
 	return near
 }
@@ -223,7 +224,7 @@ func TestDiffRateLaws(t *testing.T) {
 // size counts the nodes of n.
 func size(n Node) int {
 	k := 0
-	walk(n, func(Node) { k++ })
+	Walk(n, func(Node) bool { k++; return true })
 	return k
 }
 

@@ -1,4 +1,7 @@
-// Package expr parses, differentiates, simplifies and compiles rate expressions.
+// Package expr parses, prints, inspects, differentiates, simplifies and
+// compiles rate expressions.
+//
+// # Syntax
 //
 // An expression is written in infix form with the operators + - * / and ^
 // (power, right-associative, binding tighter than unary minus so that -x^2
@@ -6,100 +9,191 @@
 // variable names [A-Za-z_][A-Za-z0-9_]*, and calls of the functions
 // exp, log (natural), log10, sqrt, abs, min, max and pow.
 //
-// Parse turns source text into a tree of Nodes; Check looks for semantic
-// problems such as division by a literal zero; Diff forms exact symbolic
-// derivatives; Simplify folds constants and removes neutral terms; Compile
-// turns a tree into a Program whose Eval method evaluates it without
-// allocating.
+// # Trees
+//
+// Parse turns source text into a tree of Nodes. The tree is open: its node
+// types [Number], [Variable], [Unary], [Binary] and [Call] are exported, so
+// other packages can read a tree with a type switch and [Walk], rewrite it
+// with [Substitute] or build one with the builders [Num], [Var], [Neg], [Add],
+// [Sub], [Mul], [Div], [Pow] and [Apply], and compare trees with [Equal]. A
+// node's String method prints it back in the syntax above; for every tree
+// that Check accepts and that calls no derivative-only function (see [Call]),
+// Parse of the printed text gives an Equal tree.
+//
+// # Analysis
+//
+// Check looks for problems such as division by a literal zero or, in trees
+// built by hand, a missing operand; Diff forms exact symbolic derivatives;
+// Simplify folds constants and removes neutral terms; Compile turns a tree
+// into a Program whose Eval method evaluates it without allocating.
 package expr
 
 import (
 	"math"
 	"strconv"
-	"strings"
 )
 
-// Node is an expression tree. Trees are immutable: functions in this package
-// never modify a Node they are given, and subtrees may be shared.
+// Node is an expression tree: one of *Number, *Variable, *Unary, *Binary or
+// *Call. The set is closed so that Diff, Simplify and Compile handle every
+// tree.
 //
-// String returns the infix form. For a tree returned by Parse, or built from
-// Num, Var and the arithmetic builders, the string parses back to a tree with
-// the same String. Derivatives may contain internal helper functions
-// (sign, ifle) that Parse does not accept; they print under those names.
+// Trees are immutable by convention: functions in this package never modify
+// a Node they are given, and results may share subtrees with their
+// arguments. Code that wants a changed tree builds new nodes (see
+// Substitute) rather than assigning to fields of nodes it did not create.
+//
+// String returns the infix form; see the package documentation for when it
+// parses back to an equal tree.
 type Node interface {
 	String() string
 	node() // restricts implementations to this package
 }
 
-type numNode struct {
-	v   float64
-	col int
+// A Number is a numeric literal. Parse gives a negative literal for a minus
+// sign written directly before a number, as in -2 or x^-1.5, but not for
+// -(2) or for -2^2, which is -(2^2).
+type Number struct {
+	Value float64
+	Col   int // 1-based column of the literal (of its minus sign if negative); 0 if built
 }
 
-type varNode struct {
-	name string
-	col  int
+// A Variable is a reference to a named quantity.
+type Variable struct {
+	Name string // of the form [A-Za-z_][A-Za-z0-9_]*, not a function name
+	Col  int    // 1-based column of the name; 0 if built
 }
 
-type negNode struct {
-	x   Node
-	col int
+// A Unary is a unary operation. Negation (OpSub) is the only one; a unary
+// plus in the source leaves no node.
+type Unary struct {
+	Op  Op
+	X   Node
+	Col int // 1-based column of the operator; 0 if built
 }
 
-type binNode struct {
-	op   byte // one of + - * / ^
-	l, r Node
-	col  int
+// A Binary is a binary operation L Op R.
+type Binary struct {
+	Op   Op
+	L, R Node
+	Col  int // 1-based column of the operator; 0 if built
 }
 
-type callNode struct {
-	fn   fnID
-	args []Node
-	col  int
+// A Call is a call of the function named Func with the arguments Args.
+//
+// Func is one of the functions of the syntax, exp, log, log10, sqrt and abs
+// (1 argument each), min, max and pow (2 arguments each), or one of the two
+// functions that derivatives use and Parse does not accept:
+//
+//	sign(x)          -1, 0 or 1 with the sign of x (0 for 0, NaN for NaN);
+//	                 the derivative of abs(x) is sign(x)*x'
+//	ifle(a, b, x, y) x when a <= b, otherwise y; the derivatives of
+//	                 min and max choose their branch with it
+//
+// Check, Diff, Simplify, Compile and Apply accept all ten functions.
+type Call struct {
+	Func string
+	Args []Node
+	Col  int // 1-based column of the function name; 0 if built
 }
 
-func (*numNode) node()  {}
-func (*varNode) node()  {}
-func (*negNode) node()  {}
-func (*binNode) node()  {}
-func (*callNode) node() {}
+func (*Number) node()   {}
+func (*Variable) node() {}
+func (*Unary) node()    {}
+func (*Binary) node()   {}
+func (*Call) node()     {}
+
+// Op is an arithmetic operator, written as its character.
+type Op byte
+
+// The operators. OpSub is also the operator of negation.
+const (
+	OpAdd Op = '+'
+	OpSub Op = '-'
+	OpMul Op = '*'
+	OpDiv Op = '/'
+	OpPow Op = '^'
+)
+
+// String returns the operator's character, or Op(n) for a byte that is not
+// an operator.
+func (op Op) String() string {
+	if op.binary() {
+		return string(rune(op))
+	}
+	return "Op(" + strconv.Itoa(int(op)) + ")"
+}
+
+// binary reports whether op is one of the binary operators.
+func (op Op) binary() bool {
+	switch op {
+	case OpAdd, OpSub, OpMul, OpDiv, OpPow:
+		return true
+	}
+	return false
+}
 
 // Num returns a number literal. It should be finite for String to re-parse
-// to the same string.
-func Num(v float64) Node { return &numNode{v: v} }
+// to an equal tree (Check reports a literal that is not).
+func Num(v float64) Node { return &Number{Value: v} }
 
 // Var returns a reference to the variable name. The name should be an
-// identifier of the form [A-Za-z_][A-Za-z0-9_]* for String to re-parse.
-func Var(name string) Node { return &varNode{name: name} }
+// identifier of the form [A-Za-z_][A-Za-z0-9_]* and not a function name for
+// String to re-parse (Check reports a name that is not).
+func Var(name string) Node { return &Variable{Name: name} }
 
 // Neg returns -x.
-func Neg(x Node) Node { return &negNode{x: x} }
+func Neg(x Node) Node { return &Unary{Op: OpSub, X: x} }
 
 // Add returns a + b. Like the other builders it does not simplify.
-func Add(a, b Node) Node { return &binNode{op: '+', l: a, r: b} }
+func Add(a, b Node) Node { return &Binary{Op: OpAdd, L: a, R: b} }
 
 // Sub returns a - b.
-func Sub(a, b Node) Node { return &binNode{op: '-', l: a, r: b} }
+func Sub(a, b Node) Node { return &Binary{Op: OpSub, L: a, R: b} }
 
 // Mul returns a * b.
-func Mul(a, b Node) Node { return &binNode{op: '*', l: a, r: b} }
+func Mul(a, b Node) Node { return &Binary{Op: OpMul, L: a, R: b} }
 
 // Div returns a / b.
-func Div(a, b Node) Node { return &binNode{op: '/', l: a, r: b} }
+func Div(a, b Node) Node { return &Binary{Op: OpDiv, L: a, R: b} }
 
 // Pow returns a ^ b.
-func Pow(a, b Node) Node { return &binNode{op: '^', l: a, r: b} }
+func Pow(a, b Node) Node { return &Binary{Op: OpPow, L: a, R: b} }
+
+// Apply returns the call name(args...). It reports an error if name is not
+// one of the functions listed at Call, if the number of arguments is not the
+// function's, or if an argument is nil. It accepts the derivative-only
+// functions sign and ifle, so that any tree Diff returns can be rebuilt. The
+// call keeps its own copy of args.
+func Apply(name string, args ...Node) (Node, error) {
+	id, ok := funcByName(name)
+	if !ok {
+		return nil, &Error{Msg: unknownFuncMsg(name)}
+	}
+	if want := funcs[id].arity; len(args) != want {
+		return nil, &Error{Msg: arityMsg(name, want, len(args))}
+	}
+	for i, a := range args {
+		if isNil(a) {
+			return nil, &Error{Msg: nilArgMsg(name, i)}
+		}
+	}
+	return &Call{Func: name, Args: append([]Node(nil), args...)}, nil
+}
 
 // Const reports whether n is a number literal, and if so its value.
 // A negated literal such as -(2) counts as the literal -2.
 // After Simplify, a derivative that is identically zero is the literal 0.
 func Const(n Node) (float64, bool) {
 	switch n := n.(type) {
-	case *numNode:
-		return n.v, true
-	case *negNode:
-		if v, ok := Const(n.x); ok {
-			return -v, true
+	case *Number:
+		if n != nil {
+			return n.Value, true
+		}
+	case *Unary:
+		if n != nil && n.Op == OpSub {
+			if v, ok := Const(n.X); ok {
+				return -v, true
+			}
 		}
 	}
 	return 0, false
@@ -110,42 +204,50 @@ func Const(n Node) (float64, bool) {
 func Vars(n Node) []string {
 	var names []string
 	seen := map[string]bool{}
-	walk(n, func(m Node) {
-		if v, ok := m.(*varNode); ok && !seen[v.name] {
-			seen[v.name] = true
-			names = append(names, v.name)
+	Walk(n, func(m Node) bool {
+		if v, ok := m.(*Variable); ok && !seen[v.Name] {
+			seen[v.Name] = true
+			names = append(names, v.Name)
 		}
+		return true
 	})
 	return names
 }
 
-// walk calls f for every node of n in pre-order, left to right.
-func walk(n Node, f func(Node)) {
-	f(n)
+// isNil reports whether n is missing: a nil interface or a nil pointer of
+// one of the node types.
+func isNil(n Node) bool {
 	switch n := n.(type) {
-	case *negNode:
-		walk(n.x, f)
-	case *binNode:
-		walk(n.l, f)
-		walk(n.r, f)
-	case *callNode:
-		for _, a := range n.args {
-			walk(a, f)
-		}
+	case nil:
+		return true
+	case *Number:
+		return n == nil
+	case *Variable:
+		return n == nil
+	case *Unary:
+		return n == nil
+	case *Binary:
+		return n == nil
+	case *Call:
+		return n == nil
 	}
+	return false
 }
 
 // dependsOn reports whether the variable name occurs in n.
 func dependsOn(n Node, name string) bool {
 	switch n := n.(type) {
-	case *varNode:
-		return n.name == name
-	case *negNode:
-		return dependsOn(n.x, name)
-	case *binNode:
-		return dependsOn(n.l, name) || dependsOn(n.r, name)
-	case *callNode:
-		for _, a := range n.args {
+	case *Variable:
+		return n != nil && n.Name == name
+	case *Unary:
+		return n != nil && dependsOn(n.X, name)
+	case *Binary:
+		return n != nil && (dependsOn(n.L, name) || dependsOn(n.R, name))
+	case *Call:
+		if n == nil {
+			return false
+		}
+		for _, a := range n.Args {
 			if dependsOn(a, name) {
 				return true
 			}
@@ -154,136 +256,11 @@ func dependsOn(n Node, name string) bool {
 	return false
 }
 
-// equal reports whether a and b are structurally identical trees.
-func equal(a, b Node) bool {
-	switch a := a.(type) {
-	case *numNode:
-		b, ok := b.(*numNode)
-		return ok && (a.v == b.v || math.IsNaN(a.v) && math.IsNaN(b.v)) && math.Signbit(a.v) == math.Signbit(b.v)
-	case *varNode:
-		b, ok := b.(*varNode)
-		return ok && a.name == b.name
-	case *negNode:
-		b, ok := b.(*negNode)
-		return ok && equal(a.x, b.x)
-	case *binNode:
-		b, ok := b.(*binNode)
-		return ok && a.op == b.op && equal(a.l, b.l) && equal(a.r, b.r)
-	case *callNode:
-		b, ok := b.(*callNode)
-		if !ok || a.fn != b.fn || len(a.args) != len(b.args) {
-			return false
-		}
-		for i := range a.args {
-			if !equal(a.args[i], b.args[i]) {
-				return false
-			}
-		}
-		return true
+// sameNumber reports whether a and b are the same float64 value: equal, with
+// the same sign (so 0 and -0 differ), or both NaN.
+func sameNumber(a, b float64) bool {
+	if math.IsNaN(a) || math.IsNaN(b) {
+		return math.IsNaN(a) && math.IsNaN(b)
 	}
-	return false
-}
-
-// Precedence levels used when printing.
-const (
-	precAdd   = 1 // + -
-	precMul   = 2 // * /
-	precUnary = 3 // unary minus, negative literals
-	precPow   = 4 // ^
-	precAtom  = 5 // numbers, names, calls, parenthesised expressions
-)
-
-func prec(n Node) int {
-	switch n := n.(type) {
-	case *numNode:
-		if math.Signbit(n.v) {
-			return precUnary
-		}
-	case *negNode:
-		return precUnary
-	case *binNode:
-		switch n.op {
-		case '+', '-':
-			return precAdd
-		case '*', '/':
-			return precMul
-		case '^':
-			return precPow
-		}
-	}
-	return precAtom
-}
-
-func (n *numNode) String() string  { return formatNum(n.v) }
-func (n *varNode) String() string  { return n.name }
-func (n *negNode) String() string  { return toString(n) }
-func (n *binNode) String() string  { return toString(n) }
-func (n *callNode) String() string { return toString(n) }
-
-func formatNum(v float64) string {
-	switch {
-	case math.IsInf(v, 1):
-		return "(1/0)"
-	case math.IsInf(v, -1):
-		return "(-1/0)"
-	case math.IsNaN(v):
-		return "(0/0)"
-	}
-	return strconv.FormatFloat(v, 'g', -1, 64)
-}
-
-func toString(n Node) string {
-	var b strings.Builder
-	write(&b, n)
-	return b.String()
-}
-
-// writeMin writes n, in parentheses when its precedence is below min.
-func writeMin(b *strings.Builder, n Node, min int) {
-	if prec(n) < min {
-		b.WriteByte('(')
-		write(b, n)
-		b.WriteByte(')')
-		return
-	}
-	write(b, n)
-}
-
-func write(b *strings.Builder, n Node) {
-	switch n := n.(type) {
-	case *numNode:
-		b.WriteString(formatNum(n.v))
-	case *varNode:
-		b.WriteString(n.name)
-	case *negNode:
-		b.WriteByte('-')
-		writeMin(b, n.x, precUnary)
-	case *binNode:
-		switch n.op {
-		case '+', '-':
-			writeMin(b, n.l, precAdd)
-			b.WriteByte(' ')
-			b.WriteByte(n.op)
-			b.WriteByte(' ')
-			writeMin(b, n.r, precMul)
-		case '*', '/':
-			writeMin(b, n.l, precMul)
-			b.WriteByte(n.op)
-			writeMin(b, n.r, precUnary)
-		case '^':
-			writeMin(b, n.l, precAtom)
-			b.WriteByte('^')
-			writeMin(b, n.r, precUnary)
-		}
-	case *callNode:
-		b.WriteString(funcs[n.fn].name)
-		b.WriteByte('(')
-		for i, a := range n.args {
-			if i > 0 {
-				b.WriteString(", ")
-			}
-			write(b, a)
-		}
-		b.WriteByte(')')
-	}
+	return a == b && math.Signbit(a) == math.Signbit(b)
 }

@@ -1,6 +1,7 @@
 package expr
 
 import (
+	"fmt"
 	"math"
 	"strings"
 )
@@ -42,10 +43,16 @@ var funcs = [numFuncs]funcInfo{
 	fnIfLE:  {"ifle", 4, false},
 }
 
-// lookupFunc returns the public function called name.
+// lookupFunc returns the function called name that Parse accepts.
 func lookupFunc(name string) (fnID, bool) {
+	id, ok := funcByName(name)
+	return id, ok && funcs[id].public
+}
+
+// funcByName returns the function called name, public or internal.
+func funcByName(name string) (fnID, bool) {
 	for id, f := range funcs {
-		if f.public && f.name == name {
+		if f.name == name {
 			return fnID(id), true
 		}
 	}
@@ -61,6 +68,19 @@ func knownFuncs() string {
 		}
 	}
 	return strings.Join(names, ", ")
+}
+
+// unknownFuncMsg is the message for a call of an unknown function in a tree.
+func unknownFuncMsg(name string) string {
+	return fmt.Sprintf("unknown function %q; known: %s, and in derivatives sign and ifle", name, knownFuncs())
+}
+
+func arityMsg(name string, want, got int) string {
+	return fmt.Sprintf("%s takes %s, found %d", name, argWords(want), got)
+}
+
+func nilArgMsg(name string, i int) string {
+	return fmt.Sprintf("argument %d of %s is missing (nil)", i+1, name)
 }
 
 func sign(x float64) float64 {
@@ -104,28 +124,30 @@ func apply(fn fnID, a []float64) float64 {
 }
 
 // evalTree evaluates n directly, looking variables up with env. It is slow
-// and used for constant folding and in tests; use Compile for speed.
+// and used for constant folding and in tests; use Compile for speed. n must
+// be well formed (see wellFormed).
 func evalTree(n Node, env func(string) float64) float64 {
 	switch n := n.(type) {
-	case *numNode:
-		return n.v
-	case *varNode:
-		return env(n.name)
-	case *negNode:
-		return -evalTree(n.x, env)
-	case *binNode:
-		return binop(n.op, evalTree(n.l, env), evalTree(n.r, env))
-	case *callNode:
-		a := make([]float64, len(n.args))
-		for i, m := range n.args {
+	case *Number:
+		return n.Value
+	case *Variable:
+		return env(n.Name)
+	case *Unary:
+		return -evalTree(n.X, env)
+	case *Binary:
+		return binop(n.Op, evalTree(n.L, env), evalTree(n.R, env))
+	case *Call:
+		a := make([]float64, len(n.Args))
+		for i, m := range n.Args {
 			a[i] = evalTree(m, env)
 		}
-		return apply(n.fn, a)
+		id, _ := funcByName(n.Func)
+		return apply(id, a)
 	}
 	return math.NaN()
 }
 
-func binop(op byte, a, b float64) float64 {
+func binop(op Op, a, b float64) float64 {
 	switch op {
 	case '+':
 		return a + b

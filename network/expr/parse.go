@@ -15,7 +15,14 @@ type Error struct {
 
 // Error returns the message prefixed by the column, as in
 // `column 7: expected a number, name or "(" after "*", found end of input`.
-func (e *Error) Error() string { return fmt.Sprintf("column %d: %s", e.Col, e.Msg) }
+// A problem without a column (Col 0, in a tree built by hand) is the
+// message alone.
+func (e *Error) Error() string {
+	if e.Col == 0 {
+		return e.Msg
+	}
+	return fmt.Sprintf("column %d: %s", e.Col, e.Msg)
+}
 
 // maxDepth bounds the nesting of parentheses, unary signs and powers so that
 // pathological input gets a message instead of exhausting the stack.
@@ -191,7 +198,7 @@ func (p *parser) expr() (Node, error) {
 		if err != nil {
 			return nil, err
 		}
-		l = &binNode{op: byte(op.op), l: l, r: r, col: op.col}
+		l = &Binary{Op: Op(op.op), L: l, R: r, Col: op.col}
 	}
 	return l, nil
 }
@@ -211,12 +218,15 @@ func (p *parser) term() (Node, error) {
 		if err != nil {
 			return nil, err
 		}
-		l = &binNode{op: byte(op.op), l: l, r: r, col: op.col}
+		l = &Binary{Op: Op(op.op), L: l, R: r, Col: op.col}
 	}
 	return l, nil
 }
 
 // unary := ("-" | "+") unary | power
+//
+// A minus sign directly before a number whose literal is the whole operand,
+// as in -2 or x^-1.5, gives a negative literal; -(2) and -2^2 give negations.
 func (p *parser) unary() (Node, error) {
 	p.depth++
 	defer func() { p.depth-- }()
@@ -228,6 +238,10 @@ func (p *parser) unary() (Node, error) {
 		if err := p.next(); err != nil {
 			return nil, err
 		}
+		numCol := -1
+		if p.tok.kind == tokNum {
+			numCol = p.tok.col
+		}
 		x, err := p.unary()
 		if err != nil {
 			return nil, err
@@ -235,7 +249,10 @@ func (p *parser) unary() (Node, error) {
 		if op.op == '+' {
 			return x, nil
 		}
-		return &negNode{x: x, col: op.col}, nil
+		if lit, ok := x.(*Number); ok && lit.Col == numCol {
+			return &Number{Value: -lit.Value, Col: op.col}, nil
+		}
+		return &Unary{Op: OpSub, X: x, Col: op.col}, nil
 	}
 	return p.power()
 }
@@ -257,7 +274,7 @@ func (p *parser) power() (Node, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &binNode{op: '^', l: base, r: exp, col: op.col}, nil
+	return &Binary{Op: OpPow, L: base, R: exp, Col: op.col}, nil
 }
 
 // expectOperand is the error for a missing operand at p.tok.
@@ -277,7 +294,7 @@ func (p *parser) atom() (Node, error) {
 		if err := p.next(); err != nil {
 			return nil, err
 		}
-		return &numNode{v: t.num, col: t.col}, nil
+		return &Number{Value: t.num, Col: t.col}, nil
 	case t.kind == tokName:
 		if err := p.next(); err != nil {
 			return nil, err
@@ -288,7 +305,7 @@ func (p *parser) atom() (Node, error) {
 		if id, ok := lookupFunc(t.text); ok {
 			return nil, &Error{Col: t.col, Msg: fmt.Sprintf(`%s is a function; expected "(" and %s after it`, t.text, argWords(funcs[id].arity))}
 		}
-		return &varNode{name: t.text, col: t.col}, nil
+		return &Variable{Name: t.text, Col: t.col}, nil
 	case p.isOp('('):
 		if err := p.next(); err != nil {
 			return nil, err
@@ -357,5 +374,5 @@ func (p *parser) call(name token) (Node, error) {
 	if want := funcs[id].arity; len(args) != want {
 		return nil, &Error{Col: name.col, Msg: fmt.Sprintf("%s takes %s, found %d", name.text, argWords(want), len(args))}
 	}
-	return &callNode{fn: id, args: args, col: name.col}, nil
+	return &Call{Func: funcs[id].name, Args: args, Col: name.col}, nil
 }

@@ -51,7 +51,7 @@ func TestRoundTrip(t *testing.T) {
 			t.Errorf("re-parse of %q: %v", n, err)
 			continue
 		}
-		if !equal(n, m) {
+		if !Equal(n, m) {
 			t.Errorf("re-parse of %q gives a different tree %q", n, m)
 		}
 	}
@@ -204,11 +204,11 @@ func TestCheck(t *testing.T) {
 		}
 	}
 	// Trees not made by Parse can hold bad calls; Check reports them.
-	bad := Add(Var("x"), &callNode{fn: fnMin, args: []Node{Var("x")}, col: 5})
+	bad := Add(Var("x"), &Call{Func: "min", Args: []Node{Var("x")}, Col: 5})
 	if errs := Check(bad); len(errs) != 1 || errs[0].Col != 5 || !strings.Contains(errs[0].Msg, "min takes 2 arguments") {
 		t.Errorf("Check of min with one argument = %v", errs)
 	}
-	if errs := Check(&callNode{fn: numFuncs, args: []Node{Var("x")}}); len(errs) != 1 || !strings.Contains(errs[0].Msg, "unknown function") {
+	if errs := Check(&Call{Func: "foo", Args: []Node{Var("x")}}); len(errs) != 1 || !strings.Contains(errs[0].Msg, "unknown function") {
 		t.Errorf("Check of unknown function = %v", errs)
 	}
 }

@@ -9,59 +9,72 @@ import "math"
 // Folding is skipped where the result would be infinite or NaN, so 1/0 stays
 // as written. Like common computer algebra, x*0 becomes 0 even though it is
 // NaN for infinite x.
+//
+// A tree with a problem that makes it meaningless (a missing node, an
+// unknown operator or function, a wrong number of arguments; see Check) is
+// returned unchanged.
 func Simplify(n Node) Node {
+	if !wellFormed(n) {
+		return n
+	}
+	return simplify(n)
+}
+
+// simplify is Simplify for a well-formed tree.
+func simplify(n Node) Node {
 	switch n := n.(type) {
-	case *negNode:
-		return neg(Simplify(n.x))
-	case *binNode:
-		l, r := Simplify(n.l), Simplify(n.r)
-		m := build(n.op, l, r)
-		if b, ok := m.(*binNode); ok && b.op == n.op && b.l == l && b.r == r {
-			b.col = n.col
+	case *Unary:
+		return neg(simplify(n.X))
+	case *Binary:
+		l, r := simplify(n.L), simplify(n.R)
+		m := build(n.Op, l, r)
+		if b, ok := m.(*Binary); ok && b.Op == n.Op && b.L == l && b.R == r {
+			b.Col = n.Col
 		}
 		return m
-	case *callNode:
-		args := make([]Node, len(n.args))
-		for i, a := range n.args {
-			args[i] = Simplify(a)
+	case *Call:
+		args := make([]Node, len(n.Args))
+		for i, a := range n.Args {
+			args[i] = simplify(a)
 		}
-		m := call(n.fn, args...)
-		if c, ok := m.(*callNode); ok && len(args) > 0 && len(c.args) == len(args) && &c.args[0] == &args[0] {
-			c.col = n.col // a new node, not a shared subtree
+		id, _ := funcByName(n.Func)
+		m := call(id, args...)
+		if c, ok := m.(*Call); ok && len(args) > 0 && len(c.Args) == len(args) && &c.Args[0] == &args[0] {
+			c.Col = n.Col // a new node, not a shared subtree
 		}
 		return m
 	}
 	return n
 }
 
-func build(op byte, l, r Node) Node {
+func build(op Op, l, r Node) Node {
 	switch op {
-	case '+':
+	case OpAdd:
 		return add(l, r)
-	case '-':
+	case OpSub:
 		return sub(l, r)
-	case '*':
+	case OpMul:
 		return mul(l, r)
-	case '/':
+	case OpDiv:
 		return div(l, r)
-	case '^':
+	case OpPow:
 		return pow(l, r)
 	}
-	return &binNode{op: op, l: l, r: r}
+	return &Binary{Op: op, L: l, R: r}
 }
 
 // isNum reports whether n is the literal v.
 func isNum(n Node, v float64) bool {
-	m, ok := n.(*numNode)
-	return ok && m.v == v
+	m, ok := n.(*Number)
+	return ok && m.Value == v
 }
 
 func numOf(n Node) (float64, bool) {
-	m, ok := n.(*numNode)
+	m, ok := n.(*Number)
 	if !ok {
 		return 0, false
 	}
-	return m.v, true
+	return m.Value, true
 }
 
 // fold returns the literal v if it is finite.
@@ -69,10 +82,10 @@ func fold(v float64) (Node, bool) {
 	if math.IsInf(v, 0) || math.IsNaN(v) {
 		return nil, false
 	}
-	return &numNode{v: v}, true
+	return &Number{Value: v}, true
 }
 
-func foldBin(op byte, l, r Node) (Node, bool) {
+func foldBin(op Op, l, r Node) (Node, bool) {
 	a, ok1 := numOf(l)
 	b, ok2 := numOf(r)
 	if !ok1 || !ok2 {
@@ -83,20 +96,20 @@ func foldBin(op byte, l, r Node) (Node, bool) {
 
 func neg(x Node) Node {
 	switch x := x.(type) {
-	case *numNode:
-		return &numNode{v: -x.v}
-	case *negNode:
-		return x.x
-	case *binNode:
-		if x.op == '-' {
-			return sub(x.r, x.l)
+	case *Number:
+		return &Number{Value: -x.Value}
+	case *Unary:
+		return x.X
+	case *Binary:
+		if x.Op == OpSub {
+			return sub(x.R, x.L)
 		}
 	}
-	return &negNode{x: x}
+	return &Unary{Op: OpSub, X: x}
 }
 
 func add(a, b Node) Node {
-	if n, ok := foldBin('+', a, b); ok {
+	if n, ok := foldBin(OpAdd, a, b); ok {
 		return n
 	}
 	switch {
@@ -105,20 +118,20 @@ func add(a, b Node) Node {
 	case isNum(b, 0):
 		return a
 	}
-	if x, ok := b.(*negNode); ok {
-		return sub(a, x.x)
+	if x, ok := b.(*Unary); ok {
+		return sub(a, x.X)
 	}
 	if v, ok := numOf(b); ok && v < 0 {
-		return sub(a, &numNode{v: -v})
+		return sub(a, &Number{Value: -v})
 	}
-	if x, ok := a.(*negNode); ok {
-		return sub(b, x.x)
+	if x, ok := a.(*Unary); ok {
+		return sub(b, x.X)
 	}
-	return &binNode{op: '+', l: a, r: b}
+	return &Binary{Op: OpAdd, L: a, R: b}
 }
 
 func sub(a, b Node) Node {
-	if n, ok := foldBin('-', a, b); ok {
+	if n, ok := foldBin(OpSub, a, b); ok {
 		return n
 	}
 	switch {
@@ -126,25 +139,25 @@ func sub(a, b Node) Node {
 		return a
 	case isNum(a, 0):
 		return neg(b)
-	case equal(a, b):
-		return &numNode{v: 0}
+	case Equal(a, b):
+		return &Number{Value: 0}
 	}
-	if x, ok := b.(*negNode); ok {
-		return add(a, x.x)
+	if x, ok := b.(*Unary); ok {
+		return add(a, x.X)
 	}
 	if v, ok := numOf(b); ok && v < 0 {
-		return add(a, &numNode{v: -v})
+		return add(a, &Number{Value: -v})
 	}
-	return &binNode{op: '-', l: a, r: b}
+	return &Binary{Op: OpSub, L: a, R: b}
 }
 
 func mul(a, b Node) Node {
-	if n, ok := foldBin('*', a, b); ok {
+	if n, ok := foldBin(OpMul, a, b); ok {
 		return n
 	}
 	switch {
 	case isNum(a, 0) || isNum(b, 0):
-		return &numNode{v: 0}
+		return &Number{Value: 0}
 	case isNum(a, 1):
 		return b
 	case isNum(b, 1):
@@ -154,80 +167,80 @@ func mul(a, b Node) Node {
 	case isNum(b, -1):
 		return neg(a)
 	}
-	if x, ok := a.(*negNode); ok {
-		return neg(mul(x.x, b))
+	if x, ok := a.(*Unary); ok {
+		return neg(mul(x.X, b))
 	}
-	if x, ok := b.(*negNode); ok {
-		return neg(mul(a, x.x))
+	if x, ok := b.(*Unary); ok {
+		return neg(mul(a, x.X))
 	}
 	if v, ok := numOf(a); ok && v < 0 {
-		return neg(mul(&numNode{v: -v}, b))
+		return neg(mul(&Number{Value: -v}, b))
 	}
 	if v, ok := numOf(b); ok && v < 0 {
-		return neg(mul(a, &numNode{v: -v}))
+		return neg(mul(a, &Number{Value: -v}))
 	}
 	_, aNum := numOf(a)
 	if _, ok := numOf(b); ok && !aNum {
 		return mul(b, a) // constants first
 	}
-	if q, ok := b.(*binNode); ok && q.op == '/' && isNum(q.l, 1) {
-		return div(a, q.r) // a*(1/y) = a/y
+	if q, ok := b.(*Binary); ok && q.Op == OpDiv && isNum(q.L, 1) {
+		return div(a, q.R) // a*(1/y) = a/y
 	}
-	if q, ok := a.(*binNode); ok && q.op == '/' && isNum(q.l, 1) {
-		return div(b, q.r)
+	if q, ok := a.(*Binary); ok && q.Op == OpDiv && isNum(q.L, 1) {
+		return div(b, q.R)
 	}
 	if aNum {
 		// c1*(c2*y) = (c1*c2)*y and c1*(c2/y) = (c1*c2)/y
-		if q, ok := b.(*binNode); ok && (q.op == '*' || q.op == '/') {
-			if c, ok := foldBin('*', a, q.l); ok {
-				return build(q.op, c, q.r)
+		if q, ok := b.(*Binary); ok && (q.Op == OpMul || q.Op == OpDiv) {
+			if c, ok := foldBin(OpMul, a, q.L); ok {
+				return build(q.Op, c, q.R)
 			}
 		}
 	}
-	return &binNode{op: '*', l: a, r: b}
+	return &Binary{Op: OpMul, L: a, R: b}
 }
 
 func div(a, b Node) Node {
 	if isNum(b, 0) {
-		return &binNode{op: '/', l: a, r: b} // kept for Check and Eval to see
+		return &Binary{Op: OpDiv, L: a, R: b} // kept for Check and Eval to see
 	}
-	if n, ok := foldBin('/', a, b); ok {
+	if n, ok := foldBin(OpDiv, a, b); ok {
 		return n
 	}
 	switch {
 	case isNum(a, 0):
-		return &numNode{v: 0}
+		return &Number{Value: 0}
 	case isNum(b, 1):
 		return a
 	case isNum(b, -1):
 		return neg(a)
 	}
-	if x, ok := a.(*negNode); ok {
-		return neg(div(x.x, b))
+	if x, ok := a.(*Unary); ok {
+		return neg(div(x.X, b))
 	}
-	if x, ok := b.(*negNode); ok {
-		return neg(div(a, x.x))
+	if x, ok := b.(*Unary); ok {
+		return neg(div(a, x.X))
 	}
 	if v, ok := numOf(a); ok && v < 0 {
-		return neg(div(&numNode{v: -v}, b))
+		return neg(div(&Number{Value: -v}, b))
 	}
 	if v, ok := numOf(b); ok && v < 0 {
-		return neg(div(a, &numNode{v: -v}))
+		return neg(div(a, &Number{Value: -v}))
 	}
-	return &binNode{op: '/', l: a, r: b}
+	return &Binary{Op: OpDiv, L: a, R: b}
 }
 
 func pow(a, b Node) Node {
-	if n, ok := foldBin('^', a, b); ok {
+	if n, ok := foldBin(OpPow, a, b); ok {
 		return n
 	}
 	switch {
 	case isNum(b, 1):
 		return a
 	case isNum(b, 0), isNum(a, 1):
-		return &numNode{v: 1}
+		return &Number{Value: 1}
 	}
-	return &binNode{op: '^', l: a, r: b}
+	return &Binary{Op: OpPow, L: a, R: b}
 }
 
 // call builds a simplified call of fn.
@@ -236,7 +249,7 @@ func call(fn fnID, args ...Node) Node {
 		return pow(args[0], args[1])
 	}
 	if fn == fnIfLE && len(args) == 4 {
-		if equal(args[2], args[3]) {
+		if Equal(args[2], args[3]) {
 			return args[2]
 		}
 		a, ok1 := numOf(args[0])
@@ -261,5 +274,5 @@ func call(fn fnID, args ...Node) Node {
 			}
 		}
 	}
-	return &callNode{fn: fn, args: args}
+	return &Call{Func: funcs[fn].name, Args: args}
 }
