@@ -252,8 +252,8 @@ func (v *validator) reaction(i int) {
 	}
 	eq, err := ParseEquation(r.Equation)
 	if err != nil {
-		if se, ok := err.(*SyntaxError); ok {
-			errf("equation", se.Col, "%s", se.Msg)
+		if se, ok := err.(Problem); ok {
+			errf("equation", se.Col, "%s", se.Message)
 		} else {
 			errf("equation", 0, "%v", err)
 		}

@@ -187,12 +187,12 @@ func TestParseEquation(t *testing.T) {
 	}
 	for _, c := range bad {
 		_, err := ParseEquation(c.in)
-		se, ok := err.(*SyntaxError)
+		se, ok := err.(Problem)
 		if !ok {
-			t.Errorf("ParseEquation(%q) error %v, want a SyntaxError", c.in, err)
+			t.Errorf("ParseEquation(%q) error %v, want a Problem", c.in, err)
 			continue
 		}
-		if se.Col != c.col || !strings.Contains(se.Msg, c.msg) {
+		if se.Col != c.col || se.Field != "equation" || !strings.Contains(se.Message, c.msg) {
 			t.Errorf("ParseEquation(%q) = %v, want column %d and %q", c.in, se, c.col, c.msg)
 		}
 	}
@@ -205,7 +205,7 @@ func FuzzParseEquation(f *testing.F) {
 	f.Fuzz(func(t *testing.T, s string) {
 		eq, err := ParseEquation(s)
 		if err != nil {
-			if se, ok := err.(*SyntaxError); !ok || se.Col < 1 {
+			if se, ok := err.(Problem); !ok || se.Col < 1 {
 				t.Fatalf("error %v without a column", err)
 			}
 			return

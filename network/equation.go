@@ -25,22 +25,13 @@ type Term struct {
 	Col     int
 }
 
-// SyntaxError is a mistake in an equation. Col is the 1-based column (in
-// characters) it points at.
-type SyntaxError struct {
-	Col int
-	Msg string
-}
-
-// Error returns "column N: message".
-func (e *SyntaxError) Error() string { return fmt.Sprintf("column %d: %s", e.Col, e.Msg) }
-
 // ParseEquation parses a reaction equation such as "A + 2 B -> C",
 // "E + S <=> ES", "-> mRNA" or "P ->". The arrows are "->" and "→"
 // (irreversible) and "<=>" and "⇌" (reversible). An empty side may be left
 // empty or written "∅". A term is an optional positive number followed by a
 // species name ([A-Za-z_][A-Za-z0-9_]*), with or without a space between:
-// "2 A" and "2A" mean the same. Errors are *SyntaxError.
+// "2 A" and "2A" mean the same. An error is a Problem whose Pos has Field
+// "equation" and Col, the 1-based column (in characters) it points at.
 func ParseEquation(s string) (Equation, error) {
 	p := eqParser{src: []rune(s)}
 	return p.parse()
@@ -52,7 +43,7 @@ type eqParser struct {
 }
 
 func (p *eqParser) errf(pos int, format string, args ...any) error {
-	return &SyntaxError{Col: pos + 1, Msg: fmt.Sprintf(format, args...)}
+	return Problem{Pos: Pos{Field: "equation", Col: pos + 1}, Message: fmt.Sprintf(format, args...)}
 }
 
 func (p *eqParser) skipSpace() {
