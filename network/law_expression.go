@@ -21,15 +21,9 @@ func (expressionLaw) Fields() []Field {
 
 func (expressionLaw) Check(c *LawCheck) []string { return []string{"expression"} }
 
-// Rate is never called for the expression law: Check parses the text once
-// and keeps the tree.
-func (expressionLaw) Rate(r Rate, eq Equation) expr.Node {
-	n, err := expr.Parse(r.Expression)
-	if err != nil {
-		return nil
-	}
-	return n
-}
+// Rate returns nil: Check parses the expression once, with the names it
+// may use, and keeps the tree in CheckedReaction.Expr.
+func (expressionLaw) Rate(r Rate, eq Equation) expr.Node { return nil }
 
 func (expressionLaw) Formula(r Rate, eq *Equation) string { return PrettyExpression(r.Expression) }
 
