@@ -11,7 +11,7 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/driver/software"
 
-	"kinetarium/editor/simulate"
+	"kinetarium/app/run"
 	"kinetarium/network"
 )
 
@@ -46,7 +46,7 @@ func (w *mainWindow) screenshot(path string) {
 	}
 	// A run that fails to start draws nothing: capture the window as it is.
 	done := w.ctrl.OnDone
-	w.ctrl.OnDone = func(gen int, o *simulate.Outcome, err error) {
+	w.ctrl.OnDone = func(gen int, o *run.Outcome, err error) {
 		done(gen, o, err)
 		if o == nil && w.captureSoon != nil {
 			w.captureSoon()

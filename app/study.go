@@ -20,8 +20,8 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
 
-	"kinetarium/editor/study"
-	"kinetarium/editor/tune"
+	"kinetarium/app/sliders"
+	"kinetarium/app/study"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
@@ -38,12 +38,12 @@ type quantity struct {
 // the slider panel: parameters, initial concentrations, volumes.
 func quantities(m *network.Model) []quantity {
 	var out []quantity
-	for _, k := range tune.Candidates(m) {
+	for _, k := range sliders.Candidates(m) {
 		q := quantity{label: optionLabel(k), value: k.Model, knob: k.Name}
 		switch k.Kind {
-		case tune.Initial:
+		case sliders.Initial:
 			q.knob = "init:" + k.Name
-		case tune.Volume:
+		case sliders.Volume:
 			q.knob = "volume:" + k.Name
 		}
 		out = append(out, q)

@@ -19,7 +19,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
 
-	"kinetarium/editor/study"
+	"kinetarium/app/study"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"

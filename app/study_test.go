@@ -14,7 +14,7 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/test"
 
-	"kinetarium/editor/study"
+	"kinetarium/app/study"
 	"kinetarium/examples"
 	"kinetarium/network"
 	"kinetarium/solve"

@@ -18,7 +18,7 @@ import (
 
 	"gonum.org/v1/plot"
 
-	"kinetarium/editor/study"
+	"kinetarium/app/study"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"

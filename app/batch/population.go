@@ -9,7 +9,7 @@ import (
 	"path/filepath"
 	"slices"
 
-	"kinetarium/editor/study"
+	"kinetarium/app/study"
 	"kinetarium/solve/explore"
 )
 

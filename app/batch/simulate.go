@@ -21,7 +21,7 @@ import (
 	"strings"
 	"time"
 
-	edsim "kinetarium/editor/simulate"
+	"kinetarium/app/run"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve"
@@ -205,7 +205,7 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 		}
 	}
 	if solveErr != nil {
-		solveErr = fmt.Errorf("%s: %s", f.model, edsim.SpeciesNames(solveErr.Error(), sys.Species()))
+		solveErr = fmt.Errorf("%s: %s", f.model, run.SpeciesNames(solveErr.Error(), sys.Species()))
 	}
 
 	// Write what was computed, even after a failure.

@@ -14,7 +14,7 @@ import (
 	"strings"
 	"testing"
 
-	edsim "kinetarium/editor/simulate"
+	"kinetarium/app/run"
 	"kinetarium/network"
 )
 
@@ -347,7 +347,7 @@ func TestDispatch(t *testing.T) {
 }
 
 func TestSpeciesNamesInMessages(t *testing.T) {
-	got := edsim.SpeciesNames("component 1 became NaN at t = 3; component 7 too", []string{"A", "B"})
+	got := run.SpeciesNames("component 1 became NaN at t = 3; component 7 too", []string{"A", "B"})
 	if want := `species "B" became NaN at t = 3; component 7 too`; got != want {
 		t.Errorf("got %q, want %q", got, want)
 	}

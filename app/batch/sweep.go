@@ -20,7 +20,7 @@ import (
 	"strings"
 	"time"
 
-	"kinetarium/editor/study"
+	"kinetarium/app/study"
 	"kinetarium/network"
 	"kinetarium/solve/explore"
 )

@@ -1,11 +1,11 @@
-// Package simulate runs a reaction-network model and draws its time
+// Package run runs a reaction-network model and draws its time
 // courses, without any widgets: it compiles a model, integrates it with the
 // model's run settings, turns the result into a figure with the on-screen
 // view (log axes, hidden species, zoom, previous run), maps pointer
 // positions on the figure back to data, writes the result as CSV, and
 // coordinates runs started from the user interface so that a stale result
 // is never shown (Controller).
-package simulate
+package run
 
 import (
 	"context"

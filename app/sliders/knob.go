@@ -1,4 +1,4 @@
-// Package tune re-simulates a model while the user turns its values: a
+// Package sliders re-simulates a model while the user turns its values: a
 // Knob is one parameter, initial concentration or compartment volume with
 // the range of its slider; a Session simulates one compiled model again and
 // again with changed values, reusing one compiled system and one solver; a
@@ -8,7 +8,7 @@
 //
 // The package holds no widgets and builds without cgo, so the work of a
 // slider frame can be measured and tested on its own.
-package tune
+package sliders
 
 import (
 	"fmt"
