@@ -12,7 +12,7 @@ import (
 	"fyne.io/fyne/v2/driver/software"
 
 	"kinetarium/app/run"
-	"kinetarium/network"
+	"kinetarium/internal/atomicfile"
 )
 
 // screenshotTimeout is the longest the screenshot mode waits for the plot.
@@ -76,7 +76,7 @@ func capture(win fyne.Window, path string) error {
 	if err := png.Encode(&b, img); err != nil {
 		return fmt.Errorf("encoding screenshot: %w", err)
 	}
-	if err := network.WriteFileAtomic(path, b.Bytes()); err != nil {
+	if err := atomicfile.Write(path, b.Bytes()); err != nil {
 		return fmt.Errorf("saving screenshot: %w", err)
 	}
 	return nil

@@ -19,7 +19,7 @@ import (
 	"gonum.org/v1/plot"
 
 	"kinetarium/app/study"
-	"kinetarium/network"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
 )
@@ -67,7 +67,7 @@ func finish(meta *runMeta, res *explore.Result, c *cmdFlags, stdout io.Writer) e
 			return err
 		}
 		path := filepath.Join(c.out, fmt.Sprintf("part-%d-of-%d.json", c.shard.I, c.shard.N))
-		if err := network.WriteFileAtomic(path, append(data, '\n')); err != nil {
+		if err := atomicfile.Write(path, append(data, '\n')); err != nil {
 			return err
 		}
 		fmt.Fprintf(stdout, "%s shard %v: %d runs, %d failed; wrote %s (combine the shards with merge)\n",

@@ -22,6 +22,7 @@ import (
 	"time"
 
 	"kinetarium/app/run"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve"
@@ -212,7 +213,7 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 	var outErr error
 	csvData := trajectoryCSV(sys.Species(), res)
 	if f.out != "" {
-		if err := network.WriteFileAtomic(f.out, csvData); err != nil {
+		if err := atomicfile.Write(f.out, csvData); err != nil {
 			outErr = fmt.Errorf("writing the trajectories: %w", err)
 		}
 	} else if _, err := stdout.Write(csvData); err != nil {

@@ -8,7 +8,7 @@ import (
 	"io"
 	"strconv"
 
-	"kinetarium/network"
+	"kinetarium/internal/atomicfile"
 )
 
 // WriteCSV writes the outcome as CSV in the layout of the batch command: a
@@ -48,5 +48,5 @@ func SaveCSV(path string, o *Outcome) error {
 	if err := WriteCSV(&b, o); err != nil {
 		return err
 	}
-	return network.WriteFileAtomic(path, b.Bytes())
+	return atomicfile.Write(path, b.Bytes())
 }

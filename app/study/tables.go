@@ -8,7 +8,7 @@ import (
 	"slices"
 	"strconv"
 
-	"kinetarium/network"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/solve/explore"
 )
 
@@ -120,7 +120,7 @@ func WriteCSV(path string, rows [][]string) error {
 	if err := w.WriteAll(rows); err != nil {
 		return fmt.Errorf("writing %s: %w", path, err)
 	}
-	if err := network.WriteFileAtomic(path, buf.Bytes()); err != nil {
+	if err := atomicfile.Write(path, buf.Bytes()); err != nil {
 		return fmt.Errorf("writing %s: %w", path, err)
 	}
 	return nil

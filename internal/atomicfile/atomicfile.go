@@ -1,0 +1,44 @@
+// Package atomicfile writes files so that a reader never sees a half-written
+// one: the data goes to a temporary file in the same folder, is synced to
+// disk, and the temporary file is renamed over the destination. It is the
+// one place the program writes a file.
+package atomicfile
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+)
+
+// Write writes data to path atomically. An existing file keeps its
+// permissions; a new one gets 0644. The folder must exist. On failure the
+// destination is untouched and no temporary file is left behind.
+func Write(path string, data []byte) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
+	if err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	name := tmp.Name()
+	_, err = tmp.Write(data)
+	if err == nil {
+		err = tmp.Sync()
+	}
+	if cerr := tmp.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		mode := os.FileMode(0o644)
+		if fi, serr := os.Stat(path); serr == nil {
+			mode = fi.Mode().Perm()
+		}
+		err = os.Chmod(name, mode)
+	}
+	if err == nil {
+		err = os.Rename(name, path)
+	}
+	if err != nil {
+		os.Remove(name)
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	return nil
+}
