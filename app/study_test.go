@@ -198,7 +198,7 @@ func TestPopulationZeroSpread(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	single, err := solve.NewSolver(prep.Sys, study.SolveSettings(prep.Sim, prep.Times)).Solve(context.Background(), 0, prep.Sim.TEnd, prep.Sys.Initial())
+	single, err := solve.NewSolver(prep.Sys, prep.Settings).Solve(context.Background(), 0, prep.Sim.TEnd, prep.Sys.Initial())
 	if err != nil {
 		t.Fatal(err)
 	}

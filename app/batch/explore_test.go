@@ -255,10 +255,11 @@ func BenchmarkPopulation20(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	sys, err := network.Compile(m)
+	prep, err := study.Prepare(m)
 	if err != nil {
 		b.Fatal(err)
 	}
+	sys := prep.Sys
 	names := sys.Parameters()[:2]
 	tg, err := study.NewTarget(sys, names)
 	if err != nil {
@@ -269,14 +270,13 @@ func BenchmarkPopulation20(b *testing.B) {
 		i, _ := sys.ParameterIndex(nm)
 		dists = append(dists, explore.LogNormal{Median: sys.Parameter(i), CVPercent: 30})
 	}
-	sim := m.Simulation.WithDefaults()
-	times := network.OutputTimes(sim.TEnd, sim.Output)
+	sim, times := prep.Sim, prep.Times
 	const size = 256
 	pts, err := explore.Population{Vary: dists, Size: size, Seed: 1}.Sample()
 	if err != nil {
 		b.Fatal(err)
 	}
-	ode := &explore.ODE{Target: tg, TEnd: sim.TEnd, Settings: study.SolveSettings(sim, times)}
+	ode := &explore.ODE{Target: tg, TEnd: sim.TEnd, Settings: prep.Settings}
 	var rate1 float64
 	for _, w := range []int{1, 2} {
 		b.Run("workers="+strconv.Itoa(w), func(b *testing.B) {

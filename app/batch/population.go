@@ -9,7 +9,6 @@ import (
 	"path/filepath"
 	"slices"
 
-	"kinetarium/app/study"
 	"kinetarium/solve/explore"
 )
 
@@ -212,7 +211,7 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	return c, &job{
 		meta:     meta,
 		design:   pts,
-		ode:      &explore.ODE{Target: tg, TEnd: l.Sim.TEnd, Settings: study.SolveSettings(l.Sim, l.Times)},
+		ode:      &explore.ODE{Target: tg, TEnd: l.Sim.TEnd, Settings: l.Settings},
 		settings: explore.Settings{Knobs: knobs, Readouts: ro, Bands: bands},
 	}, nil
 }

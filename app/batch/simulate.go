@@ -100,8 +100,8 @@ func parseSimFlags(args []string) (*simFlags, error) {
 		return nil, simBadf("--rtol: expected a relative tolerance between 0 and 1, got %v", f.rtol)
 	case f.set["atol"] && !(f.atol > 0 && finite(f.atol)):
 		return nil, simBadf("--atol: expected a positive absolute tolerance, got %v", f.atol)
-	case f.set["method"] && !slices.Contains(network.Methods, f.method):
-		return nil, simBadf("--method: expected one of %s, got %q", strings.Join(network.Methods, ", "), f.method)
+	case f.set["method"] && methodErr(f.method) != nil:
+		return nil, simBadf("--method: %v", methodErr(f.method))
 	case f.repeat < 1:
 		return nil, simBadf("--repeat: expected at least 1, got %d", f.repeat)
 	case f.set["figure"] && !slices.Contains(plotting.Formats, strings.ToLower(filepath.Ext(f.figure))):
@@ -110,6 +110,12 @@ func parseSimFlags(args []string) (*simFlags, error) {
 		return nil, simBadf("--out: expected a file name")
 	}
 	return f, nil
+}
+
+// methodErr is run.LookupMethod's verdict on a method word.
+func methodErr(name string) error {
+	_, err := run.LookupMethod(name)
+	return err
 }
 
 // runSimulate is the simulate subcommand.
@@ -180,14 +186,9 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 	if err != nil {
 		return badInput(fmt.Errorf("%s: %w", f.model, err))
 	}
-	times := network.OutputTimes(sim.TEnd, sim.Output)
-	method := solve.Method(sim.Method)
-	if sim.Method == "auto" {
-		method = solve.Auto
-	}
-	settings := solve.Settings{
-		RTol: sim.RTol, ATol: sim.ATol, Method: method,
-		Times: times, NonNegative: sim.KeepNonNegative(),
+	settings, err := run.Settings(sim)
+	if err != nil {
+		return badInput(fmt.Errorf("%s: %w", f.model, err))
 	}
 
 	solver := solve.NewSolver(sys, settings)
@@ -206,7 +207,7 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 		}
 	}
 	if solveErr != nil {
-		solveErr = fmt.Errorf("%s: %s", f.model, run.SpeciesNames(solveErr.Error(), sys.Species()))
+		solveErr = fmt.Errorf("%s: %w", f.model, run.NameSpecies(solveErr, sys.Species()))
 	}
 
 	// Write what was computed, even after a failure.

@@ -183,11 +183,12 @@ func loadModel(specPath, model string, simRaw json.RawMessage) (*study.Prepared,
 			sim.Output.Spacing = o.Spacing
 		}
 	}
-	sys, err := network.Compile(m)
+	m.Simulation = sim
+	p, err := study.Prepare(m)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", model, err)
 	}
-	return &study.Prepared{Model: m, Sys: sys, Sim: sim, Times: network.OutputTimes(sim.TEnd, sim.Output)}, nil
+	return p, nil
 }
 
 // readouts decodes and resolves the readouts of a spec.
@@ -492,7 +493,7 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	return c, &job{
 		meta:     meta,
 		design:   explore.Grid{Axes: axes},
-		ode:      &explore.ODE{Target: tg, TEnd: l.Sim.TEnd, Settings: study.SolveSettings(l.Sim, l.Times)},
+		ode:      &explore.ODE{Target: tg, TEnd: l.Sim.TEnd, Settings: l.Settings},
 		settings: explore.Settings{Knobs: knobs, Readouts: ro, KeepTrajectories: true},
 	}, nil
 }

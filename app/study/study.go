@@ -15,6 +15,7 @@ import (
 	"math"
 	"strings"
 
+	"kinetarium/app/run"
 	"kinetarium/network"
 	"kinetarium/solve"
 	"kinetarium/solve/explore"
@@ -123,20 +124,6 @@ func (t *Target) Clone() explore.Target {
 	return &Target{System: t.System.Clone(), knobs: t.knobs}
 }
 
-// SolveSettings returns the solver settings of a simulation (defaults
-// filled in) on the output grid times.
-func SolveSettings(sim network.Simulation, times []float64) solve.Settings {
-	sim = sim.WithDefaults()
-	method := solve.Method(sim.Method)
-	if sim.Method == "auto" {
-		method = solve.Auto
-	}
-	return solve.Settings{
-		RTol: sim.RTol, ATol: sim.ATol, Method: method,
-		Times: times, NonNegative: sim.KeepNonNegative(),
-	}
-}
-
 // AxisValues returns n values from from to to, equally spaced or (log)
 // equally spaced in their logarithm. The ends are exact.
 func AxisValues(from, to float64, n int, log bool) ([]float64, error) {
@@ -168,12 +155,13 @@ func AxisValues(from, to float64, n int, log bool) ([]float64, error) {
 	return vals, nil
 }
 
-// Prepared is a model compiled for a study, with its output grid.
+// Prepared is a model compiled for a study, with its solver settings.
 type Prepared struct {
-	Model *network.Model
-	Sys   *network.System
-	Sim   network.Simulation // defaults filled in
-	Times []float64          // the output grid
+	Model    *network.Model
+	Sys      *network.System
+	Sim      network.Simulation // defaults filled in
+	Times    []float64          // the output grid
+	Settings solve.Settings     // the model's run settings (run.Settings)
 }
 
 // Prepare compiles m for a study with its own simulation settings.
@@ -182,8 +170,11 @@ func Prepare(m *network.Model) (*Prepared, error) {
 	if err != nil {
 		return nil, fmt.Errorf("compiling the model: %w", err)
 	}
-	sim := m.Simulation.WithDefaults()
-	return &Prepared{Model: m, Sys: sys, Sim: sim, Times: network.OutputTimes(sim.TEnd, sim.Output)}, nil
+	set, err := run.Settings(m.Simulation)
+	if err != nil {
+		return nil, err
+	}
+	return &Prepared{Model: m, Sys: sys, Sim: m.Simulation.WithDefaults(), Times: set.Times, Settings: set}, nil
 }
 
 // ReadoutSpec names a readout by species.
@@ -337,7 +328,7 @@ func (j *Job) finish(knobs []string, readouts []ReadoutSpec) error {
 	for _, r := range ro {
 		j.Species = append(j.Species, p.Sys.Species()[r.Component])
 	}
-	j.ODE = &explore.ODE{Target: tg, TEnd: p.Sim.TEnd, Settings: SolveSettings(p.Sim, p.Times)}
+	j.ODE = &explore.ODE{Target: tg, TEnd: p.Sim.TEnd, Settings: p.Settings}
 	j.Settings.Knobs = knobs
 	j.Settings.Readouts = ro
 	return nil
