@@ -20,6 +20,7 @@ import (
 	"gonum.org/v1/plot"
 
 	"kinetarium/app/study"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
@@ -416,7 +417,7 @@ func (p *populationWindow) saveSamples(path string) error {
 	if p.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return study.WriteCSV(path, study.RunRows(p.res))
+	return atomicfile.WriteCSV(path, study.RunRows(p.res))
 }
 
 // saveBands writes the percentile bands of every species (the batch
@@ -425,5 +426,5 @@ func (p *populationWindow) saveBands(path string) error {
 	if p.res == nil || p.res.Bands == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return study.WriteCSV(path, study.BandRows(p.res.Bands, p.prep.Sys.Species()))
+	return atomicfile.WriteCSV(path, study.BandRows(p.res.Bands, p.prep.Sys.Species()))
 }

@@ -19,6 +19,7 @@ import (
 	"gonum.org/v1/plot"
 
 	"kinetarium/app/study"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
@@ -375,7 +376,7 @@ func (s *sweepWindow) saveRuns(path string) error {
 	if s.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return study.WriteCSV(path, study.RunRows(s.res))
+	return atomicfile.WriteCSV(path, study.RunRows(s.res))
 }
 
 // fileSafe makes s usable in a file name.
@@ -460,7 +461,7 @@ func (f *failureList) save(path string) error {
 	if len(f.res.Failures) == 0 {
 		return fmt.Errorf("no %s failed; there is nothing to save", f.what)
 	}
-	return study.WriteCSV(path, study.FailureRows(f.res))
+	return atomicfile.WriteCSV(path, study.FailureRows(f.res))
 }
 
 // exportAs asks for a file in win and saves the failed points there;

@@ -149,7 +149,7 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 // writeCSV writes rows to dir/name atomically.
 func writeCSV(dir, name string, rows [][]string) (string, error) {
 	path := filepath.Join(dir, name)
-	return path, study.WriteCSV(path, rows)
+	return path, atomicfile.WriteCSV(path, rows)
 }
 
 // unsafeName matches runs of characters kept out of file names.

@@ -1,52 +1,31 @@
 package run
 
 import (
-	"bufio"
-	"bytes"
-	"encoding/csv"
-	"fmt"
 	"io"
 	"strconv"
 
 	"kinetarium/internal/atomicfile"
 )
 
-// WriteCSV writes the outcome as CSV in the layout of the batch command: a
-// header "time,<species…>" and one row per output time, numbers in their
-// shortest exact form (strconv 'g', -1).
-func WriteCSV(w io.Writer, o *Outcome) error {
-	bw := bufio.NewWriter(w)
-	cw := csv.NewWriter(bw)
-	rec := make([]string, len(o.Names)+1)
-	rec[0] = "time"
-	copy(rec[1:], o.Names)
-	if err := cw.Write(rec); err != nil {
-		return fmt.Errorf("writing CSV: %w", err)
-	}
+// Rows lays out the outcome as a table: a header "time,<species…>" and one
+// row per output time, numbers in their shortest exact form (strconv 'g',
+// -1).
+func Rows(o *Outcome) [][]string {
+	rows := make([][]string, 0, len(o.T)+1)
+	rows = append(rows, append([]string{"time"}, o.Names...))
 	for i, t := range o.T {
-		rec[0] = strconv.FormatFloat(t, 'g', -1, 64)
-		for j, v := range o.Y[i] {
-			rec[j+1] = strconv.FormatFloat(v, 'g', -1, 64)
+		rec := make([]string, 0, len(o.Names)+1)
+		rec = append(rec, strconv.FormatFloat(t, 'g', -1, 64))
+		for _, v := range o.Y[i] {
+			rec = append(rec, strconv.FormatFloat(v, 'g', -1, 64))
 		}
-		if err := cw.Write(rec); err != nil {
-			return fmt.Errorf("writing CSV: %w", err)
-		}
+		rows = append(rows, rec)
 	}
-	cw.Flush()
-	if err := cw.Error(); err != nil {
-		return fmt.Errorf("writing CSV: %w", err)
-	}
-	if err := bw.Flush(); err != nil {
-		return fmt.Errorf("writing CSV: %w", err)
-	}
-	return nil
+	return rows
 }
 
-// SaveCSV writes the outcome to path atomically (see WriteCSV).
-func SaveCSV(path string, o *Outcome) error {
-	var b bytes.Buffer
-	if err := WriteCSV(&b, o); err != nil {
-		return err
-	}
-	return atomicfile.Write(path, b.Bytes())
-}
+// WriteCSV writes the outcome's Rows to w as CSV.
+func WriteCSV(w io.Writer, o *Outcome) error { return atomicfile.EncodeCSV(w, Rows(o)) }
+
+// SaveCSV writes the outcome's Rows to path atomically as CSV.
+func SaveCSV(path string, o *Outcome) error { return atomicfile.WriteCSV(path, Rows(o)) }

@@ -1,11 +1,14 @@
 // Package atomicfile writes files so that a reader never sees a half-written
 // one: the data goes to a temporary file in the same folder, is synced to
 // disk, and the temporary file is renamed over the destination. It is the
-// one place the program writes a file.
+// one place the program writes a file, and holds the one CSV writer.
 package atomicfile
 
 import (
+	"bytes"
+	"encoding/csv"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 )
@@ -39,6 +42,25 @@ func Write(path string, data []byte) error {
 	if err != nil {
 		os.Remove(name)
 		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	return nil
+}
+
+// WriteCSV writes rows to path atomically as CSV (RFC 4180, "\n" line
+// ends), the one layout of every table the program writes.
+func WriteCSV(path string, rows [][]string) error {
+	var buf bytes.Buffer
+	if err := EncodeCSV(&buf, rows); err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	return Write(path, buf.Bytes())
+}
+
+// EncodeCSV writes rows to w as WriteCSV lays them out.
+func EncodeCSV(w io.Writer, rows [][]string) error {
+	cw := csv.NewWriter(w)
+	if err := cw.WriteAll(rows); err != nil {
+		return fmt.Errorf("writing CSV: %w", err)
 	}
 	return nil
 }
