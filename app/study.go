@@ -39,14 +39,7 @@ type quantity struct {
 func quantities(m *network.Model) []quantity {
 	var out []quantity
 	for _, k := range sliders.Candidates(m) {
-		q := quantity{label: optionLabel(k), value: k.Model, knob: k.Name}
-		switch k.Kind {
-		case sliders.Initial:
-			q.knob = "init:" + k.Name
-		case sliders.Volume:
-			q.knob = "volume:" + k.Name
-		}
-		out = append(out, q)
+		out = append(out, quantity{label: optionLabel(k), value: k.Model, knob: k.Ref()})
 	}
 	return out
 }

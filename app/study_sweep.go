@@ -18,6 +18,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
 
+	"kinetarium/app/sliders"
 	"kinetarium/app/study"
 	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
@@ -248,16 +249,8 @@ func (s *sweepWindow) finished(job *study.Job, res *explore.Result, err error) {
 	s.drawReadout()
 }
 
-// knobLabel writes a knob name for people: "init:A" is "A₀ (initial)".
-func knobLabel(k string) string {
-	switch {
-	case len(k) > 5 && k[:5] == "init:":
-		return "initial " + k[5:]
-	case len(k) > 7 && k[:7] == "volume:":
-		return "volume of " + k[7:]
-	}
-	return k
-}
+// knobLabel writes a knob name for people: "init:A" is "A initial".
+func knobLabel(ref string) string { return sliders.ParseRef(ref).Label() }
 
 // curveFigure is the family of curves of the chosen species.
 func (s *sweepWindow) curveFigure() (*plot.Plot, error) {

@@ -294,7 +294,7 @@ func runFailingPopulation(t *testing.T) (*populationWindow, int) {
 func TestPopulationFailuresListed(t *testing.T) {
 	p, negative := runFailingPopulation(t)
 	if len(p.failures.lines) != negative || !strings.Contains(p.failures.lines[0], "an initial concentration must be ≥ 0") ||
-		!strings.Contains(p.failures.lines[0], "initial A = -") {
+		!strings.Contains(p.failures.lines[0], "A initial = -") {
 		t.Errorf("failure list %q", p.failures.lines)
 	}
 	if d := os.Getenv("KINETARIUM_SHOTS"); d != "" {
@@ -369,8 +369,8 @@ func TestSweepFailuresExport(t *testing.T) {
 	if s.res == nil || s.res.Failed != 2 || s.failures.export.Disabled() {
 		t.Fatalf("result %+v, status %q", s.res, s.ctl.status.Text)
 	}
-	if len(s.failures.lines) != 2 || !strings.HasPrefix(s.failures.lines[0], "Run 0: initial A = -2 — ") ||
-		!strings.HasPrefix(s.failures.lines[1], "Run 1: initial A = -1 — ") {
+	if len(s.failures.lines) != 2 || !strings.HasPrefix(s.failures.lines[0], "Run 0: A initial = -2 — ") ||
+		!strings.HasPrefix(s.failures.lines[1], "Run 1: A initial = -1 — ") {
 		t.Errorf("failure list %q", s.failures.lines)
 	}
 	path := filepath.Join(t.TempDir(), "failures.csv")

@@ -93,7 +93,7 @@ func TestKnobSetWidensAndChecks(t *testing.T) {
 		t.Errorf("Set(0): %v, range %g..%g, log %v", err, k.Min, k.Max, k.Log())
 	}
 	err := k.Set(-1)
-	if err == nil || !strings.Contains(err.Error(), "A initial") || !strings.Contains(err.Error(), "zero or a positive") {
+	if err == nil || !strings.Contains(err.Error(), "A initial") || !strings.Contains(err.Error(), "must be ≥ 0") {
 		t.Errorf("Set(-1) on an initial concentration: %v", err)
 	}
 	if k.Value != 0 {
@@ -430,5 +430,20 @@ func TestRunnerSolvesWithSession(t *testing.T) {
 	<-got
 	if r.session != first {
 		t.Error("the model was compiled again although it did not change")
+	}
+}
+
+// A knob's name in studies reads back to the same knob, for each kind;
+// the forms are those of the spec files (README, "Sweeps and populations").
+func TestRefRoundTrip(t *testing.T) {
+	for ref, want := range map[string]Knob{
+		"kcat":        {Kind: Parameter, Name: "kcat"},
+		"init:S":      {Kind: Initial, Name: "S"},
+		"volume:cell": {Kind: Volume, Name: "cell"},
+	} {
+		got := ParseRef(ref)
+		if got != want || got.Ref() != ref {
+			t.Errorf("ParseRef(%q) = %+v (Ref %q), want %+v", ref, got, got.Ref(), want)
+		}
 	}
 }

@@ -6,7 +6,8 @@
 // it.
 //
 // Knobs are named "NAME" (a parameter), "init:SPECIES" (an initial
-// concentration) or "volume:COMPARTMENT" (a compartment volume).
+// concentration) or "volume:COMPARTMENT" (a compartment volume), as
+// sliders.Knob's Ref writes them.
 package study
 
 import (
@@ -16,6 +17,7 @@ import (
 	"strings"
 
 	"kinetarium/app/run"
+	"kinetarium/app/sliders"
 	"kinetarium/network"
 	"kinetarium/solve"
 	"kinetarium/solve/explore"
@@ -34,20 +36,10 @@ func (e *KnobError) Error() string { return e.Err.Error() }
 // Unwrap returns the underlying error.
 func (e *KnobError) Unwrap() error { return e.Err }
 
-// knobKind is what a knob sets.
-type knobKind int
-
-// The knob kinds.
-const (
-	knobParameter knobKind = iota
-	knobInitial
-	knobVolume
-)
-
-// knob is one resolved knob of a Target.
+// knob is one resolved knob of a Target: what it sets, and its index in
+// the compiled system.
 type knob struct {
-	name  string
-	kind  knobKind
+	sliders.Knob
 	index int
 }
 
@@ -62,27 +54,21 @@ type Target struct {
 func NewTarget(sys *network.System, names []string) (*Target, error) {
 	t := &Target{System: sys}
 	for k, name := range names {
-		kn := knob{name: name}
+		kn := knob{Knob: sliders.ParseRef(name)}
 		var ok bool
 		var err error
-		switch {
-		case strings.HasPrefix(name, "init:"):
-			kn.kind = knobInitial
-			kn.index, ok = sys.SpeciesIndex(strings.TrimPrefix(name, "init:"))
-			if !ok {
-				err = fmt.Errorf("no species %q in the model (species: %s)", strings.TrimPrefix(name, "init:"), strings.Join(sys.Species(), ", "))
+		switch kn.Kind {
+		case sliders.Initial:
+			if kn.index, ok = sys.SpeciesIndex(kn.Name); !ok {
+				err = fmt.Errorf("no species %q in the model (species: %s)", kn.Name, strings.Join(sys.Species(), ", "))
 			}
-		case strings.HasPrefix(name, "volume:"):
-			kn.kind = knobVolume
-			kn.index, ok = sys.CompartmentIndex(strings.TrimPrefix(name, "volume:"))
-			if !ok {
-				err = fmt.Errorf("no compartment %q in the model (compartments: %s)", strings.TrimPrefix(name, "volume:"), strings.Join(sys.Compartments(), ", "))
+		case sliders.Volume:
+			if kn.index, ok = sys.CompartmentIndex(kn.Name); !ok {
+				err = fmt.Errorf("no compartment %q in the model (compartments: %s)", kn.Name, strings.Join(sys.Compartments(), ", "))
 			}
 		default:
-			kn.kind = knobParameter
-			kn.index, ok = sys.ParameterIndex(name)
-			if !ok {
-				err = fmt.Errorf("no parameter %q in the model (parameters: %s; use init:SPECIES or volume:COMPARTMENT for those)", name, strings.Join(sys.Parameters(), ", "))
+			if kn.index, ok = sys.ParameterIndex(kn.Name); !ok {
+				err = fmt.Errorf("no parameter %q in the model (parameters: %s; use init:SPECIES or volume:COMPARTMENT for those)", kn.Name, strings.Join(sys.Parameters(), ", "))
 			}
 		}
 		if err != nil {
@@ -96,19 +82,13 @@ func NewTarget(sys *network.System, names []string) (*Target, error) {
 // SetKnob implements explore.Target.
 func (t *Target) SetKnob(k int, v float64) error {
 	kn := t.knobs[k]
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return fmt.Errorf("%s = %v is not finite", kn.name, v)
+	if err := kn.Check(v); err != nil {
+		return err
 	}
-	switch kn.kind {
-	case knobInitial:
-		if v < 0 {
-			return fmt.Errorf("%s = %v: an initial concentration must be ≥ 0", kn.name, v)
-		}
+	switch kn.Kind {
+	case sliders.Initial:
 		t.SetInitial(kn.index, v)
-	case knobVolume:
-		if v <= 0 {
-			return fmt.Errorf("%s = %v: a volume must be positive", kn.name, v)
-		}
+	case sliders.Volume:
 		t.SetVolume(kn.index, v)
 	default:
 		t.SetParameter(kn.index, v)
