@@ -200,40 +200,20 @@ func (e *readoutEditor) specs() ([]study.ReadoutSpec, error) {
 			return nil, fmt.Errorf("readout %d: choose a species", i+1)
 		}
 		s := study.ReadoutSpec{Kind: kind, Species: r.species.Selected}
-		s.Name = readoutName(kind, s.Species)
 		if extra != "" {
 			v, err := number(r.number.Text, fmt.Sprintf("readout %d: the %s", i+1, extra))
 			if err != nil {
 				return nil, err
 			}
 			if extra == "time" {
-				s.Time = v
+				s.Time = &v
 			} else {
-				s.Level = v
+				s.Level = &v
 			}
-			s.Name += "@" + short(v)
 		}
 		out = append(out, s)
 	}
 	return out, nil
-}
-
-// readoutName is the short name of a readout in tables and figures,
-// "final_P" or "max_C".
-func readoutName(k explore.Kind, species string) string {
-	switch k {
-	case explore.ValueAt:
-		return species + "_at"
-	case explore.TimeOfMax:
-		return "tmax_" + species
-	case explore.TimeOfMin:
-		return "tmin_" + species
-	case explore.CrossUp:
-		return "t_up_" + species
-	case explore.CrossDown:
-		return "t_down_" + species
-	}
-	return string(k) + "_" + species
 }
 
 // readoutLabel describes readout r of a job in words, for axis labels:

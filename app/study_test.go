@@ -261,7 +261,7 @@ func runFailingPopulation(t *testing.T) (*populationWindow, int) {
 	p := openPopulation(t, tuneDecayModel())
 	onUI(func() {
 		p.rows[0].quantity.SetSelected("A (initial concentration)")
-		p.rows[0].dist.SetSelected(distributions[2].label)
+		p.rows[0].dist.SetSelected(study.Distributions[2].Title)
 		p.rows[0].a.SetText("-1")
 		p.rows[0].b.SetText("3")
 		p.removeRow(p.rows[1])

@@ -159,37 +159,134 @@ func Prepare(m *network.Model) (*Prepared, error) {
 
 // ReadoutSpec names a readout by species.
 type ReadoutSpec struct {
-	Name    string       // label in results; default KIND_SPECIES
+	Name    string       // label in results; "" gives ReadoutName's
 	Kind    explore.Kind // what is computed
 	Species string       // the species it is computed on
-	Time    float64      // for explore.ValueAt
-	Level   float64      // for explore.CrossUp and explore.CrossDown
+	Time    *float64     // for explore.ValueAt, and only for it
+	Level   *float64     // for explore.CrossUp and explore.CrossDown, and only for them
 }
 
-// Readouts resolves readout specs on the model. Errors name the readout
-// by its position, counting from 1.
+// ItemError is a problem with one field of one item of a study's list:
+// a readout or a varied quantity. Index counts from 0; Error counts from
+// 1 for people.
+type ItemError struct {
+	List  string // "readout", "quantity"
+	Index int
+	Field string // the spec file's key: "species", "time", "target", …
+	Err   error
+}
+
+// Error implements error.
+func (e *ItemError) Error() string {
+	return fmt.Sprintf("%s %d: %s: %v", e.List, e.Index+1, e.Field, e.Err)
+}
+
+// Unwrap returns the underlying error.
+func (e *ItemError) Unwrap() error { return e.Err }
+
+// ReadoutName is the name a readout gets when its spec gives none, in
+// tables and figures alike: KIND_SPECIES ("final_P", "time_of_max_P"),
+// with "@" and the time or level for kinds that take one
+// ("value_at_A@2.5").
+func ReadoutName(kind explore.Kind, species string, number *float64) string {
+	name := string(kind) + "_" + species
+	if number != nil {
+		name += "@" + FormatNumber(*number)
+	}
+	return name
+}
+
+// Readouts resolves readout specs on the model. Errors are *ItemError.
 func (p *Prepared) Readouts(specs []ReadoutSpec) ([]explore.Readout, error) {
 	var out []explore.Readout
 	seen := map[string]bool{}
 	for i, rs := range specs {
+		bad := func(field, format string, a ...any) error {
+			return &ItemError{List: "readout", Index: i, Field: field, Err: fmt.Errorf(format, a...)}
+		}
 		j, ok := p.Sys.SpeciesIndex(rs.Species)
 		if !ok {
-			return nil, fmt.Errorf("readout %d: no species %q in the model (species: %s)", i+1, rs.Species, strings.Join(p.Sys.Species(), ", "))
+			return nil, bad("species", "no species %q in the model (species: %s)", rs.Species, strings.Join(p.Sys.Species(), ", "))
 		}
-		r := explore.Readout{Name: rs.Name, Kind: rs.Kind, Component: j, At: rs.Time, Level: rs.Level}
+		r := explore.Readout{Name: rs.Name, Kind: rs.Kind, Component: j}
+		var number *float64
+		switch rs.Kind {
+		case explore.ValueAt:
+			if rs.Time == nil {
+				return nil, bad("time", "missing (value_at needs the time to read at)")
+			}
+			r.At, number = *rs.Time, rs.Time
+		case explore.CrossUp, explore.CrossDown:
+			if rs.Level == nil {
+				return nil, bad("level", "missing (%s needs the threshold)", rs.Kind)
+			}
+			r.Level, number = *rs.Level, rs.Level
+		}
+		if rs.Time != nil && rs.Kind != explore.ValueAt {
+			return nil, bad("time", "only value_at takes a time")
+		}
+		if rs.Level != nil && rs.Kind != explore.CrossUp && rs.Kind != explore.CrossDown {
+			return nil, bad("level", "only cross_up and cross_down take a level")
+		}
 		if r.Name == "" {
-			r.Name = string(rs.Kind) + "_" + rs.Species
+			r.Name = ReadoutName(rs.Kind, rs.Species, number)
 		}
 		if err := r.Validate(p.Sys.Dim()); err != nil {
-			return nil, fmt.Errorf("readout %d: %w", i+1, err)
+			return nil, bad("kind", "%w", err)
 		}
 		if seen[r.Name] {
-			return nil, fmt.Errorf("readout %d: the name %q is used twice", i+1, r.Name)
+			return nil, bad("name", "%q is used twice", r.Name)
 		}
 		seen[r.Name] = true
 		out = append(out, r)
 	}
 	return out, nil
+}
+
+// Distribution is one kind of distribution a population can draw a
+// quantity from, with the names of its two numbers in spec files (A, B)
+// and for people.
+type Distribution struct {
+	Name           string // the spec file's word: "lognormal", …
+	Title          string // for people: "Log-normal"
+	A, B           string // the spec file's keys of the two numbers
+	ALabel, BLabel string // the two numbers for people
+	New            func(a, b float64) explore.Distribution
+}
+
+// Distributions are the distributions of populations, the one table of
+// the spec files and the Population window.
+var Distributions = []Distribution{
+	{"lognormal", "Log-normal", "median", "cv_percent", "median", "CV %",
+		func(a, b float64) explore.Distribution { return explore.LogNormal{Median: a, CVPercent: b} }},
+	{"normal", "Normal, above zero", "mean", "sd", "mean", "SD",
+		func(a, b float64) explore.Distribution { return explore.TruncNormal{Mean: a, SD: b} }},
+	{"uniform", "Uniform", "low", "high", "low", "high",
+		func(a, b float64) explore.Distribution { return explore.Uniform{Low: a, High: b} }},
+	{"loguniform", "Log-uniform", "low", "high", "low", "high",
+		func(a, b float64) explore.Distribution { return explore.LogUniform{Low: a, High: b} }},
+}
+
+// LookupDistribution returns the distribution of a spec file's word, or
+// an error listing the words.
+func LookupDistribution(name string) (Distribution, error) {
+	var words []string
+	for _, d := range Distributions {
+		if d.Name == name {
+			return d, nil
+		}
+		words = append(words, d.Name)
+	}
+	return Distribution{}, fmt.Errorf("expected %s or %s, got %q", strings.Join(words[:len(words)-1], ", "), words[len(words)-1], name)
+}
+
+// Make returns the distribution with numbers a and b, checked.
+func (d Distribution) Make(a, b float64) (explore.Distribution, error) {
+	x := d.New(a, b)
+	if err := x.Validate(); err != nil {
+		return nil, err
+	}
+	return x, nil
 }
 
 // Axis is one swept knob.
