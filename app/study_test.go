@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/csv"
 	"image/png"
 	"math"
 	"os"
@@ -16,6 +15,7 @@ import (
 
 	"kinetarium/app/study"
 	"kinetarium/examples"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/solve"
 	"kinetarium/solve/explore"
@@ -111,15 +111,7 @@ func TestSweepDecayClosedForm(t *testing.T) {
 	if err := s.saveRuns(path); err != nil {
 		t.Fatal(err)
 	}
-	f, err := os.Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	rows, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	rows := readCSV(t, path)
 	if len(rows) != 7 || strings.Join(rows[0], ",") != "index,k,final_A" {
 		t.Fatalf("runs.csv starts %v with %d rows", rows[0], len(rows))
 	}
@@ -310,12 +302,7 @@ func TestPopulationFailuresListed(t *testing.T) {
 // readCSV reads a whole CSV file.
 func readCSV(t *testing.T, path string) [][]string {
 	t.Helper()
-	f, err := os.Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	rows, err := csv.NewReader(f).ReadAll()
+	rows, err := atomicfile.ReadCSV(path)
 	if err != nil {
 		t.Fatal(err)
 	}

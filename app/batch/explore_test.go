@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"context"
-	"encoding/csv"
 	"math"
 	"os"
 	"path/filepath"
@@ -14,6 +13,7 @@ import (
 	"time"
 
 	"kinetarium/app/study"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/solve/explore"
 )
@@ -35,16 +35,12 @@ func sweepCmd(a []string, o, e io2) int { return runSweep(a, o, e) }
 func popCmd(a []string, o, e io2) int   { return runPopulation(a, o, e) }
 func mergeCmd(a []string, o, e io2) int { return runMerge(a, o, e) }
 
+// readCSV reads a whole CSV file.
 func readCSV(t *testing.T, path string) [][]string {
 	t.Helper()
-	f, err := os.Open(path)
+	rows, err := atomicfile.ReadCSV(path)
 	if err != nil {
 		t.Fatal(err)
-	}
-	defer f.Close()
-	rows, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatalf("%s: %v", path, err)
 	}
 	return rows
 }

@@ -64,3 +64,17 @@ func EncodeCSV(w io.Writer, rows [][]string) error {
 	}
 	return nil
 }
+
+// ReadCSV reads back a table written by WriteCSV; errors name the path.
+func ReadCSV(path string) ([][]string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return rows, nil
+}
