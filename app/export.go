@@ -12,7 +12,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot/vg"
 
-	"kinetarium/editor/simulate"
+	"kinetarium/app/run"
 	"kinetarium/plotting"
 )
 
@@ -71,7 +71,7 @@ func (w *mainWindow) exportFigure() {
 		}
 		ext := formatExt(format.Selected)
 		w.saveFileDialog("figure"+ext, ext, func(path string) {
-			p, err := simulate.Figure(w.current, w.view())
+			p, err := run.Figure(w.current, w.view())
 			if err == nil {
 				err = plotting.Save(p, path, vg.Length(wcm)*vg.Centimeter, vg.Length(hcm)*vg.Centimeter, int(d))
 			}
@@ -101,7 +101,7 @@ func (w *mainWindow) exportData() {
 	}
 	o := w.current
 	w.saveFileDialog("results.csv", ".csv", func(path string) {
-		if err := simulate.SaveCSV(path, o); err != nil {
+		if err := run.SaveCSV(path, o); err != nil {
 			w.showError(err)
 			return
 		}

@@ -14,6 +14,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 
 	"kinetarium/examples"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 )
 
@@ -244,7 +245,7 @@ func (w *mainWindow) autosave() {
 	if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
 		return
 	}
-	if err := network.WriteFileAtomic(p, b); err == nil {
+	if err := atomicfile.Write(p, b); err == nil {
 		w.status.SetText("Unsaved changes kept in " + p + " at " + time.Now().Format("15:04:05"))
 	}
 }

@@ -12,7 +12,7 @@ import (
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
-	"kinetarium/editor/simulate"
+	"kinetarium/app/run"
 	"kinetarium/plotting"
 )
 
@@ -22,8 +22,8 @@ import (
 type plotView struct {
 	widget.BaseWidget
 
-	outcome *simulate.Outcome
-	view    simulate.View
+	outcome *run.Outcome
+	view    run.View
 
 	img         *canvas.Image
 	sel         *canvas.Rectangle
@@ -32,7 +32,7 @@ type plotView struct {
 	readout     *canvas.Text
 	placeholder *widget.Label
 
-	frame    simulate.Frame
+	frame    run.Frame
 	scale    float32 // image pixels per widget unit of the last render
 	drawn    fyne.Size
 	dirty    bool
@@ -76,7 +76,7 @@ func newPlotView() *plotView {
 }
 
 // Set draws o with the view (re-drawn when the widget is resized).
-func (v *plotView) Set(o *simulate.Outcome, view simulate.View) {
+func (v *plotView) Set(o *run.Outcome, view run.View) {
 	v.outcome, v.view = o, view
 	v.dirty = true
 	v.hideReadout()
@@ -136,7 +136,7 @@ func (v *plotView) render() {
 	v.placeholder.Hide()
 	s := v.pixelScale()
 	w, h := int(math.Round(float64(size.Width*s))), int(math.Round(float64(size.Height*s)))
-	img, fr, err := simulate.Render(v.outcome, v.view, w, h)
+	img, fr, err := run.Render(v.outcome, v.view, w, h)
 	if err != nil {
 		if v.errorText != nil {
 			v.errorText("The figure cannot be drawn: " + err.Error())
@@ -172,7 +172,7 @@ func (v *plotView) MouseMoved(e *desktop.MouseEvent) {
 		return
 	}
 	s := v.scale
-	p, ok := simulate.Nearest(v.outcome, v.view, v.frame, float64(e.Position.X*s), float64(e.Position.Y*s), float64(24*s))
+	p, ok := run.Nearest(v.outcome, v.view, v.frame, float64(e.Position.X*s), float64(e.Position.Y*s), float64(24*s))
 	if !ok {
 		v.hideReadout()
 		return
@@ -254,7 +254,7 @@ func (v *plotView) DragEnd() {
 	if math.Abs(float64(v.end.X-v.start.X)) < 6 || math.Abs(float64(v.end.Y-v.start.Y)) < 6 {
 		return
 	}
-	v.view.Zoom = &simulate.Range{XMin: math.Min(x0, x1), XMax: math.Max(x0, x1), YMin: math.Min(y0, y1), YMax: math.Max(y0, y1)}
+	v.view.Zoom = &run.Range{XMin: math.Min(x0, x1), XMax: math.Max(x0, x1), YMin: math.Min(y0, y1), YMax: math.Max(y0, y1)}
 	v.dirty = true
 	v.Refresh()
 	if v.OnZoom != nil {

@@ -9,13 +9,13 @@ import (
 	"fyne.io/fyne/v2/driver/desktop"
 	"fyne.io/fyne/v2/test"
 
-	"kinetarium/editor/simulate"
+	"kinetarium/app/run"
 	"kinetarium/network"
 )
 
 // decayOutcome simulates A -> B at rate k·A; A(t) = exp(−t) is the closed
 // form of first-order decay (common practice).
-func decayOutcome(t *testing.T) *simulate.Outcome {
+func decayOutcome(t *testing.T) *run.Outcome {
 	t.Helper()
 	m := &network.Model{
 		Species:    []network.Species{{Name: "A", Initial: 1}, {Name: "B"}},
@@ -24,7 +24,7 @@ func decayOutcome(t *testing.T) *simulate.Outcome {
 			Rate: network.NewRate(network.MassAction, "k", network.Named("k"))}},
 		Simulation: network.Simulation{TEnd: 4, Output: network.Output{Points: 401}},
 	}
-	o, err := simulate.Run(context.Background(), m, nil)
+	o, err := run.Run(context.Background(), m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -38,7 +38,7 @@ func TestPlotViewReadoutAndZoom(t *testing.T) {
 	defer w.Close()
 	w.Resize(fyne.NewSize(640, 420))
 	o := decayOutcome(t)
-	v.Set(o, simulate.View{Hidden: map[string]bool{"B": true}})
+	v.Set(o, run.View{Hidden: map[string]bool{"B": true}})
 	v.Resize(fyne.NewSize(600, 400))
 	if v.scale == 0 {
 		t.Fatal("figure not drawn")

@@ -11,8 +11,8 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/driver/software"
 
-	"kinetarium/editor/simulate"
-	"kinetarium/network"
+	"kinetarium/app/run"
+	"kinetarium/internal/atomicfile"
 )
 
 // screenshotTimeout is the longest the screenshot mode waits for the plot.
@@ -46,7 +46,7 @@ func (w *mainWindow) screenshot(path string) {
 	}
 	// A run that fails to start draws nothing: capture the window as it is.
 	done := w.ctrl.OnDone
-	w.ctrl.OnDone = func(gen int, o *simulate.Outcome, err error) {
+	w.ctrl.OnDone = func(gen int, o *run.Outcome, err error) {
 		done(gen, o, err)
 		if o == nil && w.captureSoon != nil {
 			w.captureSoon()
@@ -76,7 +76,7 @@ func capture(win fyne.Window, path string) error {
 	if err := png.Encode(&b, img); err != nil {
 		return fmt.Errorf("encoding screenshot: %w", err)
 	}
-	if err := network.WriteFileAtomic(path, b.Bytes()); err != nil {
+	if err := atomicfile.Write(path, b.Bytes()); err != nil {
 		return fmt.Errorf("saving screenshot: %w", err)
 	}
 	return nil

@@ -20,8 +20,8 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
 
-	"kinetarium/editor/study"
-	"kinetarium/editor/tune"
+	"kinetarium/app/sliders"
+	"kinetarium/app/study"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
@@ -38,15 +38,8 @@ type quantity struct {
 // the slider panel: parameters, initial concentrations, volumes.
 func quantities(m *network.Model) []quantity {
 	var out []quantity
-	for _, k := range tune.Candidates(m) {
-		q := quantity{label: optionLabel(k), value: k.Model, knob: k.Name}
-		switch k.Kind {
-		case tune.Initial:
-			q.knob = "init:" + k.Name
-		case tune.Volume:
-			q.knob = "volume:" + k.Name
-		}
-		out = append(out, q)
+	for _, k := range sliders.Candidates(m) {
+		out = append(out, quantity{label: optionLabel(k), value: k.Model, knob: k.Ref()})
 	}
 	return out
 }
@@ -207,40 +200,20 @@ func (e *readoutEditor) specs() ([]study.ReadoutSpec, error) {
 			return nil, fmt.Errorf("readout %d: choose a species", i+1)
 		}
 		s := study.ReadoutSpec{Kind: kind, Species: r.species.Selected}
-		s.Name = readoutName(kind, s.Species)
 		if extra != "" {
 			v, err := number(r.number.Text, fmt.Sprintf("readout %d: the %s", i+1, extra))
 			if err != nil {
 				return nil, err
 			}
 			if extra == "time" {
-				s.Time = v
+				s.Time = &v
 			} else {
-				s.Level = v
+				s.Level = &v
 			}
-			s.Name += "@" + short(v)
 		}
 		out = append(out, s)
 	}
 	return out, nil
-}
-
-// readoutName is the short name of a readout in tables and figures,
-// "final_P" or "max_C".
-func readoutName(k explore.Kind, species string) string {
-	switch k {
-	case explore.ValueAt:
-		return species + "_at"
-	case explore.TimeOfMax:
-		return "tmax_" + species
-	case explore.TimeOfMin:
-		return "tmin_" + species
-	case explore.CrossUp:
-		return "t_up_" + species
-	case explore.CrossDown:
-		return "t_down_" + species
-	}
-	return string(k) + "_" + species
 }
 
 // readoutLabel describes readout r of a job in words, for axis labels:

@@ -19,23 +19,12 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
 
-	"kinetarium/editor/study"
+	"kinetarium/app/study"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
 )
-
-// distributions are the distribution choices, with the names of their two
-// numbers.
-var distributions = []struct {
-	label string
-	a, b  string
-}{
-	{"Log-normal", "median", "CV %"},
-	{"Normal, above zero", "mean", "SD"},
-	{"Uniform", "low", "high"},
-	{"Log-uniform", "low", "high"},
-}
 
 // Sampling choices.
 const (
@@ -64,23 +53,16 @@ func (r *varyRow) distribution(n int) (explore.Distribution, error) {
 	if err != nil {
 		return nil, err
 	}
-	var d explore.Distribution
-	switch r.dist.Selected {
-	case distributions[0].label:
-		d = explore.LogNormal{Median: a, CVPercent: b}
-	case distributions[1].label:
-		d = explore.TruncNormal{Mean: a, SD: b}
-	case distributions[2].label:
-		d = explore.Uniform{Low: a, High: b}
-	case distributions[3].label:
-		d = explore.LogUniform{Low: a, High: b}
-	default:
-		return nil, fmt.Errorf("%s: choose a distribution", what)
+	for _, d := range study.Distributions {
+		if d.Title == r.dist.Selected {
+			x, err := d.Make(a, b)
+			if err != nil {
+				return nil, fmt.Errorf("%s: %w", what, err)
+			}
+			return x, nil
+		}
 	}
-	if err := d.Validate(); err != nil {
-		return nil, fmt.Errorf("%s: %w", what, err)
-	}
-	return d, nil
+	return nil, fmt.Errorf("%s: choose a distribution", what)
 }
 
 // populationWindow is the Population window of one model (as it was when
@@ -196,15 +178,15 @@ func (p *populationWindow) addRow(label string) *varyRow {
 		a:        widget.NewEntry(),
 		b:        widget.NewEntry(),
 	}
-	for _, d := range distributions {
-		r.dist.Options = append(r.dist.Options, d.label)
+	for _, d := range study.Distributions {
+		r.dist.Options = append(r.dist.Options, d.Title)
 	}
 	r.quantity.PlaceHolder = "Choose a quantity…"
 	r.dist.OnChanged = func(s string) {
-		for _, d := range distributions {
-			if d.label == s {
-				r.aLabel.SetText(d.a)
-				r.bLabel.SetText(d.b)
+		for _, d := range study.Distributions {
+			if d.Title == s {
+				r.aLabel.SetText(d.ALabel)
+				r.bLabel.SetText(d.BLabel)
 			}
 		}
 	}
@@ -214,16 +196,16 @@ func (p *populationWindow) addRow(label string) *varyRow {
 			return
 		}
 		if q.value > 0 {
-			r.dist.SetSelected(distributions[0].label)
+			r.dist.SetSelected(study.Distributions[0].Title)
 			r.a.SetText(short(q.value))
 			r.b.SetText("30")
 			return
 		}
-		r.dist.SetSelected(distributions[2].label)
+		r.dist.SetSelected(study.Distributions[2].Title)
 		r.a.SetText("0")
 		r.b.SetText("1")
 	}
-	r.dist.SetSelected(distributions[0].label)
+	r.dist.SetSelected(study.Distributions[0].Title)
 	if label != "" {
 		r.quantity.SetSelected(label)
 	}
@@ -416,7 +398,7 @@ func (p *populationWindow) saveSamples(path string) error {
 	if p.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return study.WriteCSV(path, study.RunRows(p.res))
+	return atomicfile.WriteCSV(path, study.RunRows(p.res))
 }
 
 // saveBands writes the percentile bands of every species (the batch
@@ -425,5 +407,5 @@ func (p *populationWindow) saveBands(path string) error {
 	if p.res == nil || p.res.Bands == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return study.WriteCSV(path, study.BandRows(p.res.Bands, p.prep.Sys.Species()))
+	return atomicfile.WriteCSV(path, study.BandRows(p.res.Bands, p.prep.Sys.Species()))
 }

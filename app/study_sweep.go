@@ -18,7 +18,9 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
 
-	"kinetarium/editor/study"
+	"kinetarium/app/sliders"
+	"kinetarium/app/study"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
@@ -247,16 +249,8 @@ func (s *sweepWindow) finished(job *study.Job, res *explore.Result, err error) {
 	s.drawReadout()
 }
 
-// knobLabel writes a knob name for people: "init:A" is "A₀ (initial)".
-func knobLabel(k string) string {
-	switch {
-	case len(k) > 5 && k[:5] == "init:":
-		return "initial " + k[5:]
-	case len(k) > 7 && k[:7] == "volume:":
-		return "volume of " + k[7:]
-	}
-	return k
-}
+// knobLabel writes a knob name for people: "init:A" is "A initial".
+func knobLabel(ref string) string { return sliders.ParseRef(ref).Label() }
 
 // curveFigure is the family of curves of the chosen species.
 func (s *sweepWindow) curveFigure() (*plot.Plot, error) {
@@ -375,7 +369,7 @@ func (s *sweepWindow) saveRuns(path string) error {
 	if s.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return study.WriteCSV(path, study.RunRows(s.res))
+	return atomicfile.WriteCSV(path, study.RunRows(s.res))
 }
 
 // fileSafe makes s usable in a file name.
@@ -460,7 +454,7 @@ func (f *failureList) save(path string) error {
 	if len(f.res.Failures) == 0 {
 		return fmt.Errorf("no %s failed; there is nothing to save", f.what)
 	}
-	return study.WriteCSV(path, study.FailureRows(f.res))
+	return atomicfile.WriteCSV(path, study.FailureRows(f.res))
 }
 
 // exportAs asks for a file in win and saves the failed points there;

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/csv"
 	"image/png"
 	"math"
 	"os"
@@ -14,8 +13,9 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/test"
 
-	"kinetarium/editor/study"
+	"kinetarium/app/study"
 	"kinetarium/examples"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/solve"
 	"kinetarium/solve/explore"
@@ -111,15 +111,7 @@ func TestSweepDecayClosedForm(t *testing.T) {
 	if err := s.saveRuns(path); err != nil {
 		t.Fatal(err)
 	}
-	f, err := os.Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	rows, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	rows := readCSV(t, path)
 	if len(rows) != 7 || strings.Join(rows[0], ",") != "index,k,final_A" {
 		t.Fatalf("runs.csv starts %v with %d rows", rows[0], len(rows))
 	}
@@ -198,7 +190,7 @@ func TestPopulationZeroSpread(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	single, err := solve.NewSolver(prep.Sys, study.SolveSettings(prep.Sim, prep.Times)).Solve(context.Background(), 0, prep.Sim.TEnd, prep.Sys.Initial())
+	single, err := solve.NewSolver(prep.Sys, prep.Settings).Solve(context.Background(), 0, prep.Sim.TEnd, prep.Sys.Initial())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -261,7 +253,7 @@ func runFailingPopulation(t *testing.T) (*populationWindow, int) {
 	p := openPopulation(t, tuneDecayModel())
 	onUI(func() {
 		p.rows[0].quantity.SetSelected("A (initial concentration)")
-		p.rows[0].dist.SetSelected(distributions[2].label)
+		p.rows[0].dist.SetSelected(study.Distributions[2].Title)
 		p.rows[0].a.SetText("-1")
 		p.rows[0].b.SetText("3")
 		p.removeRow(p.rows[1])
@@ -294,7 +286,7 @@ func runFailingPopulation(t *testing.T) (*populationWindow, int) {
 func TestPopulationFailuresListed(t *testing.T) {
 	p, negative := runFailingPopulation(t)
 	if len(p.failures.lines) != negative || !strings.Contains(p.failures.lines[0], "an initial concentration must be ≥ 0") ||
-		!strings.Contains(p.failures.lines[0], "initial A = -") {
+		!strings.Contains(p.failures.lines[0], "A initial = -") {
 		t.Errorf("failure list %q", p.failures.lines)
 	}
 	if d := os.Getenv("KINETARIUM_SHOTS"); d != "" {
@@ -310,12 +302,7 @@ func TestPopulationFailuresListed(t *testing.T) {
 // readCSV reads a whole CSV file.
 func readCSV(t *testing.T, path string) [][]string {
 	t.Helper()
-	f, err := os.Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	rows, err := csv.NewReader(f).ReadAll()
+	rows, err := atomicfile.ReadCSV(path)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -369,8 +356,8 @@ func TestSweepFailuresExport(t *testing.T) {
 	if s.res == nil || s.res.Failed != 2 || s.failures.export.Disabled() {
 		t.Fatalf("result %+v, status %q", s.res, s.ctl.status.Text)
 	}
-	if len(s.failures.lines) != 2 || !strings.HasPrefix(s.failures.lines[0], "Run 0: initial A = -2 — ") ||
-		!strings.HasPrefix(s.failures.lines[1], "Run 1: initial A = -1 — ") {
+	if len(s.failures.lines) != 2 || !strings.HasPrefix(s.failures.lines[0], "Run 0: A initial = -2 — ") ||
+		!strings.HasPrefix(s.failures.lines[1], "Run 1: A initial = -1 — ") {
 		t.Errorf("failure list %q", s.failures.lines)
 	}
 	path := filepath.Join(t.TempDir(), "failures.csv")

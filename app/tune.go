@@ -14,8 +14,8 @@ import (
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
-	"kinetarium/editor/simulate"
-	"kinetarium/editor/tune"
+	"kinetarium/app/run"
+	"kinetarium/app/sliders"
 	"kinetarium/network"
 )
 
@@ -26,14 +26,14 @@ const sliderSteps = 1000
 // tunePanel is the panel of sliders under the figure: one slider for each
 // parameter, initial concentration or compartment volume the user picks.
 // Moving a slider simulates the model again with the new value, on a
-// goroutine of the tune.Runner (the newest value only), and shows the
+// goroutine of the sliders.Runner (the newest value only), and shows the
 // result in the figure. The model itself changes only with "Write into
 // model", as one undoable edit.
 type tunePanel struct {
 	w      *mainWindow
-	runner *tune.Runner
+	runner *sliders.Runner
 
-	knobs []tune.Knob
+	knobs []sliders.Knob
 	rows  []*tuneRow
 
 	toggle   *widget.Button // "Sliders": opens and closes the panel
@@ -44,7 +44,7 @@ type tunePanel struct {
 	list     *fyne.Container
 	hint     *widget.Label
 	add      *widget.Select
-	options  []tune.Knob // the knobs behind add's entries
+	options  []sliders.Knob // the knobs behind add's entries
 	pin      *widget.Button
 	reset    *widget.Button
 	write    *widget.Button
@@ -54,7 +54,7 @@ type tunePanel struct {
 
 	model   *network.Model // snapshot of the document handed to the runner
 	version int            // the document version model was taken at
-	ref     *simulate.Outcome
+	ref     *run.Outcome
 	tuned   bool // the figure shows a run with values differing from the model
 }
 
@@ -71,7 +71,7 @@ type tuneRow struct {
 
 func newTunePanel(w *mainWindow) *tunePanel {
 	p := &tunePanel{w: w}
-	p.runner = &tune.Runner{Deliver: fyne.Do, OnResult: p.result}
+	p.runner = &sliders.Runner{Deliver: fyne.Do, OnResult: p.result}
 
 	p.toggle = widget.NewButtonWithIcon("Sliders", theme.MenuExpandIcon(), func() { p.setOpen(!p.open) })
 	p.toggle.Importance = widget.LowImportance
@@ -108,7 +108,7 @@ func newTunePanel(w *mainWindow) *tunePanel {
 }
 
 // reference returns the pinned run to draw beneath the current one, or nil.
-func (p *tunePanel) reference() *simulate.Outcome {
+func (p *tunePanel) reference() *run.Outcome {
 	if p == nil || !p.open {
 		return nil
 	}
@@ -130,7 +130,7 @@ func (p *tunePanel) setOpen(on bool) {
 		p.toggle.SetIcon(theme.MenuExpandIcon())
 		p.note.SetText(closedNote)
 		if p.tuned || p.differs() {
-			p.setAll(func(k *tune.Knob) { k.Value = k.Model })
+			p.setAll(func(k *sliders.Knob) { k.Value = k.Model })
 			p.request()
 		}
 		p.w.redraw()
@@ -141,8 +141,8 @@ func (p *tunePanel) setOpen(on bool) {
 	p.toggle.SetIcon(theme.MenuDropDownIcon())
 	p.note.SetText("")
 	if len(p.knobs) == 0 {
-		for _, k := range tune.Candidates(p.w.doc.Model()) {
-			if k.Kind == tune.Parameter && len(p.knobs) < 3 {
+		for _, k := range sliders.Candidates(p.w.doc.Model()) {
+			if k.Kind == sliders.Parameter && len(p.knobs) < 3 {
 				p.knobs = append(p.knobs, k)
 			}
 		}
@@ -163,15 +163,15 @@ func (p *tunePanel) differs() bool {
 }
 
 // optionLabel is the entry of the "Add a slider…" list for k.
-func optionLabel(k tune.Knob) string { return k.Name + " (" + k.Kind.String() + ")" }
+func optionLabel(k sliders.Knob) string { return k.Name + " (" + k.Kind.String() + ")" }
 
 // refreshOptions lists in "Add a slider…" the model's values that have no
 // slider yet.
 func (p *tunePanel) refreshOptions() {
 	p.options = p.options[:0]
 	var labels []string
-	for _, k := range tune.Candidates(p.w.doc.Model()) {
-		if slices.ContainsFunc(p.knobs, func(c tune.Knob) bool { return c.Key() == k.Key() }) {
+	for _, k := range sliders.Candidates(p.w.doc.Model()) {
+		if slices.ContainsFunc(p.knobs, func(c sliders.Knob) bool { return c.Key() == k.Key() }) {
 			continue
 		}
 		p.options = append(p.options, k)
@@ -196,7 +196,7 @@ func (p *tunePanel) addChosen(label string) {
 }
 
 func (p *tunePanel) remove(key string) {
-	i := slices.IndexFunc(p.knobs, func(k tune.Knob) bool { return k.Key() == key })
+	i := slices.IndexFunc(p.knobs, func(k sliders.Knob) bool { return k.Key() == key })
 	if i < 0 {
 		return
 	}
@@ -243,7 +243,7 @@ func (p *tunePanel) newRow(key string) *tuneRow {
 	r.name.Truncation = fyne.TextTruncateEllipsis
 	r.unit.Importance = widget.LowImportance
 	r.unit.Truncation = fyne.TextTruncateEllipsis
-	index := func() int { return slices.IndexFunc(p.knobs, func(k tune.Knob) bool { return k.Key() == key }) }
+	index := func() int { return slices.IndexFunc(p.knobs, func(k sliders.Knob) bool { return k.Key() == key }) }
 	r.slider.OnChanged = func(f float64) {
 		i := index()
 		if r.setting || i < 0 {
@@ -360,13 +360,13 @@ func (p *tunePanel) show(i int) {
 	unit := ""
 	m := p.w.doc.Model()
 	switch k.Kind {
-	case tune.Parameter:
+	case sliders.Parameter:
 		for _, par := range m.Parameters {
 			if par.Name == k.Name {
 				unit = par.Unit
 			}
 		}
-	case tune.Initial:
+	case sliders.Initial:
 		unit = m.Units.Amount
 	}
 	r.unit.SetText(unit)
@@ -376,7 +376,7 @@ func (p *tunePanel) show(i int) {
 }
 
 // setAll changes every knob with f and shows the new values.
-func (p *tunePanel) setAll(f func(k *tune.Knob)) {
+func (p *tunePanel) setAll(f func(k *sliders.Knob)) {
 	for i := range p.knobs {
 		f(&p.knobs[i])
 		if i < len(p.rows) {
@@ -395,7 +395,7 @@ func (p *tunePanel) request() {
 	if p.model == nil || p.version != d.Version() {
 		p.model, p.version = d.Snapshot(), d.Version()
 	}
-	p.runner.Request(tune.Request{Model: p.model, Knobs: slices.Clone(p.knobs)})
+	p.runner.Request(sliders.Request{Model: p.model, Knobs: slices.Clone(p.knobs)})
 }
 
 // say shows msg under the sliders, as a warning when warn is set; an
@@ -414,7 +414,7 @@ func (p *tunePanel) say(msg string, warn bool) {
 }
 
 // result shows the outcome of the newest values.
-func (p *tunePanel) result(_ int, req tune.Request, o *simulate.Outcome, err error) {
+func (p *tunePanel) result(_ int, req sliders.Request, o *run.Outcome, err error) {
 	w := p.w
 	if req.Model != p.model {
 		return // the model changed since
@@ -470,7 +470,7 @@ func (p *tunePanel) togglePin() {
 
 // resetValues puts every slider back at the model's value.
 func (p *tunePanel) resetValues() {
-	p.setAll(func(k *tune.Knob) {
+	p.setAll(func(k *sliders.Knob) {
 		if err := k.Set(k.Model); err != nil {
 			k.Value = k.Model
 		}
@@ -488,7 +488,7 @@ func (p *tunePanel) writeBack() {
 		}
 	}
 	desc := fmt.Sprintf("set %d %s from sliders", n, plural(n, "value", "values"))
-	if !p.w.doc.Apply(desc, func(m *network.Model) { tune.WriteBack(m, knobs) }) {
+	if !p.w.doc.Apply(desc, func(m *network.Model) { sliders.WriteBack(m, knobs) }) {
 		p.say("The model already has these values.", false)
 		return
 	}
@@ -502,7 +502,7 @@ func (p *tunePanel) modelChanged() {
 	m := p.w.doc.Model()
 	kept := p.knobs[:0]
 	for _, k := range p.knobs {
-		v, ok := tune.Lookup(m, k.Kind, k.Name)
+		v, ok := sliders.Lookup(m, k.Kind, k.Name)
 		if !ok {
 			continue
 		}

@@ -12,8 +12,8 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/test"
 
-	"kinetarium/editor/simulate"
-	"kinetarium/editor/tune"
+	"kinetarium/app/run"
+	"kinetarium/app/sliders"
 	"kinetarium/network"
 )
 
@@ -32,7 +32,7 @@ func tuneDecayModel() *network.Model {
 
 // checkTunedDecay compares o with the closed form of first-order decay,
 // A(t) = A0·exp(−k t) (closed form, common practice).
-func checkTunedDecay(t *testing.T, o *simulate.Outcome, k, a0 float64) {
+func checkTunedDecay(t *testing.T, o *run.Outcome, k, a0 float64) {
 	t.Helper()
 	if o == nil || len(o.T) != 51 {
 		t.Fatalf("outcome %v has the wrong number of times", o)
@@ -91,7 +91,7 @@ func knobIndex(t *testing.T, p *tunePanel, label string) int {
 // change to the model.
 func TestTuneSliderResimulates(t *testing.T) {
 	w := openTuneWindow(t, tuneDecayModel())
-	var first *simulate.Outcome
+	var first *run.Outcome
 	var k float64
 	onUI(func() {
 		first = w.current
@@ -140,7 +140,7 @@ func TestTuneSliderResimulates(t *testing.T) {
 // Typing a value outside the range widens it.
 func TestTuneTypedValueWidensRange(t *testing.T) {
 	w := openTuneWindow(t, tuneDecayModel())
-	var first *simulate.Outcome
+	var first *run.Outcome
 	onUI(func() {
 		first = w.current
 		i := knobIndex(t, w.tune, "k")
@@ -170,9 +170,9 @@ func TestTuneDropsStaleResults(t *testing.T) {
 	started := make(chan float64, 16)
 	var mu sync.Mutex
 	var shown []float64
-	var sess *tune.Session
+	var sess *sliders.Session
 	calls := 0 // used by the runner's goroutine only
-	w.tune.runner.Solve = func(ctx context.Context, req tune.Request) (*simulate.Outcome, error) {
+	w.tune.runner.Solve = func(ctx context.Context, req sliders.Request) (*run.Outcome, error) {
 		v := req.Knobs[0].Value
 		started <- v
 		calls++
@@ -185,7 +185,7 @@ func TestTuneDropsStaleResults(t *testing.T) {
 		}
 		if sess == nil || sess.Model() != req.Model {
 			var err error
-			if sess, err = tune.NewSession(req.Model); err != nil {
+			if sess, err = sliders.NewSession(req.Model); err != nil {
 				return nil, err
 			}
 		}
@@ -195,7 +195,7 @@ func TestTuneDropsStaleResults(t *testing.T) {
 		return sess.Run(context.Background())
 	}
 	result := w.tune.result
-	w.tune.runner.OnResult = func(gen int, req tune.Request, o *simulate.Outcome, err error) {
+	w.tune.runner.OnResult = func(gen int, req sliders.Request, o *run.Outcome, err error) {
 		mu.Lock()
 		shown = append(shown, req.Knobs[0].Value)
 		mu.Unlock()
@@ -248,7 +248,7 @@ func TestTuneWriteBackAndReset(t *testing.T) {
 	w := openTuneWindow(t, m)
 	var before *network.Model
 	var k, a0 float64
-	var tuned *simulate.Outcome
+	var tuned *run.Outcome
 	onUI(func() {
 		p := w.tune
 		p.addChosen("A (initial concentration)")
@@ -343,7 +343,7 @@ func TestTuneScreenshot(t *testing.T) {
 		}
 	})
 	waitFor(t, "the first run", func() bool { return w.current != nil && !w.ctrl.Running() })
-	var first *simulate.Outcome
+	var first *run.Outcome
 	onUI(func() {
 		w.tune.setOpen(true)
 		w.tune.addChosen("I (initial concentration)")
@@ -374,11 +374,11 @@ func TestTuneDropsResultOfEditedModel(t *testing.T) {
 	w := openTuneWindow(t, tuneDecayModel())
 	release := make(chan struct{})
 	started := make(chan struct{}, 1)
-	var stale *simulate.Outcome // written by the runner's goroutine before delivery
-	w.tune.runner.Solve = func(ctx context.Context, req tune.Request) (*simulate.Outcome, error) {
+	var stale *run.Outcome // written by the runner's goroutine before delivery
+	w.tune.runner.Solve = func(ctx context.Context, req sliders.Request) (*run.Outcome, error) {
 		started <- struct{}{}
 		<-release
-		s, err := tune.NewSession(req.Model)
+		s, err := sliders.NewSession(req.Model)
 		if err != nil {
 			return nil, err
 		}
@@ -389,7 +389,7 @@ func TestTuneDropsResultOfEditedModel(t *testing.T) {
 		stale = o
 		return o, err
 	}
-	var before *simulate.Outcome
+	var before *run.Outcome
 	onUI(func() {
 		w.autoRerun = false // only the slider's solve delivers
 		before = w.current

@@ -16,8 +16,8 @@ import (
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
+	"kinetarium/app/run"
 	"kinetarium/editor"
-	"kinetarium/editor/simulate"
 	"kinetarium/examples"
 	"kinetarium/network"
 	"kinetarium/solve"
@@ -30,12 +30,12 @@ type mainWindow struct {
 	win  fyne.Window
 	doc  *editor.Document
 	ed   *editor.Editor
-	ctrl *simulate.Controller
+	ctrl *run.Controller
 
 	plot      *plotView
-	tune      *tunePanel        // sliders under the figure
-	current   *simulate.Outcome // shown
-	previous  *simulate.Outcome // the run before, for the overlay
+	tune      *tunePanel   // sliders under the figure
+	current   *run.Outcome // shown
+	previous  *run.Outcome // the run before, for the overlay
 	hidden    map[string]bool
 	overlay   bool
 	autoRerun bool
@@ -71,7 +71,7 @@ func newMainWindow(a fyne.App, screenshotMode bool) *mainWindow {
 		screenshotMode: screenshotMode}
 	w.doc = editor.NewDocument(nil, "")
 	w.ed = editor.New(w.doc, w.win)
-	w.ctrl = &simulate.Controller{Deliver: fyne.Do}
+	w.ctrl = &run.Controller{Deliver: fyne.Do}
 	w.ctrl.OnStart = w.runStarted
 	w.ctrl.OnProgress = func(_ int, f float64) { w.progress.SetValue(f) }
 	w.ctrl.OnDone = w.runDone
@@ -338,7 +338,7 @@ func (w *mainWindow) runStarted(int) {
 	w.status.SetText("Simulating…")
 }
 
-func (w *mainWindow) runDone(_ int, o *simulate.Outcome, err error) {
+func (w *mainWindow) runDone(_ int, o *run.Outcome, err error) {
 	w.progress.Hide()
 	w.cancelBtn.Hide()
 	if o == nil {
@@ -355,7 +355,7 @@ func (w *mainWindow) runDone(_ int, o *simulate.Outcome, err error) {
 		// a log axis, as a modeller would read them.
 		w.fresh = false
 		w.logX.SetChecked(w.doc.Model().Simulation.Output.Spacing == "log")
-		w.logY.SetChecked(simulate.SpansDecades(o, 3))
+		w.logY.SetChecked(run.SpansDecades(o, 3))
 	}
 	line := fmt.Sprintf("Solved in %s with %s (%d steps).", roundDuration(o.Elapsed), plainMethod(o), o.Stats.Steps)
 	w.runInfo.Show()
@@ -405,7 +405,7 @@ func (w *mainWindow) redraw() {
 	if w.current == nil {
 		return
 	}
-	v := simulate.View{LogX: w.logX.Checked, LogY: w.logY.Checked, Hidden: w.hidden, Zoom: w.plot.view.Zoom}
+	v := run.View{LogX: w.logX.Checked, LogY: w.logY.Checked, Hidden: w.hidden, Zoom: w.plot.view.Zoom}
 	if v.Zoom != nil && (v.LogX != w.plot.view.LogX || v.LogY != w.plot.view.LogY) {
 		v.Zoom = nil // a zoom on one scale means little on the other
 	}
@@ -419,7 +419,7 @@ func (w *mainWindow) redraw() {
 }
 
 // view returns the view as on screen, for exports.
-func (w *mainWindow) view() simulate.View { return w.plot.view }
+func (w *mainWindow) view() run.View { return w.plot.view }
 
 // refreshSpecies updates the species checklist for the current outcome and
 // filter.
@@ -493,7 +493,7 @@ func modelBytes(m *network.Model) ([]byte, error) {
 
 // plainMethod names the method of an outcome for the status line, in words
 // for people who are not numerical analysts.
-func plainMethod(o *simulate.Outcome) string {
+func plainMethod(o *run.Outcome) string {
 	stiff := false
 	for _, m := range o.Stats.Methods {
 		if m != solve.Explicit {

@@ -5,6 +5,7 @@ import (
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/widget"
 
+	"kinetarium/app/run"
 	"kinetarium/network"
 )
 
@@ -24,24 +25,6 @@ var TolerancePresets = []TolerancePreset{
 }
 
 const customTolerance = "Custom…"
-
-// MethodTitle returns the plain title of an integration method name of
-// network.Methods.
-func MethodTitle(method string) string {
-	switch method {
-	case "", "auto":
-		return "Automatic"
-	case "rosenbrock":
-		return "Rosenbrock (RODAS4, stiff)"
-	case "radau":
-		return "Radau IIA (order 5, stiff)"
-	case "bdf":
-		return "BDF (orders 1–5, stiff)"
-	case "explicit":
-		return "Dormand–Prince (non-stiff)"
-	}
-	return method
-}
 
 const (
 	spacingLinear = "Evenly spaced"
@@ -127,16 +110,16 @@ func newRunForm(ed *Editor) *runForm {
 	f.atol = number("Absolute tolerance", "atol", "edit absolute tolerance",
 		func(s network.Simulation) float64 { return s.ATol }, func(s *network.Simulation, v float64) { s.ATol = v })
 	var methods []string
-	for _, m := range network.Methods {
-		methods = append(methods, MethodTitle(m))
+	for _, m := range run.Methods {
+		methods = append(methods, m.Choice())
 	}
 	f.method = widget.NewSelect(methods, func(choice string) {
 		if f.loading {
 			return
 		}
-		for _, m := range network.Methods {
-			if MethodTitle(m) == choice {
-				ed.edit("change method", func(mod *network.Model) { mod.Simulation.Method = m })
+		for _, m := range run.Methods {
+			if m.Choice() == choice {
+				ed.edit("change method", func(mod *network.Model) { mod.Simulation.Method = m.Name })
 			}
 		}
 	})
@@ -174,6 +157,15 @@ func (f *runForm) load(m *network.Model, _ int) {
 	custom := preset == customTolerance
 	f.rtol.setVisible(custom)
 	f.atol.setVisible(custom)
-	f.method.SetSelected(MethodTitle(s.Method))
+	f.method.SetSelected(methodChoice(s.Method))
 	f.nonneg.SetChecked(s.KeepNonNegative())
+}
+
+// methodChoice returns the label of a model file's method word in the
+// method list; an unknown word shows as itself.
+func methodChoice(name string) string {
+	if m, err := run.LookupMethod(name); err == nil {
+		return m.Choice()
+	}
+	return name
 }

@@ -8,9 +8,10 @@ import (
 	"io"
 	"math"
 	"os"
-	"path/filepath"
 	"sort"
 	"strings"
+
+	"kinetarium/internal/atomicfile"
 )
 
 // Read decodes a model file (JSON, format "kinetarium.model/1") from r.
@@ -550,36 +551,5 @@ func (m *Model) Save(path string) error {
 	if err := m.Write(&buf); err != nil {
 		return fmt.Errorf("saving %s: %w", path, err)
 	}
-	return WriteFileAtomic(path, buf.Bytes())
-}
-
-// WriteFileAtomic writes data to path through a temporary file in the same
-// directory, fsync and rename.
-func WriteFileAtomic(path string, data []byte) error {
-	dir := filepath.Dir(path)
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp*")
-	if err != nil {
-		return fmt.Errorf("saving %s: %w", path, err)
-	}
-	name := tmp.Name()
-	_, err = tmp.Write(data)
-	if err == nil {
-		err = tmp.Sync()
-	}
-	if cerr := tmp.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		if fi, serr := os.Stat(path); serr == nil {
-			_ = os.Chmod(name, fi.Mode().Perm())
-		} else {
-			_ = os.Chmod(name, 0o644)
-		}
-		err = os.Rename(name, path)
-	}
-	if err != nil {
-		os.Remove(name)
-		return fmt.Errorf("saving %s: %w", path, err)
-	}
-	return nil
+	return atomicfile.Write(path, buf.Bytes())
 }

@@ -181,17 +181,38 @@ func project(yn, e []float64) bool {
 
 // StepError reports why an integration stopped early.
 type StepError struct {
-	T      float64 // time of the last accepted step
-	H      float64 // step size at failure
-	Reason string  // plain-language cause
+	T float64 // time of the last accepted step
+	H float64 // step size at failure
 	// Component is the index of the state variable at fault (for example
 	// the one that became NaN), or -1 when no single one is.
 	Component int
+	// Reason is the plain-language cause. When Component ≥ 0 it is the
+	// predicate of a sentence whose subject is that component ("became NaN
+	// at t = 2"), and never contains the index itself, so that Describe can
+	// name the component in the caller's terms.
+	Reason string
 }
 
-// Error describes the failure with its time, step size and cause.
-func (e *StepError) Error() string {
-	return fmt.Sprintf("integration stopped at t = %.6g with step size %.3g: %s", e.T, e.H, e.Reason)
+// Error describes the failure with its time, step size and cause, naming
+// the component at fault by its index ("component 3").
+func (e *StepError) Error() string { return e.Describe(nil) }
+
+// Describe is Error with the component at fault named by name(Component)
+// ("species \"ES\"", say); a nil name, or one that returns "", gives
+// "component 3".
+func (e *StepError) Describe(name func(i int) string) string {
+	reason := e.Reason
+	if e.Component >= 0 {
+		subject := ""
+		if name != nil {
+			subject = name(e.Component)
+		}
+		if subject == "" {
+			subject = fmt.Sprintf("component %d", e.Component)
+		}
+		reason = subject + " " + reason
+	}
+	return fmt.Sprintf("integration stopped at t = %.6g with step size %.3g: %s", e.T, e.H, reason)
 }
 
 // eps is the unit roundoff of float64.
@@ -209,7 +230,7 @@ func (p *problem) nonFiniteError(t, h float64, v []float64, i int) *StepError {
 		what = "infinite"
 	}
 	return &StepError{T: t, H: h, Component: i,
-		Reason: fmt.Sprintf("component %d became %s at t = %.6g; a rate expression may be undefined there (division by zero, log or root of a negative number, overflow)", i, what, t)}
+		Reason: fmt.Sprintf("became %s at t = %.6g; a rate expression may be undefined there (division by zero, log or root of a negative number, overflow)", what, t)}
 }
 
 // tooSmallError reports that the step size fell below what t can resolve.
@@ -217,7 +238,7 @@ func (p *problem) nonFiniteError(t, h float64, v []float64, i int) *StepError {
 func (p *problem) tooSmallError(t, h float64, bad int) *StepError {
 	if bad >= 0 {
 		return &StepError{T: t, H: h, Component: bad,
-			Reason: fmt.Sprintf("component %d became NaN or infinite in every attempted step after t = %.6g; a rate expression may be undefined there or the solution may grow without bound", bad, t)}
+			Reason: fmt.Sprintf("became NaN or infinite in every attempted step after t = %.6g; a rate expression may be undefined there or the solution may grow without bound", t)}
 	}
 	return &StepError{T: t, H: h, Component: -1,
 		Reason: "the step size fell below the smallest step the time scale allows; the solution may be growing without bound, or a rate may be discontinuous or singular here"}

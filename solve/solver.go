@@ -236,13 +236,13 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 				set.OnStop(t, sv.y)
 				if i := nonFinite(sv.y); i >= 0 {
 					return out.result(sv, start), &StepError{T: t, Component: i,
-						Reason: fmt.Sprintf("the stop-time action at t = %g made component %d %v", t, i, sv.y[i])}
+						Reason: fmt.Sprintf("was made %v by the stop-time action at t = %g", sv.y[i], t)}
 				}
 				if set.NonNegative {
 					for i, v := range sv.y {
 						if v < 0 {
 							return out.result(sv, start), &StepError{T: t, Component: i,
-								Reason: fmt.Sprintf("the stop-time action at t = %g made component %d negative (%g)", t, i, v)}
+								Reason: fmt.Sprintf("was made negative (%g) by the stop-time action at t = %g", v, t)}
 						}
 					}
 				}
@@ -389,9 +389,9 @@ func (sv *Solver) tooManySteps(st stepper, maxSteps int) *StepError {
 	}
 	if worst >= 0 {
 		e.Component = worst
-		e.Reason = fmt.Sprintf("took more than %d steps: component %d is at zero but its rate of change is still negative (%.3g), "+
-			"so keeping it non-negative stalls the solver; a rate law may go negative there (check custom expressions), "+
-			"or switch off non-negativity to see the negative values", maxSteps, worst, rate)
+		e.Reason = fmt.Sprintf("is at zero but its rate of change is still negative (%.3g), so keeping it non-negative "+
+			"stalls the solver (more than %d steps); a rate law may go negative there (check custom expressions), "+
+			"or switch off non-negativity to see the negative values", rate, maxSteps)
 	}
 	return e
 }

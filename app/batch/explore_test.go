@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"context"
-	"encoding/csv"
 	"math"
 	"os"
 	"path/filepath"
@@ -13,13 +12,14 @@ import (
 	"testing"
 	"time"
 
-	"kinetarium/editor/study"
+	"kinetarium/app/study"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/solve/explore"
 )
 
-// run calls a subcommand and fails the test when it does not succeed.
-func run(t *testing.T, cmd func([]string, io2, io2) int, args ...string) string {
+// mustRun calls a subcommand and fails the test when it does not succeed.
+func mustRun(t *testing.T, cmd func([]string, io2, io2) int, args ...string) string {
 	t.Helper()
 	var out, errb bytes.Buffer
 	if rc := cmd(args, &out, &errb); rc != 0 {
@@ -35,16 +35,12 @@ func sweepCmd(a []string, o, e io2) int { return runSweep(a, o, e) }
 func popCmd(a []string, o, e io2) int   { return runPopulation(a, o, e) }
 func mergeCmd(a []string, o, e io2) int { return runMerge(a, o, e) }
 
+// readCSV reads a whole CSV file.
 func readCSV(t *testing.T, path string) [][]string {
 	t.Helper()
-	f, err := os.Open(path)
+	rows, err := atomicfile.ReadCSV(path)
 	if err != nil {
 		t.Fatal(err)
-	}
-	defer f.Close()
-	rows, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatalf("%s: %v", path, err)
 	}
 	return rows
 }
@@ -65,7 +61,7 @@ const testdata = "testdata/explore/"
 // t = 0, 0.1, …, 10.
 func TestPopulationAgainstClosedForm(t *testing.T) {
 	dir := t.TempDir()
-	run(t, popCmd, testdata+"population.json", "--out", dir, "--quiet")
+	mustRun(t, popCmd, testdata+"population.json", "--out", dir, "--quiet")
 	rows := readCSV(t, filepath.Join(dir, "samples.csv"))
 	if got := strings.Join(rows[0], ","); got != "index,k,init:A,auc_A,t_B5,A_at_2.5" {
 		t.Fatalf("header %q", got)
@@ -146,17 +142,17 @@ func TestShardsMergeToTheSingleRun(t *testing.T) {
 				cmd = sweepCmd
 			}
 			single, one, parts := t.TempDir(), t.TempDir(), t.TempDir()
-			run(t, cmd, testdata+spec, "--out", single, "--quiet", "--workers", "2")
-			run(t, cmd, testdata+spec, "--out", one, "--quiet", "--workers", "1")
+			mustRun(t, cmd, testdata+spec, "--out", single, "--quiet", "--workers", "2")
+			mustRun(t, cmd, testdata+spec, "--out", one, "--quiet", "--workers", "1")
 			sameFiles(t, single, one)
 			var names []string
 			for i := range 3 {
-				run(t, cmd, "--shard", strconv.Itoa(i)+"/3", testdata+spec, "--out", parts, "--quiet")
+				mustRun(t, cmd, "--shard", strconv.Itoa(i)+"/3", testdata+spec, "--out", parts, "--quiet")
 				names = append(names, filepath.Join(parts, "part-"+strconv.Itoa(i)+"-of-3.json"))
 			}
 			merged := t.TempDir()
 			names[0], names[2] = names[2], names[0]
-			run(t, mergeCmd, append(names, "--out", merged)...)
+			mustRun(t, mergeCmd, append(names, "--out", merged)...)
 			sameFiles(t, single, merged)
 			var out, errb bytes.Buffer
 			if runMerge(append(names[:2:2], "--out", t.TempDir()), &out, &errb) == 0 || !strings.Contains(errb.String(), "missing") {
@@ -168,7 +164,7 @@ func TestShardsMergeToTheSingleRun(t *testing.T) {
 
 func TestSweepOutputs(t *testing.T) {
 	dir := t.TempDir()
-	run(t, sweepCmd, testdata+"sweep.json", "--out", dir, "--quiet")
+	mustRun(t, sweepCmd, testdata+"sweep.json", "--out", dir, "--quiet")
 	rows := readCSV(t, filepath.Join(dir, "runs.csv"))
 	if len(rows) != 6 {
 		t.Fatalf("%d runs, want 5", len(rows)-1)
@@ -190,7 +186,7 @@ func TestSweepOutputs(t *testing.T) {
 		}
 	}
 	dir2 := t.TempDir()
-	run(t, sweepCmd, testdata+"grid.json", "--out", dir2, "--quiet")
+	mustRun(t, sweepCmd, testdata+"grid.json", "--out", dir2, "--quiet")
 	m := readCSV(t, filepath.Join(dir2, "matrix_final_B.csv"))
 	if len(m) != 5 || len(m[0]) != 4 {
 		t.Fatalf("matrix %d × %d, want 5 × 4 with headers", len(m), len(m[0]))
@@ -255,10 +251,11 @@ func BenchmarkPopulation20(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	sys, err := network.Compile(m)
+	prep, err := study.Prepare(m)
 	if err != nil {
 		b.Fatal(err)
 	}
+	sys := prep.Sys
 	names := sys.Parameters()[:2]
 	tg, err := study.NewTarget(sys, names)
 	if err != nil {
@@ -269,14 +266,13 @@ func BenchmarkPopulation20(b *testing.B) {
 		i, _ := sys.ParameterIndex(nm)
 		dists = append(dists, explore.LogNormal{Median: sys.Parameter(i), CVPercent: 30})
 	}
-	sim := m.Simulation.WithDefaults()
-	times := network.OutputTimes(sim.TEnd, sim.Output)
+	sim, times := prep.Sim, prep.Times
 	const size = 256
 	pts, err := explore.Population{Vary: dists, Size: size, Seed: 1}.Sample()
 	if err != nil {
 		b.Fatal(err)
 	}
-	ode := &explore.ODE{Target: tg, TEnd: sim.TEnd, Settings: study.SolveSettings(sim, times)}
+	ode := &explore.ODE{Target: tg, TEnd: sim.TEnd, Settings: prep.Settings}
 	var rate1 float64
 	for _, w := range []int{1, 2} {
 		b.Run("workers="+strconv.Itoa(w), func(b *testing.B) {

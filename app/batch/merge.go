@@ -18,8 +18,8 @@ import (
 
 	"gonum.org/v1/plot"
 
-	"kinetarium/editor/study"
-	"kinetarium/network"
+	"kinetarium/app/study"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
 )
@@ -67,7 +67,7 @@ func finish(meta *runMeta, res *explore.Result, c *cmdFlags, stdout io.Writer) e
 			return err
 		}
 		path := filepath.Join(c.out, fmt.Sprintf("part-%d-of-%d.json", c.shard.I, c.shard.N))
-		if err := network.WriteFileAtomic(path, append(data, '\n')); err != nil {
+		if err := atomicfile.Write(path, append(data, '\n')); err != nil {
 			return err
 		}
 		fmt.Fprintf(stdout, "%s shard %v: %d runs, %d failed; wrote %s (combine the shards with merge)\n",
@@ -149,7 +149,7 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 // writeCSV writes rows to dir/name atomically.
 func writeCSV(dir, name string, rows [][]string) (string, error) {
 	path := filepath.Join(dir, name)
-	return path, study.WriteCSV(path, rows)
+	return path, atomicfile.WriteCSV(path, rows)
 }
 
 // unsafeName matches runs of characters kept out of file names.

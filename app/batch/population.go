@@ -7,9 +7,8 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
-	"slices"
 
-	"kinetarium/editor/study"
+	"kinetarium/app/study"
 	"kinetarium/solve/explore"
 )
 
@@ -58,53 +57,29 @@ type varySpec struct {
 // distribution returns the explore distribution of v; path names v in
 // errors.
 func (v varySpec) distribution(path string) (explore.Distribution, error) {
-	given := map[string]bool{
-		"median": v.Median != nil, "cv_percent": v.CVPercent != nil, "mean": v.Mean != nil,
-		"sd": v.SD != nil, "low": v.Low != nil, "high": v.High != nil,
-	}
-	need := func(keys ...string) error {
-		for _, k := range keys {
-			if !given[k] {
-				return fmt.Errorf("%s.%s: missing (a %s distribution needs %v)", path, k, v.Distribution, keys)
-			}
-			delete(given, k)
-		}
-		for k, ok := range given {
-			if ok {
-				return fmt.Errorf("%s.%s: not used by a %s distribution (it takes %v)", path, k, v.Distribution, keys)
-			}
-		}
-		return nil
-	}
-	var d explore.Distribution
-	var err error
-	switch v.Distribution {
-	case "lognormal":
-		if err = need("median", "cv_percent"); err == nil {
-			d = explore.LogNormal{Median: *v.Median, CVPercent: *v.CVPercent}
-		}
-	case "normal":
-		if err = need("mean", "sd"); err == nil {
-			d = explore.TruncNormal{Mean: *v.Mean, SD: *v.SD}
-		}
-	case "uniform":
-		if err = need("low", "high"); err == nil {
-			d = explore.Uniform{Low: *v.Low, High: *v.High}
-		}
-	case "loguniform":
-		if err = need("low", "high"); err == nil {
-			d = explore.LogUniform{Low: *v.Low, High: *v.High}
-		}
-	default:
-		return nil, fmt.Errorf("%s.distribution: expected lognormal, normal, uniform or loguniform, got %q", path, v.Distribution)
-	}
+	d, err := study.LookupDistribution(v.Distribution)
 	if err != nil {
-		return nil, err
+		return nil, fmt.Errorf("%s.distribution: %w", path, err)
 	}
-	if err := d.Validate(); err != nil {
+	given := map[string]*float64{
+		"median": v.Median, "cv_percent": v.CVPercent, "mean": v.Mean,
+		"sd": v.SD, "low": v.Low, "high": v.High,
+	}
+	for _, k := range []string{d.A, d.B} {
+		if given[k] == nil {
+			return nil, fmt.Errorf("%s.%s: missing (a %s distribution needs %s and %s)", path, k, d.Name, d.A, d.B)
+		}
+	}
+	for _, k := range []string{"median", "cv_percent", "mean", "sd", "low", "high"} {
+		if given[k] != nil && k != d.A && k != d.B {
+			return nil, fmt.Errorf("%s.%s: not used by a %s distribution (it takes %s and %s)", path, k, d.Name, d.A, d.B)
+		}
+	}
+	x, err := d.Make(*given[d.A], *given[d.B])
+	if err != nil {
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}
-	return d, nil
+	return x, nil
 }
 
 // runPopulation is the population subcommand.
@@ -148,8 +123,8 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		return nil, nil, fmt.Errorf("%s: vary: empty; give at least one knob", c.spec)
 	}
 	var (
-		knobs, paths []string
-		dists        []explore.Distribution
+		vary  []study.Vary
+		paths []string
 	)
 	for i, it := range items {
 		path := fmt.Sprintf("vary[%d]", i)
@@ -160,24 +135,16 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		if v.Target == "" {
 			return nil, nil, fmt.Errorf("%s: %s.target: missing (a parameter name, init:SPECIES or volume:COMPARTMENT)", c.spec, path)
 		}
-		if slices.Contains(knobs, v.Target) {
-			return nil, nil, fmt.Errorf("%s: %s.target: %q is varied twice", c.spec, path, v.Target)
-		}
 		d, err := v.distribution(path)
 		if err != nil {
 			return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
 		}
-		knobs, paths, dists = append(knobs, v.Target), append(paths, path+".target"), append(dists, d)
+		vary, paths = append(vary, study.Vary{Knob: v.Target, Dist: d}), append(paths, path+".target")
 	}
-	tg, err := newTarget(c.spec, l.Sys, knobs, paths)
+	ro, err := readoutSpecs(c.spec, spec.Readouts)
 	if err != nil {
 		return nil, nil, err
 	}
-	ro, err := readouts(l, c.spec, spec.Readouts)
-	if err != nil {
-		return nil, nil, err
-	}
-	var bands *explore.Bands
 	var bandSp []string
 	if len(spec.Bands) > 0 && string(spec.Bands) != "null" {
 		var b struct {
@@ -186,33 +153,22 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		if err := strict(spec.Bands, &b, "bands"); err != nil {
 			return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
 		}
-		var comps []int
 		for i, sp := range b.Species {
-			j, ok := l.Sys.SpeciesIndex(sp)
-			if !ok {
+			if _, ok := l.Sys.SpeciesIndex(sp); !ok {
 				return nil, nil, fmt.Errorf("%s: bands.species[%d]: no species %q in the model", c.spec, i, sp)
 			}
-			comps = append(comps, j)
 		}
 		bandSp = b.Species
-		bands = explore.NewBands(comps, l.Times)
 	}
-	pts, err := explore.Population{Vary: dists, Size: spec.Samples, Seed: *spec.Seed, Sampling: explore.Sampling(spec.Sampling)}.Sample()
+	pj, err := l.Population(vary, spec.Samples, *spec.Seed, explore.Sampling(spec.Sampling), ro, bandSp)
 	if err != nil {
-		return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
+		return nil, nil, jobError(c.spec, err, paths)
 	}
 	meta := &runMeta{
 		Kind: "population", Spec: filepath.Base(c.spec), Title: l.Model.Title,
 		TimeUnit: l.Model.Units.Time, AmountUnit: l.Model.Units.Amount,
-		Knobs: knobs, Species: l.Sys.Species(), BandSpecies: bandSp, LogTime: l.Sim.Output.Spacing == "log",
+		Knobs: pj.Settings.Knobs, Species: l.Sys.Species(), BandSpecies: bandSp,
+		ReadoutSpecies: pj.Species, LogTime: l.Sim.Output.Spacing == "log",
 	}
-	for _, r := range ro {
-		meta.ReadoutSpecies = append(meta.ReadoutSpecies, l.Sys.Species()[r.Component])
-	}
-	return c, &job{
-		meta:     meta,
-		design:   pts,
-		ode:      &explore.ODE{Target: tg, TEnd: l.Sim.TEnd, Settings: study.SolveSettings(l.Sim, l.Times)},
-		settings: explore.Settings{Knobs: knobs, Readouts: ro, Bands: bands},
-	}, nil
+	return c, &job{meta: meta, Job: pj}, nil
 }

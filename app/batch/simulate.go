@@ -4,7 +4,6 @@ package main
 // figure and solver statistics.
 
 import (
-	"bytes"
 	"context"
 	"encoding/json"
 	"errors"
@@ -17,11 +16,10 @@ import (
 	"path/filepath"
 	"slices"
 	"sort"
-	"strconv"
 	"strings"
 	"time"
 
-	edsim "kinetarium/editor/simulate"
+	"kinetarium/app/run"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve"
@@ -99,8 +97,8 @@ func parseSimFlags(args []string) (*simFlags, error) {
 		return nil, simBadf("--rtol: expected a relative tolerance between 0 and 1, got %v", f.rtol)
 	case f.set["atol"] && !(f.atol > 0 && finite(f.atol)):
 		return nil, simBadf("--atol: expected a positive absolute tolerance, got %v", f.atol)
-	case f.set["method"] && !slices.Contains(network.Methods, f.method):
-		return nil, simBadf("--method: expected one of %s, got %q", strings.Join(network.Methods, ", "), f.method)
+	case f.set["method"] && methodErr(f.method) != nil:
+		return nil, simBadf("--method: %v", methodErr(f.method))
 	case f.repeat < 1:
 		return nil, simBadf("--repeat: expected at least 1, got %d", f.repeat)
 	case f.set["figure"] && !slices.Contains(plotting.Formats, strings.ToLower(filepath.Ext(f.figure))):
@@ -109,6 +107,12 @@ func parseSimFlags(args []string) (*simFlags, error) {
 		return nil, simBadf("--out: expected a file name")
 	}
 	return f, nil
+}
+
+// methodErr is run.LookupMethod's verdict on a method word.
+func methodErr(name string) error {
+	_, err := run.LookupMethod(name)
+	return err
 }
 
 // runSimulate is the simulate subcommand.
@@ -179,14 +183,9 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 	if err != nil {
 		return badInput(fmt.Errorf("%s: %w", f.model, err))
 	}
-	times := network.OutputTimes(sim.TEnd, sim.Output)
-	method := solve.Method(sim.Method)
-	if sim.Method == "auto" {
-		method = solve.Auto
-	}
-	settings := solve.Settings{
-		RTol: sim.RTol, ATol: sim.ATol, Method: method,
-		Times: times, NonNegative: sim.KeepNonNegative(),
+	settings, err := run.Settings(sim)
+	if err != nil {
+		return badInput(fmt.Errorf("%s: %w", f.model, err))
 	}
 
 	solver := solve.NewSolver(sys, settings)
@@ -205,21 +204,24 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 		}
 	}
 	if solveErr != nil {
-		solveErr = fmt.Errorf("%s: %s", f.model, edsim.SpeciesNames(solveErr.Error(), sys.Species()))
+		solveErr = fmt.Errorf("%s: %w", f.model, run.NameSpecies(solveErr, sys.Species()))
 	}
 
 	// Write what was computed, even after a failure.
 	var outErr error
-	csvData := trajectoryCSV(sys.Species(), res)
+	traj := &run.Outcome{Title: m.Title, TimeUnit: m.Units.Time, AmountUnit: m.Units.Amount, Names: sys.Species()}
+	if res != nil {
+		traj.T, traj.Y = res.T, res.Y
+	}
 	if f.out != "" {
-		if err := network.WriteFileAtomic(f.out, csvData); err != nil {
+		if err := run.SaveCSV(f.out, traj); err != nil {
 			outErr = fmt.Errorf("writing the trajectories: %w", err)
 		}
-	} else if _, err := stdout.Write(csvData); err != nil {
+	} else if err := run.WriteCSV(stdout, traj); err != nil {
 		outErr = fmt.Errorf("writing the trajectories: %w", err)
 	}
 	if f.figure != "" && res != nil {
-		if err := drawFigure(f.figure, m, sys.Species(), res, sim.Output.Spacing == "log", f.logY); err != nil {
+		if err := drawFigure(f.figure, traj, run.View{LogX: sim.Output.Spacing == "log", LogY: f.logY}); err != nil {
 			outErr = errors.Join(outErr, fmt.Errorf("drawing the figure: %w", err))
 		}
 	}
@@ -251,51 +253,10 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 	return errors.Join(solveErr, outErr)
 }
 
-// trajectoryCSV returns the table "time,<species>" with one row per output
-// time of res (none when res is nil), numbers in the shortest form that
-// reads back exactly.
-func trajectoryCSV(names []string, res *solve.Result) []byte {
-	var b bytes.Buffer
-	b.WriteString("time")
-	for _, n := range names {
-		b.WriteByte(',')
-		b.WriteString(csvField(n))
-	}
-	b.WriteByte('\n')
-	if res == nil {
-		return b.Bytes()
-	}
-	var num []byte
-	for i, t := range res.T {
-		num = strconv.AppendFloat(num[:0], t, 'g', -1, 64)
-		b.Write(num)
-		for _, v := range res.Y[i] {
-			num = strconv.AppendFloat(num[:0], v, 'g', -1, 64)
-			b.WriteByte(',')
-			b.Write(num)
-		}
-		b.WriteByte('\n')
-	}
-	return b.Bytes()
-}
-
-// csvField quotes s when CSV requires it (RFC 4180).
-func csvField(s string) string {
-	if !strings.ContainsAny(s, ",\"\r\n") {
-		return s
-	}
-	return `"` + strings.ReplaceAll(s, `"`, `""`) + `"`
-}
-
-// drawFigure saves the trajectories of res to path.
-func drawFigure(path string, m *network.Model, names []string, res *solve.Result, logX, logY bool) error {
-	tr := plotting.Trajectories{Times: res.T, Names: names, Values: res.Y}
-	p, err := plotting.TrajectoryPlot(tr, plotting.Options{
-		Title:  m.Title,
-		XLabel: "time", XUnit: m.Units.Time,
-		YLabel: "concentration", YUnit: m.Units.Amount,
-		LogX: logX, LogY: logY,
-	})
+// drawFigure saves the trajectories of o, drawn as the window draws them,
+// to path.
+func drawFigure(path string, o *run.Outcome, v run.View) error {
+	p, err := run.Figure(o, v)
 	if err != nil {
 		return err
 	}

@@ -14,7 +14,6 @@ import (
 	"strings"
 	"testing"
 
-	edsim "kinetarium/editor/simulate"
 	"kinetarium/network"
 )
 
@@ -346,9 +345,15 @@ func TestDispatch(t *testing.T) {
 	}
 }
 
-func TestSpeciesNamesInMessages(t *testing.T) {
-	got := edsim.SpeciesNames("component 1 became NaN at t = 3; component 7 too", []string{"A", "B"})
-	if want := `species "B" became NaN at t = 3; component 7 too`; got != want {
-		t.Errorf("got %q, want %q", got, want)
+// A rate that is undefined after t = 1 (the square root of a negative
+// number is NaN, IEEE 754; common practice) stops the solve there, and the
+// message names the species, not the solver's component index.
+func TestSolverErrorNamesTheSpecies(t *testing.T) {
+	rc, _, errs := simRun(simTestdata+"nan-rate.json", "--out", filepath.Join(t.TempDir(), "out.csv"))
+	if rc != 1 || !strings.Contains(errs, `species "B" became NaN`) || strings.Contains(errs, "component") {
+		t.Errorf("exit %d, stderr %q; want 1 and species \"B\" named", rc, errs)
+	}
+	if !strings.Contains(errs, "t = 1 ") {
+		t.Errorf("stderr %q does not give the time the rate became undefined (t = 1)", errs)
 	}
 }

@@ -20,7 +20,7 @@ import (
 	"strings"
 	"time"
 
-	"kinetarium/editor/study"
+	"kinetarium/app/study"
 	"kinetarium/network"
 	"kinetarium/solve/explore"
 )
@@ -132,20 +132,6 @@ func readSpec(path, format string, v any) error {
 	return nil
 }
 
-// newTarget resolves knob names on sys with study.NewTarget; errors name
-// the spec key path of the unknown knob.
-func newTarget(specPath string, sys *network.System, names, paths []string) (*study.Target, error) {
-	tg, err := study.NewTarget(sys, names)
-	var ke *study.KnobError
-	if errors.As(err, &ke) {
-		return nil, fmt.Errorf("%s: %s: %w", specPath, paths[ke.Index], ke.Err)
-	}
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", specPath, err)
-	}
-	return tg, nil
-}
-
 // loadModel loads the model named by a spec (relative to the spec's
 // folder), applies the simulation override and compiles it.
 func loadModel(specPath, model string, simRaw json.RawMessage) (*study.Prepared, error) {
@@ -183,15 +169,16 @@ func loadModel(specPath, model string, simRaw json.RawMessage) (*study.Prepared,
 			sim.Output.Spacing = o.Spacing
 		}
 	}
-	sys, err := network.Compile(m)
+	m.Simulation = sim
+	p, err := study.Prepare(m)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", model, err)
 	}
-	return &study.Prepared{Model: m, Sys: sys, Sim: sim, Times: network.OutputTimes(sim.TEnd, sim.Output)}, nil
+	return p, nil
 }
 
-// readouts decodes and resolves the readouts of a spec.
-func readouts(l *study.Prepared, specPath string, raw json.RawMessage) ([]explore.Readout, error) {
+// readoutSpecs decodes the readouts of a spec; study resolves them.
+func readoutSpecs(specPath string, raw json.RawMessage) ([]study.ReadoutSpec, error) {
 	if len(raw) == 0 {
 		return nil, nil
 	}
@@ -199,63 +186,41 @@ func readouts(l *study.Prepared, specPath string, raw json.RawMessage) ([]explor
 	if err := strict(raw, &items, "readouts"); err != nil {
 		return nil, fmt.Errorf("%s: %w", specPath, err)
 	}
-	var out []explore.Readout
-	seen := map[string]bool{}
+	var out []study.ReadoutSpec
 	for i, it := range items {
-		path := fmt.Sprintf("readouts[%d]", i)
 		var rs readoutSpec
-		if err := strict(it, &rs, path); err != nil {
+		if err := strict(it, &rs, fmt.Sprintf("readouts[%d]", i)); err != nil {
 			return nil, fmt.Errorf("%s: %w", specPath, err)
 		}
-		bad := func(format string, a ...any) error {
-			return fmt.Errorf("%s: %s.%s", specPath, path, fmt.Sprintf(format, a...))
-		}
-		j, ok := l.Sys.SpeciesIndex(rs.Species)
-		if !ok {
-			return nil, bad("species: no species %q in the model (species: %s)", rs.Species, strings.Join(l.Sys.Species(), ", "))
-		}
-		r := explore.Readout{Name: rs.Name, Kind: explore.Kind(rs.Kind), Component: j}
-		if r.Name == "" {
-			r.Name = rs.Kind + "_" + rs.Species
-		}
-		switch r.Kind {
-		case explore.ValueAt:
-			if rs.Time == nil {
-				return nil, bad("time: missing (value_at needs the time to read at)")
-			}
-			r.At = *rs.Time
-		case explore.CrossUp, explore.CrossDown:
-			if rs.Level == nil {
-				return nil, bad("level: missing (%s needs the threshold)", rs.Kind)
-			}
-			r.Level = *rs.Level
-		}
-		if rs.Time != nil && r.Kind != explore.ValueAt {
-			return nil, bad("time: only value_at takes a time")
-		}
-		if rs.Level != nil && r.Kind != explore.CrossUp && r.Kind != explore.CrossDown {
-			return nil, bad("level: only cross_up and cross_down take a level")
-		}
-		if err := r.Validate(l.Sys.Dim()); err != nil {
-			return nil, fmt.Errorf("%s: %s: %w", specPath, path, err)
-		}
-		if seen[r.Name] {
-			return nil, bad("name: %q is used twice", r.Name)
-		}
-		seen[r.Name] = true
-		out = append(out, r)
+		out = append(out, study.ReadoutSpec{Name: rs.Name, Kind: explore.Kind(rs.Kind), Species: rs.Species, Time: rs.Time, Level: rs.Level})
 	}
 	return out, nil
 }
 
-// axis decodes a swept knob and returns its values.
-func axis(specPath string, raw json.RawMessage, path string) (axisSpec, []float64, error) {
+// jobError names the spec key of a problem that study found: knobPaths
+// are the keys of the knobs, in order; a readout or a varied quantity is
+// named by its list and position.
+func jobError(specPath string, err error, knobPaths []string) error {
+	var ke *study.KnobError
+	var ie *study.ItemError
+	switch {
+	case errors.As(err, &ke):
+		return fmt.Errorf("%s: %s: %w", specPath, knobPaths[ke.Index], ke.Err)
+	case errors.As(err, &ie):
+		list := map[string]string{"readout": "readouts", "quantity": "vary"}[ie.List]
+		return fmt.Errorf("%s: %s[%d].%s: %w", specPath, list, ie.Index, ie.Field, ie.Err)
+	}
+	return fmt.Errorf("%s: %w", specPath, err)
+}
+
+// axis decodes a swept knob.
+func axis(specPath string, raw json.RawMessage, path string) (study.Axis, error) {
 	var a axisSpec
 	if err := strict(raw, &a, path); err != nil {
-		return a, nil, fmt.Errorf("%s: %w", specPath, err)
+		return study.Axis{}, fmt.Errorf("%s: %w", specPath, err)
 	}
-	bad := func(format string, x ...any) (axisSpec, []float64, error) {
-		return a, nil, fmt.Errorf("%s: %s.%s", specPath, path, fmt.Sprintf(format, x...))
+	bad := func(format string, x ...any) (study.Axis, error) {
+		return study.Axis{}, fmt.Errorf("%s: %s.%s", specPath, path, fmt.Sprintf(format, x...))
 	}
 	switch {
 	case a.Target == "":
@@ -274,11 +239,7 @@ func axis(specPath string, raw json.RawMessage, path string) (axisSpec, []float6
 	default:
 		return bad("spacing: expected \"linear\" or \"log\", got %q", a.Spacing)
 	}
-	vals, err := study.AxisValues(a.From, a.To, a.Points, a.Spacing == "log")
-	if err != nil {
-		return a, nil, fmt.Errorf("%s: %s: %w", specPath, path, err)
-	}
-	return a, vals, nil
+	return study.Axis{Knob: a.Target, From: a.From, To: a.To, Points: a.Points, Log: a.Spacing == "log"}, nil
 }
 
 // cmdFlags are the options of sweep and population.
@@ -389,21 +350,19 @@ func sweep(args []string, stdout, stderr io.Writer) error {
 	return job.run(c, stdout, stderr)
 }
 
-// job is a prepared sweep or population.
+// job is a prepared sweep or population with what its outputs need.
 type job struct {
-	meta     *runMeta
-	design   explore.Design
-	ode      *explore.ODE
-	settings explore.Settings
+	meta *runMeta
+	*study.Job
 }
 
 // run runs the job and writes its outputs. It fails (exit status 1) when
 // every point failed.
 func (j *job) run(c *cmdFlags, stdout, stderr io.Writer) error {
-	s := j.settings
+	s := j.Settings
 	s.Workers, s.Shard = c.workers, c.shard
 	s.Progress, s.ProgressEvery = progressPrinter(j.meta.Kind, stderr, c.quiet)
-	res, err := explore.Run(context.Background(), j.design, j.ode.NewSimulator, s)
+	res, err := explore.Run(context.Background(), j.Design, j.ODE.NewSimulator, s)
 	if err != nil {
 		return err
 	}
@@ -433,39 +392,25 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	if err != nil {
 		return nil, nil, err
 	}
-	a1, v1, err := axis(c.spec, spec.Parameter, "parameter")
+	a1, err := axis(c.spec, spec.Parameter, "parameter")
 	if err != nil {
 		return nil, nil, err
 	}
-	knobs, paths := []string{a1.Target}, []string{"parameter.target"}
-	axes, logs := [][]float64{v1}, []bool{a1.Spacing == "log"}
+	axes, paths := []study.Axis{a1}, []string{"parameter.target"}
 	if len(spec.Second) > 0 && string(spec.Second) != "null" {
-		a2, v2, err := axis(c.spec, spec.Second, "second")
+		a2, err := axis(c.spec, spec.Second, "second")
 		if err != nil {
 			return nil, nil, err
 		}
-		if a2.Target == a1.Target {
-			return nil, nil, fmt.Errorf("%s: second.target: %q is already the first parameter", c.spec, a2.Target)
-		}
-		knobs, paths = append(knobs, a2.Target), append(paths, "second.target")
-		axes, logs = append(axes, v2), append(logs, a2.Spacing == "log")
+		axes, paths = append(axes, a2), append(paths, "second.target")
 	}
-	if len(axes) == 2 {
-		for k, vals := range axes {
-			for i := 1; i < len(vals); i++ {
-				if !(vals[i] > vals[i-1]) {
-					return nil, nil, fmt.Errorf("%s: %s: a two-parameter grid needs from < to and distinct values, got %v", c.spec, []string{"parameter", "second"}[k], vals)
-				}
-			}
-		}
-	}
-	tg, err := newTarget(c.spec, l.Sys, knobs, paths)
+	ro, err := readoutSpecs(c.spec, spec.Readouts)
 	if err != nil {
 		return nil, nil, err
 	}
-	ro, err := readouts(l, c.spec, spec.Readouts)
+	sj, err := l.Sweep(axes, ro)
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, jobError(c.spec, err, paths)
 	}
 	plotSp := spec.PlotSpecies
 	for i, sp := range plotSp {
@@ -474,8 +419,7 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		}
 	}
 	if plotSp == nil {
-		for _, r := range ro {
-			sp := l.Sys.Species()[r.Component]
+		for _, sp := range sj.Species {
 			if !slices.Contains(plotSp, sp) {
 				plotSp = append(plotSp, sp)
 			}
@@ -484,15 +428,8 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	meta := &runMeta{
 		Kind: "sweep", Spec: filepath.Base(c.spec), Title: l.Model.Title,
 		TimeUnit: l.Model.Units.Time, AmountUnit: l.Model.Units.Amount,
-		Knobs: knobs, Axes: axes, AxisLog: logs, Species: l.Sys.Species(), PlotSpecies: plotSp, LogTime: l.Sim.Output.Spacing == "log",
+		Knobs: sj.Settings.Knobs, Axes: sj.Axes, AxisLog: sj.AxisLog, Species: l.Sys.Species(), PlotSpecies: plotSp,
+		ReadoutSpecies: sj.Species, LogTime: l.Sim.Output.Spacing == "log",
 	}
-	for _, r := range ro {
-		meta.ReadoutSpecies = append(meta.ReadoutSpecies, l.Sys.Species()[r.Component])
-	}
-	return c, &job{
-		meta:     meta,
-		design:   explore.Grid{Axes: axes},
-		ode:      &explore.ODE{Target: tg, TEnd: l.Sim.TEnd, Settings: study.SolveSettings(l.Sim, l.Times)},
-		settings: explore.Settings{Knobs: knobs, Readouts: ro, KeepTrajectories: true},
-	}, nil
+	return c, &job{meta: meta, Job: sj}, nil
 }

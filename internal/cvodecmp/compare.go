@@ -6,7 +6,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"os"
 	"path/filepath"
 	"runtime"
 	"slices"
@@ -256,31 +255,3 @@ func Report(rows []Row, costs []EvalCost, repeat int, nonNegative bool, load str
 }
 
 func ms(d time.Duration) float64 { return float64(d.Nanoseconds()) / 1e6 }
-
-// WriteFileAtomic writes data to path through a temporary file in the same
-// folder and a rename, creating the folder when needed.
-func WriteFileAtomic(path string, data []byte) error {
-	dir := filepath.Dir(path)
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return fmt.Errorf("cvodecmp: %w", err)
-	}
-	f, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*")
-	if err != nil {
-		return fmt.Errorf("cvodecmp: %w", err)
-	}
-	defer os.Remove(f.Name())
-	if _, err := f.Write(data); err != nil {
-		f.Close()
-		return fmt.Errorf("cvodecmp: writing %s: %w", path, err)
-	}
-	if err := f.Close(); err != nil {
-		return fmt.Errorf("cvodecmp: writing %s: %w", path, err)
-	}
-	if err := os.Chmod(f.Name(), 0o644); err != nil {
-		return fmt.Errorf("cvodecmp: %w", err)
-	}
-	if err := os.Rename(f.Name(), path); err != nil {
-		return fmt.Errorf("cvodecmp: %w", err)
-	}
-	return nil
-}

@@ -13,9 +13,11 @@ import (
 	"flag"
 	"fmt"
 	"os"
+	"path/filepath"
 	"strconv"
 	"strings"
 
+	"kinetarium/internal/atomicfile"
 	"kinetarium/internal/cvodecmp"
 	"kinetarium/solve"
 )
@@ -80,7 +82,10 @@ func run(out, dir, rtolList string, repeat int, nonNeg bool) error {
 	if out == "" {
 		return nil
 	}
-	return cvodecmp.WriteFileAtomic(out, []byte(report))
+	if err := os.MkdirAll(filepath.Dir(out), 0o755); err != nil {
+		return err
+	}
+	return atomicfile.Write(out, []byte(report))
 }
 
 // loadavg returns the first three fields of /proc/loadavg, or "unknown".

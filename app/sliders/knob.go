@@ -1,4 +1,4 @@
-// Package tune re-simulates a model while the user turns its values: a
+// Package sliders re-simulates a model while the user turns its values: a
 // Knob is one parameter, initial concentration or compartment volume with
 // the range of its slider; a Session simulates one compiled model again and
 // again with changed values, reusing one compiled system and one solver; a
@@ -8,12 +8,13 @@
 //
 // The package holds no widgets and builds without cgo, so the work of a
 // slider frame can be measured and tested on its own.
-package tune
+package sliders
 
 import (
 	"fmt"
 	"math"
 	"strconv"
+	"strings"
 
 	"kinetarium/network"
 )
@@ -63,6 +64,31 @@ func (k Knob) Label() string {
 		return k.Name + " volume"
 	}
 	return k.Name
+}
+
+// Ref is the knob's name in studies and spec files: "k" for a parameter,
+// "init:S" for species S's initial concentration, "volume:C" for
+// compartment C's volume.
+func (k Knob) Ref() string {
+	switch k.Kind {
+	case Initial:
+		return "init:" + k.Name
+	case Volume:
+		return "volume:" + k.Name
+	}
+	return k.Name
+}
+
+// ParseRef reads a knob name written as Ref writes it. The knob is not
+// looked up in any model: the name may be one the model lacks.
+func ParseRef(ref string) Knob {
+	if name, ok := strings.CutPrefix(ref, "init:"); ok {
+		return Knob{Kind: Initial, Name: name}
+	}
+	if name, ok := strings.CutPrefix(ref, "volume:"); ok {
+		return Knob{Kind: Volume, Name: name}
+	}
+	return Knob{Kind: Parameter, Name: ref}
 }
 
 // Key identifies the knob's model value.
@@ -174,11 +200,11 @@ func WriteBack(m *network.Model, knobs []Knob) int {
 func (k Knob) Check(v float64) error {
 	switch {
 	case math.IsNaN(v) || math.IsInf(v, 0):
-		return fmt.Errorf("%s: %v is not allowed; expected a finite number", k.Label(), v)
+		return fmt.Errorf("%s = %v: expected a finite number", k.Label(), v)
 	case k.Kind == Initial && v < 0:
-		return fmt.Errorf("%s: %g is not allowed; expected zero or a positive number", k.Label(), v)
+		return fmt.Errorf("%s = %g: an initial concentration must be ≥ 0", k.Label(), v)
 	case k.Kind == Volume && v <= 0:
-		return fmt.Errorf("%s: %g is not allowed; expected a positive number", k.Label(), v)
+		return fmt.Errorf("%s = %g: a volume must be positive", k.Label(), v)
 	}
 	return nil
 }

@@ -1,11 +1,11 @@
-package tune
+package sliders
 
 import (
 	"context"
 	"sync"
 	"sync/atomic"
 
-	"kinetarium/editor/simulate"
+	"kinetarium/app/run"
 	"kinetarium/network"
 )
 
@@ -34,13 +34,13 @@ type Runner struct {
 	// Solve does one simulation; nil means compiling req.Model into a
 	// Session (again only when the model changes), setting the knobs'
 	// values and running it. It is called on the Runner's goroutine.
-	Solve func(ctx context.Context, req Request) (*simulate.Outcome, error)
+	Solve func(ctx context.Context, req Request) (*run.Outcome, error)
 	// Deliver runs f where OnResult may touch the user interface (fyne.Do);
 	// nil calls f directly.
 	Deliver func(f func())
 	// OnResult receives the outcome of the newest request (nil when the
 	// model cannot be compiled) and its error.
-	OnResult func(gen int, req Request, o *simulate.Outcome, err error)
+	OnResult func(gen int, req Request, o *run.Outcome, err error)
 
 	box     Mailbox[Request]
 	once    sync.Once
@@ -143,7 +143,7 @@ func (r *Runner) loop(ctx context.Context) {
 }
 
 // solve runs one request with Solve or with the Runner's Session.
-func (r *Runner) solve(ctx context.Context, req Request) (*simulate.Outcome, error) {
+func (r *Runner) solve(ctx context.Context, req Request) (*run.Outcome, error) {
 	if r.Solve != nil {
 		return r.Solve(ctx, req)
 	}

@@ -1,11 +1,11 @@
-package tune_test
+package sliders_test
 
 import (
 	"context"
 	"fmt"
 	"math"
 
-	"kinetarium/editor/tune"
+	"kinetarium/app/sliders"
 	"kinetarium/network"
 )
 
@@ -19,15 +19,15 @@ func ExampleSession() {
 			Rate: network.NewRate(network.MassAction, "k", network.Named("k"))}},
 		Simulation: network.Simulation{TEnd: 1, Output: network.Output{Points: 2}, RTol: 1e-9},
 	}
-	s, err := tune.NewSession(m)
+	s, err := sliders.NewSession(m)
 	if err != nil {
 		fmt.Println(err)
 		return
 	}
-	k := tune.Candidates(m)[0]
+	k := sliders.Candidates(m)[0]
 	fmt.Printf("%s: slider from %g to %g, log scale %v\n", k.Label(), k.Min, k.Max, k.Log())
 	k.Value = k.At(0.8) // about 2: 0.05·100^0.8
-	if err := s.Set([]tune.Knob{k}); err != nil {
+	if err := s.Set([]sliders.Knob{k}); err != nil {
 		fmt.Println(err)
 		return
 	}
@@ -45,7 +45,7 @@ func ExampleSession() {
 
 // A Mailbox keeps only the newest value.
 func ExampleMailbox() {
-	var box tune.Mailbox[string]
+	var box sliders.Mailbox[string]
 	box.Put("k = 1")
 	box.Put("k = 2")
 	gen := box.Put("k = 3")

@@ -1,11 +1,11 @@
-package tune
+package sliders
 
 import (
 	"context"
 	"fmt"
 	"time"
 
-	"kinetarium/editor/simulate"
+	"kinetarium/app/run"
 	"kinetarium/network"
 	"kinetarium/solve"
 )
@@ -34,7 +34,7 @@ func NewSession(m *network.Model) (*Session, error) {
 	if err != nil {
 		return nil, fmt.Errorf("the model cannot be simulated: %w", err)
 	}
-	set, err := simulate.Settings(m.Simulation)
+	set, err := run.Settings(m.Simulation)
 	if err != nil {
 		return nil, err
 	}
@@ -121,8 +121,8 @@ func (s *Session) setInitial(i int, v float64) {
 // Run simulates the model with the values set, from time 0 to the model's
 // end time. A solve that fails or is cancelled gives the partial outcome
 // with Err set and the same error.
-func (s *Session) Run(ctx context.Context) (*simulate.Outcome, error) {
+func (s *Session) Run(ctx context.Context) (*run.Outcome, error) {
 	start := time.Now()
 	res, err := s.solver.Solve(ctx, 0, s.tEnd, s.y0)
-	return simulate.NewOutcome(s.model, s.names, res, err, start)
+	return run.NewOutcome(s.model, s.names, res, err, start)
 }

@@ -1,18 +1,16 @@
-// Package simulate runs a reaction-network model and draws its time
+// Package run runs a reaction-network model and draws its time
 // courses, without any widgets: it compiles a model, integrates it with the
 // model's run settings, turns the result into a figure with the on-screen
 // view (log axes, hidden species, zoom, previous run), maps pointer
 // positions on the figure back to data, writes the result as CSV, and
 // coordinates runs started from the user interface so that a stale result
 // is never shown (Controller).
-package simulate
+package run
 
 import (
 	"context"
 	"errors"
 	"fmt"
-	"regexp"
-	"strconv"
 	"time"
 
 	"kinetarium/network"
@@ -33,34 +31,6 @@ type Outcome struct {
 	// Err is the reason the solve stopped early, or nil. T and Y then hold
 	// the part computed before it stopped.
 	Err error
-}
-
-// Settings converts a model's simulation settings into solver settings
-// and output times.
-func Settings(sim network.Simulation) (solve.Settings, error) {
-	s := sim.WithDefaults()
-	var m solve.Method
-	switch s.Method {
-	case "auto":
-		m = solve.Auto
-	case "rosenbrock":
-		m = solve.Rosenbrock
-	case "radau":
-		m = solve.Radau
-	case "bdf":
-		m = solve.BDF
-	case "explicit":
-		m = solve.Explicit
-	default:
-		return solve.Settings{}, fmt.Errorf("simulation method %q is not known; expected one of %v", s.Method, network.Methods)
-	}
-	return solve.Settings{
-		RTol:        s.RTol,
-		ATol:        s.ATol,
-		Method:      m,
-		Times:       network.OutputTimes(s.TEnd, s.Output),
-		NonNegative: s.KeepNonNegative(),
-	}, nil
 }
 
 // Run compiles m and integrates it from time 0 to the model's end time.
@@ -103,12 +73,28 @@ func NewOutcome(m *network.Model, names []string, res *solve.Result, err error, 
 		if errors.Is(err, context.Canceled) {
 			err = fmt.Errorf("cancelled: %w", err)
 		} else {
-			err = namedError{err, SpeciesNames(err.Error(), names)}
+			err = NameSpecies(err, names)
 		}
 		out.Err = err
 		return out, err
 	}
 	return out, nil
+}
+
+// NameSpecies returns err with the species at fault named ("species
+// \"ES\"") where the solver's *solve.StepError gives a component index;
+// other errors are returned as they are.
+func NameSpecies(err error, names []string) error {
+	se, ok := err.(*solve.StepError)
+	if !ok {
+		return err
+	}
+	return namedError{err, se.Describe(func(i int) string {
+		if i < 0 || i >= len(names) {
+			return ""
+		}
+		return fmt.Sprintf("species %q", names[i])
+	})}
 }
 
 // namedError is a solver error whose message names species; it unwraps to
@@ -133,40 +119,10 @@ func (o *Outcome) MethodSummary() string {
 		if i > 0 {
 			s += " → "
 		}
-		s += methodName(m)
+		s += MethodTitle(m)
 	}
 	if s == "" {
 		s = "—"
 	}
 	return s
-}
-
-func methodName(m solve.Method) string {
-	switch m {
-	case solve.Rosenbrock:
-		return "Rosenbrock (RODAS4)"
-	case solve.Radau:
-		return "Radau IIA"
-	case solve.BDF:
-		return "BDF"
-	case solve.Explicit:
-		return "Dormand–Prince"
-	}
-	return string(m)
-}
-
-// componentRef matches the solver's "component 3" in a message.
-var componentRef = regexp.MustCompile(`\bcomponent (\d+)\b`)
-
-// SpeciesNames replaces the solver's component indices in msg ("component
-// 3") by the species names ("species \"ES\""), for people who think in
-// species, not indices.
-func SpeciesNames(msg string, names []string) string {
-	return componentRef.ReplaceAllStringFunc(msg, func(s string) string {
-		i, err := strconv.Atoi(componentRef.FindStringSubmatch(s)[1])
-		if err != nil || i < 0 || i >= len(names) {
-			return s
-		}
-		return fmt.Sprintf("species %q", names[i])
-	})
 }

@@ -1,4 +1,4 @@
-package tune
+package sliders
 
 import (
 	"bytes"
@@ -7,7 +7,7 @@ import (
 	"testing"
 	"time"
 
-	"kinetarium/editor/simulate"
+	"kinetarium/app/run"
 	"kinetarium/examples"
 	"kinetarium/network"
 	"kinetarium/plotting"
@@ -49,7 +49,7 @@ func BenchmarkSliderDrag50(b *testing.B) {
 	}
 	knobs := []Knob{knob}
 	img := image.NewRGBA(image.Rect(0, 0, 800, 500))
-	view := simulate.View{LogX: true}
+	view := run.View{LogX: true}
 	var solveTime, drawTime time.Duration
 	i := 0
 	b.ReportAllocs()
@@ -65,7 +65,7 @@ func BenchmarkSliderDrag50(b *testing.B) {
 			b.Fatal(err)
 		}
 		t1 := time.Now()
-		p, err := simulate.Figure(o, view)
+		p, err := run.Figure(o, view)
 		if err != nil {
 			b.Fatal(err)
 		}

@@ -1,14 +1,10 @@
 package study
 
 import (
-	"bytes"
-	"encoding/csv"
-	"fmt"
 	"math"
 	"slices"
 	"strconv"
 
-	"kinetarium/network"
 	"kinetarium/solve/explore"
 )
 
@@ -111,17 +107,4 @@ func EmpiricalQuantile(sorted []float64, p float64) float64 {
 	}
 	k := max(1, int(math.Ceil(p*float64(len(sorted)))))
 	return sorted[min(k, len(sorted))-1]
-}
-
-// WriteCSV writes rows to path atomically.
-func WriteCSV(path string, rows [][]string) error {
-	var buf bytes.Buffer
-	w := csv.NewWriter(&buf)
-	if err := w.WriteAll(rows); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	if err := network.WriteFileAtomic(path, buf.Bytes()); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	return nil
 }

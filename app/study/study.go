@@ -6,7 +6,8 @@
 // it.
 //
 // Knobs are named "NAME" (a parameter), "init:SPECIES" (an initial
-// concentration) or "volume:COMPARTMENT" (a compartment volume).
+// concentration) or "volume:COMPARTMENT" (a compartment volume), as
+// sliders.Knob's Ref writes them.
 package study
 
 import (
@@ -15,6 +16,8 @@ import (
 	"math"
 	"strings"
 
+	"kinetarium/app/run"
+	"kinetarium/app/sliders"
 	"kinetarium/network"
 	"kinetarium/solve"
 	"kinetarium/solve/explore"
@@ -33,20 +36,10 @@ func (e *KnobError) Error() string { return e.Err.Error() }
 // Unwrap returns the underlying error.
 func (e *KnobError) Unwrap() error { return e.Err }
 
-// knobKind is what a knob sets.
-type knobKind int
-
-// The knob kinds.
-const (
-	knobParameter knobKind = iota
-	knobInitial
-	knobVolume
-)
-
-// knob is one resolved knob of a Target.
+// knob is one resolved knob of a Target: what it sets, and its index in
+// the compiled system.
 type knob struct {
-	name  string
-	kind  knobKind
+	sliders.Knob
 	index int
 }
 
@@ -61,27 +54,21 @@ type Target struct {
 func NewTarget(sys *network.System, names []string) (*Target, error) {
 	t := &Target{System: sys}
 	for k, name := range names {
-		kn := knob{name: name}
+		kn := knob{Knob: sliders.ParseRef(name)}
 		var ok bool
 		var err error
-		switch {
-		case strings.HasPrefix(name, "init:"):
-			kn.kind = knobInitial
-			kn.index, ok = sys.SpeciesIndex(strings.TrimPrefix(name, "init:"))
-			if !ok {
-				err = fmt.Errorf("no species %q in the model (species: %s)", strings.TrimPrefix(name, "init:"), strings.Join(sys.Species(), ", "))
+		switch kn.Kind {
+		case sliders.Initial:
+			if kn.index, ok = sys.SpeciesIndex(kn.Name); !ok {
+				err = fmt.Errorf("no species %q in the model (species: %s)", kn.Name, strings.Join(sys.Species(), ", "))
 			}
-		case strings.HasPrefix(name, "volume:"):
-			kn.kind = knobVolume
-			kn.index, ok = sys.CompartmentIndex(strings.TrimPrefix(name, "volume:"))
-			if !ok {
-				err = fmt.Errorf("no compartment %q in the model (compartments: %s)", strings.TrimPrefix(name, "volume:"), strings.Join(sys.Compartments(), ", "))
+		case sliders.Volume:
+			if kn.index, ok = sys.CompartmentIndex(kn.Name); !ok {
+				err = fmt.Errorf("no compartment %q in the model (compartments: %s)", kn.Name, strings.Join(sys.Compartments(), ", "))
 			}
 		default:
-			kn.kind = knobParameter
-			kn.index, ok = sys.ParameterIndex(name)
-			if !ok {
-				err = fmt.Errorf("no parameter %q in the model (parameters: %s; use init:SPECIES or volume:COMPARTMENT for those)", name, strings.Join(sys.Parameters(), ", "))
+			if kn.index, ok = sys.ParameterIndex(kn.Name); !ok {
+				err = fmt.Errorf("no parameter %q in the model (parameters: %s; use init:SPECIES or volume:COMPARTMENT for those)", kn.Name, strings.Join(sys.Parameters(), ", "))
 			}
 		}
 		if err != nil {
@@ -95,19 +82,13 @@ func NewTarget(sys *network.System, names []string) (*Target, error) {
 // SetKnob implements explore.Target.
 func (t *Target) SetKnob(k int, v float64) error {
 	kn := t.knobs[k]
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return fmt.Errorf("%s = %v is not finite", kn.name, v)
+	if err := kn.Check(v); err != nil {
+		return err
 	}
-	switch kn.kind {
-	case knobInitial:
-		if v < 0 {
-			return fmt.Errorf("%s = %v: an initial concentration must be ≥ 0", kn.name, v)
-		}
+	switch kn.Kind {
+	case sliders.Initial:
 		t.SetInitial(kn.index, v)
-	case knobVolume:
-		if v <= 0 {
-			return fmt.Errorf("%s = %v: a volume must be positive", kn.name, v)
-		}
+	case sliders.Volume:
 		t.SetVolume(kn.index, v)
 	default:
 		t.SetParameter(kn.index, v)
@@ -121,20 +102,6 @@ func (t *Target) Initial(y0 []float64) { copy(y0, t.System.Initial()) }
 // Clone implements explore.Target.
 func (t *Target) Clone() explore.Target {
 	return &Target{System: t.System.Clone(), knobs: t.knobs}
-}
-
-// SolveSettings returns the solver settings of a simulation (defaults
-// filled in) on the output grid times.
-func SolveSettings(sim network.Simulation, times []float64) solve.Settings {
-	sim = sim.WithDefaults()
-	method := solve.Method(sim.Method)
-	if sim.Method == "auto" {
-		method = solve.Auto
-	}
-	return solve.Settings{
-		RTol: sim.RTol, ATol: sim.ATol, Method: method,
-		Times: times, NonNegative: sim.KeepNonNegative(),
-	}
 }
 
 // AxisValues returns n values from from to to, equally spaced or (log)
@@ -168,12 +135,13 @@ func AxisValues(from, to float64, n int, log bool) ([]float64, error) {
 	return vals, nil
 }
 
-// Prepared is a model compiled for a study, with its output grid.
+// Prepared is a model compiled for a study, with its solver settings.
 type Prepared struct {
-	Model *network.Model
-	Sys   *network.System
-	Sim   network.Simulation // defaults filled in
-	Times []float64          // the output grid
+	Model    *network.Model
+	Sys      *network.System
+	Sim      network.Simulation // defaults filled in
+	Times    []float64          // the output grid
+	Settings solve.Settings     // the model's run settings (run.Settings)
 }
 
 // Prepare compiles m for a study with its own simulation settings.
@@ -182,43 +150,143 @@ func Prepare(m *network.Model) (*Prepared, error) {
 	if err != nil {
 		return nil, fmt.Errorf("compiling the model: %w", err)
 	}
-	sim := m.Simulation.WithDefaults()
-	return &Prepared{Model: m, Sys: sys, Sim: sim, Times: network.OutputTimes(sim.TEnd, sim.Output)}, nil
+	set, err := run.Settings(m.Simulation)
+	if err != nil {
+		return nil, err
+	}
+	return &Prepared{Model: m, Sys: sys, Sim: m.Simulation.WithDefaults(), Times: set.Times, Settings: set}, nil
 }
 
 // ReadoutSpec names a readout by species.
 type ReadoutSpec struct {
-	Name    string       // label in results; default KIND_SPECIES
+	Name    string       // label in results; "" gives ReadoutName's
 	Kind    explore.Kind // what is computed
 	Species string       // the species it is computed on
-	Time    float64      // for explore.ValueAt
-	Level   float64      // for explore.CrossUp and explore.CrossDown
+	Time    *float64     // for explore.ValueAt, and only for it
+	Level   *float64     // for explore.CrossUp and explore.CrossDown, and only for them
 }
 
-// Readouts resolves readout specs on the model. Errors name the readout
-// by its position, counting from 1.
+// ItemError is a problem with one field of one item of a study's list:
+// a readout or a varied quantity. Index counts from 0; Error counts from
+// 1 for people.
+type ItemError struct {
+	List  string // "readout", "quantity"
+	Index int
+	Field string // the spec file's key: "species", "time", "target", …
+	Err   error
+}
+
+// Error implements error.
+func (e *ItemError) Error() string {
+	return fmt.Sprintf("%s %d: %s: %v", e.List, e.Index+1, e.Field, e.Err)
+}
+
+// Unwrap returns the underlying error.
+func (e *ItemError) Unwrap() error { return e.Err }
+
+// ReadoutName is the name a readout gets when its spec gives none, in
+// tables and figures alike: KIND_SPECIES ("final_P", "time_of_max_P"),
+// with "@" and the time or level for kinds that take one
+// ("value_at_A@2.5").
+func ReadoutName(kind explore.Kind, species string, number *float64) string {
+	name := string(kind) + "_" + species
+	if number != nil {
+		name += "@" + FormatNumber(*number)
+	}
+	return name
+}
+
+// Readouts resolves readout specs on the model. Errors are *ItemError.
 func (p *Prepared) Readouts(specs []ReadoutSpec) ([]explore.Readout, error) {
 	var out []explore.Readout
 	seen := map[string]bool{}
 	for i, rs := range specs {
+		bad := func(field, format string, a ...any) error {
+			return &ItemError{List: "readout", Index: i, Field: field, Err: fmt.Errorf(format, a...)}
+		}
 		j, ok := p.Sys.SpeciesIndex(rs.Species)
 		if !ok {
-			return nil, fmt.Errorf("readout %d: no species %q in the model (species: %s)", i+1, rs.Species, strings.Join(p.Sys.Species(), ", "))
+			return nil, bad("species", "no species %q in the model (species: %s)", rs.Species, strings.Join(p.Sys.Species(), ", "))
 		}
-		r := explore.Readout{Name: rs.Name, Kind: rs.Kind, Component: j, At: rs.Time, Level: rs.Level}
+		r := explore.Readout{Name: rs.Name, Kind: rs.Kind, Component: j}
+		var number *float64
+		switch rs.Kind {
+		case explore.ValueAt:
+			if rs.Time == nil {
+				return nil, bad("time", "missing (value_at needs the time to read at)")
+			}
+			r.At, number = *rs.Time, rs.Time
+		case explore.CrossUp, explore.CrossDown:
+			if rs.Level == nil {
+				return nil, bad("level", "missing (%s needs the threshold)", rs.Kind)
+			}
+			r.Level, number = *rs.Level, rs.Level
+		}
+		if rs.Time != nil && rs.Kind != explore.ValueAt {
+			return nil, bad("time", "only value_at takes a time")
+		}
+		if rs.Level != nil && rs.Kind != explore.CrossUp && rs.Kind != explore.CrossDown {
+			return nil, bad("level", "only cross_up and cross_down take a level")
+		}
 		if r.Name == "" {
-			r.Name = string(rs.Kind) + "_" + rs.Species
+			r.Name = ReadoutName(rs.Kind, rs.Species, number)
 		}
 		if err := r.Validate(p.Sys.Dim()); err != nil {
-			return nil, fmt.Errorf("readout %d: %w", i+1, err)
+			return nil, bad("kind", "%w", err)
 		}
 		if seen[r.Name] {
-			return nil, fmt.Errorf("readout %d: the name %q is used twice", i+1, r.Name)
+			return nil, bad("name", "%q is used twice", r.Name)
 		}
 		seen[r.Name] = true
 		out = append(out, r)
 	}
 	return out, nil
+}
+
+// Distribution is one kind of distribution a population can draw a
+// quantity from, with the names of its two numbers in spec files (A, B)
+// and for people.
+type Distribution struct {
+	Name           string // the spec file's word: "lognormal", …
+	Title          string // for people: "Log-normal"
+	A, B           string // the spec file's keys of the two numbers
+	ALabel, BLabel string // the two numbers for people
+	New            func(a, b float64) explore.Distribution
+}
+
+// Distributions are the distributions of populations, the one table of
+// the spec files and the Population window.
+var Distributions = []Distribution{
+	{"lognormal", "Log-normal", "median", "cv_percent", "median", "CV %",
+		func(a, b float64) explore.Distribution { return explore.LogNormal{Median: a, CVPercent: b} }},
+	{"normal", "Normal, above zero", "mean", "sd", "mean", "SD",
+		func(a, b float64) explore.Distribution { return explore.TruncNormal{Mean: a, SD: b} }},
+	{"uniform", "Uniform", "low", "high", "low", "high",
+		func(a, b float64) explore.Distribution { return explore.Uniform{Low: a, High: b} }},
+	{"loguniform", "Log-uniform", "low", "high", "low", "high",
+		func(a, b float64) explore.Distribution { return explore.LogUniform{Low: a, High: b} }},
+}
+
+// LookupDistribution returns the distribution of a spec file's word, or
+// an error listing the words.
+func LookupDistribution(name string) (Distribution, error) {
+	var words []string
+	for _, d := range Distributions {
+		if d.Name == name {
+			return d, nil
+		}
+		words = append(words, d.Name)
+	}
+	return Distribution{}, fmt.Errorf("expected %s or %s, got %q", strings.Join(words[:len(words)-1], ", "), words[len(words)-1], name)
+}
+
+// Make returns the distribution with numbers a and b, checked.
+func (d Distribution) Make(a, b float64) (explore.Distribution, error) {
+	x := d.New(a, b)
+	if err := x.Validate(); err != nil {
+		return nil, err
+	}
+	return x, nil
 }
 
 // Axis is one swept knob.
@@ -337,7 +405,7 @@ func (j *Job) finish(knobs []string, readouts []ReadoutSpec) error {
 	for _, r := range ro {
 		j.Species = append(j.Species, p.Sys.Species()[r.Component])
 	}
-	j.ODE = &explore.ODE{Target: tg, TEnd: p.Sim.TEnd, Settings: SolveSettings(p.Sim, p.Times)}
+	j.ODE = &explore.ODE{Target: tg, TEnd: p.Sim.TEnd, Settings: p.Settings}
 	j.Settings.Knobs = knobs
 	j.Settings.Readouts = ro
 	return nil

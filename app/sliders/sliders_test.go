@@ -1,4 +1,4 @@
-package tune
+package sliders
 
 import (
 	"context"
@@ -9,7 +9,7 @@ import (
 	"testing"
 	"time"
 
-	"kinetarium/editor/simulate"
+	"kinetarium/app/run"
 	"kinetarium/network"
 )
 
@@ -28,7 +28,7 @@ func decayModel(k, a0 float64) *network.Model {
 
 // checkDecay compares o with the closed form of first-order decay,
 // A(t) = A0·exp(−k t), B = A0 − A (closed form, common practice).
-func checkDecay(t *testing.T, o *simulate.Outcome, k, a0 float64) {
+func checkDecay(t *testing.T, o *run.Outcome, k, a0 float64) {
 	t.Helper()
 	if o == nil || len(o.T) != 51 {
 		t.Fatalf("outcome %v has the wrong number of times", o)
@@ -93,7 +93,7 @@ func TestKnobSetWidensAndChecks(t *testing.T) {
 		t.Errorf("Set(0): %v, range %g..%g, log %v", err, k.Min, k.Max, k.Log())
 	}
 	err := k.Set(-1)
-	if err == nil || !strings.Contains(err.Error(), "A initial") || !strings.Contains(err.Error(), "zero or a positive") {
+	if err == nil || !strings.Contains(err.Error(), "A initial") || !strings.Contains(err.Error(), "must be ≥ 0") {
 		t.Errorf("Set(-1) on an initial concentration: %v", err)
 	}
 	if k.Value != 0 {
@@ -204,11 +204,11 @@ func TestSessionVolumeAgreesWithCompiling(t *testing.T) {
 	}
 	m2 := m.Clone()
 	m2.Compartments[1].Volume = 2
-	want, err := simulate.Run(context.Background(), m2, nil)
+	want, err := run.Run(context.Background(), m2, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	base, err := simulate.Run(context.Background(), m, nil)
+	base, err := run.Run(context.Background(), m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -328,15 +328,15 @@ func TestRunnerDropsStaleResults(t *testing.T) {
 	var shown []float64
 	delivered := make(chan struct{}, 10)
 	r := &Runner{
-		Solve: func(ctx context.Context, req Request) (*simulate.Outcome, error) {
+		Solve: func(ctx context.Context, req Request) (*run.Outcome, error) {
 			v := req.Knobs[0].Value
 			started <- v
 			if v == 1 {
 				<-release // a slow solve, which ignores cancellation
 			}
-			return &simulate.Outcome{Names: []string{"A"}, T: []float64{0}, Y: [][]float64{{v}}}, nil
+			return &run.Outcome{Names: []string{"A"}, T: []float64{0}, Y: [][]float64{{v}}}, nil
 		},
-		OnResult: func(gen int, req Request, o *simulate.Outcome, err error) {
+		OnResult: func(gen int, req Request, o *run.Outcome, err error) {
 			mu.Lock()
 			shown = append(shown, o.Y[0][0])
 			mu.Unlock()
@@ -383,14 +383,14 @@ func TestRunnerCancelsOvertakenSolve(t *testing.T) {
 	started := make(chan struct{}, 10)
 	cancelled := make(chan struct{})
 	r := &Runner{
-		Solve: func(ctx context.Context, req Request) (*simulate.Outcome, error) {
+		Solve: func(ctx context.Context, req Request) (*run.Outcome, error) {
 			started <- struct{}{}
 			if req.Knobs[0].Value == 1 {
 				<-ctx.Done()
 				close(cancelled)
 				return nil, ctx.Err()
 			}
-			return &simulate.Outcome{}, nil
+			return &run.Outcome{}, nil
 		},
 	}
 	defer r.Close()
@@ -408,8 +408,8 @@ func TestRunnerCancelsOvertakenSolve(t *testing.T) {
 // values: moving k matches the closed form for the new k.
 func TestRunnerSolvesWithSession(t *testing.T) {
 	m := decayModel(0.7, 2)
-	got := make(chan *simulate.Outcome, 1)
-	r := &Runner{OnResult: func(gen int, req Request, o *simulate.Outcome, err error) {
+	got := make(chan *run.Outcome, 1)
+	r := &Runner{OnResult: func(gen int, req Request, o *run.Outcome, err error) {
 		if err != nil {
 			t.Error(err)
 		}
@@ -430,5 +430,20 @@ func TestRunnerSolvesWithSession(t *testing.T) {
 	<-got
 	if r.session != first {
 		t.Error("the model was compiled again although it did not change")
+	}
+}
+
+// A knob's name in studies reads back to the same knob, for each kind;
+// the forms are those of the spec files (README, "Sweeps and populations").
+func TestRefRoundTrip(t *testing.T) {
+	for ref, want := range map[string]Knob{
+		"kcat":        {Kind: Parameter, Name: "kcat"},
+		"init:S":      {Kind: Initial, Name: "S"},
+		"volume:cell": {Kind: Volume, Name: "cell"},
+	} {
+		got := ParseRef(ref)
+		if got != want || got.Ref() != ref {
+			t.Errorf("ParseRef(%q) = %+v (Ref %q), want %+v", ref, got, got.Ref(), want)
+		}
 	}
 }

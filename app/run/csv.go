@@ -1,0 +1,31 @@
+package run
+
+import (
+	"io"
+	"strconv"
+
+	"kinetarium/internal/atomicfile"
+)
+
+// Rows lays out the outcome as a table: a header "time,<species…>" and one
+// row per output time, numbers in their shortest exact form (strconv 'g',
+// -1).
+func Rows(o *Outcome) [][]string {
+	rows := make([][]string, 0, len(o.T)+1)
+	rows = append(rows, append([]string{"time"}, o.Names...))
+	for i, t := range o.T {
+		rec := make([]string, 0, len(o.Names)+1)
+		rec = append(rec, strconv.FormatFloat(t, 'g', -1, 64))
+		for _, v := range o.Y[i] {
+			rec = append(rec, strconv.FormatFloat(v, 'g', -1, 64))
+		}
+		rows = append(rows, rec)
+	}
+	return rows
+}
+
+// WriteCSV writes the outcome's Rows to w as CSV.
+func WriteCSV(w io.Writer, o *Outcome) error { return atomicfile.EncodeCSV(w, Rows(o)) }
+
+// SaveCSV writes the outcome's Rows to path atomically as CSV.
+func SaveCSV(path string, o *Outcome) error { return atomicfile.WriteCSV(path, Rows(o)) }

@@ -1,0 +1,127 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"testing"
+
+	"kinetarium/network"
+	"kinetarium/solve/explore"
+)
+
+// batchRun runs the headless command (go run kinetarium/app/batch) on a
+// spec and returns the folder of its outputs.
+func batchRun(t *testing.T, command, spec string) string {
+	t.Helper()
+	if testing.Short() {
+		t.Skip("builds and runs the batch command")
+	}
+	out := t.TempDir()
+	cmd := exec.Command("go", "run", "kinetarium/app/batch", command, spec, "--out", out, "--quiet", "--workers", "1")
+	var stderr bytes.Buffer
+	cmd.Stderr = &stderr
+	if err := cmd.Run(); err != nil {
+		t.Fatalf("batch %s %s: %v\n%s", command, spec, err, stderr.String())
+	}
+	return out
+}
+
+// sameFile fails unless the window's file and the batch command's file of
+// that name are equal byte for byte.
+func sameFile(t *testing.T, window, batchDir, name string) {
+	t.Helper()
+	a, err := os.ReadFile(window)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := os.ReadFile(filepath.Join(batchDir, name))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(a, b) {
+		t.Errorf("%s differs between the window and the batch command:\nwindow:\n%s\nbatch:\n%s", name, a, b)
+	}
+}
+
+// The Sweep window, filled in as testdata/same/sweep.json says, exports
+// runs.csv and failures.csv identical to the batch command's for that
+// spec: the same column names (readouts named by the spec's defaults) and
+// the same numbers. Initial amounts below 0 fail in both.
+func TestSweepWindowWritesTheBatchFiles(t *testing.T) {
+	batchDir := batchRun(t, "sweep", "testdata/same/sweep.json")
+	m, err := network.Load("testdata/same/conversion.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := openSweep(t, m)
+	onUI(func() {
+		s.first.quantity.SetSelected("A (initial concentration)")
+		s.first.from.SetText("-2")
+		s.first.to.SetText("8")
+		s.first.points.SetText("6")
+		s.first.spacing.SetSelected(spacingLinear)
+		s.ro.rows = nil
+		s.ro.list.RemoveAll()
+		s.ro.add(explore.Final, "B", 0)
+		s.ro.add(explore.TimeOfMax, "A", 0)
+		s.ro.add(explore.ValueAt, "A", 2.5)
+		s.ro.add(explore.CrossUp, "B", 1)
+	})
+	runAndWait(t, s.ctl)
+	if s.res == nil || s.res.Failed != 1 {
+		t.Fatalf("result %+v, status %q; want one failed run (A = -2)", s.res, s.ctl.status.Text)
+	}
+	dir := t.TempDir()
+	if err := s.saveRuns(filepath.Join(dir, "runs.csv")); err != nil {
+		t.Fatal(err)
+	}
+	if err := s.failures.save(filepath.Join(dir, "failures.csv")); err != nil {
+		t.Fatal(err)
+	}
+	sameFile(t, filepath.Join(dir, "runs.csv"), batchDir, "runs.csv")
+	sameFile(t, filepath.Join(dir, "failures.csv"), batchDir, "failures.csv")
+}
+
+// The Population window, filled in as testdata/same/population.json says,
+// exports samples.csv and bands.csv identical to the batch command's.
+func TestPopulationWindowWritesTheBatchFiles(t *testing.T) {
+	batchDir := batchRun(t, "population", "testdata/same/population.json")
+	m, err := network.Load("testdata/same/conversion.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := openPopulation(t, m)
+	onUI(func() {
+		p.rows[0].quantity.SetSelected("k (parameter)")
+		p.rows[0].dist.SetSelected("Log-normal")
+		p.rows[0].a.SetText("0.5")
+		p.rows[0].b.SetText("30")
+		p.rows[1].quantity.SetSelected("A (initial concentration)")
+		p.rows[1].dist.SetSelected("Uniform")
+		p.rows[1].a.SetText("8")
+		p.rows[1].b.SetText("12")
+		p.size.SetText("60")
+		p.seed.SetText("3")
+		p.sampling.SetSelected(samplingLHS)
+		p.ro.rows = nil
+		p.ro.list.RemoveAll()
+		p.ro.add(explore.AUC, "A", 0)
+		p.ro.add(explore.TimeOfMax, "B", 0)
+		p.ro.add(explore.CrossUp, "B", 5)
+	})
+	runAndWait(t, p.ctl)
+	if p.res == nil || len(p.res.Samples) != 60 {
+		t.Fatalf("result %+v, status %q", p.res, p.ctl.status.Text)
+	}
+	dir := t.TempDir()
+	if err := p.saveSamples(filepath.Join(dir, "samples.csv")); err != nil {
+		t.Fatal(err)
+	}
+	if err := p.saveBands(filepath.Join(dir, "bands.csv")); err != nil {
+		t.Fatal(err)
+	}
+	sameFile(t, filepath.Join(dir, "samples.csv"), batchDir, "samples.csv")
+	sameFile(t, filepath.Join(dir, "bands.csv"), batchDir, "bands.csv")
+}
