@@ -520,10 +520,16 @@ func (p *tunePanel) modelChanged() {
 	p.refreshOptions()
 }
 
-// sameSpecies reports whether names are m's species, in order.
+// sameSpecies reports whether names are m's species then its assignments,
+// in order.
 func sameSpecies(names []string, m *network.Model) bool {
-	if len(names) != len(m.Species) {
+	if len(names) != len(m.Species)+len(m.Assignments) {
 		return false
+	}
+	for i, a := range m.Assignments {
+		if names[len(m.Species)+i] != a.Name {
+			return false
+		}
 	}
 	for i, s := range m.Species {
 		if names[i] != s.Name {

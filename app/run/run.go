@@ -22,9 +22,12 @@ type Outcome struct {
 	Title      string
 	TimeUnit   string
 	AmountUnit string
-	Names      []string    // species, in model order
-	T          []float64   // output times
-	Y          [][]float64 // Y[i][j] is species j at T[i]
+	// Names are the species in model order, then the assignments in
+	// model order; the first Species of them are species.
+	Names   []string
+	Species int
+	T       []float64   // output times
+	Y       [][]float64 // Y[i][j] is quantity j (species, then assignments) at T[i]
 	Stats      solve.Stats
 	Compile    time.Duration // time spent compiling the model
 	Elapsed    time.Duration // compile and solve together
@@ -52,28 +55,40 @@ func Run(ctx context.Context, m *network.Model, progress func(float64)) (*Outcom
 	set.Progress = progress
 	sim := m.Simulation.WithDefaults()
 	res, serr := solve.Solve(ctx, sys, 0, sim.TEnd, sys.Initial(), set)
-	out, err := NewOutcome(m, append([]string(nil), sys.Species()...), res, serr, start)
+	out, err := NewOutcome(m, sys, res, serr, start)
 	out.Compile = compiled
 	return out, err
 }
 
-// NewOutcome packs the result of a solve of m begun at start — complete, or
-// partial when err is not nil — with the species names. A cancelled solve's
-// error says so.
-func NewOutcome(m *network.Model, names []string, res *solve.Result, err error, start time.Time) (*Outcome, error) {
+// NewOutcome packs the result of a solve of m, compiled as sys, begun at
+// start — complete, or partial when err is not nil — with the species
+// names, and adds a column for each assignment, evaluated at every output
+// time. A cancelled solve's error says so.
+func NewOutcome(m *network.Model, sys *network.System, res *solve.Result, err error, start time.Time) (*Outcome, error) {
+	species, asg := sys.Species(), sys.Assignments()
 	out := &Outcome{
 		Title: m.Title, TimeUnit: m.Units.Time, AmountUnit: m.Units.Amount,
-		Names: names,
+		Names:   append(append([]string(nil), species...), asg...),
+		Species: len(species),
 	}
 	if res != nil {
 		out.T, out.Y, out.Stats = res.T, res.Y, res.Stats
+		if len(asg) > 0 {
+			out.Y = make([][]float64, len(res.Y))
+			for i, y := range res.Y {
+				row := make([]float64, len(species)+len(asg))
+				copy(row, y)
+				sys.Assigned(res.T[i], y, row[len(species):])
+				out.Y[i] = row
+			}
+		}
 	}
 	out.Elapsed = time.Since(start)
 	if err != nil {
 		if errors.Is(err, context.Canceled) {
 			err = fmt.Errorf("cancelled: %w", err)
 		} else {
-			err = NameSpecies(err, names)
+			err = NameSpecies(err, species)
 		}
 		out.Err = err
 		return out, err

@@ -332,3 +332,38 @@ func TestControllerCancelStopsFiredRerun(t *testing.T) {
 		t.Errorf("a re-run started after Cancel")
 	}
 }
+
+// Assignments are columns of the outcome after the species, in the table
+// too, and a rate may read one. With A -> B at rate k·A the closed form is
+// A(t) = A0·exp(−k t) (common practice); the assignment frac = A/(A + B)
+// is then exp(−k t), and a second step B -> C at rate kb·frac·B reads it.
+func TestRunAddsAssignments(t *testing.T) {
+	m := decayModel(0.7, 2, 5)
+	m.Species = append(m.Species, network.Species{Name: "C"})
+	m.Parameters = append(m.Parameters, network.Parameter{Name: "kb", Value: 0})
+	m.Assignments = []network.Assignment{{Name: "total", Expression: "A + B + C"}, {Name: "frac", Expression: "A/total"}}
+	m.Reactions = append(m.Reactions, network.Reaction{Name: "on", Equation: "B -> C",
+		Rate: network.Rate{Law: network.Expression, Expression: "kb*frac*B"}})
+	o, err := Run(context.Background(), m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := []string{"A", "B", "C", "total", "frac"}; strings.Join(o.Names, ",") != strings.Join(want, ",") || o.Species != 3 {
+		t.Fatalf("names %v (species %d), want %v (3)", o.Names, o.Species, want)
+	}
+	for i, tt := range o.T {
+		if d := math.Abs(o.Y[i][3] - 2); d > 1e-9 {
+			t.Fatalf("total(%g) = %g, want 2 (conserved)", tt, o.Y[i][3])
+		}
+		if d := math.Abs(o.Y[i][4] - math.Exp(-0.7*tt)); d > 1e-6 {
+			t.Fatalf("frac(%g) = %g, want %g", tt, o.Y[i][4], math.Exp(-0.7*tt))
+		}
+	}
+	var b bytes.Buffer
+	if err := WriteCSV(&b, o); err != nil {
+		t.Fatal(err)
+	}
+	if head, _, _ := strings.Cut(b.String(), "\n"); head != "time,A,B,C,total,frac" {
+		t.Errorf("CSV header %q", head)
+	}
+}

@@ -20,7 +20,6 @@ type Session struct {
 	solver *solve.Solver
 	tEnd   float64
 	y0     []float64 // initial state, as set
-	names  []string  // species, shared by every outcome
 
 	// Indices into sys of the model's parameters, species and declared
 	// compartments, in model order.
@@ -44,7 +43,6 @@ func NewSession(m *network.Model) (*Session, error) {
 		solver: solve.NewSolver(sys, set),
 		tEnd:   m.Simulation.WithDefaults().TEnd,
 		y0:     sys.Initial(),
-		names:  append([]string(nil), sys.Species()...),
 	}
 	for _, p := range m.Parameters {
 		i, ok := sys.ParameterIndex(p.Name)
@@ -124,5 +122,5 @@ func (s *Session) setInitial(i int, v float64) {
 func (s *Session) Run(ctx context.Context) (*run.Outcome, error) {
 	start := time.Now()
 	res, err := s.solver.Solve(ctx, 0, s.tEnd, s.y0)
-	return run.NewOutcome(s.model, s.names, res, err, start)
+	return run.NewOutcome(s.model, s.sys, res, err, start)
 }
