@@ -209,10 +209,8 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 
 	// Write what was computed, even after a failure.
 	var outErr error
-	traj := &run.Outcome{Title: m.Title, TimeUnit: m.Units.Time, AmountUnit: m.Units.Amount, Names: sys.Species()}
-	if res != nil {
-		traj.T, traj.Y = res.T, res.Y
-	}
+	traj, _ := run.NewOutcome(m, sys, res, nil, time.Now()) // species and assignments
+
 	if f.out != "" {
 		if err := run.SaveCSV(f.out, traj); err != nil {
 			outErr = fmt.Errorf("writing the trajectories: %w", err)

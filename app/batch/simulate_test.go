@@ -82,6 +82,9 @@ func TestSimulateExamples(t *testing.T) {
 			for _, s := range m.Species {
 				want = append(want, s.Name)
 			}
+			for _, a := range m.Assignments { // assignments follow the species
+				want = append(want, a.Name)
+			}
 			if strings.Join(header, ",") != strings.Join(want, ",") {
 				t.Errorf("header %v, want %v", header, want)
 			}

@@ -28,9 +28,9 @@ type Outcome struct {
 	Species int
 	T       []float64   // output times
 	Y       [][]float64 // Y[i][j] is quantity j (species, then assignments) at T[i]
-	Stats      solve.Stats
-	Compile    time.Duration // time spent compiling the model
-	Elapsed    time.Duration // compile and solve together
+	Stats   solve.Stats
+	Compile time.Duration // time spent compiling the model
+	Elapsed time.Duration // compile and solve together
 	// Err is the reason the solve stopped early, or nil. T and Y then hold
 	// the part computed before it stopped.
 	Err error
