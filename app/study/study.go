@@ -196,6 +196,26 @@ func ReadoutName(kind explore.Kind, species string, number *float64) string {
 	return name
 }
 
+// Quantities returns the names of what a trajectory holds: the species,
+// then the assignments (see explore.Observer).
+func (p *Prepared) Quantities() []string {
+	return append(append([]string(nil), p.Sys.Species()...), p.Sys.Assignments()...)
+}
+
+// Quantity returns the index in a trajectory of the named species or
+// assignment.
+func (p *Prepared) Quantity(name string) (int, bool) {
+	if i, ok := p.Sys.SpeciesIndex(name); ok {
+		return i, true
+	}
+	for i, a := range p.Sys.Assignments() {
+		if a == name {
+			return p.Sys.Dim() + i, true
+		}
+	}
+	return 0, false
+}
+
 // Readouts resolves readout specs on the model. Errors are *ItemError.
 func (p *Prepared) Readouts(specs []ReadoutSpec) ([]explore.Readout, error) {
 	var out []explore.Readout
@@ -204,9 +224,9 @@ func (p *Prepared) Readouts(specs []ReadoutSpec) ([]explore.Readout, error) {
 		bad := func(field, format string, a ...any) error {
 			return &ItemError{List: "readout", Index: i, Field: field, Err: fmt.Errorf(format, a...)}
 		}
-		j, ok := p.Sys.SpeciesIndex(rs.Species)
+		j, ok := p.Quantity(rs.Species)
 		if !ok {
-			return nil, bad("species", "no species %q in the model (species: %s)", rs.Species, strings.Join(p.Sys.Species(), ", "))
+			return nil, bad("species", "no species or assignment %q in the model (%s)", rs.Species, strings.Join(p.Quantities(), ", "))
 		}
 		r := explore.Readout{Name: rs.Name, Kind: rs.Kind, Component: j}
 		var number *float64
@@ -231,7 +251,7 @@ func (p *Prepared) Readouts(specs []ReadoutSpec) ([]explore.Readout, error) {
 		if r.Name == "" {
 			r.Name = ReadoutName(rs.Kind, rs.Species, number)
 		}
-		if err := r.Validate(p.Sys.Dim()); err != nil {
+		if err := r.Validate(len(p.Quantities())); err != nil {
 			return nil, bad("kind", "%w", err)
 		}
 		if seen[r.Name] {
@@ -379,9 +399,9 @@ func (p *Prepared) Population(vary []Vary, size int, seed uint64, sampling explo
 	if len(bandSpecies) > 0 {
 		var comps []int
 		for _, sp := range bandSpecies {
-			c, ok := p.Sys.SpeciesIndex(sp)
+			c, ok := p.Quantity(sp)
 			if !ok {
-				return nil, fmt.Errorf("bands: no species %q in the model", sp)
+				return nil, fmt.Errorf("bands: no species or assignment %q in the model", sp)
 			}
 			comps = append(comps, c)
 		}
@@ -403,7 +423,7 @@ func (j *Job) finish(knobs []string, readouts []ReadoutSpec) error {
 	}
 	j.Readouts = ro
 	for _, r := range ro {
-		j.Species = append(j.Species, p.Sys.Species()[r.Component])
+		j.Species = append(j.Species, p.Quantities()[r.Component])
 	}
 	j.ODE = &explore.ODE{Target: tg, TEnd: p.Sim.TEnd, Settings: p.Settings}
 	j.Settings.Knobs = knobs

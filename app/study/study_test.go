@@ -1,11 +1,13 @@
 package study
 
 import (
+	"context"
 	"errors"
 	"math"
 	"testing"
 
 	"kinetarium/network"
+	"kinetarium/solve/explore"
 )
 
 // Log spacing puts equal ratios between neighbours, 1, 10, 100, 1000
@@ -44,5 +46,48 @@ func TestNewTargetUnknown(t *testing.T) {
 	var ke *KnobError
 	if !errors.As(err, &ke) || ke.Index != 1 || err.Error() != `no species "B" in the model (species: A)` {
 		t.Fatalf("error %v", err)
+	}
+}
+
+// A readout can be computed on an assignment. For A -> B at rate k·A the
+// closed form is A(t) = A0·exp(−k t) (first-order kinetics, common
+// practice), so the assignment frac = A/(A + B) ends at exp(−k·t_end) for
+// each swept k.
+func TestSweepReadoutOnAssignment(t *testing.T) {
+	m := &network.Model{
+		Species:     []network.Species{{Name: "A", Initial: 2}, {Name: "B"}},
+		Parameters:  []network.Parameter{{Name: "k", Value: 1}},
+		Assignments: []network.Assignment{{Name: "frac", Expression: "A/(A + B)"}},
+		Reactions:   []network.Reaction{{Name: "r", Equation: "A -> B", Rate: network.NewRate(network.MassAction, "k", "k")}},
+		Simulation:  network.Simulation{TEnd: 3, RTol: 1e-9, ATol: 1e-14},
+	}
+	p, err := Prepare(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	job, err := p.Sweep([]Axis{{Knob: "k", From: 0.1, To: 1, Points: 4}},
+		[]ReadoutSpec{{Kind: explore.Final, Species: "frac"}, {Kind: explore.Final, Species: "A"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if job.Species[0] != "frac" {
+		t.Errorf("readout species %v", job.Species)
+	}
+	res, err := job.Run(context.Background(), 1, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	frac, a := res.Values(0), res.Values(1)
+	for i, k := range job.Axes[0] {
+		want := math.Exp(-k * 3)
+		if math.Abs(frac[i]-want) > 1e-6*want {
+			t.Errorf("k = %g: final frac = %g, want %g", k, frac[i], want)
+		}
+		if math.Abs(a[i]-2*want) > 1e-6*want {
+			t.Errorf("k = %g: final A = %g, want %g", k, a[i], 2*want)
+		}
+	}
+	if _, err := p.Sweep([]Axis{{Knob: "k", From: 0.1, To: 1, Points: 2}}, []ReadoutSpec{{Kind: explore.Final, Species: "nope"}}); err == nil {
+		t.Error("a readout on an unknown quantity was accepted")
 	}
 }

@@ -20,6 +20,16 @@ type Target interface {
 	Clone() Target
 }
 
+// An Observer computes quantities derived from the state, such as the named
+// assignments of a reaction network (E_total = E + ES). When a Target is
+// also an Observer, its trajectories carry these quantities after the
+// state's components, in the order Assignments lists them, so that
+// readouts and bands can use them like any component.
+type Observer interface {
+	Assignments() []string
+	Assigned(t float64, y, out []float64)
+}
+
 // ODE simulates a Target from T0 to TEnd with package solve. Settings.Times
 // must be set when the run has bands, so that every trajectory has the same
 // output grid.
@@ -49,6 +59,9 @@ type odeSim struct {
 	tg Target
 	sv *solve.Solver
 	y0 []float64
+
+	rows [][]float64 // trajectories with observed quantities
+	buf  []float64
 }
 
 // Simulate implements Simulator.
@@ -63,5 +76,28 @@ func (s *odeSim) Simulate(ctx context.Context, x []float64) (Trajectory, error) 
 	if err != nil {
 		return Trajectory{}, err
 	}
-	return Trajectory{T: res.T, Y: res.Y}, nil
+	tr := Trajectory{T: res.T, Y: res.Y}
+	if ob, ok := s.tg.(Observer); ok && len(ob.Assignments()) > 0 {
+		tr.Y = s.observe(ob, res)
+	}
+	return tr, nil
+}
+
+// observe returns the states of res with the observer's quantities
+// appended to each, in rows reused from one simulation to the next (Run
+// copies a trajectory it keeps).
+func (s *odeSim) observe(ob Observer, res *solve.Result) [][]float64 {
+	n, m := s.tg.Dim(), len(ob.Assignments())
+	if len(s.rows) < len(res.T) || len(s.buf) < len(res.T)*(n+m) {
+		s.rows = make([][]float64, len(res.T))
+		s.buf = make([]float64, len(res.T)*(n+m))
+	}
+	rows := s.rows[:len(res.T)]
+	for i, y := range res.Y {
+		row := s.buf[i*(n+m) : (i+1)*(n+m)]
+		copy(row, y)
+		ob.Assigned(res.T[i], y, row[n:])
+		rows[i] = row
+	}
+	return rows
 }
