@@ -107,7 +107,7 @@ func newPopulationWindow(a fyne.App, m *network.Model, name string) (*population
 	p.seed.SetText("1")
 	p.sampling = widget.NewSelect([]string{samplingRandom, samplingLHS}, nil)
 	p.sampling.SetSelected(samplingLHS)
-	species := prep.Sys.Species()
+	species := prep.Quantities()
 	p.ro = newReadoutEditor(species)
 	p.ctl = newRunControls(p.start)
 	for i := 0; i < 2 && i < len(p.qs); i++ {
@@ -264,7 +264,7 @@ func (p *populationWindow) prepare() (*study.Job, error) {
 	if err != nil {
 		return nil, err
 	}
-	return p.prep.Population(vary, n, seed, sampling, specs, p.prep.Sys.Species())
+	return p.prep.Population(vary, n, seed, sampling, specs, p.prep.Quantities())
 }
 
 // start reads the form and runs the population on every core, off the UI
@@ -299,7 +299,7 @@ func (p *populationWindow) bandFigure() (*plot.Plot, error) {
 	if p.res == nil || p.res.Bands == nil {
 		return nil, errors.New("no population to draw yet")
 	}
-	c := slices.Index(p.prep.Sys.Species(), p.species.Selected)
+	c := slices.Index(p.prep.Quantities(), p.species.Selected)
 	if c < 0 {
 		return nil, errors.New("choose a species")
 	}
@@ -407,5 +407,5 @@ func (p *populationWindow) saveBands(path string) error {
 	if p.res == nil || p.res.Bands == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return atomicfile.WriteCSV(path, study.BandRows(p.res.Bands, p.prep.Sys.Species()))
+	return atomicfile.WriteCSV(path, study.BandRows(p.res.Bands, p.prep.Quantities()))
 }

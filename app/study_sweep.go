@@ -142,7 +142,7 @@ func newSweepWindow(a fyne.App, m *network.Model, name string) (*sweepWindow, er
 			s.second.form.Hide()
 		}
 	})
-	species := prep.Sys.Species()
+	species := prep.Quantities()
 	s.ro = newReadoutEditor(species)
 	s.ctl = newRunControls(s.start)
 	if len(s.qs) > 0 {
@@ -257,7 +257,7 @@ func (s *sweepWindow) curveFigure() (*plot.Plot, error) {
 	if s.res == nil || len(s.res.Samples) == 0 {
 		return nil, errors.New("no runs to draw yet")
 	}
-	j := slices.Index(s.prep.Sys.Species(), s.species.Selected)
+	j := slices.Index(s.prep.Quantities(), s.species.Selected)
 	if j < 0 {
 		return nil, errors.New("choose a species")
 	}

@@ -154,8 +154,8 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 			return nil, nil, fmt.Errorf("%s: %w", c.spec, err)
 		}
 		for i, sp := range b.Species {
-			if _, ok := l.Sys.SpeciesIndex(sp); !ok {
-				return nil, nil, fmt.Errorf("%s: bands.species[%d]: no species %q in the model", c.spec, i, sp)
+			if _, ok := l.Quantity(sp); !ok {
+				return nil, nil, fmt.Errorf("%s: bands.species[%d]: no species or assignment %q in the model", c.spec, i, sp)
 			}
 		}
 		bandSp = b.Species
