@@ -122,6 +122,10 @@ type Stats struct {
 type Result struct {
 	T []float64   // output times
 	Y [][]float64 // Y[i] is the state at T[i]; rows share one backing array
+	// Events lists the events of an EventSystem that fired, in order, and
+	// Jumps the state just before and after each time they fired.
+	Events []Firing
+	Jumps  []Jump
 	Stats
 }
 

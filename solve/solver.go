@@ -22,7 +22,26 @@ type Solver struct {
 	radau stepper
 	bdf   stepper
 
-	y []float64 // state handed to OnStop
+	y  []float64 // state handed to OnStop
+	ev *events   // the events of the current solve, for an EventSystem
+}
+
+// checkJump checks the state after a stop-time action or an event at t:
+// every component finite, and non-negative when that is asked for.
+func (sv *Solver) checkJump(t float64) error {
+	if i := nonFinite(sv.y); i >= 0 {
+		return &StepError{T: t, Component: i,
+			Reason: fmt.Sprintf("was made %v by the action at t = %g", sv.y[i], t)}
+	}
+	if sv.set.NonNegative {
+		for i, v := range sv.y {
+			if v < 0 {
+				return &StepError{T: t, Component: i,
+					Reason: fmt.Sprintf("was made negative (%g) by the action at t = %g", v, t)}
+			}
+		}
+	}
+	return nil
 }
 
 // NewSolver returns a Solver for sys with settings s. All work space for the
@@ -189,6 +208,21 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 
 	out := newOutput(set.Times, n)
 	copy(sv.y, y0)
+	sv.ev = nil
+	if es, ok := sv.p.sys.(EventSystem); ok {
+		sv.ev = newEvents(es, n)
+		es.ResetEvents(t0)
+		if es.NextEvent(t0) <= t0 {
+			// Events at the start (a dose at time 0) act before anything
+			// is recorded: the first output shows the state after them.
+			sv.ev.fire(t0, sv.y, nil)
+			if err := sv.checkJump(t0); err != nil {
+				return out.result(sv, start), err
+			}
+		} else if sv.ev.nc > 0 {
+			es.Watch(t0, sv.y, sv.ev.gPrev)
+		}
+	}
 	out.fillAt(t0, sv.y)
 
 	st, err := sv.choose(t0, tEnd, sv.y)
@@ -206,6 +240,7 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 	lastProgress := start
 	done := ctx.Done()
 	t := t0
+	ev := sv.ev
 	for t < tEnd {
 		select {
 		case <-done:
@@ -215,36 +250,72 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 		if sv.stats.Steps >= maxSteps {
 			return out.result(sv, start), sv.tooManySteps(st, maxSteps)
 		}
+		if ev != nil && ev.es.NextEvent(t) <= t {
+			// A scheduled event at a time where a condition fired.
+			before := append([]float64(nil), sv.y...)
+			ev.fire(t, sv.y, nil)
+			if err := sv.checkJump(t); err != nil {
+				return out.result(sv, start), err
+			}
+			out.fillStop(t, before, sv.y)
+			if err := st.start(t, sv.y, st.stepSize()); err != nil {
+				return out.result(sv, start), err
+			}
+			continue
+		}
 		tLimit := tEnd
 		atStop := len(stops) > 0 && stops[0] < tEnd
 		if atStop {
 			tLimit = stops[0]
 		}
+		atEvent := false
+		if ev != nil {
+			if te := ev.es.NextEvent(t); te < tEnd && te <= tLimit {
+				atEvent = true
+				atStop = atStop && stops[0] == te
+				tLimit = te
+			}
+		}
+		tPrev := t
 		if err := st.step(tLimit); err != nil {
 			return out.result(sv, start), err
 		}
 		sv.stats.Steps++
 		tn, yn := st.current()
-		landed := atStop && tn == tLimit
+		if ev != nil && ev.nc > 0 {
+			if tr, ok := ev.locate(st, tPrev, tn, yn, sv.p.rtol, sv.y); ok {
+				out.fillStep(st, tr, sv.y, false)
+				t = tr
+				ev.fire(tr, sv.y, ev.rose)
+				if err := sv.checkJump(tr); err != nil {
+					return out.result(sv, start), err
+				}
+				out.fillStop(tr, ev.jumps[len(ev.jumps)-1].Before, sv.y)
+				if err := st.start(tr, sv.y, st.stepSize()); err != nil {
+					return out.result(sv, start), err
+				}
+				continue
+			}
+		}
+		landed := (atStop || atEvent) && tn == tLimit
 		out.fillStep(st, tn, yn, !landed)
 		t = tn
 		switch {
 		case landed:
-			stops = stops[1:]
 			copy(sv.y, yn)
-			if set.OnStop != nil {
-				set.OnStop(t, sv.y)
-				if i := nonFinite(sv.y); i >= 0 {
-					return out.result(sv, start), &StepError{T: t, Component: i,
-						Reason: fmt.Sprintf("was made %v by the stop-time action at t = %g", sv.y[i], t)}
-				}
-				if set.NonNegative {
-					for i, v := range sv.y {
-						if v < 0 {
-							return out.result(sv, start), &StepError{T: t, Component: i,
-								Reason: fmt.Sprintf("was made negative (%g) by the stop-time action at t = %g", v, t)}
-						}
+			if atStop {
+				stops = stops[1:]
+				if set.OnStop != nil {
+					set.OnStop(t, sv.y)
+					if err := sv.checkJump(t); err != nil {
+						return out.result(sv, start), err
 					}
+				}
+			}
+			if atEvent {
+				ev.fire(t, sv.y, nil)
+				if err := sv.checkJump(t); err != nil {
+					return out.result(sv, start), err
 				}
 			}
 			out.fillStop(t, yn, sv.y)
@@ -365,6 +436,9 @@ func (o *output) result(sv *Solver, start time.Time) *Result {
 	}
 	sv.stats.Wall = time.Since(start)
 	r.Stats = sv.stats
+	if sv.ev != nil {
+		r.Events, r.Jumps = sv.ev.fired, sv.ev.jumps
+	}
 	return r
 }
 
