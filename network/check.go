@@ -36,6 +36,7 @@ type Net struct {
 	Model       *Model
 	Reactions   []CheckedReaction   // in model order
 	Assignments []CheckedAssignment // in evaluation order: each after those it reads
+	Events      []CheckedEvent      // the sound events, in model order
 	// Problems is every error and warning found, sorted.
 	Problems ErrorList
 
@@ -117,6 +118,7 @@ func Check(m *Model) (*Net, ErrorList) {
 	for i := range m.Reactions {
 		v.reaction(i)
 	}
+	v.events()
 	v.simulation()
 	for i, s := range m.Species {
 		if !v.usedSp[i] && isName(s.Name) {

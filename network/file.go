@@ -9,6 +9,7 @@ import (
 	"math"
 	"os"
 	"sort"
+	"strconv"
 	"strings"
 
 	"kinetarium/internal/atomicfile"
@@ -132,7 +133,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		d.errs[0].Field = ""
 		return nil, d.errs
 	}
-	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "simulation")
+	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "events", "simulation")
 	if top == nil {
 		return nil, d.errs
 	}
@@ -202,6 +203,59 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		}
 		m.Reactions = append(m.Reactions, r)
 	})
+	d.items(top, "events", []string{"name", "note", "at", "every", "count", "when", "once", "from", "to", "add", "set", "infuse"},
+		func(i int, o *jnode, path string) {
+			e := Event{Name: d.optStr(o, "name", path), Note: d.optStr(o, "note", path), When: d.optStr(o, "when", path)}
+			for _, f := range []struct {
+				key string
+				v   *Value
+			}{{"at", &e.At}, {"every", &e.Every}, {"from", &e.From}, {"to", &e.To}} {
+				if x, ok := o.get(f.key); ok {
+					*f.v, _ = d.value(x, path+"."+f.key)
+				}
+			}
+			if x, ok := o.get("count"); ok {
+				if f, ok := d.num(x, path+".count"); ok {
+					if f != math.Trunc(f) || f < 1 || f > 1e6 {
+						d.fail(x, path+".count", "%v is not a whole number from 1 to 1000000; expected the number of occurrences", f)
+					} else {
+						e.Count = int(f)
+					}
+				}
+			}
+			if x, ok := o.get("once"); ok {
+				e.Once = d.boolean(x, path+".once")
+			}
+			for _, a := range []struct {
+				key  string
+				list *[]Change
+			}{{"add", &e.Add}, {"set", &e.Set}, {"infuse", &e.Infuse}} {
+				key, list := a.key, a.list
+				x, ok := o.get(key)
+				if !ok {
+					continue
+				}
+				if x.kind != '{' {
+					d.fail(x, path+"."+key, "expected an object {\"SPECIES\": value, ...}, found %s", x.what())
+					continue
+				}
+				for j, target := range x.keys {
+					d.mark("events", i, key+"."+target, x.vals[j])
+					v := x.vals[j]
+					switch v.kind {
+					case '"':
+						*list = append(*list, Change{Target: target, Value: v.str})
+					case '0':
+						if _, ok := d.num(v, path+"."+key+"."+target); ok {
+							*list = append(*list, Change{Target: target, Value: v.num.String()})
+						}
+					default:
+						d.fail(v, path+"."+key+"."+target, "expected a number, a parameter name or an expression in quotes, found %s", v.what())
+					}
+				}
+			}
+			m.Events = append(m.Events, e)
+		})
 	if v, ok := top.get("simulation"); ok {
 		d.mark("simulation", 0, "", v)
 		if o := d.object(v, "simulation", "t_end", "output", "rtol", "atol", "method", "non_negative"); o != nil {
@@ -376,6 +430,7 @@ type (
 		Parameters   []fileParameter   `json:"parameters,omitempty"`
 		Assignments  []fileAssignment  `json:"assignments,omitempty"`
 		Reactions    []fileReaction    `json:"reactions"`
+		Events       []fileEvent       `json:"events,omitempty"`
 		Simulation   *fileSimulation   `json:"simulation,omitempty"`
 	}
 	fileUnits struct {
@@ -412,7 +467,22 @@ type (
 		Unit       string `json:"unit,omitempty"`
 		Note       string `json:"note,omitempty"`
 	}
-	fileRate       Rate
+	fileRate  Rate
+	fileEvent struct {
+		Name   string      `json:"name"`
+		Note   string      `json:"note,omitempty"`
+		At     *fileValue  `json:"at,omitempty"`
+		Every  *fileValue  `json:"every,omitempty"`
+		Count  int         `json:"count,omitempty"`
+		When   string      `json:"when,omitempty"`
+		Once   bool        `json:"once,omitempty"`
+		From   *fileValue  `json:"from,omitempty"`
+		To     *fileValue  `json:"to,omitempty"`
+		Add    fileChanges `json:"add,omitempty"`
+		Set    fileChanges `json:"set,omitempty"`
+		Infuse fileChanges `json:"infuse,omitempty"`
+	}
+	fileChanges    []Change
 	fileValue      Value
 	fileSimulation struct {
 		TEnd        float64     `json:"t_end,omitempty"`
@@ -489,6 +559,37 @@ func (r fileRate) MarshalJSON() ([]byte, error) {
 	return b.Bytes(), nil
 }
 
+// MarshalJSON writes the changes as an object in their order, each value
+// as a number when it reads as one, else as text.
+func (cs fileChanges) MarshalJSON() ([]byte, error) {
+	var b bytes.Buffer
+	b.WriteString("{")
+	for i, c := range cs {
+		if i > 0 {
+			b.WriteString(",")
+		}
+		k, _ := json.Marshal(c.Target)
+		b.Write(k)
+		b.WriteString(":")
+		if f, err := strconv.ParseFloat(c.Value, 64); err == nil && !math.IsInf(f, 0) && !math.IsNaN(f) && strconv.FormatFloat(f, 'g', -1, 64) == c.Value {
+			b.WriteString(c.Value)
+		} else {
+			v, _ := json.Marshal(c.Value)
+			b.Write(v)
+		}
+	}
+	b.WriteString("}")
+	return b.Bytes(), nil
+}
+
+func optValue(v Value) *fileValue {
+	if !v.Set {
+		return nil
+	}
+	f := fileValue(v)
+	return &f
+}
+
 func contains(list []string, s string) bool {
 	for _, x := range list {
 		if x == s {
@@ -521,6 +622,11 @@ func (m *Model) Write(w io.Writer) error {
 	}
 	for _, r := range m.Reactions {
 		f.Reactions = append(f.Reactions, fileReaction{Name: r.Name, Equation: r.Equation, Note: r.Note, Rate: fileRate(r.Rate)})
+	}
+	for _, e := range m.Events {
+		f.Events = append(f.Events, fileEvent{Name: e.Name, Note: e.Note, At: optValue(e.At), Every: optValue(e.Every),
+			Count: e.Count, When: e.When, Once: e.Once, From: optValue(e.From), To: optValue(e.To),
+			Add: e.Add, Set: e.Set, Infuse: e.Infuse})
 	}
 	s := m.Simulation
 	fs := fileSimulation{TEnd: s.TEnd, RTol: s.RTol, ATol: s.ATol, Method: s.Method, NonNegative: s.NonNegative}

@@ -2,6 +2,7 @@ package network
 
 import (
 	"bytes"
+	"math"
 	"errors"
 	"os"
 	"path/filepath"
@@ -169,6 +170,7 @@ func FuzzRead(f *testing.F) {
 	f.Add([]byte(`{"format": "kinetarium.model/1", "compartments": [{"name": "c", "volume": 0}], "species": [{"name": "A", "compartment": "c"}]}`))
 	f.Add([]byte(`{"format": "kinetarium.model/1", "species": [{"name": "A"}], "reactions": [{"name": "r", "equation": "A -> 2 A", "rate": {"law": "michaelis_menten", "kcat": 1, "enzyme": "A", "km": 0}}]}`))
 	f.Add([]byte(`{`))
+	f.Add([]byte(`{"format": "kinetarium.model/1", "species": [{"name": "A", "initial": 1}], "parameters": [{"name": "k", "value": 1}], "reactions": [{"name": "r", "equation": "A ->", "rate": {"law": "mass_action", "k": "k"}}], "events": [{"name": "d", "at": 1, "every": 2, "count": 3, "add": {"A": 1}}, {"name": "w", "when": "A < 0.5", "once": true, "set": {"k": "k/2"}}, {"name": "i", "from": 0, "to": 1, "infuse": {"A": "k"}}]}`))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		m, err := Read(bytes.NewReader(data), "fuzz")
 		if err != nil {
@@ -183,6 +185,12 @@ func FuzzRead(f *testing.F) {
 		y := s.Initial()
 		f := make([]float64, s.Dim())
 		s.RHS(0, y, f)
+		s.ResetEvents(0)
+		if te := s.NextEvent(0); !math.IsInf(te, 1) {
+			s.Fire(te, y, nil)
+		}
+		g := make([]float64, s.Conditions())
+		s.Watch(0, y, g)
 		_, ci := s.JacobianPattern()
 		s.JacobianCSR(0, y, make([]float64, len(ci)))
 	})

@@ -38,6 +38,7 @@ type Model struct {
 	Parameters   []Parameter
 	Assignments  []Assignment
 	Reactions    []Reaction
+	Events       []Event
 	Simulation   Simulation
 
 	source *sourceMap // where Read found each item; nil for models built in code
@@ -85,6 +86,36 @@ type Assignment struct {
 	Expression string
 	Unit       string
 	Note       string
+}
+
+// Event is a change of the state or of a parameter during a run: a dose, a
+// washout, an infusion, a switch. It has one timing — At (once, or Count
+// times Every apart), When (each time a condition turns true; only the
+// first time with Once), or From and To (an infusion over that interval,
+// repeated Count times Every apart) — and its actions, applied in order.
+type Event struct {
+	Name  string
+	Note  string
+	At    Value // time of the first (or only) occurrence
+	Every Value // interval between occurrences
+	Count int   // number of occurrences (with Every)
+	When  string
+	Once  bool
+	From  Value // start of an infusion
+	To    Value // end of an infusion
+	// Add raises species by amounts; Set gives species or parameters new
+	// values (expressions evaluated with the values just before the
+	// event); Infuse feeds species at a constant amount per time from From
+	// to To.
+	Add, Set, Infuse []Change
+}
+
+// Change is one action of an event: its target (a species or parameter)
+// and its value, the text of a number, a parameter name or an
+// expression.
+type Change struct {
+	Target string
+	Value  string
 }
 
 // Reaction is one reaction: an equation such as "E + S <=> ES" and its rate
@@ -274,6 +305,13 @@ func (m *Model) Clone() *Model {
 		}
 	}
 	c.Assignments = append([]Assignment(nil), m.Assignments...)
+	c.Events = append([]Event(nil), m.Events...)
+	for i := range c.Events {
+		e := &c.Events[i]
+		e.Add = append([]Change(nil), e.Add...)
+		e.Set = append([]Change(nil), e.Set...)
+		e.Infuse = append([]Change(nil), e.Infuse...)
+	}
 	if m.Simulation.NonNegative != nil {
 		b := *m.Simulation.NonNegative
 		c.Simulation.NonNegative = &b

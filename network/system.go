@@ -49,6 +49,15 @@ type System struct {
 	asgNames []string
 	asgProgs []program // each assignment, inlined, over [y | parameters | t]
 
+	pbase      []float64 // parameter values set from outside, restored at ResetEvents
+	events     []cevent
+	nCond      int       // triggered events
+	inflow     []float64 // infusion input per species, concentration per time
+	infusing   int       // infusions running
+	maxActions int
+	actVals    []float64 // scratch for the values of an event's actions
+	fired      []string  // names returned by Fire
+
 	rowPtr, colIdx []int
 	jpos           []int     // CSR position of each (contribution, dependency) pair
 	jvals          []float64 // scratch for the dense Jacobian
@@ -306,6 +315,10 @@ func (net *Net) Compile() (*System, error) {
 	if err := b.compileAssignments(); err != nil {
 		return nil, err
 	}
+	s.pbase = append([]float64(nil), s.vars[n:n+len(m.Parameters)]...)
+	if err := b.compileEvents(); err != nil {
+		return nil, err
+	}
 	s.cScale = make([]float64, len(s.cSp))
 	s.updateScales()
 	s.dr = make([]float64, len(s.depSp))
@@ -477,6 +490,11 @@ func (s *System) RHS(t float64, y, dydt []float64) {
 			dydt[s.cSp[c]] += s.cScale[c] * v
 		}
 	}
+	if s.infusing > 0 {
+		for i, v := range s.inflow {
+			dydt[i] += v
+		}
+	}
 }
 
 // Rates writes the rate of every reaction at (t, y), in the concentration
@@ -566,7 +584,10 @@ func (s *System) Parameters() []string { return s.parNames }
 func (s *System) Parameter(i int) float64 { return s.vars[s.n+i] }
 
 // SetParameter sets the value of parameter i.
-func (s *System) SetParameter(i int, v float64) { s.vars[s.n+i] = v }
+func (s *System) SetParameter(i int, v float64) {
+	s.vars[s.n+i] = v
+	s.pbase[i] = v
+}
 
 // ParameterIndex returns the index of the named parameter.
 func (s *System) ParameterIndex(name string) (int, bool) {
@@ -609,6 +630,25 @@ func (s *System) Clone() *System {
 	c.cScale = append([]float64(nil), s.cScale...)
 	c.dr = make([]float64, len(s.dr))
 	c.dp = make([]float64, len(s.dp))
+	c.pbase = append([]float64(nil), s.pbase...)
+	c.inflow = append([]float64(nil), s.inflow...)
+	c.actVals = make([]float64, len(s.actVals))
+	c.fired = nil
+	c.events = append([]cevent(nil), s.events...)
+	for i := range c.events {
+		e := &c.events[i]
+		e.rates = append([]float64(nil), e.rates...)
+		if e.lhs != nil {
+			e.lhs, e.rhs = cloneProgram(e.lhs), cloneProgram(e.rhs)
+		}
+		for _, list := range []*[]caction{&e.add, &e.set, &e.infuse} {
+			cp := append([]caction(nil), (*list)...)
+			for k := range cp {
+				cp[k].prog = cloneProgram(cp[k].prog)
+			}
+			*list = cp
+		}
+	}
 	c.pvals = make([]float64, len(s.pvals))
 	c.asgProgs = make([]program, len(s.asgProgs))
 	for i, p := range s.asgProgs {

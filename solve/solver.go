@@ -212,7 +212,9 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 	if es, ok := sv.p.sys.(EventSystem); ok {
 		sv.ev = newEvents(es, n)
 		es.ResetEvents(t0)
-		if es.NextEvent(t0) <= t0 {
+		if sv.ev.nc == 0 && math.IsInf(es.NextEvent(t0), 1) {
+			sv.ev = nil // nothing to watch or schedule
+		} else if es.NextEvent(t0) <= t0 {
 			// Events at the start (a dose at time 0) act before anything
 			// is recorded: the first output shows the state after them.
 			sv.ev.fire(t0, sv.y, nil)
