@@ -2,8 +2,8 @@ package network
 
 import (
 	"bytes"
-	"math"
 	"errors"
+	"math"
 	"os"
 	"path/filepath"
 	"reflect"
