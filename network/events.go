@@ -20,6 +20,7 @@ type cevent struct {
 	active, firedOnce     bool // an infusion running; a once-event spent
 	rates                 []float64
 	startName, finishName string
+	orig                  [4]val // at, every, from and to as compiled
 }
 
 // caction is a compiled action: a species (par < 0) or a parameter and
@@ -27,6 +28,16 @@ type cevent struct {
 type caction struct {
 	sp, par int
 	prog    program
+	fixed   bool    // value set from outside (SetEventValue) instead of prog
+	value   float64 // the value when fixed
+}
+
+// eval returns the action's value with the variables as loaded.
+func (a *caction) eval(vars []float64) float64 {
+	if a.fixed {
+		return a.value
+	}
+	return a.prog.Eval(vars)
 }
 
 // compileEvents compiles the checked events.
@@ -69,6 +80,7 @@ func (b *builder) compileEvents() error {
 			}
 		}
 		c.rates = make([]float64, len(c.infuse))
+		c.orig = [4]val{c.at, c.every, c.from, c.to}
 		s.maxActions = max(s.maxActions, len(c.add)+len(c.set))
 		s.events = append(s.events, c)
 	}
@@ -168,7 +180,7 @@ func (s *System) Fire(t float64, y []float64, rose []bool) []string {
 				if !e.active && s.get(e.from)+shift <= t {
 					s.loadAll(t, y)
 					for k, a := range e.infuse {
-						e.rates[k] = a.prog.Eval(s.vars) / s.volumes[s.spComp[a.sp]]
+						e.rates[k] = a.eval(s.vars) / s.volumes[s.spComp[a.sp]]
 						s.inflow[a.sp] += e.rates[k]
 					}
 					e.active = true
@@ -209,11 +221,11 @@ func (s *System) Fire(t float64, y []float64, rose []bool) []string {
 func (s *System) apply(e *cevent, t float64, y []float64) {
 	s.loadAll(t, y)
 	vals := s.actVals[:0]
-	for _, a := range e.add {
-		vals = append(vals, a.prog.Eval(s.vars))
+	for k := range e.add {
+		vals = append(vals, e.add[k].eval(s.vars))
 	}
-	for _, a := range e.set {
-		vals = append(vals, a.prog.Eval(s.vars))
+	for k := range e.set {
+		vals = append(vals, e.set[k].eval(s.vars))
 	}
 	for k, a := range e.add {
 		y[a.sp] += vals[k] / s.volumes[s.spComp[a.sp]]

@@ -27,6 +27,7 @@ const (
 	Parameter Kind = iota // a parameter's value
 	Initial               // a species' initial concentration
 	Volume                // a declared compartment's volume
+	Event                 // an event's time, interval, amount or rate ("dose.add.C")
 )
 
 // String returns the kind in plain words.
@@ -38,6 +39,8 @@ func (k Kind) String() string {
 		return "initial concentration"
 	case Volume:
 		return "volume"
+	case Event:
+		return "event quantity"
 	}
 	return "kind " + strconv.Itoa(int(k))
 }
@@ -62,19 +65,45 @@ func (k Knob) Label() string {
 		return k.Name + " initial"
 	case Volume:
 		return k.Name + " volume"
+	case Event:
+		return eventLabel(k.Name)
 	}
 	return k.Name
 }
 
+// eventLabel writes an event quantity for people: "dose: amount of C",
+// "dose: first time", "dose: interval".
+func eventLabel(ref string) string {
+	event, field, _ := strings.Cut(ref, ".")
+	switch {
+	case field == "at":
+		field = "time"
+	case field == "every":
+		field = "interval"
+	case field == "from":
+		field = "start"
+	case field == "to":
+		field = "end"
+	case strings.HasPrefix(field, "add."):
+		field = "amount of " + strings.TrimPrefix(field, "add.")
+	case strings.HasPrefix(field, "infuse."):
+		field = "rate into " + strings.TrimPrefix(field, "infuse.")
+	}
+	return event + ": " + field
+}
+
 // Ref is the knob's name in studies and spec files: "k" for a parameter,
 // "init:S" for species S's initial concentration, "volume:C" for
-// compartment C's volume.
+// compartment C's volume, "event:E.FIELD" for a quantity of event E
+// ("event:dose.add.C", "event:dose.at", "event:dose.every").
 func (k Knob) Ref() string {
 	switch k.Kind {
 	case Initial:
 		return "init:" + k.Name
 	case Volume:
 		return "volume:" + k.Name
+	case Event:
+		return "event:" + k.Name
 	}
 	return k.Name
 }
@@ -87,6 +116,9 @@ func ParseRef(ref string) Knob {
 	}
 	if name, ok := strings.CutPrefix(ref, "volume:"); ok {
 		return Knob{Kind: Volume, Name: name}
+	}
+	if name, ok := strings.CutPrefix(ref, "event:"); ok {
+		return Knob{Kind: Event, Name: name}
 	}
 	return Knob{Kind: Parameter, Name: ref}
 }
@@ -133,6 +165,10 @@ func Candidates(m *network.Model) []Knob {
 	for _, c := range m.Compartments {
 		add(Volume, c.Name, c.Volume, 0)
 	}
+	for _, ref := range m.EventQuantities() {
+		v, _ := m.EventValue(ref)
+		add(Event, ref, v, 0)
+	}
 	return out
 }
 
@@ -158,6 +194,8 @@ func Lookup(m *network.Model, kind Kind, name string) (float64, bool) {
 				return c.Volume, true
 			}
 		}
+	case Event:
+		return m.EventValue(name)
 	}
 	return 0, false
 }
@@ -190,6 +228,10 @@ func WriteBack(m *network.Model, knobs []Knob) int {
 					n++
 				}
 			}
+		case Event:
+			if m.SetEventValue(k.Name, k.Value) {
+				n++
+			}
 		}
 	}
 	return n
@@ -205,6 +247,10 @@ func (k Knob) Check(v float64) error {
 		return fmt.Errorf("%s = %g: an initial concentration must be ≥ 0", k.Label(), v)
 	case k.Kind == Volume && v <= 0:
 		return fmt.Errorf("%s = %g: a volume must be positive", k.Label(), v)
+	case k.Kind == Event && strings.HasSuffix(k.Name, ".every") && v <= 0:
+		return fmt.Errorf("%s = %g: an interval must be positive", k.Label(), v)
+	case k.Kind == Event && v < 0:
+		return fmt.Errorf("%s = %g: expected 0 or more", k.Label(), v)
 	}
 	return nil
 }

@@ -95,6 +95,7 @@ func (s *Session) Set(knobs []Knob) error {
 			s.sys.SetVolume(s.comp[j], c.Volume)
 		}
 	}
+	s.sys.ResetEventValues()
 	for _, k := range knobs {
 		switch k.Kind {
 		case Parameter:
@@ -106,6 +107,10 @@ func (s *Session) Set(knobs []Knob) error {
 		case Volume:
 			i, _ := s.sys.CompartmentIndex(k.Name)
 			s.sys.SetVolume(i, k.Value)
+		case Event:
+			if err := s.sys.SetEventValue(k.Name, k.Value); err != nil {
+				return err
+			}
 		}
 	}
 	return nil

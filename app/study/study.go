@@ -66,9 +66,11 @@ func NewTarget(sys *network.System, names []string) (*Target, error) {
 			if kn.index, ok = sys.CompartmentIndex(kn.Name); !ok {
 				err = fmt.Errorf("no compartment %q in the model (compartments: %s)", kn.Name, strings.Join(sys.Compartments(), ", "))
 			}
+		case sliders.Event:
+			_, err = sys.EventValue(kn.Name)
 		default:
 			if kn.index, ok = sys.ParameterIndex(kn.Name); !ok {
-				err = fmt.Errorf("no parameter %q in the model (parameters: %s; use init:SPECIES or volume:COMPARTMENT for those)", kn.Name, strings.Join(sys.Parameters(), ", "))
+				err = fmt.Errorf("no parameter %q in the model (parameters: %s; use init:SPECIES, volume:COMPARTMENT or event:EVENT.FIELD for those)", kn.Name, strings.Join(sys.Parameters(), ", "))
 			}
 		}
 		if err != nil {
@@ -90,6 +92,8 @@ func (t *Target) SetKnob(k int, v float64) error {
 		t.SetInitial(kn.index, v)
 	case sliders.Volume:
 		t.SetVolume(kn.index, v)
+	case sliders.Event:
+		return t.SetEventValue(kn.Name, v)
 	default:
 		t.SetParameter(kn.index, v)
 	}

@@ -91,3 +91,45 @@ func TestSweepReadoutOnAssignment(t *testing.T) {
 		t.Error("a readout on an unknown quantity was accepted")
 	}
 }
+
+// Event quantities are knobs: a sweep over the amount of a single bolus
+// into V = 10 gives a peak of D/V, and a sweep over the dosing interval of
+// three doses gives the peak after the third, (D/V)(1 + e^(−kτ) +
+// e^(−2kτ)) (repeated IV bolus, Gibaldi & Perrier 1982, from memory).
+func TestSweepEventKnobs(t *testing.T) {
+	m := &network.Model{
+		Compartments: []network.Compartment{{Name: "body", Volume: 10}},
+		Species:      []network.Species{{Name: "C", Compartment: "body"}},
+		Parameters:   []network.Parameter{{Name: "k", Value: 0.1}},
+		Reactions:    []network.Reaction{{Name: "elim", Equation: "C ->", Rate: network.NewRate(network.MassAction, "k", "k")}},
+		Events: []network.Event{{Name: "iv", At: network.Number(0), Every: network.Number(12), Count: 3,
+			Add: []network.Change{{Target: "C", Value: "100"}}}},
+		Simulation: network.Simulation{TEnd: 60, RTol: 1e-10, ATol: 1e-14, Output: network.Output{Points: 6001}},
+	}
+	p, err := Prepare(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	job, err := p.Sweep([]Axis{{Knob: "event:iv.add.C", From: 50, To: 200, Points: 4}, {Knob: "event:iv.every", From: 6, To: 24, Points: 3}},
+		[]ReadoutSpec{{Kind: explore.Max, Species: "C"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := job.Run(context.Background(), 1, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	peak := res.Values(0)
+	for i, d := range job.Axes[0] {
+		for j, tau := range job.Axes[1] {
+			q := math.Exp(-0.1 * tau)
+			want := d / 10 * (1 + q + q*q)
+			if got := peak[i*len(job.Axes[1])+j]; math.Abs(got-want) > 1e-6*want {
+				t.Errorf("D = %g, tau = %g: peak %.9g, want %.9g", d, tau, got, want)
+			}
+		}
+	}
+	if _, err := p.Sweep([]Axis{{Knob: "event:iv.add.X", From: 1, To: 2, Points: 2}}, nil); err == nil {
+		t.Error("an unknown event quantity was accepted")
+	}
+}
