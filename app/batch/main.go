@@ -43,6 +43,8 @@ Commands:
         --figure FILE      draw the trajectories to FILE.png, .svg or .pdf
         --log-y            logarithmic concentration axis in the figure
         --stats            print solver statistics as one JSON line, last
+                           (events_fired counts the events that fired)
+        --event-rows       add two rows at each event: just before, just after
         --repeat N         solve N times and report the median solve time
 
   sweep SPEC.json [--out DIR] [--shard i/n] [--workers N] [--quiet]

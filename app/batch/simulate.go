@@ -39,6 +39,7 @@ type simFlags struct {
 	figure  string
 	logY    bool
 	stats   bool
+	events  bool // --event-rows
 	repeat  int
 	set     map[string]bool
 }
@@ -64,6 +65,7 @@ func parseSimFlags(args []string) (*simFlags, error) {
 	fs.StringVar(&f.figure, "figure", "", "")
 	fs.BoolVar(&f.logY, "log-y", false, "")
 	fs.BoolVar(&f.stats, "stats", false, "")
+	fs.BoolVar(&f.events, "event-rows", false, "")
 	fs.IntVar(&f.repeat, "repeat", 1, "")
 	var pos []string
 	for {
@@ -146,6 +148,7 @@ type simStats struct {
 	Repeat         int      `json:"repeat"`
 	Species        int      `json:"species"`
 	Points         int      `json:"points"` // output rows written
+	EventsFired    int      `json:"events_fired"`
 	TEnd           float64  `json:"t_end"`
 	RTol           float64  `json:"rtol"`
 	ATol           float64  `json:"atol"`
@@ -210,12 +213,15 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 	// Write what was computed, even after a failure.
 	var outErr error
 	traj, _ := run.NewOutcome(m, sys, res, nil, time.Now()) // species and assignments
-
+	table := traj
+	if f.events {
+		table = traj.WithEventRows()
+	}
 	if f.out != "" {
-		if err := run.SaveCSV(f.out, traj); err != nil {
+		if err := run.SaveCSV(f.out, table); err != nil {
 			outErr = fmt.Errorf("writing the trajectories: %w", err)
 		}
-	} else if err := run.WriteCSV(stdout, traj); err != nil {
+	} else if err := run.WriteCSV(stdout, table); err != nil {
 		outErr = fmt.Errorf("writing the trajectories: %w", err)
 	}
 	if f.figure != "" && res != nil {
@@ -237,6 +243,7 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 				st.Methods = append(st.Methods, string(mm))
 			}
 			st.Points = len(res.T)
+			st.EventsFired = len(res.Events)
 		}
 		st.Method = strings.Join(st.Methods, "+")
 		if solveErr != nil {

@@ -31,9 +31,11 @@ type View struct {
 	Zoom *Range
 }
 
-// Trajectories returns the outcome as plotting's series.
+// Trajectories returns the outcome as plotting's series, with the state
+// just before and after each event, so that a dose shows as a sharp jump.
 func (o *Outcome) Trajectories() plotting.Trajectories {
-	return plotting.Trajectories{Times: o.T, Names: o.Names, Values: o.Y}
+	e := o.WithEventRows()
+	return plotting.Trajectories{Times: e.T, Names: e.Names, Values: e.Y}
 }
 
 // Figure draws the outcome with the view. Each species keeps the colour of

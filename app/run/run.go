@@ -28,6 +28,10 @@ type Outcome struct {
 	Species int
 	T       []float64   // output times
 	Y       [][]float64 // Y[i][j] is quantity j (species, then assignments) at T[i]
+	// Events are the events that fired, and Jumps the quantities just
+	// before and after each time they fired (assignments included).
+	Events []solve.Firing
+	Jumps  []solve.Jump
 	Stats   solve.Stats
 	Compile time.Duration // time spent compiling the model
 	Elapsed time.Duration // compile and solve together
@@ -73,13 +77,21 @@ func NewOutcome(m *network.Model, sys *network.System, res *solve.Result, err er
 	}
 	if res != nil {
 		out.T, out.Y, out.Stats = res.T, res.Y, res.Stats
+		out.Events, out.Jumps = res.Events, res.Jumps
 		if len(asg) > 0 {
-			out.Y = make([][]float64, len(res.Y))
-			for i, y := range res.Y {
+			extend := func(t float64, y []float64) []float64 {
 				row := make([]float64, len(species)+len(asg))
 				copy(row, y)
-				sys.Assigned(res.T[i], y, row[len(species):])
-				out.Y[i] = row
+				sys.Assigned(t, y, row[len(species):])
+				return row
+			}
+			out.Y = make([][]float64, len(res.Y))
+			for i, y := range res.Y {
+				out.Y[i] = extend(res.T[i], y)
+			}
+			out.Jumps = make([]solve.Jump, len(res.Jumps))
+			for i, j := range res.Jumps {
+				out.Jumps[i] = solve.Jump{T: j.T, Before: extend(j.T, j.Before), After: extend(j.T, j.After)}
 			}
 		}
 	}
@@ -140,4 +152,31 @@ func (o *Outcome) MethodSummary() string {
 		s = "—"
 	}
 	return s
+}
+
+// WithEventRows returns the outcome with two rows at the time of each
+// jump, the state just before and just after the events there, in time
+// order; a grid row at that very time (which holds the state after) is
+// replaced by the pair. Without jumps it returns o itself.
+func (o *Outcome) WithEventRows() *Outcome {
+	if len(o.Jumps) == 0 {
+		return o
+	}
+	c := *o
+	c.T, c.Y = nil, nil
+	k := 0
+	for i, t := range o.T {
+		for k < len(o.Jumps) && o.Jumps[k].T <= t {
+			j := o.Jumps[k]
+			c.T = append(c.T, j.T, j.T)
+			c.Y = append(c.Y, j.Before, j.After)
+			k++
+		}
+		if len(c.T) > 0 && c.T[len(c.T)-1] == t && i > 0 {
+			continue // the jump's pair stands for this row
+		}
+		c.T = append(c.T, t)
+		c.Y = append(c.Y, o.Y[i])
+	}
+	return &c
 }

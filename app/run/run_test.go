@@ -367,3 +367,39 @@ func TestRunAddsAssignments(t *testing.T) {
 		t.Errorf("CSV header %q", head)
 	}
 }
+
+// Doses are events: the outcome lists them, its figure series and its
+// event rows carry the state just before and after each dose. One bolus of
+// 10 (concentration units) at t = 1 into A, which decays at k = 0.7: just
+// before it A = 2·e^(−0.7), just after A = 2·e^(−0.7) + 10 (first-order
+// decay, common practice).
+func TestRunEventRows(t *testing.T) {
+	m := decayModel(0.7, 2, 5)
+	m.Events = []network.Event{{Name: "bolus", At: network.Number(1), Add: []network.Change{{Target: "A", Value: "10"}}}}
+	o, err := Run(context.Background(), m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(o.Events) != 1 || o.Events[0].Name != "bolus" || o.Events[0].T != 1 {
+		t.Fatalf("events %v", o.Events)
+	}
+	e := o.WithEventRows()
+	if len(e.T) != len(o.T)+1 { // t = 1 is on the grid: its row becomes the pair
+		t.Fatalf("%d rows with events, %d without", len(e.T), len(o.T))
+	}
+	before := 2 * math.Exp(-0.7)
+	for i := range e.T {
+		if e.T[i] == 1 {
+			if math.Abs(e.Y[i][0]-before) > 1e-6 || math.Abs(e.Y[i+1][0]-before-10) > 1e-6 || e.T[i+1] != 1 {
+				t.Errorf("rows at t = 1: %v then %v, want A = %g then %g", e.Y[i], e.Y[i+1], before, before+10)
+			}
+			break
+		}
+		if i > 0 && e.T[i] < e.T[i-1] {
+			t.Fatalf("times out of order at row %d", i)
+		}
+	}
+	if tr := o.Trajectories(); len(tr.Times) != len(e.T) {
+		t.Errorf("figure series has %d points, want the %d with event rows", len(tr.Times), len(e.T))
+	}
+}
