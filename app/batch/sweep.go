@@ -63,6 +63,8 @@ type readoutSpec struct {
 	Species string   `json:"species"`
 	Time    *float64 `json:"time"`  // value_at
 	Level   *float64 `json:"level"` // cross_up, cross_down
+	From    *float64 `json:"from"`  // a window, with to
+	To      *float64 `json:"to"`
 }
 
 // simSpec overrides the model's simulation settings.
@@ -192,7 +194,7 @@ func readoutSpecs(specPath string, raw json.RawMessage) ([]study.ReadoutSpec, er
 		if err := strict(it, &rs, fmt.Sprintf("readouts[%d]", i)); err != nil {
 			return nil, fmt.Errorf("%s: %w", specPath, err)
 		}
-		out = append(out, study.ReadoutSpec{Name: rs.Name, Kind: explore.Kind(rs.Kind), Species: rs.Species, Time: rs.Time, Level: rs.Level})
+		out = append(out, study.ReadoutSpec{Name: rs.Name, Kind: explore.Kind(rs.Kind), Species: rs.Species, Time: rs.Time, Level: rs.Level, From: rs.From, To: rs.To})
 	}
 	return out, nil
 }

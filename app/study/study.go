@@ -168,6 +168,9 @@ type ReadoutSpec struct {
 	Species string       // the species it is computed on
 	Time    *float64     // for explore.ValueAt, and only for it
 	Level   *float64     // for explore.CrossUp and explore.CrossDown, and only for them
+	// From and To, when given (both), restrict the readout to that window
+	// of time (every kind but value_at).
+	From, To *float64
 }
 
 // ItemError is a problem with one field of one item of a study's list:
@@ -198,6 +201,12 @@ func ReadoutName(kind explore.Kind, species string, number *float64) string {
 		name += "@" + FormatNumber(*number)
 	}
 	return name
+}
+
+// windowName adds a readout's window to its default name:
+// "auc_C[216,228]".
+func windowName(name string, from, to float64) string {
+	return name + "[" + FormatNumber(from) + "," + FormatNumber(to) + "]"
 }
 
 // Quantities returns the names of what a trajectory holds: the species,
@@ -252,8 +261,17 @@ func (p *Prepared) Readouts(specs []ReadoutSpec) ([]explore.Readout, error) {
 		if rs.Level != nil && rs.Kind != explore.CrossUp && rs.Kind != explore.CrossDown {
 			return nil, bad("level", "only cross_up and cross_down take a level")
 		}
+		if (rs.From == nil) != (rs.To == nil) {
+			return nil, bad("from", "a window needs both from and to")
+		}
+		if rs.From != nil {
+			r.Window, r.From, r.To = true, *rs.From, *rs.To
+		}
 		if r.Name == "" {
 			r.Name = ReadoutName(rs.Kind, rs.Species, number)
+			if r.Window {
+				r.Name = windowName(r.Name, r.From, r.To)
+			}
 		}
 		if err := r.Validate(len(p.Quantities())); err != nil {
 			return nil, bad("kind", "%w", err)

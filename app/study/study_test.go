@@ -133,3 +133,44 @@ func TestSweepEventKnobs(t *testing.T) {
 		t.Error("an unknown event quantity was accepted")
 	}
 }
+
+// A readout window: with doses every 12 h (D/V = 10, k = 0.1) and output
+// every 0.5 h, the trough before the 3rd dose on the grid is the minimum
+// over [12, 23.5], (D/V)(1 + e^(−1.2))e^(−1.15) (repeated IV bolus, Gibaldi
+// & Perrier 1982, from memory), and the readout's name says its window.
+// (Readouts read the output grid: the last grid time before a dose gives
+// the trough.)
+func TestReadoutWindowOnDoses(t *testing.T) {
+	m := &network.Model{
+		Compartments: []network.Compartment{{Name: "body", Volume: 10}},
+		Species:      []network.Species{{Name: "C", Compartment: "body"}},
+		Parameters:   []network.Parameter{{Name: "k", Value: 0.1}, {Name: "D", Value: 100}},
+		Reactions:    []network.Reaction{{Name: "elim", Equation: "C ->", Rate: network.NewRate(network.MassAction, "k", "k")}},
+		Events: []network.Event{{Name: "iv", At: network.Number(0), Every: network.Number(12), Count: 3,
+			Add: []network.Change{{Target: "C", Value: "D"}}}},
+		Simulation: network.Simulation{TEnd: 48, RTol: 1e-10, ATol: 1e-14, Output: network.Output{Points: 97}},
+	}
+	p, err := Prepare(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	from, to := 12.0, 23.5
+	job, err := p.Sweep([]Axis{{Knob: "D", From: 100, To: 200, Points: 2}},
+		[]ReadoutSpec{{Kind: explore.Min, Species: "C", From: &from, To: &to}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := job.Readouts[0].Name; got != "min_C[12,23.5]" {
+		t.Errorf("name %q", got)
+	}
+	res, err := job.Run(context.Background(), 1, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, d := range job.Axes[0] {
+		want := d / 10 * (1 + math.Exp(-1.2)) * math.Exp(-0.1*11.5)
+		if got := res.Values(0)[i]; math.Abs(got-want) > 1e-6*want {
+			t.Errorf("D = %g: trough %.9g, want %.9g", d, got, want)
+		}
+	}
+}

@@ -59,6 +59,13 @@ type Readout struct {
 	Component int     // index of the component in the state vector
 	At        float64 // time, for ValueAt
 	Level     float64 // threshold, for CrossUp and CrossDown
+	// Window, when true, restricts every kind but ValueAt to the times
+	// From to To: the trajectory there is its grid points strictly inside
+	// with the values at From and To interpolated as for ValueAt, so "the
+	// trough before the 10th dose" or "the AUC over the last interval" is
+	// one readout. A window reaching outside the grid is cut to it.
+	Window   bool
+	From, To float64
 }
 
 // Validate reports whether r can be computed on a state of dim components.
@@ -78,6 +85,10 @@ func (r Readout) Validate(dim int) error {
 		return fmt.Errorf("readout %q: time must be finite, got %v", r.Name, r.At)
 	case (r.Kind == CrossUp || r.Kind == CrossDown) && (math.IsNaN(r.Level) || math.IsInf(r.Level, 0)):
 		return fmt.Errorf("readout %q: level must be finite, got %v", r.Name, r.Level)
+	case r.Window && r.Kind == ValueAt:
+		return fmt.Errorf("readout %q: value_at reads one time; a window (from, to) does not apply", r.Name)
+	case r.Window && !(r.From < r.To) || r.Window && (math.IsInf(r.From, 0) || math.IsInf(r.To, 0)):
+		return fmt.Errorf("readout %q: the window from %v to %v is empty; expected finite from < to", r.Name, r.From, r.To)
 	}
 	return nil
 }
@@ -90,14 +101,33 @@ func (r Readout) Eval(tr Trajectory) float64 {
 	if n == 0 || len(y) < n {
 		return math.NaN()
 	}
-	switch r.Kind {
-	case ValueAt:
+	if r.Kind == ValueAt {
 		return valueAt(t, y, j, r.At)
+	}
+	w := series{t: t, y: y, j: j, lo: 0, hi: n - 1, t0: t[0], tn: t[n-1]}
+	if r.Window {
+		w.t0, w.tn = math.Max(r.From, t[0]), math.Min(r.To, t[n-1])
+		if !(w.t0 < w.tn) {
+			return math.NaN()
+		}
+		w.windowed = true
+		for w.lo < n && t[w.lo] <= w.t0 {
+			w.lo++
+		}
+		w.hi = w.lo
+		for w.hi < n && t[w.hi] < w.tn {
+			w.hi++
+		}
+		// Points: (t0, interpolated), t[lo:hi], (tn, interpolated).
+		w.v0, w.vn = valueAt(t, y, j, w.t0), valueAt(t, y, j, w.tn)
+	}
+	m := w.len()
+	switch r.Kind {
 	case Max, TimeOfMax:
-		best, at := y[0][j], t[0]
-		for i := 1; i < n; i++ {
-			if y[i][j] > best {
-				best, at = y[i][j], t[i]
+		at, best := w.at(0)
+		for i := 1; i < m; i++ {
+			if ti, v := w.at(i); v > best {
+				best, at = v, ti
 			}
 		}
 		if r.Kind == Max {
@@ -105,10 +135,10 @@ func (r Readout) Eval(tr Trajectory) float64 {
 		}
 		return at
 	case Min, TimeOfMin:
-		best, at := y[0][j], t[0]
-		for i := 1; i < n; i++ {
-			if y[i][j] < best {
-				best, at = y[i][j], t[i]
+		at, best := w.at(0)
+		for i := 1; i < m; i++ {
+			if ti, v := w.at(i); v < best {
+				best, at = v, ti
 			}
 		}
 		if r.Kind == Min {
@@ -116,31 +146,63 @@ func (r Readout) Eval(tr Trajectory) float64 {
 		}
 		return at
 	case Final:
-		return y[n-1][j]
+		_, v := w.at(m - 1)
+		return v
 	case AUC:
 		var s float64
-		for i := 0; i+1 < n; i++ {
-			s += (t[i+1] - t[i]) * (y[i][j] + y[i+1][j]) / 2
+		ta, a := w.at(0)
+		for i := 1; i < m; i++ {
+			tb, b := w.at(i)
+			s += (tb - ta) * (a + b) / 2
+			ta, a = tb, b
 		}
 		return s
-	case CrossUp:
-		for i := 0; i+1 < n; i++ {
-			a, b := y[i][j], y[i+1][j]
-			if a < r.Level && b >= r.Level {
-				return t[i] + (r.Level-a)/(b-a)*(t[i+1]-t[i])
+	case CrossUp, CrossDown:
+		ta, a := w.at(0)
+		for i := 1; i < m; i++ {
+			tb, b := w.at(i)
+			if r.Kind == CrossUp && a < r.Level && b >= r.Level || r.Kind == CrossDown && a > r.Level && b <= r.Level {
+				return ta + (r.Level-a)/(b-a)*(tb-ta)
 			}
-		}
-		return math.NaN()
-	case CrossDown:
-		for i := 0; i+1 < n; i++ {
-			a, b := y[i][j], y[i+1][j]
-			if a > r.Level && b <= r.Level {
-				return t[i] + (r.Level-a)/(b-a)*(t[i+1]-t[i])
-			}
+			ta, a = tb, b
 		}
 		return math.NaN()
 	}
 	return math.NaN()
+}
+
+// series is component j of a trajectory, whole (grid points 0 to hi) or
+// in a window (the interpolated value at t0, the grid points lo to hi−1,
+// the interpolated value at tn).
+type series struct {
+	t        []float64
+	y        [][]float64
+	j        int
+	windowed bool
+	lo, hi   int
+	t0, tn   float64
+	v0, vn   float64
+}
+
+func (w *series) len() int {
+	if !w.windowed {
+		return w.hi + 1
+	}
+	return w.hi - w.lo + 2
+}
+
+func (w *series) at(i int) (float64, float64) {
+	if !w.windowed {
+		return w.t[i], w.y[i][w.j]
+	}
+	switch {
+	case i == 0:
+		return w.t0, w.v0
+	case i == w.hi-w.lo+1:
+		return w.tn, w.vn
+	}
+	k := w.lo + i - 1
+	return w.t[k], w.y[k][w.j]
 }
 
 // valueAt interpolates component j linearly at time at.

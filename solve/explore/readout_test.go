@@ -118,3 +118,38 @@ func TestReadoutAllocs(t *testing.T) {
 	}
 	_ = sink
 }
+
+// A window restricts a readout to [From, To] with the ends interpolated.
+// On y = t sampled at 0, 1, …, 10 the trapezoidal rule is exact (common
+// practice), so over [2.5, 7.5] the AUC is (7.5² − 2.5²)/2 = 25, the
+// maximum 7.5 at the window's end, the minimum 2.5 at its start.
+func TestReadoutWindow(t *testing.T) {
+	tr := Trajectory{}
+	for i := 0; i <= 10; i++ {
+		tr.T = append(tr.T, float64(i))
+		tr.Y = append(tr.Y, []float64{float64(i)})
+	}
+	win := func(k Kind, level float64) Readout {
+		return Readout{Name: string(k), Kind: k, Level: level, Window: true, From: 2.5, To: 7.5}
+	}
+	cases := []struct {
+		r    Readout
+		want float64
+	}{
+		{win(AUC, 0), 25}, {win(Max, 0), 7.5}, {win(TimeOfMax, 0), 7.5}, {win(Min, 0), 2.5},
+		{win(TimeOfMin, 0), 2.5}, {win(Final, 0), 7.5}, {win(CrossUp, 5), 5}, {win(CrossUp, 9), math.NaN()},
+		{Readout{Kind: AUC, Window: true, From: -3, To: 2}, 2}, // cut to the grid: ∫0..2 t dt
+	}
+	for _, c := range cases {
+		got := c.r.Eval(tr)
+		if !(got == c.want || math.IsNaN(got) && math.IsNaN(c.want)) {
+			t.Errorf("%s over [%g, %g] = %v, want %v", c.r.Kind, c.r.From, c.r.To, got, c.want)
+		}
+	}
+	if err := (Readout{Kind: ValueAt, Window: true, From: 1, To: 2}).Validate(1); err == nil {
+		t.Error("value_at with a window was accepted")
+	}
+	if err := (Readout{Kind: Max, Window: true, From: 2, To: 2}).Validate(1); err == nil {
+		t.Error("an empty window was accepted")
+	}
+}
