@@ -440,17 +440,24 @@ func exportFigureAs(win fyne.Window, base, what string, prep *study.Prepared, fi
 			}
 			ext := formatExt(format.Selected)
 			saveAs(win, base+ext, ext, func(path string) error {
-				p, err := figure()
-				if err != nil {
-					return err
-				}
-				prov, err := studyProvenance(what, prep)
-				if err != nil {
-					return err
-				}
-				return plotting.Save(p, path, 0, 0, 0, prov.Metadata(""))
+				return saveStudyFigure(path, what, prep, figure)
 			}, saved)
 		}, win)
+}
+
+// saveStudyFigure saves the figure made by figure to path, at the size
+// and resolution the batch command uses, with the provenance of a study of
+// kind what on prep.
+func saveStudyFigure(path, what string, prep *study.Prepared, figure func() (*plot.Plot, error)) error {
+	p, err := figure()
+	if err != nil {
+		return err
+	}
+	prov, err := studyProvenance(what, prep)
+	if err != nil {
+		return err
+	}
+	return plotting.Save(p, path, 0, 0, 0, prov.Metadata(""))
 }
 
 // sectionTitle is a bold heading inside a study window.
