@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check bench fuzz build batch clean
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -35,6 +35,12 @@ unit:
 screenshot-check:
 	app/screenshot_check.sh
 
+# Exported SVG and PDF figures rendered by headless Chromium and poppler
+# with the system's fonts hidden, against the PNG export (also part of
+# `make unit` when Chromium is installed; skipped with a message if not).
+render-check: test-deps
+	$(GO) test ./plotting -run 'Rendering|PDFText|Metadata' -count=1 -v
+
 # Work-precision report and the benchmarks of every package.
 bench:
 	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/...
@@ -45,6 +51,9 @@ fuzz:
 	$(GO) test ./network/expr -run '^$$' -fuzz FuzzParse -fuzztime $(FUZZTIME)
 	$(GO) test ./network -run '^$$' -fuzz FuzzParseEquation -fuzztime $(FUZZTIME)
 	$(GO) test ./network -run '^$$' -fuzz FuzzRead -fuzztime $(FUZZTIME)
+	$(GO) test ./plotting -run '^$$' -fuzz FuzzReadPNGText -fuzztime $(FUZZTIME)
+	$(GO) test ./plotting -run '^$$' -fuzz FuzzSVGMetadata -fuzztime $(FUZZTIME)
+	$(GO) test ./app/run -run '^$$' -fuzz FuzzReadProvenance -fuzztime $(FUZZTIME)
 
 clean:
 	rm -rf bin

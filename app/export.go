@@ -72,8 +72,12 @@ func (w *mainWindow) exportFigure() {
 		ext := formatExt(format.Selected)
 		w.saveFileDialog("figure"+ext, ext, func(path string) {
 			p, err := run.Figure(w.current, w.view())
+			var prov *run.Provenance
 			if err == nil {
-				err = plotting.Save(p, path, vg.Length(wcm)*vg.Centimeter, vg.Length(hcm)*vg.Centimeter, int(d))
+				prov, err = w.provenance()
+			}
+			if err == nil {
+				err = plotting.Save(p, path, vg.Length(wcm)*vg.Centimeter, vg.Length(hcm)*vg.Centimeter, int(d), prov.Metadata(""))
 			}
 			if err != nil {
 				w.showError(err)
@@ -101,12 +105,32 @@ func (w *mainWindow) exportData() {
 	}
 	o := w.current
 	w.saveFileDialog("results.csv", ".csv", func(path string) {
-		if err := run.SaveCSV(path, o); err != nil {
+		prov, err := w.provenance()
+		if err == nil {
+			err = run.SaveCSV(path, o, prov)
+		}
+		if err != nil {
 			w.showError(err)
 			return
 		}
-		w.status.SetText("Data saved to " + path)
+		w.status.SetText("Data saved to " + path + ", its provenance to " + run.ProvenancePath(path))
 	})
+}
+
+// provenance describes the result shown, for its exports: the model in
+// the editor and the slider values that differ from it, when the figure
+// shows a run with them.
+func (w *mainWindow) provenance() (*run.Provenance, error) {
+	m := w.doc.Model()
+	var changed []run.Change
+	if w.tune.tuned {
+		for _, k := range w.tune.knobs {
+			if k.Value != k.Model {
+				changed = append(changed, run.Change{Name: k.Ref(), Model: k.Model, Value: k.Value})
+			}
+		}
+	}
+	return run.NewProvenance("simulation", m, m.Simulation, changed)
 }
 
 // saveFileDialog asks for a file to write, adds ext when the name has no

@@ -50,6 +50,9 @@ func sameFile(t *testing.T, window, batchDir, name string) {
 // spec: the same column names (readouts named by the spec's defaults) and
 // the same numbers. Initial amounts below 0 fail in both.
 func TestSweepWindowWritesTheBatchFiles(t *testing.T) {
+	// The same export time in both (the reproducible-builds.org
+	// convention), so that whole files compare.
+	t.Setenv("SOURCE_DATE_EPOCH", "1700000000")
 	batchDir := batchRun(t, "sweep", "testdata/same/sweep.json")
 	m, err := network.Load("testdata/same/conversion.json")
 	if err != nil {
@@ -82,11 +85,45 @@ func TestSweepWindowWritesTheBatchFiles(t *testing.T) {
 	}
 	sameFile(t, filepath.Join(dir, "runs.csv"), batchDir, "runs.csv")
 	sameFile(t, filepath.Join(dir, "failures.csv"), batchDir, "failures.csv")
+	sameFile(t, filepath.Join(dir, "runs.provenance.json"), batchDir, "runs.provenance.json")
+
+	// The figures: a family of curves and each readout against A₀.
+	onUI(func() { s.species.SetSelected("B") })
+	if err := saveStudyFigure(filepath.Join(dir, "family_B.png"), "sweep", s.prep, s.curveFigure); err != nil {
+		t.Fatal(err)
+	}
+	sameFigure(t, filepath.Join(dir, "family_B.png"), batchDir, "family_B.png")
+	for _, name := range s.res.Readouts {
+		onUI(func() { s.readoutSel.SetSelected(name) })
+		file := "readout_" + fileSafe(name) + ".png"
+		if err := saveStudyFigure(filepath.Join(dir, file), "sweep", s.prep, s.readoutFigure); err != nil {
+			t.Fatal(err)
+		}
+		sameFigure(t, filepath.Join(dir, file), batchDir, file)
+	}
+}
+
+// sameFigure fails unless the window's figure and the batch command's
+// figure of that name are equal byte for byte.
+func sameFigure(t *testing.T, window, batchDir, name string) {
+	t.Helper()
+	a, err := os.ReadFile(window)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := os.ReadFile(filepath.Join(batchDir, name))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(a, b) {
+		t.Errorf("figure %s differs between the window (%d bytes) and the batch command (%d bytes)", name, len(a), len(b))
+	}
 }
 
 // The Population window, filled in as testdata/same/population.json says,
 // exports samples.csv and bands.csv identical to the batch command's.
 func TestPopulationWindowWritesTheBatchFiles(t *testing.T) {
+	t.Setenv("SOURCE_DATE_EPOCH", "1700000000")
 	batchDir := batchRun(t, "population", "testdata/same/population.json")
 	m, err := network.Load("testdata/same/conversion.json")
 	if err != nil {
@@ -124,4 +161,23 @@ func TestPopulationWindowWritesTheBatchFiles(t *testing.T) {
 	}
 	sameFile(t, filepath.Join(dir, "samples.csv"), batchDir, "samples.csv")
 	sameFile(t, filepath.Join(dir, "bands.csv"), batchDir, "bands.csv")
+	sameFile(t, filepath.Join(dir, "bands.provenance.json"), batchDir, "bands.provenance.json")
+
+	// The figures: bands of each species and each readout's histogram.
+	for _, sp := range []string{"A", "B"} {
+		onUI(func() { p.species.SetSelected(sp) })
+		file := "bands_" + sp + ".png"
+		if err := saveStudyFigure(filepath.Join(dir, file), "population", p.prep, p.bandFigure); err != nil {
+			t.Fatal(err)
+		}
+		sameFigure(t, filepath.Join(dir, file), batchDir, file)
+	}
+	for _, name := range p.res.Readouts {
+		onUI(func() { p.readoutSel.SetSelected(name) })
+		file := "hist_" + fileSafe(name) + ".png"
+		if err := saveStudyFigure(filepath.Join(dir, file), "population", p.prep, p.histogramFigure); err != nil {
+			t.Fatal(err)
+		}
+		sameFigure(t, filepath.Join(dir, file), batchDir, file)
+	}
 }

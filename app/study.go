@@ -20,8 +20,10 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
 
+	"kinetarium/app/run"
 	"kinetarium/app/sliders"
 	"kinetarium/app/study"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
@@ -216,21 +218,8 @@ func (e *readoutEditor) specs() ([]study.ReadoutSpec, error) {
 	return out, nil
 }
 
-// readoutLabel describes readout r of a job in words, for axis labels:
-// "final value of P", "time P rises past 10".
-func readoutLabel(job *study.Job, r int) string {
-	ro, sp := job.Readouts[r], job.Species[r]
-	switch ro.Kind {
-	case explore.ValueAt:
-		return sp + " at t = " + short(ro.At)
-	case explore.CrossUp:
-		return "time " + sp + " rises past " + short(ro.Level)
-	case explore.CrossDown:
-		return "time " + sp + " falls past " + short(ro.Level)
-	}
-	label, _ := kindLabelOf(ro.Kind)
-	return strings.ToLower(label[:1]) + label[1:] + " of " + sp
-}
+// readoutLabel describes readout r of a job in words, as figures title it.
+func readoutLabel(job *study.Job, r int) string { return job.Figures().ReadoutLabel(r) }
 
 // kindLabelOf returns the plain-words label of a readout kind.
 func kindLabelOf(k explore.Kind) (string, bool) {
@@ -419,9 +408,29 @@ func saveAs(win fyne.Window, name, ext string, save func(path string) error, sav
 	})
 }
 
+// studyProvenance describes the outputs of a study of kind what ("sweep",
+// "population") on the prepared model: the model the window was opened
+// on, with its own run settings.
+func studyProvenance(what string, prep *study.Prepared) (*run.Provenance, error) {
+	return run.NewProvenance(what, prep.Model, prep.Sim, nil)
+}
+
+// saveTable writes rows to path as CSV, atomically, and the provenance of
+// a study of kind what on prep beside it.
+func saveTable(path string, rows [][]string, what string, prep *study.Prepared) error {
+	prov, err := studyProvenance(what, prep)
+	if err != nil {
+		return err
+	}
+	if err := atomicfile.WriteCSV(path, rows); err != nil {
+		return err
+	}
+	return run.SaveProvenance(path, prov)
+}
+
 // exportFigureAs asks for a format, then a file, and saves the figure made
-// by figure there.
-func exportFigureAs(win fyne.Window, base string, figure func() (*plot.Plot, error), saved func(path string)) {
+// by figure there, with the provenance of a study of kind what on prep.
+func exportFigureAs(win fyne.Window, base, what string, prep *study.Prepared, figure func() (*plot.Plot, error), saved func(path string)) {
 	format := widget.NewSelect(figureFormats, nil)
 	format.SetSelected(figureFormats[0])
 	dialog.ShowForm("Export figure", "Choose file…", "Cancel",
@@ -431,13 +440,24 @@ func exportFigureAs(win fyne.Window, base string, figure func() (*plot.Plot, err
 			}
 			ext := formatExt(format.Selected)
 			saveAs(win, base+ext, ext, func(path string) error {
-				p, err := figure()
-				if err != nil {
-					return err
-				}
-				return plotting.Save(p, path, 0, 0, 0)
+				return saveStudyFigure(path, what, prep, figure)
 			}, saved)
 		}, win)
+}
+
+// saveStudyFigure saves the figure made by figure to path, at the size
+// and resolution the batch command uses, with the provenance of a study of
+// kind what on prep.
+func saveStudyFigure(path, what string, prep *study.Prepared, figure func() (*plot.Plot, error)) error {
+	p, err := figure()
+	if err != nil {
+		return err
+	}
+	prov, err := studyProvenance(what, prep)
+	if err != nil {
+		return err
+	}
+	return plotting.Save(p, path, 0, 0, 0, prov.Metadata(""))
 }
 
 // sectionTitle is a bold heading inside a study window.

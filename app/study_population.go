@@ -20,9 +20,7 @@ import (
 	"gonum.org/v1/plot"
 
 	"kinetarium/app/study"
-	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
-	"kinetarium/plotting"
 	"kinetarium/solve/explore"
 )
 
@@ -145,6 +143,7 @@ func newPopulationWindow(a fyne.App, m *network.Model, name string) (*population
 	p.failures = newFailureList("sample", func() {
 		p.failures.exportAs(p.win, func(path string) { p.ctl.status.SetText("Failures saved to " + path) })
 	})
+	p.failures.kind, p.failures.prep = "population", prep
 
 	bandBar := container.NewHBox(widget.NewLabel("Species"), p.species, p.logTime, p.logY)
 	histBar := container.NewVBox(container.NewHBox(widget.NewLabel("Readout"),
@@ -299,19 +298,10 @@ func (p *populationWindow) bandFigure() (*plot.Plot, error) {
 	if p.res == nil || p.res.Bands == nil {
 		return nil, errors.New("no population to draw yet")
 	}
-	c := slices.Index(p.prep.Quantities(), p.species.Selected)
-	if c < 0 {
+	if !slices.Contains(p.prep.Quantities(), p.species.Selected) {
 		return nil, errors.New("choose a species")
 	}
-	if p.res.Points == p.res.Failed {
-		return nil, errors.New("every sample failed; see “Failed samples”")
-	}
-	q := study.BandCurves(p.res.Bands, c)
-	sp, u := p.species.Selected, p.model.Units
-	return plotting.BandPlot(p.res.Bands.Times, q[2], q[0], q[4], q[1], q[3], sp, plotting.Options{
-		Title: sp + ": median, 25–75 % and 5–95 %", XLabel: "time", XUnit: u.Time, YLabel: sp, YUnit: u.Amount,
-		LogX: p.logTime.Checked, LogY: p.logY.Checked,
-	})
+	return p.job.Figures().Bands(p.res, p.species.Selected, p.logTime.Checked, p.logY.Checked)
 }
 
 // histogramFigure draws the distribution of the chosen readout.
@@ -319,13 +309,7 @@ func (p *populationWindow) histogramFigure() (*plot.Plot, error) {
 	if p.res == nil {
 		return nil, errors.New("no population to draw yet")
 	}
-	r := slices.Index(p.res.Readouts, p.readoutSel.Selected)
-	if r < 0 {
-		return nil, errors.New("no readout chosen; add one under Readouts and run again")
-	}
-	vals, _ := study.ReadoutValues(p.res, r)
-	name := p.res.Readouts[r]
-	return plotting.Histogram(vals, 0, plotting.Options{Title: readoutLabel(p.job, r), XLabel: name, YLabel: "samples"})
+	return p.job.Figures().Histogram(p.res, slices.Index(p.res.Readouts, p.readoutSel.Selected))
 }
 
 func (p *populationWindow) drawBands() {
@@ -384,7 +368,7 @@ func (p *populationWindow) exportFigure() {
 	if p.tabs.Selected() != nil && p.tabs.Selected().Text == "Readouts" {
 		fig, base = p.histogramFigure, "hist_"+fileSafe(p.readoutSel.Selected)
 	}
-	exportFigureAs(p.win, base, fig, func(path string) { p.ctl.status.SetText("Figure saved to " + path) })
+	exportFigureAs(p.win, base, "population", p.prep, fig, func(path string) { p.ctl.status.SetText("Figure saved to " + path) })
 }
 
 // exportTable asks for a file and saves a table there.
@@ -398,7 +382,7 @@ func (p *populationWindow) saveSamples(path string) error {
 	if p.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return atomicfile.WriteCSV(path, study.RunRows(p.res))
+	return saveTable(path, study.RunRows(p.res), "population", p.prep)
 }
 
 // saveBands writes the percentile bands of every species (the batch
@@ -407,5 +391,5 @@ func (p *populationWindow) saveBands(path string) error {
 	if p.res == nil || p.res.Bands == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return atomicfile.WriteCSV(path, study.BandRows(p.res.Bands, p.prep.Quantities()))
+	return saveTable(path, study.BandRows(p.res.Bands, p.prep.Quantities()), "population", p.prep)
 }

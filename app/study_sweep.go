@@ -7,7 +7,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -18,11 +17,8 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
 
-	"kinetarium/app/sliders"
 	"kinetarium/app/study"
-	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
-	"kinetarium/plotting"
 	"kinetarium/solve/explore"
 )
 
@@ -171,6 +167,7 @@ func newSweepWindow(a fyne.App, m *network.Model, name string) (*sweepWindow, er
 	s.failures = newFailureList("run", func() {
 		s.failures.exportAs(s.win, func(path string) { s.ctl.status.SetText("Failures saved to " + path) })
 	})
+	s.failures.kind, s.failures.prep = "sweep", prep
 
 	curveBar := container.NewHBox(widget.NewLabel("Species"), s.species, s.secondAt, s.logTime)
 	readoutBar := container.NewHBox(widget.NewLabel("Readout"), container.NewGridWrap(fyne.NewSize(220, s.readoutSel.MinSize().Height), s.readoutSel))
@@ -250,47 +247,17 @@ func (s *sweepWindow) finished(job *study.Job, res *explore.Result, err error) {
 }
 
 // knobLabel writes a knob name for people: "init:A" is "A initial".
-func knobLabel(ref string) string { return sliders.ParseRef(ref).Label() }
+func knobLabel(ref string) string { return study.KnobLabel(ref) }
 
 // curveFigure is the family of curves of the chosen species.
 func (s *sweepWindow) curveFigure() (*plot.Plot, error) {
 	if s.res == nil || len(s.res.Samples) == 0 {
 		return nil, errors.New("no runs to draw yet")
 	}
-	j := slices.Index(s.prep.Quantities(), s.species.Selected)
-	if j < 0 {
+	if !slices.Contains(s.prep.Quantities(), s.species.Selected) {
 		return nil, errors.New("choose a species")
 	}
-	at := math.NaN()
-	if len(s.job.Axes) == 2 {
-		if i := slices.Index(s.secondAt.Options, s.secondAt.Selected); i >= 0 {
-			at = s.job.Axes[1][i]
-		}
-	}
-	var curves [][]float64
-	var values, times []float64
-	for _, smp := range s.res.Samples {
-		if smp.Traj == nil || (len(smp.X) == 2 && smp.X[1] != at) {
-			continue
-		}
-		times = smp.Traj.T
-		c := make([]float64, len(times))
-		for i := range c {
-			c[i] = smp.Traj.Y[i][j]
-		}
-		curves, values = append(curves, c), append(values, smp.X[0])
-	}
-	if len(curves) == 0 {
-		return nil, errors.New("every run of this choice failed")
-	}
-	title := s.species.Selected
-	if len(s.job.Axes) == 2 {
-		title += " at " + s.secondAt.Selected
-	}
-	u := s.model.Units
-	return plotting.FamilyPlot(times, curves, values, knobLabel(s.res.Knobs[0]), plotting.Options{
-		Title: title, XLabel: "time", XUnit: u.Time, YLabel: s.species.Selected, YUnit: u.Amount, LogX: s.logTime.Checked,
-	})
+	return s.job.Figures().Family(s.res, s.species.Selected, max(slices.Index(s.secondAt.Options, s.secondAt.Selected), 0), s.logTime.Checked)
 }
 
 // readoutFigure is the chosen readout against the varied quantity, or a
@@ -299,27 +266,7 @@ func (s *sweepWindow) readoutFigure() (*plot.Plot, error) {
 	if s.res == nil {
 		return nil, errors.New("no runs to draw yet")
 	}
-	r := slices.Index(s.res.Readouts, s.readoutSel.Selected)
-	if r < 0 {
-		return nil, errors.New("no readout chosen; add one under Readouts and run again")
-	}
-	vals := s.res.Values(r)
-	name := s.res.Readouts[r]
-	label := readoutLabel(s.job, r)
-	if len(s.job.Axes) == 2 {
-		xs, ys := s.job.Axes[1], s.job.Axes[0]
-		z := make([][]float64, len(ys))
-		for i := range ys {
-			z[i] = vals[i*len(xs) : (i+1)*len(xs)]
-		}
-		return plotting.HeatMap(xs, ys, z, plotting.Options{
-			Title: readoutLabel(s.job, r), XLabel: knobLabel(s.res.Knobs[1]), YLabel: knobLabel(s.res.Knobs[0]),
-			LogX: s.job.AxisLog[1], LogY: s.job.AxisLog[0],
-		}, name)
-	}
-	return plotting.XYPlot(s.job.Axes[0], vals, plotting.Options{
-		Title: label, XLabel: knobLabel(s.res.Knobs[0]), YLabel: name, LogX: s.job.AxisLog[0],
-	})
+	return s.job.Figures().Readout(s.res, slices.Index(s.res.Readouts, s.readoutSel.Selected))
 }
 
 func (s *sweepWindow) drawCurves() {
@@ -356,7 +303,7 @@ func (s *sweepWindow) exportFigure() {
 	if s.tabs.Selected() != nil && s.tabs.Selected().Text == "Readouts" {
 		fig, base = s.readoutFigure, "readout_"+fileSafe(s.readoutSel.Selected)
 	}
-	exportFigureAs(s.win, base, fig, func(path string) { s.ctl.status.SetText("Figure saved to " + path) })
+	exportFigureAs(s.win, base, "sweep", s.prep, fig, func(path string) { s.ctl.status.SetText("Figure saved to " + path) })
 }
 
 // exportTable saves every run's values and readouts as CSV.
@@ -369,7 +316,7 @@ func (s *sweepWindow) saveRuns(path string) error {
 	if s.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return atomicfile.WriteCSV(path, study.RunRows(s.res))
+	return saveTable(path, study.RunRows(s.res), "sweep", s.prep)
 }
 
 // fileSafe makes s usable in a file name.
@@ -388,6 +335,8 @@ func fileSafe(s string) string {
 // from 0, as in the index column of the exported tables.
 type failureList struct {
 	what    string
+	kind    string          // of the study: "sweep" or "population"
+	prep    *study.Prepared // the study's model, for the provenance
 	res     *explore.Result
 	summary *widget.Label
 	lines   []string
@@ -454,7 +403,7 @@ func (f *failureList) save(path string) error {
 	if len(f.res.Failures) == 0 {
 		return fmt.Errorf("no %s failed; there is nothing to save", f.what)
 	}
-	return atomicfile.WriteCSV(path, study.FailureRows(f.res))
+	return saveTable(path, study.FailureRows(f.res), f.kind, f.prep)
 }
 
 // exportAs asks for a file in win and saves the failed points there;

@@ -13,6 +13,7 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/test"
 
+	"kinetarium/app/run"
 	"kinetarium/app/study"
 	"kinetarium/examples"
 	"kinetarium/internal/atomicfile"
@@ -334,9 +335,17 @@ func TestPopulationFailuresExport(t *testing.T) {
 			t.Errorf("list line %d = %q, want it to start %q as the CSV row %v", i, p.failures.lines[i], want, row)
 		}
 	}
-	// The temporary file of the atomic write is gone.
-	if ents, _ := os.ReadDir(filepath.Dir(path)); len(ents) != 1 {
-		t.Errorf("the folder holds %d files after saving, want 1", len(ents))
+	// The temporary files of the atomic writes are gone: the table and
+	// its provenance are left.
+	if ents, _ := os.ReadDir(filepath.Dir(path)); len(ents) != 2 {
+		t.Errorf("the folder holds %d files after saving, want 2 (the table and its provenance)", len(ents))
+	}
+	data, err := os.ReadFile(run.ProvenancePath(path))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if prov, err := run.ReadProvenance(data); err != nil || prov.What != "population" || prov.ModelTitle != p.model.Title {
+		t.Errorf("failures.provenance.json reads as %+v, %v; want a population of %q", prov, err, p.model.Title)
 	}
 }
 

@@ -1,11 +1,11 @@
 package plotting
 
 import (
+	"bytes"
+	"errors"
 	"fmt"
 	"image"
 	"image/color"
-	"io"
-	"os"
 	"path/filepath"
 	"strings"
 
@@ -13,8 +13,8 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
-	"gonum.org/v1/plot/vg/vgpdf"
-	"gonum.org/v1/plot/vg/vgsvg"
+
+	"kinetarium/internal/atomicfile"
 )
 
 // DefaultDPI is the resolution of PNG files saved with dpi ≤ 0.
@@ -25,14 +25,25 @@ var Formats = []string{".png", ".svg", ".pdf"}
 
 // Save writes p to path as a w × h figure, in the format named by the
 // extension of path: .png (at dpi dots per inch; ≤ 0 means DefaultDPI),
-// .svg or .pdf. Zero w or h mean DefaultWidth and DefaultHeight. The file
-// is written to a temporary file in the same directory and renamed into
-// place, so a reader never sees half a figure.
-func Save(p *plot.Plot, path string, w, h vg.Length, dpi int) error {
-	if p == nil {
-		return fmt.Errorf("plotting: cannot save %q: no plot", path)
+// .svg or .pdf. Zero w or h mean DefaultWidth and DefaultHeight. PDF and
+// SVG files carry the fonts they use, cut down to the glyphs drawn, so
+// that every character reads the same in any viewer. When meta is not
+// nil, the file carries it as its format's metadata (see Metadata). The
+// file is written atomically, so a reader never sees half a figure.
+func Save(p *plot.Plot, path string, w, h vg.Length, dpi int, meta *Metadata) error {
+	data, err := Encode(p, strings.ToLower(filepath.Ext(path)), w, h, dpi, meta)
+	if err != nil {
+		return fmt.Errorf("plotting: cannot save %q: %w", path, err)
 	}
-	ext := strings.ToLower(filepath.Ext(path))
+	return atomicfile.Write(path, data)
+}
+
+// Encode draws p as Save does and returns the file's content in the
+// format named by ext: ".png", ".svg" or ".pdf".
+func Encode(p *plot.Plot, ext string, w, h vg.Length, dpi int, meta *Metadata) ([]byte, error) {
+	if p == nil {
+		return nil, errors.New("no plot")
+	}
 	if w <= 0 {
 		w = DefaultWidth
 	}
@@ -42,59 +53,35 @@ func Save(p *plot.Plot, path string, w, h vg.Length, dpi int) error {
 	if dpi <= 0 {
 		dpi = DefaultDPI
 	}
-	var out io.WriterTo
+	var buf bytes.Buffer
 	switch ext {
 	case ".png":
 		c := vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(dpi))
 		p.Draw(draw.New(c))
-		out = vgimg.PngCanvas{Canvas: c}
-	case ".svg":
-		c := vgsvg.New(w, h)
-		p.Draw(draw.New(c))
-		out = c
-	case ".pdf":
-		c := vgpdf.New(w, h)
-		p.Draw(draw.New(c))
-		out = c
-	default:
-		return fmt.Errorf("plotting: cannot save %q: unknown figure format %q; want one of %s", path, ext, strings.Join(Formats, ", "))
-	}
-	return writeAtomic(path, out)
-}
-
-// writeAtomic writes the content of src to path through a temporary file in
-// the same directory, renamed into place.
-func writeAtomic(path string, src io.WriterTo) (err error) {
-	dir, base := filepath.Split(path)
-	if dir == "" {
-		dir = "."
-	}
-	f, err := os.CreateTemp(dir, "."+base+".tmp*")
-	if err != nil {
-		return fmt.Errorf("plotting: writing %q: %w", path, err)
-	}
-	defer func() {
-		if err != nil {
-			f.Close()
-			os.Remove(f.Name())
+		if _, err := (vgimg.PngCanvas{Canvas: c}).WriteTo(&buf); err != nil {
+			return nil, err
 		}
-	}()
-	if err = f.Chmod(0o644); err != nil {
-		return fmt.Errorf("plotting: writing %q: %w", path, err)
+		if meta == nil {
+			return buf.Bytes(), nil
+		}
+		return addPNGText(buf.Bytes(), meta)
+	case ".svg":
+		c := newSVGCanvas(w, h)
+		p.Draw(draw.New(c))
+		if _, err := c.writeWith(&buf, meta); err != nil {
+			return nil, err
+		}
+	case ".pdf":
+		c := newPDFCanvas(w, h)
+		p.Draw(draw.New(c))
+		c.setInfo(meta)
+		if _, err := c.WriteTo(&buf); err != nil {
+			return nil, err
+		}
+	default:
+		return nil, fmt.Errorf("unknown figure format %q; want one of %s", ext, strings.Join(Formats, ", "))
 	}
-	if _, err = src.WriteTo(f); err != nil {
-		return fmt.Errorf("plotting: writing %q: %w", path, err)
-	}
-	if err = f.Sync(); err != nil {
-		return fmt.Errorf("plotting: writing %q: %w", path, err)
-	}
-	if err = f.Close(); err != nil {
-		return fmt.Errorf("plotting: writing %q: %w", path, err)
-	}
-	if err = os.Rename(f.Name(), path); err != nil {
-		return fmt.Errorf("plotting: writing %q: %w", path, err)
-	}
-	return nil
+	return buf.Bytes(), nil
 }
 
 // screenDPI is the resolution Render assumes: one point is 96/72 pixels.

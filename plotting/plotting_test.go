@@ -94,7 +94,7 @@ func TestSaveFormatsParse(t *testing.T) {
 	for name, p := range figures(t) {
 		for _, ext := range Formats {
 			path := filepath.Join(dir, name+ext)
-			if err := Save(p, path, w, h, dpi); err != nil {
+			if err := Save(p, path, w, h, dpi, nil); err != nil {
 				t.Fatalf("%s%s: %v", name, ext, err)
 			}
 			data, err := os.ReadFile(path)
@@ -152,14 +152,14 @@ func TestSaveUnknownFormat(t *testing.T) {
 	dir := t.TempDir()
 	p, _ := XYPlot([]float64{1, 2}, []float64{1, 2}, Options{})
 	path := filepath.Join(dir, "fig.bmp")
-	err := Save(p, path, 0, 0, 0)
+	err := Save(p, path, 0, 0, 0, nil)
 	if err == nil || !strings.Contains(err.Error(), `".bmp"`) || !strings.Contains(err.Error(), ".png") {
 		t.Fatalf("Save(.bmp) error = %v, want one naming .bmp and the formats understood", err)
 	}
 	if entries, _ := os.ReadDir(dir); len(entries) != 0 {
 		t.Errorf("Save(.bmp) left %d files", len(entries))
 	}
-	if err := Save(p, filepath.Join(dir, "missing", "fig.png"), 0, 0, 0); err == nil {
+	if err := Save(p, filepath.Join(dir, "missing", "fig.png"), 0, 0, 0, nil); err == nil {
 		t.Error("Save into a missing folder: no error")
 	}
 }
@@ -171,7 +171,7 @@ func TestSaveReplacesAtomically(t *testing.T) {
 		t.Fatal(err)
 	}
 	p, _ := XYPlot([]float64{1, 2}, []float64{1, 2}, Options{})
-	if err := Save(p, path, 0, 0, 0); err != nil {
+	if err := Save(p, path, 0, 0, 0, nil); err != nil {
 		t.Fatal(err)
 	}
 	data, _ := os.ReadFile(path)

@@ -13,11 +13,11 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
-	"slices"
 	"strconv"
 
 	"gonum.org/v1/plot"
 
+	"kinetarium/app/run"
 	"kinetarium/app/study"
 	"kinetarium/internal/atomicfile"
 	"kinetarium/plotting"
@@ -25,24 +25,23 @@ import (
 )
 
 // PartFormat is the format tag of a partial-result file.
-const PartFormat = "kinetarium.batch-part/1"
+const PartFormat = "kinetarium.batch-part/2"
 
 // runMeta is what the outputs need besides the explore result; it travels
 // in partial-result files so that merge can write the same outputs.
 type runMeta struct {
-	Kind           string      `json:"kind"` // "sweep" or "population"
-	Spec           string      `json:"spec"` // the spec's file name
-	Title          string      `json:"title"`
-	TimeUnit       string      `json:"time_unit"`
-	AmountUnit     string      `json:"amount_unit"`
-	Knobs          []string    `json:"knobs"`
-	Axes           [][]float64 `json:"axes,omitempty"`     // sweep
-	AxisLog        []bool      `json:"axis_log,omitempty"` // sweep
-	Species        []string    `json:"species"`
-	PlotSpecies    []string    `json:"plot_species,omitempty"` // sweep
-	ReadoutSpecies []string    `json:"readout_species"`
-	BandSpecies    []string    `json:"band_species,omitempty"` // population
-	LogTime        bool        `json:"log_time,omitempty"`     // the output grid is log-spaced
+	Kind        string   `json:"kind"` // "sweep" or "population"
+	Spec        string   `json:"spec"` // the spec's file name
+	Title       string   `json:"title"`
+	Knobs       []string `json:"knobs"`
+	PlotSpecies []string `json:"plot_species,omitempty"` // sweep
+	BandSpecies []string `json:"band_species,omitempty"` // population
+	LogTime     bool     `json:"log_time,omitempty"`     // the output grid is log-spaced
+	// Figures describes the figures, drawn as the window draws them.
+	Figures study.Figures `json:"figures"`
+	// Provenance goes into every output, stamped with the time they are
+	// written.
+	Provenance *run.Provenance `json:"provenance"`
 }
 
 // partFile is a partial-result file.
@@ -146,10 +145,40 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	return writeOutputs(meta, res, *out, stdout)
 }
 
-// writeCSV writes rows to dir/name atomically.
-func writeCSV(dir, name string, rows [][]string) (string, error) {
-	path := filepath.Join(dir, name)
-	return path, atomicfile.WriteCSV(path, rows)
+// outputs writes the files of one result into a folder, each CSV table
+// with its provenance beside it, each figure with its provenance inside,
+// and lists what it wrote.
+type outputs struct {
+	dir     string
+	prov    *run.Provenance
+	title   string // of the figures' metadata
+	written []string
+}
+
+// csv writes rows to dir/name atomically, with its provenance.
+func (o *outputs) csv(name string, rows [][]string) error {
+	path := filepath.Join(o.dir, name)
+	if err := atomicfile.WriteCSV(path, rows); err != nil {
+		return err
+	}
+	if err := run.SaveProvenance(path, o.prov); err != nil {
+		return err
+	}
+	o.written = append(o.written, path, run.ProvenancePath(path))
+	return nil
+}
+
+// figure saves p as dir/name; err is the error of drawing p.
+func (o *outputs) figure(p *plot.Plot, err error, name string) error {
+	if err != nil {
+		return fmt.Errorf("figure %s: %w", name, err)
+	}
+	path := filepath.Join(o.dir, name)
+	if err := plotting.Save(p, path, 0, 0, 0, o.prov.Metadata(o.title)); err != nil {
+		return err
+	}
+	o.written = append(o.written, path)
+	return nil
 }
 
 // unsafeName matches runs of characters kept out of file names.
@@ -160,36 +189,30 @@ func fileName(s string) string { return unsafeName.ReplaceAllString(s, "_") }
 
 // writeOutputs writes the CSV files and figures of a complete result.
 func writeOutputs(meta *runMeta, res *explore.Result, dir string, stdout io.Writer) error {
-	var written []string
-	add := func(path string, err error) error {
-		if err == nil {
-			written = append(written, path)
-		}
-		return err
-	}
+	prov := *meta.Provenance
+	prov.Exported = run.ExportTime()
+	out := &outputs{dir: dir, prov: &prov, title: meta.Title}
 	// Per-point knob values and readouts.
-	rows := study.RunRows(res)
 	name := "samples.csv"
 	if meta.Kind == "sweep" {
 		name = "runs.csv"
 	}
-	if err := add(writeCSV(dir, name, rows)); err != nil {
+	if err := out.csv(name, study.RunRows(res)); err != nil {
 		return err
 	}
-	rows = study.FailureRows(res)
-	if err := add(writeCSV(dir, "failures.csv", rows)); err != nil {
+	if err := out.csv("failures.csv", study.FailureRows(res)); err != nil {
 		return err
 	}
 	var err error
 	if meta.Kind == "sweep" {
-		err = writeSweep(meta, res, dir, add)
+		err = writeSweep(meta, res, out)
 	} else {
-		err = writePopulation(meta, res, dir, add)
+		err = writePopulation(meta, res, out)
 	}
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "%s: %d runs, %d failed; wrote %d files in %s\n", meta.Kind, res.Points, res.Failed, len(written), dir)
+	fmt.Fprintf(stdout, "%s: %d runs, %d failed; wrote %d files in %s\n", meta.Kind, res.Points, res.Failed, len(out.written), dir)
 	for _, f := range res.Failures {
 		fmt.Fprintf(stdout, "  failed %d %v: %s\n", f.Index, f.X, f.Err)
 		if f.Index >= 10 && len(res.Failures) > 10 {
@@ -200,20 +223,12 @@ func writeOutputs(meta *runMeta, res *explore.Result, dir string, stdout io.Writ
 	return nil
 }
 
-// savePlot saves p as dir/name.
-func savePlot(p *plot.Plot, err error, dir, name string, add func(string, error) error) error {
-	if err != nil {
-		return fmt.Errorf("figure %s: %w", name, err)
-	}
-	path := filepath.Join(dir, name)
-	return add(path, plotting.Save(p, path, 0, 0, 0))
-}
-
 // writeSweep writes trajectories, readout matrices and the sweep figures.
-func writeSweep(meta *runMeta, res *explore.Result, dir string, add func(string, error) error) error {
+func writeSweep(meta *runMeta, res *explore.Result, out *outputs) error {
+	fig := meta.Figures
 	head := append([]string{"index"}, meta.Knobs...)
 	head = append(head, "time")
-	head = append(head, meta.Species...)
+	head = append(head, fig.Species...)
 	rows := [][]string{head}
 	for _, s := range res.Samples {
 		if s.Traj == nil {
@@ -231,33 +246,29 @@ func writeSweep(meta *runMeta, res *explore.Result, dir string, add func(string,
 			rows = append(rows, row)
 		}
 	}
-	if err := add(writeCSV(dir, "trajectories.csv", rows)); err != nil {
+	if err := out.csv("trajectories.csv", rows); err != nil {
 		return err
 	}
-	if len(meta.Axes) == 2 {
-		xs, ys := meta.Axes[1], meta.Axes[0]
+	if len(fig.Axes) == 2 {
+		xs, ys := fig.Axes[1], fig.Axes[0]
 		for r, name := range res.Readouts {
 			vals := res.Values(r)
-			z := make([][]float64, len(ys))
 			rows := [][]string{{meta.Knobs[0] + " \\ " + meta.Knobs[1]}}
 			for _, x := range xs {
 				rows[0] = append(rows[0], study.FormatNumber(x))
 			}
 			for i1 := range ys {
-				z[i1] = vals[i1*len(xs) : (i1+1)*len(xs)]
 				row := []string{study.FormatNumber(ys[i1])}
-				for _, v := range z[i1] {
+				for _, v := range vals[i1*len(xs) : (i1+1)*len(xs)] {
 					row = append(row, study.FormatNumber(v))
 				}
 				rows = append(rows, row)
 			}
-			if err := add(writeCSV(dir, "matrix_"+fileName(name)+".csv", rows)); err != nil {
+			if err := out.csv("matrix_"+fileName(name)+".csv", rows); err != nil {
 				return err
 			}
-			p, err := plotting.HeatMap(xs, ys, z, plotting.Options{
-				Title: name, XLabel: meta.Knobs[1], YLabel: meta.Knobs[0], LogX: meta.AxisLog[1], LogY: meta.AxisLog[0],
-			}, name)
-			if err := savePlot(p, err, dir, "heatmap_"+fileName(name)+".png", add); err != nil {
+			p, err := fig.Readout(res, r)
+			if err := out.figure(p, err, "heatmap_"+fileName(name)+".png"); err != nil {
 				return err
 			}
 		}
@@ -266,32 +277,14 @@ func writeSweep(meta *runMeta, res *explore.Result, dir string, add func(string,
 	// One axis: a family of curves per plotted species, readouts against
 	// the parameter.
 	for _, sp := range meta.PlotSpecies {
-		j := slices.Index(meta.Species, sp)
-		var curves [][]float64
-		var values, times []float64
-		for _, s := range res.Samples {
-			if s.Traj == nil {
-				continue
-			}
-			times = s.Traj.T
-			c := make([]float64, len(s.Traj.T))
-			for i := range c {
-				c[i] = s.Traj.Y[i][j]
-			}
-			curves, values = append(curves, c), append(values, s.X[0])
-		}
-		p, err := plotting.FamilyPlot(times, curves, values, meta.Knobs[0], plotting.Options{
-			Title: sp, XLabel: "time", XUnit: meta.TimeUnit, YLabel: sp, YUnit: meta.AmountUnit, LogX: meta.LogTime,
-		})
-		if err := savePlot(p, err, dir, "family_"+fileName(sp)+".png", add); err != nil {
+		p, err := fig.Family(res, sp, 0, meta.LogTime)
+		if err := out.figure(p, err, "family_"+fileName(sp)+".png"); err != nil {
 			return err
 		}
 	}
 	for r, name := range res.Readouts {
-		p, err := plotting.XYPlot(meta.Axes[0], res.Values(r), plotting.Options{
-			Title: name, XLabel: meta.Knobs[0], YLabel: name + " (" + meta.ReadoutSpecies[r] + ")", LogX: meta.AxisLog[0],
-		})
-		if err := savePlot(p, err, dir, "readout_"+fileName(name)+".png", add); err != nil {
+		p, err := fig.Readout(res, r)
+		if err := out.figure(p, err, "readout_"+fileName(name)+".png"); err != nil {
 			return err
 		}
 	}
@@ -300,38 +293,35 @@ func writeSweep(meta *runMeta, res *explore.Result, dir string, add func(string,
 
 // writePopulation writes bands, readout summaries and the population
 // figures.
-func writePopulation(meta *runMeta, res *explore.Result, dir string, add func(string, error) error) error {
+func writePopulation(meta *runMeta, res *explore.Result, out *outputs) error {
+	fig := meta.Figures
 	// Readout percentiles, exact from the samples; NaN (undefined) values
 	// are counted apart.
 	rows := [][]string{{"readout", "species", "n", "undefined", "p5", "p25", "p50", "p75", "p95"}}
 	for r, name := range res.Readouts {
 		vals, undefined := study.ReadoutValues(res, r)
-		row := []string{name, meta.ReadoutSpecies[r], strconv.Itoa(len(vals)), strconv.Itoa(undefined)}
+		row := []string{name, fig.ReadoutSpecies[r], strconv.Itoa(len(vals)), strconv.Itoa(undefined)}
 		for _, p := range study.Percentiles {
 			row = append(row, study.FormatNumber(study.EmpiricalQuantile(vals, p)))
 		}
 		rows = append(rows, row)
-		pl, err := plotting.Histogram(vals, 0, plotting.Options{Title: name, XLabel: name + " (" + meta.ReadoutSpecies[r] + ")"})
-		if err := savePlot(pl, err, dir, "hist_"+fileName(name)+".png", add); err != nil {
+		pl, err := fig.Histogram(res, r)
+		if err := out.figure(pl, err, "hist_"+fileName(name)+".png"); err != nil {
 			return err
 		}
 	}
-	if err := add(writeCSV(dir, "readouts.csv", rows)); err != nil {
+	if err := out.csv("readouts.csv", rows); err != nil {
 		return err
 	}
 	b := res.Bands
 	if b == nil {
 		return nil
 	}
-	for c, sp := range meta.BandSpecies {
-		q := study.BandCurves(b, c)
-		p, err := plotting.BandPlot(b.Times, q[2], q[0], q[4], q[1], q[3], sp, plotting.Options{
-			Title: sp + ": median, 25–75 % and 5–95 %", XLabel: "time", XUnit: meta.TimeUnit, YLabel: sp, YUnit: meta.AmountUnit,
-			LogX: meta.LogTime,
-		})
-		if err := savePlot(p, err, dir, "bands_"+fileName(sp)+".png", add); err != nil {
+	for _, sp := range meta.BandSpecies {
+		p, err := fig.Bands(res, sp, meta.LogTime, false)
+		if err := out.figure(p, err, "bands_"+fileName(sp)+".png"); err != nil {
 			return err
 		}
 	}
-	return add(writeCSV(dir, "bands.csv", study.BandRows(b, meta.BandSpecies)))
+	return out.csv("bands.csv", study.BandRows(b, meta.BandSpecies))
 }

@@ -111,7 +111,7 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	case len(spec.Vary) == 0:
 		return nil, nil, fmt.Errorf("%s: vary: missing (the knobs to vary and their distributions)", c.spec)
 	}
-	l, err := loadModel(c.spec, spec.Model, spec.Simulation)
+	l, prov, err := loadModel("population", c.spec, spec.Model, spec.Simulation)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -165,10 +165,8 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		return nil, nil, jobError(c.spec, err, paths)
 	}
 	meta := &runMeta{
-		Kind: "population", Spec: filepath.Base(c.spec), Title: l.Model.Title,
-		TimeUnit: l.Model.Units.Time, AmountUnit: l.Model.Units.Amount,
-		Knobs: pj.Settings.Knobs, Species: l.Sys.Species(), BandSpecies: bandSp,
-		ReadoutSpecies: pj.Species, LogTime: l.Sim.Output.Spacing == "log",
+		Kind: "population", Spec: filepath.Base(c.spec), Title: l.Model.Title, Provenance: prov, Figures: pj.Figures(),
+		Knobs: pj.Settings.Knobs, BandSpecies: bandSp, LogTime: l.Sim.Output.Spacing == "log",
 	}
 	return c, &job{meta: meta, Job: pj}, nil
 }

@@ -163,6 +163,7 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 		return badInput(err)
 	}
 	sim := m.Simulation.WithDefaults()
+	saved := m.Clone() // the model as saved, before the flags change its settings
 	if f.set["t-end"] {
 		sim.TEnd = f.tEnd
 	}
@@ -182,6 +183,10 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 		sim.Method = f.method
 	}
 	m.Simulation = sim
+	prov, err := run.NewProvenance("simulation", saved, sim, nil)
+	if err != nil {
+		return badInput(fmt.Errorf("%s: %w", f.model, err))
+	}
 	sys, err := network.Compile(m)
 	if err != nil {
 		return badInput(fmt.Errorf("%s: %w", f.model, err))
@@ -218,14 +223,14 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 		table = traj.WithEventRows()
 	}
 	if f.out != "" {
-		if err := run.SaveCSV(f.out, table); err != nil {
+		if err := run.SaveCSV(f.out, table, prov); err != nil {
 			outErr = fmt.Errorf("writing the trajectories: %w", err)
 		}
 	} else if err := run.WriteCSV(stdout, table); err != nil {
 		outErr = fmt.Errorf("writing the trajectories: %w", err)
 	}
 	if f.figure != "" && res != nil {
-		if err := drawFigure(f.figure, traj, run.View{LogX: sim.Output.Spacing == "log", LogY: f.logY}); err != nil {
+		if err := drawFigure(f.figure, traj, run.View{LogX: sim.Output.Spacing == "log", LogY: f.logY}, prov); err != nil {
 			outErr = errors.Join(outErr, fmt.Errorf("drawing the figure: %w", err))
 		}
 	}
@@ -259,13 +264,13 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 }
 
 // drawFigure saves the trajectories of o, drawn as the window draws them,
-// to path.
-func drawFigure(path string, o *run.Outcome, v run.View) error {
+// to path, with the provenance prov.
+func drawFigure(path string, o *run.Outcome, v run.View, prov *run.Provenance) error {
 	p, err := run.Figure(o, v)
 	if err != nil {
 		return err
 	}
-	return plotting.Save(p, path, 0, 0, 0)
+	return plotting.Save(p, path, 0, 0, 0, prov.Metadata(""))
 }
 
 // median returns the median of d (0 for none).

@@ -20,6 +20,7 @@ import (
 	"strings"
 	"time"
 
+	"kinetarium/app/run"
 	"kinetarium/app/study"
 	"kinetarium/network"
 	"kinetarium/solve/explore"
@@ -135,31 +136,34 @@ func readSpec(path, format string, v any) error {
 }
 
 // loadModel loads the model named by a spec (relative to the spec's
-// folder), applies the simulation override and compiles it.
-func loadModel(specPath, model string, simRaw json.RawMessage) (*study.Prepared, error) {
+// folder), applies the simulation override and compiles it. The
+// provenance of the outputs (of the given kind) names the model as saved,
+// before the override.
+func loadModel(kind, specPath, model string, simRaw json.RawMessage) (*study.Prepared, *run.Provenance, error) {
 	if model == "" {
-		return nil, fmt.Errorf("%s: model: missing (the model file, relative to the spec)", specPath)
+		return nil, nil, fmt.Errorf("%s: model: missing (the model file, relative to the spec)", specPath)
 	}
 	if !filepath.IsAbs(model) {
 		model = filepath.Join(filepath.Dir(specPath), model)
 	}
 	m, err := network.Load(model)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
+	saved := m.Clone()
 	sim := m.Simulation.WithDefaults()
 	if len(simRaw) > 0 {
 		var o simSpec
 		if err := strict(simRaw, &o, "simulation"); err != nil {
-			return nil, fmt.Errorf("%s: %w", specPath, err)
+			return nil, nil, fmt.Errorf("%s: %w", specPath, err)
 		}
 		switch {
 		case o.TEnd < 0 || math.IsInf(o.TEnd, 0):
-			return nil, fmt.Errorf("%s: simulation.t_end: expected a positive time, got %v", specPath, o.TEnd)
+			return nil, nil, fmt.Errorf("%s: simulation.t_end: expected a positive time, got %v", specPath, o.TEnd)
 		case o.Points < 0 || o.Points == 1:
-			return nil, fmt.Errorf("%s: simulation.points: expected at least 2, got %d", specPath, o.Points)
+			return nil, nil, fmt.Errorf("%s: simulation.points: expected at least 2, got %d", specPath, o.Points)
 		case o.Spacing != "" && o.Spacing != "linear" && o.Spacing != "log":
-			return nil, fmt.Errorf("%s: simulation.spacing: expected \"linear\" or \"log\", got %q", specPath, o.Spacing)
+			return nil, nil, fmt.Errorf("%s: simulation.spacing: expected \"linear\" or \"log\", got %q", specPath, o.Spacing)
 		}
 		if o.TEnd > 0 {
 			sim.TEnd = o.TEnd
@@ -174,9 +178,13 @@ func loadModel(specPath, model string, simRaw json.RawMessage) (*study.Prepared,
 	m.Simulation = sim
 	p, err := study.Prepare(m)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", model, err)
+		return nil, nil, fmt.Errorf("%s: %w", model, err)
 	}
-	return p, nil
+	prov, err := run.NewProvenance(kind, saved, sim, nil)
+	if err != nil {
+		return nil, nil, fmt.Errorf("%s: %w", model, err)
+	}
+	return p, prov, nil
 }
 
 // readoutSpecs decodes the readouts of a spec; study resolves them.
@@ -390,7 +398,7 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	if len(spec.Parameter) == 0 {
 		return nil, nil, fmt.Errorf("%s: parameter: missing (the knob to sweep)", c.spec)
 	}
-	l, err := loadModel(c.spec, spec.Model, spec.Simulation)
+	l, prov, err := loadModel("sweep", c.spec, spec.Model, spec.Simulation)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -428,10 +436,8 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		}
 	}
 	meta := &runMeta{
-		Kind: "sweep", Spec: filepath.Base(c.spec), Title: l.Model.Title,
-		TimeUnit: l.Model.Units.Time, AmountUnit: l.Model.Units.Amount,
-		Knobs: sj.Settings.Knobs, Axes: sj.Axes, AxisLog: sj.AxisLog, Species: l.Sys.Species(), PlotSpecies: plotSp,
-		ReadoutSpecies: sj.Species, LogTime: l.Sim.Output.Spacing == "log",
+		Kind: "sweep", Spec: filepath.Base(c.spec), Title: l.Model.Title, Provenance: prov, Figures: sj.Figures(),
+		Knobs: sj.Settings.Knobs, PlotSpecies: plotSp, LogTime: l.Sim.Output.Spacing == "log",
 	}
 	return c, &job{meta: meta, Job: sj}, nil
 }

@@ -27,5 +27,14 @@ func Rows(o *Outcome) [][]string {
 // WriteCSV writes the outcome's Rows to w as CSV.
 func WriteCSV(w io.Writer, o *Outcome) error { return atomicfile.EncodeCSV(w, Rows(o)) }
 
-// SaveCSV writes the outcome's Rows to path atomically as CSV.
-func SaveCSV(path string, o *Outcome) error { return atomicfile.WriteCSV(path, Rows(o)) }
+// SaveCSV writes the rows of o to path atomically and, when prov is not
+// nil, its provenance beside it (see SaveProvenance).
+func SaveCSV(path string, o *Outcome, prov *Provenance) error {
+	if err := atomicfile.WriteCSV(path, Rows(o)); err != nil {
+		return err
+	}
+	if prov == nil {
+		return nil
+	}
+	return SaveProvenance(path, prov)
+}

@@ -302,7 +302,7 @@ func figure(rows []row, prob, x, path string) error {
 	// Whole decades on both axes, so that every axis has labelled ticks.
 	p.X.Min, p.X.Max = decade(p.X.Min, math.Floor), decade(p.X.Max, math.Ceil)
 	p.Y.Min, p.Y.Max = decade(p.Y.Min, math.Floor), decade(p.Y.Max, math.Ceil)
-	return plotting.Save(p, path, 16*vg.Centimeter, 11*vg.Centimeter, 150)
+	return plotting.Save(p, path, 16*vg.Centimeter, 11*vg.Centimeter, 150, nil)
 }
 
 // decade rounds v > 0 to a power of ten with round (math.Floor or math.Ceil).

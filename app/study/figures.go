@@ -1,0 +1,170 @@
+package study
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+
+	"gonum.org/v1/plot"
+
+	"kinetarium/app/sliders"
+	"kinetarium/plotting"
+	"kinetarium/solve/explore"
+)
+
+// Figures draws the figures of a study's result: the window and the batch
+// command both draw through it, so that the same study gives the same
+// figure in either. Its fields are what the figures need besides the
+// result; they travel in the batch command's partial-result files.
+type Figures struct {
+	TimeUnit   string      `json:"time_unit"`
+	AmountUnit string      `json:"amount_unit"`
+	Species    []string    `json:"species"`            // the model's species then assignments, in trajectory order
+	Axes       [][]float64 `json:"axes,omitempty"`     // a sweep's axis values, per knob
+	AxisLog    []bool      `json:"axis_log,omitempty"` // a sweep's spacing, per knob
+	// Readouts and ReadoutSpecies describe each readout and the species it
+	// is computed on.
+	Readouts       []explore.Readout `json:"readouts"`
+	ReadoutSpecies []string          `json:"readout_species"`
+}
+
+// Figures returns the description of j's figures.
+func (j *Job) Figures() Figures {
+	u := j.Prepared.Model.Units
+	return Figures{
+		TimeUnit: u.Time, AmountUnit: u.Amount, Species: j.Prepared.Quantities(),
+		Axes: j.Axes, AxisLog: j.AxisLog, Readouts: j.Readouts, ReadoutSpecies: j.Species,
+	}
+}
+
+// KnobLabel writes a knob reference for people: "init:A" is "A initial".
+func KnobLabel(ref string) string { return sliders.ParseRef(ref).Label() }
+
+// ReadoutLabel describes readout r in words, for titles: "final value of
+// P", "P at t = 2.5", "time P rises past 10", "minimum of C from t = 12
+// to 24".
+func (f Figures) ReadoutLabel(r int) string {
+	ro := f.Readouts[r]
+	s := f.readoutWords(r)
+	if ro.Window {
+		s += fmt.Sprintf(" from t = %.4g to %.4g", ro.From, ro.To)
+	}
+	return s
+}
+
+func (f Figures) readoutWords(r int) string {
+	ro, sp := f.Readouts[r], f.ReadoutSpecies[r]
+	num := func(v float64) string { return fmt.Sprintf("%.4g", v) }
+	switch ro.Kind {
+	case explore.ValueAt:
+		return sp + " at t = " + num(ro.At)
+	case explore.CrossUp:
+		return "time " + sp + " rises past " + num(ro.Level)
+	case explore.CrossDown:
+		return "time " + sp + " falls past " + num(ro.Level)
+	case explore.Max:
+		return "maximum of " + sp
+	case explore.TimeOfMax:
+		return "time of maximum of " + sp
+	case explore.Min:
+		return "minimum of " + sp
+	case explore.TimeOfMin:
+		return "time of minimum of " + sp
+	case explore.Final:
+		return "final value of " + sp
+	case explore.AUC:
+		return "area under the curve of " + sp
+	}
+	return strings.ReplaceAll(string(ro.Kind), "_", " ") + " of " + sp
+}
+
+// Family draws, for a sweep, the curves of species over time, one per
+// value of the first knob; on a grid of two, those at value index at of the
+// second knob. logTime draws time on a log axis. When every run failed,
+// the figure says there is no data.
+func (f Figures) Family(res *explore.Result, species string, at int, logTime bool) (*plot.Plot, error) {
+	j := slices.Index(f.Species, species)
+	if j < 0 {
+		return nil, fmt.Errorf("no species %q in the model", species)
+	}
+	second := math.NaN()
+	title := species
+	if len(f.Axes) == 2 {
+		if at < 0 || at >= len(f.Axes[1]) {
+			return nil, fmt.Errorf("no value %d of the second quantity", at)
+		}
+		second = f.Axes[1][at]
+		title += " at " + KnobLabel(res.Knobs[1]) + " = " + fmt.Sprintf("%.4g", second)
+	}
+	var curves [][]float64
+	var values, times []float64
+	for _, s := range res.Samples {
+		if s.Traj == nil || (len(s.X) == 2 && s.X[1] != second) {
+			continue
+		}
+		times = s.Traj.T
+		c := make([]float64, len(times))
+		for i := range c {
+			c[i] = s.Traj.Y[i][j]
+		}
+		curves, values = append(curves, c), append(values, s.X[0])
+	}
+	return plotting.FamilyPlot(times, curves, values, KnobLabel(res.Knobs[0]), plotting.Options{
+		Title: title, XLabel: "time", XUnit: f.TimeUnit, YLabel: species, YUnit: f.AmountUnit, LogX: logTime,
+	})
+}
+
+// Readout draws, for a sweep, readout r against the knob, or as a heat map
+// over a grid of two.
+func (f Figures) Readout(res *explore.Result, r int) (*plot.Plot, error) {
+	if r < 0 || r >= len(res.Readouts) || r >= len(f.Readouts) {
+		return nil, errors.New("no readout chosen; add one under Readouts and run again")
+	}
+	vals := res.Values(r)
+	name := res.Readouts[r]
+	if len(f.Axes) == 2 {
+		xs, ys := f.Axes[1], f.Axes[0]
+		z := make([][]float64, len(ys))
+		for i := range ys {
+			z[i] = vals[i*len(xs) : (i+1)*len(xs)]
+		}
+		return plotting.HeatMap(xs, ys, z, plotting.Options{
+			Title: f.ReadoutLabel(r), XLabel: KnobLabel(res.Knobs[1]), YLabel: KnobLabel(res.Knobs[0]),
+			LogX: f.AxisLog[1], LogY: f.AxisLog[0],
+		}, name)
+	}
+	return plotting.XYPlot(f.Axes[0], vals, plotting.Options{
+		Title: f.ReadoutLabel(r), XLabel: KnobLabel(res.Knobs[0]), YLabel: name, LogX: f.AxisLog[0],
+	})
+}
+
+// Bands draws, for a population, the median and percentile bands of
+// species over time.
+func (f Figures) Bands(res *explore.Result, species string, logTime, logY bool) (*plot.Plot, error) {
+	if res.Bands == nil {
+		return nil, errors.New("no bands were gathered")
+	}
+	c := slices.IndexFunc(res.Bands.Components, func(c int) bool { return c < len(f.Species) && f.Species[c] == species })
+	if c < 0 {
+		return nil, fmt.Errorf("no bands of %q were gathered", species)
+	}
+	if res.Points == res.Failed {
+		return nil, errors.New("every sample failed; see the failures")
+	}
+	q := BandCurves(res.Bands, c)
+	return plotting.BandPlot(res.Bands.Times, q[2], q[0], q[4], q[1], q[3], species, plotting.Options{
+		Title: species + ": median, 25–75 % and 5–95 %", XLabel: "time", XUnit: f.TimeUnit, YLabel: species, YUnit: f.AmountUnit,
+		LogX: logTime, LogY: logY,
+	})
+}
+
+// Histogram draws, for a population, the distribution of readout r.
+func (f Figures) Histogram(res *explore.Result, r int) (*plot.Plot, error) {
+	if r < 0 || r >= len(res.Readouts) || r >= len(f.Readouts) {
+		return nil, errors.New("no readout chosen; add one under Readouts and run again")
+	}
+	vals, _ := ReadoutValues(res, r)
+	return plotting.Histogram(vals, 0, plotting.Options{Title: f.ReadoutLabel(r), XLabel: res.Readouts[r], YLabel: "samples"})
+}
