@@ -210,12 +210,14 @@ func (w *mainWindow) buildMenus() {
 	file := fyne.NewMenu("File", newItem, openItem, exItem, recentItem, fyne.NewMenuItemSeparator(),
 		saveItem, saveAsItem, fyne.NewMenuItemSeparator(), figItem, csvItem, fyne.NewMenuItemSeparator(), quitItem)
 
+	// Fyne's desktop driver delivers Ctrl+Z and Ctrl+Y as its own undo
+	// and redo shortcuts, never as custom ones, so the items use those.
 	undoItem := fyne.NewMenuItem("Undo", func() { w.doc.Undo() })
 	w.undoItem = undoItem
-	undoItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyZ, Modifier: ctrl}
+	undoItem.Shortcut = &fyne.ShortcutUndo{}
 	redoItem := fyne.NewMenuItem("Redo", func() { w.doc.Redo() })
 	w.redoItem = redoItem
-	redoItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyY, Modifier: ctrl}
+	redoItem.Shortcut = &fyne.ShortcutRedo{}
 	edit := fyne.NewMenu("Edit", undoItem, redoItem)
 
 	simItem := fyne.NewMenuItem("Simulate", w.simulate)
@@ -244,6 +246,8 @@ func (w *mainWindow) buildMenus() {
 		it := it
 		w.win.Canvas().AddShortcut(it.Shortcut, func(fyne.Shortcut) { it.Action() })
 	}
+	// Ctrl+Shift+Z redoes as well, as is common on Linux.
+	w.win.Canvas().AddShortcut(&desktop.CustomShortcut{KeyName: fyne.KeyZ, Modifier: ctrl | fyne.KeyModifierShift}, func(fyne.Shortcut) { w.doc.Redo() })
 	// Enter on the numeric keypad as well.
 	w.win.Canvas().AddShortcut(&desktop.CustomShortcut{KeyName: fyne.KeyEnter, Modifier: ctrl}, func(fyne.Shortcut) { w.simulate() })
 }
