@@ -285,6 +285,7 @@ func (w *mainWindow) offerRecovery() {
 		// The restored work exists only in the recovery file until saved;
 		// setModel removed that file, so write it again at once.
 		w.doc.MarkModified()
+		w.updateTitle()
 		w.autosave()
 		w.simulate()
 	}, w.win)

@@ -91,22 +91,24 @@ func (d *Document) Version() int { return d.id }
 // loaded.
 func (d *Document) Dirty() bool { return d.id != d.savedID }
 
-// MarkSaved records the current state as saved to path.
+// MarkSaved records the current state as saved to path. Saving is not an
+// edit: it calls no OnChange listener, so that what follows edits (slider
+// values going back to the model's, re-runs) does not happen; the caller
+// updates what shows the file's name and state.
 func (d *Document) MarkSaved(path string) {
 	d.Path = path
 	d.savedID = d.id
-	d.notify()
 }
 
 // MarkModified records the current state as not saved, for a model that
-// exists only in memory, such as one restored after a crash.
+// exists only in memory, such as one restored after a crash. Like
+// MarkSaved it calls no OnChange listener.
 func (d *Document) MarkModified() {
 	d.savedID = -1
-	d.notify()
 }
 
-// OnChange registers f to be called after every edit, undo, redo, load and
-// save.
+// OnChange registers f to be called after every edit, undo, redo and load
+// (Replace), but not after MarkSaved or MarkModified.
 func (d *Document) OnChange(f func()) { d.listeners = append(d.listeners, f) }
 
 func (d *Document) notify() {
