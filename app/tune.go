@@ -435,22 +435,17 @@ func (p *tunePanel) result(_ int, req sliders.Request, o *run.Outcome, err error
 		w.refreshSpecies()
 	}
 	w.redraw()
-	line := fmt.Sprintf("Solved in %s (%d steps)", roundDuration(o.Elapsed), o.Stats.Steps)
-	if err != nil {
-		end := 0.0
-		if len(o.T) > 0 {
-			end = o.T[len(o.T)-1]
-		}
-		line = fmt.Sprintf("The run stopped at t = %s: %s", short(end), plainError(err))
-	}
+	line := fmt.Sprintf("Solved in %s (%d steps).", roundDuration(o.Elapsed), o.Stats.Steps)
 	p.say("", false)
 	if err != nil {
-		p.say(line+".", true)
+		// The reason in full under the sliders, where the text wraps.
+		p.say(stoppedAt(o)+": "+plainError(err), true)
+		line = stoppedLine(o)
 	}
 	if p.tuned {
-		w.status.SetText("Showing the slider values (not yet in the model). " + line + ".")
+		w.status.SetText("Showing the slider values (not yet in the model). " + line)
 	} else {
-		w.status.SetText("Showing the model's values. " + line + ".")
+		w.status.SetText("Showing the model's values. " + line)
 	}
 }
 

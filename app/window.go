@@ -364,11 +364,7 @@ func (w *mainWindow) runDone(_ int, o *run.Outcome, err error) {
 	line := fmt.Sprintf("Solved in %s with %s (%d steps).", roundDuration(o.Elapsed), plainMethod(o), o.Stats.Steps)
 	w.runInfo.Show()
 	if err != nil {
-		end := 0.0
-		if len(o.T) > 0 {
-			end = o.T[len(o.T)-1]
-		}
-		line = fmt.Sprintf("The run stopped at t = %s: %s. Showing the part computed. %s", short(end), plainError(err), line)
+		line = stoppedLine(o) + " " + line
 	}
 	w.status.SetText(line)
 	w.refreshSpecies()
@@ -510,15 +506,49 @@ func plainMethod(o *run.Outcome) string {
 	return o.MethodSummary() + ", a method for systems without very fast reactions"
 }
 
+// stoppedAt says where run o stopped early: "The run stopped at t = 1 of
+// 10".
+func stoppedAt(o *run.Outcome) string {
+	end := 0.0
+	if len(o.T) > 0 {
+		end = o.T[len(o.T)-1]
+	}
+	return fmt.Sprintf("The run stopped at t = %s of %s", short(end), short(o.TEnd))
+}
+
+// stoppedLine says for the status line that run o stopped early, short
+// enough to read there; the information dialog gives the reason in full.
+func stoppedLine(o *run.Outcome) string {
+	return stoppedAt(o) + "; showing the part computed (the information button on the left says why)."
+}
+
 // showRunInfo shows what the last run did: the method and why it was
 // chosen, and the solver's statistics.
 func (w *mainWindow) showRunInfo() {
-	o := w.current
-	if o == nil {
+	text := runInfoText(w.current)
+	if text == "" {
 		return
 	}
+	l := widget.NewLabel(text)
+	l.Wrapping = fyne.TextWrapWord
+	d := dialog.NewCustom("About the last run", "Close", container.NewVScroll(l), w.win)
+	d.Resize(fyne.NewSize(560, 360))
+	d.Show()
+}
+
+// runInfoText is the text of About the last run: first, for a run that
+// stopped early, the reason in full; then the method, why it was chosen,
+// and the solver's statistics.
+func runInfoText(o *run.Outcome) string {
+	if o == nil {
+		return ""
+	}
 	st := o.Stats
-	text := fmt.Sprintf("Method: %s\n", o.MethodSummary())
+	text := ""
+	if o.Err != nil {
+		text = stoppedAt(o) + ".\nWhy: " + plainError(o.Err) + "\n\n"
+	}
+	text += fmt.Sprintf("Method: %s\n", o.MethodSummary())
 	if st.Choice != "" {
 		text += "Why: " + st.Choice + "\n"
 	}
@@ -526,9 +556,5 @@ func (w *mainWindow) showRunInfo() {
 		"Right-hand side evaluations: %d\nJacobian evaluations: %d\nMatrix factorizations: %d\n"+
 		"Steps where a concentration was kept from going negative: %d",
 		roundDuration(o.Elapsed), st.Steps, st.Rejected, st.RHSEvals, st.JacobianEvals, st.Factorizations, st.NonNegFixes)
-	l := widget.NewLabel(text)
-	l.Wrapping = fyne.TextWrapWord
-	d := dialog.NewCustom("About the last run", "Close", container.NewVScroll(l), w.win)
-	d.Resize(fyne.NewSize(560, 360))
-	d.Show()
+	return text
 }

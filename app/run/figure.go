@@ -1,8 +1,10 @@
 package run
 
 import (
+	"fmt"
 	"image"
 	"math"
+	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
@@ -56,11 +58,20 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 		opt.Overlay = &prev
 		opt.OverlayLabel = v.PreviousLabel
 	}
+	stopped := o.Err != nil && len(o.T) > 0 && o.T[len(o.T)-1] < o.TEnd
+	if stopped {
+		opt.Title += fmt.Sprintf("\n(the run stopped at t = %s of %s; the part computed is shown)",
+			strconv.FormatFloat(o.T[len(o.T)-1], 'g', 4, 64), strconv.FormatFloat(o.TEnd, 'g', 4, 64))
+	}
 	tr := o.Trajectories()
 	if v.LogX {
-		// Time 0 has no place on a log axis; leave it out quietly rather
-		// than have every figure note it.
-		tr = positiveTimes(tr)
+		// Time 0 has no place on a log axis. On a log-spaced grid it is
+		// the only such time and expected to go: leave it out quietly
+		// rather than have every figure note it. Otherwise the figure
+		// notes it.
+		if o.LogGrid {
+			tr = positiveTimes(tr)
+		}
 		if opt.Overlay != nil {
 			prev := positiveTimes(*opt.Overlay)
 			opt.Overlay = &prev
@@ -69,6 +80,13 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 	p, err := plotting.TrajectoryPlot(tr, opt)
 	if err != nil {
 		return nil, err
+	}
+	if stopped && !v.LogX {
+		// The time axis a complete run would have, so that the figure
+		// shows how far the run got.
+		p.X.Min, p.X.Max = math.Min(o.T[0], 0), o.TEnd
+	} else if stopped && o.TEnd > p.X.Max {
+		p.X.Max = o.TEnd
 	}
 	if z := v.Zoom; z != nil && validRange(z, v) {
 		p.X.Min, p.X.Max = z.XMin, z.XMax
