@@ -104,7 +104,11 @@ func TestReadmeNamesSimulateKey(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if want := "Simulate (Ctrl+" + key; !strings.Contains(string(b), want) {
+	want := "Simulate (Ctrl+" + key
+	if !strings.Contains(string(b), want) {
 		t.Errorf("README does not contain %q, the key the menu shows", want)
+	}
+	if got := w.plot.placeholder.Text; !strings.Contains(got, want) {
+		t.Errorf("the empty figure says %q, not the key the menu shows (%q)", got, want)
 	}
 }

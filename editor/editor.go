@@ -2,6 +2,7 @@ package editor
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 
 	"fyne.io/fyne/v2"
@@ -52,13 +53,14 @@ type Editor struct {
 	// warnings after every change.
 	OnMessages func(errors, warnings int)
 
-	win      fyne.Window
-	tabs     *container.AppTabs
-	panes    map[string]*rowPane // by section
-	tabOf    map[string]*container.TabItem
-	run      *runForm
-	msgList  *widget.List
-	messages []Message
+	win       fyne.Window
+	tabs      *container.AppTabs
+	panes     map[string]*rowPane // by section
+	tabOf     map[string]*container.TabItem
+	run       *runForm
+	runScroll *container.Scroll // holds run's form
+	msgList   *widget.List
+	messages  []Message
 
 	// pending holds text typed into number and value fields that could not
 	// be taken, by "section/index/field", so it is shown as typed until
@@ -96,7 +98,8 @@ func New(doc *Document, win fyne.Window) *Editor {
 		e.tabOf[t.section] = item
 		e.tabs.Append(item)
 	}
-	runItem := container.NewTabItem(TabRun, container.NewVScroll(e.run.object()))
+	e.runScroll = container.NewVScroll(e.run.object())
+	runItem := container.NewTabItem(TabRun, e.runScroll)
 	e.tabOf["simulation"] = runItem
 	e.tabs.Append(runItem)
 
@@ -303,36 +306,78 @@ func (e *Editor) rowSeverity(section string, i int) severity {
 	return s
 }
 
-// markFields shows the messages about row i of section beside its fields.
+// markFields shows the messages about row i of section under its fields:
+// each message under the first visible input it is about, and a message
+// about no visible input under the first one, so that the form shows every
+// message the Messages list shows. The form is then laid out again, so
+// that each message takes its own lines.
 func (e *Editor) markFields(section string, i int, fields []*field) {
-	for _, f := range fields {
-		var texts []string
-		warn := true
-		for _, m := range e.messages {
-			if m.Section != section || m.Index != i || !fieldMatches(f.name, m.Field) {
-				continue
-			}
-			msg := m.Message
-			if m.Col > 0 {
-				msg = fmt.Sprintf("column %d: %s", m.Col, msg)
-			}
-			texts = append(texts, msg)
-			if m.Severity == network.Error {
-				warn = false
+	texts := make([][]string, len(fields))
+	errs := make([]bool, len(fields))
+	for _, m := range e.messages {
+		if m.Section != section || m.Index != i {
+			continue
+		}
+		at := -1
+		for j, f := range fields {
+			if f.row.Visible() && fieldMatches(f.name, m.Field) {
+				at = j
+				break
 			}
 		}
-		f.setMessage(strings.Join(texts, "\n"), warn)
+		if at < 0 {
+			for j, f := range fields {
+				if f.row.Visible() {
+					at = j
+					break
+				}
+			}
+		}
+		if at < 0 {
+			continue
+		}
+		msg := m.Message
+		if m.Col > 0 {
+			msg = fmt.Sprintf("column %d: %s", m.Col, msg)
+		}
+		texts[at] = append(texts[at], msg)
+		errs[at] = errs[at] || m.Severity == network.Error
+	}
+	for j, f := range fields {
+		f.setMessage(strings.Join(texts[j], "\n"), !errs[j])
+	}
+	var form, scroll fyne.CanvasObject
+	if p := e.panes[section]; p != nil {
+		form, scroll = p.form.object(), p.detail
+	} else if section == "simulation" {
+		form, scroll = e.run.object(), e.runScroll
+	}
+	if form == nil {
+		return
+	}
+	// Lay the form out again, and its scroll, for the new heights. A
+	// wrapped message knows its height only once it has its width: lay out
+	// again while a row is shorter than its content needs.
+	for pass := 0; pass < 3; pass++ {
+		form.Refresh()
+		scroll.Refresh()
+		if !slices.ContainsFunc(fields, (*field).cramped) {
+			break
+		}
 	}
 }
 
 // fieldMatches reports whether a message about field msgField belongs to
-// the input named name. Messages about the whole item go to the name.
+// the input named name. Messages about the whole item go to the name, and
+// messages about the rate as a whole to the rate law.
 func fieldMatches(name, msgField string) bool {
-	if msgField == name {
+	switch msgField {
+	case name:
 		return true
-	}
-	if msgField == "" || msgField == "rate" {
-		return name == "name" || name == "rate.law" && msgField == "rate"
+	case "":
+		return name == "name"
+	case "rate":
+		return name == "rate.law"
 	}
 	return false
 }

@@ -117,6 +117,13 @@ func (f *field) setMessage(text string, warning bool) {
 	f.msg.Show()
 }
 
+// cramped reports whether the field's row, or its message, is laid out
+// in less height than it needs.
+func (f *field) cramped() bool {
+	return f.row.Visible() && (f.row.Size().Height < f.row.MinSize().Height ||
+		f.msg.Visible() && f.msg.Size().Height < f.msg.MinSize().Height)
+}
+
 func (f *field) setVisible(v bool) {
 	if v && !f.row.Visible() {
 		f.row.Show()

@@ -1,0 +1,77 @@
+package editor
+
+import (
+	"strings"
+	"testing"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/test"
+	"fyne.io/fyne/v2/widget"
+)
+
+// formInWindow puts the editor's tabs in a window of a usual size, so
+// that the forms are laid out as on screen.
+func formInWindow(t *testing.T, e *Editor) {
+	t.Helper()
+	w := test.NewWindow(e.Tabs())
+	t.Cleanup(w.Close)
+	w.Resize(fyne.NewSize(520, 900))
+}
+
+// checkInline checks that every message the Messages list has about row i
+// of section is shown in the form, each on its own lines: no visible
+// message overlaps the row below it.
+func checkInline(t *testing.T, e *Editor, section string, i int, fields []*field) {
+	t.Helper()
+	d := fyne.CurrentApp().Driver()
+	shown := ""
+	for _, f := range fields {
+		if f.row.Visible() && f.msg.Visible() {
+			shown += f.msg.Text + "\n"
+		}
+	}
+	for _, m := range e.Messages() {
+		if m.Section == section && m.Index == i && !strings.Contains(shown, m.Message) {
+			t.Errorf("the form does not show %q; it shows %q", m.Message, shown)
+		}
+	}
+	var visible []*field
+	for _, f := range fields {
+		if f.row.Visible() {
+			visible = append(visible, f)
+		}
+	}
+	for j := 0; j+1 < len(visible); j++ {
+		f, next := visible[j], visible[j+1]
+		if !f.msg.Visible() {
+			continue
+		}
+		bottom := d.AbsolutePositionForObject(f.msg).Y + f.msg.Size().Height
+		if top := d.AbsolutePositionForObject(next.row).Y; bottom > top+0.5 {
+			t.Errorf("the message of %s (%q) ends at y = %g, below the top of %s at y = %g", f.name, f.msg.Text, bottom, next.name, top)
+		}
+		if f.msg.Size().Height < f.msg.MinSize().Height-0.5 {
+			t.Errorf("the message of %s is %g high, less than the %g its text needs", f.name, f.msg.Size().Height, f.msg.MinSize().Height)
+		}
+	}
+}
+
+// An unknown parameter as the rate constant, and an equation ending in a
+// stray "+", are shown under their inputs at once, each message on its own
+// lines above the next field, as the Messages list has them.
+func TestInlineMessagesTakeTheirOwnLines(t *testing.T) {
+	e, _ := newTestEditor(t)
+	formInWindow(t, e)
+	rf := e.panes["reactions"].form.(*reactionForm)
+	e.SelectRow("reactions", 0)
+	k := rf.rate["k"].input.(*widget.Entry)
+	k.SetText("")
+	test.Type(k, "kk")
+	if !rf.rate["k"].msg.Visible() {
+		t.Fatal("no message under the rate constant")
+	}
+	checkInline(t, e, "reactions", 0, rf.fields())
+
+	rf.equ.SetText("E + S <=> ES +")
+	checkInline(t, e, "reactions", 0, rf.fields())
+}
