@@ -9,7 +9,9 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/driver/desktop"
 	"fyne.io/fyne/v2/test"
+	"fyne.io/fyne/v2/widget"
 
+	"kinetarium/app/run"
 	"kinetarium/network"
 )
 
@@ -111,4 +113,57 @@ func TestReadmeNamesSimulateKey(t *testing.T) {
 	if got := w.plot.placeholder.Text; !strings.Contains(got, want) {
 		t.Errorf("the empty figure says %q, not the key the menu shows (%q)", got, want)
 	}
+}
+
+// Duplicating a species keeps the colour of every species after it, in
+// the figure and in the species list, and the copy takes a colour of its
+// own.
+func TestColoursSurviveDuplication(t *testing.T) {
+	a := test.NewTempApp(t)
+	w := newMainWindow(a, true)
+	defer w.win.Close()
+	w.ctrl.Deliver = onUI
+	onUI(func() { w.setModel(tuneDecayModel(), "") }) // species A, B
+	onUI(w.simulate)
+	waitFor(t, "the first run", func() bool { return w.current != nil && !w.ctrl.Running() })
+	var before map[string]int
+	var first *run.Outcome
+	onUI(func() {
+		first = w.current
+		before = map[string]int{}
+		for j, n := range w.current.Names {
+			before[n] = w.plot.view.Slot(n, j)
+		}
+		// The Species tab's duplicate button on A.
+		w.ed.SelectRow("species", 0)
+		tab := w.ed.Tabs().Selected().Content.(*fyne.Container)
+		bar := tab.Objects[1].(*fyne.Container) // the Border's top: the buttons
+		test.Tap(bar.Objects[2].(*widget.Button))
+	})
+	waitFor(t, "the re-run", func() bool { return w.current != first && !w.ctrl.Running() })
+	onUI(func() {
+		if got := w.current.Names; len(got) != 3 || got[1] != "A_copy1" {
+			t.Fatalf("names %v, want A, A_copy1, B", got)
+		}
+		slots := map[int]string{}
+		for j, n := range w.current.Names {
+			s := w.plot.view.Slot(n, j)
+			if b, ok := before[n]; ok && s != b {
+				t.Errorf("%s has colour slot %d after the duplication, %d before", n, s, b)
+			}
+			if o, dup := slots[s]; dup {
+				t.Errorf("%s and %s share colour slot %d", n, o, s)
+			}
+			slots[s] = n
+		}
+		w.refreshSpecies()
+		for row, j := range w.shownSpecies {
+			o := w.speciesList.CreateItem()
+			w.speciesList.UpdateItem(row, o)
+			sw := o.(*fyne.Container).Objects[1].(*swatch)
+			if n := w.current.Names[j]; sw.slot != w.plot.view.Slot(n, j) {
+				t.Errorf("the species list shows %s in slot %d, the figure in %d", n, sw.slot, w.plot.view.Slot(n, j))
+			}
+		}
+	})
 }

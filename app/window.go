@@ -141,7 +141,7 @@ func (w *mainWindow) build() {
 			j := w.shownSpecies[id]
 			name := w.current.Names[j]
 			c := o.(*fyne.Container)
-			c.Objects[1].(*swatch).setSlot(j)
+			c.Objects[1].(*swatch).setSlot(run.View{Slots: w.doc.Slots()}.Slot(name, j))
 			chk := c.Objects[0].(*widget.Check)
 			chk.OnChanged = nil
 			chk.SetText(name)
@@ -405,7 +405,7 @@ func (w *mainWindow) redraw() {
 	if w.current == nil {
 		return
 	}
-	v := run.View{LogX: w.logX.Checked, LogY: w.logY.Checked, Hidden: w.hidden, Zoom: w.plot.view.Zoom}
+	v := run.View{LogX: w.logX.Checked, LogY: w.logY.Checked, Hidden: w.hidden, Zoom: w.plot.view.Zoom, Slots: w.doc.Slots()}
 	if v.Zoom != nil && (v.LogX != w.plot.view.LogX || v.LogY != w.plot.view.LogY) {
 		v.Zoom = nil // a zoom on one scale means little on the other
 	}

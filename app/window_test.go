@@ -2,8 +2,8 @@ package main
 
 import (
 	"errors"
-	"sync"
 	"strings"
+	"sync"
 	"testing"
 	"time"
 

@@ -31,6 +31,19 @@ type View struct {
 	PreviousLabel string
 	// Zoom, when not nil, is the part of the data shown.
 	Zoom *Range
+	// Slots gives series their colour slots (see plotting.Colour) by
+	// name, so that a species keeps its colour when others are added,
+	// removed or moved (editor.Document.Slots); series not in it, and all
+	// when it is nil, take their position.
+	Slots map[string]int
+}
+
+// Slot returns the colour slot of series j, named name.
+func (v View) Slot(name string, j int) int {
+	if s, ok := v.Slots[name]; ok {
+		return s
+	}
+	return j
 }
 
 // Trajectories returns the outcome as plotting's series.
@@ -38,8 +51,8 @@ func (o *Outcome) Trajectories() plotting.Trajectories {
 	return plotting.Trajectories{Times: o.T, Names: o.Names, Values: o.Y}
 }
 
-// Figure draws the outcome with the view. Each species keeps the colour of
-// its position in the model, whichever species are hidden.
+// Figure draws the outcome with the view. Each series keeps the colour of
+// its slot (View.Slot), whichever series are hidden.
 func Figure(o *Outcome, v View) (*plot.Plot, error) {
 	opt := plotting.Options{
 		Title:  o.Title,
@@ -51,7 +64,7 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 	}
 	for j, n := range o.Names {
 		opt.Visible[j] = !v.Hidden[n]
-		opt.ColourIndex[j] = j
+		opt.ColourIndex[j] = v.Slot(n, j)
 	}
 	if v.Previous != nil && len(v.Previous.T) > 0 {
 		prev := v.Previous.Trajectories()
