@@ -33,7 +33,7 @@ func formatExt(f string) string {
 // then for the file, and saves the figure as shown on screen.
 func (w *mainWindow) exportFigure() {
 	if w.current == nil {
-		w.status.SetText("Nothing to export yet: simulate the model first.")
+		w.setStatus("Nothing to export yet: simulate the model first.", false)
 		return
 	}
 	width := widget.NewEntry()
@@ -79,7 +79,7 @@ func (w *mainWindow) exportFigure() {
 				w.showError(err)
 				return
 			}
-			w.status.SetText("Figure saved to " + path)
+			w.setStatus("Figure saved to "+path, false)
 		})
 	}, w.win)
 }
@@ -96,7 +96,7 @@ func positive(s, name string) (float64, error) {
 // exportData saves the results as CSV.
 func (w *mainWindow) exportData() {
 	if w.current == nil {
-		w.status.SetText("Nothing to export yet: simulate the model first.")
+		w.setStatus("Nothing to export yet: simulate the model first.", false)
 		return
 	}
 	o := w.current
@@ -105,7 +105,7 @@ func (w *mainWindow) exportData() {
 			w.showError(err)
 			return
 		}
-		w.status.SetText("Data saved to " + path)
+		w.setStatus("Data saved to "+path, false)
 	})
 }
 

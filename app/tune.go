@@ -443,9 +443,9 @@ func (p *tunePanel) result(_ int, req sliders.Request, o *run.Outcome, err error
 		line = stoppedLine(o)
 	}
 	if p.tuned {
-		w.status.SetText("Showing the slider values (not yet in the model). " + line)
+		w.setStatus("Showing the slider values (not yet in the model). "+line, err != nil)
 	} else {
-		w.status.SetText("Showing the model's values. " + line)
+		w.setStatus("Showing the model's values. "+line, err != nil)
 	}
 }
 
@@ -494,6 +494,8 @@ func (p *tunePanel) writeBack() {
 // model's new values, and sliders of values no longer in the model go.
 func (p *tunePanel) modelChanged() {
 	p.model = nil // drops the results of solves of the old model
+	// What the information line said was about the model as it was.
+	p.say("", false)
 	m := p.w.doc.Model()
 	kept := p.knobs[:0]
 	for _, k := range p.knobs {

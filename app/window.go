@@ -48,12 +48,16 @@ type mainWindow struct {
 	speciesList  *widget.List
 	shownSpecies []int // indices into current.Names passing the filter
 
-	status    *widget.Label
-	runInfo   *widget.Button // details of the last run
-	counts    *widget.Label
-	progress  *widget.ProgressBar
-	cancelBtn *widget.Button
-	runBtn    *widget.Button
+	status *widget.Label
+	// statusProblem is set while the status line tells of a problem
+	// (a run that failed or stopped, a model that cannot run), which
+	// notices such as the recovery file's do not replace.
+	statusProblem bool
+	runInfo       *widget.Button // details of the last run
+	counts        *widget.Label
+	progress      *widget.ProgressBar
+	cancelBtn     *widget.Button
+	runBtn        *widget.Button
 
 	rerunItem *fyne.MenuItem
 	undoItem  *fyne.MenuItem
@@ -103,7 +107,7 @@ func (w *mainWindow) build() {
 
 	// Right: figure toolbar, figure, species list.
 	w.plot = newPlotView()
-	w.plot.errorText = func(s string) { w.status.SetText(s) }
+	w.plot.errorText = func(s string) { w.setStatus(s, true) }
 	w.plot.OnZoom = func() {}
 	w.plot.OnDrawn = func() {
 		if w.onDrawn != nil {
@@ -173,6 +177,20 @@ func (w *mainWindow) build() {
 	main.Offset = 0.4
 	w.win.SetContent(container.NewBorder(nil, statusBar, nil, nil, main))
 	w.buildMenus()
+}
+
+// setStatus puts text in the status line; problem says that it tells of a
+// problem, which notices do not replace (see notice).
+func (w *mainWindow) setStatus(text string, problem bool) {
+	w.status.SetText(text)
+	w.statusProblem = problem
+}
+
+// notice puts text in the status line unless it tells of a problem.
+func (w *mainWindow) notice(text string) {
+	if !w.statusProblem {
+		w.setStatus(text, false)
+	}
 }
 
 func plural(n int, one, many string) string {
@@ -323,7 +341,7 @@ func (w *mainWindow) simulate() {
 	if w.ed.HasErrors() {
 		for _, m := range w.ed.Messages() {
 			if m.Severity == network.Error {
-				w.status.SetText("Cannot simulate yet: " + m.String())
+				w.setStatus("Cannot simulate yet: "+m.String(), true)
 				w.ed.Focus(m.Problem)
 				if w.captureSoon != nil {
 					w.captureSoon()
@@ -339,14 +357,14 @@ func (w *mainWindow) runStarted(int) {
 	w.progress.SetValue(0)
 	w.progress.Show()
 	w.cancelBtn.Show()
-	w.status.SetText("Simulating…")
+	w.setStatus("Simulating…", false)
 }
 
 func (w *mainWindow) runDone(_ int, o *run.Outcome, err error) {
 	w.progress.Hide()
 	w.cancelBtn.Hide()
 	if o == nil {
-		w.status.SetText(plainError(err))
+		w.setStatus(plainError(err), true)
 		return
 	}
 	if w.current != nil && len(w.current.T) > 0 {
@@ -366,7 +384,7 @@ func (w *mainWindow) runDone(_ int, o *run.Outcome, err error) {
 	if err != nil {
 		line = stoppedLine(o) + " " + line
 	}
-	w.status.SetText(line)
+	w.setStatus(line, err != nil)
 	w.refreshSpecies()
 	w.redraw()
 }

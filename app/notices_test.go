@@ -1,0 +1,68 @@
+package main
+
+import (
+	"strings"
+	"testing"
+
+	"fyne.io/fyne/v2/test"
+
+	"kinetarium/network"
+)
+
+// The recovery file's notice does not replace a problem in the status
+// line; it shows when the status line tells of none.
+func TestRecoveryNoticeKeepsProblems(t *testing.T) {
+	t.Setenv("XDG_CONFIG_HOME", t.TempDir())
+	t.Setenv("HOME", t.TempDir())
+	a := test.NewTempApp(t)
+	w := newMainWindow(a, true)
+	defer w.win.Close()
+	w.autoRerun = false
+	onUI(func() {
+		w.setModel(tuneDecayModel(), "")
+		w.doc.Apply("break the equation", func(m *network.Model) { m.Reactions[0].Equation = "A -> +" })
+		w.simulate()
+		problem := w.status.Text
+		if !strings.HasPrefix(problem, "Cannot simulate yet") {
+			t.Fatalf("status line %q", problem)
+		}
+		w.autosave()
+		if w.status.Text != problem {
+			t.Errorf("the recovery notice %q replaced the problem %q", w.status.Text, problem)
+		}
+		w.setStatus("Saved somewhere", false)
+		w.autosave()
+		if !strings.HasPrefix(w.status.Text, "Unsaved changes kept in") {
+			t.Errorf("status line %q, want the recovery notice", w.status.Text)
+		}
+	})
+}
+
+// The sliders' information line does not outlive what it tells of: the
+// note that Undo takes written values back goes when another model is
+// opened, and the note about mistakes goes when they are corrected.
+func TestSliderHintsDoNotGoStale(t *testing.T) {
+	w := openTuneWindow(t, tuneDecayModel())
+	onUI(func() {
+		p := w.tune
+		p.rows[knobIndex(t, p, "k")].slider.SetValue(800)
+		p.writeBack()
+		if !strings.Contains(p.info.Text, "Undo") || !p.info.Visible() {
+			t.Fatalf("after writing the values the sliders say %q", p.info.Text)
+		}
+		w.setModel(tuneDecayModel(), "")
+		if p.info.Visible() {
+			t.Errorf("after opening a model the sliders still say %q", p.info.Text)
+		}
+
+		w.doc.Apply("break the equation", func(m *network.Model) { m.Reactions[0].Equation = "A -> +" })
+		p.rows[knobIndex(t, p, "k")].slider.SetValue(700)
+		if !strings.Contains(p.info.Text, "mistakes") || !p.info.Visible() {
+			t.Fatalf("moving a slider of a broken model: the sliders say %q", p.info.Text)
+		}
+		w.doc.Apply("mend the equation", func(m *network.Model) { m.Reactions[0].Equation = "A -> B" })
+		if p.info.Visible() {
+			t.Errorf("after the mistake was corrected the sliders still say %q", p.info.Text)
+		}
+	})
+}
