@@ -68,6 +68,22 @@ type Editor struct {
 	pending map[string]pendingText
 	// own is true while the editor itself changes the document.
 	own bool
+	// fresh is the row just added, whose mistakes (it is blank) its form
+	// and its row do not show until the next edit.
+	fresh freshRow
+}
+
+// freshRow is a row added at document version version.
+type freshRow struct {
+	section        string
+	index, version int
+}
+
+// isFresh reports whether row i of section was just added and not edited
+// since.
+func (e *Editor) isFresh(section string, i int) bool {
+	f := e.fresh
+	return f.section == section && f.index == i && f.version == e.Doc.Version()
 }
 
 // New returns an editor of doc. Dialogs open over win, which may be nil in
@@ -295,6 +311,9 @@ func (e *Editor) pendingText(section string, index int, fld string) (string, boo
 // rowSeverity is the worst message about row i of section.
 func (e *Editor) rowSeverity(section string, i int) severity {
 	s := sevNone
+	if e.isFresh(section, i) {
+		return s
+	}
 	for _, m := range e.messages {
 		if m.Section == section && m.Index == i {
 			if m.Severity == network.Error {
@@ -315,7 +334,7 @@ func (e *Editor) markFields(section string, i int, fields []*field) {
 	texts := make([][]string, len(fields))
 	errs := make([]bool, len(fields))
 	for _, m := range e.messages {
-		if m.Section != section || m.Index != i {
+		if m.Section != section || m.Index != i || e.isFresh(section, i) {
 			continue
 		}
 		at := -1

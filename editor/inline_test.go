@@ -75,3 +75,34 @@ func TestInlineMessagesTakeTheirOwnLines(t *testing.T) {
 	rf.equ.SetText("E + S <=> ES +")
 	checkInline(t, e, "reactions", 0, rf.fields())
 }
+
+// A reaction just added shows no mistakes in its form or row before
+// anything is typed into it (the Messages list has them, and the model
+// cannot run); after the first edit its form shows them.
+func TestNewRowShowsMistakesAfterFirstEdit(t *testing.T) {
+	e, d := newTestEditor(t)
+	formInWindow(t, e)
+	p := e.panes["reactions"]
+	rf := p.form.(*reactionForm)
+	e.SelectRow("reactions", 2)
+	p.add()
+	if p.selected != 3 || len(d.Model().Reactions) != 4 {
+		t.Fatalf("row %d selected of %d", p.selected, len(d.Model().Reactions))
+	}
+	if !e.HasErrors() {
+		t.Fatal("a blank reaction is no mistake")
+	}
+	for _, f := range rf.fields() {
+		if f.row.Visible() && f.msg.Visible() {
+			t.Errorf("before any typing %s says %q", f.name, f.msg.Text)
+		}
+	}
+	if e.rowSeverity("reactions", 3) != sevNone {
+		t.Error("the new row is marked before any typing")
+	}
+	test.Type(rf.equ, "A ->")
+	checkInline(t, e, "reactions", 3, rf.fields())
+	if e.rowSeverity("reactions", 3) != sevError {
+		t.Error("after typing the row is not marked")
+	}
+}
