@@ -341,7 +341,7 @@ func (w *mainWindow) simulate() {
 	if w.ed.HasErrors() {
 		for _, m := range w.ed.Messages() {
 			if m.Severity == network.Error {
-				w.setStatus("Cannot simulate yet: "+m.String(), true)
+				w.setStatus("Cannot simulate yet: "+w.ed.Describe(m), true)
 				w.ed.Focus(m.Problem)
 				if w.captureSoon != nil {
 					w.captureSoon()

@@ -138,7 +138,7 @@ func New(doc *Document, win fyne.Window) *Editor {
 			} else {
 				icon.SetResource(theme.NewErrorThemedResource(theme.ErrorIcon()))
 			}
-			c.Objects[0].(*widget.Label).SetText(describe(m.Problem))
+			c.Objects[0].(*widget.Label).SetText(e.Describe(m))
 		})
 	e.msgList.OnSelected = func(id widget.ListItemID) {
 		if id < len(e.messages) {
@@ -184,8 +184,26 @@ func (e *Editor) HasErrors() bool {
 	return false
 }
 
-// describe writes a problem for the message list, with the section's word.
-func describe(p network.Problem) string {
+// Describe writes a message for people: its place, with the field named
+// by the form's label ("Rate constant") rather than the file's key
+// ("rate.k"), and what is wrong.
+func (e *Editor) Describe(m Message) string {
+	p := m.Problem
+	if p.Field == "rate" {
+		p.Field = "rate.law"
+	}
+	var fields []*field
+	if pane := e.panes[p.Section]; pane != nil {
+		fields = pane.form.fields()
+	} else if p.Section == "simulation" {
+		fields = e.run.fields()
+	}
+	for _, f := range fields {
+		if f.name == p.Field && f.label != "" {
+			p.Field = f.label
+			break
+		}
+	}
 	return p.String()
 }
 

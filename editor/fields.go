@@ -75,6 +75,7 @@ func (labelledLayout) Layout(objs []fyne.CanvasObject, size fyne.Size) {
 // about its content under it.
 type field struct {
 	name  string // the model field, as Validate names it ("equation", "rate.k")
+	label string // the form's label, as messages name the field
 	input fyne.Focusable
 	msg   *widget.Label
 	row   *fyne.Container
@@ -88,7 +89,7 @@ func newField(label, name string, input fyne.CanvasObject) *field {
 	l := widget.NewLabel(label)
 	l.Alignment = fyne.TextAlignTrailing
 	l.Truncation = fyne.TextTruncateEllipsis
-	f := &field{name: name, msg: msg,
+	f := &field{name: name, label: label, msg: msg,
 		row: container.New(labelledLayout{}, l, container.NewVBox(input, msg))}
 	if fo, ok := input.(fyne.Focusable); ok {
 		f.input = fo

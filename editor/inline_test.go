@@ -7,6 +7,8 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/test"
 	"fyne.io/fyne/v2/widget"
+
+	"kinetarium/network"
 )
 
 // formInWindow puts the editor's tabs in a window of a usual size, so
@@ -104,5 +106,28 @@ func TestNewRowShowsMistakesAfterFirstEdit(t *testing.T) {
 	checkInline(t, e, "reactions", 3, rf.fields())
 	if e.rowSeverity("reactions", 3) != sevError {
 		t.Error("after typing the row is not marked")
+	}
+}
+
+// The Messages list names fields by the form's labels, not by the model
+// file's keys.
+func TestMessagesUseFormLabels(t *testing.T) {
+	e, d := newTestEditor(t)
+	d.Apply("unknown k", func(m *network.Model) { m.Reactions[0].Rate = m.Reactions[0].Rate.With("k", network.Named("kk")) })
+	d.Apply("bad end", func(m *network.Model) { m.Simulation.TEnd = -1 })
+	var got []string
+	for _, m := range e.Messages() {
+		got = append(got, e.Describe(m))
+	}
+	all := strings.Join(got, "\n")
+	for _, want := range []string{`reaction "bind", Rate constant: unknown parameter "kk"`, "simulation, End time: "} {
+		if !strings.Contains(all, want) {
+			t.Errorf("messages\n%s\ndo not contain %q", all, want)
+		}
+	}
+	for _, key := range []string{"rate.k", "t_end"} {
+		if strings.Contains(all, key+":") {
+			t.Errorf("messages\n%s\nname the file key %s", all, key)
+		}
 	}
 }
