@@ -131,3 +131,32 @@ func TestMessagesUseFormLabels(t *testing.T) {
 		}
 	}
 }
+
+// An unknown parameter typed as a rate constant is offered as a new
+// parameter in one click, as undeclared species are, and the message
+// suggests the near miss.
+func TestAddUnknownParameter(t *testing.T) {
+	e, d := newTestEditor(t)
+	rf := e.panes["reactions"].form.(*reactionForm)
+	e.SelectRow("reactions", 0)
+	k := rf.rate["k"].input.(*widget.Entry)
+	k.SetText("")
+	test.Type(k, "k1x")
+	if !hasMessage(e, "reactions", 0, "rate.k", `did you mean "k1"?`) {
+		t.Errorf("no suggestion of k1 for k1x: %v", e.Messages())
+	}
+	if !rf.addParams.Visible() || rf.addParams.Text != "Add parameter k1x" || !rf.addParamRow.Visible() {
+		t.Fatalf("add-parameter button: visible %v, text %q", rf.addParams.Visible(), rf.addParams.Text)
+	}
+	test.Tap(rf.addParams)
+	ps := d.Model().Parameters
+	if ps[len(ps)-1].Name != "k1x" {
+		t.Fatalf("parameters after adding: %v", ps)
+	}
+	if rf.addParams.Visible() || hasMessage(e, "reactions", 0, "rate.k", "unknown parameter") {
+		t.Error("the button or the message stays after adding the parameter")
+	}
+	if desc, _ := d.CanUndo(); desc != "add parameter k1x" {
+		t.Errorf("undo step %q", desc)
+	}
+}

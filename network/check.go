@@ -1,6 +1,7 @@
 package network
 
 import (
+	"fmt"
 	"math"
 	"sort"
 	"strings"
@@ -274,7 +275,7 @@ func (v *validator) reaction(i int) {
 				if ref, ok := v.kinds[t.Species]; ok {
 					errf("equation", t.Col, "%q is a %s, not a species; only species can react", t.Species, sectionWord[ref.section])
 				} else {
-					errf("equation", t.Col, "unknown species %q; declare it under species or fix the name", t.Species)
+					errf("equation", t.Col, "unknown species %q;%s declare it under species or fix the name", t.Species, didYouMean(t.Species, v.speciesIx))
 				}
 			}
 		}
@@ -403,7 +404,7 @@ func (v *validator) fieldValue(i int, item, field string, f Field, val Value) {
 	if ref, ok := v.kinds[val.Name]; ok {
 		errf("%q is a %s; %s needs a parameter name or a number", val.Name, sectionWord[ref.section], f.Label)
 	} else {
-		errf("unknown parameter %q; declare it under parameters or give a number", val.Name)
+		errf("unknown parameter %q;%s declare it under parameters or give a number", val.Name, didYouMean(val.Name, v.paramIx))
 	}
 }
 
@@ -451,13 +452,56 @@ func (v *validator) expression(section string, i int, item, field, src string, f
 		if ref, ok := v.kinds[name]; ok {
 			errf(col, "%q is a %s; an expression may use species, parameters, assignments and t", name, sectionWord[ref.section])
 		} else {
-			errf(col, "unknown name %q; declare it as a species, parameter or assignment, or fix the name", name)
+			errf(col, "unknown name %q;%s declare it as a species, parameter or assignment, or fix the name", name, didYouMean(name, v.speciesIx, v.paramIx, v.assignIx))
 		}
 	}
 	if len(v.problems) > nerr {
 		return nil
 	}
 	return n
+}
+
+// didYouMean returns ` did you mean "NAME"? Otherwise` for the declared
+// name closest to name by edit distance, when it is at most 2 (and less
+// than the length of name), or "".
+func didYouMean(name string, declared ...map[string]int) string {
+	best, bestD := "", 3
+	for _, ix := range declared {
+		for cand := range ix {
+			d := editDistance(name, cand)
+			if d < bestD || d == bestD && cand < best {
+				best, bestD = cand, d
+			}
+		}
+	}
+	if best == "" || bestD >= len([]rune(name)) {
+		return ""
+	}
+	return fmt.Sprintf(" did you mean %q? Otherwise", best)
+}
+
+// editDistance returns the Levenshtein distance between a and b: the
+// fewest insertions, deletions and substitutions of characters that turn
+// a into b.
+func editDistance(a, b string) int {
+	ra, rb := []rune(a), []rune(b)
+	prev := make([]int, len(rb)+1)
+	cur := make([]int, len(rb)+1)
+	for j := range prev {
+		prev[j] = j
+	}
+	for i := 1; i <= len(ra); i++ {
+		cur[0] = i
+		for j := 1; j <= len(rb); j++ {
+			cost := 1
+			if ra[i-1] == rb[j-1] {
+				cost = 0
+			}
+			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
+		}
+		prev, cur = cur, prev
+	}
+	return prev[len(rb)]
 }
 
 // identCol returns the 1-based column (in characters) of the first whole

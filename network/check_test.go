@@ -111,6 +111,10 @@ func TestValidateTable(t *testing.T) {
 			m.Reactions[1].Rate = Rate{Law: Expression, Expression: "-kcat*ES"}
 			m.Parameters[2].Value = -2
 		}, "parameters", "kcat", "value", 0, "negative", Warning},
+		// A near miss (edit distance ≤ 2) is suggested.
+		{"did you mean parameter", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Named("kcta")) }, "reactions", "cut", "rate.k", 0, `unknown parameter "kcta"; did you mean "kcat"? Otherwise declare it`, Error},
+		{"did you mean species", func(m *Model) { m.Reactions[1].Equation = "ES -> E + PP" }, "reactions", "cut", "equation", 11, `unknown species "PP"; did you mean "P"?`, Error},
+		{"did you mean in expression", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kact*ES"} }, "reactions", "cut", "rate.expression", 1, `unknown name "kact"; did you mean "kcat"?`, Error},
 		{"unused species", func(m *Model) { m.Species = append(m.Species, Species{Name: "Z"}) }, "species", "Z", "", 0, "takes part in no reaction", Warning},
 		{"unused parameter", func(m *Model) { m.Parameters = append(m.Parameters, Parameter{Name: "spare", Value: 1}) }, "parameters", "spare", "", 0, "used by no rate law", Warning},
 	}
@@ -151,6 +155,23 @@ func TestNegativeParameterInExpressionOnlyWarns(t *testing.T) {
 		if p.Item == "kcat" {
 			t.Errorf("warning %v besides the error", p)
 		}
+	}
+}
+
+// Edit distances of textbook pairs (Levenshtein's definition; "kitten" to
+// "sitting" is 3, the standard example), and no suggestion for a name far
+// from every declared one.
+func TestEditDistance(t *testing.T) {
+	for _, c := range []struct {
+		a, b string
+		d    int
+	}{{"kitten", "sitting", 3}, {"kcta", "kcat", 2}, {"", "abc", 3}, {"Km", "Km", 0}, {"flaw", "lawn", 2}} {
+		if got := editDistance(c.a, c.b); got != c.d {
+			t.Errorf("editDistance(%q, %q) = %d, want %d", c.a, c.b, got, c.d)
+		}
+	}
+	if s := didYouMean("zzzz", map[string]int{"kcat": 0}); s != "" {
+		t.Errorf("suggestion %q for a name far from every other", s)
 	}
 }
 
