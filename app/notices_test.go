@@ -6,6 +6,7 @@ import (
 
 	"fyne.io/fyne/v2/test"
 
+	"kinetarium/app/run"
 	"kinetarium/network"
 )
 
@@ -63,6 +64,32 @@ func TestSliderHintsDoNotGoStale(t *testing.T) {
 		w.doc.Apply("mend the equation", func(m *network.Model) { m.Reactions[0].Equation = "A -> B" })
 		if p.info.Visible() {
 			t.Errorf("after the mistake was corrected the sliders still say %q", p.info.Text)
+		}
+	})
+}
+
+// After a slider moves, Show previous run draws the run at the model's
+// values beneath the slider's run.
+func TestPreviousRunAfterSliderMoves(t *testing.T) {
+	w := openTuneWindow(t, tuneDecayModel())
+	var first *run.Outcome
+	onUI(func() {
+		first = w.current
+		p := w.tune
+		p.rows[knobIndex(t, p, "k")].slider.SetValue(800)
+	})
+	waitFor(t, "the slider's run", func() bool { return w.current != first && !w.ctrl.Running() })
+	onUI(func() {
+		p := w.tune
+		p.rows[knobIndex(t, p, "k")].slider.SetValue(900)
+	})
+	waitFor(t, "the second slider run", func() bool { _, shown := w.tune.runner.Counts(); return shown == 2 })
+	onUI(func() {
+		if !w.overlayChk.Checked {
+			t.Fatal("Show previous run is off")
+		}
+		if w.plot.view.Previous != first {
+			t.Errorf("the overlay is %p, want the run at the model's values %p", w.plot.view.Previous, first)
 		}
 	})
 }

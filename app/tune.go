@@ -424,6 +424,11 @@ func (p *tunePanel) result(_ int, req sliders.Request, o *run.Outcome, err error
 		return
 	}
 	newNames := w.current == nil || !slices.Equal(w.current.Names, o.Names)
+	if w.current != nil && len(w.current.T) > 0 && !p.tuned {
+		// The run at the model's values is the previous run while the
+		// sliders move away from them.
+		w.previous = w.current
+	}
 	w.current = o
 	p.tuned = false
 	for _, k := range req.Knobs {
