@@ -100,13 +100,29 @@ func (w *mainWindow) exportData() {
 		return
 	}
 	o := w.current
-	w.saveFileDialog("results.csv", ".csv", func(path string) {
+	w.saveFileDialog(w.dataFileName(), ".csv", func(path string) {
 		if err := run.SaveCSV(path, o); err != nil {
 			w.showError(err)
 			return
 		}
 		w.setStatus("Data saved to "+path, false)
 	})
+}
+
+// dataFileName is the name offered for the results as CSV: "results.csv",
+// or, when the figure shows a run with slider values that the model does
+// not have, a name that gives them, such as "results-sliders-k=2.787.csv".
+func (w *mainWindow) dataFileName() string {
+	if !w.tune.tuned {
+		return "results.csv"
+	}
+	name := "results-sliders"
+	for _, k := range w.tune.knobs {
+		if k.Value != k.Model {
+			name += "-" + strings.ReplaceAll(k.Label(), " ", "_") + "=" + short(k.Value)
+		}
+	}
+	return name + ".csv"
 }
 
 // saveFileDialog asks for a file to write, adds ext when the name has no

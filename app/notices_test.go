@@ -93,3 +93,24 @@ func TestPreviousRunAfterSliderMoves(t *testing.T) {
 		}
 	})
 }
+
+// Data exported while the figure shows slider values that the model does
+// not have is offered under a name that gives them.
+func TestDataFileNameGivesSliderValues(t *testing.T) {
+	w := openTuneWindow(t, tuneDecayModel())
+	var first *run.Outcome
+	onUI(func() {
+		if got := w.dataFileName(); got != "results.csv" {
+			t.Errorf("with the model's values the name is %q, want results.csv", got)
+		}
+		first = w.current
+		w.tune.rows[knobIndex(t, w.tune, "k")].slider.SetValue(800)
+	})
+	waitFor(t, "the slider's run", func() bool { return w.current != first && w.tune.tuned })
+	onUI(func() {
+		// 0.07·100^0.8 = 2.787 (the slider's log scale, as in TestTuneSliderResimulates).
+		if got, want := w.dataFileName(), "results-sliders-k=2.787.csv"; got != want {
+			t.Errorf("with k moved the name is %q, want %q", got, want)
+		}
+	})
+}
