@@ -192,9 +192,9 @@ type reactionForm struct {
 	// declareRow holds declare, and addParamRow addParams, under the
 	// equation and under the rate fields; each is hidden with its button.
 	declareRow, addParamRow *fyne.Container
-	law        *widget.Select
-	mmForm     *widget.RadioGroup
-	mmField    *field
+	law                     *widget.Select
+	mmForm                  *widget.RadioGroup
+	mmField                 *field
 	// rate holds a field for every key of every law, in registry order;
 	// load shows those the reaction's law reads.
 	rate    map[string]*field
