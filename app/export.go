@@ -33,7 +33,7 @@ func formatExt(f string) string {
 // then for the file, and saves the figure as shown on screen.
 func (w *mainWindow) exportFigure() {
 	if w.current == nil {
-		w.status.SetText("Nothing to export yet: simulate the model first.")
+		w.setStatus("Nothing to export yet: simulate the model first.", false)
 		return
 	}
 	width := widget.NewEntry()
@@ -83,7 +83,7 @@ func (w *mainWindow) exportFigure() {
 				w.showError(err)
 				return
 			}
-			w.status.SetText("Figure saved to " + path)
+			w.setStatus("Figure saved to "+path, false)
 		})
 	}, w.win)
 }
@@ -100,11 +100,11 @@ func positive(s, name string) (float64, error) {
 // exportData saves the results as CSV.
 func (w *mainWindow) exportData() {
 	if w.current == nil {
-		w.status.SetText("Nothing to export yet: simulate the model first.")
+		w.setStatus("Nothing to export yet: simulate the model first.", false)
 		return
 	}
 	o := w.current
-	w.saveFileDialog("results.csv", ".csv", func(path string) {
+	w.saveFileDialog(w.dataFileName(), ".csv", func(path string) {
 		prov, err := w.provenance()
 		if err == nil {
 			err = run.SaveCSV(path, o, prov)
@@ -113,8 +113,24 @@ func (w *mainWindow) exportData() {
 			w.showError(err)
 			return
 		}
-		w.status.SetText("Data saved to " + path + ", its provenance to " + run.ProvenancePath(path))
+		w.setStatus("Data saved to "+path+", its provenance to "+run.ProvenancePath(path), false)
 	})
+}
+
+// dataFileName is the name offered for the results as CSV: "results.csv",
+// or, when the figure shows a run with slider values that the model does
+// not have, a name that gives them, such as "results-sliders-k=2.787.csv".
+func (w *mainWindow) dataFileName() string {
+	if !w.tune.tuned {
+		return "results.csv"
+	}
+	name := "results-sliders"
+	for _, k := range w.tune.knobs {
+		if k.Value != k.Model {
+			name += "-" + strings.NewReplacer(" ", "_", ":", "", "/", "_").Replace(k.Label()) + "=" + short(k.Value)
+		}
+	}
+	return name + ".csv"
 }
 
 // provenance describes the result shown, for its exports: the model in

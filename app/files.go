@@ -91,7 +91,7 @@ func (w *mainWindow) openExample(name string) {
 func (w *mainWindow) newModel() {
 	w.exampleOf = ""
 	w.setModel(&network.Model{Title: "New model"}, "")
-	w.status.SetText("New model. Add reactions under Reactions: type an equation such as “A + B -> C”.")
+	w.setStatus("New model. Add reactions under Reactions: type an equation such as “A + B -> C”.", false)
 	w.ed.SelectTab("Reactions")
 }
 
@@ -160,7 +160,7 @@ func (w *mainWindow) saveTo(path string) {
 	w.addRecent(path)
 	w.removeRecovery()
 	w.updateTitle()
-	w.status.SetText("Saved " + path)
+	w.setStatus("Saved "+path, false)
 }
 
 func (w *mainWindow) saveAs() {
@@ -246,7 +246,7 @@ func (w *mainWindow) autosave() {
 		return
 	}
 	if err := atomicfile.Write(p, b); err == nil {
-		w.status.SetText("Unsaved changes kept in " + p + " at " + time.Now().Format("15:04:05"))
+		w.notice("Unsaved changes kept in " + p + " at " + time.Now().Format("15:04:05"))
 	}
 }
 
@@ -285,6 +285,7 @@ func (w *mainWindow) offerRecovery() {
 		// The restored work exists only in the recovery file until saved;
 		// setModel removed that file, so write it again at once.
 		w.doc.MarkModified()
+		w.updateTitle()
 		w.autosave()
 		w.simulate()
 	}, w.win)

@@ -30,9 +30,9 @@ to declare them in one click.
 
 * **Mass action** — rate = k · product of the reactants (each to the power of
   its coefficient). A reversible reaction also has a reverse constant:
-  rate = k·[reactants] − k_reverse·[products].
-* **Michaelis–Menten** — for one substrate S: rate = Vmax·S/(Km + S), or with
-  an explicit enzyme E: rate = kcat·E·S/(Km + S).
+  ` + "`rate = k·[reactants] − k_reverse·[products]`" + `.
+* **Michaelis–Menten** — for one substrate S: ` + "`rate = Vmax·S/(Km + S)`" + `, or with
+  an explicit enzyme E: ` + "`rate = kcat·E·S/(Km + S)`" + `.
 * **Custom expression** — any formula of species, parameters and time.
   For a reversible reaction it is the net rate.
 

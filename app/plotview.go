@@ -55,7 +55,7 @@ func newPlotView() *plotView {
 		marker:      canvas.NewCircle(color.Transparent),
 		readBg:      canvas.NewRectangle(color.NRGBA{R: 0xff, G: 0xff, B: 0xff, A: 0xe8}),
 		readout:     canvas.NewText("", color.NRGBA{R: 0x20, G: 0x20, B: 0x20, A: 0xff}),
-		placeholder: widget.NewLabel("No results yet. Press Simulate (Ctrl+Enter) to run the model."),
+		placeholder: widget.NewLabel("No results yet. Press Simulate (Ctrl+Return) to run the model."),
 	}
 	v.img.FillMode = canvas.ImageFillStretch
 	v.img.ScaleMode = canvas.ImageScaleFastest

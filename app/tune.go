@@ -424,6 +424,11 @@ func (p *tunePanel) result(_ int, req sliders.Request, o *run.Outcome, err error
 		return
 	}
 	newNames := w.current == nil || !slices.Equal(w.current.Names, o.Names)
+	if w.current != nil && len(w.current.T) > 0 && !p.tuned {
+		// The run at the model's values is the previous run while the
+		// sliders move away from them.
+		w.previous = w.current
+	}
 	w.current = o
 	p.tuned = false
 	for _, k := range req.Knobs {
@@ -435,22 +440,17 @@ func (p *tunePanel) result(_ int, req sliders.Request, o *run.Outcome, err error
 		w.refreshSpecies()
 	}
 	w.redraw()
-	line := fmt.Sprintf("Solved in %s (%d steps)", roundDuration(o.Elapsed), o.Stats.Steps)
-	if err != nil {
-		end := 0.0
-		if len(o.T) > 0 {
-			end = o.T[len(o.T)-1]
-		}
-		line = fmt.Sprintf("The run stopped at t = %s: %s", short(end), plainError(err))
-	}
+	line := fmt.Sprintf("Solved in %s (%d steps).", roundDuration(o.Elapsed), o.Stats.Steps)
 	p.say("", false)
 	if err != nil {
-		p.say(line+".", true)
+		// The reason in full under the sliders, where the text wraps.
+		p.say(stoppedAt(o)+": "+plainError(err), true)
+		line = stoppedLine(o)
 	}
 	if p.tuned {
-		w.status.SetText("Showing the slider values (not yet in the model). " + line + ".")
+		w.setStatus("Showing the slider values (not yet in the model). "+line, err != nil)
 	} else {
-		w.status.SetText("Showing the model's values. " + line + ".")
+		w.setStatus("Showing the model's values. "+line, err != nil)
 	}
 }
 
@@ -499,6 +499,8 @@ func (p *tunePanel) writeBack() {
 // model's new values, and sliders of values no longer in the model go.
 func (p *tunePanel) modelChanged() {
 	p.model = nil // drops the results of solves of the old model
+	// What the information line said was about the model as it was.
+	p.say("", false)
 	m := p.w.doc.Model()
 	kept := p.knobs[:0]
 	for _, k := range p.knobs {

@@ -48,12 +48,16 @@ type mainWindow struct {
 	speciesList  *widget.List
 	shownSpecies []int // indices into current.Names passing the filter
 
-	status    *widget.Label
-	runInfo   *widget.Button // details of the last run
-	counts    *widget.Label
-	progress  *widget.ProgressBar
-	cancelBtn *widget.Button
-	runBtn    *widget.Button
+	status *widget.Label
+	// statusProblem is set while the status line tells of a problem
+	// (a run that failed or stopped, a model that cannot run), which
+	// notices such as the recovery file's do not replace.
+	statusProblem bool
+	runInfo       *widget.Button // details of the last run
+	counts        *widget.Label
+	progress      *widget.ProgressBar
+	cancelBtn     *widget.Button
+	runBtn        *widget.Button
 
 	rerunItem *fyne.MenuItem
 	undoItem  *fyne.MenuItem
@@ -103,7 +107,7 @@ func (w *mainWindow) build() {
 
 	// Right: figure toolbar, figure, species list.
 	w.plot = newPlotView()
-	w.plot.errorText = func(s string) { w.status.SetText(s) }
+	w.plot.errorText = func(s string) { w.setStatus(s, true) }
 	w.plot.OnZoom = func() {}
 	w.plot.OnDrawn = func() {
 		if w.onDrawn != nil {
@@ -141,7 +145,7 @@ func (w *mainWindow) build() {
 			j := w.shownSpecies[id]
 			name := w.current.Names[j]
 			c := o.(*fyne.Container)
-			c.Objects[1].(*swatch).setSlot(j)
+			c.Objects[1].(*swatch).setSlot(run.View{Slots: w.doc.Slots()}.Slot(name, j))
 			chk := c.Objects[0].(*widget.Check)
 			chk.OnChanged = nil
 			chk.SetText(name)
@@ -173,6 +177,20 @@ func (w *mainWindow) build() {
 	main.Offset = 0.4
 	w.win.SetContent(container.NewBorder(nil, statusBar, nil, nil, main))
 	w.buildMenus()
+}
+
+// setStatus puts text in the status line; problem says that it tells of a
+// problem, which notices do not replace (see notice).
+func (w *mainWindow) setStatus(text string, problem bool) {
+	w.status.SetText(text)
+	w.statusProblem = problem
+}
+
+// notice puts text in the status line unless it tells of a problem.
+func (w *mainWindow) notice(text string) {
+	if !w.statusProblem {
+		w.setStatus(text, false)
+	}
 }
 
 func plural(n int, one, many string) string {
@@ -210,12 +228,14 @@ func (w *mainWindow) buildMenus() {
 	file := fyne.NewMenu("File", newItem, openItem, exItem, recentItem, fyne.NewMenuItemSeparator(),
 		saveItem, saveAsItem, fyne.NewMenuItemSeparator(), figItem, csvItem, fyne.NewMenuItemSeparator(), quitItem)
 
+	// Fyne's desktop driver delivers Ctrl+Z and Ctrl+Y as its own undo
+	// and redo shortcuts, never as custom ones, so the items use those.
 	undoItem := fyne.NewMenuItem("Undo", func() { w.doc.Undo() })
 	w.undoItem = undoItem
-	undoItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyZ, Modifier: ctrl}
+	undoItem.Shortcut = &fyne.ShortcutUndo{}
 	redoItem := fyne.NewMenuItem("Redo", func() { w.doc.Redo() })
 	w.redoItem = redoItem
-	redoItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyY, Modifier: ctrl}
+	redoItem.Shortcut = &fyne.ShortcutRedo{}
 	edit := fyne.NewMenu("Edit", undoItem, redoItem)
 
 	simItem := fyne.NewMenuItem("Simulate", w.simulate)
@@ -244,6 +264,8 @@ func (w *mainWindow) buildMenus() {
 		it := it
 		w.win.Canvas().AddShortcut(it.Shortcut, func(fyne.Shortcut) { it.Action() })
 	}
+	// Ctrl+Shift+Z redoes as well, as is common on Linux.
+	w.win.Canvas().AddShortcut(&desktop.CustomShortcut{KeyName: fyne.KeyZ, Modifier: ctrl | fyne.KeyModifierShift}, func(fyne.Shortcut) { w.doc.Redo() })
 	// Enter on the numeric keypad as well.
 	w.win.Canvas().AddShortcut(&desktop.CustomShortcut{KeyName: fyne.KeyEnter, Modifier: ctrl}, func(fyne.Shortcut) { w.simulate() })
 }
@@ -319,7 +341,7 @@ func (w *mainWindow) simulate() {
 	if w.ed.HasErrors() {
 		for _, m := range w.ed.Messages() {
 			if m.Severity == network.Error {
-				w.status.SetText("Cannot simulate yet: " + m.String())
+				w.setStatus("Cannot simulate yet: "+w.ed.Describe(m), true)
 				w.ed.Focus(m.Problem)
 				if w.captureSoon != nil {
 					w.captureSoon()
@@ -335,14 +357,14 @@ func (w *mainWindow) runStarted(int) {
 	w.progress.SetValue(0)
 	w.progress.Show()
 	w.cancelBtn.Show()
-	w.status.SetText("Simulating…")
+	w.setStatus("Simulating…", false)
 }
 
 func (w *mainWindow) runDone(_ int, o *run.Outcome, err error) {
 	w.progress.Hide()
 	w.cancelBtn.Hide()
 	if o == nil {
-		w.status.SetText(plainError(err))
+		w.setStatus(plainError(err), true)
 		return
 	}
 	if w.current != nil && len(w.current.T) > 0 {
@@ -360,13 +382,9 @@ func (w *mainWindow) runDone(_ int, o *run.Outcome, err error) {
 	line := fmt.Sprintf("Solved in %s with %s (%d steps).", roundDuration(o.Elapsed), plainMethod(o), o.Stats.Steps)
 	w.runInfo.Show()
 	if err != nil {
-		end := 0.0
-		if len(o.T) > 0 {
-			end = o.T[len(o.T)-1]
-		}
-		line = fmt.Sprintf("The run stopped at t = %s: %s. Showing the part computed. %s", short(end), plainError(err), line)
+		line = stoppedLine(o) + " " + line
 	}
-	w.status.SetText(line)
+	w.setStatus(line, err != nil)
 	w.refreshSpecies()
 	w.redraw()
 }
@@ -405,7 +423,7 @@ func (w *mainWindow) redraw() {
 	if w.current == nil {
 		return
 	}
-	v := run.View{LogX: w.logX.Checked, LogY: w.logY.Checked, Hidden: w.hidden, Zoom: w.plot.view.Zoom}
+	v := run.View{LogX: w.logX.Checked, LogY: w.logY.Checked, Hidden: w.hidden, Zoom: w.plot.view.Zoom, Slots: w.doc.Slots()}
 	if v.Zoom != nil && (v.LogX != w.plot.view.LogX || v.LogY != w.plot.view.LogY) {
 		v.Zoom = nil // a zoom on one scale means little on the other
 	}
@@ -506,15 +524,49 @@ func plainMethod(o *run.Outcome) string {
 	return o.MethodSummary() + ", a method for systems without very fast reactions"
 }
 
+// stoppedAt says where run o stopped early: "The run stopped at t = 1 of
+// 10".
+func stoppedAt(o *run.Outcome) string {
+	end := 0.0
+	if len(o.T) > 0 {
+		end = o.T[len(o.T)-1]
+	}
+	return fmt.Sprintf("The run stopped at t = %s of %s", short(end), short(o.TEnd))
+}
+
+// stoppedLine says for the status line that run o stopped early, short
+// enough to read there; the information dialog gives the reason in full.
+func stoppedLine(o *run.Outcome) string {
+	return stoppedAt(o) + "; showing the part computed (the information button on the left says why)."
+}
+
 // showRunInfo shows what the last run did: the method and why it was
 // chosen, and the solver's statistics.
 func (w *mainWindow) showRunInfo() {
-	o := w.current
-	if o == nil {
+	text := runInfoText(w.current)
+	if text == "" {
 		return
 	}
+	l := widget.NewLabel(text)
+	l.Wrapping = fyne.TextWrapWord
+	d := dialog.NewCustom("About the last run", "Close", container.NewVScroll(l), w.win)
+	d.Resize(fyne.NewSize(560, 360))
+	d.Show()
+}
+
+// runInfoText is the text of About the last run: first, for a run that
+// stopped early, the reason in full; then the method, why it was chosen,
+// and the solver's statistics.
+func runInfoText(o *run.Outcome) string {
+	if o == nil {
+		return ""
+	}
 	st := o.Stats
-	text := fmt.Sprintf("Method: %s\n", o.MethodSummary())
+	text := ""
+	if o.Err != nil {
+		text = stoppedAt(o) + ".\nWhy: " + plainError(o.Err) + "\n\n"
+	}
+	text += fmt.Sprintf("Method: %s\n", o.MethodSummary())
 	if st.Choice != "" {
 		text += "Why: " + st.Choice + "\n"
 	}
@@ -522,9 +574,5 @@ func (w *mainWindow) showRunInfo() {
 		"Right-hand side evaluations: %d\nJacobian evaluations: %d\nMatrix factorizations: %d\n"+
 		"Steps where a concentration was kept from going negative: %d",
 		roundDuration(o.Elapsed), st.Steps, st.Rejected, st.RHSEvals, st.JacobianEvals, st.Factorizations, st.NonNegFixes)
-	l := widget.NewLabel(text)
-	l.Wrapping = fyne.TextWrapWord
-	d := dialog.NewCustom("About the last run", "Close", container.NewVScroll(l), w.win)
-	d.Resize(fyne.NewSize(560, 360))
-	d.Show()
+	return text
 }

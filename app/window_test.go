@@ -2,6 +2,7 @@ package main
 
 import (
 	"errors"
+	"strings"
 	"sync"
 	"testing"
 	"time"
@@ -95,4 +96,46 @@ func TestPlainError(t *testing.T) {
 			t.Errorf("plainError(%q) = %q, want %q", c.err, got, c.want)
 		}
 	}
+}
+
+// A run that stops early shows the part computed; the status line says
+// where it stopped, and About the last run gives the reason in full,
+// first.
+func TestStoppedRunGivesFullReason(t *testing.T) {
+	a := test.NewTempApp(t)
+	w := newMainWindow(a, true)
+	defer w.win.Close()
+	w.ctrl.Deliver = onUI
+	// 2A -> 3A at rate k·A² with A0 = 1, k = 1: A(t) = 1/(1 − t) grows
+	// without bound at t = 1 (closed form of y' = y², common practice).
+	m := &network.Model{
+		Title:      "runaway",
+		Species:    []network.Species{{Name: "A", Initial: 1}},
+		Parameters: []network.Parameter{{Name: "k", Value: 1}},
+		Reactions: []network.Reaction{{Name: "grow", Equation: "2 A -> 3 A",
+			Rate: network.NewRate(network.MassAction, "k", network.Named("k"))}},
+		Simulation: network.Simulation{TEnd: 10, Output: network.Output{Points: 101}},
+	}
+	onUI(func() {
+		w.setModel(m, "")
+		w.simulate()
+	})
+	waitFor(t, "the run", func() bool { return w.current != nil && !w.ctrl.Running() })
+	onUI(func() {
+		o := w.current
+		if o.Err == nil || len(o.T) < 2 {
+			t.Fatalf("outcome with %d times and error %v, want the part before t = 1 and the reason", len(o.T), o.Err)
+		}
+		if !strings.HasPrefix(w.status.Text, "The run stopped at t = 1 of 10;") {
+			t.Errorf("status line %q", w.status.Text)
+		}
+		text := runInfoText(o)
+		first := strings.SplitN(text, "\n\n", 2)[0]
+		if !strings.Contains(first, plainError(o.Err)) || !strings.HasPrefix(first, "The run stopped at t = 1 of 10") {
+			t.Errorf("About the last run begins %q; want where the run stopped and the full reason %q", first, plainError(o.Err))
+		}
+		if w.plot.outcome != o {
+			t.Error("the figure does not show the part computed")
+		}
+	})
 }

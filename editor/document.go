@@ -24,7 +24,8 @@ const maxHistory = 500
 // snapshot is a whole-model state in the undo history.
 type snapshot struct {
 	model *network.Model
-	desc  string // what the edit that left this state did
+	slots map[string]int // colour slots of the state; see Document.Slots
+	desc  string         // what the edit that left this state did
 	id    int
 }
 
@@ -52,6 +53,11 @@ type Document struct {
 
 	listeners []func()
 	net       *network.Net // the model checked; see Net
+
+	// slots holds the colour slot of every species and assignment, by
+	// name; see Slots. A map is never changed once made, so that
+	// snapshots may share it.
+	slots map[string]int
 }
 
 // NewDocument returns a Document holding m (nil means an empty model), with
@@ -62,7 +68,56 @@ func NewDocument(m *network.Model, path string) *Document {
 	}
 	d := &Document{model: m.Clone(), Path: path}
 	d.next = 1
+	d.slots = nextSlots(nil, d.model, nil)
 	return d
+}
+
+// Slots returns the colour slot (see plotting.Colour) of every species and
+// assignment of the model, by name. A slot belongs to the item: it stays
+// when other items are added, duplicated, deleted or moved, and follows a
+// rename; a new item takes the smallest slot not in use. A model just
+// opened has slots in model order, species first, as figures drawn
+// without a Document (the headless command) colour them. Callers must not
+// change the map.
+func (d *Document) Slots() map[string]int { return d.slots }
+
+// nextSlots returns the colour slots of m, following old: names renamed
+// (old name to new) keep their slot, names gone free theirs, and new
+// names take the smallest free slots in model order.
+func nextSlots(old map[string]int, m *network.Model, renamed map[string]string) map[string]int {
+	names := make([]string, 0, len(m.Species)+len(m.Assignments))
+	for _, s := range m.Species {
+		names = append(names, s.Name)
+	}
+	for _, a := range m.Assignments {
+		names = append(names, a.Name)
+	}
+	slots := make(map[string]int, len(names))
+	used := map[int]bool{}
+	for _, n := range names {
+		from := n
+		for o, nw := range renamed {
+			if nw == n {
+				from = o
+			}
+		}
+		if s, ok := old[from]; ok && !used[s] {
+			slots[n] = s
+			used[s] = true
+		}
+	}
+	free := 0
+	for _, n := range names {
+		if _, ok := slots[n]; ok {
+			continue
+		}
+		for used[free] {
+			free++
+		}
+		slots[n] = free
+		used[free] = true
+	}
+	return slots
 }
 
 // Model returns the current model. Callers must not modify it; make
@@ -91,22 +146,24 @@ func (d *Document) Version() int { return d.id }
 // loaded.
 func (d *Document) Dirty() bool { return d.id != d.savedID }
 
-// MarkSaved records the current state as saved to path.
+// MarkSaved records the current state as saved to path. Saving is not an
+// edit: it calls no OnChange listener, so that what follows edits (slider
+// values going back to the model's, re-runs) does not happen; the caller
+// updates what shows the file's name and state.
 func (d *Document) MarkSaved(path string) {
 	d.Path = path
 	d.savedID = d.id
-	d.notify()
 }
 
 // MarkModified records the current state as not saved, for a model that
-// exists only in memory, such as one restored after a crash.
+// exists only in memory, such as one restored after a crash. Like
+// MarkSaved it calls no OnChange listener.
 func (d *Document) MarkModified() {
 	d.savedID = -1
-	d.notify()
 }
 
-// OnChange registers f to be called after every edit, undo, redo, load and
-// save.
+// OnChange registers f to be called after every edit, undo, redo and load
+// (Replace), but not after MarkSaved or MarkModified.
 func (d *Document) OnChange(f func()) { d.listeners = append(d.listeners, f) }
 
 func (d *Document) notify() {
@@ -120,7 +177,7 @@ func (d *Document) notify() {
 // previous state for Undo under description (shown as "Undo <description>").
 // It reports whether the model changed.
 func (d *Document) Apply(description string, edit func(*network.Model)) bool {
-	return d.apply("", description, edit)
+	return d.apply("", description, edit, nil)
 }
 
 // ApplyMerged is Apply for a stream of small edits to one field, such as
@@ -128,10 +185,12 @@ func (d *Document) Apply(description string, edit func(*network.Model)) bool {
 // seconds apart and with no other edit, undo or redo between them, make a
 // single undo step.
 func (d *Document) ApplyMerged(key, description string, edit func(*network.Model)) bool {
-	return d.apply(key, description, edit)
+	return d.apply(key, description, edit, nil)
 }
 
-func (d *Document) apply(key, description string, edit func(*network.Model)) bool {
+// apply makes an edit; renamed maps old names to new for the colour
+// slots.
+func (d *Document) apply(key, description string, edit func(*network.Model), renamed map[string]string) bool {
 	next := d.model.Clone()
 	edit(next)
 	if reflect.DeepEqual(next, d.model) {
@@ -140,12 +199,13 @@ func (d *Document) apply(key, description string, edit func(*network.Model)) boo
 	now := time.Now()
 	merge := key != "" && key == d.mergeKey && now.Sub(d.mergeTime) < 2*time.Second && len(d.undo) > 0
 	if !merge {
-		d.undo = append(d.undo, snapshot{model: d.model, desc: description, id: d.id})
+		d.undo = append(d.undo, snapshot{model: d.model, slots: d.slots, desc: description, id: d.id})
 		if len(d.undo) > maxHistory {
 			d.undo = append(d.undo[:0:0], d.undo[len(d.undo)-maxHistory:]...)
 		}
 	}
 	d.redo = d.redo[:0]
+	d.slots = nextSlots(d.slots, next, renamed)
 	d.model = next
 	d.id = d.next
 	d.next++
@@ -178,8 +238,8 @@ func (d *Document) Undo() bool {
 	}
 	s := d.undo[len(d.undo)-1]
 	d.undo = d.undo[:len(d.undo)-1]
-	d.redo = append(d.redo, snapshot{model: d.model, desc: s.desc, id: d.id})
-	d.model, d.id = s.model, s.id
+	d.redo = append(d.redo, snapshot{model: d.model, slots: d.slots, desc: s.desc, id: d.id})
+	d.model, d.slots, d.id = s.model, s.slots, s.id
 	d.mergeKey = ""
 	d.notify()
 	return true
@@ -192,8 +252,8 @@ func (d *Document) Redo() bool {
 	}
 	s := d.redo[len(d.redo)-1]
 	d.redo = d.redo[:len(d.redo)-1]
-	d.undo = append(d.undo, snapshot{model: d.model, desc: s.desc, id: d.id})
-	d.model, d.id = s.model, s.id
+	d.undo = append(d.undo, snapshot{model: d.model, slots: d.slots, desc: s.desc, id: d.id})
+	d.model, d.slots, d.id = s.model, s.slots, s.id
 	d.mergeKey = ""
 	d.notify()
 	return true
@@ -206,6 +266,7 @@ func (d *Document) Replace(m *network.Model, path string) {
 		m = &network.Model{}
 	}
 	d.model = m.Clone() // edits compare clones, which leave out file positions
+	d.slots = nextSlots(nil, d.model, nil)
 	d.Path = path
 	d.undo, d.redo = nil, nil
 	d.id = d.next
@@ -232,9 +293,9 @@ func (d *Document) Rename(k Kind, old, new string, everywhere bool) (int, error)
 		return 0, fmt.Errorf("the name %q is already used by a %s", new, owner)
 	}
 	uses := 0
-	d.Apply(fmt.Sprintf("rename %s %s to %s", k, old, new), func(m *network.Model) {
+	d.apply("", fmt.Sprintf("rename %s %s to %s", k, old, new), func(m *network.Model) {
 		uses = renameInModel(m, k, old, new, everywhere)
-	})
+	}, map[string]string{old: new})
 	return uses, nil
 }
 

@@ -185,3 +185,23 @@ func TestUses(t *testing.T) {
 		t.Errorf("uses of k1 = %d, want 2", got)
 	}
 }
+
+// Saving is not an edit: MarkSaved and MarkModified change the unsaved
+// flag without calling the document's change listeners.
+func TestMarkSavedNotifiesNoListener(t *testing.T) {
+	d := NewDocument(enzymeModel(), "")
+	calls := 0
+	d.OnChange(func() { calls++ })
+	d.Apply("edit", func(m *network.Model) { m.Title = "edited" })
+	if calls != 1 || !d.Dirty() {
+		t.Fatalf("after an edit: %d calls, dirty %v; want 1 call and unsaved", calls, d.Dirty())
+	}
+	d.MarkSaved("model.json")
+	if calls != 1 || d.Dirty() || d.Path != "model.json" {
+		t.Errorf("after MarkSaved: %d calls, dirty %v, path %q; want no new call, saved, model.json", calls, d.Dirty(), d.Path)
+	}
+	d.MarkModified()
+	if calls != 1 || !d.Dirty() {
+		t.Errorf("after MarkModified: %d calls, dirty %v; want no new call, unsaved", calls, d.Dirty())
+	}
+}

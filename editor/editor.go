@@ -2,6 +2,7 @@ package editor
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 
 	"fyne.io/fyne/v2"
@@ -52,13 +53,14 @@ type Editor struct {
 	// warnings after every change.
 	OnMessages func(errors, warnings int)
 
-	win      fyne.Window
-	tabs     *container.AppTabs
-	panes    map[string]*rowPane // by section
-	tabOf    map[string]*container.TabItem
-	run      *runForm
-	msgList  *widget.List
-	messages []Message
+	win       fyne.Window
+	tabs      *container.AppTabs
+	panes     map[string]*rowPane // by section
+	tabOf     map[string]*container.TabItem
+	run       *runForm
+	runScroll *container.Scroll // holds run's form
+	msgList   *widget.List
+	messages  []Message
 
 	// pending holds text typed into number and value fields that could not
 	// be taken, by "section/index/field", so it is shown as typed until
@@ -66,6 +68,22 @@ type Editor struct {
 	pending map[string]pendingText
 	// own is true while the editor itself changes the document.
 	own bool
+	// fresh is the row just added, whose mistakes (it is blank) its form
+	// and its row do not show until the next edit.
+	fresh freshRow
+}
+
+// freshRow is a row added at document version version.
+type freshRow struct {
+	section        string
+	index, version int
+}
+
+// isFresh reports whether row i of section was just added and not edited
+// since.
+func (e *Editor) isFresh(section string, i int) bool {
+	f := e.fresh
+	return f.section == section && f.index == i && f.version == e.Doc.Version()
 }
 
 // New returns an editor of doc. Dialogs open over win, which may be nil in
@@ -96,7 +114,8 @@ func New(doc *Document, win fyne.Window) *Editor {
 		e.tabOf[t.section] = item
 		e.tabs.Append(item)
 	}
-	runItem := container.NewTabItem(TabRun, container.NewVScroll(e.run.object()))
+	e.runScroll = container.NewVScroll(e.run.object())
+	runItem := container.NewTabItem(TabRun, e.runScroll)
 	e.tabOf["simulation"] = runItem
 	e.tabs.Append(runItem)
 
@@ -119,7 +138,7 @@ func New(doc *Document, win fyne.Window) *Editor {
 			} else {
 				icon.SetResource(theme.NewErrorThemedResource(theme.ErrorIcon()))
 			}
-			c.Objects[0].(*widget.Label).SetText(describe(m.Problem))
+			c.Objects[0].(*widget.Label).SetText(e.Describe(m))
 		})
 	e.msgList.OnSelected = func(id widget.ListItemID) {
 		if id < len(e.messages) {
@@ -165,8 +184,26 @@ func (e *Editor) HasErrors() bool {
 	return false
 }
 
-// describe writes a problem for the message list, with the section's word.
-func describe(p network.Problem) string {
+// Describe writes a message for people: its place, with the field named
+// by the form's label ("Rate constant") rather than the file's key
+// ("rate.k"), and what is wrong.
+func (e *Editor) Describe(m Message) string {
+	p := m.Problem
+	if p.Field == "rate" {
+		p.Field = "rate.law"
+	}
+	var fields []*field
+	if pane := e.panes[p.Section]; pane != nil {
+		fields = pane.form.fields()
+	} else if p.Section == "simulation" {
+		fields = e.run.fields()
+	}
+	for _, f := range fields {
+		if f.name == p.Field && f.label != "" {
+			p.Field = f.label
+			break
+		}
+	}
 	return p.String()
 }
 
@@ -292,6 +329,9 @@ func (e *Editor) pendingText(section string, index int, fld string) (string, boo
 // rowSeverity is the worst message about row i of section.
 func (e *Editor) rowSeverity(section string, i int) severity {
 	s := sevNone
+	if e.isFresh(section, i) {
+		return s
+	}
 	for _, m := range e.messages {
 		if m.Section == section && m.Index == i {
 			if m.Severity == network.Error {
@@ -303,36 +343,78 @@ func (e *Editor) rowSeverity(section string, i int) severity {
 	return s
 }
 
-// markFields shows the messages about row i of section beside its fields.
+// markFields shows the messages about row i of section under its fields:
+// each message under the first visible input it is about, and a message
+// about no visible input under the first one, so that the form shows every
+// message the Messages list shows. The form is then laid out again, so
+// that each message takes its own lines.
 func (e *Editor) markFields(section string, i int, fields []*field) {
-	for _, f := range fields {
-		var texts []string
-		warn := true
-		for _, m := range e.messages {
-			if m.Section != section || m.Index != i || !fieldMatches(f.name, m.Field) {
-				continue
-			}
-			msg := m.Message
-			if m.Col > 0 {
-				msg = fmt.Sprintf("column %d: %s", m.Col, msg)
-			}
-			texts = append(texts, msg)
-			if m.Severity == network.Error {
-				warn = false
+	texts := make([][]string, len(fields))
+	errs := make([]bool, len(fields))
+	for _, m := range e.messages {
+		if m.Section != section || m.Index != i || e.isFresh(section, i) {
+			continue
+		}
+		at := -1
+		for j, f := range fields {
+			if f.row.Visible() && fieldMatches(f.name, m.Field) {
+				at = j
+				break
 			}
 		}
-		f.setMessage(strings.Join(texts, "\n"), warn)
+		if at < 0 {
+			for j, f := range fields {
+				if f.row.Visible() {
+					at = j
+					break
+				}
+			}
+		}
+		if at < 0 {
+			continue
+		}
+		msg := m.Message
+		if m.Col > 0 {
+			msg = fmt.Sprintf("column %d: %s", m.Col, msg)
+		}
+		texts[at] = append(texts[at], msg)
+		errs[at] = errs[at] || m.Severity == network.Error
+	}
+	for j, f := range fields {
+		f.setMessage(strings.Join(texts[j], "\n"), !errs[j])
+	}
+	var form, scroll fyne.CanvasObject
+	if p := e.panes[section]; p != nil {
+		form, scroll = p.form.object(), p.detail
+	} else if section == "simulation" {
+		form, scroll = e.run.object(), e.runScroll
+	}
+	if form == nil {
+		return
+	}
+	// Lay the form out again, and its scroll, for the new heights. A
+	// wrapped message knows its height only once it has its width: lay out
+	// again while a row is shorter than its content needs.
+	for pass := 0; pass < 3; pass++ {
+		form.Refresh()
+		scroll.Refresh()
+		if !slices.ContainsFunc(fields, (*field).cramped) {
+			break
+		}
 	}
 }
 
 // fieldMatches reports whether a message about field msgField belongs to
-// the input named name. Messages about the whole item go to the name.
+// the input named name. Messages about the whole item go to the name, and
+// messages about the rate as a whole to the rate law.
 func fieldMatches(name, msgField string) bool {
-	if msgField == name {
+	switch msgField {
+	case name:
 		return true
-	}
-	if msgField == "" || msgField == "rate" {
-		return name == "name" || name == "rate.law" && msgField == "rate"
+	case "":
+		return name == "name"
+	case "rate":
+		return name == "rate.law"
 	}
 	return false
 }

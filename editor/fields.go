@@ -75,6 +75,7 @@ func (labelledLayout) Layout(objs []fyne.CanvasObject, size fyne.Size) {
 // about its content under it.
 type field struct {
 	name  string // the model field, as Validate names it ("equation", "rate.k")
+	label string // the form's label, as messages name the field
 	input fyne.Focusable
 	msg   *widget.Label
 	row   *fyne.Container
@@ -88,7 +89,7 @@ func newField(label, name string, input fyne.CanvasObject) *field {
 	l := widget.NewLabel(label)
 	l.Alignment = fyne.TextAlignTrailing
 	l.Truncation = fyne.TextTruncateEllipsis
-	f := &field{name: name, msg: msg,
+	f := &field{name: name, label: label, msg: msg,
 		row: container.New(labelledLayout{}, l, container.NewVBox(input, msg))}
 	if fo, ok := input.(fyne.Focusable); ok {
 		f.input = fo
@@ -115,6 +116,13 @@ func (f *field) setMessage(text string, warning bool) {
 		f.msg.Refresh()
 	}
 	f.msg.Show()
+}
+
+// cramped reports whether the field's row, or its message, is laid out
+// in less height than it needs.
+func (f *field) cramped() bool {
+	return f.row.Visible() && (f.row.Size().Height < f.row.MinSize().Height ||
+		f.msg.Visible() && f.msg.Size().Height < f.msg.MinSize().Height)
 }
 
 func (f *field) setVisible(v bool) {

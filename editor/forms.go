@@ -186,11 +186,15 @@ type reactionForm struct {
 	loads   loader
 	equ     *widget.Entry
 	declare *widget.Button
-	// declareRow holds declare; hidden with it.
-	declareRow *fyne.Container
-	law        *widget.Select
-	mmForm     *widget.RadioGroup
-	mmField    *field
+	// addParams adds the parameters that rate fields name but the model
+	// does not declare.
+	addParams *widget.Button
+	// declareRow holds declare, and addParamRow addParams, under the
+	// equation and under the rate fields; each is hidden with its button.
+	declareRow, addParamRow *fyne.Container
+	law                     *widget.Select
+	mmForm                  *widget.RadioGroup
+	mmField                 *field
 	// rate holds a field for every key of every law, in registry order;
 	// load shows those the reaction's law reads.
 	rate    map[string]*field
@@ -224,10 +228,21 @@ func newReactionForm(ed *Editor) *reactionForm {
 		}
 	})
 	f.declare.Importance = widget.HighImportance
+	f.addParams = widget.NewButtonWithIcon("", theme.ContentAddIcon(), func() {
+		i := f.row
+		names := UndeclaredParameters(ed.Doc.Net(), i)
+		if len(names) > 0 {
+			ed.edit("add parameter "+strings.Join(names, ", "), func(m *network.Model) { declareParameters(m, names) })
+		}
+	})
+	f.addParams.Importance = widget.HighImportance
 	f.declareRow = container.New(labelledLayout{}, widget.NewLabel(""), container.NewHBox(f.declare))
 	f.box.Add(f.declareRow)
 	f.declareRow.Hide()
 	f.declare.Hide()
+	f.addParamRow = container.New(labelledLayout{}, widget.NewLabel(""), container.NewHBox(f.addParams))
+	f.addParamRow.Hide()
+	f.addParams.Hide()
 
 	titles := make([]string, len(network.Laws))
 	for i, l := range network.Laws {
@@ -292,6 +307,8 @@ func newReactionForm(ed *Editor) *reactionForm {
 			f.rate[key] = f.addField(lf.Label, name, e)
 		}
 	}
+
+	f.box.Add(f.addParamRow)
 
 	f.preview = widget.NewLabel("")
 	f.preview.Wrapping = fyne.TextWrapWord
@@ -384,13 +401,22 @@ func (f *reactionForm) load(m *network.Model, i int) {
 		p = "(shown when the equation reads correctly)"
 	}
 	f.preview.SetText(p)
-	if names := Undeclared(net, i); len(names) > 0 {
-		f.declare.SetText(declareLabel(names))
+	species, params := Undeclared(net, i), UndeclaredParameters(net, i)
+	if len(species) > 0 {
+		f.declare.SetText(declareLabel(species))
 		f.declare.Show()
 		f.declareRow.Show()
 	} else {
 		f.declare.Hide()
 		f.declareRow.Hide()
+	}
+	if len(params) > 0 {
+		f.addParams.SetText(addParameterLabel(params))
+		f.addParams.Show()
+		f.addParamRow.Show()
+	} else {
+		f.addParams.Hide()
+		f.addParamRow.Hide()
 	}
 }
 

@@ -3,6 +3,7 @@ package editor
 import (
 	"fmt"
 	"slices"
+	"strings"
 
 	"kinetarium/network"
 )
@@ -141,6 +142,44 @@ func Undeclared(net *network.Net, i int) []string {
 		}
 	}
 	return out
+}
+
+// UndeclaredParameters returns the names that the rate-law fields of
+// reaction i in use give as parameters but that the checked model declares
+// as nothing, in form order.
+func UndeclaredParameters(net *network.Net, i int) []string {
+	cr := net.Reactions[i]
+	if cr.Law == nil {
+		return nil
+	}
+	d := Document{model: net.Model}
+	uses := net.FieldsInUse(i)
+	var out []string
+	for _, f := range cr.Law.Fields() {
+		v := cr.Rate.Arg(f.Key)
+		if f.Kind != network.ParamField || v.Name == "" || !slices.Contains(uses, f.Key) || slices.Contains(out, v.Name) {
+			continue
+		}
+		if _, taken := d.NameTaken(v.Name); !taken {
+			out = append(out, v.Name)
+		}
+	}
+	return out
+}
+
+// declareParameters adds parameters with the given names, value 1 as a
+// new parameter row has, at the end of m's parameters.
+func declareParameters(m *network.Model, names []string) {
+	for _, n := range names {
+		m.Parameters = append(m.Parameters, network.Parameter{Name: n, Value: 1})
+	}
+}
+
+func addParameterLabel(names []string) string {
+	if len(names) == 1 {
+		return "Add parameter " + names[0]
+	}
+	return "Add parameters " + strings.Join(names, ", ")
 }
 
 // declareSpecies adds species with the given names, initial concentration

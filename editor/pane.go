@@ -168,7 +168,11 @@ func (p *rowPane) add() {
 	if at <= 0 {
 		at = p.kind.count(p.ed.Doc.Model())
 	}
-	p.ed.edit("add "+p.kind.noun, func(m *network.Model) { p.kind.add(p.ed.Doc, m, at) })
+	if p.ed.edit("add "+p.kind.noun, func(m *network.Model) { p.kind.add(p.ed.Doc, m, at) }) {
+		// The blank row's mistakes show after its first edit.
+		p.ed.fresh = freshRow{p.kind.section, at, p.ed.Doc.Version()}
+		p.list.Refresh()
+	}
 	p.selectRow(at)
 	p.ed.focusField(p.form.fields()[0])
 }

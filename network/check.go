@@ -1,6 +1,7 @@
 package network
 
 import (
+	"fmt"
 	"math"
 	"sort"
 	"strings"
@@ -87,6 +88,9 @@ type validator struct {
 	usedSp    []bool
 	usedPar   []bool
 	usedAsg   []bool
+	// lawPar marks parameters used as a rate law's constant, whose sign
+	// fieldValue checks; others are used only in expressions.
+	lawPar []bool
 }
 
 type nameRef struct {
@@ -108,7 +112,7 @@ func Check(m *Model) (*Net, ErrorList) {
 	v := &validator{m: m, kinds: map[string]nameRef{}, speciesIx: map[string]int{},
 		paramIx: map[string]int{}, compIx: map[string]int{}, assignIx: map[string]int{},
 		usedSp: make([]bool, len(m.Species)), usedPar: make([]bool, len(m.Parameters)),
-		usedAsg: make([]bool, len(m.Assignments))}
+		usedAsg: make([]bool, len(m.Assignments)), lawPar: make([]bool, len(m.Parameters))}
 	v.net = &Net{Model: m}
 	v.names()
 	v.compartments()
@@ -128,6 +132,9 @@ func Check(m *Model) (*Net, ErrorList) {
 	for i, p := range m.Parameters {
 		if !v.usedPar[i] && isName(p.Name) {
 			v.add(Warning, "parameters", i, p.Name, "", 0, "this parameter is used by no rate law or assignment")
+		}
+		if v.usedPar[i] && !v.lawPar[i] && p.Value < 0 {
+			v.add(Warning, "parameters", i, p.Name, "value", 0, "the value %v is negative; expressions use it, where a negative value may be meant, but check the sign", p.Value)
 		}
 	}
 	m.source.locate(v.problems)
@@ -270,7 +277,7 @@ func (v *validator) reaction(i int) {
 				if ref, ok := v.kinds[t.Species]; ok {
 					errf("equation", t.Col, "%q is a %s, not a species; only species can react", t.Species, sectionWord[ref.section])
 				} else {
-					errf("equation", t.Col, "unknown species %q; declare it under species or fix the name", t.Species)
+					errf("equation", t.Col, "unknown species %q;%s declare it under species or fix the name", t.Species, didYouMean(t.Species, v.speciesIx))
 				}
 			}
 		}
@@ -308,7 +315,7 @@ func (v *validator) reaction(i int) {
 				if f.Missing != "" {
 					errf(field, 0, "%s", f.Missing)
 				} else {
-					errf(field, 0, "%s needs %s; give a parameter name or a number", law.Name(), f.Key)
+					errf(field, 0, "%s is missing; give a parameter name or a number", f.Label)
 				}
 			}
 			continue
@@ -317,7 +324,7 @@ func (v *validator) reaction(i int) {
 			if f.Unused != "" {
 				errf(field, 0, "%s", f.Unused)
 			} else {
-				errf(field, 0, "%s does not use %s; remove it", law.Name(), f.Key)
+				errf(field, 0, "%s is not used by the %s law; remove it", f.Label, law.Title())
 			}
 			continue
 		}
@@ -331,7 +338,7 @@ func (v *validator) reaction(i int) {
 	}
 	sort.Strings(keys)
 	for _, k := range keys {
-		errf("rate."+k, 0, "%s does not use %s; remove it", law.Name(), k)
+		errf("rate."+k, 0, "%s is not used by the %s law; remove it", keyLabel(k), law.Title())
 	}
 	if !fields["expression"] && r.Rate.Expression != "" {
 		errf("rate.expression", 0, "%s does not use an expression; remove it or choose the expression law", law.Name())
@@ -345,35 +352,61 @@ func (v *validator) reaction(i int) {
 	cr.Expr = tree
 }
 
-// fieldValue checks the value of a parameter or species field.
+// keyLabel returns the form's label of a rate-law key, from the first law
+// that reads it, or the key itself when no law does.
+func keyLabel(key string) string {
+	for _, l := range lawTable {
+		for _, f := range l.Fields() {
+			if f.Key == key {
+				return f.Label
+			}
+		}
+	}
+	return key
+}
+
+// fieldValue checks the value of a parameter or species field: a
+// species field names a species; a parameter field is a known parameter
+// or a number, whose value (the parameter's, for a name) is zero or
+// positive, and above zero when the field says so (Field.Positive).
 func (v *validator) fieldValue(i int, item, field string, f Field, val Value) {
 	errf := func(format string, args ...any) {
 		v.add(Error, "reactions", i, item, field, 0, format, args...)
 	}
 	if f.Kind == SpeciesField {
 		if val.Name == "" {
-			errf("%s must name a species, not a number", f.Key)
+			errf("%s must name a species, not a number", f.Label)
 		} else if j, ok := v.speciesIx[val.Name]; ok {
 			v.usedSp[j] = true
 		} else {
-			errf("%s %q is not a species; name the species that catalyses the reaction", f.Key, val.Name)
+			errf("%s %q is not a species; name the species that catalyses the reaction", f.Label, val.Name)
 		}
 		return
 	}
+	expected := "zero or a positive number"
+	if f.Positive {
+		expected = "a positive number"
+	}
+	bad := func(x float64) bool { return x < 0 || f.Positive && x == 0 }
 	if val.Name == "" {
-		if !finite(val.Num) || val.Num < 0 {
-			errf("%s = %v is not allowed; expected zero or a positive number", f.Key, val.Num)
+		if !finite(val.Num) || bad(val.Num) {
+			errf("%s = %v is not allowed; expected %s", f.Label, val.Num, expected)
 		}
 		return
 	}
 	if j, ok := v.paramIx[val.Name]; ok {
 		v.usedPar[j] = true
+		v.lawPar[j] = true
+		// A value that is not finite is the parameter's own error.
+		if x := v.m.Parameters[j].Value; bad(x) {
+			errf("%s uses parameter %q = %v, which is not allowed; expected %s (change the parameter's value or give a number here)", f.Label, val.Name, x, expected)
+		}
 		return
 	}
 	if ref, ok := v.kinds[val.Name]; ok {
-		errf("%q is a %s; %s needs a parameter name or a number", val.Name, sectionWord[ref.section], f.Key)
+		errf("%q is a %s; %s needs a parameter name or a number", val.Name, sectionWord[ref.section], f.Label)
 	} else {
-		errf("unknown parameter %q; declare it under parameters or give a number", val.Name)
+		errf("unknown parameter %q;%s declare it under parameters or give a number", val.Name, didYouMean(val.Name, v.paramIx))
 	}
 }
 
@@ -421,13 +454,56 @@ func (v *validator) expression(section string, i int, item, field, src string, f
 		if ref, ok := v.kinds[name]; ok {
 			errf(col, "%q is a %s; an expression may use species, parameters, assignments and t", name, sectionWord[ref.section])
 		} else {
-			errf(col, "unknown name %q; declare it as a species, parameter or assignment, or fix the name", name)
+			errf(col, "unknown name %q;%s declare it as a species, parameter or assignment, or fix the name", name, didYouMean(name, v.speciesIx, v.paramIx, v.assignIx))
 		}
 	}
 	if len(v.problems) > nerr {
 		return nil
 	}
 	return n
+}
+
+// didYouMean returns ` did you mean "NAME"? Otherwise` for the declared
+// name closest to name by edit distance, when it is at most 2 (and less
+// than the length of name), or "".
+func didYouMean(name string, declared ...map[string]int) string {
+	best, bestD := "", 3
+	for _, ix := range declared {
+		for cand := range ix {
+			d := editDistance(name, cand)
+			if d < bestD || d == bestD && cand < best {
+				best, bestD = cand, d
+			}
+		}
+	}
+	if best == "" || bestD >= len([]rune(name)) {
+		return ""
+	}
+	return fmt.Sprintf(" did you mean %q? Otherwise", best)
+}
+
+// editDistance returns the Levenshtein distance between a and b: the
+// fewest insertions, deletions and substitutions of characters that turn
+// a into b.
+func editDistance(a, b string) int {
+	ra, rb := []rune(a), []rune(b)
+	prev := make([]int, len(rb)+1)
+	cur := make([]int, len(rb)+1)
+	for j := range prev {
+		prev[j] = j
+	}
+	for i := 1; i <= len(ra); i++ {
+		cur[0] = i
+		for j := 1; j <= len(rb); j++ {
+			cost := 1
+			if ra[i-1] == rb[j-1] {
+				cost = 0
+			}
+			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
+		}
+		prev, cur = cur, prev
+	}
+	return prev[len(rb)]
 }
 
 // identCol returns the 1-based column (in characters) of the first whole

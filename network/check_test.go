@@ -51,9 +51,9 @@ func TestValidateTable(t *testing.T) {
 		{"unknown compartment", func(m *Model) { m.Species[0].Compartment = "nucleus" }, "species", "E", "compartment", 0, `unknown compartment "nucleus"; expected one of cell`, Error},
 		{"missing k_reverse", func(m *Model) { m.Reactions[0].Rate = m.Reactions[0].Rate.With("k_reverse", Value{}) }, "reactions", "bind", "rate.k_reverse", 0, "mass_action on a reversible reaction needs k_reverse", Error},
 		{"extra k_reverse", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k_reverse", Number(1)) }, "reactions", "cut", "rate.k_reverse", 0, "reversible reactions only", Error},
-		{"missing k", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Value{}) }, "reactions", "cut", "rate.k", 0, "mass_action needs k", Error},
+		{"missing k", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Value{}) }, "reactions", "cut", "rate.k", 0, "Rate constant is missing", Error},
 		{"unknown parameter", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Named("kk")) }, "reactions", "cut", "rate.k", 0, `unknown parameter "kk"`, Error},
-		{"negative constant", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Number(-1)) }, "reactions", "cut", "rate.k", 0, "k = -1 is not allowed", Error},
+		{"negative constant", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Number(-1)) }, "reactions", "cut", "rate.k", 0, "Rate constant = -1 is not allowed; expected zero or a positive number", Error},
 		{"unknown law", func(m *Model) { m.Reactions[1].Rate.Law = "hill" }, "reactions", "cut", "rate.law", 0, `unknown rate law "hill"; expected one of mass_action, michaelis_menten, expression`, Error},
 		{"missing law", func(m *Model) { m.Reactions[1].Rate = Rate{} }, "reactions", "cut", "rate.law", 0, "rate law is missing", Error},
 		{"mm both", func(m *Model) {
@@ -67,16 +67,16 @@ func TestValidateTable(t *testing.T) {
 		}, "reactions", "cut", "equation", 0, "exactly one substrate", Error},
 		{"mm enzyme not species", func(m *Model) {
 			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "kcat", Named("kcat"), "enzyme", Named("kon"), "km", Number(1))}
-		}, "reactions", "cut", "rate.enzyme", 0, `enzyme "kon" is not a species`, Error},
+		}, "reactions", "cut", "rate.enzyme", 0, `Enzyme "kon" is not a species`, Error},
 		{"mm missing km", func(m *Model) {
 			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "vmax", Number(1))}
-		}, "reactions", "cut", "rate.km", 0, "michaelis_menten needs km", Error},
+		}, "reactions", "cut", "rate.km", 0, "Km is missing", Error},
 		{"mm kcat no enzyme", func(m *Model) {
 			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "kcat", Number(1), "km", Number(1))}
 		}, "reactions", "cut", "rate.enzyme", 0, "needs enzyme", Error},
 		{"mm extra k", func(m *Model) {
 			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "vmax", Number(1), "km", Number(1), "k", Number(2))}
-		}, "reactions", "cut", "rate.k", 0, "michaelis_menten does not use k", Error},
+		}, "reactions", "cut", "rate.k", 0, "Rate constant is not used by the Michaelis–Menten law", Error},
 		{"expr syntax", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kcat*(ES"} }, "reactions", "cut", "rate.expression", 6, "", Error},
 		{"expr unknown name", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kcat*ESS"} }, "reactions", "cut", "rate.expression", 6, `unknown name "ESS"`, Error},
 		{"expr divide by zero", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kcat*ES/0"} }, "reactions", "cut", "rate.expression", 0, "zero", Error},
@@ -84,6 +84,37 @@ func TestValidateTable(t *testing.T) {
 		{"t_end", func(m *Model) { m.Simulation.TEnd = -5 }, "simulation", "", "t_end", 0, "expected a positive end time", Error},
 		{"spacing", func(m *Model) { m.Simulation.Output.Spacing = "geometric" }, "simulation", "", "output.spacing", 0, `expected "linear" or "log"`, Error},
 		{"method", func(m *Model) { m.Simulation.Method = "euler" }, "simulation", "", "method", 0, "expected one of auto, rosenbrock", Error},
+		// A negative rate constant, Vmax or kcat, or a Km that is not
+		// positive, given through a parameter, is an error at the
+		// reaction's field (physical meaning of the constants, common
+		// practice: rates of elementary steps and Michaelis constants are
+		// not negative, and Km = 0 makes vmax·S/(Km + S) 0/0 at S = 0).
+		{"negative parameter as k", func(m *Model) { m.Parameters[2].Value = -3 }, "reactions", "cut", "rate.k", 0, `Rate constant uses parameter "kcat" = -3`, Error},
+		{"negative parameter as k_reverse", func(m *Model) { m.Parameters[1].Value = -0.1 }, "reactions", "bind", "rate.k_reverse", 0, `Reverse constant uses parameter "koff" = -0.1`, Error},
+		{"negative parameter as vmax", func(m *Model) {
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "vmax", Named("kcat"), "km", Number(1))}
+			m.Parameters[2].Value = -2
+		}, "reactions", "cut", "rate.vmax", 0, `Vmax uses parameter "kcat" = -2`, Error},
+		{"negative parameter as kcat", func(m *Model) {
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "kcat", Named("kcat"), "enzyme", Named("E"), "km", Number(1))}
+			m.Parameters[2].Value = -2
+		}, "reactions", "cut", "rate.kcat", 0, `kcat uses parameter "kcat" = -2`, Error},
+		{"zero parameter as km", func(m *Model) {
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "vmax", Number(1), "km", Named("kcat"))}
+			m.Parameters[2].Value = 0
+		}, "reactions", "cut", "rate.km", 0, `Km uses parameter "kcat" = 0, which is not allowed; expected a positive number`, Error},
+		{"zero km", func(m *Model) {
+			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "vmax", Number(1), "km", Number(0))}
+		}, "reactions", "cut", "rate.km", 0, "Km = 0 is not allowed; expected a positive number", Error},
+		// Used only in an expression, a negative parameter may be meant.
+		{"negative parameter in expression", func(m *Model) {
+			m.Reactions[1].Rate = Rate{Law: Expression, Expression: "-kcat*ES"}
+			m.Parameters[2].Value = -2
+		}, "parameters", "kcat", "value", 0, "negative", Warning},
+		// A near miss (edit distance ≤ 2) is suggested.
+		{"did you mean parameter", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Named("kcta")) }, "reactions", "cut", "rate.k", 0, `unknown parameter "kcta"; did you mean "kcat"? Otherwise declare it`, Error},
+		{"did you mean species", func(m *Model) { m.Reactions[1].Equation = "ES -> E + PP" }, "reactions", "cut", "equation", 11, `unknown species "PP"; did you mean "P"?`, Error},
+		{"did you mean in expression", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kact*ES"} }, "reactions", "cut", "rate.expression", 1, `unknown name "kact"; did you mean "kcat"?`, Error},
 		{"unused species", func(m *Model) { m.Species = append(m.Species, Species{Name: "Z"}) }, "species", "Z", "", 0, "takes part in no reaction", Warning},
 		{"unused parameter", func(m *Model) { m.Parameters = append(m.Parameters, Parameter{Name: "spare", Value: 1}) }, "parameters", "spare", "", 0, "used by no rate law", Warning},
 	}
@@ -101,6 +132,46 @@ func TestValidateTable(t *testing.T) {
 		if !found {
 			t.Errorf("%s: want %s %q %s col %d %q; got %v", c.name, c.section, c.item, c.field, c.col, c.want, ps)
 		}
+	}
+}
+
+// A negative parameter used only in a rate expression is a warning, not
+// an error: the model can still be simulated.
+func TestNegativeParameterInExpressionOnlyWarns(t *testing.T) {
+	m := baseModel()
+	m.Reactions[1].Rate = Rate{Law: Expression, Expression: "-kcat*ES"}
+	m.Parameters[2].Value = -2
+	if errs := m.Validate().Errors(); len(errs) > 0 {
+		t.Errorf("errors %v, want none", errs)
+	}
+	// The same parameter as a mass-action constant as well is an error at
+	// that reaction, and no longer only a warning.
+	m.Reactions[0].Rate = m.Reactions[0].Rate.With("k", Named("kcat"))
+	l := m.Validate()
+	if len(l.Errors()) != 1 || l.Errors()[0].Item != "bind" {
+		t.Errorf("got %v, want one error, at reaction bind", l)
+	}
+	for _, p := range l.Warnings() {
+		if p.Item == "kcat" {
+			t.Errorf("warning %v besides the error", p)
+		}
+	}
+}
+
+// Edit distances of textbook pairs (Levenshtein's definition; "kitten" to
+// "sitting" is 3, the standard example), and no suggestion for a name far
+// from every declared one.
+func TestEditDistance(t *testing.T) {
+	for _, c := range []struct {
+		a, b string
+		d    int
+	}{{"kitten", "sitting", 3}, {"kcta", "kcat", 2}, {"", "abc", 3}, {"Km", "Km", 0}, {"flaw", "lawn", 2}} {
+		if got := editDistance(c.a, c.b); got != c.d {
+			t.Errorf("editDistance(%q, %q) = %d, want %d", c.a, c.b, got, c.d)
+		}
+	}
+	if s := didYouMean("zzzz", map[string]int{"kcat": 0}); s != "" {
+		t.Errorf("suggestion %q for a name far from every other", s)
 	}
 }
 

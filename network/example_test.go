@@ -64,5 +64,5 @@ func ExampleModel_Validate() {
 		fmt.Println(p)
 	}
 	// Output:
-	// enzyme.json:7:45: reaction "bind", equation, column 11: unknown species "EQ"; declare it under species or fix the name
+	// enzyme.json:7:45: reaction "bind", equation, column 11: unknown species "EQ"; did you mean "E"? Otherwise declare it under species or fix the name
 }

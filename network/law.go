@@ -42,7 +42,7 @@ type FieldKind int
 
 // Field kinds.
 const (
-	ParamField   FieldKind = iota // a parameter name or a number ≥ 0
+	ParamField   FieldKind = iota // a parameter name or a number ≥ 0 (> 0 when Positive)
 	SpeciesField                  // a species name
 	ExprField                     // expression text (Rate.Expression)
 )
@@ -58,6 +58,10 @@ type Field struct {
 	// Unused is the message when the field is given but this reaction does
 	// not use it; "" gives a generic one.
 	Unused string
+	// Positive says that zero is not meaningful either: the value of a
+	// ParamField, given as a number or through a parameter, must be
+	// above zero (a Michaelis constant).
+	Positive bool
 }
 
 // lawTable is the registry of rate laws, in the order menus show them.

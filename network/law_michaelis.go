@@ -17,7 +17,7 @@ func (michaelisMenten) Fields() []Field {
 			Missing: "michaelis_menten with an enzyme needs kcat, the turnover number"},
 		{Key: "enzyme", Label: "Enzyme", Kind: SpeciesField,
 			Missing: "michaelis_menten with kcat needs enzyme, the species that catalyses the reaction"},
-		{Key: "km", Label: "Km", Kind: ParamField},
+		{Key: "km", Label: "Km", Kind: ParamField, Positive: true},
 	}
 }
 

@@ -1,8 +1,10 @@
 package run
 
 import (
+	"fmt"
 	"image"
 	"math"
+	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
@@ -29,6 +31,19 @@ type View struct {
 	PreviousLabel string
 	// Zoom, when not nil, is the part of the data shown.
 	Zoom *Range
+	// Slots gives series their colour slots (see plotting.Colour) by
+	// name, so that a species keeps its colour when others are added,
+	// removed or moved (editor.Document.Slots); series not in it, and all
+	// when it is nil, take their position.
+	Slots map[string]int
+}
+
+// Slot returns the colour slot of series j, named name.
+func (v View) Slot(name string, j int) int {
+	if s, ok := v.Slots[name]; ok {
+		return s
+	}
+	return j
 }
 
 // Trajectories returns the outcome as plotting's series, with the state
@@ -38,8 +53,8 @@ func (o *Outcome) Trajectories() plotting.Trajectories {
 	return plotting.Trajectories{Times: e.T, Names: e.Names, Values: e.Y}
 }
 
-// Figure draws the outcome with the view. Each species keeps the colour of
-// its position in the model, whichever species are hidden.
+// Figure draws the outcome with the view. Each series keeps the colour of
+// its slot (View.Slot), whichever series are hidden.
 func Figure(o *Outcome, v View) (*plot.Plot, error) {
 	opt := plotting.Options{
 		Title:  o.Title,
@@ -51,18 +66,27 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 	}
 	for j, n := range o.Names {
 		opt.Visible[j] = !v.Hidden[n]
-		opt.ColourIndex[j] = j
+		opt.ColourIndex[j] = v.Slot(n, j)
 	}
 	if v.Previous != nil && len(v.Previous.T) > 0 {
 		prev := v.Previous.Trajectories()
 		opt.Overlay = &prev
 		opt.OverlayLabel = v.PreviousLabel
 	}
+	stopped := o.Err != nil && len(o.T) > 0 && o.T[len(o.T)-1] < o.TEnd
+	if stopped {
+		opt.Title += fmt.Sprintf("\n(the run stopped at t = %s of %s; the part computed is shown)",
+			strconv.FormatFloat(o.T[len(o.T)-1], 'g', 4, 64), strconv.FormatFloat(o.TEnd, 'g', 4, 64))
+	}
 	tr := o.Trajectories()
 	if v.LogX {
-		// Time 0 has no place on a log axis; leave it out quietly rather
-		// than have every figure note it.
-		tr = positiveTimes(tr)
+		// Time 0 has no place on a log axis. On a log-spaced grid it is
+		// the only such time and expected to go: leave it out quietly
+		// rather than have every figure note it. Otherwise the figure
+		// notes it.
+		if o.LogGrid {
+			tr = positiveTimes(tr)
+		}
 		if opt.Overlay != nil {
 			prev := positiveTimes(*opt.Overlay)
 			opt.Overlay = &prev
@@ -71,6 +95,13 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 	p, err := plotting.TrajectoryPlot(tr, opt)
 	if err != nil {
 		return nil, err
+	}
+	if stopped && !v.LogX {
+		// The time axis a complete run would have, so that the figure
+		// shows how far the run got.
+		p.X.Min, p.X.Max = math.Min(o.T[0], 0), o.TEnd
+	} else if stopped && o.TEnd > p.X.Max {
+		p.X.Max = o.TEnd
 	}
 	if z := v.Zoom; z != nil && validRange(z, v) {
 		p.X.Min, p.X.Max = z.XMin, z.XMax

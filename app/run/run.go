@@ -38,6 +38,13 @@ type Outcome struct {
 	// Err is the reason the solve stopped early, or nil. T and Y then hold
 	// the part computed before it stopped.
 	Err error
+	// TEnd is the end time asked for; a run that stopped early ends
+	// before it.
+	TEnd float64
+	// LogGrid reports that the output times were spaced logarithmically
+	// (the model's output spacing "log"), so that time 0 is expected to
+	// be left out on a log time axis.
+	LogGrid bool
 }
 
 // Run compiles m and integrates it from time 0 to the model's end time.
@@ -75,6 +82,8 @@ func NewOutcome(m *network.Model, sys *network.System, res *solve.Result, err er
 		Names:   append(append([]string(nil), species...), asg...),
 		Species: len(species),
 	}
+	sim := m.Simulation.WithDefaults()
+	out.TEnd, out.LogGrid = sim.TEnd, sim.Output.Spacing == "log"
 	if res != nil {
 		out.T, out.Y, out.Stats = res.T, res.Y, res.Stats
 		out.Events, out.Jumps = res.Events, res.Jumps
