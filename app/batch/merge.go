@@ -14,6 +14,7 @@ import (
 	"path/filepath"
 	"regexp"
 	"strconv"
+	"time"
 
 	"gonum.org/v1/plot"
 
@@ -123,7 +124,14 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 		if p.Format != PartFormat || p.Meta == nil {
 			return badInput(fmt.Errorf("%s: format: expected %q with meta and result, got %q", f, PartFormat, p.Format))
 		}
-		mj, _ := json.Marshal(p.Meta)
+		// Parts are written at different times: compare all but that.
+		same := *p.Meta
+		if same.Provenance != nil {
+			pv := *same.Provenance
+			pv.Exported = time.Time{}
+			same.Provenance = &pv
+		}
+		mj, _ := json.Marshal(&same)
 		if meta == nil {
 			meta, metaJSON = p.Meta, mj
 		} else if !bytes.Equal(mj, metaJSON) {
