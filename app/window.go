@@ -506,6 +506,26 @@ func plainMethod(o *run.Outcome) string {
 	return o.MethodSummary() + ", a method for systems without very fast reactions"
 }
 
+// runInfoText is the information dialog's text. Its first line, where a
+// user looks first, names the method and, when it was chosen
+// automatically, why.
+func runInfoText(o *run.Outcome) string {
+	st := o.Stats
+	text := "Method: " + o.MethodSummary()
+	if st.Choice != "" {
+		// Choice reads "<method>: <reason>"; the method is named already.
+		why := st.Choice
+		if _, after, ok := strings.Cut(why, ": "); ok {
+			why = after
+		}
+		text += ", chosen automatically: " + why
+	}
+	return text + fmt.Sprintf("\n\nTime taken: %s\nSteps: %d (%d redone with a smaller step)\n"+
+		"Right-hand side evaluations: %d\nJacobian evaluations: %d\nMatrix factorizations: %d\n"+
+		"Steps where a concentration was kept from going negative: %d",
+		roundDuration(o.Elapsed), st.Steps, st.Rejected, st.RHSEvals, st.JacobianEvals, st.Factorizations, st.NonNegFixes)
+}
+
 // showRunInfo shows what the last run did: the method and why it was
 // chosen, and the solver's statistics.
 func (w *mainWindow) showRunInfo() {
@@ -513,16 +533,7 @@ func (w *mainWindow) showRunInfo() {
 	if o == nil {
 		return
 	}
-	st := o.Stats
-	text := fmt.Sprintf("Method: %s\n", o.MethodSummary())
-	if st.Choice != "" {
-		text += "Why: " + st.Choice + "\n"
-	}
-	text += fmt.Sprintf("\nTime taken: %s\nSteps: %d (%d redone with a smaller step)\n"+
-		"Right-hand side evaluations: %d\nJacobian evaluations: %d\nMatrix factorizations: %d\n"+
-		"Steps where a concentration was kept from going negative: %d",
-		roundDuration(o.Elapsed), st.Steps, st.Rejected, st.RHSEvals, st.JacobianEvals, st.Factorizations, st.NonNegFixes)
-	l := widget.NewLabel(text)
+	l := widget.NewLabel(runInfoText(o))
 	l.Wrapping = fyne.TextWrapWord
 	d := dialog.NewCustom("About the last run", "Close", container.NewVScroll(l), w.win)
 	d.Resize(fyne.NewSize(560, 360))
