@@ -44,7 +44,7 @@ render-check: test-deps
 # Work-precision report and the benchmarks of every package.
 bench:
 	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/...
-	$(GO) run ./internal/workprecision -out bench/out
+	$(GO) run ./internal/workprecision -out bench
 
 FUZZTIME ?= 30s
 fuzz:

@@ -555,8 +555,9 @@ func (w *mainWindow) showRunInfo() {
 }
 
 // runInfoText is the text of About the last run: first, for a run that
-// stopped early, the reason in full; then the method, why it was chosen,
-// and the solver's statistics.
+// stopped early, the reason in full; then, where a user looks first, the
+// method and, when it was chosen automatically, why; then the solver's
+// statistics.
 func runInfoText(o *run.Outcome) string {
 	if o == nil {
 		return ""
@@ -566,11 +567,16 @@ func runInfoText(o *run.Outcome) string {
 	if o.Err != nil {
 		text = stoppedAt(o) + ".\nWhy: " + plainError(o.Err) + "\n\n"
 	}
-	text += fmt.Sprintf("Method: %s\n", o.MethodSummary())
+	text += "Method: " + o.MethodSummary()
 	if st.Choice != "" {
-		text += "Why: " + st.Choice + "\n"
+		// Choice reads "<method>: <reason>"; the method is named already.
+		why := st.Choice
+		if _, after, ok := strings.Cut(why, ": "); ok {
+			why = after
+		}
+		text += ", chosen automatically: " + why
 	}
-	text += fmt.Sprintf("\nTime taken: %s\nSteps: %d (%d redone with a smaller step)\n"+
+	text += fmt.Sprintf("\n\nTime taken: %s\nSteps: %d (%d redone with a smaller step)\n"+
 		"Right-hand side evaluations: %d\nJacobian evaluations: %d\nMatrix factorizations: %d\n"+
 		"Steps where a concentration was kept from going negative: %d",
 		roundDuration(o.Elapsed), st.Steps, st.Rejected, st.RHSEvals, st.JacobianEvals, st.Factorizations, st.NonNegFixes)

@@ -76,11 +76,11 @@ const autoRadauRTol = 1e-9
 //
 // Measured on HIRES and POLLU (internal/workprecision, and the CVODE
 // comparison in bench/cvode-comparison.md): at rtol 1e-6 to 1e-8 the
-// variable-order BDF reaches the Test Set's reference to a scaled error of
-// 0.4–9.4 with 61–121 LU factorizations, fewer than CVODE's BDF needs for
-// a larger error, and in the least wall time of our methods. At tighter
-// tolerances its error grows (151 on HIRES at 1e-10) while Radau IIA stays
-// within 10 of the tolerance, so Radau takes over there. RODAS4 is the
+// calibrated variable-order BDF reaches the Test Set's reference to a
+// scaled error of 0.1–2.7 with 48–94 LU factorizations, and in the least
+// wall time of our methods. At tighter tolerances its error grows (49 on
+// HIRES at 1e-10) while Radau IIA stays within 10 of the tolerance, so
+// Radau takes over there. RODAS4 is the
 // fallback when neither is built in.
 func (sv *Solver) stiffStepper() (stepper, Method, string) {
 	switch {

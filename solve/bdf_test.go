@@ -15,17 +15,50 @@ func TestBDFClosedForms(t *testing.T) { checkClosedForms(t, newBDFStepper, 100) 
 
 // TestBDFTestset checks BDF on HIRES and POLLU against the reference
 // solutions of the Test Set for IVP Solvers (Mazzia & Magherini, Univ. Bari,
-// release 2.4): scaled error at most 100 at rtol 1e-6 and 1e-8. At rtol
-// 1e-10 the bound is 1000: variable-order multistep codes lose about a digit
-// there (CVODE's BDF measures 297 on HIRES at 1e-10, as the brief records),
-// so we ask for no worse than a few times that.
+// release 2.4): scaled error at most 10 at rtol 1e-6 and 1e-8, the bound of
+// issue 16 (measured 0.1–1.9 with bdfCalibrated; before it, 9.4 on HIRES at
+// 1e-8). At rtol 1e-10 the bound is 100: variable-order multistep codes lose
+// about a digit there (CVODE's BDF measures 297 on HIRES at 1e-10 in
+// bench/cvode-comparison.md; ours measures 49).
 func TestBDFTestset(t *testing.T) {
 	checkTestset(t, newBDFStepper, []float64{1e-6, 1e-8, 1e-10}, func(rtol float64) float64 {
 		if rtol < 1e-9 {
-			return 1000
+			return 100
 		}
-		return 100
+		return 10
 	})
+}
+
+// TestBDFControllers runs HIRES and POLLU (Test Set for IVP Solvers,
+// release 2.4) with the calibrated controller and with the unbiased one it
+// replaced, at rtol 1e-6 and 1e-8. The calibrated one must factorize less
+// (it keeps h unless the step can grow by 1.5; measured 12–44% fewer) and
+// reach the reference within 10 of the tolerance; the unbiased one is
+// logged for comparison. The wall-time comparison at equal accuracy is in
+// README (internal/workprecision), not in a timed test.
+func TestBDFControllers(t *testing.T) {
+	for _, c := range testsetCases() {
+		for _, rtol := range []float64{1e-6, 1e-8} {
+			var lu [2]int
+			for i, ctl := range []bdfControl{bdfCalibrated, bdfUnbiased} {
+				mk := func(p *problem) stepper { return newBDFKappa(p, bdfKappa, ctl) }
+				y, st, err := runStepper(mk, c.sys, 0, c.tEnd, c.y0, Settings{RTol: rtol, ATol: c.atol, NonNegative: true})
+				if err != nil {
+					t.Fatalf("%s rtol %g: %v", c.name, rtol, err)
+				}
+				sc := scaledError(y, c.ref, rtol, c.atol)
+				lu[i] = st.Factorizations
+				t.Logf("%s rtol %g %s: scaled error %.3g, %d steps, %d rejected, %d factorizations",
+					c.name, rtol, []string{"calibrated", "unbiased"}[i], sc, st.Steps, st.Rejected, st.Factorizations)
+				if i == 0 && sc > 10 {
+					t.Errorf("%s rtol %g: calibrated scaled error %.3g > 10", c.name, rtol, sc)
+				}
+			}
+			if lu[0] >= lu[1] {
+				t.Errorf("%s rtol %g: calibrated controller factorized %d times, unbiased %d", c.name, rtol, lu[0], lu[1])
+			}
+		}
+	}
 }
 
 // TestBDFKappaChoice compares the NDFs (κ of Shampine & Reichelt 1997) with
@@ -39,7 +72,7 @@ func TestBDFKappaChoice(t *testing.T) {
 			name  string
 			kappa [bdfMaxOrder + 1]float64
 		}{{"NDF", bdfKappa}, {"BDF", [bdfMaxOrder + 1]float64{}}} {
-			mk := func(p *problem) stepper { return newBDFKappa(p, v.kappa) }
+			mk := func(p *problem) stepper { return newBDFKappa(p, v.kappa, bdfCalibrated) }
 			y, st, err := runStepper(mk, c.sys, 0, c.tEnd, c.y0, Settings{RTol: rtol, ATol: c.atol, NonNegative: true})
 			if err != nil {
 				t.Fatalf("%s %s: %v", c.name, v.name, err)
@@ -84,7 +117,7 @@ func TestBDFOrder(t *testing.T) {
 func bdfFixedRun(k int, h float64, nsteps int) (float64, error) {
 	var stats Stats
 	p := newProblem(forcedDecay, Settings{RTol: 1e-13, ATol: 1e-15}, &stats)
-	b := newBDFKappa(p, bdfKappa)
+	b := newBDFKappa(p, bdfKappa, bdfCalibrated)
 	if err := b.start(0, []float64{forcedDecayExact(0)}, h); err != nil {
 		return 0, err
 	}

@@ -3,14 +3,21 @@
 // work-precision report: a Markdown table and log–log figures of error
 // against wall time and against LU factorizations.
 //
-// It is run by `make bench`:
+// It is run by `make bench`, which writes bench/workprecision.md and the
+// figures beside it:
 //
-//	go run ./internal/workprecision -out bench/out
+//	go run ./internal/workprecision -out bench
+//
+// With -quick it measures BDF and Auto at rtol 1e-6 and 1e-8 only and
+// prints the rows (a minute instead of many; nothing is written unless
+// -out is given).
 //
 // Reference solutions: HIRES and POLLU from the Test Set for IVP Solvers
 // (F. Mazzia and C. Magherini, University of Bari, release 2.4); the
-// generated 200-species network against Radau IIA at rtol 1e-12 (the same
-// code's tightest setting, so that row checks consistency, not truth).
+// 50-species cascade of examples/ and the generated 200-species network
+// against Radau IIA at rtol 1e-12 (the same code's tightest setting, so
+// those rows check consistency, not truth; TestReferences checks that
+// Rosenbrock at rtol 1e-11 agrees with them).
 package main
 
 import (
@@ -24,6 +31,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"slices"
+	"strconv"
 	"strings"
 	"time"
 
@@ -36,13 +44,16 @@ import (
 	"kinetarium/solve"
 )
 
-// problem is one test problem with its reference state at TEnd.
+// problem is one test problem with its reference states at the output
+// times: the end time alone for the Test Set problems (their references
+// give no more), a log-spaced grid over the whole run for the networks.
 type problem struct {
-	name string
-	sys  *network.System
-	tEnd float64
-	atol float64
-	ref  []float64
+	name  string
+	sys   *network.System
+	tEnd  float64
+	atol  float64
+	times []float64
+	ref   [][]float64
 }
 
 // row is one measured point of the report.
@@ -50,7 +61,8 @@ type row struct {
 	problem      string
 	method       solve.Method
 	rtol         float64
-	err          float64 // scaled error max |y−ref|/(atol+rtol|ref|)
+	err          float64 // scaled error max |y−ref|/(atol+rtol|ref|) over the output times
+	errEnd       float64 // the same at the end time alone
 	relErr       float64 // max |y−ref|/|ref| over components with |ref| > 1000·atol
 	wall         time.Duration
 	stats        solve.Stats
@@ -59,32 +71,61 @@ type row struct {
 }
 
 func main() {
-	out := flag.String("out", "bench/out", "folder for the report and figures")
+	out := flag.String("out", "", "folder for the report and figures (make bench: bench)")
 	repeat := flag.Int("repeat", 5, "solves per point; the median wall time is reported")
+	quick := flag.Bool("quick", false, "BDF and Auto at rtol 1e-6 and 1e-8 only")
+	only := flag.String("methods", "", "comma-separated methods to measure instead (auto, rosenbrock, radau, bdf, explicit)")
+	rtolList := flag.String("rtols", "", "comma-separated relative tolerances to measure instead")
 	flag.Parse()
-	if err := run(*out, *repeat); err != nil {
+	if err := run(*out, *repeat, *quick, *only, *rtolList); err != nil {
 		fmt.Fprintln(os.Stderr, "workprecision:", err)
 		os.Exit(1)
 	}
 }
 
-func run(out string, repeat int) error {
+func run(out string, repeat int, quick bool, only, rtolList string) error {
 	probs, err := problems()
 	if err != nil {
 		return err
 	}
 	methods := []solve.Method{solve.Auto, solve.Rosenbrock, solve.Radau, solve.BDF, solve.Explicit}
 	rtols := []float64{1e-4, 1e-5, 1e-6, 1e-7, 1e-8, 1e-9, 1e-10}
+	if quick {
+		methods = []solve.Method{solve.BDF, solve.Auto}
+		rtols = []float64{1e-6, 1e-8}
+	}
+	if rtolList != "" {
+		rtols = nil
+		for _, f := range strings.Split(rtolList, ",") {
+			x, err := strconv.ParseFloat(f, 64)
+			if err != nil {
+				return fmt.Errorf("-rtols: %w", err)
+			}
+			rtols = append(rtols, x)
+		}
+	}
+	if only != "" {
+		methods = nil
+		for _, m := range strings.Split(only, ",") {
+			if m == "auto" {
+				m = ""
+			}
+			methods = append(methods, solve.Method(m))
+		}
+	}
 	var rows []row
 	for _, p := range probs {
 		for _, m := range methods {
 			for _, rt := range rtols {
 				r := measure(p, m, rt, repeat)
 				rows = append(rows, r)
-				fmt.Fprintf(os.Stderr, "%-8s %-10s rtol %.0e: err %8.3g  %9.3f ms  %5d steps %5d LU %s\n",
-					p.name, name(m), rt, r.err, float64(r.wall.Microseconds())/1000, r.stats.Steps, r.stats.Factorizations, r.failed)
+				fmt.Fprintf(os.Stderr, "%-8s %-10s rtol %.0e: scaled error end %8.3g run %8.3g  %9.3f ms  %5d steps %5d LU %s\n",
+					p.name, name(m), rt, r.errEnd, r.err, float64(r.wall.Microseconds())/1000, r.stats.Steps, r.stats.Factorizations, r.failed)
 			}
 		}
+	}
+	if out == "" {
+		return nil
 	}
 	if err := os.MkdirAll(out, 0o755); err != nil {
 		return err
@@ -109,8 +150,12 @@ func name(m solve.Method) string {
 	return string(m)
 }
 
-// problems loads HIRES and POLLU from network/testdata and generates the
-// 200-species network.
+// root is the module's root folder, relative to the working directory:
+// "." for `go run ./internal/workprecision`, "../.." for its test.
+var root = "."
+
+// problems loads HIRES and POLLU from network/testdata and the 50-species
+// cascade from examples/, and generates the 200-species network.
 func problems() ([]problem, error) {
 	var ps []problem
 	for _, f := range []struct {
@@ -130,7 +175,7 @@ func problems() ([]problem, error) {
 			0.2087162882798630e-3, 0.1396921016840158e-4, 0.8964884856898295e-2, 0.4352846369330103e-17,
 			0.6899219696263405e-2, 0.1007803037365946e-3, 0.1772146513969984e-5, 0.5682943292316392e-4}},
 	} {
-		m, err := network.Load(f.file)
+		m, err := network.Load(filepath.Join(root, f.file))
 		if err != nil {
 			return nil, err
 		}
@@ -138,20 +183,47 @@ func problems() ([]problem, error) {
 		if err != nil {
 			return nil, err
 		}
-		ps = append(ps, problem{f.name, sys, f.tEnd, f.atol, f.ref})
+		ps = append(ps, problem{f.name, sys, f.tEnd, f.atol, []float64{f.tEnd}, [][]float64{f.ref}})
 	}
-	sys, err := network.Compile(generated(50))
+	m, err := network.Load(filepath.Join(root, "examples/signalling-cascade-50.json"))
+	if err != nil {
+		return nil, err
+	}
+	sys, err := network.Compile(m)
+	if err != nil {
+		return nil, err
+	}
+	// The example's own end time and atol (its simulation block).
+	c := problem{name: "CASC50", sys: sys, tEnd: 7200, atol: 1e-10, times: solve.LogTimes(1e-3, 7200, 200)}
+	if c.ref, err = reference(c, solve.Radau, 1e-12); err != nil {
+		return nil, fmt.Errorf("reference for the 50-species cascade: %w", err)
+	}
+	sys, err = network.Compile(generated(50))
 	if err != nil {
 		return nil, fmt.Errorf("generated network: %w", err)
 	}
-	g := problem{name: "NET200", sys: sys, tEnd: 1000, atol: 1e-12}
-	res, err := solve.Solve(context.Background(), sys, 0, g.tEnd, sys.Initial(),
-		solve.Settings{Method: solve.Radau, RTol: 1e-12, ATol: 1e-16, Times: []float64{g.tEnd}, NonNegative: true})
-	if err != nil {
+	g := problem{name: "NET200", sys: sys, tEnd: 1000, atol: 1e-12, times: solve.LogTimes(1e-3, 1000, 200)}
+	if g.ref, err = reference(g, solve.Radau, 1e-12); err != nil {
 		return nil, fmt.Errorf("reference for the generated network: %w", err)
 	}
-	g.ref = slices.Clone(res.Y[len(res.Y)-1])
-	return append(ps, g), nil
+	return append(ps, c, g), nil
+}
+
+// reference solves p with method m at rtol and atol 1e-16 and returns the
+// states at p.times. The integrator lands on every output time (StopTimes),
+// so that the reference is a step's end point, not an interpolated value.
+func reference(p problem, m solve.Method, rtol float64) ([][]float64, error) {
+	stops := slices.DeleteFunc(slices.Clone(p.times), func(t float64) bool { return t <= 0 || t >= p.tEnd })
+	res, err := solve.Solve(context.Background(), p.sys, 0, p.tEnd, p.sys.Initial(),
+		solve.Settings{Method: m, RTol: rtol, ATol: 1e-16, Times: p.times, StopTimes: stops, NonNegative: true})
+	if err != nil {
+		return nil, err
+	}
+	ref := make([][]float64, len(res.Y))
+	for i, y := range res.Y {
+		ref[i] = slices.Clone(y)
+	}
+	return ref, nil
 }
 
 // generated builds a stiff signalling-like network of 4·modules species:
@@ -196,7 +268,7 @@ func generated(modules int) *network.Model {
 // median wall time, the stats of the last solve and the scaled error.
 func measure(p problem, m solve.Method, rtol float64, repeat int) row {
 	r := row{problem: p.name, method: m, rtol: rtol}
-	s := solve.Settings{Method: m, RTol: rtol, ATol: p.atol, Times: []float64{p.tEnd}, NonNegative: true}
+	s := solve.Settings{Method: m, RTol: rtol, ATol: p.atol, Times: p.times, NonNegative: true}
 	if m == solve.Explicit {
 		// On stiff problems the explicit method is held by stability; a
 		// cap keeps the report quick and the row says it failed.
@@ -221,14 +293,9 @@ func measure(p problem, m solve.Method, rtol float64, repeat int) row {
 			break
 		}
 		r.stats = res.Stats
-		y := res.Y[len(res.Y)-1]
-		r.err, r.relErr = 0, 0
-		for j, ref := range p.ref {
-			r.err = math.Max(r.err, math.Abs(y[j]-ref)/(p.atol+rtol*math.Abs(ref)))
-			if math.Abs(ref) > 1000*p.atol {
-				r.relErr = math.Max(r.relErr, math.Abs(y[j]-ref)/math.Abs(ref))
-			}
-		}
+		r.err, r.relErr = errors(p, rtol, res.Y)
+		last := len(p.times) - 1
+		r.errEnd, _ = errors(problem{atol: p.atol, times: p.times[last:], ref: p.ref[last:]}, rtol, res.Y[last:])
 		if r.stats.Steps > 0 {
 			r.allocsPerStp = float64(ms1.Mallocs-ms0.Mallocs) / float64(r.stats.Steps)
 		}
@@ -238,18 +305,34 @@ func measure(p problem, m solve.Method, rtol float64, repeat int) row {
 	return r
 }
 
+// errors returns the scaled error max |y − ref|/(atol + rtol·|ref|) and
+// the relative error max |y − ref|/|ref| (over |ref| > 1000·atol) of the
+// states ys at p.times.
+func errors(p problem, rtol float64, ys [][]float64) (scaled, rel float64) {
+	for i, y := range ys {
+		for j, ref := range p.ref[i] {
+			d := math.Abs(y[j] - ref)
+			scaled = math.Max(scaled, d/(p.atol+rtol*math.Abs(ref)))
+			if math.Abs(ref) > 1000*p.atol {
+				rel = math.Max(rel, d/math.Abs(ref))
+			}
+		}
+	}
+	return scaled, rel
+}
+
 func report(rows []row, repeat int) string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "# Work-precision report\n\nMeasured %s on %s/%s with %d CPUs (GOMAXPROCS %d); wall time is the median of %d solves.\n",
 		time.Now().UTC().Format("2006-01-02"), runtime.GOOS, runtime.GOARCH, runtime.NumCPU(), runtime.GOMAXPROCS(0), repeat)
-	b.WriteString("Scaled error = max_i |y_i − ref_i| / (atol + rtol·|ref_i|) at the final time; relative error = max_i |y_i − ref_i| / |ref_i| over the components with |ref_i| > 1000·atol (the figures plot this one, so that tolerances compare). Allocations per step count the whole solve (set-up included) divided by its steps. Radau counts two factorizations (one real, one complex) per iteration matrix.\n\n")
-	b.WriteString("| problem | method | rtol | scaled error | relative error | wall (ms) | steps | rejected | RHS | Jacobians | LU | allocs/step |\n|---|---|---|---|---|---|---|---|---|---|---|---|\n")
+	b.WriteString("Scaled error = max_i |y_i − ref_i| / (atol + rtol·|ref_i|), at the end time (\"end\") and over all output times (\"run\": the end time alone for HIRES and POLLU, whose published references give no more; 200 log-spaced times from 10⁻³ for the networks); relative error = max_i |y_i − ref_i| / |ref_i| over the output times and the components with |ref_i| > 1000·atol (the figures plot this one, so that tolerances compare). References: HIRES and POLLU from the Test Set for IVP Solvers (Mazzia & Magherini, release 2.4); CASC50 (examples/signalling-cascade-50.json, its own t_end 7200 and atol 1e-10) and NET200 (generated, 200 species) from Radau IIA at rtol 1e-12 landing on every output time. Allocations per step count the whole solve (set-up included) divided by its steps. Radau counts two factorizations (one real, one complex) per iteration matrix.\n\n")
+	b.WriteString("| problem | method | rtol | scaled error (end) | scaled error (run) | relative error | wall (ms) | steps | rejected | RHS | Jacobians | LU | allocs/step |\n|---|---|---|---|---|---|---|---|---|---|---|---|---|\n")
 	for _, r := range rows {
-		e := fmt.Sprintf("%.3g", r.err)
+		e, er := fmt.Sprintf("%.3g", r.errEnd), fmt.Sprintf("%.3g", r.err)
 		if r.failed != "" {
-			e = "failed: " + r.failed
+			e, er = "failed: "+r.failed, "–"
 		}
-		fmt.Fprintf(&b, "| %s | %s | %.0e | %s | %.2e | %.3f | %d | %d | %d | %d | %d | %.2f |\n", r.problem, name(r.method), r.rtol, e, r.relErr,
+		fmt.Fprintf(&b, "| %s | %s | %.0e | %s | %s | %.2e | %.3f | %d | %d | %d | %d | %d | %.2f |\n", r.problem, name(r.method), r.rtol, e, er, r.relErr,
 			float64(r.wall.Microseconds())/1000, r.stats.Steps, r.stats.Rejected, r.stats.RHSEvals, r.stats.JacobianEvals, r.stats.Factorizations, r.allocsPerStp)
 	}
 	return b.String()
@@ -262,7 +345,7 @@ func figure(rows []row, prob, x, path string) error {
 	p.Title.Text = prob + ": work against precision"
 	p.X.Scale, p.Y.Scale = plot.LogScale{}, plot.LogScale{}
 	p.X.Tick.Marker, p.Y.Tick.Marker = plot.LogTicks{Prec: 1}, plot.LogTicks{Prec: 1}
-	p.Y.Label.Text = "relative error at the final time"
+	p.Y.Label.Text = "relative error over the output times"
 	p.X.Label.Text = "wall time (ms)"
 	if x == "lu" {
 		p.X.Label.Text = "LU factorizations"
