@@ -172,6 +172,11 @@ func (v *plotView) MouseMoved(e *desktop.MouseEvent) {
 		return
 	}
 	s := v.scale
+	if ev, ok := run.EventNear(v.outcome, v.frame, float64(e.Position.X*s), float64(e.Position.Y*s), float64(6*s)); ok {
+		v.marker.Hide()
+		v.showReadout(fmt.Sprintf("event %s   t = %s%s", ev.Name, short(ev.T), unitSuffix(v.outcome.TimeUnit)))
+		return
+	}
 	p, ok := run.Nearest(v.outcome, v.view, v.frame, float64(e.Position.X*s), float64(e.Position.Y*s), float64(24*s))
 	if !ok {
 		v.hideReadout()
@@ -193,7 +198,22 @@ func (v *plotView) MouseMoved(e *desktop.MouseEvent) {
 	if o.AmountUnit != "" {
 		au = " " + o.AmountUnit
 	}
-	v.readout.Text = fmt.Sprintf("%s   t = %s%s   %s%s", o.Names[p.Species], short(p.T), tu, short(p.Y), au)
+	v.marker.Refresh()
+	v.showReadout(fmt.Sprintf("%s   t = %s%s   %s%s", o.Names[p.Species], short(p.T), tu, short(p.Y), au))
+}
+
+// unitSuffix is " UNIT", or "" without a unit.
+func unitSuffix(u string) string {
+	if u == "" {
+		return ""
+	}
+	return " " + u
+}
+
+// showReadout shows text in the box at the top left of the data area.
+func (v *plotView) showReadout(text string) {
+	s := v.scale
+	v.readout.Text = text
 	v.readout.Color = color.NRGBA{R: 0x20, G: 0x20, B: 0x20, A: 0xff}
 	ts := v.readout.MinSize()
 	a := v.frame.Area

@@ -20,6 +20,7 @@ const (
 	TabSpecies      = "Species"
 	TabParameters   = "Parameters"
 	TabAssignments  = "Assignments"
+	TabEvents       = "Events"
 	TabCompartments = "Compartments"
 	TabRun          = "Run settings"
 )
@@ -105,10 +106,11 @@ func New(doc *Document, win fyne.Window) *Editor {
 	e.panes["parameters"] = newRowPane(e, parameterKind, newParameterForm(e))
 	e.panes["compartments"] = newRowPane(e, compartmentKind, newCompartmentForm(e))
 	e.panes["assignments"] = newRowPane(e, assignmentKind, newAssignmentForm(e))
+	e.panes["events"] = newRowPane(e, eventKind, newEventForm(e))
 	e.run = newRunForm(e)
 	e.tabs = container.NewAppTabs()
 	for _, t := range []struct{ title, section string }{
-		{TabReactions, "reactions"}, {TabSpecies, "species"}, {TabParameters, "parameters"}, {TabAssignments, "assignments"}, {TabCompartments, "compartments"},
+		{TabReactions, "reactions"}, {TabSpecies, "species"}, {TabParameters, "parameters"}, {TabAssignments, "assignments"}, {TabEvents, "events"}, {TabCompartments, "compartments"},
 	} {
 		item := container.NewTabItem(t.title, e.panes[t.section].content)
 		e.tabOf[t.section] = item

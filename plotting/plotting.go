@@ -65,6 +65,16 @@ type Options struct {
 	// colours beside the figure; a figure saved for readers should keep its
 	// legend.
 	NoLegend bool
+
+	// Marks are times drawn as thin ticks rising from the time axis of a
+	// TrajectoryPlot, such as the events of a run.
+	Marks []Mark
+}
+
+// Mark is a labelled time on a TrajectoryPlot's time axis.
+type Mark struct {
+	X     float64
+	Label string
 }
 
 // Default figure size.

@@ -2,6 +2,7 @@ package plotting
 
 import (
 	"fmt"
+	"image/color"
 	"math"
 
 	"gonum.org/v1/plot"
@@ -136,6 +137,9 @@ func TrajectoryPlot(tr Trajectories, o Options) (*plot.Plot, error) {
 			}
 		}
 	}
+	if len(o.Marks) > 0 {
+		p.Add(&marks{xs: o.Marks, logX: o.LogX})
+	}
 	if !o.NoLegend {
 		p.Add(legend)
 	}
@@ -184,4 +188,25 @@ func indexOf(list []string, s string) int {
 		}
 	}
 	return -1
+}
+
+// marks draws Options.Marks as short grey ticks rising from the bottom of
+// the data area; they do not change the axes' ranges.
+type marks struct {
+	xs   []Mark
+	logX bool
+}
+
+// markHeight is how far a mark rises from the time axis.
+const markHeight = 7 // points
+
+func (m *marks) Plot(c draw.Canvas, p *plot.Plot) {
+	sty := draw.LineStyle{Color: color.Gray{Y: 90}, Width: vg.Points(0.8)}
+	for _, mk := range m.xs {
+		if !usable(mk.X, m.logX) || mk.X < p.X.Min || mk.X > p.X.Max {
+			continue
+		}
+		x := c.X(p.X.Norm(mk.X))
+		c.StrokeLine2(sty, x, c.Min.Y, x, c.Min.Y+vg.Points(markHeight))
+	}
 }

@@ -11,6 +11,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"kinetarium/plotting"
+	"kinetarium/solve"
 )
 
 // Range is a rectangle in data coordinates, for zooming.
@@ -67,6 +68,9 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 	for j, n := range o.Names {
 		opt.Visible[j] = !v.Hidden[n]
 		opt.ColourIndex[j] = v.Slot(n, j)
+	}
+	for _, e := range o.Events {
+		opt.Marks = append(opt.Marks, plotting.Mark{X: e.T, Label: e.Name})
 	}
 	if v.Previous != nil && len(v.Previous.T) > 0 {
 		prev := v.Previous.Trajectories()
@@ -186,6 +190,28 @@ func (f Frame) ToPixel(x, y float64) (px, py float64, ok bool) {
 	px = float64(a.Min.X) + norm(x, f.xMin, f.xMax, f.logX)*float64(a.Dx())
 	py = float64(a.Max.Y) - norm(y, f.yMin, f.yMax, f.logY)*float64(a.Dy())
 	return px, py, true
+}
+
+// EventNear returns the event of o whose mark on the time axis lies
+// within maxDist pixels of (x, y), a point near the bottom of the data
+// area.
+func EventNear(o *Outcome, f Frame, x, y, maxDist float64) (solve.Firing, bool) {
+	a := f.Area
+	if y < float64(a.Max.Y)-3*maxDist || y > float64(a.Max.Y)+maxDist {
+		return solve.Firing{}, false
+	}
+	best, found := maxDist, false
+	var near solve.Firing
+	for _, e := range o.Events {
+		if f.logX && e.T <= 0 {
+			continue
+		}
+		px := float64(a.Min.X) + norm(e.T, f.xMin, f.xMax, f.logX)*float64(a.Dx())
+		if d := math.Abs(px - x); d <= best {
+			best, near, found = d, e, true
+		}
+	}
+	return near, found
 }
 
 // Point is a data point of one species.

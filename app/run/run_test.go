@@ -403,3 +403,29 @@ func TestRunEventRows(t *testing.T) {
 		t.Errorf("figure series has %d points, want the %d with event rows", len(tr.Times), len(e.T))
 	}
 }
+
+// An event's mark on the time axis is found under the pointer, and not
+// away from it.
+func TestEventNearMark(t *testing.T) {
+	m := decayModel(0.7, 2, 5)
+	m.Events = []network.Event{{Name: "bolus", At: network.Number(2), Add: []network.Change{{Target: "A", Value: "1"}}}}
+	o, err := Run(context.Background(), m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, f, err := Render(o, View{}, 800, 500)
+	if err != nil {
+		t.Fatal(err)
+	}
+	px, _, _ := f.ToPixel(2, 1)
+	bottom := float64(f.Area.Max.Y) - 3
+	if e, ok := EventNear(o, f, px+2, bottom, 6); !ok || e.Name != "bolus" {
+		t.Errorf("no event under the pointer at its mark: %v %v", e, ok)
+	}
+	if _, ok := EventNear(o, f, px+40, bottom, 6); ok {
+		t.Error("an event found 40 pixels from its mark")
+	}
+	if _, ok := EventNear(o, f, px, float64(f.Area.Min.Y)+5, 6); ok {
+		t.Error("an event found at the top of the plot")
+	}
+}

@@ -1,0 +1,49 @@
+package editor
+
+import (
+	"testing"
+
+	"fyne.io/fyne/v2/test"
+	"fyne.io/fyne/v2/widget"
+
+	"kinetarium/network"
+)
+
+// Adding an event in the Events tab and filling in its form gives the
+// model a dose schedule that checks clean; a line that does not read stays
+// as typed with a message, and switching to an infusion moves the amounts.
+func TestEventForm(t *testing.T) {
+	e, d := newTestEditor(t)
+	p := e.panes["events"]
+	ef := p.form.(*eventForm)
+	d.Apply("add event", func(m *network.Model) { eventKind.add(d, m, 0) })
+	e.SelectRow("events", 0)
+	every := ef.every.input.(*widget.Entry)
+	test.Type(every, "12")
+	ef.count.input.(*widget.Entry).SetText("")
+	test.Type(ef.count.input.(*widget.Entry), "3")
+	add := ef.add.input.(*widget.Entry)
+	test.Type(add, "S = 10")
+	ev := d.Model().Events[0]
+	if ev.Every != network.Number(12) || ev.Count != 3 || len(ev.Add) != 1 || ev.Add[0] != (network.Change{Target: "S", Value: "10"}) {
+		t.Fatalf("event after typing: %+v", ev)
+	}
+	if _, l := network.Check(d.Model()); l.HasErrors() {
+		t.Errorf("the event has errors: %v", l)
+	}
+	if got := EventSummary(ev); got != "at 0, every 12 ×3: add S" {
+		t.Errorf("summary %q", got)
+	}
+	test.Type(add, "\nP 3")
+	if add.Text != "S = 10\nP 3" || !hasMessage(e, "events", 0, "add", "line 2: expected NAME = VALUE") {
+		t.Errorf("bad line: text %q, messages %v", add.Text, e.Messages())
+	}
+	if len(d.Model().Events[0].Add) != 1 {
+		t.Errorf("a line that does not read was taken: %+v", d.Model().Events[0].Add)
+	}
+	ef.timing.SetSelected(timingInfusion)
+	ev = d.Model().Events[0]
+	if !ev.From.Set || !ev.To.Set || len(ev.Infuse) != 1 || len(ev.Add) != 0 || ev.At.Set {
+		t.Errorf("after switching to an infusion: %+v", ev)
+	}
+}
