@@ -44,6 +44,32 @@ Operators ` + "`+ - * / ^`" + ` and parentheses; numbers such as 2, 0.5, 1e-3;
 functions ` + "`exp`, `log` (natural), `log10`, `sqrt`, `abs`, `min(a, b)`, `max(a, b)`, `pow(a, b)`" + `;
 ` + "`t`" + ` is time. Example: ` + "`Vmax*S^n/(K^n + S^n)`" + `.
 
+## Assignments
+
+An assignment names a quantity computed from species, parameters and time,
+such as ` + "`E_total = E + ES`" + `. It is plotted and exported beside the species,
+can be read out in sweeps and populations, and can be used in custom rate
+expressions.
+
+## Events: doses, infusions, switches
+
+An event changes the run while it goes. Its timing is a time (with
+"Repeat every" and "Times" for a schedule of doses), a condition such as
+` + "`S < 2`" + ` that fires each time it turns true (once, if you tick "Only the first
+time"; a condition already true at the start waits until it has been
+false), or an interval for an infusion. Its actions are lines of
+` + "`NAME = VALUE`" + `: **Add** raises a species by an amount (divided by its
+compartment's volume), **Set** gives a species or a parameter a new value
+(an expression, read just before the event), **Infuse** feeds a species at a
+rate while the infusion runs. Doses show as sharp jumps; small ticks on the
+time axis mark when events fired (point at one for its name). Dose amounts,
+times and intervals can be put on sliders and varied in sweeps and
+populations.
+
+**Dosing simulations are research aids, not dosing advice.** Doses and
+schedules for people or animals are decided by qualified professionals
+under local rules.
+
 ## Compartments
 
 A species' concentration is per volume of its own compartment. A reaction's
