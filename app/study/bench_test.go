@@ -88,7 +88,7 @@ func BenchmarkPopulationDoses(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			const size = 1000
+			const size = 10000
 			job, err := p.Population([]Vary{{Knob: "ka", Dist: explore.LogNormal{Median: 0.9, CVPercent: 30}},
 				{Knob: "Vmax", Dist: explore.LogNormal{Median: 6, CVPercent: 30}}}, size, 1, explore.LatinHypercube,
 				[]ReadoutSpec{{Kind: explore.Max, Species: "D_plasma"}}, nil)
