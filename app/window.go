@@ -154,7 +154,7 @@ func (w *mainWindow) build() {
 		})
 	all := widget.NewButton("All", func() { w.setVisibleFiltered(true) })
 	none := widget.NewButton("None", func() { w.setVisibleFiltered(false) })
-	speciesTitle := widget.NewLabelWithStyle("Species shown", fyne.TextAlignLeading, fyne.TextStyle{Bold: true})
+	speciesTitle := widget.NewLabelWithStyle("Shown on the plot", fyne.TextAlignLeading, fyne.TextStyle{Bold: true})
 	side := container.NewBorder(container.NewVBox(speciesTitle, w.filter, container.NewGridWithColumns(2, all, none)), nil, nil, nil, w.speciesList)
 	plotArea := container.NewHSplit(w.plot, side)
 	plotArea.Offset = 0.8
