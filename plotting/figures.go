@@ -313,6 +313,14 @@ func Histogram(values []float64, bins int, o Options) (*plot.Plot, error) {
 		finish(p, o, ns)
 		return p, nil
 	}
+	if hi > lo && hi-lo <= 1e-9*math.Max(math.Abs(lo), math.Abs(hi)) {
+		// Values equal but for rounding: one bar, not a spread of 1e-13.
+		ns.addf("all %d values equal to 9 digits (%.9g)", len(kept), lo)
+		hi = lo
+		for i := range kept {
+			kept[i] = lo
+		}
+	}
 	edges, counts := histogramBins(kept, lo, hi, bins, o.LogX)
 	p.Add(&bars{
 		edges: edges, counts: counts, logX: o.LogX, logY: o.LogY,
@@ -336,7 +344,12 @@ func histogramBins(v []float64, lo, hi float64, bins int, log bool) (edges, coun
 	}
 	a, b := fwd(lo), fwd(hi)
 	if a == b {
-		a, b = a-0.5, b+0.5
+		// One value: a bar ±5 % around it (half a decade on a log axis).
+		d := 0.5
+		if !log && a != 0 {
+			d = 0.05 * math.Abs(a)
+		}
+		a, b = a-d, b+d
 	}
 	edges = make([]float64, bins+1)
 	for i := range edges {

@@ -287,8 +287,38 @@ func (decadeTicks) Ticks(min, max float64) []plot.Tick {
 		if labelled < 2 {
 			label(func(float64) bool { return true })
 		}
+		sameFormat(ticks)
 	}
 	return ticks
+}
+
+// sameFormat writes every label of a short log axis in one form, so that
+// the decades and the ticks between them read alike: plain numbers ("2, 5,
+// 10, 20") when every labelled value lies in [0.001, 10000), else
+// mantissa times a power of ten ("2×10^-5, 5×10^-5, 10^-4").
+func sameFormat(ticks []plot.Tick) {
+	plain := true
+	for _, t := range ticks {
+		if t.Label != "" && !(t.Value >= 1e-3 && t.Value < 1e4) {
+			plain = false
+		}
+	}
+	for i, t := range ticks {
+		if t.Label == "" {
+			continue
+		}
+		if plain {
+			ticks[i].Label = strconv.FormatFloat(t.Value, 'g', 3, 64)
+			continue
+		}
+		k := math.Floor(math.Log10(t.Value) + 1e-9)
+		m := t.Value / math.Pow(10, k)
+		if math.Abs(m-1) < 1e-6 {
+			ticks[i].Label = fmt.Sprintf("10^%d", int(k))
+		} else {
+			ticks[i].Label = strconv.FormatFloat(m, 'g', 3, 64) + "×10^" + strconv.Itoa(int(k))
+		}
+	}
 }
 
 // Figures use the sans-serif Liberation face, which reads better at small

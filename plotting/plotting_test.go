@@ -341,6 +341,26 @@ func TestDecadeTicksWideAndNarrow(t *testing.T) {
 	if labels < 2 {
 		t.Errorf("range 2.5–8: %d labels, want ≥ 2: %v", labels, narrow)
 	}
+	// A short log axis labels its decades and the ticks between them in
+	// one form: plain numbers near 1, powers of ten far from it (a review
+	// found "2, 5, 10¹, 20" on one axis).
+	for _, c := range []struct {
+		min, max float64
+		want     []string
+	}{
+		{1.5, 25, []string{"2", "5", "10", "20"}},
+		{1.5e-5, 2.5e-4, []string{"2×10^-5", "5×10^-5", "10^-4", "2×10^-4"}},
+	} {
+		var got []string
+		for _, tk := range (decadeTicks{}).Ticks(c.min, c.max) {
+			if tk.Label != "" {
+				got = append(got, tk.Label)
+			}
+		}
+		if strings.Join(got, ", ") != strings.Join(c.want, ", ") {
+			t.Errorf("labels on %g–%g: %v, want %v", c.min, c.max, got, c.want)
+		}
+	}
 	if (decadeTicks{}).Ticks(0, 1) != nil || (decadeTicks{}).Ticks(-1, 1) != nil {
 		t.Error("non-positive range gave ticks")
 	}
@@ -652,5 +672,23 @@ func TestLogAxisDecades(t *testing.T) {
 		if math.Abs(math.Log10(p.Y.Min)-math.Log10(c.wantMin)) > 0.05 {
 			t.Errorf("Decades %d: axis starts at %g, want about %g (max %g)", c.decades, p.Y.Min, c.wantMin, p.Y.Max)
 		}
+	}
+}
+
+// A readout that is the same in every run but for rounding makes one bar
+// around its value with a note, not a fake spread across 1e-13 (a review
+// found 0.1000000000000…0.1000000000004 on the axis).
+func TestHistogramOfConstant(t *testing.T) {
+	vals := []float64{0.1, 0.1 + 1e-16, 0.1 + 4e-16, 0.1 - 1e-16}
+	p, err := Histogram(vals, 5, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if w := p.X.Max - p.X.Min; w < 0.005 || w > 0.05 {
+		t.Errorf("axis spans %g, want about 10 %% of 0.1", w)
+	}
+	edges, counts := histogramBins([]float64{0.1, 0.1}, 0.1, 0.1, 4, false)
+	if edges[0] != 0.095 || math.Abs(edges[4]-0.105) > 1e-15 || counts[2] != 2 {
+		t.Errorf("edges %v counts %v, want 0.095…0.105 with both values in the middle bin", edges, counts)
 	}
 }

@@ -136,8 +136,24 @@ func (f Figures) Readout(res *explore.Result, r int) (*plot.Plot, error) {
 		}, name)
 	}
 	return plotting.XYPlot(f.Axes[0], vals, plotting.Options{
-		Title: f.ReadoutLabel(r), XLabel: KnobLabel(res.Knobs[0]), YLabel: name, LogX: f.AxisLog[0],
+		Title: f.ReadoutLabel(r), XLabel: KnobLabel(res.Knobs[0]), YLabel: f.readoutWords(r), YUnit: f.readoutUnit(r), LogX: f.AxisLog[0],
 	})
+}
+
+// readoutUnit is the unit of readout r's values: the time unit for times,
+// amount × time for an area, else the amount unit ("" when the model
+// names none).
+func (f Figures) readoutUnit(r int) string {
+	switch f.Readouts[r].Kind {
+	case explore.TimeOfMax, explore.TimeOfMin, explore.CrossUp, explore.CrossDown:
+		return f.TimeUnit
+	case explore.AUC:
+		if f.AmountUnit != "" && f.TimeUnit != "" {
+			return f.AmountUnit + "·" + f.TimeUnit
+		}
+		return ""
+	}
+	return f.AmountUnit
 }
 
 // Bands draws, for a population, the median and percentile bands of
@@ -166,5 +182,5 @@ func (f Figures) Histogram(res *explore.Result, r int) (*plot.Plot, error) {
 		return nil, errors.New("no readout chosen; add one under Readouts and run again")
 	}
 	vals, _ := ReadoutValues(res, r)
-	return plotting.Histogram(vals, 0, plotting.Options{Title: f.ReadoutLabel(r), XLabel: res.Readouts[r], YLabel: "samples"})
+	return plotting.Histogram(vals, 0, plotting.Options{Title: f.ReadoutLabel(r), XLabel: f.readoutWords(r), XUnit: f.readoutUnit(r), YLabel: "samples"})
 }

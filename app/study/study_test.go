@@ -174,3 +174,35 @@ func TestReadoutWindowOnDoses(t *testing.T) {
 		}
 	}
 }
+
+// A readout's axis says what it is in words with its unit, not the code
+// name (a review found "t_up_P@5" on the axis).
+func TestReadoutAxisInWords(t *testing.T) {
+	m := &network.Model{
+		Units:      network.Units{Time: "s", Amount: "uM"},
+		Species:    []network.Species{{Name: "A", Initial: 10}, {Name: "P"}},
+		Parameters: []network.Parameter{{Name: "k", Value: 1}},
+		Reactions:  []network.Reaction{{Name: "r", Equation: "A -> P", Rate: network.NewRate(network.MassAction, "k", "k")}},
+		Simulation: network.Simulation{TEnd: 5},
+	}
+	p, err := Prepare(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	level := 5.0
+	job, err := p.Sweep([]Axis{{Knob: "k", From: 0.5, To: 2, Points: 3}}, []ReadoutSpec{{Kind: explore.CrossUp, Species: "P", Level: &level}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := job.Run(context.Background(), 1, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fig, err := job.Figures().Readout(res, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := fig.Y.Label.Text; got != "time P rises past 5 (s)" {
+		t.Errorf("readout axis %q, want %q", got, "time P rises past 5 (s)")
+	}
+}
