@@ -315,3 +315,21 @@ func TestOutputTimes(t *testing.T) {
 		t.Errorf("default log grid: %d points from %v to %v", len(d), d[1], d[len(d)-1])
 	}
 }
+
+// An equation that does not read gets its own message, and no follow-on
+// message about k_reverse, whose use depends on the equation (a review
+// found "k_reverse applies to reversible reactions only" beside a broken
+// "<=>" equation).
+func TestBrokenEquationNoFollowOn(t *testing.T) {
+	m := baseModel()
+	m.Reactions[0].Equation = "E + S <=> " + "+"
+	var fields []string
+	for _, p := range m.Validate().Errors() {
+		if p.Item == "bind" {
+			fields = append(fields, p.Field)
+		}
+	}
+	if len(fields) != 1 || fields[0] != "equation" {
+		t.Errorf("errors at %v, want only the equation's", fields)
+	}
+}

@@ -21,7 +21,13 @@ func (massAction) Fields() []Field {
 }
 
 func (massAction) Check(c *LawCheck) []string {
-	if c.Equation != nil && c.Equation.Reversible {
+	switch {
+	case c.Equation != nil && c.Equation.Reversible:
+		return []string{"k", "k_reverse"}
+	case c.Equation == nil && c.Rate.Arg("k_reverse").Set:
+		// The equation does not read, so whether it is reversible is not
+		// known: its own message says what is wrong; say nothing of
+		// k_reverse.
 		return []string{"k", "k_reverse"}
 	}
 	return []string{"k"}
