@@ -71,21 +71,27 @@ func (w *mainWindow) exportFigure() {
 		}
 		ext := formatExt(format.Selected)
 		w.saveFileDialog("figure"+ext, ext, func(path string) {
-			p, err := run.Figure(w.current, w.view())
-			var prov *run.Provenance
-			if err == nil {
-				prov, err = w.provenance()
-			}
-			if err == nil {
-				err = plotting.Save(p, path, vg.Length(wcm)*vg.Centimeter, vg.Length(hcm)*vg.Centimeter, int(d), prov.Metadata(""))
-			}
-			if err != nil {
+			if err := w.saveFigure(path, wcm, hcm, d); err != nil {
 				w.showError(err)
 				return
 			}
 			w.setStatus("Figure saved to "+path, false)
 		})
 	}, w.win)
+}
+
+// saveFigure saves the figure as shown, wcm × hcm centimetres at dpi (for
+// PNG), with its provenance.
+func (w *mainWindow) saveFigure(path string, wcm, hcm, dpi float64) error {
+	p, err := run.Figure(w.current, w.view())
+	if err != nil {
+		return err
+	}
+	prov, err := w.provenance()
+	if err != nil {
+		return err
+	}
+	return plotting.Save(p, path, vg.Length(wcm)*vg.Centimeter, vg.Length(hcm)*vg.Centimeter, int(dpi), prov.Metadata(""))
 }
 
 // positive reads a positive number typed into the named field.

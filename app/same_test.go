@@ -7,7 +7,10 @@ import (
 	"path/filepath"
 	"testing"
 
+	"fyne.io/fyne/v2/test"
+
 	"kinetarium/network"
+	"kinetarium/plotting"
 	"kinetarium/solve/explore"
 )
 
@@ -179,5 +182,51 @@ func TestPopulationWindowWritesTheBatchFiles(t *testing.T) {
 			t.Fatal(err)
 		}
 		sameFigure(t, filepath.Join(dir, file), batchDir, file)
+	}
+}
+
+// The window's Figure… export of a run and the batch command's --figure of
+// the same model are the same file, apart from nothing: with the export
+// time fixed (SOURCE_DATE_EPOCH) they are equal byte for byte, for PNG,
+// SVG and PDF. The model has doses (jumps and event marks) and assignments.
+func TestFigureWindowEqualsBatch(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds and runs the batch command")
+	}
+	t.Setenv("SOURCE_DATE_EPOCH", "1700000000")
+	const model = "../examples/twice-daily-oral-dose.json"
+	m, err := network.Load(model)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a := test.NewTempApp(t)
+	w := newMainWindow(a, true)
+	defer w.win.Close()
+	onUI(func() { w.setModel(m, model) })
+	onUI(w.simulate)
+	waitFor(t, "the run", func() bool { return w.current != nil && !w.ctrl.Running() })
+	onUI(func() {
+		w.plot.view.LogX, w.plot.view.LogY, w.plot.view.Previous = false, true, nil
+	})
+	dir := t.TempDir()
+	for _, ext := range []string{".png", ".svg", ".pdf"} {
+		win := filepath.Join(dir, "window"+ext)
+		var err error
+		onUI(func() { err = w.saveFigure(win, 16, 10, float64(plotting.DefaultDPI)) })
+		if err != nil {
+			t.Fatal(err)
+		}
+		cmd := exec.Command("go", "run", "kinetarium/app/batch", "simulate", model, "--log-y",
+			"--figure", filepath.Join(dir, "batch"+ext), "--out", filepath.Join(dir, "batch.csv"))
+		var stderr bytes.Buffer
+		cmd.Stderr = &stderr
+		if err := cmd.Run(); err != nil {
+			t.Fatalf("batch simulate: %v\n%s", err, stderr.String())
+		}
+		x, _ := os.ReadFile(win)
+		y, _ := os.ReadFile(filepath.Join(dir, "batch"+ext))
+		if len(x) == 0 || !bytes.Equal(x, y) {
+			t.Errorf("%s: the window's figure (%d bytes) differs from the batch command's (%d bytes)", ext, len(x), len(y))
+		}
 	}
 }
