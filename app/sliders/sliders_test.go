@@ -447,3 +447,53 @@ func TestRefRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// Event quantities are slider candidates and knobs: a bolus at t = 1 whose
+// amount is moved from 3 to 8 raises A just after the dose by 8 (volume 1;
+// A(t) = A0·e^(−kt) before it, common practice); resetting the knobs brings
+// back the model's 3, and writing back stores 8 in the event.
+func TestEventKnob(t *testing.T) {
+	m := decayModel(0.5, 2)
+	m.Events = []network.Event{{Name: "bolus", At: network.Number(1), Add: []network.Change{{Target: "A", Value: "3"}}}}
+	var k Knob
+	for _, c := range Candidates(m) {
+		if c.Kind == Event && c.Name == "bolus.add.A" {
+			k = c
+		}
+	}
+	if k.Name == "" || k.Model != 3 || k.Label() != "bolus: amount of A" || k.Ref() != "event:bolus.add.A" {
+		t.Fatalf("candidate %+v", k)
+	}
+	s, err := NewSession(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	after := func(amount float64) {
+		t.Helper()
+		o, err := s.Run(context.Background())
+		if err != nil {
+			t.Fatal(err)
+		}
+		j := o.Jumps[0]
+		before := 2 * math.Exp(-0.5)
+		if math.Abs(j.Before[0]-before) > 1e-6 || math.Abs(j.After[0]-before-amount) > 1e-6 {
+			t.Errorf("jump %v -> %v, want %g -> %g", j.Before[0], j.After[0], before, before+amount)
+		}
+	}
+	k.Value = 8
+	if err := s.Set([]Knob{k}); err != nil {
+		t.Fatal(err)
+	}
+	after(8)
+	if err := s.Set(nil); err != nil {
+		t.Fatal(err)
+	}
+	after(3)
+	if n := WriteBack(m, []Knob{k}); n != 1 || m.Events[0].Add[0].Value != "8" {
+		t.Errorf("write back: %d values, event %+v", n, m.Events[0])
+	}
+	k.Value = -1
+	if err := s.Set([]Knob{k}); err == nil {
+		t.Error("a negative amount was accepted")
+	}
+}
