@@ -124,6 +124,7 @@ func Check(m *Model) (*Net, ErrorList) {
 	}
 	v.events()
 	v.simulation()
+	v.units()
 	for i, s := range m.Species {
 		if !v.usedSp[i] && isName(s.Name) {
 			v.add(Warning, "species", i, s.Name, "", 0, "this species takes part in no reaction and appears in no rate law")
