@@ -148,7 +148,9 @@ func itThem(n int) string {
 func (uc *unitCheck) want(d dims) units.Unit { return uc.conc.Pow(d.C).Mul(uc.time.Pow(d.T)) }
 
 // wantText writes Conc^d.C·Time^d.T in the model's own unit texts.
-func (uc *unitCheck) wantText(d dims) string { return units.Compose(uc.concText, d.C, uc.timeText, d.T) }
+func (uc *unitCheck) wantText(d dims) string {
+	return units.Compose(uc.concText, d.C, uc.timeText, d.T)
+}
 
 // describe writes u in the model's units when it is Conc^a·Time^b times
 // a factor ("uM/s", "1000 × uM/s"), else in SI base units.
