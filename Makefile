@@ -49,6 +49,7 @@ bench:
 FUZZTIME ?= 30s
 fuzz:
 	$(GO) test ./network/expr -run '^$$' -fuzz FuzzParse -fuzztime $(FUZZTIME)
+	$(GO) test ./network/units -run '^$$' -fuzz FuzzParse -fuzztime $(FUZZTIME)
 	$(GO) test ./network -run '^$$' -fuzz FuzzParseEquation -fuzztime $(FUZZTIME)
 	$(GO) test ./network -run '^$$' -fuzz FuzzRead -fuzztime $(FUZZTIME)
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzReadPNGText -fuzztime $(FUZZTIME)

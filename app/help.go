@@ -33,10 +33,31 @@ to declare them in one click.
   ` + "`rate = k·[reactants] − k_reverse·[products]`" + `.
 * **Michaelis–Menten** — for one substrate S: ` + "`rate = Vmax·S/(Km + S)`" + `, or with
   an explicit enzyme E: ` + "`rate = kcat·E·S/(Km + S)`" + `.
+* **Reversible Michaelis–Menten** — for ` + "`S <=> P`" + `:
+  ` + "`(Vf·S/Kms − Vr·P/Kmp)/(1 + S/Kms + P/Kmp)`" + `; give Keq instead of Vr to
+  tie them by the Haldane relationship ` + "`Keq = Vf·Kmp/(Vr·Kms)`" + `.
+* **Michaelis–Menten with an inhibitor** I (competitive, uncompetitive,
+  noncompetitive, mixed) — Ki, and αKi for mixed; I is read, not consumed.
+* **Hill activation / repression** — ` + "`Vmax·(X/K)^n/(1 + (X/K)^n)`" + ` and
+  ` + "`Vmax/(1 + (X/K)^n)`" + `; X is the regulator species (for activation,
+  the substrate when none is named).
+* **Two substrates** ` + "`A + B -> …`" + ` — random order (Ka, Kb, α) or ordered
+  (Kia, Km of A, Km of B), forward rate only.
+* **Saturable transport** — ` + "`Vmax·S/(Km + S)`" + ` from one compartment to another.
 * **Custom expression** — any formula of species, parameters and time.
   For a reversible reaction it is the net rate.
 
 Each rate field takes a number (0.5, 1e-3) or the name of a parameter.
+
+## Units
+
+Give the time and concentration units in Run settings and a unit to each
+parameter (` + "`1/s`, `uM`, `1/(uM*s)`, `mg/L/h`, `1`" + ` for a pure number). Each
+reaction's rate must then come out in concentration per time; the form
+shows the unit each field needs ("Rate constant in 1/(uM·s) for a
+second-order step") and the messages name any field or part of a formula
+whose unit does not fit, with the factor when only the scale is off.
+Units are checked, never used to convert numbers.
 
 ## Expressions
 

@@ -199,6 +199,10 @@ type reactionForm struct {
 	// load shows those the reaction's law reads.
 	rate    map[string]*field
 	preview *widget.Label
+	// units shows the unit each rate field should carry with the model's
+	// units (network.Net.UnitHint); hidden when there is none.
+	units      *widget.Label
+	unitsField *field
 }
 
 const (
@@ -315,6 +319,11 @@ func newReactionForm(ed *Editor) *reactionForm {
 	f.preview.TextStyle = fyne.TextStyle{Italic: true}
 	f.addField("Rate", "rate.preview", f.preview)
 
+	f.units = widget.NewLabel("")
+	f.units.Wrapping = fyne.TextWrapWord
+	f.units.Importance = widget.LowImportance
+	f.unitsField = f.addField("Expected units", "rate.units", f.units)
+
 	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &r(m, i).Note })
 	f.addField("Note", "note", note)
 	f.loads = append(f.loads, load)
@@ -401,6 +410,9 @@ func (f *reactionForm) load(m *network.Model, i int) {
 		p = "(shown when the equation reads correctly)"
 	}
 	f.preview.SetText(p)
+	hint := net.UnitHint(i)
+	f.units.SetText(hint)
+	f.unitsField.setVisible(hint != "")
 	species, params := Undeclared(net, i), UndeclaredParameters(net, i)
 	if len(species) > 0 {
 		f.declare.SetText(declareLabel(species))
@@ -514,7 +526,7 @@ func newParameterForm(ed *Editor) *parameterForm {
 	f.addField("Value", "value", val)
 	f.loads = append(f.loads, load)
 	unit, load := f.textInput("unit", "edit unit", func(m *network.Model, i int) *string { return &m.Parameters[i].Unit })
-	unit.SetPlaceHolder("label only, e.g. 1/s")
+	unit.SetPlaceHolder("e.g. 1/s, uM, 1/(uM*s) or 1")
 	f.addField("Unit", "unit", unit)
 	f.loads = append(f.loads, load)
 	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &m.Parameters[i].Note })
@@ -546,7 +558,7 @@ func newAssignmentForm(ed *Editor) *assignmentForm {
 	f.addField("Expression", "expression", ex)
 	f.loads = append(f.loads, load)
 	unit, load := f.textInput("unit", "edit unit", func(m *network.Model, i int) *string { return &m.Assignments[i].Unit })
-	unit.SetPlaceHolder("label only, e.g. uM")
+	unit.SetPlaceHolder("e.g. uM")
 	f.addField("Unit", "unit", unit)
 	f.loads = append(f.loads, load)
 	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &m.Assignments[i].Note })

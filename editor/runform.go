@@ -66,7 +66,7 @@ func newRunForm(ed *Editor) *runForm {
 	heading("Model")
 	text("Title", "title", "edit title", func(m *network.Model) *string { return &m.Title })
 	text("Time unit", "units.time", "edit time unit", func(m *network.Model) *string { return &m.Units.Time })
-	text("Amount unit", "units.amount", "edit amount unit", func(m *network.Model) *string { return &m.Units.Amount })
+	text("Concentration unit", "units.amount", "edit concentration unit", func(m *network.Model) *string { return &m.Units.Amount })
 	text("Note", "note", "edit note", func(m *network.Model) *string { return &m.Note })
 	heading("Simulation")
 	number("End time", "t_end", "edit end time",

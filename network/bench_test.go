@@ -167,3 +167,40 @@ func BenchmarkParamJacobian1000(b *testing.B) {
 		s.ParamJacobian(1, y, &jac)
 	}
 }
+
+// BenchmarkCheckCascade50 measures Check, unit check included, on the
+// 50-species cascade: the editor runs it after every edit.
+func BenchmarkCheckCascade50(b *testing.B) {
+	m := loadExample(b, "signalling-cascade-50.json")
+	b.ReportAllocs()
+	for b.Loop() {
+		Check(m)
+	}
+}
+
+// BenchmarkRHSInhibited compares the right-hand side of a network of
+// mixed-inhibition steps (expression route) with Michaelis–Menten steps
+// (hand-written fast path) of the same size.
+func BenchmarkRHSInhibited(b *testing.B) {
+	for _, law := range []string{MichaelisMenten, MixedInhibition} {
+		m := &Model{Species: []Species{{Name: "I", Initial: 0.3}}, Parameters: []Parameter{{Name: "V", Value: 1}, {Name: "K", Value: 2}}}
+		for i := 0; i < 200; i++ {
+			m.Species = append(m.Species, Species{Name: fmt.Sprintf("S%d", i), Initial: 1})
+		}
+		for i := 0; i < 199; i++ {
+			r := NewRate(law, "vmax", "V", "km", "K")
+			if law == MixedInhibition {
+				r = NewRate(law, "vmax", "V", "km", "K", "inhibitor", "I", "ki", "K", "alpha_ki", "K")
+			}
+			m.Reactions = append(m.Reactions, Reaction{Name: fmt.Sprintf("r%d", i), Equation: fmt.Sprintf("S%d -> S%d", i, i+1), Rate: r})
+		}
+		s := mustCompile(b, m)
+		y, f := s.Initial(), make([]float64, s.Dim())
+		b.Run(law, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				s.RHS(0, y, f)
+			}
+		})
+	}
+}

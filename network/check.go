@@ -124,6 +124,7 @@ func Check(m *Model) (*Net, ErrorList) {
 	}
 	v.events()
 	v.simulation()
+	v.units()
 	for i, s := range m.Species {
 		if !v.usedSp[i] && isName(s.Name) {
 			v.add(Warning, "species", i, s.Name, "", 0, "this species takes part in no reaction and appears in no rate law")
@@ -288,7 +289,20 @@ func (v *validator) reaction(i int) {
 		return
 	}
 	cr.Law = law
-	c := &LawCheck{Rate: r.Rate, report: func(field, format string, args ...any) { errf(field, 0, format, args...) }}
+	c := &LawCheck{Rate: r.Rate, report: func(field, format string, args ...any) { errf(field, 0, format, args...) },
+		Compartment: func(name string) (string, bool) {
+			j, ok := v.speciesIx[name]
+			if !ok {
+				return "", false
+			}
+			switch comp := v.m.Species[j].Compartment; {
+			case len(v.m.Compartments) == 0:
+				return "", true // all in the implicit compartment
+			case comp != "":
+				return comp, true
+			}
+			return v.m.Compartments[0].Name, true
+		}}
 	if cr.EqOK {
 		c.Equation = &cr.Equation
 	}
@@ -379,7 +393,7 @@ func (v *validator) fieldValue(i int, item, field string, f Field, val Value) {
 		} else if j, ok := v.speciesIx[val.Name]; ok {
 			v.usedSp[j] = true
 		} else {
-			errf("%s %q is not a species; name the species that catalyses the reaction", f.Label, val.Name)
+			errf("%s %q is not a species; expected the name of a species", f.Label, val.Name)
 		}
 		return
 	}

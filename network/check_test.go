@@ -54,7 +54,7 @@ func TestValidateTable(t *testing.T) {
 		{"missing k", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Value{}) }, "reactions", "cut", "rate.k", 0, "Rate constant is missing", Error},
 		{"unknown parameter", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Named("kk")) }, "reactions", "cut", "rate.k", 0, `unknown parameter "kk"`, Error},
 		{"negative constant", func(m *Model) { m.Reactions[1].Rate = m.Reactions[1].Rate.With("k", Number(-1)) }, "reactions", "cut", "rate.k", 0, "Rate constant = -1 is not allowed; expected zero or a positive number", Error},
-		{"unknown law", func(m *Model) { m.Reactions[1].Rate.Law = "hill" }, "reactions", "cut", "rate.law", 0, `unknown rate law "hill"; expected one of mass_action, michaelis_menten, expression`, Error},
+		{"unknown law", func(m *Model) { m.Reactions[1].Rate.Law = "hill" }, "reactions", "cut", "rate.law", 0, `unknown rate law "hill"; expected one of mass_action, michaelis_menten, michaelis_menten_reversible, competitive_inhibition, uncompetitive_inhibition, noncompetitive_inhibition, mixed_inhibition, hill_activation, hill_repression, random_bi, ordered_bi, saturable_transport, expression`, Error},
 		{"missing law", func(m *Model) { m.Reactions[1].Rate = Rate{} }, "reactions", "cut", "rate.law", 0, "rate law is missing", Error},
 		{"mm both", func(m *Model) {
 			m.Reactions[1] = Reaction{Name: "cut", Equation: "S -> P", Rate: NewRate(MichaelisMenten, "vmax", Number(1), "kcat", Named("kcat"), "enzyme", Named("E"), "km", Number(1))}

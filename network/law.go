@@ -65,7 +65,12 @@ type Field struct {
 }
 
 // lawTable is the registry of rate laws, in the order menus show them.
-var lawTable = []Law{massAction{}, michaelisMenten{}, expressionLaw{}}
+var lawTable = []Law{
+	massAction{}, michaelisMenten{}, reversibleMM{},
+	inhibited{competitive}, inhibited{uncompetitive}, inhibited{noncompetitive}, inhibited{mixed},
+	hill{}, hill{repress: true}, randomBi{}, orderedBi{}, transport{},
+	expressionLaw{},
+}
 
 // Laws lists the rate law names in the order menus show them.
 var Laws = func() []string {
@@ -106,7 +111,10 @@ func rateKeys() []string {
 type LawCheck struct {
 	Rate     Rate
 	Equation *Equation // nil when the equation does not read
-	report   func(field string, format string, args ...any)
+	// Compartment returns the compartment of a declared species ("" for
+	// the implicit one) and whether the species is declared.
+	Compartment func(species string) (string, bool)
+	report      func(field string, format string, args ...any)
 }
 
 // Errorf reports an error at field ("equation", "rate", "rate.km", …).

@@ -52,6 +52,20 @@ func (massAction) Formula(r Rate, eq *Equation) string {
 	return f
 }
 
+// order returns the sum of the coefficients of a side of an equation.
+func order(ts []Term) float64 {
+	o := 0.0
+	for _, t := range ts {
+		o += t.Coef
+	}
+	return o
+}
+
+// fieldUnits: k of a step of order m is in Conc^(1−m)/Time.
+func (massAction) fieldUnits(eq Equation) map[string]dims {
+	return map[string]dims{"k": {1 - order(eq.Reactants), -1}, "k_reverse": {1 - order(eq.Products), -1}}
+}
+
 // compileMassAction sets up the fast path of a mass-action reaction.
 func (b *builder) compileMassAction(r *rxn, cr *CheckedReaction) {
 	r.kind = kindMassAction

@@ -37,10 +37,10 @@ func (michaelisMenten) Check(c *LawCheck) []string {
 	}
 	if eq := c.Equation; eq != nil {
 		if eq.Reversible {
-			c.Errorf("equation", "michaelis_menten applies to irreversible reactions only; use \"->\" or write the net rate as an expression")
+			c.Errorf("equation", "michaelis_menten applies to irreversible reactions only; use \"->\", or michaelis_menten_reversible for a reversible step with one substrate and one product")
 		}
 		if len(eq.Reactants) != 1 || eq.Reactants[0].Coef != 1 {
-			c.Errorf("equation", "michaelis_menten needs exactly one substrate with coefficient 1; use an expression law for other cases")
+			c.Errorf("equation", "michaelis_menten needs exactly one substrate with coefficient 1; use random_bi or ordered_bi for two substrates, or an expression law for other cases")
 		}
 	}
 	return uses
@@ -70,6 +70,10 @@ func (michaelisMenten) Formula(r Rate, eq *Equation) string {
 		return orPlaceholder(r.Arg("kcat")) + "·" + orPlaceholder(r.Arg("enzyme")) + "·" + s + "/(" + km + " + " + s + ")"
 	}
 	return orPlaceholder(r.Arg("vmax")) + "·" + s + "/(" + km + " + " + s + ")"
+}
+
+func (michaelisMenten) fieldUnits(Equation) map[string]dims {
+	return map[string]dims{"vmax": dimRate, "kcat": dimPerTime, "km": dimConc}
 }
 
 // compileMichaelisMenten sets up the fast path.

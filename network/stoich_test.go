@@ -34,7 +34,7 @@ func checkLaws(t *testing.T, m *Model) []ConservationLaw {
 		}
 	}
 	rank := 0
-	if n != nil {
+	if n != nil && len(free) > 0 {
 		sub := mat.NewDense(len(free), len(m.Reactions), nil)
 		for k, i := range free {
 			for j := range m.Reactions {

@@ -107,8 +107,8 @@ func TestJacobianExamples(t *testing.T) {
 	}
 }
 
-// randomModel builds a random network mixing all three laws over 1–8
-// species in 1–3 compartments.
+// randomModel builds a random network mixing every law of lawTable over
+// 1–8 species in 1–3 compartments (TestEveryLawInRandomModel keeps it so).
 func randomModel(rng *rand.Rand) *Model {
 	m := &Model{}
 	nc := 1 + rng.IntN(3)
@@ -171,7 +171,9 @@ func randomModel(rng *rand.Rand) *Model {
 	nr := 1 + rng.IntN(10)
 	for r := 0; r < nr; r++ {
 		rx := Reaction{Name: fmt.Sprintf("r%d", r)}
-		switch rng.IntN(3) {
+		switch k := rng.IntN(13); k {
+		case 3, 4, 5, 6, 7, 8, 9, 10, 11:
+			rx.Rate, rx.Equation = randomEnzymeLaw(k, rng, m, sp, par)
 		case 0:
 			lhs, rhs := side(2), side(2)
 			if lhs == "" && rhs == "" {
@@ -201,9 +203,86 @@ func randomModel(rng *rand.Rand) *Model {
 			rx.Equation = lhs + " -> " + rhs
 			rx.Rate = Rate{Law: Expression, Expression: gen(3)}
 		}
+		if rx.Rate.Law == "" { // the law does not fit this network
+			rx.Equation = sp() + " -> " + sp()
+			rx.Rate = NewRate(MassAction, "k", Named(par()))
+		}
 		m.Reactions = append(m.Reactions, rx)
 	}
 	return m
+}
+
+// randomEnzymeLaw returns a reaction with law k (3–11) of randomModel:
+// the laws beyond mass action, Michaelis–Menten and expressions, with
+// their constants parameters or numbers and their modifiers random
+// species. It returns an unset rate when the network cannot hold the law
+// (two different substrates or two compartments needed).
+func randomEnzymeLaw(k int, rng *rand.Rand, m *Model, sp, par func() string) (Rate, string) {
+	val := func() any {
+		if rng.IntN(3) == 0 {
+			return 0.2 + rng.Float64()
+		}
+		return par()
+	}
+	s, p := sp(), sp()
+	switch k {
+	case 3:
+		if rng.IntN(2) == 0 {
+			return NewRate(MichaelisMentenReversible, "vf", val(), "vr", val(), "kms", val(), "kmp", val()), s + " <=> " + p
+		}
+		return NewRate(MichaelisMentenReversible, "vf", val(), "keq", val(), "kms", val(), "kmp", val()), s + " <=> " + p
+	case 4, 5, 6, 7:
+		law := []string{CompetitiveInhibition, UncompetitiveInhibition, NoncompetitiveInhibition, MixedInhibition}[k-4]
+		r := NewRate(law, "vmax", val(), "km", val(), "inhibitor", sp(), "ki", val())
+		if law == MixedInhibition {
+			r = r.With("alpha_ki", Named(par()))
+		}
+		return r, s + " -> " + p
+	case 8, 9:
+		law := []string{HillActivation, HillRepression}[k-8]
+		r := NewRate(law, "vmax", val(), "k_half", val(), "n", val())
+		if law == HillRepression || rng.IntN(2) == 0 {
+			r = r.With("regulator", Named(sp()))
+		}
+		if law == HillRepression && rng.IntN(2) == 0 {
+			return r, "-> " + p // synthesis under repression
+		}
+		return r, s + " -> " + p
+	case 10:
+		b := sp()
+		if b == s {
+			return Rate{}, ""
+		}
+		if rng.IntN(2) == 0 {
+			return NewRate(RandomBi, "vmax", val(), "ka", val(), "kb", val(), "alpha", val()), s + " + " + b + " -> " + p
+		}
+		return NewRate(OrderedBi, "vmax", val(), "kia", val(), "kma", val(), "kmb", val()), s + " + " + b + " -> " + p
+	}
+	comp := map[string]string{}
+	for _, x := range m.Species {
+		comp[x.Name] = x.Compartment
+	}
+	if comp[s] == comp[p] {
+		return Rate{}, ""
+	}
+	return NewRate(Transport, "vmax", val(), "km", val()), s + " -> " + p
+}
+
+// Every law of the registry appears in some network of randomModel, so
+// the property tests cover it.
+func TestEveryLawInRandomModel(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 11))
+	seen := map[string]bool{}
+	for k := 0; k < 300; k++ {
+		for _, r := range randomModel(rng).Reactions {
+			seen[r.Rate.Law] = true
+		}
+	}
+	for _, l := range Laws {
+		if !seen[l] {
+			t.Errorf("law %s never appears in randomModel", l)
+		}
+	}
 }
 
 func TestJacobianRandomNetworks(t *testing.T) {

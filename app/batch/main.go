@@ -9,6 +9,7 @@
 //	batch sweep SPEC.json [flags]
 //	batch population SPEC.json [flags]
 //	batch merge PART.json... --out DIR
+//	batch check MODEL.json
 //	batch help
 //
 // Run "batch help" for the flags. Exit status: 0 on success, 1 when a run
@@ -57,6 +58,11 @@ Commands:
 
   merge PART.json... --out DIR
       Join the partial results of a sharded sweep or population.
+
+  check MODEL.json
+      Print every error and warning of a model, units included, one a line
+      with its place (file:line:column, item and field). Exit status 0 when
+      there is no error (warnings allowed), 2 otherwise.
 
   help
       Print this text.
