@@ -124,6 +124,7 @@ func Check(m *Model) (*Net, ErrorList) {
 	}
 	v.events()
 	v.simulation()
+	v.displayCheck()
 	v.units()
 	for i, s := range m.Species {
 		if !v.usedSp[i] && isName(s.Name) {

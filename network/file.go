@@ -258,7 +258,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		})
 	if v, ok := top.get("simulation"); ok {
 		d.mark("simulation", 0, "", v)
-		if o := d.object(v, "simulation", "t_end", "output", "rtol", "atol", "method", "non_negative"); o != nil {
+		if o := d.object(v, "simulation", "t_end", "output", "rtol", "atol", "method", "non_negative", "display"); o != nil {
 			s := &m.Simulation
 			s.TEnd = d.optNum(o, "t_end", "simulation")
 			s.RTol = d.optNum(o, "rtol", "simulation")
@@ -288,6 +288,9 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 					s.Output.First = d.optNum(oo, "first", "simulation.output")
 				}
 			}
+			if x, ok := o.get("display"); ok {
+				d.display(x, &s.Display)
+			}
 		}
 	}
 	if d.errs.HasErrors() {
@@ -296,6 +299,30 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 	}
 	m.Simulation = m.Simulation.WithDefaults()
 	return m, nil
+}
+
+// display decodes the display units of the simulation settings, each of
+// which must read as a unit of its kind (the model's units are compared
+// with them by Check).
+func (d *decoder) display(x *jnode, out *Display) {
+	const path = "simulation.display"
+	oo := d.object(x, path, "time", "concentration")
+	if oo == nil {
+		return
+	}
+	for j, k := range oo.keys {
+		d.mark("simulation", 0, "display."+k, oo.vals[j])
+	}
+	out.Time = d.optStr(oo, "time", path)
+	out.Concentration = d.optStr(oo, "concentration", path)
+	for _, p := range displayIssues(*out, Units{}, false) {
+		n, _ := oo.get(strings.TrimPrefix(p.field, "display."))
+		off := n.off
+		if p.col > 0 {
+			off += int64(p.col) // past the opening quote
+		}
+		d.failAt(off, "simulation."+p.field, "%s", p.msg)
+	}
 }
 
 // items decodes the list under key of top, calling item for each object in
@@ -485,12 +512,17 @@ type (
 	fileChanges    []Change
 	fileValue      Value
 	fileSimulation struct {
-		TEnd        float64     `json:"t_end,omitempty"`
-		Output      *fileOutput `json:"output,omitempty"`
-		RTol        float64     `json:"rtol,omitempty"`
-		ATol        float64     `json:"atol,omitempty"`
-		Method      string      `json:"method,omitempty"`
-		NonNegative *bool       `json:"non_negative,omitempty"`
+		TEnd        float64      `json:"t_end,omitempty"`
+		Output      *fileOutput  `json:"output,omitempty"`
+		RTol        float64      `json:"rtol,omitempty"`
+		ATol        float64      `json:"atol,omitempty"`
+		Method      string       `json:"method,omitempty"`
+		NonNegative *bool        `json:"non_negative,omitempty"`
+		Display     *fileDisplay `json:"display,omitempty"`
+	}
+	fileDisplay struct {
+		Time          string `json:"time,omitempty"`
+		Concentration string `json:"concentration,omitempty"`
 	}
 	fileOutput struct {
 		Points  int     `json:"points,omitempty"`
@@ -632,6 +664,9 @@ func (m *Model) Write(w io.Writer) error {
 	fs := fileSimulation{TEnd: s.TEnd, RTol: s.RTol, ATol: s.ATol, Method: s.Method, NonNegative: s.NonNegative}
 	if s.Output != (Output{}) {
 		fs.Output = &fileOutput{Points: s.Output.Points, Spacing: s.Output.Spacing, First: s.Output.First}
+	}
+	if s.Display != (Display{}) {
+		fs.Display = &fileDisplay{Time: s.Display.Time, Concentration: s.Display.Concentration}
 	}
 	if fs != (fileSimulation{}) {
 		f.Simulation = &fs

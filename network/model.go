@@ -241,6 +241,18 @@ type Simulation struct {
 	Method string
 	// NonNegative keeps concentrations ≥ 0 during integration; nil means on.
 	NonNegative *bool
+	// Display chooses the units results are shown in; empty fields mean
+	// the model's own units (Model.Units).
+	Display Display
+}
+
+// Display holds the units that figures, tables and exports show results
+// in, each converted from the model's units (Model.Units) when shown.
+// Time is a unit of time ("h"), Concentration a concentration of the
+// same kind as the model's ("nM" for a model in uM). An empty field keeps
+// the model's unit. The model's stored values never change.
+type Display struct {
+	Time, Concentration string
 }
 
 // Methods lists the accepted values of Simulation.Method.
