@@ -86,6 +86,19 @@ func sameKindExample(u units.Unit) string {
 	return "mM, uM, nM or pM"
 }
 
+// Check reports the problems of the display units d for a model in the
+// units u, each at its field ("display.time", "display.concentration") of
+// the simulation settings: a unit that does not read, is of the wrong
+// kind, or does not convert from the model's. Check of a whole model
+// reports the same.
+func (d Display) Check(u Units) ErrorList {
+	var l ErrorList
+	for _, p := range displayIssues(d, u, true) {
+		l.Add(Pos{Section: "simulation", Field: p.field, Col: p.col}, Error, "%s", p.msg)
+	}
+	return l
+}
+
 // displayCheck reports the display units' problems as errors: results
 // cannot be shown in a unit that does not convert from the model's.
 func (v *validator) displayCheck() {

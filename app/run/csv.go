@@ -3,16 +3,19 @@ package run
 import (
 	"io"
 	"strconv"
+	"strings"
 
 	"kinetarium/internal/atomicfile"
+	"kinetarium/plotting"
 )
 
-// Rows lays out the outcome as a table: a header "time,<species…>" and one
-// row per output time, numbers in their shortest exact form (strconv 'g',
-// -1).
+// Rows lays out the outcome as a table: a header of the columns with
+// their units, "time (h)", "P (nM)" (a name alone where no unit is
+// known), and one row per output time, numbers in their shortest exact
+// form (strconv 'g', -1).
 func Rows(o *Outcome) [][]string {
 	rows := make([][]string, 0, len(o.T)+1)
-	rows = append(rows, append([]string{"time"}, o.Names...))
+	rows = append(rows, Header(o))
 	for i, t := range o.T {
 		rec := make([]string, 0, len(o.Names)+1)
 		rec = append(rec, strconv.FormatFloat(t, 'g', -1, 64))
@@ -22,6 +25,23 @@ func Rows(o *Outcome) [][]string {
 		rows = append(rows, rec)
 	}
 	return rows
+}
+
+// Header returns the table's column names with their units: "time (h)",
+// then each species and assignment as "NAME (UNIT)", or the name alone
+// when its unit is not known.
+func Header(o *Outcome) []string {
+	h := make([]string, 0, len(o.Names)+1)
+	h = append(h, withUnit("time", o.TimeUnit))
+	for j, n := range o.Names {
+		h = append(h, withUnit(n, o.unitOf(j)))
+	}
+	return h
+}
+
+// withUnit writes a column name as the figures write axis labels.
+func withUnit(name, unit string) string {
+	return plotting.AxisLabel(name, strings.TrimSpace(unit))
 }
 
 // WriteCSV writes the outcome's Rows to w as CSV.

@@ -41,6 +41,9 @@ type Provenance struct {
 	// Changed lists the values tried on sliders that differ from the
 	// model's.
 	Changed []Change `json:"changed,omitempty"`
+	// ShownIn gives the display units results were converted to, when
+	// any were chosen (the model's own units otherwise).
+	ShownIn *ShownIn `json:"shown_in,omitempty"`
 	// Exported is the time of export, in UTC to the second.
 	Exported time.Time `json:"exported"`
 }
@@ -56,6 +59,13 @@ type Solver struct {
 	ATol        float64 `json:"atol"`
 	Method      string  `json:"method"`
 	NonNegative bool    `json:"non_negative"`
+}
+
+// ShownIn is the display units of a result: empty fields are the
+// model's own.
+type ShownIn struct {
+	Time          string `json:"time,omitempty"`
+	Concentration string `json:"concentration,omitempty"`
 }
 
 // Change is a model value run with another value: Name is a knob
@@ -85,6 +95,10 @@ func NewProvenance(what string, m *network.Model, sim network.Simulation, change
 		return nil, fmt.Errorf("provenance: %w", err)
 	}
 	sim = sim.WithDefaults()
+	var shown *ShownIn
+	if d := sim.Display; d != (network.Display{}) {
+		shown = &ShownIn{Time: d.Time, Concentration: d.Concentration}
+	}
 	return &Provenance{
 		Program: Program, Version: Version, What: what,
 		ModelTitle: m.Title, ModelSHA256: sum,
@@ -93,6 +107,7 @@ func NewProvenance(what string, m *network.Model, sim network.Simulation, change
 			RTol: sim.RTol, ATol: sim.ATol, Method: sim.Method, NonNegative: sim.NonNegative == nil || *sim.NonNegative,
 		},
 		Changed:  changed,
+		ShownIn:  shown,
 		Exported: ExportTime(),
 	}, nil
 }

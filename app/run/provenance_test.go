@@ -93,9 +93,10 @@ func TestProvenanceCompanionRoundTrip(t *testing.T) {
 	if got.Program != Program || got.ModelTitle != m.Title || got.Solver.RTol != m.Simulation.WithDefaults().RTol {
 		t.Errorf("provenance %+v lacks the program, title or settings", got)
 	}
-	// The table itself stays plain CSV: its first line is the header.
+	// The table itself stays plain CSV: its first line is the header,
+	// with the model's units (hours).
 	csv, _ := os.ReadFile(path)
-	if !bytes.HasPrefix(csv, []byte("time,")) {
+	if !bytes.HasPrefix(csv, []byte("time (h),")) {
 		t.Errorf("results.csv starts %q, want its header", csv[:min(len(csv), 20)])
 	}
 }

@@ -17,17 +17,26 @@ import (
 	"kinetarium/solve"
 )
 
-// Outcome is the result of one simulation of a model.
+// Outcome is the result of one simulation of a model, in the units it is
+// shown in: the model's display units (network.Display) where it has them,
+// else its own (see Convert).
 type Outcome struct {
 	Title      string
-	TimeUnit   string
-	AmountUnit string
+	TimeUnit   string // unit of T, events, jumps and TEnd
+	AmountUnit string // unit of the species columns
 	// Names are the species in model order, then the assignments in
 	// model order; the first Species of them are species.
 	Names   []string
 	Species int
-	T       []float64   // output times
-	Y       [][]float64 // Y[i][j] is quantity j (species, then assignments) at T[i]
+	// Units holds the unit of each column of Names, "" where none is
+	// known: AmountUnit for species, and each assignment's declared unit
+	// (converted to AmountUnit when it is a concentration).
+	Units []string
+	// Notes say what the display units left as it was, such as an
+	// assignment whose unit is not a concentration.
+	Notes []string
+	T     []float64   // output times
+	Y     [][]float64 // Y[i][j] is quantity j (species, then assignments) at T[i]
 	// Events are the events that fired, and Jumps the quantities just
 	// before and after each time they fired (assignments included).
 	Events  []solve.Firing
@@ -74,13 +83,25 @@ func Run(ctx context.Context, m *network.Model, progress func(float64)) (*Outcom
 // NewOutcome packs the result of a solve of m, compiled as sys, begun at
 // start — complete, or partial when err is not nil — with the species
 // names, and adds a column for each assignment, evaluated at every output
-// time. A cancelled solve's error says so.
+// time, then shows it in the model's display units (Convert). A cancelled
+// solve's error says so.
 func NewOutcome(m *network.Model, sys *network.System, res *solve.Result, err error, start time.Time) (*Outcome, error) {
 	species, asg := sys.Species(), sys.Assignments()
 	out := &Outcome{
 		Title: m.Title, TimeUnit: m.Units.Time, AmountUnit: m.Units.Amount,
 		Names:   append(append([]string(nil), species...), asg...),
 		Species: len(species),
+	}
+	out.Units = make([]string, len(out.Names))
+	for j := range species {
+		out.Units[j] = m.Units.Amount
+	}
+	for k, name := range asg {
+		for _, a := range m.Assignments {
+			if a.Name == name {
+				out.Units[len(species)+k] = a.Unit
+			}
+		}
 	}
 	sim := m.Simulation.WithDefaults()
 	out.TEnd, out.LogGrid = sim.TEnd, sim.Output.Spacing == "log"
@@ -103,6 +124,13 @@ func NewOutcome(m *network.Model, sys *network.System, res *solve.Result, err er
 				out.Jumps[i] = solve.Jump{T: j.T, Before: extend(j.T, j.Before), After: extend(j.T, j.After)}
 			}
 		}
+	}
+	if shown, cerr := out.Convert(m.Simulation.Display); cerr != nil {
+		// Check refuses display units that do not convert, so this is
+		// a model that was never checked: show it as computed.
+		out.Notes = append(out.Notes, cerr.Error()+"; results are shown in the model's units")
+	} else {
+		out = shown
 	}
 	out.Elapsed = time.Since(start)
 	if err != nil {
