@@ -47,6 +47,13 @@ Commands:
                            (events_fired counts the events that fired)
         --event-rows       add two rows at each event: just before, just after
         --repeat N         solve N times and report the median solve time
+        --time-unit U      show times in U (s, min, h, day), converted from
+                           the model's time unit; the table's header and
+                           the figure say so ("time (h)")
+        --concentration-unit U
+                           show concentrations in U (M, mM, uM, nM, pM, or
+                           mg/L for a model in mass units), converted from
+                           the model's concentration unit ("P (nM)")
 
   sweep SPEC.json [--out DIR] [--shard i/n] [--workers N] [--quiet]
       Vary one or two parameters over a grid and write readouts, tables

@@ -41,7 +41,9 @@ type simFlags struct {
 	stats   bool
 	events  bool // --event-rows
 	repeat  int
-	set     map[string]bool
+	// display units: --time-unit and --concentration-unit
+	timeUnit, concUnit string
+	set                map[string]bool
 }
 
 // simBadf returns an input error (exit status 2) of the command line.
@@ -67,6 +69,8 @@ func parseSimFlags(args []string) (*simFlags, error) {
 	fs.BoolVar(&f.stats, "stats", false, "")
 	fs.BoolVar(&f.events, "event-rows", false, "")
 	fs.IntVar(&f.repeat, "repeat", 1, "")
+	fs.StringVar(&f.timeUnit, "time-unit", "", "")
+	fs.StringVar(&f.concUnit, "concentration-unit", "", "")
 	var pos []string
 	for {
 		if err := fs.Parse(args); err != nil {
@@ -127,7 +131,7 @@ func runSimulate(args []string, stdout, stderr io.Writer) int {
 	if err == nil {
 		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 		defer stop()
-		err = simulate(ctx, f, stdout)
+		err = simulate(ctx, f, stdout, stderr)
 	}
 	return exitStatus("simulate", err, stderr)
 }
@@ -156,8 +160,10 @@ type simStats struct {
 	Methods        []string `json:"methods"`
 }
 
-// simulate runs the subcommand after the command line was parsed.
-func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
+// simulate runs the subcommand after the command line was parsed. Notes
+// on the table (columns the display units leave as computed) go to
+// stderr.
+func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error {
 	m, err := network.Load(f.model)
 	if err != nil {
 		return badInput(err)
@@ -181,6 +187,20 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 	}
 	if f.set["method"] {
 		sim.Method = f.method
+	}
+	if f.set["time-unit"] {
+		sim.Display.Time = f.timeUnit
+	}
+	if f.set["concentration-unit"] {
+		sim.Display.Concentration = f.concUnit
+	}
+	if f.set["time-unit"] || f.set["concentration-unit"] {
+		flag := map[string]string{"display.time": "--time-unit", "display.concentration": "--concentration-unit"}
+		for _, p := range sim.Display.Check(m.Units) {
+			if name := flag[p.Pos.Field]; f.set[strings.TrimPrefix(name, "--")] {
+				return simBadf("%s: %s", name, p.Message)
+			}
+		}
 	}
 	m.Simulation = sim
 	prov, err := run.NewProvenance("simulation", saved, sim, nil)
@@ -218,6 +238,9 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 	// Write what was computed, even after a failure.
 	var outErr error
 	traj, _ := run.NewOutcome(m, sys, res, nil, time.Now()) // species and assignments
+	for _, n := range traj.Notes {
+		fmt.Fprintf(stderr, "simulate: note: %s\n", n)
+	}
 	table := traj
 	if f.events {
 		table = traj.WithEventRows()

@@ -78,12 +78,20 @@ func TestSimulateExamples(t *testing.T) {
 			}
 			sim := m.Simulation.WithDefaults()
 			header, times, _ := parseTable(t, out)
-			want := []string{"time"}
+			// Each column carries the model's unit, the assignments
+			// their own.
+			unit := func(name, u string) string {
+				if u == "" {
+					return name
+				}
+				return name + " (" + u + ")"
+			}
+			want := []string{unit("time", m.Units.Time)}
 			for _, s := range m.Species {
-				want = append(want, s.Name)
+				want = append(want, unit(s.Name, m.Units.Amount))
 			}
 			for _, a := range m.Assignments { // assignments follow the species
-				want = append(want, a.Name)
+				want = append(want, unit(a.Name, a.Unit))
 			}
 			if strings.Join(header, ",") != strings.Join(want, ",") {
 				t.Errorf("header %v, want %v", header, want)
@@ -115,8 +123,8 @@ func TestSimulateFirstOrderClosedForm(t *testing.T) {
 		t.Fatal(err)
 	}
 	header, times, rows := parseTable(t, string(data))
-	if strings.Join(header, ",") != "time,A,B" {
-		t.Fatalf("header %v", header)
+	if strings.Join(header, ",") != "time (s),A (uM),B (uM)" {
+		t.Fatalf("header %v, want time (s), A (uM), B (uM)", header)
 	}
 	if len(times) != 9 || times[8] != 4 {
 		t.Fatalf("times %v, want 9 from 0 to exactly 4", times)
@@ -358,5 +366,82 @@ func TestSolverErrorNamesTheSpecies(t *testing.T) {
 	}
 	if !strings.Contains(errs, "t = 1 ") {
 		t.Errorf("stderr %q does not give the time the rate became undefined (t = 1)", errs)
+	}
+}
+
+// --time-unit and --concentration-unit show the table in other units:
+// decay.json (uM and s, A0 = 2 uM, k = 0.5 1/s) in nM and minutes has
+// times ÷ 60 and concentrations × 1000, checked against the closed form
+// A(t) = A0·exp(−k·t) (common practice; 1 min = 60 s, 1 uM = 1000 nM).
+// The flags override display units in the model, and the model's own
+// stored values do not change.
+func TestSimulateDisplayUnitFlags(t *testing.T) {
+	rc, out, errs := simRun(simTestdata+"decay.json", "--time-unit", "min", "--concentration-unit", "nM")
+	if rc != 0 {
+		t.Fatalf("exit %d: %s", rc, errs)
+	}
+	header, times, rows := parseTable(t, out)
+	if strings.Join(header, ",") != "time (min),A (nM),B (nM)" {
+		t.Fatalf("header %v, want time (min), A (nM), B (nM)", header)
+	}
+	if len(times) != 9 || times[8] != 4.0/60 {
+		t.Fatalf("times %v, want 9 from 0 to exactly 4/60 min", times)
+	}
+	const a0, k = 2.0, 0.5
+	for i, tm := range times {
+		if want := (4 * float64(i) / 8) / 60; tm != want {
+			t.Errorf("time %d = %v min, want %v", i, tm, want)
+		}
+		a := 1000 * a0 * math.Exp(-k*60*tm)
+		if d := math.Abs(rows[i][0] - a); d > 1e-7*1000*a0 {
+			t.Errorf("A(%v min) = %v nM, want %v (error %.2g)", tm, rows[i][0], a, d)
+		}
+	}
+
+	// A model that asks for hours and pM is overridden by the flags.
+	m, err := network.Load(simTestdata + "decay.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Simulation.Display = network.Display{Time: "h", Concentration: "pM"}
+	path := filepath.Join(t.TempDir(), "shown.json")
+	if err := m.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	rc, out, errs = simRun(path)
+	if header, _, _ = parseTable(t, out); rc != 0 || strings.Join(header, ",") != "time (h),A (pM),B (pM)" {
+		t.Fatalf("the model's display units: exit %d, header %v (%s)", rc, header, errs)
+	}
+	rc, out, errs = simRun(path, "--concentration-unit", "mM")
+	if header, _, _ = parseTable(t, out); rc != 0 || strings.Join(header, ",") != "time (h),A (mM),B (mM)" {
+		t.Fatalf("--concentration-unit mM over the model's pM: exit %d, header %v (%s)", rc, header, errs)
+	}
+
+	// An assignment whose unit is not a concentration stays as computed,
+	// and stderr says so: body_amount is in mg in a model in mg/L.
+	rc, out, errs = simRun("../../examples/twice-daily-oral-dose.json", "--concentration-unit", "ug/mL", "--time-unit", "day")
+	header, _, _ = parseTable(t, out)
+	if rc != 0 || header[0] != "time (day)" || header[1] != "D_gut (ug/mL)" || header[len(header)-1] != "body_amount (mg)" ||
+		!strings.Contains(errs, "note: body_amount is in mg, not a concentration") {
+		t.Fatalf("exit %d, header %v, stderr %q; want body_amount left in mg with a note", rc, header, errs)
+	}
+}
+
+// A display unit of the wrong kind, one that does not read, or one that
+// does not convert from the model's is refused with the flag's name, exit
+// status 2, and nothing written.
+func TestSimulateDisplayUnitFlagErrors(t *testing.T) {
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--time-unit", "nM"}, `--time-unit: "nM" is not a unit of time (it is concentration)`},
+		{[]string{"--concentration-unit", "mg/L"}, `--concentration-unit: cannot show concentrations in mg/L: the model's concentration unit uM measures concentration and mg/L measures mass concentration`},
+		{[]string{"--concentration-unit", "nM/"}, `--concentration-unit: the concentration unit to show results in, "nM/", does not read: "/" needs a unit after it`},
+	} {
+		rc, out, errs := simRun(append([]string{simTestdata + "decay.json"}, c.args...)...)
+		if rc != 2 || out != "" || !strings.Contains(errs, c.want) {
+			t.Errorf("%v: exit %d, stdout %q, stderr %q; want exit 2 and %q", c.args, rc, out, errs, c.want)
+		}
 	}
 }
