@@ -111,16 +111,22 @@ func (w *mainWindow) exportData() {
 	}
 	o := w.current
 	w.saveFileDialog(w.dataFileName(), ".csv", func(path string) {
-		prov, err := w.provenance()
-		if err == nil {
-			err = run.SaveCSV(path, o, prov)
-		}
-		if err != nil {
+		if err := w.saveData(path, o); err != nil {
 			w.showError(err)
 			return
 		}
 		w.setStatus("Data saved to "+path+", its provenance to "+run.ProvenancePath(path), false)
 	})
+}
+
+// saveData writes the outcome o, in the units it is shown in, as CSV to
+// path with its provenance beside it.
+func (w *mainWindow) saveData(path string, o *run.Outcome) error {
+	prov, err := w.provenance()
+	if err != nil {
+		return err
+	}
+	return run.SaveCSV(path, o, prov)
 }
 
 // dataFileName is the name offered for the results as CSV: "results.csv",

@@ -5,6 +5,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"fyne.io/fyne/v2/test"
@@ -228,5 +229,66 @@ func TestFigureWindowEqualsBatch(t *testing.T) {
 		if len(x) == 0 || !bytes.Equal(x, y) {
 			t.Errorf("%s: the window's figure (%d bytes) differs from the batch command's (%d bytes)", ext, len(x), len(y))
 		}
+	}
+}
+
+// With display units the window's CSV export and the batch command's table
+// are the same file, byte for byte, and so are their provenance files:
+// the model asks for days and ug/mL (it is in h and mg/L), and the
+// header reads "time (day)", "D_gut (ug/mL)", with body_amount left in
+// mg. The batch command's --time-unit and --concentration-unit on the
+// model without display units give the same table.
+func TestDataWindowEqualsBatchInDisplayUnits(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds and runs the batch command")
+	}
+	t.Setenv("SOURCE_DATE_EPOCH", "1700000000")
+	const example = "../examples/twice-daily-oral-dose.json"
+	m, err := network.Load(example)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Simulation.Display = network.Display{Time: "day", Concentration: "ug/mL"}
+	dir := t.TempDir()
+	model := filepath.Join(dir, "shown.json")
+	if err := m.Save(model); err != nil {
+		t.Fatal(err)
+	}
+	if m, err = network.Load(model); err != nil {
+		t.Fatal(err)
+	}
+	a := test.NewTempApp(t)
+	w := newMainWindow(a, true)
+	defer w.win.Close()
+	onUI(func() { w.setModel(m, model) })
+	onUI(w.simulate)
+	waitFor(t, "the run", func() bool { return w.current != nil && !w.ctrl.Running() })
+	var saveErr error
+	onUI(func() { saveErr = w.saveData(filepath.Join(dir, "window.csv"), w.current) })
+	if saveErr != nil {
+		t.Fatal(saveErr)
+	}
+	batch := func(out string, args ...string) {
+		t.Helper()
+		cmd := exec.Command("go", append([]string{"run", "kinetarium/app/batch", "simulate"}, append(args, "--out", out)...)...)
+		var stderr bytes.Buffer
+		cmd.Stderr = &stderr
+		if err := cmd.Run(); err != nil {
+			t.Fatalf("batch simulate %v: %v\n%s", args, err, stderr.String())
+		}
+	}
+	batch(filepath.Join(dir, "batch.csv"), model)
+	sameFile(t, filepath.Join(dir, "window.csv"), dir, "batch.csv")
+	sameFile(t, filepath.Join(dir, "window.provenance.json"), dir, "batch.provenance.json")
+	batch(filepath.Join(dir, "flags.csv"), example, "--time-unit", "day", "--concentration-unit", "ug/mL")
+	sameFile(t, filepath.Join(dir, "window.csv"), dir, "flags.csv")
+
+	data, _ := os.ReadFile(filepath.Join(dir, "window.csv"))
+	head, _, _ := bytes.Cut(data, []byte("\n"))
+	if !bytes.HasPrefix(head, []byte("time (day),D_gut (ug/mL),")) || !bytes.HasSuffix(head, []byte(",body_amount (mg)")) {
+		t.Errorf("header %q, want time (day), D_gut (ug/mL), … body_amount (mg)", head)
+	}
+	if len(w.current.Notes) != 1 || !strings.Contains(runInfoText(w.current), "body_amount is in mg") {
+		t.Errorf("notes %q; About the last run should say body_amount stays in mg", w.current.Notes)
 	}
 }

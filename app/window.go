@@ -383,6 +383,8 @@ func (w *mainWindow) runDone(_ int, o *run.Outcome, err error) {
 	w.runInfo.Show()
 	if err != nil {
 		line = stoppedLine(o) + " " + line
+	} else if len(o.Notes) > 0 {
+		line += " Some columns are not in the display units (the information button on the left says which)."
 	}
 	w.setStatus(line, err != nil)
 	w.refreshSpecies()
@@ -580,5 +582,8 @@ func runInfoText(o *run.Outcome) string {
 		"Right-hand side evaluations: %d\nJacobian evaluations: %d\nMatrix factorizations: %d\n"+
 		"Steps where a concentration was kept from going negative: %d",
 		roundDuration(o.Elapsed), st.Steps, st.Rejected, st.RHSEvals, st.JacobianEvals, st.Factorizations, st.NonNegFixes)
+	if len(o.Notes) > 0 {
+		text += "\n\nUnits: " + strings.Join(o.Notes, ".\n") + "."
+	}
 	return text
 }

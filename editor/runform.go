@@ -1,6 +1,8 @@
 package editor
 
 import (
+	"fmt"
+
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/widget"
@@ -131,7 +133,43 @@ func newRunForm(ed *Editor) *runForm {
 		ed.edit("change non-negative", func(m *network.Model) { m.Simulation.NonNegative = &on })
 	})
 	f.addField("", "non_negative", f.nonneg)
+	heading("Units of results")
+	shown := func(label, name, desc string, choices []string, ptr func(m *network.Model) *string) {
+		e, load := f.choiceInput(name, desc, choices, func(m *network.Model, _ int) *string { return ptr(m) })
+		e.SetPlaceHolder("the model's unit")
+		f.addField(label, name, e)
+		f.loads = append(f.loads, load)
+	}
+	shown("Show time in", "display.time", "change the time unit shown", TimeChoices,
+		func(m *network.Model) *string { return &m.Simulation.Display.Time })
+	shown("Show concentrations in", "display.concentration", "change the concentration unit shown", ConcentrationChoices,
+		func(m *network.Model) *string { return &m.Simulation.Display.Concentration })
 	return f
+}
+
+// TimeChoices and ConcentrationChoices are the display units offered in
+// the run settings; any other unit may be typed.
+var (
+	TimeChoices          = []string{"s", "min", "h", "day"}
+	ConcentrationChoices = []string{"M", "mM", "uM", "nM", "pM", "mg/L", "ug/mL", "ng/mL"}
+)
+
+// choiceInput is textInput with a list of common values to pick from.
+func (f *formBase) choiceInput(name, desc string, choices []string, ptr func(m *network.Model, i int) *string) (*widget.SelectEntry, func(m *network.Model, i int)) {
+	e := widget.NewSelectEntry(choices)
+	e.OnChanged = func(text string) {
+		if f.loading {
+			return
+		}
+		i := f.row
+		f.ed.editMerged(fmt.Sprintf("%s/%d/%s", f.section, i, name), desc, func(m *network.Model) { *ptr(m, i) = text })
+	}
+	load := func(m *network.Model, i int) {
+		if s := *ptr(m, i); e.Text != s {
+			e.SetText(s)
+		}
+	}
+	return e, load
 }
 
 func (f *runForm) load(m *network.Model, _ int) {

@@ -22,6 +22,7 @@ import (
 // does not read or does not convert from o's is an error, and o is
 // returned unchanged with it.
 func (o *Outcome) Convert(d network.Display) (*Outcome, error) {
+	d.Time, d.Concentration = strings.TrimSpace(d.Time), strings.TrimSpace(d.Concentration)
 	ft, err := factor(o.TimeUnit, d.Time, "times", true)
 	if err != nil {
 		return o, err
