@@ -57,7 +57,14 @@ reaction's rate must then come out in concentration per time; the form
 shows the unit each field needs ("Rate constant in 1/(uM·s) for a
 second-order step") and the messages name any field or part of a formula
 whose unit does not fit, with the factor when only the scale is off.
-Units are checked, never used to convert numbers.
+Units are checked, never used to convert numbers in the calculation.
+
+To see results in other units, choose them under Units of results in Run
+settings (Show time in: h; Show concentrations in: nM). The plot, the
+pointer readout, Data… (headers such as "time (h)", "P (nM)") and
+Figure… follow; the model's own numbers do not change. An assignment is
+converted only when its unit is a concentration; the others stay as
+computed, and About the last run says so.
 
 ## Expressions
 

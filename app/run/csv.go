@@ -34,7 +34,7 @@ func Header(o *Outcome) []string {
 	h := make([]string, 0, len(o.Names)+1)
 	h = append(h, withUnit("time", o.TimeUnit))
 	for j, n := range o.Names {
-		h = append(h, withUnit(n, o.unitOf(j)))
+		h = append(h, withUnit(n, o.ColumnUnit(j)))
 	}
 	return h
 }

@@ -39,7 +39,7 @@ func (o *Outcome) Convert(d network.Display) (*Outcome, error) {
 	c.Units = make([]string, len(o.Names))
 	c.Notes = append([]string(nil), o.Notes...)
 	for j := range o.Names {
-		c.Units[j], col[j] = o.unitOf(j), scale{1, 1}
+		c.Units[j], col[j] = o.ColumnUnit(j), scale{1, 1}
 	}
 	if d.Concentration != "" {
 		to := units.MustParse(d.Concentration) // factor read it
@@ -48,7 +48,7 @@ func (o *Outcome) Convert(d network.Display) (*Outcome, error) {
 				c.Units[j], col[j] = d.Concentration, fc
 				continue
 			}
-			own := o.unitOf(j)
+			own := o.ColumnUnit(j)
 			u, err := units.Parse(own)
 			switch {
 			case strings.TrimSpace(own) == "":
@@ -93,7 +93,7 @@ func (o *Outcome) Convert(d network.Display) (*Outcome, error) {
 
 // unitOf returns the unit of column j: o.Units[j] when given, else the
 // concentration unit for a species and "" for an assignment.
-func (o *Outcome) unitOf(j int) string {
+func (o *Outcome) ColumnUnit(j int) string {
 	if j < len(o.Units) {
 		return o.Units[j]
 	}
