@@ -60,7 +60,7 @@ whose unit does not fit, with the factor when only the scale is off.
 Units are checked, never used to convert numbers in the calculation.
 
 To see results in other units, choose them under Units of results in Run
-settings (Show time in: h; Show concentrations in: nM). The plot, the
+settings (Time in: h; Concentration in: nM). The plot, the
 pointer readout, Data… (headers such as "time (h)", "P (nM)") and
 Figure… follow; the model's own numbers do not change. An assignment is
 converted only when its unit is a concentration; the others stay as

@@ -384,7 +384,7 @@ func (w *mainWindow) runDone(_ int, o *run.Outcome, err error) {
 	if err != nil {
 		line = stoppedLine(o) + " " + line
 	} else if len(o.Notes) > 0 {
-		line += " Some columns are not in the display units (the information button on the left says which)."
+		line += " Some columns keep their own units (see the information button)."
 	}
 	w.setStatus(line, err != nil)
 	w.refreshSpecies()

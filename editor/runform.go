@@ -140,9 +140,9 @@ func newRunForm(ed *Editor) *runForm {
 		f.addField(label, name, e)
 		f.loads = append(f.loads, load)
 	}
-	shown("Show time in", "display.time", "change the time unit shown", TimeChoices,
+	shown("Time in", "display.time", "change the time unit shown", TimeChoices,
 		func(m *network.Model) *string { return &m.Simulation.Display.Time })
-	shown("Show concentrations in", "display.concentration", "change the concentration unit shown", ConcentrationChoices,
+	shown("Concentration in", "display.concentration", "change the concentration unit shown", ConcentrationChoices,
 		func(m *network.Model) *string { return &m.Simulation.Display.Concentration })
 	return f
 }

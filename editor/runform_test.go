@@ -67,7 +67,7 @@ func TestRunSettingsDisplayUnits(t *testing.T) {
 	for _, p := range errorsOf(e) {
 		described = e.Describe(p)
 	}
-	if !strings.Contains(described, "Show concentrations in") {
+	if !strings.Contains(described, "Concentration in") {
 		t.Errorf("the message is described as %q, want the form's label", described)
 	}
 	ce.SetText("")
