@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
+	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve"
 )
@@ -72,8 +73,8 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 	for _, e := range o.Events {
 		opt.Marks = append(opt.Marks, plotting.Mark{X: e.T, Label: e.Name})
 	}
-	if v.Previous != nil && len(v.Previous.T) > 0 {
-		prev := v.Previous.Trajectories()
+	if prev := sameUnits(v.Previous, o); prev != nil && len(prev.T) > 0 {
+		prev := prev.Trajectories()
 		opt.Overlay = &prev
 		opt.OverlayLabel = v.PreviousLabel
 	}
@@ -112,6 +113,23 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 		p.Y.Min, p.Y.Max = z.YMin, z.YMax
 	}
 	return p, nil
+}
+
+// sameUnits returns prev in the units o is shown in (the display units
+// may have changed between the runs), or nil when prev is nil or cannot
+// be converted.
+func sameUnits(prev, o *Outcome) *Outcome {
+	if prev == nil || prev.TimeUnit == o.TimeUnit && prev.AmountUnit == o.AmountUnit {
+		return prev
+	}
+	if prev.TimeUnit == "" || o.TimeUnit == "" || prev.AmountUnit == "" || o.AmountUnit == "" {
+		return nil // labels only: no common scale
+	}
+	c, err := prev.Convert(network.Display{Time: o.TimeUnit, Concentration: o.AmountUnit})
+	if err != nil {
+		return nil
+	}
+	return c
 }
 
 func validRange(z *Range, v View) bool {

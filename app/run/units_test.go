@@ -152,3 +152,30 @@ func TestConvertRefuses(t *testing.T) {
 		t.Errorf("Convert to no display units = %p, %v; want o itself", got, err)
 	}
 }
+
+// A previous run shown in other units is drawn in the present run's: a run
+// in uM beneath one in nM is scaled by 1000 (1 uM = 1000 nM, common
+// practice), and one that cannot be converted is left out.
+func TestPreviousRunFollowsDisplayUnits(t *testing.T) {
+	m := unitDecayModel()
+	now, err := Run(context.Background(), m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Simulation.Display = network.Display{}
+	before, err := Run(context.Background(), m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	prev := sameUnits(before, now)
+	if prev == nil || prev.AmountUnit != "nM" || prev.Y[0][0] != 5000 || prev.T[len(prev.T)-1] != 2 {
+		t.Fatalf("previous run %+v, want it in nM and h", prev)
+	}
+	before.AmountUnit = "mg/L"
+	if sameUnits(before, now) != nil {
+		t.Error("a previous run in mg/L is drawn beneath one in nM")
+	}
+	if sameUnits(now, now) != now {
+		t.Error("a previous run in the same units is converted")
+	}
+}
