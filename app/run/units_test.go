@@ -179,3 +179,22 @@ func TestPreviousRunFollowsDisplayUnits(t *testing.T) {
 		t.Error("a previous run in the same units is converted")
 	}
 }
+
+// BenchmarkConvert converts 200 output times of 50 columns to other units,
+// the cost each run pays when display units are chosen.
+func BenchmarkConvert(b *testing.B) {
+	o := &Outcome{TimeUnit: "s", AmountUnit: "uM", Species: 50, T: make([]float64, 200), Y: make([][]float64, 200)}
+	for j := 0; j < 50; j++ {
+		o.Names = append(o.Names, "S")
+	}
+	for i := range o.Y {
+		o.T[i], o.Y[i] = float64(i), make([]float64, 50)
+	}
+	d := network.Display{Time: "h", Concentration: "nM"}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := o.Convert(d); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
