@@ -1,6 +1,7 @@
 package network
 
 import (
+	"fmt"
 	"strings"
 	"testing"
 )
@@ -82,6 +83,13 @@ func TestValidateTable(t *testing.T) {
 		{"expr divide by zero", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kcat*ES/0"} }, "reactions", "cut", "rate.expression", 0, "zero", Error},
 		{"expr empty", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression} }, "reactions", "cut", "rate.expression", 0, "needs an expression", Error},
 		{"t_end", func(m *Model) { m.Simulation.TEnd = -5 }, "simulation", "", "t_end", 0, "expected a positive end time", Error},
+		{"points cap", func(m *Model) { m.Simulation.Output.Points = MaxPoints + 1 }, "simulation", "", "output.points", 0, "at most 1000000", Error},
+		{"output values cap", func(m *Model) {
+			for i := range 60 {
+				m.Species = append(m.Species, Species{Name: fmt.Sprintf("X%d", i)})
+			}
+			m.Simulation.Output.Points = MaxPoints
+		}, "simulation", "", "output.points", 0, "more output than this program holds", Error},
 		{"spacing", func(m *Model) { m.Simulation.Output.Spacing = "geometric" }, "simulation", "", "output.spacing", 0, `expected "linear" or "log"`, Error},
 		{"method", func(m *Model) { m.Simulation.Method = "euler" }, "simulation", "", "method", 0, "expected one of auto, rosenbrock", Error},
 		// A negative rate constant, Vmax or kcat, or a Km that is not
