@@ -102,8 +102,8 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		return nil, nil, err
 	}
 	switch {
-	case spec.Samples < 1:
-		return nil, nil, fmt.Errorf("%s: samples: expected a positive number of samples, got %d", c.spec, spec.Samples)
+	case spec.Samples < 1 || spec.Samples > study.MaxSamples:
+		return nil, nil, fmt.Errorf("%s: samples: expected from 1 to %d samples, got %d", c.spec, study.MaxSamples, spec.Samples)
 	case spec.Seed == nil:
 		return nil, nil, fmt.Errorf("%s: seed: missing (a whole number ≥ 0; the same seed gives the same population)", c.spec)
 	case spec.Sampling != "" && spec.Sampling != string(explore.Random) && spec.Sampling != string(explore.LatinHypercube):

@@ -415,3 +415,25 @@ func TestRunStopsWhenASimulatorCannotBeMade(t *testing.T) {
 		t.Errorf("the working simulator ran %d points after the other failed, want at most 2", n)
 	}
 }
+
+// panicSim panics at knob values above 5: a bug in a simulator.
+type panicSim struct{}
+
+func (panicSim) Simulate(ctx context.Context, x []float64) (Trajectory, error) {
+	if x[0] > 5 {
+		panic("index out of range in a test simulator")
+	}
+	return Trajectory{T: []float64{0, 1}, Y: [][]float64{{1}, {1}}}, nil
+}
+
+// A panic in a worker does not crash the program: Run returns a
+// *PanicError naming the point (issue 17: internal errors get exit
+// status 3, which needs the panic caught in the worker goroutine).
+func TestRunCatchesPanics(t *testing.T) {
+	newSim := func() (Simulator, error) { return panicSim{}, nil }
+	_, err := Run(context.Background(), Grid{Axes: [][]float64{{1, 2, 7, 3}}}, newSim, Settings{Knobs: []string{"k"}, Workers: 2})
+	var pe *PanicError
+	if !errors.As(err, &pe) || pe.Point != 2 || !strings.Contains(pe.Error(), "index out of range") || len(pe.Stack) == 0 {
+		t.Fatalf("error %v; want a PanicError at point 2 with a stack", err)
+	}
+}
