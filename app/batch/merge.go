@@ -43,6 +43,9 @@ type runMeta struct {
 	// Provenance goes into every output, stamped with the time they are
 	// written.
 	Provenance *run.Provenance `json:"provenance"`
+	// Fingerprint identifies everything that determines the result;
+	// merge refuses parts whose fingerprints differ.
+	Fingerprint *fingerprint `json:"fingerprint,omitempty"`
 	// Partial is set when the run was stopped before it finished.
 	Partial bool `json:"partial,omitempty"`
 }
@@ -132,6 +135,14 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 		}
 		if p.Format != PartFormat || p.Meta == nil {
 			return badInput(fmt.Errorf("%s: format: expected %q with meta and result, got %q", f, PartFormat, p.Format))
+		}
+		if p.Meta.Fingerprint == nil {
+			return badInput(fmt.Errorf("%s: has no fingerprint of its spec and model (written by an earlier version); run that shard again", f))
+		}
+		if meta != nil {
+			if how := meta.Fingerprint.differ(p.Meta.Fingerprint); how != "" {
+				return badInput(fmt.Errorf("%s does not belong with %s: %s", f, files[0], how))
+			}
 		}
 		if p.Meta.Partial {
 			return badInput(fmt.Errorf("%s: this shard was stopped before it finished (partial: true); run it again, then merge", f))

@@ -98,7 +98,8 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		return nil, nil, err
 	}
 	var spec populationSpec
-	if err := readSpec(c.spec, PopulationFormat, &spec); err != nil {
+	specData, err := readSpecData(c.spec, PopulationFormat, &spec)
+	if err != nil {
 		return nil, nil, err
 	}
 	switch {
@@ -167,6 +168,9 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	meta := &runMeta{
 		Kind: "population", Spec: filepath.Base(c.spec), Title: l.Model.Title, Provenance: prov, Figures: pj.Figures(),
 		Knobs: pj.Settings.Knobs, BandSpecies: bandSp, LogTime: l.Sim.Output.Spacing == "log",
+	}
+	if meta.Fingerprint, err = newFingerprint(specData, prov, spec.Seed); err != nil {
+		return nil, nil, err
 	}
 	return c, &job{meta: meta, Job: pj}, nil
 }

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"io"
 	"os"
 	"path/filepath"
@@ -104,5 +105,96 @@ func TestPanicIsInternalError(t *testing.T) {
 	if rc != exitInternal || !strings.Contains(errb.String(), "internal error") || !strings.Contains(errb.String(), "boom") ||
 		!strings.Contains(errb.String(), "batch test-panic x.json --flag") {
 		t.Errorf("exit %d, stderr %q; want 3 naming the panic and the command line", rc, errb.String())
+	}
+}
+
+// Parts of different studies are refused with a message that says which
+// part differs and how (issue 17: specs of the same file name in two
+// folders that differed only in a median, or in the seed, merged with exit
+// 0); a part with a sample deleted or repeated is refused too. Parts of
+// one study whose spec sits in another folder (same content, same model)
+// still merge.
+func TestMergeRefusesMismatchedParts(t *testing.T) {
+	dir := t.TempDir()
+	write := func(rel, content string) string {
+		p := filepath.Join(dir, rel)
+		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(p, []byte(content), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	write("m.json", robustModel)
+	spec := func(median, seed string) string {
+		return `{"format": "kinetarium.population/1", "model": "../m.json", "samples": 12, "seed": ` + seed + `,
+ "vary": [{"target": "k", "distribution": "lognormal", "median": ` + median + `, "cv_percent": 30}],
+ "readouts": [{"kind": "final", "species": "B"}], "bands": {"species": ["B"]}}`
+	}
+	part := func(specPath, shard, out string) string {
+		mustRun(t, popCmd, specPath, "--shard", shard, "--out", out, "--quiet")
+		return filepath.Join(out, "part-"+strings.ReplaceAll(shard, "/", "-of-")+".json")
+	}
+	a0 := part(write("A/pop.json", spec("0.5", "11")), "0/2", filepath.Join(dir, "pa"))
+	a1 := part(filepath.Join(dir, "A/pop.json"), "1/2", filepath.Join(dir, "pa"))
+	median := part(write("B/pop.json", spec("0.7", "11")), "1/2", filepath.Join(dir, "pb"))
+	seed := part(write("C/pop.json", spec("0.5", "12")), "1/2", filepath.Join(dir, "pc"))
+	same := part(write("D/pop.json", spec("0.5", "11")), "1/2", filepath.Join(dir, "pd"))
+
+	for _, c := range []struct {
+		name  string
+		parts []string
+		want  []string
+	}{
+		{"median", []string{a0, median}, []string{median, "does not belong with", "vary[0].median is 0.7 here, 0.5 there"}},
+		{"seed", []string{a0, seed}, []string{seed, "seed is 12 here, 11 there"}},
+	} {
+		var out, errb bytes.Buffer
+		rc := runMerge(append(c.parts, "--out", filepath.Join(dir, "m-"+c.name)), &out, &errb)
+		if rc != exitBadInput {
+			t.Errorf("%s: exit %d, want 2; stderr %s", c.name, rc, errb.String())
+		}
+		for _, w := range c.want {
+			if !strings.Contains(errb.String(), w) {
+				t.Errorf("%s: stderr %q lacks %q", c.name, errb.String(), w)
+			}
+		}
+	}
+	mustRun(t, mergeCmd, a0, a1, "--out", filepath.Join(dir, "ok"))
+	mustRun(t, mergeCmd, a0, same, "--out", filepath.Join(dir, "ok2"))
+	sameFiles(t, filepath.Join(dir, "ok"), filepath.Join(dir, "ok2"))
+
+	// A part with a sample deleted or repeated.
+	data, err := os.ReadFile(a1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var p map[string]any
+	if err := json.Unmarshal(data, &p); err != nil {
+		t.Fatal(err)
+	}
+	res := p["result"].(map[string]any)
+	samples := res["samples"].([]any)
+	for _, c := range []struct {
+		name     string
+		samples  []any
+		fixCount bool // also change the part's count of points to match
+		want     string
+	}{
+		{"deleted", samples[:len(samples)-1], false, "says 6 points"},
+		{"deleted, count fixed", samples[:len(samples)-1], true, "points missing or extra"},
+		{"repeated", append(append([]any{}, samples[:len(samples)-1]...), samples[0]), false, "appears twice"},
+	} {
+		res["samples"], res["points"] = c.samples, len(samples)
+		if c.fixCount {
+			res["points"] = len(c.samples)
+		}
+		b, _ := json.Marshal(p)
+		bad := write("bad-"+strings.ReplaceAll(c.name, " ", "")+".json", string(b))
+		var out, errb bytes.Buffer
+		if rc := runMerge([]string{a0, bad, "--out", filepath.Join(dir, "m-bad")}, &out, &errb); rc != exitBadInput || !strings.Contains(errb.String(), c.want) {
+			t.Errorf("sample %s: exit %d, stderr %q; want 2 and %q", c.name, rc, errb.String(), c.want)
+		}
 	}
 }

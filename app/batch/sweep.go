@@ -110,27 +110,33 @@ func orTop(path string) string {
 
 // readSpec reads a spec file into v (strictly) and checks its format tag.
 func readSpec(path, format string, v any) error {
+	_, err := readSpecData(path, format, v)
+	return err
+}
+
+// readSpecData is readSpec that also returns the file's content.
+func readSpecData(path, format string, v any) ([]byte, error) {
 	data, err := readInput(path, maxSpecSize)
 	if err != nil {
-		return fmt.Errorf("reading spec: %w", err)
+		return nil, fmt.Errorf("reading spec: %w", err)
 	}
 	var head struct {
 		Format *string `json:"format"`
 	}
 	if err := json.Unmarshal(data, &head); err != nil {
-		return jsonError(path, data, err)
+		return nil, jsonError(path, data, err)
 	}
 	if head.Format == nil || *head.Format != format {
 		got := "none"
 		if head.Format != nil {
 			got = strconv.Quote(*head.Format)
 		}
-		return fmt.Errorf("%s: format: expected %q, got %s", path, format, got)
+		return nil, fmt.Errorf("%s: format: expected %q, got %s", path, format, got)
 	}
 	if err := strict(data, v, ""); err != nil {
-		return fmt.Errorf("%s: %w", path, err)
+		return nil, fmt.Errorf("%s: %w", path, err)
 	}
-	return nil
+	return data, nil
 }
 
 // loadModel loads the model named by a spec (relative to the spec's
@@ -413,7 +419,8 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		return nil, nil, err
 	}
 	var spec sweepSpec
-	if err := readSpec(c.spec, SweepFormat, &spec); err != nil {
+	specData, err := readSpecData(c.spec, SweepFormat, &spec)
+	if err != nil {
 		return nil, nil, err
 	}
 	if len(spec.Parameter) == 0 {
@@ -459,6 +466,9 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	meta := &runMeta{
 		Kind: "sweep", Spec: filepath.Base(c.spec), Title: l.Model.Title, Provenance: prov, Figures: sj.Figures(),
 		Knobs: sj.Settings.Knobs, PlotSpecies: plotSp, LogTime: l.Sim.Output.Spacing == "log",
+	}
+	if meta.Fingerprint, err = newFingerprint(specData, prov, nil); err != nil {
+		return nil, nil, err
 	}
 	return c, &job{meta: meta, Job: sj}, nil
 }

@@ -346,6 +346,12 @@ func TestRunRefusesOverflowingGrid(t *testing.T) {
 func TestReadJSONRejectsBadParts(t *testing.T) {
 	for _, tc := range []struct{ name, json, want string }{
 		{"negative size", `{"format":"` + PartFormat + `","size":-1,"shard":"0/1","knobs":["k"],"readouts":["r"],"samples":[],"failures":[],"points":0,"failed":0,"wall_ns":0}`, "size is -1"},
+		// Issue 17: a part with a point deleted or repeated used to merge,
+		// reporting the original count.
+		{"point deleted", `{"format":"` + PartFormat + `","size":4,"shard":"0/2","knobs":["k"],"readouts":["r"],"samples":[{"i":0,"x":[1],"r":[1]}],"failures":[],"points":1,"failed":0,"wall_ns":0}`, "should hold 2 points, but holds 1"},
+		{"point repeated", `{"format":"` + PartFormat + `","size":4,"shard":"0/2","knobs":["k"],"readouts":["r"],"samples":[{"i":0,"x":[1],"r":[1]},{"i":0,"x":[1],"r":[1]}],"failures":[],"points":2,"failed":0,"wall_ns":0}`, "point 0 appears twice"},
+		{"counts disagree", `{"format":"` + PartFormat + `","size":4,"shard":"0/2","knobs":["k"],"readouts":["r"],"samples":[{"i":0,"x":[1],"r":[1]}],"failures":[],"points":2,"failed":0,"wall_ns":0}`, "says 2 points"},
+		{"huge shard count", `{"format":"` + PartFormat + `","size":4,"shard":"0/1000000000000","knobs":["k"],"readouts":["r"],"samples":[],"failures":[],"points":0,"failed":0,"wall_ns":0}`, "at most 100000 shards"},
 		{"failure outside shard", `{"format":"` + PartFormat + `","size":4,"shard":"0/2","knobs":["k"],"readouts":["r"],"samples":[],"failures":[{"i":1,"x":[1],"error":"e"}],"points":1,"failed":1,"wall_ns":0}`, "failure 0"},
 	} {
 		r, err := ReadJSON(strings.NewReader(tc.json))
