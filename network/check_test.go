@@ -2,6 +2,7 @@ package network
 
 import (
 	"fmt"
+	"math"
 	"strings"
 	"testing"
 )
@@ -322,4 +323,37 @@ func TestOutputTimes(t *testing.T) {
 	if d := OutputTimes(tEnd, Output{Spacing: "log"}); len(d) != 201 || d[1] != tEnd*1e-6 || d[200] != 50 {
 		t.Errorf("default log grid: %d points from %v to %v", len(d), d[1], d[len(d)-1])
 	}
+}
+
+// FuzzOutputTimes checks the output grid for any end time and output
+// settings Check accepts: it starts at 0, increases strictly (or at least
+// never decreases for grids finer than float64 resolves), ends exactly at
+// t_end, has the number of points asked for (plus t = 0 on a log grid),
+// and holds finite numbers only.
+func FuzzOutputTimes(f *testing.F) {
+	f.Add(100.0, 200, "linear", 0.0)
+	f.Add(5000.0, 200, "log", 0.01)
+	f.Add(1e-300, 3, "log", 0.0)
+	f.Add(1e300, 1000, "linear", 0.0)
+	f.Add(1.0, 2, "log", 0.999999)
+	f.Fuzz(func(t *testing.T, tEnd float64, points int, spacing string, first float64) {
+		m := &Model{Simulation: Simulation{TEnd: tEnd, Output: Output{Points: points, Spacing: spacing, First: first}}}
+		if _, errs := Check(m); errs.HasErrors() || points > 10_000 {
+			return
+		}
+		sim := m.Simulation.WithDefaults()
+		ts := OutputTimes(sim.TEnd, sim.Output)
+		want := sim.Output.Points
+		if sim.Output.Spacing == "log" {
+			want++
+		}
+		if len(ts) != want || ts[0] != 0 || ts[len(ts)-1] != sim.TEnd {
+			t.Fatalf("grid of %d times from %v to %v; want %d from 0 to %v", len(ts), ts[0], ts[len(ts)-1], want, sim.TEnd)
+		}
+		for i, x := range ts {
+			if math.IsNaN(x) || math.IsInf(x, 0) || (i > 0 && x < ts[i-1]) {
+				t.Fatalf("time %d is %v after %v", i, x, ts[max(0, i-1)])
+			}
+		}
+	})
 }

@@ -172,9 +172,12 @@ func TestValueString(t *testing.T) {
 }
 
 func FuzzRead(f *testing.F) {
+	// Small seeds only: the fuzzer minimises every new input it finds, and
+	// the 15 KB cascade made it sit at 0 execs/s (issue 17).
 	for _, name := range examples.Names() {
-		b, _ := examples.Open(name)
-		f.Add(b)
+		if b, _ := examples.Open(name); len(b) <= 3000 {
+			f.Add(b)
+		}
 	}
 	f.Add([]byte(`{"format": "kinetarium.model/1", "species": [{"name": "A", "initial": 1}], "reactions": [{"name": "r", "equation": "A -> ", "rate": {"law": "expression", "expression": "A/(A-A)"}}]}`))
 	f.Add([]byte(`{"format": "kinetarium.model/1", "compartments": [{"name": "c", "volume": 0}], "species": [{"name": "A", "compartment": "c"}]}`))
