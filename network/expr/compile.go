@@ -702,7 +702,7 @@ func (p *Program) Eval(vars []float64) float64 {
 	if len(vars) < p.slots {
 		return math.NaN()
 	}
-	code, s, tmp := p.code, p.stack, p.temps
+	code, s := p.code, p.stack
 	sp := 0 // number of saved values
 	var x float64
 	for k := range code {
@@ -905,11 +905,11 @@ func (p *Program) Eval(vars []float64) float64 {
 		case opAdd2TQQ:
 			x = x + float64(in.c*vars[in.i]*(vars[in.j]*vars[in.j])) + float64(in.d*vars[in.l]*(vars[in.m]*vars[in.m]))
 		case opStoreT:
-			tmp[in.i] = x
+			p.temps[in.i] = x
 		case opLoadT:
 			s[sp] = x
 			sp++
-			x = tmp[in.i]
+			x = p.temps[in.i]
 		}
 	}
 	return x
