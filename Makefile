@@ -55,6 +55,11 @@ fuzz:
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzReadPNGText -fuzztime $(FUZZTIME)
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzSVGMetadata -fuzztime $(FUZZTIME)
 	$(GO) test ./app/run -run '^$$' -fuzz FuzzReadProvenance -fuzztime $(FUZZTIME)
+	$(GO) test ./network/expr -run '^$$' -fuzz FuzzCompile -fuzztime $(FUZZTIME)
+	$(GO) test ./network -run '^$$' -fuzz FuzzOutputTimes -fuzztime $(FUZZTIME)
+	$(GO) test ./app/batch -run '^$$' -fuzz FuzzSweepSpec -fuzztime $(FUZZTIME)
+	$(GO) test ./app/batch -run '^$$' -fuzz FuzzPopulationSpec -fuzztime $(FUZZTIME)
+	$(GO) test ./app/batch -run '^$$' -fuzz FuzzMergePart -fuzztime $(FUZZTIME)
 
 clean:
 	rm -rf bin

@@ -2,16 +2,13 @@ package main
 
 import (
 	"bytes"
-	"fmt"
 	"os"
 	"path/filepath"
-	"strings"
 	"time"
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/storage"
-	"fyne.io/fyne/v2/widget"
 
 	"kinetarium/examples"
 	"kinetarium/internal/atomicfile"
@@ -211,15 +208,6 @@ func (w *mainWindow) fillRecent(item *fyne.MenuItem) {
 	}
 }
 
-// recoveryPath is where unsaved work is kept between autosaves.
-func recoveryPath() string {
-	dir, err := os.UserConfigDir()
-	if err != nil {
-		dir = os.TempDir()
-	}
-	return filepath.Join(dir, "kinetarium", "recovery.json")
-}
-
 // startAutosave writes the model to the recovery file every 30 s while it
 // has unsaved changes.
 func (w *mainWindow) startAutosave() {
@@ -241,7 +229,7 @@ func (w *mainWindow) autosave() {
 	if err != nil {
 		return // a model that cannot be written (NaN) is saved on the next change
 	}
-	p := recoveryPath()
+	p := w.recoveryFile
 	if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
 		return
 	}
@@ -254,40 +242,5 @@ func (w *mainWindow) removeRecovery() {
 	if w.screenshotMode {
 		return
 	}
-	os.Remove(recoveryPath())
-}
-
-// offerRecovery offers to restore unsaved work left by an earlier session.
-func (w *mainWindow) offerRecovery() {
-	p := recoveryPath()
-	fi, err := os.Stat(p)
-	if err != nil {
-		return
-	}
-	m, err := network.Load(p)
-	if err != nil {
-		os.Remove(p)
-		return
-	}
-	title := m.Title
-	if title == "" {
-		title = "untitled"
-	}
-	msg := widget.NewLabel(fmt.Sprintf("Kinetarium kept unsaved work from %s (model “%s”).\nRestore it? The restored model opens as a new, unsaved file.",
-		fi.ModTime().Format("2 Jan 15:04"), strings.TrimSpace(title)))
-	d := dialog.NewCustomConfirm("Restore unsaved work?", "Restore", "Discard it", msg, func(ok bool) {
-		if !ok {
-			os.Remove(p)
-			return
-		}
-		w.exampleOf = ""
-		w.setModel(m, "")
-		// The restored work exists only in the recovery file until saved;
-		// setModel removed that file, so write it again at once.
-		w.doc.MarkModified()
-		w.updateTitle()
-		w.autosave()
-		w.simulate()
-	}, w.win)
-	fyne.Do(d.Show)
+	os.Remove(w.recoveryFile)
 }

@@ -41,6 +41,12 @@ func main() {
 	if *shot != "" {
 		w.screenshot(*shot)
 	}
+	// Look for unsaved work of earlier sessions before opening anything,
+	// and offer it once the window shows.
+	var recs []recovery
+	if *shot == "" {
+		recs = w.findRecoveries()
+	}
 	if err := w.openStart(*model); err != nil {
 		if *shot != "" {
 			fmt.Fprintln(os.Stderr, "app:", err)
@@ -51,9 +57,7 @@ func main() {
 	if *tab != "" {
 		w.ed.SelectTab(*tab)
 	}
-	if *shot == "" {
-		w.offerRecovery()
-	}
+	w.offerRecovery(recs)
 	w.win.Resize(fyne.NewSize(1280, 800))
 	w.win.ShowAndRun()
 	os.Exit(w.exitCode)

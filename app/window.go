@@ -65,14 +65,16 @@ type mainWindow struct {
 	mainMenu  *fyne.MainMenu
 
 	screenshotMode bool
-	exitCode       int
-	onDrawn        func()
-	captureSoon    func() // in screenshot mode: capture the window shortly
+	// recoveryFile keeps this window's unsaved work (see recovery.go).
+	recoveryFile string
+	exitCode     int
+	onDrawn      func()
+	captureSoon  func() // in screenshot mode: capture the window shortly
 }
 
 func newMainWindow(a fyne.App, screenshotMode bool) *mainWindow {
 	w := &mainWindow{app: a, win: a.NewWindow("Kinetarium"), hidden: map[string]bool{}, overlay: true, autoRerun: true,
-		screenshotMode: screenshotMode}
+		screenshotMode: screenshotMode, recoveryFile: newRecoveryPath()}
 	w.doc = editor.NewDocument(nil, "")
 	w.ed = editor.New(w.doc, w.win)
 	w.ctrl = &run.Controller{Deliver: fyne.Do}

@@ -555,8 +555,11 @@ func (v *validator) simulation() {
 	if s.ATol < 0 || !finite(s.ATol) {
 		errf("atol", "atol = %v is not allowed; expected a small positive number such as 1e-12", s.ATol)
 	}
-	if s.Output.Points < 0 || s.Output.Points == 1 {
-		errf("output.points", "points = %d is not allowed; expected at least 2", s.Output.Points)
+	if s.Output.Points < 0 || s.Output.Points == 1 || s.Output.Points > MaxPoints {
+		errf("output.points", "points = %d is not allowed; expected at least 2 and at most %d", s.Output.Points, MaxPoints)
+	} else if n := len(v.m.Species) + len(v.m.Assignments); n > 0 && s.WithDefaults().Output.Points > MaxOutputValues/n {
+		errf("output.points", "points = %d for %d species and assignments is more output than this program holds (%d values); expected at most %d points",
+			s.WithDefaults().Output.Points, n, MaxOutputValues, MaxOutputValues/n)
 	}
 	if s.Output.Spacing != "" && s.Output.Spacing != "linear" && s.Output.Spacing != "log" {
 		errf("output.spacing", "unknown spacing %q; expected \"linear\" or \"log\"", s.Output.Spacing)

@@ -1,6 +1,8 @@
 package network
 
 import (
+	"fmt"
+	"math"
 	"strings"
 	"testing"
 )
@@ -82,6 +84,13 @@ func TestValidateTable(t *testing.T) {
 		{"expr divide by zero", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression, Expression: "kcat*ES/0"} }, "reactions", "cut", "rate.expression", 0, "zero", Error},
 		{"expr empty", func(m *Model) { m.Reactions[1].Rate = Rate{Law: Expression} }, "reactions", "cut", "rate.expression", 0, "needs an expression", Error},
 		{"t_end", func(m *Model) { m.Simulation.TEnd = -5 }, "simulation", "", "t_end", 0, "expected a positive end time", Error},
+		{"points cap", func(m *Model) { m.Simulation.Output.Points = MaxPoints + 1 }, "simulation", "", "output.points", 0, "at most 1000000", Error},
+		{"output values cap", func(m *Model) {
+			for i := range 60 {
+				m.Species = append(m.Species, Species{Name: fmt.Sprintf("X%d", i)})
+			}
+			m.Simulation.Output.Points = MaxPoints
+		}, "simulation", "", "output.points", 0, "more output than this program holds", Error},
 		{"spacing", func(m *Model) { m.Simulation.Output.Spacing = "geometric" }, "simulation", "", "output.spacing", 0, `expected "linear" or "log"`, Error},
 		{"method", func(m *Model) { m.Simulation.Method = "euler" }, "simulation", "", "method", 0, "expected one of auto, rosenbrock", Error},
 		// A negative rate constant, Vmax or kcat, or a Km that is not
@@ -332,4 +341,37 @@ func TestBrokenEquationNoFollowOn(t *testing.T) {
 	if len(fields) != 1 || fields[0] != "equation" {
 		t.Errorf("errors at %v, want only the equation's", fields)
 	}
+}
+
+// FuzzOutputTimes checks the output grid for any end time and output
+// settings Check accepts: it starts at 0, increases strictly (or at least
+// never decreases for grids finer than float64 resolves), ends exactly at
+// t_end, has the number of points asked for (plus t = 0 on a log grid),
+// and holds finite numbers only.
+func FuzzOutputTimes(f *testing.F) {
+	f.Add(100.0, 200, "linear", 0.0)
+	f.Add(5000.0, 200, "log", 0.01)
+	f.Add(1e-300, 3, "log", 0.0)
+	f.Add(1e300, 1000, "linear", 0.0)
+	f.Add(1.0, 2, "log", 0.999999)
+	f.Fuzz(func(t *testing.T, tEnd float64, points int, spacing string, first float64) {
+		m := &Model{Simulation: Simulation{TEnd: tEnd, Output: Output{Points: points, Spacing: spacing, First: first}}}
+		if _, errs := Check(m); errs.HasErrors() || points > 10_000 {
+			return
+		}
+		sim := m.Simulation.WithDefaults()
+		ts := OutputTimes(sim.TEnd, sim.Output)
+		want := sim.Output.Points
+		if sim.Output.Spacing == "log" {
+			want++
+		}
+		if len(ts) != want || ts[0] != 0 || ts[len(ts)-1] != sim.TEnd {
+			t.Fatalf("grid of %d times from %v to %v; want %d from 0 to %v", len(ts), ts[0], ts[len(ts)-1], want, sim.TEnd)
+		}
+		for i, x := range ts {
+			if math.IsNaN(x) || math.IsInf(x, 0) || (i > 0 && x < ts[i-1]) {
+				t.Fatalf("time %d is %v after %v", i, x, ts[max(0, i-1)])
+			}
+		}
+	})
 }

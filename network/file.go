@@ -24,10 +24,16 @@ import (
 // simulation settings get their defaults. Read does not check the model's
 // content (see Check), but remembers where each item was in the file so
 // that Check's problems name their lines too.
+//
+// A file larger than MaxFileSize is refused; a UTF-8 byte-order mark is
+// accepted; a UTF-16 file is named as such.
 func Read(r io.Reader, source string) (*Model, error) {
-	data, err := io.ReadAll(r)
+	data, err := atomicfile.ReadLimited(r, MaxFileSize)
 	if err != nil {
 		return nil, fmt.Errorf("reading %s: %w", source, err)
+	}
+	if data, err = atomicfile.Text(data); err != nil {
+		return nil, fmt.Errorf("%s: %w", source, err)
 	}
 	m, errs := decodeModel(data, source)
 	if err := errs.Err(); err != nil {
@@ -263,6 +269,9 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			s.TEnd = d.optNum(o, "t_end", "simulation")
 			s.RTol = d.optNum(o, "rtol", "simulation")
 			s.ATol = d.optNum(o, "atol", "simulation")
+			d.notZero(o, "simulation", "t_end", "a positive end time", DefaultTEnd)
+			d.notZero(o, "simulation", "rtol", "a relative tolerance between 0 and 1 such as 1e-6", DefaultRTol)
+			d.notZero(o, "simulation", "atol", "a positive absolute tolerance such as 1e-12", DefaultATol)
 			s.Method = d.optStr(o, "method", "simulation")
 			for j, k := range o.keys {
 				d.mark("simulation", 0, k, o.vals[j])
@@ -278,14 +287,16 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 					}
 					if p, ok := oo.get("points"); ok {
 						f, ok := d.num(p, "simulation.output.points")
-						if ok && (f != math.Trunc(f) || math.Abs(f) > 1e9) {
-							d.fail(p, "simulation.output.points", "%v is not a whole number up to 1e9; expected a count such as 200", f)
+						if ok && (f != math.Trunc(f) || math.Abs(f) > MaxPoints) {
+							d.fail(p, "simulation.output.points", "%v is not a whole number up to %d; expected a count such as 200", f, MaxPoints)
 						} else {
 							s.Output.Points = int(f)
 						}
 					}
 					s.Output.Spacing = d.optStr(oo, "spacing", "simulation.output")
 					s.Output.First = d.optNum(oo, "first", "simulation.output")
+					d.notZero(oo, "simulation.output", "points", "at least 2 output times", DefaultPoints)
+					d.notZero(oo, "simulation.output", "first", "the first positive time of the log grid", "t_end·1e-6")
 				}
 			}
 			if x, ok := o.get("display"); ok {
@@ -430,6 +441,19 @@ func join(path, key string) string {
 		return key
 	}
 	return path + "." + key
+}
+
+// notZero reports a key of o that is present with the value 0: in the
+// model a zero setting means "the default", so a 0 written in the file
+// would silently become the default instead of what it says.
+func (d *decoder) notZero(o *jnode, path, key, expected string, def any) {
+	n, ok := o.get(key)
+	if !ok || n.kind != '0' {
+		return
+	}
+	if f, err := n.num.Float64(); err == nil && f == 0 {
+		d.fail(n, join(path, key), "0 cannot be honoured; expected %s (leave the key out for the default, %v)", expected, def)
+	}
 }
 
 // value decodes a rate field: a name (text) or a number.

@@ -119,6 +119,11 @@ func (d *dopri) start(t float64, y []float64, h float64) error {
 // estimated from the last two stages.
 func (d *dopri) stiff() bool { return d.isStiff }
 
+// atStabilityBound reports whether the step size is limited by stability
+// rather than accuracy: the stiffness test has fired, or h·λ is above its
+// threshold on the latest steps.
+func (d *dopri) atStabilityBound() bool { return d.isStiff || d.stiffRun > 0 }
+
 // attempt computes a step of size h from (t, y) into yNew and k[6] and
 // returns the scaled error and whether the non-negativity projection
 // acted. k[6] is f(t+h, yNew) before the projection; when clipped is true,

@@ -448,10 +448,21 @@ func (o *output) result(sv *Solver, start time.Time) *Result {
 // non-negativity projection acted on most steps, the likely cause is a rate
 // that keeps pushing a component at zero below zero; it names that
 // component.
+//
+// When the explicit method's step size sits at its stability bound (its
+// stiffness test, dopri5.f, finds h·λ above 3.25 over many steps), the
+// problem is stiff: that is said first, with the stiff methods to use,
+// and non-negativity is not blamed.
 func (sv *Solver) tooManySteps(st stepper, maxSteps int) *StepError {
 	t, y := st.current()
 	e := &StepError{T: t, H: st.stepSize(), Component: -1,
 		Reason: fmt.Sprintf("took more than %d steps; the problem may need a looser tolerance or a stiff method", maxSteps)}
+	if d, ok := st.(*dopri); ok && d.atStabilityBound() {
+		e.Reason = fmt.Sprintf("took more than %d steps: the problem is stiff (fast and slow reactions together), so the explicit "+
+			"method's step size is held at its stability bound (h·λ ≈ %.2g) however loose the tolerance; "+
+			"choose a method for stiff systems (bdf, radau or rosenbrock) or auto", maxSteps, d.hLambda)
+		return e
+	}
 	if !sv.p.nonneg || 2*sv.stats.NonNegFixes < sv.stats.Steps {
 		return e
 	}

@@ -416,3 +416,52 @@ func TestNonNegativityStallNamed(t *testing.T) {
 		t.Errorf("error %q (component %d, t = %g): want component 0 named, stalled near t = 1", se, se.Component, se.T)
 	}
 }
+
+// A stiff problem forced onto the explicit method is diagnosed as stiff,
+// with the stiff methods named, and not blamed on non-negativity (issue
+// 17). y' = k − λy with λ = 10⁵ and k/λ = 10⁻¹³, below the absolute
+// tolerance: the exact solution relaxes to k/λ at rate λ (closed form of a
+// linear ODE). An explicit method's step size is bounded by about 3.3/λ
+// (Dormand–Prince's stability interval on the negative real axis, Hairer &
+// Wanner II, IV.2, from memory), which is what runs out of steps; at that
+// bound y oscillates about k/λ and is clipped at zero on many steps.
+// Before, the message only said the problem "may need a looser tolerance
+// or a stiff method"; the stiffness verdict now also comes before the
+// non-negativity diagnosis, which may not blame a stiff problem.
+func TestExplicitStiffDiagnosis(t *testing.T) {
+	const lambda, k = 1e5, 1e-8
+	sys := &closureSystem{n: 1, auto: true,
+		f: func(_ float64, y, dy []float64) { dy[0] = k - lambda*y[0] },
+		j: func(_ float64, y []float64, j *mat.Dense) { j.Set(0, 0, -lambda) }}
+	for _, maxSteps := range []int{20000, 20001, 20002, 20003} {
+		for _, nonneg := range []bool{true, false} {
+			sv := NewSolver(sys, Settings{Method: Explicit, RTol: 1e-6, ATol: 1e-12, NonNegative: nonneg, MaxSteps: maxSteps})
+			_, err := sv.Solve(context.Background(), 0, 100, []float64{1})
+			var se *StepError
+			if !errors.As(err, &se) {
+				t.Fatalf("non-negative %v: error %v, want a StepError", nonneg, err)
+			}
+			msg := se.Error()
+			if strings.Contains(msg, "non-negative") || se.Component >= 0 {
+				t.Errorf("non-negative %v, %d steps: %q blames non-negativity (component %d)", nonneg, maxSteps, msg, se.Component)
+			}
+			for _, want := range []string{"the problem is stiff", "stability bound", "bdf, radau or rosenbrock"} {
+				if !strings.Contains(msg, want) {
+					t.Errorf("non-negative %v, %d steps: %q lacks %q", nonneg, maxSteps, msg, want)
+				}
+			}
+		}
+	}
+	// The same problem with a stiff method solves.
+	if _, err := NewSolver(sys, Settings{Method: BDF, RTol: 1e-6, ATol: 1e-12, NonNegative: true}).Solve(context.Background(), 0, 100, []float64{1}); err != nil {
+		t.Errorf("BDF: %v", err)
+	}
+	// A non-stiff problem that runs out of steps is not called stiff.
+	slow := &closureSystem{n: 1, auto: true,
+		f: func(t float64, y, dy []float64) { dy[0] = math.Cos(t) },
+		j: func(_ float64, y []float64, j *mat.Dense) { j.Set(0, 0, 0) }}
+	_, err := NewSolver(slow, Settings{Method: Explicit, RTol: 1e-10, ATol: 1e-14, MaxSteps: 50}).Solve(context.Background(), 0, 1000, []float64{0})
+	if err == nil || strings.Contains(err.Error(), "is stiff") {
+		t.Errorf("oscillation out of steps: %v; want an error not calling it stiff", err)
+	}
+}

@@ -13,7 +13,7 @@
 //	batch help
 //
 // Run "batch help" for the flags. Exit status: 0 on success, 1 when a run
-// fails, 2 for bad input.
+// fails or is stopped, 2 for bad input, 3 for an internal error.
 package main
 
 import (
@@ -76,7 +76,10 @@ Commands:
 
 Exit status: 0 on success; 1 when a run fails (the message names the time
 and the cause; what was computed is still written); 2 for bad input (the
-message names the file, the field and what is expected).
+message names the file, the field and what is expected); 3 for an internal
+error (a bug: the message quotes the input that caused it). Ctrl-C or
+SIGTERM stops a run: what is complete is written, marked partial, and the
+status is 1.
 `
 
 // command is a subcommand: it gets the arguments after its name and
@@ -133,5 +136,5 @@ func dispatch(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "batch: unknown command %q; expected one of %s or help\n", args[0], strings.Join(names, ", "))
 		return exitBadInput
 	}
-	return run(args[1:], stdout, stderr)
+	return guard(args[0], args[1:], stderr, func() int { return run(args[1:], stdout, stderr) })
 }

@@ -43,6 +43,11 @@ type runMeta struct {
 	// Provenance goes into every output, stamped with the time they are
 	// written.
 	Provenance *run.Provenance `json:"provenance"`
+	// Fingerprint identifies everything that determines the result;
+	// merge refuses parts whose fingerprints differ.
+	Fingerprint *fingerprint `json:"fingerprint,omitempty"`
+	// Partial is set when the run was stopped before it finished.
+	Partial bool `json:"partial,omitempty"`
 }
 
 // partFile is a partial-result file.
@@ -107,15 +112,22 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 		fs.Usage()
 		return badInput(errors.New("need the partial-result files and --out DIR"))
 	}
+	if err := checkOutDir(*out); err != nil {
+		return err
+	}
 	var (
 		meta     *runMeta
 		metaJSON []byte
 		parts    []*explore.Result
 	)
 	for _, f := range files {
-		data, err := os.ReadFile(f)
+		data, err := readInput(f, maxPartSize)
 		if err != nil {
 			return badInput(fmt.Errorf("reading a part: %w", err))
+		}
+		if !json.Valid(data) {
+			var v any
+			return badInput(jsonError(f, data, json.Unmarshal(data, &v)))
 		}
 		var p partFile
 		if err := strict(data, &p, ""); err != nil {
@@ -123,6 +135,17 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 		}
 		if p.Format != PartFormat || p.Meta == nil {
 			return badInput(fmt.Errorf("%s: format: expected %q with meta and result, got %q", f, PartFormat, p.Format))
+		}
+		if p.Meta.Fingerprint == nil {
+			return badInput(fmt.Errorf("%s: has no fingerprint of its spec and model (written by an earlier version); run that shard again", f))
+		}
+		if meta != nil {
+			if how := meta.Fingerprint.differ(p.Meta.Fingerprint); how != "" {
+				return badInput(fmt.Errorf("%s does not belong with %s: %s", f, files[0], how))
+			}
+		}
+		if p.Meta.Partial {
+			return badInput(fmt.Errorf("%s: this shard was stopped before it finished (partial: true); run it again, then merge", f))
 		}
 		// Parts are written at different times: compare all but that.
 		same := *p.Meta
@@ -220,7 +243,11 @@ func writeOutputs(meta *runMeta, res *explore.Result, dir string, stdout io.Writ
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "%s: %d runs, %d failed; wrote %d files in %s\n", meta.Kind, res.Points, res.Failed, len(out.written), dir)
+	partial := ""
+	if meta.Partial {
+		partial = fmt.Sprintf(" of %d (partial: true)", res.Size)
+	}
+	fmt.Fprintf(stdout, "%s: %d runs%s, %d failed; wrote %d files in %s\n", meta.Kind, res.Points, partial, res.Failed, len(out.written), dir)
 	for _, f := range res.Failures {
 		fmt.Fprintf(stdout, "  failed %d %v: %s\n", f.Index, f.X, f.Err)
 		if f.Index >= 10 && len(res.Failures) > 10 {

@@ -98,12 +98,13 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		return nil, nil, err
 	}
 	var spec populationSpec
-	if err := readSpec(c.spec, PopulationFormat, &spec); err != nil {
+	specData, err := readSpecData(c.spec, PopulationFormat, &spec)
+	if err != nil {
 		return nil, nil, err
 	}
 	switch {
-	case spec.Samples < 1:
-		return nil, nil, fmt.Errorf("%s: samples: expected a positive number of samples, got %d", c.spec, spec.Samples)
+	case spec.Samples < 1 || spec.Samples > study.MaxSamples:
+		return nil, nil, fmt.Errorf("%s: samples: expected from 1 to %d samples, got %d", c.spec, study.MaxSamples, spec.Samples)
 	case spec.Seed == nil:
 		return nil, nil, fmt.Errorf("%s: seed: missing (a whole number ≥ 0; the same seed gives the same population)", c.spec)
 	case spec.Sampling != "" && spec.Sampling != string(explore.Random) && spec.Sampling != string(explore.LatinHypercube):
@@ -167,6 +168,9 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	meta := &runMeta{
 		Kind: "population", Spec: filepath.Base(c.spec), Title: l.Model.Title, Provenance: prov, Figures: pj.Figures(),
 		Knobs: pj.Settings.Knobs, BandSpecies: bandSp, LogTime: l.Sim.Output.Spacing == "log",
+	}
+	if meta.Fingerprint, err = newFingerprint(specData, prov, spec.Seed); err != nil {
+		return nil, nil, err
 	}
 	return c, &job{meta: meta, Job: pj}, nil
 }

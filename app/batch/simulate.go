@@ -12,7 +12,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"os/signal"
 	"path/filepath"
 	"slices"
 	"sort"
@@ -95,8 +94,8 @@ func parseSimFlags(args []string) (*simFlags, error) {
 	switch {
 	case f.set["t-end"] && !(f.tEnd > 0 && finite(f.tEnd)):
 		return nil, simBadf("--t-end: expected a positive end time, got %v", f.tEnd)
-	case f.set["points"] && f.points < 2:
-		return nil, simBadf("--points: expected at least 2 output times, got %d", f.points)
+	case f.set["points"] && (f.points < 2 || f.points > network.MaxPoints):
+		return nil, simBadf("--points: expected from 2 to %d output times, got %d", network.MaxPoints, f.points)
 	case f.set["spacing"] && f.spacing != "linear" && f.spacing != "log":
 		return nil, simBadf("--spacing: expected linear or log, got %q", f.spacing)
 	case f.set["rtol"] && !(f.rtol > 0 && f.rtol < 1):
@@ -111,8 +110,16 @@ func parseSimFlags(args []string) (*simFlags, error) {
 		return nil, simBadf("--figure: cannot draw %q: expected a file name ending in %s", f.figure, strings.Join(plotting.Formats, ", "))
 	case f.set["out"] && f.out == "":
 		return nil, simBadf("--out: expected a file name")
+	case f.set["out"] && isDir(f.out):
+		return nil, simBadf("--out: %s is an existing folder; expected a file name for the CSV", f.out)
 	}
 	return f, nil
+}
+
+// isDir reports whether path names an existing folder.
+func isDir(path string) bool {
+	fi, err := os.Stat(path)
+	return err == nil && fi.IsDir()
 }
 
 // methodErr is run.LookupMethod's verdict on a method word.
@@ -129,7 +136,7 @@ func runSimulate(args []string, stdout, stderr io.Writer) int {
 		return exitOK
 	}
 	if err == nil {
-		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+		ctx, stop := signalContext()
 		defer stop()
 		err = simulate(ctx, f, stdout, stderr)
 	}
@@ -157,6 +164,7 @@ type simStats struct {
 	RTol           float64  `json:"rtol"`
 	ATol           float64  `json:"atol"`
 	Error          string   `json:"error,omitempty"`
+	Partial        bool     `json:"partial,omitempty"` // stopped by a signal
 	Methods        []string `json:"methods"`
 }
 
@@ -231,7 +239,16 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 			break
 		}
 	}
-	if solveErr != nil {
+	partial := ctx.Err() != nil
+	if partial {
+		// Stopped by Ctrl-C or SIGTERM: write what was computed, marked.
+		prov.Partial = true
+		end := 0.0
+		if res != nil && len(res.T) > 0 {
+			end = res.T[len(res.T)-1]
+		}
+		solveErr = fmt.Errorf("%s: stopped by a signal at t = %v; the output up to there is written, marked partial", f.model, end)
+	} else if solveErr != nil {
 		solveErr = fmt.Errorf("%s: %w", f.model, run.NameSpecies(solveErr, sys.Species()))
 	}
 
@@ -277,6 +294,7 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 		if solveErr != nil {
 			st.Error = solveErr.Error()
 		}
+		st.Partial = partial
 		line, err := json.Marshal(st)
 		if err != nil {
 			return fmt.Errorf("encoding the statistics: %w", err)

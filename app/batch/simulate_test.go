@@ -185,7 +185,7 @@ func TestSimulateBadInput(t *testing.T) {
 		{"unknown flag", []string{model, "--colour"}, []string{"-colour"}},
 		{"t-end text", []string{model, "--t-end", "soon"}, []string{"t-end"}},
 		{"t-end negative", []string{model, "--t-end", "-1"}, []string{"--t-end", "positive"}},
-		{"points", []string{model, "--points", "1"}, []string{"--points", "at least 2"}},
+		{"points", []string{model, "--points", "1"}, []string{"--points", "from 2 to 1000000"}},
 		{"spacing", []string{model, "--spacing", "cubic"}, []string{"--spacing", "linear or log", "cubic"}},
 		{"rtol", []string{model, "--rtol", "0"}, []string{"--rtol"}},
 		{"atol", []string{model, "--atol", "-1e-9"}, []string{"--atol"}},

@@ -6,14 +6,12 @@ package main
 
 import (
 	"bytes"
-	"context"
 	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"slices"
 	"strconv"
@@ -70,9 +68,9 @@ type readoutSpec struct {
 
 // simSpec overrides the model's simulation settings.
 type simSpec struct {
-	TEnd    float64 `json:"t_end"`
-	Points  int     `json:"points"`
-	Spacing string  `json:"spacing"`
+	TEnd    *float64 `json:"t_end"`
+	Points  *int     `json:"points"`
+	Spacing string   `json:"spacing"`
 }
 
 // strict decodes raw into v, refusing unknown keys; errors name path.
@@ -112,27 +110,33 @@ func orTop(path string) string {
 
 // readSpec reads a spec file into v (strictly) and checks its format tag.
 func readSpec(path, format string, v any) error {
-	data, err := os.ReadFile(path)
+	_, err := readSpecData(path, format, v)
+	return err
+}
+
+// readSpecData is readSpec that also returns the file's content.
+func readSpecData(path, format string, v any) ([]byte, error) {
+	data, err := readInput(path, maxSpecSize)
 	if err != nil {
-		return fmt.Errorf("reading spec: %w", err)
+		return nil, fmt.Errorf("reading spec: %w", err)
 	}
 	var head struct {
 		Format *string `json:"format"`
 	}
 	if err := json.Unmarshal(data, &head); err != nil {
-		return fmt.Errorf("%s: not a JSON object: %w", path, err)
+		return nil, jsonError(path, data, err)
 	}
 	if head.Format == nil || *head.Format != format {
 		got := "none"
 		if head.Format != nil {
 			got = strconv.Quote(*head.Format)
 		}
-		return fmt.Errorf("%s: format: expected %q, got %s", path, format, got)
+		return nil, fmt.Errorf("%s: format: expected %q, got %s", path, format, got)
 	}
 	if err := strict(data, v, ""); err != nil {
-		return fmt.Errorf("%s: %w", path, err)
+		return nil, fmt.Errorf("%s: %w", path, err)
 	}
-	return nil
+	return data, nil
 }
 
 // loadModel loads the model named by a spec (relative to the spec's
@@ -157,19 +161,20 @@ func loadModel(kind, specPath, model string, simRaw json.RawMessage) (*study.Pre
 		if err := strict(simRaw, &o, "simulation"); err != nil {
 			return nil, nil, fmt.Errorf("%s: %w", specPath, err)
 		}
+		// A present key means what it says: 0 is not "the default".
 		switch {
-		case o.TEnd < 0 || math.IsInf(o.TEnd, 0):
-			return nil, nil, fmt.Errorf("%s: simulation.t_end: expected a positive time, got %v", specPath, o.TEnd)
-		case o.Points < 0 || o.Points == 1:
-			return nil, nil, fmt.Errorf("%s: simulation.points: expected at least 2, got %d", specPath, o.Points)
+		case o.TEnd != nil && !(*o.TEnd > 0 && !math.IsInf(*o.TEnd, 0)):
+			return nil, nil, fmt.Errorf("%s: simulation.t_end: expected a positive time, got %v", specPath, *o.TEnd)
+		case o.Points != nil && (*o.Points < 2 || *o.Points > network.MaxPoints):
+			return nil, nil, fmt.Errorf("%s: simulation.points: expected from 2 to %d output times, got %d", specPath, network.MaxPoints, *o.Points)
 		case o.Spacing != "" && o.Spacing != "linear" && o.Spacing != "log":
 			return nil, nil, fmt.Errorf("%s: simulation.spacing: expected \"linear\" or \"log\", got %q", specPath, o.Spacing)
 		}
-		if o.TEnd > 0 {
-			sim.TEnd = o.TEnd
+		if o.TEnd != nil {
+			sim.TEnd = *o.TEnd
 		}
-		if o.Points > 0 {
-			sim.Output.Points = o.Points
+		if o.Points != nil {
+			sim.Output.Points = *o.Points
 		}
 		if o.Spacing != "" {
 			sim.Output.Spacing = o.Spacing
@@ -235,8 +240,8 @@ func axis(specPath string, raw json.RawMessage, path string) (study.Axis, error)
 	switch {
 	case a.Target == "":
 		return bad("target: missing (a parameter name, init:SPECIES or volume:COMPARTMENT)")
-	case a.Points < 1:
-		return bad("points: expected at least 1, got %d", a.Points)
+	case a.Points < 1 || a.Points > study.MaxSweepRuns:
+		return bad("points: expected from 1 to %d, got %d", study.MaxSweepRuns, a.Points)
 	case math.IsNaN(a.From) || math.IsInf(a.From, 0) || math.IsNaN(a.To) || math.IsInf(a.To, 0):
 		return bad("from/to: expected finite numbers")
 	}
@@ -306,6 +311,9 @@ func parseCmd(name string, args []string, stderr io.Writer) (*cmdFlags, error) {
 	if c.out == "" {
 		c.out = strings.TrimSuffix(c.spec, filepath.Ext(c.spec)) + "-results"
 	}
+	if err := checkOutDir(c.out); err != nil {
+		return nil, err
+	}
 	return &c, nil
 }
 
@@ -340,7 +348,12 @@ func exitStatus(name string, err error, stderr io.Writer) int {
 	}
 	fmt.Fprintf(stderr, "%s: %v\n", name, err)
 	var ie inputError
-	if errors.As(err, &ie) {
+	var bug *internalError
+	switch {
+	case errors.As(err, &bug):
+		fmt.Fprintf(stderr, "%s\n", bug.stack)
+		return exitInternal
+	case errors.As(err, &ie):
 		return exitBadInput
 	}
 	return exitFailed
@@ -372,9 +385,23 @@ func (j *job) run(c *cmdFlags, stdout, stderr io.Writer) error {
 	s := j.Settings
 	s.Workers, s.Shard = c.workers, c.shard
 	s.Progress, s.ProgressEvery = progressPrinter(j.meta.Kind, stderr, c.quiet)
-	res, err := explore.Run(context.Background(), j.Design, j.ODE.NewSimulator, s)
+	ctx, stop := signalContext()
+	defer stop()
+	res, err := explore.Run(ctx, j.Design, j.ODE.NewSimulator, s)
+	if err != nil && (ctx.Err() == nil || res == nil) {
+		return internal(err)
+	}
 	if err != nil {
-		return err
+		// Stopped by Ctrl-C or SIGTERM: write the points that are
+		// complete, marked partial.
+		meta := *j.meta
+		prov := *meta.Provenance
+		prov.Partial = true
+		meta.Provenance, meta.Partial = &prov, true
+		if werr := finish(&meta, res, c, stdout); werr != nil {
+			return werr
+		}
+		return fmt.Errorf("stopped by a signal after %d of the %d runs; wrote those, marked partial (partial: true)", res.Points, res.Size)
 	}
 	if err := finish(j.meta, res, c, stdout); err != nil {
 		return err
@@ -392,7 +419,8 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 		return nil, nil, err
 	}
 	var spec sweepSpec
-	if err := readSpec(c.spec, SweepFormat, &spec); err != nil {
+	specData, err := readSpecData(c.spec, SweepFormat, &spec)
+	if err != nil {
 		return nil, nil, err
 	}
 	if len(spec.Parameter) == 0 {
@@ -438,6 +466,9 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	meta := &runMeta{
 		Kind: "sweep", Spec: filepath.Base(c.spec), Title: l.Model.Title, Provenance: prov, Figures: sj.Figures(),
 		Knobs: sj.Settings.Knobs, PlotSpecies: plotSp, LogTime: l.Sim.Output.Spacing == "log",
+	}
+	if meta.Fingerprint, err = newFingerprint(specData, prov, nil); err != nil {
+		return nil, nil, err
 	}
 	return c, &job{meta: meta, Job: sj}, nil
 }

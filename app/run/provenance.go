@@ -46,6 +46,9 @@ type Provenance struct {
 	ShownIn *ShownIn `json:"shown_in,omitempty"`
 	// Exported is the time of export, in UTC to the second.
 	Exported time.Time `json:"exported"`
+	// Partial is set when the run was stopped (Ctrl-C, SIGTERM, Cancel)
+	// before it finished: the file holds what was complete by then.
+	Partial bool `json:"partial,omitempty"`
 }
 
 // Solver is the run settings a result was computed with, defaults filled

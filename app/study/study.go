@@ -114,6 +114,8 @@ func AxisValues(from, to float64, n int, log bool) ([]float64, error) {
 	switch {
 	case n < 1:
 		return nil, fmt.Errorf("number of points: expected at least 1, got %d", n)
+	case n > MaxSweepRuns:
+		return nil, fmt.Errorf("number of points: expected at most %d, got %d", MaxSweepRuns, n)
 	case math.IsNaN(from) || math.IsInf(from, 0) || math.IsNaN(to) || math.IsInf(to, 0):
 		return nil, fmt.Errorf("from and to: expected finite numbers, got %v and %v", from, to)
 	case log && !(from > 0 && to > 0):
@@ -331,6 +333,19 @@ func (d Distribution) Make(a, b float64) (explore.Distribution, error) {
 	return x, nil
 }
 
+// Limits of sweeps and populations, so that a mistyped number gets a
+// message instead of exhausting memory (README, Limits).
+const (
+	// MaxSweepRuns is the largest number of runs of a sweep (all grid
+	// points), and of points on one axis.
+	MaxSweepRuns = 100_000
+	// MaxSweepValues bounds the trajectory values a sweep keeps: runs ×
+	// output times × species (8 bytes each, so 800 MB).
+	MaxSweepValues = 100_000_000
+	// MaxSamples is the largest population.
+	MaxSamples = 1_000_000
+)
+
 // Axis is one swept knob.
 type Axis struct {
 	Knob     string
@@ -384,6 +399,17 @@ func (p *Prepared) Sweep(axes []Axis, readouts []ReadoutSpec) (*Job, error) {
 		j.Axes = append(j.Axes, vals)
 		j.AxisLog = append(j.AxisLog, a.Log)
 	}
+	runs := 1
+	for _, a := range j.Axes {
+		runs *= len(a)
+	}
+	if runs > MaxSweepRuns {
+		return nil, fmt.Errorf("a grid of %d runs is more than the %d a sweep may have; use fewer points", runs, MaxSweepRuns)
+	}
+	if vals := len(p.Times) * p.Sys.Dim(); vals > 0 && runs > MaxSweepValues/vals {
+		return nil, fmt.Errorf("%d runs of %d output times × %d species keep more trajectory values than the %d a sweep may hold; use fewer points or output times",
+			runs, len(p.Times), p.Sys.Dim(), MaxSweepValues)
+	}
 	if err := j.finish(knobs, readouts); err != nil {
 		return nil, err
 	}
@@ -398,6 +424,9 @@ func (p *Prepared) Sweep(axes []Axis, readouts []ReadoutSpec) (*Job, error) {
 func (p *Prepared) Population(vary []Vary, size int, seed uint64, sampling explore.Sampling, readouts []ReadoutSpec, bandSpecies []string) (*Job, error) {
 	if len(vary) == 0 {
 		return nil, fmt.Errorf("a population needs at least one varied quantity")
+	}
+	if size > MaxSamples {
+		return nil, fmt.Errorf("%d samples is more than the %d a population may have", size, MaxSamples)
 	}
 	j := &Job{Prepared: p}
 	var knobs []string

@@ -1,25 +1,122 @@
 // Package atomicfile writes files so that a reader never sees a half-written
 // one: the data goes to a temporary file in the same folder, is synced to
-// disk, and the temporary file is renamed over the destination. It is the
-// one place the program writes a file, and holds the one CSV writer.
+// disk, and the temporary file is renamed over the destination, and the
+// folder is synced so that the rename itself survives a power cut. It is
+// the one place the program writes a file, and holds the one CSV writer
+// and the one bounded reader of input files (ReadFile, Text).
 package atomicfile
 
 import (
 	"bytes"
 	"encoding/csv"
+	"errors"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
+	"runtime"
+	"strings"
+	"time"
 )
+
+// StaleAfter is the age after which a temporary file of our own naming
+// (".NAME.tmp" and digits, beside NAME) counts as left behind by a save
+// that was killed; the next save of NAME removes it. A save in progress
+// takes far less, so its temporary file is never touched.
+const StaleAfter = 5 * time.Minute
+
+// maxLinks bounds the chain of symbolic links Write follows.
+const maxLinks = 40
 
 // Write writes data to path atomically. An existing file keeps its
 // permissions; a new one gets 0644. The folder must exist. On failure the
 // destination is untouched and no temporary file is left behind.
+//
+// When path is a symbolic link, the file it points to is written and the
+// link is kept. Temporary files of earlier saves of the same file that
+// were killed half-way (older than StaleAfter) are removed.
 func Write(path string, data []byte) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
+	target, err := resolveLinks(path)
 	if err != nil {
 		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	if err := write(target, data); err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	return nil
+}
+
+// resolveLinks follows symbolic links from path to the file they name
+// (which need not exist yet).
+func resolveLinks(path string) (string, error) {
+	for range maxLinks {
+		fi, err := os.Lstat(path)
+		if err != nil || fi.Mode()&os.ModeSymlink == 0 {
+			return path, nil
+		}
+		dest, err := os.Readlink(path)
+		if err != nil {
+			return "", err
+		}
+		if !filepath.IsAbs(dest) {
+			dest = filepath.Join(filepath.Dir(path), dest)
+		}
+		path = dest
+	}
+	return "", fmt.Errorf("more than %d symbolic links in a row", maxLinks)
+}
+
+// tempPattern is the name pattern of the temporary files of path.
+func tempPattern(path string) string { return "." + filepath.Base(path) + ".tmp*" }
+
+// removeStale removes the temporary files of path, of our own naming,
+// that are older than StaleAfter. Errors are ignored: the files are only
+// clutter.
+func removeStale(path string) {
+	dir := filepath.Dir(path)
+	prefix := "." + filepath.Base(path) + ".tmp"
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return
+	}
+	for _, e := range entries {
+		name := e.Name()
+		rest, ok := strings.CutPrefix(name, prefix)
+		if !ok || rest == "" || strings.Trim(rest, "0123456789") != "" || !e.Type().IsRegular() {
+			continue
+		}
+		if fi, err := e.Info(); err == nil && time.Since(fi.ModTime()) > StaleAfter {
+			os.Remove(filepath.Join(dir, name))
+		}
+	}
+}
+
+// syncDir flushes a folder's entries (the rename) to disk. Some systems
+// cannot sync a folder; that is not an error.
+func syncDir(dir string) error {
+	if runtime.GOOS == "windows" {
+		return nil
+	}
+	d, err := os.Open(dir)
+	if err != nil {
+		return err
+	}
+	err = d.Sync()
+	if cerr := d.Close(); err == nil {
+		err = cerr
+	}
+	if errors.Is(err, os.ErrInvalid) || errors.Is(err, errors.ErrUnsupported) {
+		return nil
+	}
+	return err
+}
+
+// write writes data to path (not a symbolic link) atomically.
+func write(path string, data []byte) error {
+	removeStale(path)
+	tmp, err := os.CreateTemp(filepath.Dir(path), tempPattern(path))
+	if err != nil {
+		return err
 	}
 	name := tmp.Name()
 	_, err = tmp.Write(data)
@@ -41,9 +138,9 @@ func Write(path string, data []byte) error {
 	}
 	if err != nil {
 		os.Remove(name)
-		return fmt.Errorf("writing %s: %w", path, err)
+		return err
 	}
-	return nil
+	return syncDir(filepath.Dir(path))
 }
 
 // WriteCSV writes rows to path atomically as CSV (RFC 4180, "\n" line
@@ -77,4 +174,72 @@ func ReadCSV(path string) ([][]string, error) {
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}
 	return rows, nil
+}
+
+// ReadFile reads the file at path, refusing one larger than limit bytes
+// (a device such as /dev/zero included) with an error that names the
+// path and the limit, so that input never exhausts memory.
+func ReadFile(path string, limit int64) ([]byte, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	if fi, err := f.Stat(); err == nil && fi.IsDir() {
+		return nil, fmt.Errorf("%s is a folder; expected a file", path)
+	}
+	data, err := ReadLimited(f, limit)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return data, nil
+}
+
+// ReadLimited reads r to its end, refusing more than limit bytes.
+func ReadLimited(r io.Reader, limit int64) ([]byte, error) {
+	data, err := io.ReadAll(io.LimitReader(r, limit+1))
+	if err != nil {
+		return nil, err
+	}
+	if int64(len(data)) > limit {
+		return nil, fmt.Errorf("larger than %s, the most this program reads from one input file", Size(limit))
+	}
+	return data, nil
+}
+
+// Size formats a number of bytes in binary units: "64 MiB".
+func Size(n int64) string {
+	switch {
+	case n >= 1<<30 && n%(1<<30) == 0:
+		return fmt.Sprintf("%d GiB", n>>30)
+	case n >= 1<<20 && n%(1<<20) == 0:
+		return fmt.Sprintf("%d MiB", n>>20)
+	case n >= 1<<10 && n%(1<<10) == 0:
+		return fmt.Sprintf("%d KiB", n>>10)
+	}
+	return fmt.Sprintf("%d bytes", n)
+}
+
+// Text returns the UTF-8 text of a file's content: a UTF-8 byte-order
+// mark is dropped; a file in UTF-16 or UTF-32 (recognised by its
+// byte-order mark or by the zero bytes of ASCII text in it) is refused
+// with an error that names the encoding and says what to do.
+func Text(data []byte) ([]byte, error) {
+	if rest, ok := bytes.CutPrefix(data, []byte{0xEF, 0xBB, 0xBF}); ok {
+		return rest, nil
+	}
+	enc := ""
+	switch {
+	case bytes.HasPrefix(data, []byte{0xFF, 0xFE, 0, 0}), bytes.HasPrefix(data, []byte{0, 0, 0xFE, 0xFF}):
+		enc = "UTF-32"
+	case bytes.HasPrefix(data, []byte{0xFF, 0xFE}), bytes.HasPrefix(data, []byte{0xFE, 0xFF}):
+		enc = "UTF-16"
+	case len(data) >= 4 && data[0] != 0 && data[1] == 0 && data[2] != 0 && data[3] == 0,
+		len(data) >= 4 && data[0] == 0 && data[1] != 0 && data[2] == 0 && data[3] != 0:
+		enc = "UTF-16"
+	}
+	if enc != "" {
+		return nil, fmt.Errorf("the file is %s text; save it as UTF-8 (the usual encoding of JSON) and try again", enc)
+	}
+	return data, nil
 }

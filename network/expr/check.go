@@ -110,26 +110,39 @@ func check(n Node, all bool) []*Error {
 }
 
 // wellFormed reports whether n has none of the problems that make it
-// meaningless to Simplify, Diff and Compile. It does not allocate for trees
-// that have none.
+// meaningless to Simplify, Diff and Compile. It visits each shared subtree
+// of a DAG once, so a derivative with shared parts takes time in
+// proportion to its distinct nodes.
 func wellFormed(n Node) bool {
+	return wellFormedSeen(n, newMemo[bool]())
+}
+
+// wellFormedSeen is wellFormed visiting each shared subtree of a DAG (such
+// as a derivative) once.
+func wellFormedSeen(n Node, seen *memo[bool]) bool {
 	if isNil(n) {
 		return false
 	}
-	switch n := n.(type) {
+	switch n.(type) {
 	case *Number, *Variable:
 		return true
+	}
+	if _, ok := seen.get(n); ok {
+		return true
+	}
+	seen.set(n, true)
+	switch n := n.(type) {
 	case *Unary:
-		return n.Op == OpSub && wellFormed(n.X)
+		return n.Op == OpSub && wellFormedSeen(n.X, seen)
 	case *Binary:
-		return n.Op.binary() && wellFormed(n.L) && wellFormed(n.R)
+		return n.Op.binary() && wellFormedSeen(n.L, seen) && wellFormedSeen(n.R, seen)
 	case *Call:
 		id, ok := funcByName(n.Func)
 		if !ok || len(n.Args) != funcs[id].arity {
 			return false
 		}
 		for _, a := range n.Args {
-			if !wellFormed(a) {
+			if !wellFormedSeen(a, seen) {
 				return false
 			}
 		}

@@ -103,6 +103,11 @@ const (
 	opAdd2TQ2
 	opAdd2TQ3
 	opAdd2TQQ
+
+	// Shared subexpressions (of derivatives): computed once, kept in a
+	// temporary and loaded again where they recur.
+	opStoreT // temps[i] = x
+	opLoadT  // push; x = temps[i]
 )
 
 type instr struct {
@@ -117,7 +122,8 @@ type instr struct {
 type Program struct {
 	code  []instr
 	stack []float64
-	slots int // len(vars) must be at least this
+	temps []float64 // values of shared subexpressions
+	slots int       // len(vars) must be at least this
 }
 
 // Compile simplifies n and compiles it into a Program. The function slot maps
@@ -133,17 +139,19 @@ func Compile(n Node, slot func(name string) (int, bool)) (*Program, error) {
 	if !wellFormed(n) {
 		return nil, fmt.Errorf("compile: %w", check(n, false)[0])
 	}
-	c := &compiler{slot: slot}
-	if err := c.emit(simplify(n)); err != nil {
+	c := &compiler{slot: slot, refs: newMemo[int](), temps: newMemo[uint32]()}
+	n = simplify(n)
+	countRefs(n, c.refs)
+	if err := c.emit(n); err != nil {
 		return nil, err
 	}
-	return &Program{code: c.code, stack: make([]float64, c.maxDepth), slots: c.slots}, nil
+	return &Program{code: c.code, stack: make([]float64, c.maxDepth), temps: make([]float64, c.temps.len()), slots: c.slots}, nil
 }
 
 // Clone returns a copy of p with its own scratch space, for use by another
 // goroutine.
 func (p *Program) Clone() *Program {
-	return &Program{code: p.code, stack: make([]float64, len(p.stack)), slots: p.slots}
+	return &Program{code: p.code, stack: make([]float64, len(p.stack)), temps: make([]float64, len(p.temps)), slots: p.slots}
 }
 
 // Slots returns the length the vars slice passed to Eval must have at least:
@@ -156,6 +164,34 @@ type compiler struct {
 	depth    int // number of values saved on the stack below x
 	maxDepth int
 	slots    int
+	refs     *memo[int]    // how often each inner node is used (more than once in a DAG)
+	temps    *memo[uint32] // the temporary of each shared node computed so far
+}
+
+// countRefs counts the uses of each inner node of n, visiting the children
+// of a shared node once.
+func countRefs(n Node, refs *memo[int]) {
+	switch n.(type) {
+	case *Unary, *Binary, *Call:
+	default:
+		return
+	}
+	k, _ := refs.get(n)
+	refs.set(n, k+1)
+	if k > 0 {
+		return
+	}
+	switch n := n.(type) {
+	case *Unary:
+		countRefs(n.X, refs)
+	case *Binary:
+		countRefs(n.L, refs)
+		countRefs(n.R, refs)
+	case *Call:
+		for _, a := range n.Args {
+			countRefs(a, refs)
+		}
+	}
 }
 
 func (c *compiler) add(op opcode, i uint32, v float64) {
@@ -247,7 +283,30 @@ var (
 		fnAbs: opAbs, fnMin: opMin, fnMax: opMax, fnPow: opPow, fnSign: opSign, fnIfLE: opIfLE}
 )
 
+// emit emits n. A node used more than once (a shared part of a
+// derivative) is computed where it first occurs, kept in a temporary, and
+// loaded from there where it recurs. Evaluation follows the order of
+// emission and every operand is evaluated (ifle, min and max included), so
+// the first occurrence is always computed before the others.
 func (c *compiler) emit(n Node) error {
+	if k, _ := c.refs.get(n); k > 1 {
+		if t, ok := c.temps.get(n); ok {
+			c.push()
+			c.add(opLoadT, t, 0)
+			return nil
+		}
+		if err := c.emitNode(n); err != nil {
+			return err
+		}
+		t := uint32(c.temps.len())
+		c.temps.set(n, t)
+		c.add(opStoreT, t, 0)
+		return nil
+	}
+	return c.emitNode(n)
+}
+
+func (c *compiler) emitNode(n Node) error {
 	switch n := n.(type) {
 	case *Number:
 		c.push()
@@ -545,6 +604,9 @@ func (c *compiler) product(n Node) (productForm, error) {
 		}
 		fs = append(fs, b.R)
 		n = b.L
+		if len(fs) > 3 {
+			return productForm{}, nil // no shape has more than 3 factors: stop early on long chains
+		}
 	}
 	fs = append(fs, n)
 	slices.Reverse(fs)
@@ -842,6 +904,12 @@ func (p *Program) Eval(vars []float64) float64 {
 			x = x + float64(in.c*vars[in.i]*(vars[in.j]*vars[in.j])) + float64(in.d*vars[in.l]*vars[in.m]*vars[in.n])
 		case opAdd2TQQ:
 			x = x + float64(in.c*vars[in.i]*(vars[in.j]*vars[in.j])) + float64(in.d*vars[in.l]*(vars[in.m]*vars[in.m]))
+		case opStoreT:
+			p.temps[in.i] = x
+		case opLoadT:
+			s[sp] = x
+			sp++
+			x = p.temps[in.i]
 		}
 	}
 	return x

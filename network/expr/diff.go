@@ -17,17 +17,72 @@ import "math"
 // unknown operator or function, a wrong number of arguments; see Check) is
 // returned unchanged, so that Check and Compile report the problem in the
 // derivative too rather than it yielding a wrong number.
+//
+// The derivative shares subtrees with n and within itself (the derivative
+// of a product u*v holds u and v), and each shared subtree of n is
+// differentiated once, so the work and the size of the result grow in
+// proportion to the distinct nodes; Compile evaluates a shared subtree
+// once.
 func Diff(n Node, name string) Node {
 	if !wellFormed(n) {
 		return n
 	}
-	return diff(simplify(n), name)
+	d := &differ{name: name, deps: newMemo[bool](), memo: newMemo[Node]()}
+	return d.diff(simplify(n))
 }
 
-func diff(n Node, name string) Node {
-	if !dependsOn(n, name) {
+// differ differentiates by one variable, remembering the derivative and
+// the dependence of every shared subtree.
+type differ struct {
+	name string
+	deps *memo[bool]
+	memo *memo[Node]
+}
+
+// depends reports whether the variable occurs in n.
+func (d *differ) depends(n Node) bool {
+	switch n := n.(type) {
+	case *Number:
+		return false
+	case *Variable:
+		return n.Name == d.name
+	}
+	if v, ok := d.deps.get(n); ok {
+		return v
+	}
+	v := false
+	switch n := n.(type) {
+	case *Unary:
+		v = d.depends(n.X)
+	case *Binary:
+		v = d.depends(n.L) || d.depends(n.R)
+	case *Call:
+		for _, a := range n.Args {
+			if d.depends(a) {
+				v = true
+				break
+			}
+		}
+	}
+	d.deps.set(n, v)
+	return v
+}
+
+func (d *differ) diff(n Node) Node {
+	if !d.depends(n) {
 		return &Number{Value: 0}
 	}
+	if m, ok := d.memo.get(n); ok {
+		return m
+	}
+	m := d.diffNode(n)
+	d.memo.set(n, m)
+	return m
+}
+
+func (d *differ) diffNode(n Node) Node {
+	name := d.name
+	diff := func(n Node, _ string) Node { return d.diff(n) }
 	switch n := n.(type) {
 	case *Variable:
 		return &Number{Value: 1} // dependsOn guarantees n.name == name
@@ -50,31 +105,33 @@ func diff(n Node, name string) Node {
 			// (u/v)' = u'/v - u*v'/v^2
 			return sub(div(du, v), div(mul(u, dv), pow(v, &Number{Value: 2})))
 		case OpPow:
-			return diffPow(u, v, name)
+			return d.diffPow(u, v)
 		}
 	case *Call:
-		return diffCall(n, name)
+		return d.diffCall(n)
 	}
 	return &Number{Value: math.NaN()} // unreachable: n is well formed
 }
 
-func diffPow(u, v Node, name string) Node {
-	du := diff(u, name)
-	if !dependsOn(v, name) {
+func (d *differ) diffPow(u, v Node) Node {
+	du := d.diff(u)
+	if !d.depends(v) {
 		// v*u^(v-1)*u'
 		return mul(mul(v, pow(u, sub(v, &Number{Value: 1}))), du)
 	}
 	// u^v*log(u)*v', plus v*u^(v-1)*u' when the base depends on name too.
-	dv := diff(v, name)
-	d := mul(mul(pow(u, v), call(fnLog, u)), dv)
-	if dependsOn(u, name) {
-		d = add(mul(mul(v, pow(u, sub(v, &Number{Value: 1}))), du), d)
+	dv := d.diff(v)
+	r := mul(mul(pow(u, v), call(fnLog, u)), dv)
+	if d.depends(u) {
+		r = add(mul(mul(v, pow(u, sub(v, &Number{Value: 1}))), du), r)
 	}
-	return d
+	return r
 }
 
-func diffCall(n *Call, name string) Node {
+func (d *differ) diffCall(n *Call) Node {
 	a := n.Args
+	name := d.name
+	diff := func(n Node, _ string) Node { return d.diff(n) }
 	id, _ := funcByName(n.Func)
 	switch id {
 	case fnExp:
@@ -92,7 +149,7 @@ func diffCall(n *Call, name string) Node {
 	case fnMax:
 		return call(fnIfLE, a[0], a[1], diff(a[1], name), diff(a[0], name))
 	case fnPow:
-		return diffPow(a[0], a[1], name)
+		return d.diffPow(a[0], a[1])
 	case fnSign:
 		return &Number{Value: 0}
 	case fnIfLE:

@@ -1,6 +1,7 @@
 package expr
 
 import (
+	"math"
 	"strings"
 	"testing"
 )
@@ -52,6 +53,78 @@ func FuzzParse(f *testing.F) {
 				t.Fatalf("Compile(%s), derivative of %q: %v", d, src, err)
 			}
 			_ = q.Eval(vars)
+		}
+	})
+}
+
+// unshare copies a tree or DAG into a tree with no shared node.
+func unshare(n Node) Node {
+	switch n := n.(type) {
+	case *Number:
+		c := *n
+		return &c
+	case *Variable:
+		c := *n
+		return &c
+	case *Unary:
+		return &Unary{Op: n.Op, X: unshare(n.X), Col: n.Col}
+	case *Binary:
+		return &Binary{Op: n.Op, L: unshare(n.L), R: unshare(n.R), Col: n.Col}
+	case *Call:
+		args := make([]Node, len(n.Args))
+		for i, a := range n.Args {
+			args[i] = unshare(a)
+		}
+		return &Call{Func: n.Func, Args: args, Col: n.Col}
+	}
+	return n
+}
+
+// FuzzCompile checks compiling of first and second derivatives, whose
+// shared subexpressions Compile keeps in temporaries: the program gives
+// the same bits as the program of the same derivative copied into a tree
+// with nothing shared, and evaluates without allocating.
+func FuzzCompile(f *testing.F) {
+	for _, s := range []string{
+		"Vmax*S/(Km+S)", "(1+a*x)*(1+b*x)*(1+c*x)", "x^y*log(x)", "exp(-k*t)*x^3", "min(x, y*x)*max(x, 2)",
+		"abs(x - y)/(x + y)^2", "pow(x, x)", "sqrt(x*y)/log10(x+1)", "x*x*x*x*x*x", "a1/(1 + (x/K)^n)",
+	} {
+		f.Add(s, 1.3, 0.7)
+	}
+	f.Fuzz(func(t *testing.T, src string, x, y float64) {
+		n, err := Parse(src)
+		if err != nil || len(src) > 2000 {
+			return
+		}
+		names := append(Vars(n), "x", "y")
+		slots := map[string]int{}
+		vars := []float64{}
+		for _, v := range names {
+			if _, ok := slots[v]; !ok {
+				slots[v] = len(vars)
+				vars = append(vars, []float64{x, y, 1.7, 0.4}[len(vars)%4])
+			}
+		}
+		slot := func(s string) (int, bool) { i, ok := slots[s]; return i, ok }
+		for _, v := range names[:1] {
+			d := Diff(n, v)
+			for _, der := range []Node{d, Diff(d, v)} {
+				p, err := Compile(der, slot)
+				if err != nil {
+					t.Fatalf("Compile(derivative of %q): %v", src, err)
+				}
+				q, err := Compile(unshare(der), slot)
+				if err != nil {
+					t.Fatalf("Compile(unshared derivative of %q): %v", src, err)
+				}
+				a, b := p.Eval(vars), q.Eval(vars)
+				if !sameNumber(a, b) && !(math.IsNaN(a) && math.IsNaN(b)) {
+					t.Fatalf("derivative of %q by %s: %v with shared parts, %v without", src, v, a, b)
+				}
+				if allocs := testing.AllocsPerRun(3, func() { p.Eval(vars) }); allocs != 0 {
+					t.Fatalf("derivative of %q: %v allocations per Eval", src, allocs)
+				}
+			}
 		}
 	})
 }

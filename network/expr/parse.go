@@ -28,6 +28,16 @@ func (e *Error) Error() string {
 // pathological input gets a message instead of exhausting the stack.
 const maxDepth = 500
 
+// MaxTerms bounds the terms of one sum (or difference) and the factors of
+// one product (or quotient); MaxItems bounds the numbers, names and
+// operators of a whole expression. Beyond them Parse reports an error at
+// the column where the limit is passed, so that the work of Diff and
+// Compile, and the depth of the tree, stay bounded.
+const (
+	MaxTerms = 100_000
+	MaxItems = 500_000
+)
+
 type tokKind uint8
 
 const (
@@ -64,6 +74,7 @@ type parser struct {
 	tok   token
 	prev  token // the token before tok, for "after ..." in messages
 	depth int
+	items int // numbers, names and operators read
 }
 
 // Parse parses src into an expression tree. A syntax error, an unknown
@@ -112,6 +123,11 @@ func (p *parser) next() error {
 		return nil
 	}
 	c := p.src[p.pos]
+	if c != '(' && c != ')' && c != ',' {
+		if p.items++; p.items > MaxItems {
+			return &Error{Col: col, Msg: fmt.Sprintf("expression is too long: more than %d numbers, names and operators; expected at most %d (split it with assignments)", MaxItems, MaxItems)}
+		}
+	}
 	switch {
 	case c >= '0' && c <= '9' || c == '.':
 		return p.number()
@@ -189,8 +205,11 @@ func (p *parser) expr() (Node, error) {
 	if err != nil {
 		return nil, err
 	}
-	for p.isOp('+') || p.isOp('-') {
+	for terms := 1; p.isOp('+') || p.isOp('-'); terms++ {
 		op := p.tok
+		if terms == MaxTerms {
+			return nil, &Error{Col: op.col, Msg: fmt.Sprintf("sum of more than %d terms; expected at most %d (split it with assignments)", MaxTerms, MaxTerms)}
+		}
 		if err := p.next(); err != nil {
 			return nil, err
 		}
@@ -209,8 +228,11 @@ func (p *parser) term() (Node, error) {
 	if err != nil {
 		return nil, err
 	}
-	for p.isOp('*') || p.isOp('/') {
+	for factors := 1; p.isOp('*') || p.isOp('/'); factors++ {
 		op := p.tok
+		if factors == MaxTerms {
+			return nil, &Error{Col: op.col, Msg: fmt.Sprintf("product of more than %d factors; expected at most %d (split it with assignments)", MaxTerms, MaxTerms)}
+		}
 		if err := p.next(); err != nil {
 			return nil, err
 		}

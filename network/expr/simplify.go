@@ -21,30 +21,50 @@ func Simplify(n Node) Node {
 }
 
 // simplify is Simplify for a well-formed tree.
-func simplify(n Node) Node {
+func simplify(n Node) Node { return simplifier{newMemo[Node]()}.do(n) }
+
+// simplifier simplifies a tree or a DAG, each shared subtree once (so that
+// the result shares it too): a derivative shares its parts, and
+// simplifying it as a tree would take time in proportion to its size
+// written out.
+type simplifier struct{ m *memo[Node] }
+
+func (s simplifier) do(n Node) Node {
+	switch n.(type) {
+	case *Unary, *Binary, *Call:
+	default:
+		return n
+	}
+	if m, ok := s.m.get(n); ok {
+		return m
+	}
+	var m Node
 	switch n := n.(type) {
 	case *Unary:
-		return neg(simplify(n.X))
+		m = neg(s.do(n.X))
 	case *Binary:
-		l, r := simplify(n.L), simplify(n.R)
-		m := build(n.Op, l, r)
+		l, r := s.do(n.L), s.do(n.R)
+		m = build(n.Op, l, r)
 		if b, ok := m.(*Binary); ok && b.Op == n.Op && b.L == l && b.R == r {
-			b.Col = n.Col
+			if l == n.L && r == n.R {
+				m = n // unchanged: keep the node (and any sharing)
+			} else {
+				b.Col = n.Col
+			}
 		}
-		return m
 	case *Call:
 		args := make([]Node, len(n.Args))
 		for i, a := range n.Args {
-			args[i] = simplify(a)
+			args[i] = s.do(a)
 		}
 		id, _ := funcByName(n.Func)
-		m := call(id, args...)
+		m = call(id, args...)
 		if c, ok := m.(*Call); ok && len(args) > 0 && len(c.Args) == len(args) && &c.Args[0] == &args[0] {
 			c.Col = n.Col // a new node, not a shared subtree
 		}
-		return m
 	}
-	return n
+	s.m.set(n, m)
+	return m
 }
 
 func build(op Op, l, r Node) Node {

@@ -84,6 +84,9 @@ func Equal(a, b Node) bool {
 	if isNil(a) || isNil(b) {
 		return isNil(a) && isNil(b)
 	}
+	if a == b {
+		return true // the same node (a NaN literal equals itself here too)
+	}
 	switch a := a.(type) {
 	case *Number:
 		b, ok := b.(*Number)

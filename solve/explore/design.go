@@ -165,7 +165,8 @@ func (p Population) Sample() (Points, error) {
 
 // unitOpen maps 64 random bits to a float64 in the open interval (0, 1).
 func unitOpen(r uint64) float64 {
-	return (float64(r>>11) + 0.5) / (1 << 53)
+	// The largest value, 1 − 2⁻⁵⁴, rounds to 1: keep it below.
+	return min((float64(r>>11)+0.5)/(1<<53), 1-0x1p-53)
 }
 
 // mix64 is the finalizer of SplitMix64; it decorrelates consecutive keys.
@@ -216,6 +217,9 @@ func ParseShard(s string) (Shard, error) {
 	if !ok || err1 != nil || err2 != nil || n < 1 || i < 0 || i >= n {
 		return Shard{}, fmt.Errorf("shard %q: expected i/n with 0 ≤ i < n, e.g. 0/4", s)
 	}
+	if n > MaxShards {
+		return Shard{}, fmt.Errorf("shard %q: at most %d shards, got %d", s, MaxShards, n)
+	}
 	return Shard{I: i, N: n}, nil
 }
 
@@ -243,8 +247,14 @@ func (s Shard) validate() error {
 	if s.N < 1 || s.I < 0 || s.I >= s.N {
 		return fmt.Errorf("shard %d/%d: expected 0 ≤ i < n", s.I, s.N)
 	}
+	if s.N > MaxShards {
+		return fmt.Errorf("shard %d/%d: at most %d shards", s.I, s.N, MaxShards)
+	}
 	return nil
 }
+
+// MaxShards is the largest number of shards of a run.
+const MaxShards = 100_000
 
 // indices lists the points of a design of size n that belong to s.
 func (s Shard) indices(n int) []int {

@@ -3,6 +3,7 @@ package explore
 import (
 	"math"
 	"slices"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -165,5 +166,49 @@ func TestGridAndShard(t *testing.T) {
 		if _, err := ParseShard(bad); err == nil {
 			t.Errorf("ParseShard(%q): no error", bad)
 		}
+	}
+}
+
+// Distributions so wide that draws would overflow to infinity or
+// underflow to zero are refused (issue 17: a log-normal with cv_percent
+// 1e300 drew exact zeros and infinities, the zeros counted as successes).
+func TestDistributionTooWide(t *testing.T) {
+	for _, c := range []struct {
+		d    Distribution
+		want string
+	}{
+		{LogNormal{Median: 1, CVPercent: 1e300}, "cv_percent is too wide"},
+		{LogNormal{Median: 1e300, CVPercent: 1e5}, "cv_percent is too wide"},
+		{Uniform{Low: -1e308, High: 1e308}, "high − low is too wide"},
+		{TruncNormal{Mean: 1, SD: 1e308}, "sd is too wide"},
+	} {
+		err := c.d.Validate()
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%#v: %v; want %q", c.d, err, c.want)
+		}
+	}
+	// Wide but drawable: every draw of 10,000 is finite and positive.
+	d := LogNormal{Median: 1, CVPercent: 1e4}
+	if err := d.Validate(); err != nil {
+		t.Fatal(err)
+	}
+	pts, err := Population{Vary: []Distribution{d}, Size: 10000, Seed: 3}.Sample()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, p := range pts {
+		if !(p[0] > 0) || math.IsInf(p[0], 0) {
+			t.Fatalf("draw %v", p[0])
+		}
+	}
+}
+
+// More shards than MaxShards are refused before any work.
+func TestShardCap(t *testing.T) {
+	if _, err := ParseShard("0/1000000000000"); err == nil || !strings.Contains(err.Error(), "at most 100000 shards") {
+		t.Errorf("ParseShard: %v", err)
+	}
+	if _, err := ParseShard("3/100000"); err != nil {
+		t.Errorf("ParseShard at the cap: %v", err)
 	}
 }

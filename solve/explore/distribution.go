@@ -44,6 +44,25 @@ func (d LogNormal) Validate() error {
 	if !(d.CVPercent >= 0) || math.IsInf(d.CVPercent, 0) {
 		return fmt.Errorf("log-normal: cv_percent must be ≥ 0 and finite, got %v", d.CVPercent)
 	}
+	return checkDraws("log-normal", "cv_percent", d, true)
+}
+
+// The extreme probabilities a draw can have (see unitOpen).
+var (
+	pLowest  = unitOpen(0)
+	pHighest = unitOpen(math.MaxUint64)
+)
+
+// checkDraws refuses a distribution so wide that some draws would not be
+// finite numbers (or, for a distribution of positive values, would
+// underflow to zero): such draws would be silently wrong.
+func checkDraws(name, key string, d Distribution, positive bool) error {
+	for _, p := range []float64{pLowest, 0.5, pHighest} {
+		x := d.Quantile(p)
+		if math.IsNaN(x) || math.IsInf(x, 0) || (positive && !(x > 0)) {
+			return fmt.Errorf("%s: %s is too wide for numbers this program can draw (a draw at probability %.3g would be %v); expected a narrower distribution", name, key, p, x)
+		}
+	}
 	return nil
 }
 
@@ -87,6 +106,9 @@ func (d TruncNormal) Validate() error {
 	if d.SD > 0 && d.Mean < -6*d.SD {
 		return fmt.Errorf("truncated normal: mean %v lies more than 6 sd below zero; almost no mass is left", d.Mean)
 	}
+	if err := checkDraws("truncated normal", "sd", d, true); err != nil {
+		return err
+	}
 	return nil
 }
 
@@ -109,7 +131,7 @@ func (d Uniform) Validate() error {
 	if math.IsNaN(d.Low) || math.IsNaN(d.High) || math.IsInf(d.Low, 0) || math.IsInf(d.High, 0) || d.Low > d.High {
 		return fmt.Errorf("uniform: need finite low ≤ high, got [%v, %v]", d.Low, d.High)
 	}
-	return nil
+	return checkDraws("uniform", "high − low", d, false)
 }
 
 // LogUniform is the distribution whose logarithm is uniform on

@@ -281,6 +281,9 @@ func ReadJSON(rd io.Reader) (*Result, error) {
 		}
 		r.Failures = append(r.Failures, Failure{Index: f.Index, X: fromNums(f.X), Err: f.Err})
 	}
+	if err := checkCoverage(r); err != nil {
+		return bad("%v", err)
+	}
 	if wb := wr.Bands; wb != nil {
 		if len(wb.Cells) != len(wb.Components)*len(wb.Times) {
 			return bad("bands: %d cells for %d components × %d times", len(wb.Cells), len(wb.Components), len(wb.Times))
@@ -302,6 +305,41 @@ func ReadJSON(rd io.Reader) (*Result, error) {
 		r.Bands = b
 	}
 	return r, nil
+}
+
+// checkCoverage checks that the points of r (samples and failures) are
+// those of its shard of the design, each exactly once, and that its counts
+// agree with them: a part with a point deleted or repeated is refused.
+func checkCoverage(r *Result) error {
+	n := len(r.Samples) + len(r.Failures)
+	if r.Points != n || r.Failed != len(r.Failures) {
+		return fmt.Errorf("the part says %d points with %d failed but holds %d samples and %d failures",
+			r.Points, r.Failed, len(r.Samples), len(r.Failures))
+	}
+	want := r.Size // points of the shard: i < Size with i mod N = I
+	if r.Shard.N > 1 {
+		want = 0
+		if r.Shard.I < r.Size {
+			want = (r.Size-r.Shard.I-1)/r.Shard.N + 1
+		}
+	}
+	idx := make([]int, 0, n)
+	for _, s := range r.Samples {
+		idx = append(idx, s.Index)
+	}
+	for _, f := range r.Failures {
+		idx = append(idx, f.Index)
+	}
+	slices.Sort(idx)
+	for k := 1; k < len(idx); k++ {
+		if idx[k] == idx[k-1] {
+			return fmt.Errorf("point %d appears twice", idx[k])
+		}
+	}
+	if n != want {
+		return fmt.Errorf("shard %v of %d points should hold %d points, but holds %d (points missing or extra)", r.Shard, r.Size, want, n)
+	}
+	return nil
 }
 
 // Equal reports whether r and o hold the same outcome bit for bit: the same

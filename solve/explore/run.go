@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"runtime/debug"
 	"sync"
 	"sync/atomic"
 	"time"
@@ -185,6 +186,15 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			point := -1
+			defer func() {
+				// A panic is a bug, not a failed point: stop the run and
+				// report it with the point that caused it.
+				if r := recover(); r != nil {
+					errOnce.Do(func() { setupErr = &PanicError{Value: r, Point: point, Stack: debug.Stack()} })
+					cancel()
+				}
+			}()
 			sim, err := newSim()
 			if err != nil {
 				errOnce.Do(func() { setupErr = fmt.Errorf("explore: making a simulator: %w", err) })
@@ -198,6 +208,7 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 					return
 				}
 				i := idx[k]
+				point = i
 				d.Point(i, x)
 				tr, err := sim.Simulate(runCtx, x)
 				if err == nil {
@@ -255,6 +266,18 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 		return res, fmt.Errorf("explore: stopped after %d of %d points: %w", res.Points, len(idx), err)
 	}
 	return res, nil
+}
+
+// PanicError reports a panic in a simulation or readout: a bug in the
+// program, not a failed point. Run returns it instead of crashing.
+type PanicError struct {
+	Value any    // what was passed to panic
+	Point int    // the design point being run, or -1
+	Stack []byte // the goroutine's stack
+}
+
+func (e *PanicError) Error() string {
+	return fmt.Sprintf("internal error at design point %d: %v", e.Point, e.Value)
 }
 
 // checkTrajectory rejects a trajectory that readouts cannot use.

@@ -346,6 +346,12 @@ func TestRunRefusesOverflowingGrid(t *testing.T) {
 func TestReadJSONRejectsBadParts(t *testing.T) {
 	for _, tc := range []struct{ name, json, want string }{
 		{"negative size", `{"format":"` + PartFormat + `","size":-1,"shard":"0/1","knobs":["k"],"readouts":["r"],"samples":[],"failures":[],"points":0,"failed":0,"wall_ns":0}`, "size is -1"},
+		// Issue 17: a part with a point deleted or repeated used to merge,
+		// reporting the original count.
+		{"point deleted", `{"format":"` + PartFormat + `","size":4,"shard":"0/2","knobs":["k"],"readouts":["r"],"samples":[{"i":0,"x":[1],"r":[1]}],"failures":[],"points":1,"failed":0,"wall_ns":0}`, "should hold 2 points, but holds 1"},
+		{"point repeated", `{"format":"` + PartFormat + `","size":4,"shard":"0/2","knobs":["k"],"readouts":["r"],"samples":[{"i":0,"x":[1],"r":[1]},{"i":0,"x":[1],"r":[1]}],"failures":[],"points":2,"failed":0,"wall_ns":0}`, "point 0 appears twice"},
+		{"counts disagree", `{"format":"` + PartFormat + `","size":4,"shard":"0/2","knobs":["k"],"readouts":["r"],"samples":[{"i":0,"x":[1],"r":[1]}],"failures":[],"points":2,"failed":0,"wall_ns":0}`, "says 2 points"},
+		{"huge shard count", `{"format":"` + PartFormat + `","size":4,"shard":"0/1000000000000","knobs":["k"],"readouts":["r"],"samples":[],"failures":[],"points":0,"failed":0,"wall_ns":0}`, "at most 100000 shards"},
 		{"failure outside shard", `{"format":"` + PartFormat + `","size":4,"shard":"0/2","knobs":["k"],"readouts":["r"],"samples":[],"failures":[{"i":1,"x":[1],"error":"e"}],"points":1,"failed":1,"wall_ns":0}`, "failure 0"},
 	} {
 		r, err := ReadJSON(strings.NewReader(tc.json))
@@ -413,5 +419,27 @@ func TestRunStopsWhenASimulatorCannotBeMade(t *testing.T) {
 	}
 	if n := calls.Load(); n > 2 {
 		t.Errorf("the working simulator ran %d points after the other failed, want at most 2", n)
+	}
+}
+
+// panicSim panics at knob values above 5: a bug in a simulator.
+type panicSim struct{}
+
+func (panicSim) Simulate(ctx context.Context, x []float64) (Trajectory, error) {
+	if x[0] > 5 {
+		panic("index out of range in a test simulator")
+	}
+	return Trajectory{T: []float64{0, 1}, Y: [][]float64{{1}, {1}}}, nil
+}
+
+// A panic in a worker does not crash the program: Run returns a
+// *PanicError naming the point (issue 17: internal errors get exit
+// status 3, which needs the panic caught in the worker goroutine).
+func TestRunCatchesPanics(t *testing.T) {
+	newSim := func() (Simulator, error) { return panicSim{}, nil }
+	_, err := Run(context.Background(), Grid{Axes: [][]float64{{1, 2, 7, 3}}}, newSim, Settings{Knobs: []string{"k"}, Workers: 2})
+	var pe *PanicError
+	if !errors.As(err, &pe) || pe.Point != 2 || !strings.Contains(pe.Error(), "index out of range") || len(pe.Stack) == 0 {
+		t.Fatalf("error %v; want a PanicError at point 2 with a stack", err)
 	}
 }
