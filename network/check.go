@@ -166,7 +166,7 @@ func (v *validator) declare(section string, index int, name string, ix map[strin
 		v.add(Error, section, index, name, "name", 0, "the name %q is reserved for time in rate expressions; choose another", name)
 		return
 	case section != "compartments" && !usableInExpressions(name):
-		v.add(Error, section, index, name, "name", 0, "the name %q is a function of rate expressions (exp, log, log10, sqrt, abs, min, max, pow); choose another", name)
+		v.add(Error, section, index, name, "name", 0, "the name %q is a function of rate expressions (exp, log, sin, ifle, …); choose another", name)
 		return
 	}
 	if prev, ok := v.kinds[name]; ok {

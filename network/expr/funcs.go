@@ -18,9 +18,23 @@ const (
 	fnMin
 	fnMax
 	fnPow
+	fnIfLE // ifle(a, b, x, y): x when a <= b, else y
+	fnSin
+	fnCos
+	fnTan
+	fnAsin
+	fnAcos
+	fnAtan
+	fnSinh
+	fnCosh
+	fnTanh
+	fnAsinh
+	fnAcosh
+	fnAtanh
+	fnFloor
+	fnCeil
 	// Internal functions appear only in derivatives; Parse rejects them.
 	fnSign // sign(x): -1, 0 or 1
-	fnIfLE // ifle(a, b, x, y): x when a <= b, else y
 	numFuncs
 )
 
@@ -39,8 +53,22 @@ var funcs = [numFuncs]funcInfo{
 	fnMin:   {"min", 2, true},
 	fnMax:   {"max", 2, true},
 	fnPow:   {"pow", 2, true},
+	fnIfLE:  {"ifle", 4, true},
+	fnSin:   {"sin", 1, true},
+	fnCos:   {"cos", 1, true},
+	fnTan:   {"tan", 1, true},
+	fnAsin:  {"asin", 1, true},
+	fnAcos:  {"acos", 1, true},
+	fnAtan:  {"atan", 1, true},
+	fnSinh:  {"sinh", 1, true},
+	fnCosh:  {"cosh", 1, true},
+	fnTanh:  {"tanh", 1, true},
+	fnAsinh: {"asinh", 1, true},
+	fnAcosh: {"acosh", 1, true},
+	fnAtanh: {"atanh", 1, true},
+	fnFloor: {"floor", 1, true},
+	fnCeil:  {"ceil", 1, true},
 	fnSign:  {"sign", 1, false},
-	fnIfLE:  {"ifle", 4, false},
 }
 
 // lookupFunc returns the function called name that Parse accepts.
@@ -72,7 +100,7 @@ func knownFuncs() string {
 
 // unknownFuncMsg is the message for a call of an unknown function in a tree.
 func unknownFuncMsg(name string) string {
-	return fmt.Sprintf("unknown function %q; known: %s, and in derivatives sign and ifle", name, knownFuncs())
+	return fmt.Sprintf("unknown function %q; known: %s, and in derivatives sign", name, knownFuncs())
 }
 
 func arityMsg(name string, want, got int) string {
@@ -119,6 +147,42 @@ func apply(fn fnID, a []float64) float64 {
 			return a[2]
 		}
 		return a[3]
+	}
+	return apply1(fn, a[0])
+}
+
+// apply1 evaluates the one-argument functions that have no opcode of
+// their own (trigonometric, hyperbolic, floor and ceil); NaN for others.
+func apply1(fn fnID, x float64) float64 {
+	switch fn {
+	case fnSin:
+		return math.Sin(x)
+	case fnCos:
+		return math.Cos(x)
+	case fnTan:
+		return math.Tan(x)
+	case fnAsin:
+		return math.Asin(x)
+	case fnAcos:
+		return math.Acos(x)
+	case fnAtan:
+		return math.Atan(x)
+	case fnSinh:
+		return math.Sinh(x)
+	case fnCosh:
+		return math.Cosh(x)
+	case fnTanh:
+		return math.Tanh(x)
+	case fnAsinh:
+		return math.Asinh(x)
+	case fnAcosh:
+		return math.Acosh(x)
+	case fnAtanh:
+		return math.Atanh(x)
+	case fnFloor:
+		return math.Floor(x)
+	case fnCeil:
+		return math.Ceil(x)
 	}
 	return math.NaN()
 }
