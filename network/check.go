@@ -38,6 +38,7 @@ type Net struct {
 	Reactions   []CheckedReaction   // in model order
 	Assignments []CheckedAssignment // in evaluation order: each after those it reads
 	Events      []CheckedEvent      // the sound events, in model order
+	Rates       []CheckedRate       // the sound rates, in model order
 	// Problems is every error and warning found, sorted.
 	Problems ErrorList
 
@@ -123,6 +124,7 @@ func Check(m *Model) (*Net, ErrorList) {
 		v.reaction(i)
 	}
 	v.events()
+	v.rates()
 	v.simulation()
 	for i, s := range m.Species {
 		if !v.usedSp[i] && isName(s.Name) {
