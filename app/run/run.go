@@ -30,8 +30,8 @@ type Outcome struct {
 	Y       [][]float64 // Y[i][j] is quantity j (species, then assignments) at T[i]
 	// Events are the events that fired, and Jumps the quantities just
 	// before and after each time they fired (assignments included).
-	Events []solve.Firing
-	Jumps  []solve.Jump
+	Events  []solve.Firing
+	Jumps   []solve.Jump
 	Stats   solve.Stats
 	Compile time.Duration // time spent compiling the model
 	Elapsed time.Duration // compile and solve together

@@ -157,7 +157,7 @@ type sym struct {
 	boundary bool
 	constant bool
 	comp     string
-	cf       string   // species conversion factor
+	cf       string    // species conversion factor
 	rx       *reaction // species reference: its reaction
 	// what sets it
 	ia, ar, rr  *node // math of its initial assignment, assignment rule, rate rule
@@ -167,7 +167,7 @@ type sym struct {
 	unitComp   string // a variable compartment: the model's compartment of volume 1 holding its species' amounts
 	name       string // the model's name
 	init       float64
-	initState  int // 0 not yet, 1 computing, 2 done
+	initState  int  // 0 not yet, 1 computing, 2 done
 	assignment bool // held by an assignment
 	vol        float64
 }
