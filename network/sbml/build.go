@@ -429,7 +429,8 @@ func (im *importer) model(m *node, rx *reaction, w string) (expr.Node, bool) {
 	if !ok {
 		return nil, false
 	}
-	return im.subst(t, m, w, 0)
+	out, ok := im.subst(t, m, w, 0)
+	return tidy(out), ok
 }
 
 func (im *importer) subst(t expr.Node, at *node, w string, depth int) (expr.Node, bool) {
@@ -654,13 +655,38 @@ func (im *importer) reaction(m *network.Model, rx *reaction, rxNames map[string]
 // perVolume returns t/v: a factor equal to v is taken out of a product
 // when there is one (the usual "compartment * k * S"), else t is divided.
 func perVolume(t expr.Node, v float64) expr.Node {
-	if v == 1 {
-		return t
-	}
 	if out, ok := dropFactor(t, v); ok {
 		return out
 	}
+	if v == 1 {
+		return t
+	}
 	return expr.Div(t, expr.Num(v))
+}
+
+// tidy removes multiplications and divisions by the literal 1, which
+// compartments of size 1 leave in formulas; the value is unchanged.
+func tidy(t expr.Node) expr.Node {
+	switch n := t.(type) {
+	case *expr.Unary:
+		return &expr.Unary{Op: n.Op, X: tidy(n.X)}
+	case *expr.Binary:
+		l, r := tidy(n.L), tidy(n.R)
+		switch {
+		case n.Op == expr.OpMul && isNum(l, 1):
+			return r
+		case (n.Op == expr.OpMul || n.Op == expr.OpDiv) && isNum(r, 1):
+			return l
+		}
+		return &expr.Binary{Op: n.Op, L: l, R: r}
+	case *expr.Call:
+		args := make([]expr.Node, len(n.Args))
+		for i, a := range n.Args {
+			args[i] = tidy(a)
+		}
+		return &expr.Call{Func: n.Func, Args: args}
+	}
+	return t
 }
 
 func dropFactor(t expr.Node, v float64) (expr.Node, bool) {
