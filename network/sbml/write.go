@@ -386,7 +386,9 @@ func (w *writer) eventsXML() ([]byte, error) {
 			}
 			return expr.Simplify(t)
 		}
-		timeGeq := func(t expr.Node) expr.Node { return &expr.Call{Func: "%geq", Args: []expr.Node{expr.Var(network.TimeName), t}} }
+		timeGeq := func(t expr.Node) expr.Node {
+			return &expr.Call{Func: "%geq", Args: []expr.Node{expr.Var(network.TimeName), t}}
+		}
 		suffix := func(k int) string {
 			if count == 1 {
 				return ""
