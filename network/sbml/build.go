@@ -101,7 +101,7 @@ func (im *importer) computeInitial(s *sym) (float64, error) {
 		return s.value, nil
 	case kSpecies:
 		if !s.valueSet {
-			return 0, fmt.Errorf("%s has no initial amount or concentration", w)
+			return 0, fmt.Errorf("no initial amount or concentration is given, and no initial assignment or rule sets one")
 		}
 		c := im.ids[s.comp]
 		v, err := im.initial(c)
@@ -117,7 +117,7 @@ func (im *importer) computeInitial(s *sym) (float64, error) {
 		return s.value, nil
 	case kParameter:
 		if !s.valueSet {
-			return 0, fmt.Errorf("%s has no value", w)
+			return 0, fmt.Errorf("no value is given, and no initial assignment or rule sets one")
 		}
 		return s.value, nil
 	case kSpeciesRef:
@@ -135,6 +135,7 @@ func (im *importer) computeInitial(s *sym) (float64, error) {
 	}
 	return 0, fmt.Errorf("%s has no value", w)
 }
+
 
 // evalMath evaluates a <math> element at the start.
 func (im *importer) evalMath(m *node, rx *reaction, w string) (float64, error) {
