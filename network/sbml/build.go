@@ -136,7 +136,6 @@ func (im *importer) computeInitial(s *sym) (float64, error) {
 	return 0, fmt.Errorf("%s has no value", w)
 }
 
-
 // evalMath evaluates a <math> element at the start.
 func (im *importer) evalMath(m *node, rx *reaction, w string) (float64, error) {
 	t, err := im.mr.number(m)

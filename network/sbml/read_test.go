@@ -147,10 +147,10 @@ func TestImportRules(t *testing.T) {
 	m.Write(&b)
 	file := b.String()
 	for _, want := range []string{
-		`"name": "t_2"`,                  // t is time in the model's formulas
+		`"name": "t_2"`,                          // t is time in the model's formulas
 		`"name": "v0",` + "\n      \"value\": 6", // 2·3, evaluated
-		`"name": "R_kf"`,                 // local parameter renamed
-		`"expression": "S + P"`,          // assignment rule
+		`"name": "R_kf"`,                         // local parameter renamed
+		`"expression": "S + P"`,                  // assignment rule
 		`"name": "drift",` + "\n      \"expression\": \"0.5\"",
 		`R_kf*v0*(S^2/(1 + S^2))`, // function inlined
 		`"at": 4`,                 // time ≥ 4 became a timed event
