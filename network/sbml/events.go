@@ -93,6 +93,10 @@ func (im *importer) events(m *network.Model, model *node) {
 			im.addErr(err, tm, w)
 			continue
 		}
+		if err := im.mr.checkSize(root, cond(expr.Num(1), expr.Num(0))); err != nil {
+			im.addErr(err, tm, w)
+			continue
+		}
 		atStart, err := im.evalTree(cond(expr.Num(1), expr.Num(0)), w)
 		if err != nil {
 			im.errAt(tm, w, "%v", err)
@@ -193,6 +197,12 @@ func (im *importer) comparison(root *node, w string) (l expr.Node, op string, r 
 			if err != nil {
 				im.addErr(err, root, w)
 				return nil, "", nil, false
+			}
+			for _, x := range []expr.Node{a, b} {
+				if err := im.mr.checkSize(root, x); err != nil {
+					im.addErr(err, root, w)
+					return nil, "", nil, false
+				}
 			}
 			la, ok1 := im.subst(a, root, w, 0)
 			lb, ok2 := im.subst(b, root, w, 0)

@@ -63,13 +63,34 @@ func unwrap(n *node) *node {
 	return n
 }
 
+// maxNodes bounds the size of a formula once written out: logic and
+// function calls share subtrees, which writing out repeats.
+const maxNodes = 200000
+
 // number reads a <math> element's expression as a number.
 func (r *mathReader) number(m *node) (expr.Node, error) {
 	e, err := r.root(m)
 	if err != nil || e == nil {
 		return nil, err
 	}
-	return r.num(e, nil)
+	t, err := r.num(e, nil)
+	if err != nil {
+		return nil, err
+	}
+	return t, r.checkSize(e, t)
+}
+
+// checkSize refuses a formula with more than maxNodes nodes.
+func (r *mathReader) checkSize(at *node, t expr.Node) error {
+	count := 0
+	expr.Walk(t, func(expr.Node) bool {
+		count++
+		return count <= maxNodes
+	})
+	if count > maxNodes {
+		return r.fail(at, "the formula has more than %d terms once its functions and logic are written out", maxNodes)
+	}
+	return nil
 }
 
 func (r *mathReader) num(n *node, env map[string]mval) (expr.Node, error) {
@@ -472,20 +493,27 @@ func (r *mathReader) apply(n *node, env map[string]mval) (mval, error) {
 			a, b := sels[0], sels[1]
 			return mval{sel: func(x, y expr.Node) expr.Node { return a(b(x, y), x) }}, nil
 		}
+		if head.Name == "xor" {
+			// The parity of the operands' truth values (1 or 0), built
+			// once: selecting both branches at each level would double
+			// the work with every operand.
+			var p expr.Node = expr.Num(0)
+			for _, s := range sels {
+				b := s(expr.Num(1), expr.Num(0))
+				p = ifle(expr.Num(0.5), p, expr.Sub(expr.Num(1), b), b)
+			}
+			return mval{sel: func(x, y expr.Node) expr.Node { return ifle(expr.Num(0.5), p, x, y) }}, nil
+		}
 		sel := map[string]func(x, y expr.Node) expr.Node{
 			"and": func(x, y expr.Node) expr.Node { return x },
 			"or":  func(x, y expr.Node) expr.Node { return y },
-			"xor": func(x, y expr.Node) expr.Node { return y },
 		}[head.Name]
 		for _, s := range sels {
 			prev, s := sel, s
-			switch head.Name {
-			case "and":
+			if head.Name == "and" {
 				sel = func(x, y expr.Node) expr.Node { return prev(s(x, y), y) }
-			case "or":
+			} else {
 				sel = func(x, y expr.Node) expr.Node { return prev(x, s(x, y)) }
-			default:
-				sel = func(x, y expr.Node) expr.Node { return prev(s(y, x), s(x, y)) }
 			}
 		}
 		return mval{sel: sel}, nil

@@ -217,6 +217,22 @@ func TestImportProblems(t *testing.T) {
 	}
 }
 
+// TestFormulaTooLarge: logic that doubles at each level (xor repeats both
+// branches) is refused once written out too large, quickly, rather than
+// exhausting memory.
+func TestFormulaTooLarge(t *testing.T) {
+	x := `<apply><gt/><ci>p</ci><cn>1</cn></apply>`
+	for range 40 {
+		x = `<apply><xor/>` + x + `<apply><lt/><ci>p</ci><cn>2</cn></apply></apply>`
+	}
+	src := doc(`<listOfParameters><parameter id="p" value="1.5" constant="false"/></listOfParameters>
+<listOfRules><rateRule variable="p"><math ` + mml + `><piecewise><piece><cn>1</cn>` + x + `</piece><otherwise><cn>0</cn></otherwise></piecewise></math></rateRule></listOfRules>`)
+	_, err := Parse([]byte(src), "xor.xml")
+	if err == nil || !strings.Contains(err.Error(), "more than 200000 terms") {
+		t.Errorf("40 nested xor give %v", err)
+	}
+}
+
 // TestReadTooLarge: a file over MaxSize is refused with a message, not
 // read into memory whole.
 func TestReadTooLarge(t *testing.T) {

@@ -16,15 +16,19 @@ import (
 
 func loadExample(t *testing.T, name string) *network.Model {
 	t.Helper()
-	data, err := examples.Open(name)
-	if err != nil {
-		t.Fatal(err)
-	}
-	m, err := network.Read(bytes.NewReader(data), name)
+	m, err := readExample(name)
 	if err != nil {
 		t.Fatal(err)
 	}
 	return m
+}
+
+func readExample(name string) (*network.Model, error) {
+	data, err := examples.Open(name)
+	if err != nil {
+		return nil, err
+	}
+	return network.Read(bytes.NewReader(data), name)
 }
 
 // simulate solves m at 60 times over its run, tightly (rtol 1e-12), and
