@@ -9,6 +9,9 @@
 //	batch sweep SPEC.json [flags]
 //	batch population SPEC.json [flags]
 //	batch merge PART.json... --out DIR
+//	batch import FILE.xml [--out MODEL.json]
+//	batch export MODEL.json [--out FILE.xml]
+//	batch conformance DIR [--out report.csv]
 //	batch help
 //
 // Run "batch help" for the flags. Exit status: 0 on success, 1 when a run
@@ -45,6 +48,8 @@ Commands:
         --stats            print solver statistics as one JSON line, last
                            (events_fired counts the events that fired)
         --event-rows       add two rows at each event: just before, just after
+        --amounts          species as amounts (concentration × compartment
+                           volume) instead of concentrations
         --repeat N         solve N times and report the median solve time
 
   sweep SPEC.json [--out DIR] [--shard i/n] [--workers N] [--quiet]
@@ -57,6 +62,20 @@ Commands:
 
   merge PART.json... --out DIR
       Join the partial results of a sharded sweep or population.
+
+  import FILE.xml [--out MODEL.json]
+      Read an SBML model (Level 3 Version 1 or 2, Level 2 Version 4) and
+      write it as a model file (to standard output unless --out is
+      given). Warnings go to standard error; a model that cannot be
+      represented exits with status 2 and lists every unsupported element.
+
+  export MODEL.json [--out FILE.xml]
+      Write a model as SBML Level 3 Version 2 core.
+
+  conformance DIR [--out report.csv] [--summary FILE.md] [--workers N]
+      Run the SBML Test Suite's semantic cases in DIR (its cases folder)
+      and write one row per case: case,status,max_error_ratio,message,
+      status pass, fail or refused. Exit status 1 when a case fails.
 
   help
       Print this text.

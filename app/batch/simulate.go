@@ -40,6 +40,7 @@ type simFlags struct {
 	logY    bool
 	stats   bool
 	events  bool // --event-rows
+	amounts bool // --amounts
 	repeat  int
 	set     map[string]bool
 }
@@ -66,6 +67,7 @@ func parseSimFlags(args []string) (*simFlags, error) {
 	fs.BoolVar(&f.logY, "log-y", false, "")
 	fs.BoolVar(&f.stats, "stats", false, "")
 	fs.BoolVar(&f.events, "event-rows", false, "")
+	fs.BoolVar(&f.amounts, "amounts", false, "")
 	fs.IntVar(&f.repeat, "repeat", 1, "")
 	var pos []string
 	for {
@@ -219,8 +221,11 @@ func simulate(ctx context.Context, f *simFlags, stdout io.Writer) error {
 	var outErr error
 	traj, _ := run.NewOutcome(m, sys, res, nil, time.Now()) // species and assignments
 	table := traj
+	if f.amounts {
+		table = traj.Amounts(sys)
+	}
 	if f.events {
-		table = traj.WithEventRows()
+		table = table.WithEventRows()
 	}
 	if f.out != "" {
 		if err := run.SaveCSV(f.out, table, prov); err != nil {
