@@ -73,7 +73,9 @@ Commands:
       Write a model as SBML Level 3 Version 2 core.
 
   conformance DIR [--out report.csv] [--summary FILE.md] [--workers N]
-      Run the SBML Test Suite's semantic cases in DIR (its cases folder)
+              [--level l3v2|l3v1|l2v4] [--quiet]
+      Run the SBML Test Suite's semantic cases in DIR (its cases folder),
+      reading each case's file of that level and version (default l3v2),
       and write one row per case: case,status,max_error_ratio,message,
       status pass, fail or refused. Exit status 1 when a case fails.
 

@@ -12,6 +12,7 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"slices"
 	"strings"
 
 	"kinetarium/app/conformance"
@@ -142,6 +143,7 @@ func conformanceRun(args []string, stdout, stderr io.Writer) error {
 	summary := fs.String("summary", "", "")
 	workers := fs.Int("workers", 0, "")
 	quiet := fs.Bool("quiet", false, "")
+	level := fs.String("level", "l3v2", "")
 	dir, err := fileArgs("folder of cases", args, fs)
 	if err != nil {
 		return err
@@ -159,7 +161,10 @@ func conformanceRun(args []string, stdout, stderr io.Writer) error {
 			}
 		}
 	}
-	res, err := conformance.Run(ctx, dir, nil, *workers, progress)
+	if !slices.Contains(conformance.Levels, *level) {
+		return badInput(fmt.Errorf("--level: expected one of %s, got %q", strings.Join(conformance.Levels, ", "), *level))
+	}
+	res, err := conformance.Run(ctx, dir, conformance.Options{Level: *level, Workers: *workers, Progress: progress})
 	if err != nil {
 		return err
 	}

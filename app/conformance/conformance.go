@@ -189,8 +189,19 @@ func readTags(path string) (comp, test []string) {
 	return comp, test
 }
 
-// RunCase runs the case in folder dir/name.
-func RunCase(ctx context.Context, dir, name string) (r Result) {
+// Levels are the SBML files a case folder may hold, by the suite's names:
+// NNNNN-sbml-LEVEL.xml.
+var Levels = []string{"l3v2", "l3v1", "l2v4"}
+
+// RunCase runs the case in folder dir/name with its SBML Level 3 Version 2
+// file.
+func RunCase(ctx context.Context, dir, name string) Result {
+	return RunCaseLevel(ctx, dir, name, "l3v2")
+}
+
+// RunCaseLevel runs the case in folder dir/name with its file of the given
+// level and version (one of Levels).
+func RunCaseLevel(ctx context.Context, dir, name, level string) (r Result) {
 	start := time.Now()
 	r = Result{Case: name, MaxErrorRatio: math.NaN()}
 	folder := filepath.Join(dir, name)
@@ -209,12 +220,12 @@ func RunCase(ctx context.Context, dir, name string) (r Result) {
 	if err != nil {
 		return fail(Refused, "expected results: %v", err)
 	}
-	modelPath := filepath.Join(folder, name+"-sbml-l3v2.xml")
-	data, err := os.ReadFile(modelPath)
+	file := name + "-sbml-" + level + ".xml"
+	data, err := os.ReadFile(filepath.Join(folder, file))
 	if err != nil {
 		return fail(Refused, "%v", err)
 	}
-	imp, err := sbml.Parse(data, name+"-sbml-l3v2.xml")
+	imp, err := sbml.Parse(data, file)
 	if err != nil {
 		return fail(Refused, "%s", oneLine(err))
 	}
@@ -397,10 +408,23 @@ func parseSpecial(s string) float64 {
 	return math.NaN()
 }
 
-// Run runs the named cases (all under dir when names is empty) on workers
-// goroutines (0: one per core), calling progress, when not nil, after each
+// Options control Run. The zero value runs every case's Level 3 Version
+// 2 file on one goroutine per core.
+type Options struct {
+	Names    []string // the cases to run; all under the folder when empty
+	Level    string   // the file of each case to read, one of Levels; "" is l3v2
+	Workers  int      // goroutines; 0 is one per core
+	Progress func(done, total int)
+}
+
+// Run runs the cases under dir, calling progress, when not nil, after each
 // case. Results are in case order.
-func Run(ctx context.Context, dir string, names []string, workers int, progress func(done, total int)) ([]Result, error) {
+func Run(ctx context.Context, dir string, opt Options) ([]Result, error) {
+	names, workers, progress := opt.Names, opt.Workers, opt.Progress
+	level := opt.Level
+	if level == "" {
+		level = "l3v2"
+	}
 	if len(names) == 0 {
 		var err error
 		if names, err = Cases(dir); err != nil {
@@ -420,7 +444,7 @@ func Run(ctx context.Context, dir string, names []string, workers int, progress 
 		go func() {
 			defer wg.Done()
 			for i := range jobs {
-				out[i] = runGuarded(ctx, dir, names[i])
+				out[i] = runGuarded(ctx, dir, names[i], level)
 				if progress != nil {
 					mu.Lock()
 					done++
@@ -443,7 +467,7 @@ func Run(ctx context.Context, dir string, names []string, workers int, progress 
 
 // runGuarded runs one case with a time limit, turning a panic (a bug)
 // into a failure that says so.
-func runGuarded(ctx context.Context, dir, name string) (r Result) {
+func runGuarded(ctx context.Context, dir, name, level string) (r Result) {
 	defer func() {
 		if p := recover(); p != nil {
 			r = Result{Case: name, Status: Fail, MaxErrorRatio: math.NaN(), Message: fmt.Sprintf("panic: %v", p)}
@@ -451,7 +475,7 @@ func runGuarded(ctx context.Context, dir, name string) (r Result) {
 	}()
 	ctx, cancel := context.WithTimeout(ctx, 60*time.Second)
 	defer cancel()
-	return RunCase(ctx, dir, name)
+	return RunCaseLevel(ctx, dir, name, level)
 }
 
 // WriteCSV writes one row per case: case,status,max_error_ratio,message.

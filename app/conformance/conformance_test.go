@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -45,7 +46,7 @@ func TestConformance(t *testing.T) {
 			}
 		}
 	}
-	res, err := Run(context.Background(), dir, names, 0, nil)
+	res, err := Run(context.Background(), dir, Options{Names: names})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -133,5 +134,81 @@ func TestReadSettings(t *testing.T) {
 	os.WriteFile(p, []byte("steps: x\n"), 0o644)
 	if _, err := ReadSettings(p); err == nil || !strings.Contains(err.Error(), "not a number") {
 		t.Errorf("a bad number gives %v", err)
+	}
+}
+
+// TestConformanceOtherLevels converts every sixth case to SBML Level 3
+// Version 1 and Level 2 Version 4 with libSBML (Debian's python3-sbml5;
+// a case that libSBML cannot convert is left out) in a temporary folder,
+// and runs them: no case may fail, and the cases with supported tags pass
+// at least as often as 95 %.
+func TestConformanceOtherLevels(t *testing.T) {
+	dir := suiteDir(t)
+	py := "/usr/bin/python3" // Debian's, which sees python3-sbml5
+	if _, err := os.Stat(py); err != nil {
+		t.Skip("no /usr/bin/python3: the conversion needs libSBML's Python binding (python3-sbml5)")
+	}
+	if out, err := exec.Command(py, "-c", "import libsbml").CombinedOutput(); err != nil {
+		t.Skipf("libSBML's Python binding is missing (apt-get install python3-sbml5): %s", strings.TrimSpace(string(out)))
+	}
+	all, err := Cases(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tmp := t.TempDir()
+	var names []string
+	for i, c := range all {
+		if i%6 != 0 {
+			continue
+		}
+		names = append(names, c)
+		os.Mkdir(filepath.Join(tmp, c), 0o755)
+		for _, f := range []string{"-sbml-l3v2.xml", "-settings.txt", "-results.csv", "-model.m"} {
+			data, err := os.ReadFile(filepath.Join(dir, c, c+f))
+			if err != nil {
+				t.Fatal(err)
+			}
+			os.WriteFile(filepath.Join(tmp, c, c+f), data, 0o644)
+		}
+	}
+	const convert = `
+import sys, os, libsbml
+root = sys.argv[1]
+for c in sys.argv[2:]:
+    for level, version in ((3, 1), (2, 4)):
+        doc = libsbml.readSBMLFromFile(os.path.join(root, c, c + "-sbml-l3v2.xml"))
+        props = libsbml.ConversionProperties(libsbml.SBMLNamespaces(level, version))
+        props.addOption("strict", True)
+        props.addOption("setLevelAndVersion", True)
+        if doc.convert(props) != libsbml.LIBSBML_OPERATION_SUCCESS or doc.getLevel() != level:
+            continue
+        libsbml.writeSBMLToFile(doc, os.path.join(root, c, "%s-sbml-l%dv%d.xml" % (c, level, version)))
+`
+	cmd := exec.Command(py, append([]string{"-c", convert, tmp}, names...)...)
+	if out, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("libSBML conversion: %v\n%s", err, out)
+	}
+	for _, level := range []string{"l3v1", "l2v4"} {
+		var have []string
+		for _, c := range names {
+			if _, err := os.Stat(filepath.Join(tmp, c, c+"-sbml-"+level+".xml")); err == nil {
+				have = append(have, c)
+			}
+		}
+		res, err := Run(context.Background(), tmp, Options{Names: have, Level: level})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, r := range res {
+			if r.Status == Fail {
+				t.Errorf("%s case %s fails: %s", level, r.Case, r.Message)
+			}
+		}
+		s := Summarize(res)
+		t.Logf("%s: %d of %d cases converted; %d pass, %d refused, %d fail; supported tags: %d of %d pass (%.1f %%)",
+			level, len(have), len(names), s.All.Pass, s.All.Refused, s.All.Fail, s.Supported.Pass, s.Supported.Cases, s.Supported.PassRate())
+		if s.Supported.Cases == 0 || s.Supported.PassRate() < 95 {
+			t.Errorf("%s: %.1f %% of the %d converted cases with supported tags pass; expected at least 95 %%", level, s.Supported.PassRate(), s.Supported.Cases)
+		}
 	}
 }

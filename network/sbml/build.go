@@ -562,7 +562,20 @@ func (im *importer) reaction(m *network.Model, rx *reaction, rxNames map[string]
 				cf = f
 			}
 			c := 1.0
-			if rid, ok := sr.attr("id"); ok && im.ids[rid] != nil {
+			if sm := sr.kid("stoichiometryMath"); sm != nil && sm.kid("math") != nil { // Level 2
+				nu, ok := im.model(sm.kid("math"), nil, w)
+				if !ok {
+					continue
+				}
+				if v, isConst := expr.Const(expr.Simplify(nu)); isConst {
+					c = v
+				} else {
+					if !sp.boundary && !sp.constant {
+						extra = append(extra, varTerm{sp: sp, sign: float64(2*k-1) * cf, nu: nu})
+					}
+					continue
+				}
+			} else if rid, ok := sr.attr("id"); ok && im.ids[rid] != nil {
 				ref := im.ids[rid]
 				if ref.variable {
 					if !sp.boundary && !sp.constant {

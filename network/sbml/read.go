@@ -447,9 +447,6 @@ func (im *importer) read(model *node) {
 					ref.rx = rx
 					ref.value, ref.valueSet = im.numAttr(sr, what(ref), "stoichiometry")
 				}
-				if sr.kid("stoichiometryMath") != nil {
-					im.errAt(sr, w, "stoichiometryMath is not supported; the model's stoichiometries are numbers")
-				}
 			}
 		}
 		for _, mr := range r.kids("listOfModifiers", "modifierSpeciesReference") {
