@@ -41,7 +41,7 @@ Each rate field takes a number (0.5, 1e-3) or the name of a parameter.
 ## Expressions
 
 Operators ` + "`+ - * / ^`" + ` and parentheses; numbers such as 2, 0.5, 1e-3;
-functions ` + "`exp`, `log` (natural), `log10`, `sqrt`, `abs`, `min(a, b)`, `max(a, b)`, `pow(a, b)`, `sin`, `cos`, `tan`, `asin`, `acos`, `atan`, `sinh`, `cosh`, `tanh`, `asinh`, `acosh`, `atanh`, `floor`, `ceil`" + `,
+functions ` + "`exp`, `log` (natural), `log10`, `sqrt`, `abs`, `min(a, b)`, `max(a, b)`, `pow(a, b)`, `sin`, `cos`, `tan`, `asin`, `acos`, `atan`, `sinh`, `cosh`, `tanh`, `asinh`, `acosh`, `atanh`, `floor`, `ceil`, `factorial`" + `,
 and the switch ` + "`ifle(a, b, x, y)`" + ` (x when a ≤ b, otherwise y);
 ` + "`t`" + ` is time. Example: ` + "`Vmax*S^n/(K^n + S^n)`" + `.
 

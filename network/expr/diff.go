@@ -97,7 +97,7 @@ func diffCall(n *Call, name string) Node {
 		return &Number{Value: 0}
 	case fnIfLE:
 		return call(fnIfLE, a[0], a[1], diff(a[2], name), diff(a[3], name))
-	case fnFloor, fnCeil:
+	case fnFloor, fnCeil, fnFactorial:
 		return &Number{Value: 0} // piecewise constant; 0 between its jumps
 	}
 	da := diff(a[0], name)

@@ -9,7 +9,8 @@
 // variable names [A-Za-z_][A-Za-z0-9_]*, and calls of the functions
 // exp, log (natural), log10, sqrt, abs, min, max, pow, the switch
 // ifle(a, b, x, y) (x when a <= b, otherwise y), sin, cos, tan, asin, acos,
-// atan, sinh, cosh, tanh, asinh, acosh, atanh, floor and ceil.
+// atan, sinh, cosh, tanh, asinh, acosh, atanh, floor, ceil and factorial
+// (of the whole part of its argument).
 //
 // # Trees
 //
@@ -84,11 +85,12 @@ type Binary struct {
 //
 // Func is one of the functions of the syntax, exp, log, log10, sqrt, abs,
 // sin, cos, tan, asin, acos, atan, sinh, cosh, tanh, asinh, acosh, atanh,
-// floor and ceil (1 argument each), min, max and pow (2 arguments each),
+// floor, ceil and factorial (1 argument each), min, max and pow (2
+// arguments each),
 // and the switch ifle(a, b, x, y), x when a <= b and otherwise y (the
-// derivatives of min and max choose their branch with it; floor, ceil and
-// ifle differentiate to 0 and to the chosen branch's derivative, which is
-// exact between their jumps), or the one function that derivatives use
+// derivatives of min and max choose their branch with it; floor, ceil,
+// factorial and ifle differentiate to 0 and to the chosen branch's
+// derivative, which is exact between their jumps), or the one function that derivatives use
 // and Parse does not accept:
 //
 //	sign(x)          -1, 0 or 1 with the sign of x (0 for 0, NaN for NaN);

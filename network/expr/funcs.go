@@ -33,6 +33,7 @@ const (
 	fnAtanh
 	fnFloor
 	fnCeil
+	fnFactorial
 	// Internal functions appear only in derivatives; Parse rejects them.
 	fnSign // sign(x): -1, 0 or 1
 	numFuncs
@@ -45,30 +46,31 @@ type funcInfo struct {
 }
 
 var funcs = [numFuncs]funcInfo{
-	fnExp:   {"exp", 1, true},
-	fnLog:   {"log", 1, true},
-	fnLog10: {"log10", 1, true},
-	fnSqrt:  {"sqrt", 1, true},
-	fnAbs:   {"abs", 1, true},
-	fnMin:   {"min", 2, true},
-	fnMax:   {"max", 2, true},
-	fnPow:   {"pow", 2, true},
-	fnIfLE:  {"ifle", 4, true},
-	fnSin:   {"sin", 1, true},
-	fnCos:   {"cos", 1, true},
-	fnTan:   {"tan", 1, true},
-	fnAsin:  {"asin", 1, true},
-	fnAcos:  {"acos", 1, true},
-	fnAtan:  {"atan", 1, true},
-	fnSinh:  {"sinh", 1, true},
-	fnCosh:  {"cosh", 1, true},
-	fnTanh:  {"tanh", 1, true},
-	fnAsinh: {"asinh", 1, true},
-	fnAcosh: {"acosh", 1, true},
-	fnAtanh: {"atanh", 1, true},
-	fnFloor: {"floor", 1, true},
-	fnCeil:  {"ceil", 1, true},
-	fnSign:  {"sign", 1, false},
+	fnExp:       {"exp", 1, true},
+	fnLog:       {"log", 1, true},
+	fnLog10:     {"log10", 1, true},
+	fnSqrt:      {"sqrt", 1, true},
+	fnAbs:       {"abs", 1, true},
+	fnMin:       {"min", 2, true},
+	fnMax:       {"max", 2, true},
+	fnPow:       {"pow", 2, true},
+	fnIfLE:      {"ifle", 4, true},
+	fnSin:       {"sin", 1, true},
+	fnCos:       {"cos", 1, true},
+	fnTan:       {"tan", 1, true},
+	fnAsin:      {"asin", 1, true},
+	fnAcos:      {"acos", 1, true},
+	fnAtan:      {"atan", 1, true},
+	fnSinh:      {"sinh", 1, true},
+	fnCosh:      {"cosh", 1, true},
+	fnTanh:      {"tanh", 1, true},
+	fnAsinh:     {"asinh", 1, true},
+	fnAcosh:     {"acosh", 1, true},
+	fnAtanh:     {"atanh", 1, true},
+	fnFloor:     {"floor", 1, true},
+	fnCeil:      {"ceil", 1, true},
+	fnFactorial: {"factorial", 1, true},
+	fnSign:      {"sign", 1, false},
 }
 
 // lookupFunc returns the function called name that Parse accepts.
@@ -183,6 +185,13 @@ func apply1(fn fnID, x float64) float64 {
 		return math.Floor(x)
 	case fnCeil:
 		return math.Ceil(x)
+	case fnFactorial:
+		// n! of the whole part n of x (NaN below 0), as MathML defines
+		// factorial on whole numbers; Γ(n+1) is exact up to 22!.
+		if x < 0 {
+			return math.NaN()
+		}
+		return math.Gamma(math.Floor(x) + 1)
 	}
 	return math.NaN()
 }

@@ -29,6 +29,7 @@ func TestMoreFunctions(t *testing.T) {
 		{"atanh(x/2)", 0.7, math.Atanh(0.35)},
 		{"floor(3*x)*x", 0.7, 2 * 0.7},
 		{"ceil(3*x)*x", 0.7, 3 * 0.7},
+		{"factorial(5*x)*x", 0.7, 6 * 0.7}, // 3! (5·0.7 = 3.5)
 		{"ifle(x, 1, x^2, 5)", 0.7, 0.49},
 		{"ifle(x, 0.5, x^2, 5*x)", 0.7, 3.5},
 	}

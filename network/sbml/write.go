@@ -314,7 +314,7 @@ var mathFuncs = map[string]string{
 	"exp": "exp", "log": "ln", "log10": "log", "sqrt": "root", "abs": "abs", "min": "min", "max": "max",
 	"pow": "power", "sin": "sin", "cos": "cos", "tan": "tan", "asin": "arcsin", "acos": "arccos",
 	"atan": "arctan", "sinh": "sinh", "cosh": "cosh", "tanh": "tanh", "asinh": "arcsinh",
-	"acosh": "arccosh", "atanh": "arctanh", "floor": "floor", "ceil": "ceiling",
+	"acosh": "arccosh", "atanh": "arctanh", "floor": "floor", "ceil": "ceiling", "factorial": "factorial",
 }
 
 // mathml writes an expression tree as MathML content.
