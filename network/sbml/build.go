@@ -347,6 +347,9 @@ func (im *importer) species(m *network.Model, s *sym, inReaction bool) {
 	w := what(s)
 	c := im.ids[s.comp]
 	sy := Symbol{Kind: "species", Name: s.name, HasOnlySubstanceUnits: s.hosu, Volume: c.vol}
+	if c.variable {
+		sy.VolumeName = c.name
+	}
 	defer func() { im.syms[s.id] = sy }()
 	if s.ar != nil {
 		if inReaction && !s.boundary {
@@ -369,9 +372,9 @@ func (im *importer) species(m *network.Model, s *sym, inReaction bool) {
 	switch {
 	case c.variable && !s.hosu:
 		conc = v * c.vol
-		sy.HeldAsAmount, sy.VolumeName = true, c.name
+		sy.HeldAsAmount = true
 	case c.variable:
-		sy.HeldAsAmount, sy.VolumeName = true, c.name
+		sy.HeldAsAmount = true
 	case s.hosu:
 		conc = v / c.vol
 	}

@@ -37,6 +37,7 @@ type mathReader struct {
 	file  string
 	funcs map[string]*node // lambda of each function definition
 	depth int
+	warn  func(n *node, format string, args ...any) // nil: no warnings
 }
 
 // mathProblem is an error at a MathML element.
@@ -315,7 +316,10 @@ func (r *mathReader) piecewise(n *node, env map[string]mval) (mval, error) {
 			return mval{}, r.fail(n, "an empty <piecewise>")
 		}
 		// Without <otherwise> the value where no piece holds is undefined;
-		// the last piece's value stands for it.
+		// the last piece's value stands for it, and the import says so.
+		if r.warn != nil {
+			r.warn(n, "a <piecewise> without <otherwise> is undefined where no piece holds; the last piece's value is used there")
+		}
 		v, err := r.num(pieces[len(pieces)-1].Kids[0], env)
 		if err != nil {
 			return mval{}, err

@@ -118,6 +118,7 @@ func Parse(data []byte, file string) (imp *Import, err error) {
 	}
 	im := &importer{file: file, ids: map[string]*sym{}, taken: map[string]bool{}, syms: map[string]Symbol{}}
 	im.mr = &mathReader{file: file, funcs: map[string]*node{}}
+	im.mr.warn = func(n *node, format string, args ...any) { im.warnAt(n, "", format, args...) }
 	m := im.run(root)
 	im.probs.RemoveMultiples()
 	imp = &Import{Problems: im.probs, Symbols: im.syms}
