@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -60,6 +60,15 @@ fuzz:
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzSweepSpec -fuzztime $(FUZZTIME)
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzPopulationSpec -fuzztime $(FUZZTIME)
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzMergePart -fuzztime $(FUZZTIME)
+	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzRead -fuzztime $(FUZZTIME)
+	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzMathML -fuzztime $(FUZZTIME)
+
+# Every case of the SBML Test Suite (make test runs every third): the
+# report and its summary by tag, from ../shared/reference/sbml-test-suite.
+SBML_SUITE ?= ../shared/reference/sbml-test-suite/cases
+conformance:
+	SBML_CONFORMANCE=full $(GO) test ./app/conformance -run 'TestConformance$$' -count=1 -v
+	$(GO) run ./app/batch conformance $(SBML_SUITE) --out bench/sbml-conformance.csv --summary bench/sbml-conformance-summary.md --quiet
 
 clean:
 	rm -rf bin

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"os"
 	"path/filepath"
+	"strings"
 	"time"
 
 	"fyne.io/fyne/v2"
@@ -28,6 +29,10 @@ func (w *mainWindow) openStart(path string) error {
 		if err := w.loadExample(examples.Default); err != nil {
 			return err
 		}
+	} else if ext := strings.ToLower(filepath.Ext(path)); ext == ".xml" || ext == ".sbml" {
+		w.logX.SetChecked(true)
+		w.importSBML(path) // as File ▸ Import SBML…; simulates once imported
+		return nil
 	} else if err := w.loadFile(path); err != nil {
 		return err
 	}

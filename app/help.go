@@ -69,7 +69,8 @@ computed, and About the last run says so.
 ## Expressions
 
 Operators ` + "`+ - * / ^`" + ` and parentheses; numbers such as 2, 0.5, 1e-3;
-functions ` + "`exp`, `log` (natural), `log10`, `sqrt`, `abs`, `min(a, b)`, `max(a, b)`, `pow(a, b)`" + `;
+functions ` + "`exp`, `log` (natural), `log10`, `sqrt`, `abs`, `min(a, b)`, `max(a, b)`, `pow(a, b)`, `sin`, `cos`, `tan`, `asin`, `acos`, `atan`, `sinh`, `cosh`, `tanh`, `asinh`, `acosh`, `atanh`, `floor`, `ceil`, `factorial`" + `,
+and the switch ` + "`ifle(a, b, x, y)`" + ` (x when a ≤ b, otherwise y);
 ` + "`t`" + ` is time. Example: ` + "`Vmax*S^n/(K^n + S^n)`" + `.
 
 ## Assignments
@@ -119,6 +120,18 @@ species lives in one compartment of volume 1.
 * Readouts are read off the output grid with straight lines between points:
   value at a time, maximum and minimum (and when), final value, area under
   the curve (trapezoids), and the first time a level is crossed.
+
+## SBML
+
+**File ▸ Import SBML…** opens a model written in SBML, the open standard
+(Level 3, or Level 2 Version 4), as a new model that is not saved yet; a
+dialog lists what the import changed (renamed names, units not converted)
+or, when the model uses what Kinetarium cannot represent (delays, algebraic
+rules, event priorities, other SBML packages), each such element with its
+place in the file. An SBML kinetic law is an amount per time: it is divided
+by the size of the first reactant's compartment. Parameters and species
+with an SBML rate rule are listed under the model file's ` + "`rates`" + `.
+**File ▸ Export SBML…** writes the model as SBML Level 3 Version 2.
 
 ## Caution
 

@@ -5,7 +5,8 @@
 //
 //	app [--model FILE] [--tab TAB] [--screenshot OUT.png]
 //
-// Without --model it opens the default example. With --screenshot it opens
+// Without --model it opens the default example; an SBML file (.xml or
+// .sbml) is imported as by File ▸ Import SBML…. With --screenshot it opens
 // the window, runs the model, waits until the plot is drawn, saves a
 // picture of the window to OUT.png and exits (status 1 with a message on
 // failure, after at most a minute).
@@ -26,7 +27,7 @@ import (
 const appID = "org.kinetarium.desktop"
 
 func main() {
-	model := flag.String("model", "", "model `file` to open (default: the default example)")
+	model := flag.String("model", "", "model `file` to open, or an SBML file (.xml, .sbml) to import (default: the default example)")
 	tab := flag.String("tab", "", "editor `tab` to show first: Reactions, Species, Parameters, Compartments or \"Run settings\"")
 	shot := flag.String("screenshot", "", "save a picture of the window to `file` (PNG) once the plot is drawn, then exit")
 	flag.Parse()

@@ -224,11 +224,14 @@ func (w *mainWindow) buildMenus() {
 	saveAsItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyS, Modifier: ctrl | fyne.KeyModifierShift}
 	figItem := fyne.NewMenuItem("Export figure…", w.exportFigure)
 	csvItem := fyne.NewMenuItem("Export data (CSV)…", w.exportData)
+	importSBMLItem := fyne.NewMenuItem("Import SBML…", func() { w.confirmDiscard("importing a model", w.importSBMLDialog) })
+	exportSBMLItem := fyne.NewMenuItem("Export SBML…", w.exportSBML)
 	quitItem := fyne.NewMenuItem("Quit", func() { w.confirmDiscard("quitting", w.quit) })
 	quitItem.IsQuit = true
 	quitItem.Shortcut = &desktop.CustomShortcut{KeyName: fyne.KeyQ, Modifier: ctrl}
 	file := fyne.NewMenu("File", newItem, openItem, exItem, recentItem, fyne.NewMenuItemSeparator(),
-		saveItem, saveAsItem, fyne.NewMenuItemSeparator(), figItem, csvItem, fyne.NewMenuItemSeparator(), quitItem)
+		saveItem, saveAsItem, fyne.NewMenuItemSeparator(), figItem, csvItem, fyne.NewMenuItemSeparator(),
+		importSBMLItem, exportSBMLItem, fyne.NewMenuItemSeparator(), quitItem)
 
 	// Fyne's desktop driver delivers Ctrl+Z and Ctrl+Y as its own undo
 	// and redo shortcuts, never as custom ones, so the items use those.

@@ -205,3 +205,17 @@ func TestMarkSavedNotifiesNoListener(t *testing.T) {
 		t.Errorf("after MarkModified: %d calls, dirty %v; want no new call, unsaved", calls, d.Dirty())
 	}
 }
+
+// Renaming a parameter updates the model's rates: the name a rate belongs
+// to and the expressions that read it.
+func TestRenameUpdatesRates(t *testing.T) {
+	m := enzymeModel()
+	m.Rates = []network.RateRule{{Name: "k1", Expression: "-k1/k2"}}
+	d := NewDocument(m, "")
+	if _, err := d.Rename(KindParameter, "k1", "kon", true); err != nil {
+		t.Fatal(err)
+	}
+	if got := d.Model().Rates[0]; got.Name != "kon" || got.Expression != "-kon/k2" {
+		t.Errorf("rate after renaming k1 to kon: %+v", got)
+	}
+}

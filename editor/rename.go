@@ -123,7 +123,7 @@ func scanTokens(s string, f func(tok string, name bool)) {
 
 // renameInModel renames the item old of kind k to new in m, and, when
 // everywhere is true, every use of it: equations, rate expressions, rate
-// fields naming it, and species' compartments. It returns the number of
+// fields naming it, the model's rates, and species' compartments. It returns the number of
 // uses updated.
 func renameInModel(m *network.Model, k Kind, old, new string, everywhere bool) int {
 	switch k {
@@ -175,6 +175,16 @@ func renameInModel(m *network.Model, k Kind, old, new string, everywhere bool) i
 	for i := range m.Assignments {
 		var n int
 		m.Assignments[i].Expression, n = ReplaceName(m.Assignments[i].Expression, old, new)
+		uses += n
+	}
+	for i := range m.Rates {
+		r := &m.Rates[i]
+		if r.Name == old && (k == KindSpecies || k == KindParameter) {
+			r.Name = new
+			uses++
+		}
+		var n int
+		r.Expression, n = ReplaceName(r.Expression, old, new)
 		uses += n
 	}
 	for i := range m.Reactions {

@@ -38,6 +38,7 @@ type Net struct {
 	Reactions   []CheckedReaction   // in model order
 	Assignments []CheckedAssignment // in evaluation order: each after those it reads
 	Events      []CheckedEvent      // the sound events, in model order
+	Rates       []CheckedRate       // the sound rates, in model order
 	// Problems is every error and warning found, sorted.
 	Problems ErrorList
 
@@ -123,6 +124,7 @@ func Check(m *Model) (*Net, ErrorList) {
 		v.reaction(i)
 	}
 	v.events()
+	v.rates()
 	v.simulation()
 	v.displayCheck()
 	v.units()
@@ -168,7 +170,7 @@ func (v *validator) declare(section string, index int, name string, ix map[strin
 		v.add(Error, section, index, name, "name", 0, "the name %q is reserved for time in rate expressions; choose another", name)
 		return
 	case section != "compartments" && !usableInExpressions(name):
-		v.add(Error, section, index, name, "name", 0, "the name %q is a function of rate expressions (exp, log, log10, sqrt, abs, min, max, pow); choose another", name)
+		v.add(Error, section, index, name, "name", 0, "the name %q is a function of rate expressions (exp, log, sin, ifle, …); choose another", name)
 		return
 	}
 	if prev, ok := v.kinds[name]; ok {

@@ -23,13 +23,13 @@ type cevent struct {
 	orig                  [4]val // at, every, from and to as compiled
 }
 
-// caction is a compiled action: a species (par < 0) or a parameter and
-// the program of its value.
+// caction is a compiled action: its state variable (a species, or a
+// parameter carried in the state) and the program of its value.
 type caction struct {
-	sp, par int
-	prog    program
-	fixed   bool    // value set from outside (SetEventValue) instead of prog
-	value   float64 // the value when fixed
+	sp    int
+	prog  program
+	fixed bool    // value set from outside (SetEventValue) instead of prog
+	value float64 // the value when fixed
 }
 
 // eval returns the action's value with the variables as loaded.
@@ -72,9 +72,9 @@ func (b *builder) compileEvents() error {
 				if err != nil {
 					return fmt.Errorf("event %q: %s: %w", ce.Name, ch.Target, err)
 				}
-				a := caction{sp: ch.Index, par: -1, prog: p}
+				a := caction{sp: ch.Index, prog: p}
 				if ch.Parameter {
-					a.sp, a.par = -1, ch.Index
+					a.sp = s.parState[ch.Index] // set parameters are carried in the state
 				}
 				*list.out = append(*list.out, a)
 			}
@@ -232,11 +232,7 @@ func (s *System) apply(e *cevent, t float64, y []float64) {
 	}
 	for k, a := range e.set {
 		v := vals[len(e.add)+k]
-		if a.par >= 0 {
-			s.vars[s.n+a.par] = v
-		} else {
-			y[a.sp] = v
-		}
+		y[a.sp] = v
 	}
 	s.loadAll(t, y)
 }

@@ -200,3 +200,19 @@ func TestEventOralDosesEveryMethod(t *testing.T) {
 		}
 	}
 }
+
+// An event's change that makes another event's condition true fires that
+// event at the same time (a cascade), as README's "each time the comparison
+// turns from false to true" says.
+func TestEventCascade(t *testing.T) {
+	m := pkModel(Event{Name: "raise", At: Number(5), Set: []Change{{"Out", "10"}}},
+		Event{Name: "follow", When: "Out > 5", Set: []Change{{"k", "0"}}})
+	m.Species[0].Initial = 1
+	res := solveModel(t, m, 8, []float64{8})
+	if len(res.Events) != 2 || res.Events[1].Name != "follow" || res.Events[1].T != 5 {
+		t.Fatalf("firings %v; want raise and follow at 5", res.Events)
+	}
+	if want := math.Exp(-0.5); math.Abs(res.Y[0][0]-want) > 1e-8 {
+		t.Errorf("C(8) = %v, want %v (elimination stopped at 5)", res.Y[0][0], want)
+	}
+}

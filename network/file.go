@@ -139,7 +139,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		d.errs[0].Field = ""
 		return nil, d.errs
 	}
-	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "events", "simulation")
+	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "events", "rates", "simulation")
 	if top == nil {
 		return nil, d.errs
 	}
@@ -262,6 +262,10 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			}
 			m.Events = append(m.Events, e)
 		})
+	d.items(top, "rates", []string{"name", "expression", "note"}, func(i int, o *jnode, path string) {
+		m.Rates = append(m.Rates, RateRule{Name: d.optStr(o, "name", path), Expression: d.optStr(o, "expression", path),
+			Note: d.optStr(o, "note", path)})
+	})
 	if v, ok := top.get("simulation"); ok {
 		d.mark("simulation", 0, "", v)
 		if o := d.object(v, "simulation", "t_end", "output", "rtol", "atol", "method", "non_negative", "display"); o != nil {
@@ -482,6 +486,7 @@ type (
 		Assignments  []fileAssignment  `json:"assignments,omitempty"`
 		Reactions    []fileReaction    `json:"reactions"`
 		Events       []fileEvent       `json:"events,omitempty"`
+		Rates        []fileRateRule    `json:"rates,omitempty"`
 		Simulation   *fileSimulation   `json:"simulation,omitempty"`
 	}
 	fileUnits struct {
@@ -518,7 +523,12 @@ type (
 		Unit       string `json:"unit,omitempty"`
 		Note       string `json:"note,omitempty"`
 	}
-	fileRate  Rate
+	fileRate     Rate
+	fileRateRule struct {
+		Name       string `json:"name"`
+		Expression string `json:"expression"`
+		Note       string `json:"note,omitempty"`
+	}
 	fileEvent struct {
 		Name   string      `json:"name"`
 		Note   string      `json:"note,omitempty"`
@@ -683,6 +693,9 @@ func (m *Model) Write(w io.Writer) error {
 		f.Events = append(f.Events, fileEvent{Name: e.Name, Note: e.Note, At: optValue(e.At), Every: optValue(e.Every),
 			Count: e.Count, When: e.When, Once: e.Once, From: optValue(e.From), To: optValue(e.To),
 			Add: e.Add, Set: e.Set, Infuse: e.Infuse})
+	}
+	for _, r := range m.Rates {
+		f.Rates = append(f.Rates, fileRateRule(r))
 	}
 	s := m.Simulation
 	fs := fileSimulation{TEnd: s.TEnd, RTol: s.RTol, ATol: s.ATol, Method: s.Method, NonNegative: s.NonNegative}

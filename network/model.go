@@ -39,6 +39,7 @@ type Model struct {
 	Assignments  []Assignment
 	Reactions    []Reaction
 	Events       []Event
+	Rates        []RateRule // time derivatives of species and parameters (see RateRule)
 	Simulation   Simulation
 
 	source *sourceMap // where Read found each item; nil for models built in code
@@ -318,6 +319,7 @@ func (m *Model) Clone() *Model {
 	}
 	c.Assignments = append([]Assignment(nil), m.Assignments...)
 	c.Events = append([]Event(nil), m.Events...)
+	c.Rates = append([]RateRule(nil), m.Rates...)
 	for i := range c.Events {
 		e := &c.Events[i]
 		e.Add = append([]Change(nil), e.Add...)

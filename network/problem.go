@@ -42,11 +42,11 @@ type Pos struct {
 
 var sectionWord = map[string]string{
 	"compartments": "compartment", "species": "species", "parameters": "parameter",
-	"assignments": "assignment", "reactions": "reaction", "events": "event", "simulation": "simulation",
+	"assignments": "assignment", "reactions": "reaction", "events": "event", "rates": "rate of", "simulation": "simulation",
 }
 
 var sectionRank = map[string]int{
-	"": 0, "compartments": 1, "species": 2, "parameters": 3, "assignments": 4, "reactions": 5, "events": 6, "simulation": 7,
+	"": 0, "compartments": 1, "species": 2, "parameters": 3, "assignments": 4, "reactions": 5, "events": 6, "rates": 7, "simulation": 8,
 }
 
 // String describes the place, e.g. `model.json:12:7: reaction "bind",

@@ -19,7 +19,10 @@ import (
 // not safe for concurrent use (it keeps scratch space); give each goroutine
 // its own Clone.
 type System struct {
-	n        int
+	n        int // state variables: species, then parameters carried in the state
+	nSpecies int
+	parState []int  // state index of each parameter carried in the state, else -1
+	nonNeg   []bool // which state variables are species; nil when all are
 	names    []string
 	initial  []float64
 	fixed    []bool
@@ -236,7 +239,8 @@ func (net *Net) Compile() (*System, error) {
 		return nil, err
 	}
 	m := net.Model
-	s := &System{n: len(m.Species), parIx: map[string]int{}, spIx: map[string]int{}}
+	statePars := net.stateParameters()
+	s := &System{n: len(m.Species) + len(statePars), nSpecies: len(m.Species), parIx: map[string]int{}, spIx: map[string]int{}}
 	b := &builder{s: s, net: net}
 	n := s.n
 	compIx := map[string]int{}
@@ -257,6 +261,25 @@ func (net *Net) Compile() (*System, error) {
 		s.spComp = append(s.spComp, compIx[sp.Compartment]) // "" gives 0, the first
 		s.spIx[sp.Name] = i
 	}
+	s.parState = make([]int, len(m.Parameters))
+	for i := range s.parState {
+		s.parState[i] = -1
+	}
+	for k, p := range statePars {
+		i := s.nSpecies + k
+		s.parState[p] = i
+		s.names = append(s.names, m.Parameters[p].Name)
+		s.initial = append(s.initial, m.Parameters[p].Value)
+		s.fixed = append(s.fixed, true) // reactions do not change it
+		s.spComp = append(s.spComp, 0)
+		s.spIx[m.Parameters[p].Name] = i
+		if s.nonNeg == nil {
+			s.nonNeg = make([]bool, n)
+			for j := range s.nSpecies {
+				s.nonNeg[j] = true
+			}
+		}
+	}
 	s.vars = make([]float64, n+len(m.Parameters)+1)
 	for i, p := range m.Parameters {
 		s.parNames = append(s.parNames, p.Name)
@@ -274,10 +297,13 @@ func (net *Net) Compile() (*System, error) {
 			r.comp = s.spComp[s.spIx[eq.Products[0].Species]]
 		}
 		r.d0, r.p0 = len(s.depSp), len(s.depPar)
-		switch cr.Law.(type) {
-		case massAction:
+		_, ma := cr.Law.(massAction)
+		_, mm := cr.Law.(michaelisMenten)
+		fast := !b.readsStateParameter(cr) // else through its expression
+		switch {
+		case ma && fast:
 			b.compileMassAction(&r, cr)
-		case michaelisMenten:
+		case mm && fast:
 			b.compileMichaelisMenten(&r, cr)
 		default:
 			if err := b.compileExpression(&r, cr); err != nil {
@@ -311,6 +337,9 @@ func (net *Net) Compile() (*System, error) {
 		}
 		r.c1 = len(s.cSp)
 		s.rx = append(s.rx, r)
+	}
+	if err := b.compileRates(); err != nil {
+		return nil, err
 	}
 	if err := b.compileAssignments(); err != nil {
 		return nil, err
@@ -502,7 +531,7 @@ func (s *System) RHS(t float64, y, dydt []float64) {
 // reactions).
 func (s *System) Rates(t float64, y, rates []float64) {
 	s.load(t, y)
-	for ri := range s.rx {
+	for ri := range s.rxNames { // the model's reactions come first, then the rates
 		rates[ri] = s.rate(&s.rx[ri], y)
 	}
 }
@@ -554,8 +583,9 @@ func (s *System) Jacobian(t float64, y []float64, jac *mat.Dense) {
 	}
 }
 
-// Species returns the species names in state order. The caller must not
-// modify the slice.
+// Species returns the names of the state variables in state order: the
+// species in model order, then the parameters that change during a run
+// (StateParameters). The caller must not modify the slice.
 func (s *System) Species() []string { return s.names }
 
 // SpeciesIndex returns the state index of the named species.
@@ -587,6 +617,9 @@ func (s *System) Parameter(i int) float64 { return s.vars[s.n+i] }
 func (s *System) SetParameter(i int, v float64) {
 	s.vars[s.n+i] = v
 	s.pbase[i] = v
+	if j := s.parState[i]; j >= 0 {
+		s.initial[j] = v // its value at the start of a run
+	}
 }
 
 // ParameterIndex returns the index of the named parameter.

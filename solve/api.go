@@ -51,6 +51,16 @@ type SparsePatternSystem interface {
 	JacobianPattern() (rowPtr, colIdx []int)
 }
 
+// PartlyNonNegativeSystem is implemented by a System some of whose state
+// variables may take either sign (a reaction network's parameters carried
+// in its state, say): Settings.NonNegative keeps only the components for
+// which NonNegativeComponents is true ≥ 0, and every component when it
+// returns nil.
+type PartlyNonNegativeSystem interface {
+	System
+	NonNegativeComponents() []bool
+}
+
 // Method names an integration method.
 type Method string
 

@@ -217,7 +217,7 @@ func (b *bdf) dense(t float64, out []float64) {
 	}
 	if b.p.nonneg {
 		for i, v := range out {
-			if v < 0 {
+			if v < 0 && !b.p.isSigned(i) {
 				out[i] = 0
 			}
 		}
@@ -434,7 +434,7 @@ func (b *bdf) step(tLimit float64) error {
 		clipped = false
 		if b.p.nonneg {
 			for i, v := range b.ynew {
-				if v < 0 {
+				if v < 0 && !b.p.isSigned(i) {
 					b.clip[i] = -v
 					clipped = true
 				} else {

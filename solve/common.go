@@ -51,6 +51,7 @@ type problem struct {
 	rtol    float64
 	atol    []float64 // one per component
 	nonneg  bool
+	keep    []bool // components NonNegative keeps ≥ 0; nil for all
 	maxStep float64
 	stats   *Stats
 	linear  func(n int) LinearSolver // nil: dense LU
@@ -88,10 +89,18 @@ func newProblem(sys System, s Settings, stats *Stats) *problem {
 func (p *problem) setSystem(sys System) {
 	p.sys = sys
 	p.autonomous = false
+	p.keep = nil
+	if ps, ok := sys.(PartlyNonNegativeSystem); ok {
+		p.keep = ps.NonNegativeComponents()
+	}
 	if a, ok := sys.(AutonomousSystem); ok {
 		p.autonomous = a.Autonomous()
 	}
 }
+
+// isSigned reports whether component i may be negative although
+// non-negativity is asked for (see PartlyNonNegativeSystem).
+func (p *problem) isSigned(i int) bool { return p.keep != nil && !p.keep[i] }
 
 // rhs evaluates f and counts it.
 func (p *problem) rhs(t float64, y, dy []float64) {
@@ -167,10 +176,10 @@ func (p *problem) initialStep(t0, tEnd float64, y0, f0 []float64, order int, y1,
 // to the error estimate e, so that a step that jumps past a component's
 // depletion is rejected rather than accepted with the wrong sign. It
 // reports whether anything changed.
-func project(yn, e []float64) bool {
+func (p *problem) project(yn, e []float64) bool {
 	clipped := false
 	for i, v := range yn {
-		if v < 0 {
+		if v < 0 && !p.isSigned(i) {
 			yn[i] = 0
 			e[i] = math.Abs(e[i]) - v
 			clipped = true

@@ -162,7 +162,7 @@ func (d *dopri) attempt(h float64) (errNorm float64, clipped bool) {
 	for i := range e {
 		e[i] = h * (dpE1*k1[i] + dpE3*k3[i] + dpE4*k4[i] + dpE5*k5[i] + dpE6*k6[i] + dpE7*k7[i])
 	}
-	clipped = p.nonneg && project(yn, e)
+	clipped = p.nonneg && p.project(yn, e)
 	return p.errNorm(e, y, yn), clipped
 }
 
@@ -291,7 +291,7 @@ func (d *dopri) dense(t float64, out []float64) {
 	c := d.cont
 	for i := range out {
 		v := c[0][i] + th*(c[1][i]+th1*(c[2][i]+th*(c[3][i]+th1*c[4][i])))
-		if d.p.nonneg && v < 0 {
+		if d.p.nonneg && v < 0 && !d.p.isSigned(i) {
 			v = 0
 		}
 		out[i] = v

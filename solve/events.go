@@ -136,13 +136,37 @@ func (e *events) locate(st stepper, tPrev, tn float64, yn []float64, rtol float6
 	return 0, false
 }
 
+// maxCascade bounds the rounds of conditions that the events at one time
+// make true (see fire).
+const maxCascade = 100
+
 // fire applies the events due at t to y (rose nil: scheduled ones only),
-// records the firings and the jump, and watches the conditions anew from
-// the state after the jump.
+// then, in rounds, the conditions that those changes turned from false to
+// true (a cascade at the same time), records the firings and the jump,
+// and watches the conditions anew from the state after the jump.
 func (e *events) fire(t float64, y []float64, rose []bool) {
 	before := append([]float64(nil), y...)
-	for _, name := range e.es.Fire(t, y, rose) {
-		e.fired = append(e.fired, Firing{T: t, Name: name})
+	if e.nc > 0 {
+		e.es.Watch(t, y, e.gLo) // the conditions just before
+	}
+	for round := 0; ; round++ {
+		for _, name := range e.es.Fire(t, y, rose) {
+			e.fired = append(e.fired, Firing{T: t, Name: name})
+		}
+		if e.nc == 0 || round == maxCascade {
+			break
+		}
+		e.es.Watch(t, y, e.gMid)
+		any := false
+		for k := range e.gMid {
+			e.rose[k] = e.gLo[k] < 0 && e.gMid[k] >= 0
+			any = any || e.rose[k]
+		}
+		if !any {
+			break
+		}
+		copy(e.gLo, e.gMid)
+		rose = e.rose
 	}
 	e.jumps = append(e.jumps, Jump{T: t, Before: before, After: append([]float64(nil), y...)})
 	if e.nc > 0 {

@@ -190,7 +190,7 @@ func (r *radau) dense(t float64, out []float64) {
 	}
 	if r.p.nonneg {
 		for i, v := range out {
-			if v < 0 {
+			if v < 0 && !r.p.isSigned(i) {
 				out[i] = 0
 			}
 		}
@@ -437,7 +437,7 @@ func (r *radau) step(tLimit float64) error {
 		clipped := false
 		if r.p.nonneg {
 			for i, v := range r.ynw {
-				if v < 0 {
+				if v < 0 && !r.p.isSigned(i) {
 					r.tmp[i] = v
 					r.ynw[i] = 0
 					clipped = true

@@ -291,7 +291,7 @@ func (r *rosenbrock) attempt(h float64) (errNorm float64, clipped bool) {
 		yn[i] += k6[i]
 		e[i] = k6[i]
 	}
-	clipped = p.nonneg && project(yn, e)
+	clipped = p.nonneg && p.project(yn, e)
 	return p.errNorm(e, y, yn), clipped
 }
 
@@ -400,7 +400,7 @@ func (r *rosenbrock) dense(t float64, out []float64) {
 	c2, c3 := r.cont[0], r.cont[1]
 	for i := range out {
 		v := r.yOld[i]*s1 + s*(r.y[i]+s1*(c2[i]+s*c3[i]))
-		if r.p.nonneg && v < 0 {
+		if r.p.nonneg && v < 0 && !r.p.isSigned(i) {
 			v = 0
 		}
 		out[i] = v

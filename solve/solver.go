@@ -35,7 +35,7 @@ func (sv *Solver) checkJump(t float64) error {
 	}
 	if sv.set.NonNegative {
 		for i, v := range sv.y {
-			if v < 0 {
+			if v < 0 && !sv.p.isSigned(i) {
 				return &StepError{T: t, Component: i,
 					Reason: fmt.Sprintf("was made negative (%g) by the action at t = %g", v, t)}
 			}
@@ -125,7 +125,7 @@ func (sv *Solver) validate(t0, tEnd float64, y0 []float64) error {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			return fmt.Errorf("solve: initial value of component %d is %v; a finite number is expected", i, v)
 		}
-		if s.NonNegative && v < 0 {
+		if s.NonNegative && v < 0 && !sv.p.isSigned(i) {
 			return fmt.Errorf("solve: initial value of component %d is %g, but non-negative values are required", i, v)
 		}
 	}

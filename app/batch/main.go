@@ -10,6 +10,9 @@
 //	batch population SPEC.json [flags]
 //	batch merge PART.json... --out DIR
 //	batch check MODEL.json
+//	batch import FILE.xml [--out MODEL.json]
+//	batch export MODEL.json [--out FILE.xml]
+//	batch conformance DIR [--out report.csv]
 //	batch help
 //
 // Run "batch help" for the flags. Exit status: 0 on success, 1 when a run
@@ -46,6 +49,8 @@ Commands:
         --stats            print solver statistics as one JSON line, last
                            (events_fired counts the events that fired)
         --event-rows       add two rows at each event: just before, just after
+        --amounts          species as amounts (concentration × compartment
+                           volume) instead of concentrations
         --repeat N         solve N times and report the median solve time
         --time-unit U      show times in U (s, min, h, day), converted from
                            the model's time unit; the table's header and
@@ -70,6 +75,21 @@ Commands:
       Print every error and warning of a model, units included, one a line
       with its place (file:line:column, item and field). Exit status 0 when
       there is no error (warnings allowed), 2 otherwise.
+  import FILE.xml [--out MODEL.json]
+      Read an SBML model (Level 3 Version 1 or 2, Level 2 Version 4) and
+      write it as a model file (to standard output unless --out is
+      given). Warnings go to standard error; a model that cannot be
+      represented exits with status 2 and lists every unsupported element.
+
+  export MODEL.json [--out FILE.xml]
+      Write a model as SBML Level 3 Version 2 core.
+
+  conformance DIR [--out report.csv] [--summary FILE.md] [--workers N]
+              [--level l3v2|l3v1|l2v4] [--quiet]
+      Run the SBML Test Suite's semantic cases in DIR (its cases folder),
+      reading each case's file of that level and version (default l3v2),
+      and write one row per case: case,status,max_error_ratio,message,
+      status pass, fail or refused. Exit status 1 when a case fails.
 
   help
       Print this text.

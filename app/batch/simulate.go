@@ -39,6 +39,7 @@ type simFlags struct {
 	logY    bool
 	stats   bool
 	events  bool // --event-rows
+	amounts bool // --amounts
 	repeat  int
 	// display units: --time-unit and --concentration-unit
 	timeUnit, concUnit string
@@ -67,6 +68,7 @@ func parseSimFlags(args []string) (*simFlags, error) {
 	fs.BoolVar(&f.logY, "log-y", false, "")
 	fs.BoolVar(&f.stats, "stats", false, "")
 	fs.BoolVar(&f.events, "event-rows", false, "")
+	fs.BoolVar(&f.amounts, "amounts", false, "")
 	fs.IntVar(&f.repeat, "repeat", 1, "")
 	fs.StringVar(&f.timeUnit, "time-unit", "", "")
 	fs.StringVar(&f.concUnit, "concentration-unit", "", "")
@@ -259,8 +261,11 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 		fmt.Fprintf(stderr, "simulate: note: %s\n", n)
 	}
 	table := traj
+	if f.amounts {
+		table = traj.Amounts(sys)
+	}
 	if f.events {
-		table = traj.WithEventRows()
+		table = table.WithEventRows()
 	}
 	if f.out != "" {
 		if err := run.SaveCSV(f.out, table, prov); err != nil {

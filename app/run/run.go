@@ -217,3 +217,28 @@ func (o *Outcome) WithEventRows() *Outcome {
 	}
 	return &c
 }
+
+// Amounts returns the outcome with each species' column in amounts: its
+// concentration times the volume of its compartment in sys, the system
+// the outcome was computed with. Parameters carried in the state and
+// assignments keep their values.
+func (o *Outcome) Amounts(sys *network.System) *Outcome {
+	c := *o
+	nsp := len(sys.Species()) - len(sys.StateParameters())
+	scale := func(row []float64) []float64 {
+		out := append([]float64(nil), row...)
+		for i := 0; i < nsp && i < len(out); i++ {
+			out[i] *= sys.Volume(sys.SpeciesCompartment(i))
+		}
+		return out
+	}
+	c.Y = make([][]float64, len(o.Y))
+	for i, row := range o.Y {
+		c.Y[i] = scale(row)
+	}
+	c.Jumps = make([]solve.Jump, len(o.Jumps))
+	for i, j := range o.Jumps {
+		c.Jumps[i] = solve.Jump{T: j.T, Before: scale(j.Before), After: scale(j.After)}
+	}
+	return &c
+}

@@ -14,7 +14,7 @@ import (
 // number of function arguments, a variable name that is not an identifier
 // or is the name of a function, and a number that is not finite. A tree
 // that has none of these prints to text that Parse reads back as an equal
-// tree, unless it calls sign or ifle (see Call).
+// tree, unless it calls sign (see Call).
 //
 // Each problem carries the column of the offending node (the literal, the
 // variable, the operator or the function name; for a missing node, its

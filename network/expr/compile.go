@@ -50,6 +50,7 @@ const (
 	opMin  // x = min(s, x)
 	opMax  // x = max(s, x)
 	opIfLE // with saved a, b, p: x = p if a <= b else x
+	opFn1  // x = f(x) for the function fnID(i) (see apply1)
 
 	// Loads of a whole operation on two leaves: push, then x = ...
 	opAddVV // vars[i] + vars[j]
@@ -341,7 +342,11 @@ func (c *compiler) emitNode(n Node) error {
 				return err
 			}
 		}
-		c.add(callOps[id], 0, 0)
+		if op := callOps[id]; op != 0 {
+			c.add(op, 0, 0)
+		} else {
+			c.add(opFn1, uint32(id), 0)
+		}
 		c.pop(len(n.Args) - 1)
 	default:
 		return fmt.Errorf("compile: unsupported node %T", n)
@@ -830,6 +835,8 @@ func (p *Program) Eval(vars []float64) float64 {
 			if s[sp] <= s[sp+1] {
 				x = s[sp+2]
 			}
+		case opFn1:
+			x = apply1(fnID(in.i), x)
 		case opMulVVV:
 			s[sp] = x
 			sp++

@@ -10,8 +10,8 @@ import "math"
 // y*x^(y-1)*x' + x^y*log(x)*y'. The derivative of abs(x) is sign(x)*x', which
 // is 0 at x = 0; min and max differentiate to the derivative of the branch
 // they choose (on a tie, min follows its first argument and max its second),
-// expressed with the internal function ifle(a, b, x, y) that yields x when
-// a <= b and y otherwise (see Call).
+// expressed with the function ifle(a, b, x, y) that yields x when a <= b
+// and y otherwise (see Call).
 //
 // A tree with a problem that makes it meaningless (a missing node, an
 // unknown operator or function, a wrong number of arguments; see Check) is
@@ -154,6 +154,37 @@ func (d *differ) diffCall(n *Call) Node {
 		return &Number{Value: 0}
 	case fnIfLE:
 		return call(fnIfLE, a[0], a[1], diff(a[2], name), diff(a[3], name))
+	case fnFloor, fnCeil, fnFactorial:
+		return &Number{Value: 0} // piecewise constant; 0 between its jumps
+	}
+	da := diff(a[0], name)
+	one, two := &Number{Value: 1}, &Number{Value: 2}
+	sq := func(x Node) Node { return pow(x, two) }
+	switch id {
+	case fnSin:
+		return mul(call(fnCos, a[0]), da)
+	case fnCos:
+		return neg(mul(call(fnSin, a[0]), da))
+	case fnTan:
+		return div(da, sq(call(fnCos, a[0])))
+	case fnAsin:
+		return div(da, call(fnSqrt, sub(one, sq(a[0]))))
+	case fnAcos:
+		return neg(div(da, call(fnSqrt, sub(one, sq(a[0])))))
+	case fnAtan:
+		return div(da, add(one, sq(a[0])))
+	case fnSinh:
+		return mul(call(fnCosh, a[0]), da)
+	case fnCosh:
+		return mul(call(fnSinh, a[0]), da)
+	case fnTanh:
+		return mul(sub(one, sq(n)), da)
+	case fnAsinh:
+		return div(da, call(fnSqrt, add(sq(a[0]), one)))
+	case fnAcosh:
+		return div(da, call(fnSqrt, sub(sq(a[0]), one)))
+	case fnAtanh:
+		return div(da, sub(one, sq(a[0])))
 	}
 	return &Number{Value: math.NaN()} // unreachable: n is well formed
 }

@@ -7,7 +7,10 @@
 // (power, right-associative, binding tighter than unary minus so that -x^2
 // means -(x^2)), parentheses, numbers such as 2, .5, 1.5e-3 and 2E+4,
 // variable names [A-Za-z_][A-Za-z0-9_]*, and calls of the functions
-// exp, log (natural), log10, sqrt, abs, min, max and pow.
+// exp, log (natural), log10, sqrt, abs, min, max, pow, the switch
+// ifle(a, b, x, y) (x when a <= b, otherwise y), sin, cos, tan, asin, acos,
+// atan, sinh, cosh, tanh, asinh, acosh, atanh, floor, ceil and factorial
+// (of the whole part of its argument).
 //
 // # Trees
 //
@@ -80,16 +83,20 @@ type Binary struct {
 
 // A Call is a call of the function named Func with the arguments Args.
 //
-// Func is one of the functions of the syntax, exp, log, log10, sqrt and abs
-// (1 argument each), min, max and pow (2 arguments each), or one of the two
-// functions that derivatives use and Parse does not accept:
+// Func is one of the functions of the syntax, exp, log, log10, sqrt, abs,
+// sin, cos, tan, asin, acos, atan, sinh, cosh, tanh, asinh, acosh, atanh,
+// floor, ceil and factorial (1 argument each), min, max and pow (2
+// arguments each),
+// and the switch ifle(a, b, x, y), x when a <= b and otherwise y (the
+// derivatives of min and max choose their branch with it; floor, ceil,
+// factorial and ifle differentiate to 0 and to the chosen branch's
+// derivative, which is exact between their jumps), or the one function that derivatives use
+// and Parse does not accept:
 //
 //	sign(x)          -1, 0 or 1 with the sign of x (0 for 0, NaN for NaN);
 //	                 the derivative of abs(x) is sign(x)*x'
-//	ifle(a, b, x, y) x when a <= b, otherwise y; the derivatives of
-//	                 min and max choose their branch with it
 //
-// Check, Diff, Simplify, Compile and Apply accept all ten functions.
+// Check, Diff, Simplify, Compile and Apply accept all of them.
 type Call struct {
 	Func string
 	Args []Node
@@ -162,7 +169,7 @@ func Pow(a, b Node) Node { return &Binary{Op: OpPow, L: a, R: b} }
 // Apply returns the call name(args...). It reports an error if name is not
 // one of the functions listed at Call, if the number of arguments is not the
 // function's, or if an argument is nil. It accepts the derivative-only
-// functions sign and ifle, so that any tree Diff returns can be rebuilt. The
+// function sign, so that any tree Diff returns can be rebuilt. The
 // call keeps its own copy of args.
 func Apply(name string, args ...Node) (Node, error) {
 	id, ok := funcByName(name)

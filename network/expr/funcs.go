@@ -18,9 +18,24 @@ const (
 	fnMin
 	fnMax
 	fnPow
+	fnIfLE // ifle(a, b, x, y): x when a <= b, else y
+	fnSin
+	fnCos
+	fnTan
+	fnAsin
+	fnAcos
+	fnAtan
+	fnSinh
+	fnCosh
+	fnTanh
+	fnAsinh
+	fnAcosh
+	fnAtanh
+	fnFloor
+	fnCeil
+	fnFactorial
 	// Internal functions appear only in derivatives; Parse rejects them.
 	fnSign // sign(x): -1, 0 or 1
-	fnIfLE // ifle(a, b, x, y): x when a <= b, else y
 	numFuncs
 )
 
@@ -31,16 +46,31 @@ type funcInfo struct {
 }
 
 var funcs = [numFuncs]funcInfo{
-	fnExp:   {"exp", 1, true},
-	fnLog:   {"log", 1, true},
-	fnLog10: {"log10", 1, true},
-	fnSqrt:  {"sqrt", 1, true},
-	fnAbs:   {"abs", 1, true},
-	fnMin:   {"min", 2, true},
-	fnMax:   {"max", 2, true},
-	fnPow:   {"pow", 2, true},
-	fnSign:  {"sign", 1, false},
-	fnIfLE:  {"ifle", 4, false},
+	fnExp:       {"exp", 1, true},
+	fnLog:       {"log", 1, true},
+	fnLog10:     {"log10", 1, true},
+	fnSqrt:      {"sqrt", 1, true},
+	fnAbs:       {"abs", 1, true},
+	fnMin:       {"min", 2, true},
+	fnMax:       {"max", 2, true},
+	fnPow:       {"pow", 2, true},
+	fnIfLE:      {"ifle", 4, true},
+	fnSin:       {"sin", 1, true},
+	fnCos:       {"cos", 1, true},
+	fnTan:       {"tan", 1, true},
+	fnAsin:      {"asin", 1, true},
+	fnAcos:      {"acos", 1, true},
+	fnAtan:      {"atan", 1, true},
+	fnSinh:      {"sinh", 1, true},
+	fnCosh:      {"cosh", 1, true},
+	fnTanh:      {"tanh", 1, true},
+	fnAsinh:     {"asinh", 1, true},
+	fnAcosh:     {"acosh", 1, true},
+	fnAtanh:     {"atanh", 1, true},
+	fnFloor:     {"floor", 1, true},
+	fnCeil:      {"ceil", 1, true},
+	fnFactorial: {"factorial", 1, true},
+	fnSign:      {"sign", 1, false},
 }
 
 // lookupFunc returns the function called name that Parse accepts.
@@ -72,7 +102,7 @@ func knownFuncs() string {
 
 // unknownFuncMsg is the message for a call of an unknown function in a tree.
 func unknownFuncMsg(name string) string {
-	return fmt.Sprintf("unknown function %q; known: %s, and in derivatives sign and ifle", name, knownFuncs())
+	return fmt.Sprintf("unknown function %q; known: %s, and in derivatives sign", name, knownFuncs())
 }
 
 func arityMsg(name string, want, got int) string {
@@ -119,6 +149,49 @@ func apply(fn fnID, a []float64) float64 {
 			return a[2]
 		}
 		return a[3]
+	}
+	return apply1(fn, a[0])
+}
+
+// apply1 evaluates the one-argument functions that have no opcode of
+// their own (trigonometric, hyperbolic, floor and ceil); NaN for others.
+func apply1(fn fnID, x float64) float64 {
+	switch fn {
+	case fnSin:
+		return math.Sin(x)
+	case fnCos:
+		return math.Cos(x)
+	case fnTan:
+		return math.Tan(x)
+	case fnAsin:
+		return math.Asin(x)
+	case fnAcos:
+		return math.Acos(x)
+	case fnAtan:
+		return math.Atan(x)
+	case fnSinh:
+		return math.Sinh(x)
+	case fnCosh:
+		return math.Cosh(x)
+	case fnTanh:
+		return math.Tanh(x)
+	case fnAsinh:
+		return math.Asinh(x)
+	case fnAcosh:
+		return math.Acosh(x)
+	case fnAtanh:
+		return math.Atanh(x)
+	case fnFloor:
+		return math.Floor(x)
+	case fnCeil:
+		return math.Ceil(x)
+	case fnFactorial:
+		// n! of the whole part n of x (NaN below 0), as MathML defines
+		// factorial on whole numbers; Γ(n+1) is exact up to 22!.
+		if x < 0 {
+			return math.NaN()
+		}
+		return math.Gamma(math.Floor(x) + 1)
 	}
 	return math.NaN()
 }
