@@ -139,13 +139,17 @@ func (e *events) locate(st stepper, tPrev, tn float64, yn []float64, rtol float6
 // fire applies the events due at t to y (rose nil: scheduled ones only),
 // records the firings and the jump, and watches the conditions anew from
 // the state after the jump.
-func (e *events) fire(t float64, y []float64, rose []bool) {
+// It returns the names of the events that fired, valid until the next
+// call.
+func (e *events) fire(t float64, y []float64, rose []bool) []string {
 	before := append([]float64(nil), y...)
-	for _, name := range e.es.Fire(t, y, rose) {
+	names := e.es.Fire(t, y, rose)
+	for _, name := range names {
 		e.fired = append(e.fired, Firing{T: t, Name: name})
 	}
 	e.jumps = append(e.jumps, Jump{T: t, Before: before, After: append([]float64(nil), y...)})
 	if e.nc > 0 {
 		e.es.Watch(t, y, e.gPrev)
 	}
+	return names
 }
