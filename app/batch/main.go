@@ -46,6 +46,12 @@ Commands:
                            (events_fired counts the events that fired)
         --event-rows       add two rows at each event: just before, just after
         --repeat N         solve N times and report the median solve time
+        --sensitivities L  also compute forward sensitivities to the knobs in
+                           L (comma-separated: kcat,init:S,volume:C,
+                           event:dose.add.C; or all for every parameter)
+        --sens-out FILE    where to write them (default: beside --out, as
+                           NAME-sensitivities.csv): time, output, quantity,
+                           value, sensitivity (dy/dq), scaled (dln y/dln q)
 
   sweep SPEC.json [--out DIR] [--shard i/n] [--workers N] [--quiet]
       Vary one or two parameters over a grid and write readouts, tables
