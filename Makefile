@@ -54,6 +54,8 @@ fuzz:
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzReadPNGText -fuzztime $(FUZZTIME)
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzSVGMetadata -fuzztime $(FUZZTIME)
 	$(GO) test ./app/run -run '^$$' -fuzz FuzzReadProvenance -fuzztime $(FUZZTIME)
+	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadData -fuzztime $(FUZZTIME)
+	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadSpec -fuzztime $(FUZZTIME)
 
 clean:
 	rm -rf bin
