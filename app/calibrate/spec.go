@@ -31,6 +31,9 @@ type Spec struct {
 	// RTol and ATol override the model's tolerances for the fit (default:
 	// the model's, but at most 1e-8 and 1e-12).
 	RTol, ATol float64
+	// Method overrides the model's method ("rosenbrock", "radau", "bdf";
+	// default the model's, with a stiff method picked for "auto").
+	Method string
 
 	Dir string // the spec's folder, against which paths are resolved
 }
@@ -317,7 +320,7 @@ func ReadSpec(data []byte, source string) (*Spec, error) {
 		r.fail(top, "", "expected a JSON object with \"format\": %q", SpecFormat)
 		return nil, r.errs
 	}
-	r.keys(top, "", "format", "model", "experiments", "estimate", "noise", "starts", "seed", "rtol", "atol", "note")
+	r.keys(top, "", "format", "model", "experiments", "estimate", "noise", "starts", "seed", "rtol", "atol", "method", "note")
 	s := &Spec{Starts: 1}
 	if f, ok := r.str(top.obj["format"], "format"); !ok || f != SpecFormat {
 		if top.obj["format"] == nil {
@@ -475,6 +478,14 @@ func ReadSpec(data []byte, source string) (*Spec, error) {
 			r.fail(top.obj["atol"], "atol", "is %g; expected a positive absolute tolerance", v)
 		}
 		s.ATol = v
+	}
+	if m, ok := r.str(top.obj["method"], "method"); ok {
+		switch m {
+		case "auto", "rosenbrock", "radau", "bdf":
+			s.Method = m
+		default:
+			r.fail(top.obj["method"], "method", "is %q; expected auto, rosenbrock, radau or bdf (sensitivities need a stiff method)", m)
+		}
 	}
 	if len(r.errs) > 0 {
 		sort.SliceStable(r.errs, func(i, j int) bool { return r.errs[i].Line < r.errs[j].Line })

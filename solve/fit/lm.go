@@ -218,7 +218,56 @@ func Minimize(ctx context.Context, f Func, m int, x0 []float64, s Settings) (*Re
 		}
 		return res, nil
 	}
-	// The Jacobian in x at the current point, for the result.
+	// polish takes Gauss–Newton steps (λ = 0) from a point where the trust
+	// region has shrunk: when the residuals carry rounding noise (from an
+	// ODE solve, say) the actual reductions near the minimum drown in it
+	// and the trust region stalls short of the minimum of a flat valley,
+	// while the Gauss–Newton step, computed from the residuals and an
+	// accurate Jacobian, still points at it. A step is kept when the sum of
+	// squares does not grow beyond a relative 1e-9, the noise level, and
+	// the polish stops when the steps no longer shrink.
+	polish := func() {
+		prev := math.Inf(1)
+		for k := 0; k < 5; k++ {
+			for j := 0; j < n; j++ {
+				free[j] = !((z[j] <= lo[j] && g[j] > 0) || (z[j] >= hi[j] && g[j] < 0))
+			}
+			w.prepare(d, free)
+			w.step(r, math.Inf(1), p)
+			for j := range zt {
+				zt[j] = math.Min(math.Max(z[j]+p[j], lo[j]), hi[j])
+				p[j] = zt[j] - z[j]
+			}
+			pn := scaledNorm(d, p)
+			if pn == 0 || !(pn < 0.5*prev) {
+				return
+			}
+			prev = pn
+			if err := eval(zt, rt, nil); err != nil {
+				return
+			}
+			fn := norm(rt)
+			if fn > fnorm*(1+1e-9) {
+				return
+			}
+			save := append([]float64(nil), z...)
+			copy(z, zt)
+			if err := eval(z, rt, w.jz); err != nil {
+				copy(z, save)
+				_ = eval(z, r, w.jz)
+				return
+			}
+			copy(r, rt)
+			fnorm = fn
+			for j := 0; j < n; j++ {
+				var v float64
+				for i := 0; i < m; i++ {
+					v += w.jz.At(i, j) * r[i]
+				}
+				g[j] = v
+			}
+		}
+	}
 	for it := 0; ; {
 		if err := ctx.Err(); err != nil {
 			r, e := stop("cancelled", false)
@@ -320,8 +369,10 @@ func Minimize(ctx context.Context, f Func, m int, x0 []float64, s Settings) (*Re
 			xnorm := scaledNorm(d, z)
 			switch {
 			case math.Abs(actred) <= ftol && prered <= ftol && 0.5*ratio <= 1:
+				polish()
 				return stop("the relative reduction of the sum of squares is below ftol", true)
 			case delta <= xtol*xnorm:
+				polish()
 				return stop("the relative change of the parameters is below xtol", true)
 			case delta <= 10*eps*math.Max(xnorm, 1):
 				return stop("the trust region shrank to rounding level; no better point is near", true)
@@ -403,6 +454,8 @@ func (w *work) prepare(d []float64, free []bool) {
 		return
 	}
 	w.sv = w.svd.Values(nil)
+	w.u.Reset()
+	w.v.Reset()
 	w.svd.UTo(&w.u)
 	w.svd.VTo(&w.v)
 }
