@@ -9,6 +9,7 @@
 //	batch sweep SPEC.json [flags]
 //	batch population SPEC.json [flags]
 //	batch merge PART.json... --out DIR
+//	batch fit SPEC.json [flags]
 //	batch help
 //
 // Run "batch help" for the flags. Exit status: 0 on success, 1 when a run
@@ -64,6 +65,13 @@ Commands:
   merge PART.json... --out DIR
       Join the partial results of a sharded sweep or population.
 
+  fit SPEC.json [--out DIR] [--workers N] [--profiles] [--quiet]
+      Estimate model quantities from measured time courses (a
+      kinetarium.fit/1 specification) and write estimates.csv, fit.json,
+      fitted.csv, correlation.csv, starts.csv and figures to DIR (default:
+      the spec's name with -results). --profiles adds profile-likelihood
+      intervals. Exit status 1 when no start converged.
+
   help
       Print this text.
 
@@ -92,6 +100,7 @@ func init() {
 	register("sweep", runSweep)
 	register("population", runPopulation)
 	register("merge", runMerge)
+	register("fit", runFit)
 }
 
 func main() {

@@ -700,3 +700,33 @@ type Profile struct {
 func (p *Problem) Profiles(ctx context.Context, x []float64, best float64, workers int) ([]Profile, error) {
 	return p.profiles(ctx, x, best, workers)
 }
+
+// Curves solves experiment i at the estimates x on a fine grid from 0 to
+// its last measurement (points times, on a log grid when the model's
+// output is log-spaced), for figures of the fit over the data.
+func (p *Problem) Curves(ctx context.Context, i int, x []float64, points int) (*Result, error) {
+	e := p.Exps[i]
+	o := p.opts[i]
+	times := e.ev.Times()
+	last := times[len(times)-1]
+	sim := p.Model.Simulation.WithDefaults()
+	if points < 2 {
+		points = 200
+	}
+	out := network.Output{Points: points, Spacing: sim.Output.Spacing}
+	if out.Spacing == "log" && sim.Output.First > 0 && sim.Output.First < last {
+		out.First = sim.Output.First
+	}
+	grid := network.OutputTimes(last, out)
+	o.Times = grid
+	o.ErrorControl = false
+	ev, err := NewEvaluator(p.Model, o)
+	if err != nil {
+		return nil, err
+	}
+	q := make([]float64, len(e.pidx))
+	for j, pi := range e.pidx {
+		q[j] = x[pi]
+	}
+	return ev.Solve(ctx, q, false)
+}
