@@ -216,3 +216,30 @@ func TestSensBadSettings(t *testing.T) {
 		t.Error("parameter column out of range: no error")
 	}
 }
+
+// TestSensStepsAllocateNothing checks that the sensitivity work of every
+// step allocates nothing: a solve over a span ten times as long (about ten
+// times the steps) allocates as much as a short one, for each method.
+func TestSensStepsAllocateNothing(t *testing.T) {
+	for _, m := range []Method{Rosenbrock, Radau, BDF} {
+		sys := batemanSystem(1, 0.5)
+		sens := &SensSettings{ErrorControl: true, Quantities: []Sensitivity{{Param: 0}, {Param: 1}, {Param: -1, Initial: []float64{1, 0, 0}}}}
+		sv := NewSolver(sys, Settings{Method: m, RTol: 1e-8, Times: []float64{1}, Sens: sens})
+		count := func(tEnd float64) (float64, int) {
+			var steps int
+			a := testing.AllocsPerRun(5, func() {
+				res, err := sv.Solve(context.Background(), 0, tEnd, []float64{1, 0, 0})
+				if err != nil {
+					t.Fatal(err)
+				}
+				steps = res.Steps
+			})
+			return a, steps
+		}
+		short, s1 := count(2)
+		long, s2 := count(40)
+		if long > short || s2 < 2*s1 {
+			t.Errorf("%s: %v allocations for %d steps, %v for %d", m, short, s1, long, s2)
+		}
+	}
+}
