@@ -160,9 +160,25 @@ func (p *Problem) profileSide(ctx context.Context, x []float64, j int, dir, best
 		res.values = append(res.values, v)
 		res.objs = append(res.objs, obj)
 		if obj-best >= profileRise {
-			// Interpolate the crossing linearly in the internal scale.
-			f := (best + profileRise - prevObj) / (obj - prevObj)
-			res.end = p.fromZ(j, prevZ+f*(zn-prevZ))
+			// Narrow the crossing by bisection (each a re-fit) until the
+			// rise at the outer point is within 20 % of the threshold or
+			// the bracket is small, then interpolate linearly in the
+			// internal scale.
+			lo, hi, olo, ohi := prevZ, zn, prevObj, obj
+			for b := 0; b < 12 && ohi-best > 1.2*profileRise && math.Abs(hi-lo) > 1e-4*math.Abs(zEnd-p.toZ(j, x[j]))+1e-12; b++ {
+				mid := (lo + hi) / 2
+				om, xm, ok := p.refitFixed(ctx, j, p.fromZ(j, mid), others)
+				if !ok {
+					break
+				}
+				if om-best >= profileRise {
+					hi, ohi = mid, om
+				} else {
+					lo, olo, others = mid, om, xm
+				}
+			}
+			f := (best + profileRise - olo) / (ohi - olo)
+			res.end = p.fromZ(j, lo+f*(hi-lo))
 			return res
 		}
 		if zn == zEnd {
