@@ -69,6 +69,8 @@ SBML_SUITE ?= ../shared/reference/sbml-test-suite/cases
 conformance:
 	SBML_CONFORMANCE=full $(GO) test ./app/conformance -run 'TestConformance$$' -count=1 -v
 	$(GO) run ./app/batch conformance $(SBML_SUITE) --out bench/sbml-conformance.csv --summary bench/sbml-conformance-summary.md --quiet
+	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadData -fuzztime $(FUZZTIME)
+	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadSpec -fuzztime $(FUZZTIME)
 
 clean:
 	rm -rf bin

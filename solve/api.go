@@ -112,20 +112,28 @@ type Settings struct {
 	// iteration matrices of the implicit methods; nil means the built-in
 	// dense LU. (Radau's complex system always uses the built-in solver.)
 	LinearSolver func(n int) LinearSolver
+
+	// Sens, when not nil, asks for forward sensitivities ∂y/∂q of the
+	// state to the quantities it lists (see SensSettings); they are
+	// reported in Result.S. They need a stiff method (Auto then picks
+	// one).
+	Sens *SensSettings
 }
 
 // Stats report the work a solve did.
 type Stats struct {
-	Steps          int           // accepted steps
-	Rejected       int           // rejected steps (error test or convergence failure)
-	RHSEvals       int           // evaluations of f
-	JacobianEvals  int           // evaluations of the Jacobian
-	Factorizations int           // LU factorizations
-	LinearSolves   int           // solves with a factorized matrix
-	NonNegFixes    int           // steps where the non-negativity projection acted
-	Methods        []Method      // methods used, in order of first use
-	Choice         string        // for Auto: what was chosen and why
-	Wall           time.Duration // wall time of the solve
+	Steps         int // accepted steps
+	Rejected      int // rejected steps (error test or convergence failure)
+	RHSEvals      int // evaluations of f
+	JacobianEvals int // evaluations of the Jacobian
+	// ParamJacobianEvals counts evaluations of ∂f/∂q (sensitivities).
+	ParamJacobianEvals int
+	Factorizations     int           // LU factorizations
+	LinearSolves       int           // solves with a factorized matrix
+	NonNegFixes        int           // steps where the non-negativity projection acted
+	Methods            []Method      // methods used, in order of first use
+	Choice             string        // for Auto: what was chosen and why
+	Wall               time.Duration // wall time of the solve
 }
 
 // Result is the solution at the output times.
@@ -136,6 +144,9 @@ type Result struct {
 	// Jumps the state just before and after each time they fired.
 	Events []Firing
 	Jumps  []Jump
+	// S holds, for a solve with sensitivities, ∂y/∂q_j at T[i] in
+	// S[i][j·Dim:(j+1)·Dim] (see Sens); rows share one backing array.
+	S [][]float64
 	Stats
 }
 

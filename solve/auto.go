@@ -53,6 +53,12 @@ func (sv *Solver) choose(t0, tEnd float64, y0 []float64) (stepper, error) {
 		st.Choice = fmt.Sprintf("Rosenbrock (RODAS4): %d state variables (BDF is not available)", sv.n)
 		return sv.ros, nil
 	}
+	if sv.p.sens != nil {
+		s, m, why := sv.stiffStepper()
+		st.Methods = append(st.Methods, m)
+		st.Choice = fmt.Sprintf("%s: sensitivities are asked for, and they are computed by the stiff methods; %s", methodTitle(m), why)
+		return s, nil
+	}
 	rate := sv.fastestRate(t0, y0)
 	span := tEnd - t0
 	if rate*span > autoStiffRatio || math.IsNaN(rate) {

@@ -59,6 +59,8 @@ type problem struct {
 	sparse      *SparseLU // symbolic analysis shared by the steppers, or nil
 	sparseTried bool      // sparse has been decided
 
+	sens *sensWork // forward sensitivities, or nil
+
 	tEnd       float64 // end of the current solve (set by the driver)
 	autonomous bool    // f does not depend on t (AutonomousSystem)
 }

@@ -63,6 +63,7 @@ type events struct {
 	ymid             []float64
 	fired            []Firing
 	jumps            []Jump
+	names            []string // what fire returns
 }
 
 func newEvents(es EventSystem, n int) *events {
@@ -144,14 +145,19 @@ const maxCascade = 100
 // then, in rounds, the conditions that those changes turned from false to
 // true (a cascade at the same time), records the firings and the jump,
 // and watches the conditions anew from the state after the jump.
-func (e *events) fire(t float64, y []float64, rose []bool) {
+//
+// It returns the names of the events that fired, valid until the next
+// call.
+func (e *events) fire(t float64, y []float64, rose []bool) []string {
 	before := append([]float64(nil), y...)
+	e.names = e.names[:0]
 	if e.nc > 0 {
 		e.es.Watch(t, y, e.gLo) // the conditions just before
 	}
 	for round := 0; ; round++ {
 		for _, name := range e.es.Fire(t, y, rose) {
 			e.fired = append(e.fired, Firing{T: t, Name: name})
+			e.names = append(e.names, name)
 		}
 		if e.nc == 0 || round == maxCascade {
 			break
@@ -172,4 +178,5 @@ func (e *events) fire(t float64, y []float64, rose []bool) {
 	if e.nc > 0 {
 		e.es.Watch(t, y, e.gPrev)
 	}
+	return e.names
 }

@@ -111,6 +111,8 @@ type radau struct {
 	nSing           int
 	badComp         int // component that became non-finite in the last failure, or -1
 	lastNewtonIters int
+
+	sn *radauSens // sensitivities, or nil
 }
 
 // newRadau returns a Radau IIA stepper for p.
@@ -141,6 +143,9 @@ func newRadau(p *problem) stepper {
 	}
 	const uround = 1.1102230246251565e-16
 	r.fnewt = math.Max(10*uround/r.rtol, math.Min(0.03, math.Sqrt(r.rtol)))
+	if p.sens != nil {
+		r.sn = newRadauSens(r)
+	}
 	return r
 }
 
@@ -171,6 +176,9 @@ func (r *radau) start(t float64, y []float64, h float64) error {
 	r.needJac, r.jacFresh, r.hFact = true, false, 0
 	r.faccon, r.theta = 1, 1
 	r.badComp = -1
+	if r.sn != nil {
+		r.sn.start(t, r.y)
+	}
 	return nil
 }
 
@@ -452,6 +460,18 @@ func (r *radau) step(tLimit float64) error {
 		if math.IsNaN(err) {
 			err = math.Inf(1)
 		}
+		if r.sn != nil && err < 1 {
+			errS, ok := r.sn.stages(h)
+			if !ok {
+				r.h, r.reject = 0.5*h, true
+				r.needJac = !r.jacFresh
+				r.p.stats.Rejected++
+				continue
+			}
+			if r.p.sens.errCtl {
+				err = math.Max(err, errS)
+			}
+		}
 		fac := math.Min(radSafe, float64(1+2*radNit)*radSafe/float64(r.lastNewtonIters+2*radNit))
 		quot := math.Max(radFacR, math.Min(radFacL, math.Pow(err, 0.25)/fac))
 		hnew := h / quot
@@ -485,6 +505,9 @@ func (r *radau) step(tLimit float64) error {
 		}
 		r.setDense()
 		copy(r.y, r.ynw)
+		if r.sn != nil {
+			r.sn.accept()
+		}
 		if clipped {
 			r.p.stats.NonNegFixes++
 		}

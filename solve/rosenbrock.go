@@ -110,6 +110,8 @@ type rosenbrock struct {
 	accepted int
 	rejected bool
 	bad      int // first component whose f was non-finite in the last attempt, or -1
+
+	sn *rosSens // sensitivities, or nil
 }
 
 // newRosenbrock allocates the work space of a RODAS4 stepper.
@@ -122,6 +124,9 @@ func newRosenbrock(p *problem) *rosenbrock {
 		r.k[i] = vec()
 	}
 	r.cont[0], r.cont[1] = vec(), vec()
+	if p.sens != nil {
+		r.sn = newRosSens(r)
+	}
 	return r
 }
 
@@ -132,6 +137,9 @@ func (r *rosenbrock) start(t float64, y []float64, h float64) error {
 	r.tPrev, r.hDone = t, 0
 	r.haveJac, r.luH = false, 0
 	r.accepted, r.rejected = 0, false
+	if r.sn != nil {
+		r.sn.start()
+	}
 	if err := r.prepare(); err != nil {
 		return err
 	}
@@ -166,6 +174,9 @@ func (r *rosenbrock) prepare() error {
 		for i := range r.ft {
 			r.ft[i] = (r.ft[i] - r.f0[i]) / dt
 		}
+	}
+	if r.sn != nil {
+		r.sn.prepare()
 	}
 	r.haveJac = true
 	return nil
@@ -341,6 +352,19 @@ func (r *rosenbrock) step(tLimit float64) error {
 			r.h = h * rosFacMin
 			continue
 		}
+		if r.sn != nil && errNorm <= 1 {
+			errS, ok := r.sn.attempt(h)
+			switch {
+			case !ok:
+				p.stats.Rejected++
+				rejectsInRow++
+				r.rejected = true
+				r.h = h * rosFacMin
+				continue
+			case p.sens.errCtl:
+				errNorm = math.Max(errNorm, errS)
+			}
+		}
 		fac := math.Max(1/rosFacMax, math.Min(1/rosFacMin, math.Pow(errNorm, 0.25)/rosSafe))
 		hNew := h / fac
 		if errNorm > 1 {
@@ -375,6 +399,9 @@ func (r *rosenbrock) step(tLimit float64) error {
 			c3[i] = rosD31*k[0][i] + rosD32*k[1][i] + rosD33*k[2][i] + rosD34*k[3][i] + rosD35*k[4][i]
 		}
 		r.yOld, r.y, r.yNew = r.y, r.yNew, r.yOld
+		if r.sn != nil {
+			r.sn.accept()
+		}
 		r.tPrev, r.hDone = r.t, h
 		if last {
 			r.t = tLimit

@@ -71,6 +71,18 @@ func (sv *Solver) alloc(sys System) {
 	}
 	sv.p = newProblem(sys, sv.set, &sv.stats)
 	sv.y = make([]float64, sv.n)
+	if ss := sv.set.Sens; ss != nil && len(ss.Quantities) > 0 {
+		if sv.set.Method == Explicit {
+			sv.err = fmt.Errorf("solve: sensitivities are computed by the stiff methods (%q, %q, %q); %q was asked for", Rosenbrock, Radau, BDF, Explicit)
+			return
+		}
+		w, err := newSensWork(sys, ss, &sv.stats)
+		if err != nil {
+			sv.err = err
+			return
+		}
+		sv.p.sens = w
+	}
 	sv.ros, sv.dp, sv.radau, sv.bdf = nil, nil, nil, nil
 	switch sv.set.Method {
 	case Rosenbrock:
@@ -207,6 +219,11 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 	}
 
 	out := newOutput(set.Times, n)
+	sens := p.sens
+	if sens != nil {
+		sens.init()
+		out.withSens(sens.ns * n)
+	}
 	copy(sv.y, y0)
 	sv.ev = nil
 	if es, ok := sv.p.sys.(EventSystem); ok {
@@ -217,15 +234,16 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 		} else if es.NextEvent(t0) <= t0 {
 			// Events at the start (a dose at time 0) act before anything
 			// is recorded: the first output shows the state after them.
-			sv.ev.fire(t0, sv.y, nil)
+			fired := sv.ev.fire(t0, sv.y, nil)
 			if err := sv.checkJump(t0); err != nil {
 				return out.result(sv, start), err
 			}
+			sv.sensJump(t0, fired)
 		} else if sv.ev.nc > 0 {
 			es.Watch(t0, sv.y, sv.ev.gPrev)
 		}
 	}
-	out.fillAt(t0, sv.y)
+	out.fillAt(t0, sv.y, sv.sensNow())
 
 	st, err := sv.choose(t0, tEnd, sv.y)
 	if err != nil {
@@ -255,11 +273,13 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 		if ev != nil && ev.es.NextEvent(t) <= t {
 			// A scheduled event at a time where a condition fired.
 			before := append([]float64(nil), sv.y...)
-			ev.fire(t, sv.y, nil)
+			sv.sensFrom(st, t, false)
+			fired := ev.fire(t, sv.y, nil)
 			if err := sv.checkJump(t); err != nil {
 				return out.result(sv, start), err
 			}
-			out.fillStop(t, before, sv.y)
+			sv.sensJump(t, fired)
+			out.fillStop(t, before, sv.y, sv.sensNow())
 			if err := st.start(t, sv.y, st.stepSize()); err != nil {
 				return out.result(sv, start), err
 			}
@@ -288,11 +308,13 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 			if tr, ok := ev.locate(st, tPrev, tn, yn, sv.p.rtol, sv.y); ok {
 				out.fillStep(st, tr, sv.y, false)
 				t = tr
-				ev.fire(tr, sv.y, ev.rose)
+				sv.sensFrom(st, tr, true)
+				fired := ev.fire(tr, sv.y, ev.rose)
 				if err := sv.checkJump(tr); err != nil {
 					return out.result(sv, start), err
 				}
-				out.fillStop(tr, ev.jumps[len(ev.jumps)-1].Before, sv.y)
+				sv.sensJump(tr, fired)
+				out.fillStop(tr, ev.jumps[len(ev.jumps)-1].Before, sv.y, sv.sensNow())
 				if err := st.start(tr, sv.y, st.stepSize()); err != nil {
 					return out.result(sv, start), err
 				}
@@ -305,6 +327,7 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 		switch {
 		case landed:
 			copy(sv.y, yn)
+			sv.sensFrom(st, t, false)
 			if atStop {
 				stops = stops[1:]
 				if set.OnStop != nil {
@@ -315,12 +338,13 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 				}
 			}
 			if atEvent {
-				ev.fire(t, sv.y, nil)
+				fired := ev.fire(t, sv.y, nil)
 				if err := sv.checkJump(t); err != nil {
 					return out.result(sv, start), err
 				}
+				sv.sensJump(t, fired)
 			}
-			out.fillStop(t, yn, sv.y)
+			out.fillStop(t, yn, sv.y, sv.sensNow())
 			if err := st.start(t, sv.y, st.stepSize()); err != nil {
 				return out.result(sv, start), err
 			}
@@ -355,7 +379,22 @@ type output struct {
 	times []float64
 	flat  []float64
 	k     int // next fixed output
+
+	m     int       // sensitivities per row (ns·n), 0 without
+	flatS []float64 // sensitivity rows
 }
+
+// withSens makes the output keep m sensitivities per row.
+func (o *output) withSens(m int) {
+	o.m = m
+	if o.fixed {
+		o.flatS = make([]float64, len(o.times)*m)
+	} else {
+		o.flatS = make([]float64, 0, 256*m)
+	}
+}
+
+func (o *output) rowS(k int) []float64 { return o.flatS[k*o.m : (k+1)*o.m] }
 
 func newOutput(times []float64, n int) *output {
 	o := &output{n: n, fixed: len(times) > 0}
@@ -370,28 +409,46 @@ func newOutput(times []float64, n int) *output {
 }
 
 // fillAt records the initial state.
-func (o *output) fillAt(t float64, y []float64) {
+func (o *output) fillAt(t float64, y, s []float64) {
 	if !o.fixed {
-		o.record(t, y)
+		o.record(t, y, s)
 		return
 	}
 	for o.k < len(o.times) && o.times[o.k] == t {
 		copy(o.row(o.k), y)
+		if o.m > 0 {
+			copy(o.rowS(o.k), s)
+		}
 		o.k++
 	}
 }
 
 func (o *output) row(k int) []float64 { return o.flat[k*o.n : (k+1)*o.n] }
 
-func (o *output) record(t float64, y []float64) {
+func (o *output) record(t float64, y, s []float64) {
 	o.times = append(o.times, t)
 	o.flat = append(o.flat, y...)
+	if o.m > 0 {
+		o.flatS = append(o.flatS, s...)
+	}
 }
 
 // fillStep records the outputs in (tPrev, tn) and, when inclusive, at tn.
 func (o *output) fillStep(st stepper, tn float64, yn []float64, inclusive bool) {
+	var ss sensStepper
+	if o.m > 0 {
+		ss = st.(sensStepper)
+	}
 	if !o.fixed {
-		o.record(tn, yn)
+		var s []float64
+		if ss != nil {
+			s = ss.currentSens()
+			if t, _ := st.current(); t != tn {
+				s = make([]float64, o.m)
+				ss.denseSens(tn, s)
+			}
+		}
+		o.record(tn, yn, s)
 		return
 	}
 	for o.k < len(o.times) {
@@ -404,16 +461,24 @@ func (o *output) fillStep(st stepper, tn float64, yn []float64, inclusive bool) 
 		} else {
 			st.dense(tk, o.row(o.k))
 		}
+		if ss != nil {
+			tc, _ := st.current()
+			if tk == tc {
+				copy(o.rowS(o.k), ss.currentSens())
+			} else {
+				ss.denseSens(tk, o.rowS(o.k))
+			}
+		}
 		o.k++
 	}
 }
 
 // fillStop records the state after a stop-time action.
-func (o *output) fillStop(t float64, before, after []float64) {
+func (o *output) fillStop(t float64, before, after, s []float64) {
 	if !o.fixed {
 		for i := range after {
 			if after[i] != before[i] {
-				o.record(t, after)
+				o.record(t, after, s)
 				return
 			}
 		}
@@ -422,6 +487,9 @@ func (o *output) fillStop(t float64, before, after []float64) {
 	// fillStep has already recorded t when the stop landed exactly.
 	for o.k < len(o.times) && o.times[o.k] == t {
 		copy(o.row(o.k), after)
+		if o.m > 0 {
+			copy(o.rowS(o.k), s)
+		}
 		o.k++
 	}
 }
@@ -435,6 +503,12 @@ func (o *output) result(sv *Solver, start time.Time) *Result {
 	r := &Result{T: o.times[:m], Y: make([][]float64, m)}
 	for i := range r.Y {
 		r.Y[i] = o.row(i)
+	}
+	if o.m > 0 {
+		r.S = make([][]float64, m)
+		for i := range r.S {
+			r.S[i] = o.rowS(i)
+		}
 	}
 	sv.stats.Wall = time.Since(start)
 	r.Stats = sv.stats
@@ -481,4 +555,38 @@ func (sv *Solver) tooManySteps(st stepper, maxSteps int) *StepError {
 			"or switch off non-negativity to see the negative values", rate, maxSteps)
 	}
 	return e
+}
+
+// sensNow returns the sensitivities the driver holds (after a jump, or at
+// the start), or nil without sensitivities.
+func (sv *Solver) sensNow() []float64 {
+	if sv.p.sens == nil {
+		return nil
+	}
+	return sv.p.sens.s
+}
+
+// sensFrom copies the sensitivities at t from st into the driver's: those
+// of the last accepted point, or, when dense, of its continuous solution.
+func (sv *Solver) sensFrom(st stepper, t float64, dense bool) {
+	w := sv.p.sens
+	if w == nil {
+		return
+	}
+	ss := st.(sensStepper)
+	if dense {
+		ss.denseSens(t, w.s)
+		return
+	}
+	copy(w.s, ss.currentSens())
+}
+
+// sensJump carries the sensitivities across the events just fired at t.
+func (sv *Solver) sensJump(t float64, fired []string) {
+	w := sv.p.sens
+	if w == nil || sv.ev == nil || len(sv.ev.jumps) == 0 {
+		return
+	}
+	j := sv.ev.jumps[len(sv.ev.jumps)-1]
+	w.jump(t, fired, j.Before, j.After)
 }

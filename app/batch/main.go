@@ -13,6 +13,7 @@
 //	batch import FILE.xml [--out MODEL.json]
 //	batch export MODEL.json [--out FILE.xml]
 //	batch conformance DIR [--out report.csv]
+//	batch fit SPEC.json [flags]
 //	batch help
 //
 // Run "batch help" for the flags. Exit status: 0 on success, 1 when a run
@@ -59,6 +60,12 @@ Commands:
                            show concentrations in U (M, mM, uM, nM, pM, or
                            mg/L for a model in mass units), converted from
                            the model's concentration unit ("P (nM)")
+        --sensitivities L  also compute forward sensitivities to the knobs in
+                           L (comma-separated: kcat,init:S,volume:C,
+                           event:dose.add.C; or all for every parameter)
+        --sens-out FILE    where to write them (default: beside --out, as
+                           NAME-sensitivities.csv): time, output, quantity,
+                           value, sensitivity (dy/dq), scaled (dln y/dln q)
 
   sweep SPEC.json [--out DIR] [--shard i/n] [--workers N] [--quiet]
       Vary one or two parameters over a grid and write readouts, tables
@@ -90,6 +97,12 @@ Commands:
       reading each case's file of that level and version (default l3v2),
       and write one row per case: case,status,max_error_ratio,message,
       status pass, fail or refused. Exit status 1 when a case fails.
+  fit SPEC.json [--out DIR] [--workers N] [--profiles] [--quiet]
+      Estimate model quantities from measured time courses (a
+      kinetarium.fit/1 specification) and write estimates.csv, fit.json,
+      fitted.csv, correlation.csv, starts.csv and figures to DIR (default:
+      the spec's name with -results). --profiles adds profile-likelihood
+      intervals. Exit status 1 when no start converged.
 
   help
       Print this text.
@@ -122,6 +135,7 @@ func init() {
 	register("sweep", runSweep)
 	register("population", runPopulation)
 	register("merge", runMerge)
+	register("fit", runFit)
 }
 
 func main() {

@@ -18,7 +18,9 @@ import (
 	"strings"
 	"time"
 
+	"kinetarium/app/calibrate"
 	"kinetarium/app/run"
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve"
@@ -43,6 +45,8 @@ type simFlags struct {
 	repeat  int
 	// display units: --time-unit and --concentration-unit
 	timeUnit, concUnit string
+	sens               string // --sensitivities
+	sensOut            string // --sens-out
 	set                map[string]bool
 }
 
@@ -72,6 +76,8 @@ func parseSimFlags(args []string) (*simFlags, error) {
 	fs.IntVar(&f.repeat, "repeat", 1, "")
 	fs.StringVar(&f.timeUnit, "time-unit", "", "")
 	fs.StringVar(&f.concUnit, "concentration-unit", "", "")
+	fs.StringVar(&f.sens, "sensitivities", "", "")
+	fs.StringVar(&f.sensOut, "sens-out", "", "")
 	var pos []string
 	for {
 		if err := fs.Parse(args); err != nil {
@@ -114,6 +120,15 @@ func parseSimFlags(args []string) (*simFlags, error) {
 		return nil, simBadf("--out: expected a file name")
 	case f.set["out"] && isDir(f.out):
 		return nil, simBadf("--out: %s is an existing folder; expected a file name for the CSV", f.out)
+	case f.set["sensitivities"] && strings.TrimSpace(f.sens) == "":
+		return nil, simBadf("--sensitivities: expected all or a comma-separated list such as kcat,init:S,volume:well")
+	case f.set["sensitivities"] && f.sensOut == "" && f.out == "":
+		return nil, simBadf("--sensitivities: give --sens-out FILE.csv (or --out, beside which FILE-sensitivities.csv is written)")
+	case f.set["sens-out"] && !f.set["sensitivities"]:
+		return nil, simBadf("--sens-out: give --sensitivities too")
+	}
+	if f.sens != "" && f.sensOut == "" {
+		f.sensOut = strings.TrimSuffix(f.out, filepath.Ext(f.out)) + "-sensitivities.csv"
 	}
 	return f, nil
 }
@@ -279,6 +294,11 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 			outErr = errors.Join(outErr, fmt.Errorf("drawing the figure: %w", err))
 		}
 	}
+	if f.sens != "" && solveErr == nil {
+		if err := writeSensitivities(ctx, f, m, saved); err != nil {
+			outErr = errors.Join(outErr, err)
+		}
+	}
 	if f.stats {
 		st := simStats{
 			Requested: sim.Method, Repeat: len(walls), Species: sys.Dim(),
@@ -330,4 +350,35 @@ func median(d []time.Duration) time.Duration {
 		return s[len(s)/2]
 	}
 	return (s[len(s)/2-1] + s[len(s)/2]) / 2
+}
+
+// writeSensitivities solves m with the sensitivities --sensitivities asks
+// for and writes them to --sens-out, with provenance beside.
+func writeSensitivities(ctx context.Context, f *simFlags, m, saved *network.Model) error {
+	var targets []string
+	if strings.TrimSpace(f.sens) == "all" {
+		for _, p := range m.Parameters {
+			targets = append(targets, p.Name)
+		}
+	} else {
+		for _, t := range strings.Split(f.sens, ",") {
+			targets = append(targets, strings.TrimSpace(t))
+		}
+	}
+	ev, err := calibrate.NewEvaluator(m, calibrate.Options{Targets: targets})
+	if err != nil {
+		return badInput(fmt.Errorf("--sensitivities: %w", err))
+	}
+	res, err := ev.Solve(ctx, nil, true)
+	if err != nil {
+		return fmt.Errorf("%s: sensitivities: %w", f.model, err)
+	}
+	prov, err := run.NewProvenance("sensitivities", saved, m.Simulation, nil)
+	if err != nil {
+		return badInput(err)
+	}
+	if err := atomicfile.WriteCSV(f.sensOut, calibrate.SensitivityRows(res, targets, ev.Base())); err != nil {
+		return fmt.Errorf("writing the sensitivities: %w", err)
+	}
+	return run.SaveProvenance(f.sensOut, prov)
 }

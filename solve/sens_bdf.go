@@ -1,0 +1,195 @@
+package solve
+
+import (
+	"math"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// bdfSens carries the sensitivities through the BDF/NDF stepper by the
+// staggered direct approach: after the state's corrector has converged,
+// the same formula is solved for the sensitivities, which is linear,
+// with the state's factorized matrix as the iteration's preconditioner.
+type bdfSens struct {
+	b      *bdf
+	w      *sensWork
+	d      [][]float64 // backward differences of the sensitivities, rows of ns×n
+	dTmp   [][]float64
+	dD     [][]float64 // differences saved for dense output
+	pred   []float64
+	psi    []float64
+	snew   []float64
+	corr   []float64 // snew − pred
+	res    []float64
+	fq     []float64
+	jv     []float64
+	jac    *mat.Dense // J at the new point
+	mtx    []float64  // I − c·J(new), for the fallback
+	lu     LinearSolver
+	vec    []float64 // one column's work space
+	direct int       // corrector solves that needed the exact matrix
+}
+
+func newBDFSens(b *bdf) *bdfSens {
+	w := b.p.sens
+	n, m := b.n, w.ns*b.n
+	rows := func(k int) [][]float64 {
+		flat := make([]float64, k*m)
+		r := make([][]float64, k)
+		for i := range r {
+			r[i] = flat[i*m : (i+1)*m : (i+1)*m]
+		}
+		return r
+	}
+	vec := func() []float64 { return make([]float64, m) }
+	return &bdfSens{b: b, w: w, d: rows(bdfDiffRows), dTmp: rows(bdfDiffRows), dD: rows(bdfDenseMaxRows),
+		pred: vec(), psi: vec(), snew: vec(), corr: vec(), res: vec(), fq: vec(), jv: vec(),
+		jac: mat.NewDense(max(n, 1), max(n, 1), nil), mtx: make([]float64, n*n), lu: b.p.newLinear(),
+		vec: make([]float64, n)}
+}
+
+// start begins at (t, y) with the sensitivities of problem.sens.s and the
+// first difference h·s'.
+func (sn *bdfSens) start(t float64, y []float64, h float64) {
+	for _, r := range sn.d {
+		clear(r)
+	}
+	copy(sn.d[0], sn.w.s)
+	sn.b.p.jac(t, y, sn.jac)
+	sn.w.fq(t, y, sn.fq)
+	sn.w.jacTimes(sn.jac, sn.d[0], sn.fq, sn.jv)
+	for i, v := range sn.jv {
+		sn.d[1][i] = h * v
+	}
+	copy(sn.dD[0], sn.d[0])
+}
+
+// correct solves the corrector for the sensitivities at the state's new
+// point (b.ynew at tNew) with c = h/α_k, and returns the scaled norm of
+// their error estimate. ok is false when the solve failed (a singular
+// matrix).
+func (sn *bdfSens) correct(tNew, c float64) (errNorm float64, ok bool) {
+	b, w := sn.b, sn.w
+	k, n := b.order, b.n
+	copy(sn.pred, sn.d[0])
+	for j := 1; j <= k; j++ {
+		for i, v := range sn.d[j] {
+			sn.pred[i] += v
+		}
+	}
+	clear(sn.psi)
+	for j := 1; j <= k; j++ {
+		g := b.gamma[j] / b.alpha[k]
+		for i, v := range sn.d[j] {
+			sn.psi[i] += g * v
+		}
+	}
+	b.p.jac(tNew, b.ynew, sn.jac)
+	w.fq(tNew, b.ynew, sn.fq)
+	copy(sn.snew, sn.pred)
+	converged := false
+	var normOld float64
+	for it := 0; it < 5; it++ {
+		w.jacTimes(sn.jac, sn.snew, sn.fq, sn.jv)
+		for i := range sn.res {
+			sn.res[i] = c*sn.jv[i] - sn.psi[i] - (sn.snew[i] - sn.pred[i])
+		}
+		for j := 0; j < w.ns; j++ {
+			b.lu.Solve(w.col(sn.res, j))
+		}
+		b.p.stats.LinearSolves += w.ns
+		norm := w.norm(sn.res, sn.pred, sn.pred, b.p.atol, b.p.rtol)
+		if math.IsNaN(norm) || math.IsInf(norm, 0) {
+			break
+		}
+		for i, v := range sn.res {
+			sn.snew[i] += v
+		}
+		if norm == 0 {
+			converged = true
+			break
+		}
+		if it > 0 {
+			rate := norm / normOld
+			if !(rate < 0.9) {
+				break
+			}
+			if rate/(1-rate)*norm <= 0.01*b.newtTol {
+				converged = true
+				break
+			}
+		}
+		normOld = norm
+	}
+	if !converged {
+		// The state's matrix is too far from I − c·J at the new point:
+		// factorize that one and solve directly.
+		sn.direct++
+		jd := sn.jac.RawMatrix()
+		for i := 0; i < n; i++ {
+			row := jd.Data[i*jd.Stride : i*jd.Stride+n]
+			m := sn.mtx[i*n : (i+1)*n]
+			for j, v := range row {
+				m[j] = -c * v
+			}
+			m[i]++
+		}
+		b.p.stats.Factorizations++
+		if err := sn.lu.Factor(sn.mtx); err != nil {
+			return 0, false
+		}
+		for i := range sn.snew {
+			sn.snew[i] = sn.pred[i] - sn.psi[i] + c*sn.fq[i]
+		}
+		for j := 0; j < w.ns; j++ {
+			sn.lu.Solve(w.col(sn.snew, j))
+		}
+		b.p.stats.LinearSolves += w.ns
+		if nonFinite(sn.snew) >= 0 {
+			return 0, false
+		}
+	}
+	for i, v := range sn.snew {
+		sn.corr[i] = v - sn.pred[i]
+	}
+	ec := b.errConst[k]
+	for i, v := range sn.corr {
+		sn.res[i] = ec * v
+	}
+	return w.norm(sn.res, sn.snew, sn.snew, b.p.atol, b.p.rtol), true
+}
+
+// accept updates the differences with the sensitivities' correction, as
+// bdf.accept does for the state.
+func (sn *bdfSens) accept(k int) {
+	for i, v := range sn.corr {
+		sn.d[k+2][i] = v - sn.d[k+1][i]
+		sn.d[k+1][i] = v
+	}
+	for j := k; j >= 0; j-- {
+		for i, v := range sn.d[j+1] {
+			sn.d[j][i] += v
+		}
+	}
+	copy(sn.d[0], sn.snew)
+	for j := 0; j <= k; j++ {
+		copy(sn.dD[j], sn.d[j])
+	}
+}
+
+func (b *bdf) currentSens() []float64 { return b.sn.d[0] }
+
+// denseSens evaluates the interpolating polynomial of the sensitivities'
+// differences saved at the last accepted step.
+func (b *bdf) denseSens(t float64, out []float64) {
+	sn := b.sn
+	copy(out, sn.dD[0])
+	p := 1.0
+	for j := 1; j <= b.dOrder; j++ {
+		p *= (t - (b.t - float64(j-1)*b.dH)) / (float64(j) * b.dH)
+		row := sn.dD[j]
+		for i := range out {
+			out[i] += p * row[i]
+		}
+	}
+}
