@@ -114,8 +114,8 @@ type Counts struct {
 	// approximation that holds when their rates do not depend strongly on
 	// single molecules.
 	Approximate []string
-	// Rounded names the species whose initial count was not a whole
-	// number and was rounded.
+	// Rounded names the species whose initial count was more than 0.01
+	// from a whole number and was rounded.
 	Rounded []string
 
 	sys *System
@@ -146,7 +146,7 @@ func (net *Net) Counts() (*Counts, error) {
 			probs.Add(Pos{Section: "species", Index: i, Item: m.Species[i].Name, Field: "initial"}, Error,
 				"the initial amount gives %g molecules; a stochastic run needs a count between 0 and 2^53", x)
 		}
-		if r != x {
+		if math.Abs(r-x) > 0.01 { // not a whole number of molecules, beyond a typing of it
 			c.Rounded = append(c.Rounded, m.Species[i].Name)
 		}
 		c.Species = append(c.Species, m.Species[i].Name)

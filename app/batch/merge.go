@@ -107,6 +107,9 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 		fs.Usage()
 		return badInput(errors.New("need the partial-result files and --out DIR"))
 	}
+	if isStochasticPart(files[0]) {
+		return mergeStochastic(files, *out, stdout)
+	}
 	var (
 		meta     *runMeta
 		metaJSON []byte

@@ -41,8 +41,20 @@ type Provenance struct {
 	// Changed lists the values tried on sliders that differ from the
 	// model's.
 	Changed []Change `json:"changed,omitempty"`
+	// Stochastic describes a stochastic ensemble (nil for other results).
+	Stochastic *Stochastic `json:"stochastic,omitempty"`
 	// Exported is the time of export, in UTC to the second.
 	Exported time.Time `json:"exported"`
+}
+
+// Stochastic is the settings of a stochastic ensemble: the method, the
+// number of runs, the seed, and the molecules per amount unit × volume
+// unit the counts were computed with.
+type Stochastic struct {
+	Method             string  `json:"method"`
+	Runs               int     `json:"runs"`
+	Seed               uint64  `json:"seed"`
+	MoleculesPerAmount float64 `json:"molecules_per_amount"`
 }
 
 // Solver is the run settings a result was computed with, defaults filled
