@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean test-stochastic
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -41,9 +41,16 @@ screenshot-check:
 render-check: test-deps
 	$(GO) test ./plotting -run 'Rendering|PDFText|Metadata' -count=1 -v
 
+# The statistical tests of the stochastic methods in their full form:
+# n = 10,000 runs per ensemble instead of the 1,000 of `make test`
+# (about 3 s).
+test-stochastic:
+	STOCHASTIC_FULL=1 $(GO) test -count=1 -v ./solve/stochastic -run 'Moments|Poisson|TimedEvent'
+	$(GO) test -count=1 -v ./app/ensemble -run LargeVolume
+
 # Work-precision report and the benchmarks of every package.
 bench:
-	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/...
+	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/... ./app/ensemble
 	$(GO) run ./internal/workprecision -out bench
 
 FUZZTIME ?= 30s
@@ -54,6 +61,7 @@ fuzz:
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzReadPNGText -fuzztime $(FUZZTIME)
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzSVGMetadata -fuzztime $(FUZZTIME)
 	$(GO) test ./app/run -run '^$$' -fuzz FuzzReadProvenance -fuzztime $(FUZZTIME)
+	$(GO) test ./solve/stochastic -run '^$$' -fuzz FuzzReadJSON -fuzztime $(FUZZTIME)
 
 clean:
 	rm -rf bin

@@ -268,9 +268,9 @@ func (s *Simulator) runLeap(ctx context.Context, t0 float64, times, out []float6
 }
 
 // exactSteps takes up to ExactSteps direct-method steps from t, not past
-// horizon, recording outputs, and returns the new time. Propensities are
-// recomputed in full after each step (the leaping method is used on
-// networks where this is cheap compared with the leaps it saves).
+// horizon, recording outputs, and returns the new time. After each step
+// only the propensities the firing changed are recomputed (the
+// dependency graph of the direct method).
 func (s *Simulator) exactSteps(t, horizon float64, times, out []float64, k *int) (float64, error) {
 	for n := 0; n < s.set.ExactSteps; n++ {
 		a0 := s.total()
@@ -298,7 +298,7 @@ func (s *Simulator) exactSteps(t, horizon float64, times, out []float64, k *int)
 		if fired {
 			return t, nil
 		}
-		if err := s.recomputeAll(t); err != nil {
+		if err := s.updateDeps(j, t); err != nil {
 			return t, err
 		}
 	}
