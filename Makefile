@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -41,9 +41,16 @@ screenshot-check:
 render-check: test-deps
 	$(GO) test ./plotting -run 'Rendering|PDFText|Metadata' -count=1 -v
 
+# The statistical tests of the stochastic methods in their full form:
+# n = 10,000 runs per ensemble instead of the 1,000 of `make test`
+# (about 3 s).
+test-stochastic:
+	STOCHASTIC_FULL=1 $(GO) test -count=1 -v ./solve/stochastic -run 'Moments|Poisson|TimedEvent'
+	$(GO) test -count=1 -v ./app/ensemble -run LargeVolume
+
 # Work-precision report and the benchmarks of every package.
 bench:
-	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/...
+	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/... ./app/ensemble
 	$(GO) run ./internal/workprecision -out bench
 
 FUZZTIME ?= 30s
@@ -71,6 +78,7 @@ conformance:
 	$(GO) run ./app/batch conformance $(SBML_SUITE) --out bench/sbml-conformance.csv --summary bench/sbml-conformance-summary.md --quiet
 	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadData -fuzztime $(FUZZTIME)
 	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadSpec -fuzztime $(FUZZTIME)
+	$(GO) test ./solve/stochastic -run '^$$' -fuzz FuzzReadJSON -fuzztime $(FUZZTIME)
 
 clean:
 	rm -rf bin

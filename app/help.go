@@ -117,6 +117,14 @@ species lives in one compartment of volume 1.
 * **Run ▸ Population…** draws many individuals from the distributions you
   give and shows the median with 25–75 % and 5–95 % bands. Failed samples are
   listed with their values and the reason.
+* **Run ▸ Stochastic…** runs the model many times in molecule counts, for
+  small numbers of molecules where cells differ: the mean, the 25–75 % and
+  5–95 % bands, the ODE solution and 10 single runs, and the counts at a
+  chosen time. Counts are concentration × volume × molecules per amount
+  (Avogadro's number for M, mM, µM, nM, pM with volumes in litres; else
+  the window asks). Mass-action reactions are exact; Michaelis–Menten and
+  expression laws are an approximation (rate × volume × molecules per
+  amount). The same seed gives the same runs.
 * Readouts are read off the output grid with straight lines between points:
   value at a time, maximum and minimum (and when), final value, area under
   the curve (trapezoids), and the first time a level is crossed.

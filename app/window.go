@@ -255,8 +255,9 @@ func (w *mainWindow) buildMenus() {
 	}
 	sweepItem := fyne.NewMenuItem("Sweep…", w.openSweep)
 	popItem := fyne.NewMenuItem("Population…", w.openPopulation)
+	stochItem := fyne.NewMenuItem("Stochastic…", w.openStochastic)
 	run := fyne.NewMenu("Run", simItem, cancelItem, fyne.NewMenuItemSeparator(), w.rerunItem,
-		fyne.NewMenuItemSeparator(), sweepItem, popItem)
+		fyne.NewMenuItemSeparator(), sweepItem, popItem, stochItem)
 
 	help := fyne.NewMenu("Help",
 		fyne.NewMenuItem("Writing equations and rate laws", w.showHelp),

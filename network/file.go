@@ -161,9 +161,10 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 	m.Title = d.optStr(top, "title", "")
 	m.Note = d.optStr(top, "note", "")
 	if v, ok := top.get("units"); ok {
-		if o := d.object(v, "units", "time", "amount"); o != nil {
+		if o := d.object(v, "units", "time", "amount", "molecules_per_amount"); o != nil {
 			m.Units.Time = d.optStr(o, "time", "units")
 			m.Units.Amount = d.optStr(o, "amount", "units")
+			m.Units.MoleculesPerAmount = d.optNum(o, "molecules_per_amount", "units")
 		}
 	}
 	d.items(top, "compartments", []string{"name", "volume", "note"}, func(i int, o *jnode, path string) {
@@ -490,8 +491,9 @@ type (
 		Simulation   *fileSimulation   `json:"simulation,omitempty"`
 	}
 	fileUnits struct {
-		Time   string `json:"time,omitempty"`
-		Amount string `json:"amount,omitempty"`
+		Time               string  `json:"time,omitempty"`
+		Amount             string  `json:"amount,omitempty"`
+		MoleculesPerAmount float64 `json:"molecules_per_amount,omitempty"`
 	}
 	fileCompartment struct {
 		Name   string  `json:"name"`
@@ -672,7 +674,7 @@ func (m *Model) Write(w io.Writer) error {
 	f := fileModel{Format: Format, Title: m.Title, Note: m.Note,
 		Species: []fileSpecies{}, Reactions: []fileReaction{}}
 	if m.Units != (Units{}) {
-		f.Units = &fileUnits{Time: m.Units.Time, Amount: m.Units.Amount}
+		f.Units = &fileUnits{Time: m.Units.Time, Amount: m.Units.Amount, MoleculesPerAmount: m.Units.MoleculesPerAmount}
 	}
 	for _, c := range m.Compartments {
 		f.Compartments = append(f.Compartments, fileCompartment(c))

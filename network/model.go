@@ -47,8 +47,12 @@ type Model struct {
 
 // Units name the units of time and amount (concentration) used by the
 // model. They are labels only; nothing is converted.
+// MoleculesPerAmount, when not zero, is the number of molecules in one
+// amount unit × one volume unit, for stochastic runs (see
+// MoleculesPerAmount, which also knows molar units).
 type Units struct {
-	Time, Amount string
+	Time, Amount       string
+	MoleculesPerAmount float64
 }
 
 // Compartment is a well-mixed volume. Species concentrations are per

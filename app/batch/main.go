@@ -8,6 +8,7 @@
 //	batch simulate MODEL.json [flags]
 //	batch sweep SPEC.json [flags]
 //	batch population SPEC.json [flags]
+//	batch stochastic MODEL.json --runs N --seed S --out DIR [flags]
 //	batch merge PART.json... --out DIR
 //	batch check MODEL.json
 //	batch import FILE.xml [--out MODEL.json]
@@ -75,8 +76,27 @@ Commands:
       Simulate a virtual population with sampled parameters and write
       samples, percentile bands and figures to DIR.
 
+  stochastic MODEL.json --runs N --seed S --out DIR [flags]
+      Run N stochastic simulations of the model in molecule counts and
+      write mean.csv, sd.csv (time, then species, in molecules),
+      bands.csv, runs.csv (the first 10 runs), figures and notes.txt to
+      DIR. Flags:
+        --method M         direct (exact; default), next (exact) or tau
+                           (tau-leaping, approximate, faster for many
+                           molecules)
+        --workers N        parallel workers; results do not depend on it
+        --shard i/n        run part i of n; combine the parts with merge
+        --t-end T, --points N   override the model's output grid
+        --hist-at T        tally every species' counts at time T
+                           (repeatable; histograms.csv and figures)
+        --passage S=L      first-passage times of species S to L
+                           molecules (repeatable; passages.csv)
+        --no-ode           leave the ODE solution out of the figures
+        --quiet            do not report progress
+
   merge PART.json... --out DIR
-      Join the partial results of a sharded sweep or population.
+      Join the partial results of a sharded sweep, population or
+      stochastic ensemble.
 
   check MODEL.json
       Print every error and warning of a model, units included, one a line

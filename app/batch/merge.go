@@ -115,6 +115,9 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	if err := checkOutDir(*out); err != nil {
 		return err
 	}
+	if isStochasticPart(files[0]) {
+		return mergeStochastic(files, *out, stdout)
+	}
 	var (
 		meta     *runMeta
 		metaJSON []byte

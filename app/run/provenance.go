@@ -44,11 +44,23 @@ type Provenance struct {
 	// ShownIn gives the display units results were converted to, when
 	// any were chosen (the model's own units otherwise).
 	ShownIn *ShownIn `json:"shown_in,omitempty"`
+	// Stochastic describes a stochastic ensemble (nil for other results).
+	Stochastic *Stochastic `json:"stochastic,omitempty"`
 	// Exported is the time of export, in UTC to the second.
 	Exported time.Time `json:"exported"`
 	// Partial is set when the run was stopped (Ctrl-C, SIGTERM, Cancel)
 	// before it finished: the file holds what was complete by then.
 	Partial bool `json:"partial,omitempty"`
+}
+
+// Stochastic is the settings of a stochastic ensemble: the method, the
+// number of runs, the seed, and the molecules per amount unit × volume
+// unit the counts were computed with.
+type Stochastic struct {
+	Method             string  `json:"method"`
+	Runs               int     `json:"runs"`
+	Seed               uint64  `json:"seed"`
+	MoleculesPerAmount float64 `json:"molecules_per_amount"`
 }
 
 // Solver is the run settings a result was computed with, defaults filled

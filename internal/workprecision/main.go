@@ -26,7 +26,6 @@ import (
 	"fmt"
 	"image/color"
 	"math"
-	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -39,6 +38,7 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 
+	"kinetarium/internal/gennet"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve"
@@ -198,7 +198,7 @@ func problems() ([]problem, error) {
 	if c.ref, err = reference(c, solve.Radau, 1e-12); err != nil {
 		return nil, fmt.Errorf("reference for the 50-species cascade: %w", err)
 	}
-	sys, err = network.Compile(generated(50))
+	sys, err = network.Compile(gennet.Signalling(50))
 	if err != nil {
 		return nil, fmt.Errorf("generated network: %w", err)
 	}
@@ -224,44 +224,6 @@ func reference(p problem, m solve.Method, rtol float64) ([][]float64, error) {
 		ref[i] = slices.Clone(y)
 	}
 	return ref, nil
-}
-
-// generated builds a stiff signalling-like network of 4·modules species:
-// in module i, A binds B fast and reversibly to C, C turns over slowly to D
-// and releases B, D feeds A of the next module and decays. Rate constants
-// are spread over many decades by a fixed random stream.
-func generated(modules int) *network.Model {
-	rng := rand.New(rand.NewPCG(2026, 12))
-	dec := func(lo, hi float64) float64 { return math.Pow(10, lo+(hi-lo)*rng.Float64()) }
-	m := &network.Model{Title: "generated stiff network"}
-	add := func(name string, v float64) string {
-		m.Parameters = append(m.Parameters, network.Parameter{Name: name, Value: v})
-		return name
-	}
-	for i := 0; i < modules; i++ {
-		for _, s := range "ABCD" {
-			init := 0.0
-			if s == 'B' {
-				init = dec(-1, 0)
-			}
-			if s == 'A' && i == 0 {
-				init = 1
-			}
-			m.Species = append(m.Species, network.Species{Name: fmt.Sprintf("%c%d", s, i), Initial: init})
-		}
-		r := func(eq string, rate network.Rate) {
-			m.Reactions = append(m.Reactions, network.Reaction{Name: fmt.Sprintf("r%d", len(m.Reactions)), Equation: eq, Rate: rate})
-		}
-		r(fmt.Sprintf("A%d + B%d <=> C%d", i, i, i), network.NewRate(network.MassAction, "k", network.Named(add(fmt.Sprintf("kon%d", i), dec(2, 6))), "k_reverse", network.Named(add(fmt.Sprintf("koff%d", i), dec(-1, 2)))))
-		r(fmt.Sprintf("C%d -> D%d + B%d", i, i, i), network.NewRate(network.MassAction, "k", network.Named(add(fmt.Sprintf("kcat%d", i), dec(-2, 1)))))
-		if i+1 < modules {
-			r(fmt.Sprintf("D%d -> A%d", i, i+1), network.NewRate(network.MassAction, "k", network.Named(add(fmt.Sprintf("kt%d", i), dec(-2, 0)))))
-		}
-		r(fmt.Sprintf("D%d ->", i), network.NewRate(network.MassAction, "k", network.Named(add(fmt.Sprintf("kd%d", i), dec(-4, -2)))))
-	}
-	m.Reactions = append(m.Reactions, network.Reaction{Name: "feed", Equation: "-> A0",
-		Rate: network.NewRate(network.MassAction, "k", network.Number(1e-3))})
-	return m
 }
 
 // measure solves p with method m at rtol, repeat times, and reports the
