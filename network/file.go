@@ -133,7 +133,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		d.errs[0].Field = ""
 		return nil, d.errs
 	}
-	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "events", "simulation")
+	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "events", "simulation", "layout")
 	if top == nil {
 		return nil, d.errs
 	}
@@ -290,6 +290,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			}
 		}
 	}
+	d.layout(top, m)
 	if d.errs.HasErrors() {
 		d.errs.Sort()
 		return nil, d.errs
@@ -432,6 +433,7 @@ type (
 		Reactions    []fileReaction    `json:"reactions"`
 		Events       []fileEvent       `json:"events,omitempty"`
 		Simulation   *fileSimulation   `json:"simulation,omitempty"`
+		Layout       *fileLayout       `json:"layout,omitempty"`
 	}
 	fileUnits struct {
 		Time   string `json:"time,omitempty"`
@@ -636,6 +638,7 @@ func (m *Model) Write(w io.Writer) error {
 	if fs != (fileSimulation{}) {
 		f.Simulation = &fs
 	}
+	f.Layout = layoutForFile(m.Layout)
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)
 	enc.SetIndent("", "  ")
