@@ -84,4 +84,3 @@ func TestModifiersOfBadReaction(t *testing.T) {
 		t.Errorf("reaction 5 of 1 has modifiers %v", mods)
 	}
 }
-
