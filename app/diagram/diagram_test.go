@@ -12,8 +12,8 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"kinetarium/examples"
-	"kinetarium/plotting"
 	"kinetarium/network"
+	"kinetarium/plotting"
 	pd "kinetarium/plotting/diagram"
 )
 

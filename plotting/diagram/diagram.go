@@ -194,13 +194,30 @@ func face(pt float64) *font.Face {
 	return f
 }
 
-var faceMu sync.Mutex
+var (
+	faceMu sync.Mutex
+	widths = map[widthKey]float64{}
+)
+
+type widthKey struct {
+	s  string
+	pt float64
+}
 
 // textWidth returns the width of s at size pt, in points.
 func textWidth(s string, pt float64) float64 {
 	faceMu.Lock()
 	defer faceMu.Unlock()
-	return face(pt).Width(s).Points()
+	k := widthKey{s, pt}
+	if w, ok := widths[k]; ok {
+		return w
+	}
+	w := face(pt).Width(s).Points()
+	if len(widths) > 1<<16 {
+		clear(widths)
+	}
+	widths[k] = w
+	return w
 }
 
 // Box returns the rectangle node i covers, its label included.

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/graph/iterator"
 	"gonum.org/v1/gonum/graph/layout"
 	"gonum.org/v1/gonum/graph/simple"
+	"gonum.org/v1/gonum/spatial/r2"
 )
 
 // forceEdge is the length edges are scaled to, in points.
@@ -171,13 +172,36 @@ func eades(d *Diagram, members []int, adj [][]int) {
 	}
 	e := layout.EadesR2{Repulsion: 1, Rate: 0.05, Updates: 150, Theta: 0.2, Src: rand.NewPCG(1, 2)}
 	o := layout.NewOptimizerR2(g, e.Update)
-	for o.Update() {
+	// EadesR2 can drive two nodes onto one point, after which its
+	// forces are not numbers; keep the last positions that were, and
+	// stop there.
+	good := make([]r2.Vec, len(members))
+	for steps := 0; o.Update(); steps++ {
+		ok := true
+		for k := range members {
+			c := o.Coord2(int64(k))
+			if math.IsNaN(c.X) || math.IsNaN(c.Y) || math.IsInf(c.X, 0) || math.IsInf(c.Y, 0) || math.Abs(c.X) > 1e12 || math.Abs(c.Y) > 1e12 {
+				ok = false
+				break
+			}
+		}
+		if !ok {
+			if steps == 0 {
+				for k := range good {
+					good[k] = r2.Vec{X: float64(k % 8), Y: float64(k / 8)}
+				}
+			}
+			break
+		}
+		for k := range members {
+			good[k] = o.Coord2(int64(k))
+		}
 	}
 	var lengths []float64
 	for k := range members {
 		for _, j := range g.adj[k] {
 			if int64(k) < j {
-				a, b := o.Coord2(int64(k)), o.Coord2(j)
+				a, b := good[k], good[j]
 				lengths = append(lengths, math.Hypot(a.X-b.X, a.Y-b.Y))
 			}
 		}
@@ -188,7 +212,7 @@ func eades(d *Diagram, members []int, adj [][]int) {
 		scale = forceEdge / lengths[len(lengths)/2]
 	}
 	for k, v := range members {
-		c := o.Coord2(int64(k))
+		c := good[k]
 		x, y := c.X*scale, c.Y*scale
 		if math.IsNaN(x) || math.IsInf(x, 0) || math.IsNaN(y) || math.IsInf(y, 0) {
 			x, y = float64(k)*forceEdge, 0

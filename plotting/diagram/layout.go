@@ -12,7 +12,8 @@ type Method int
 // Layout methods.
 const (
 	// Auto chooses Layered for mostly linear networks (few edges must be
-	// turned round to make the network flow one way) and Force otherwise.
+	// turned round to make the network flow one way, and the rows cross
+	// at most one pair of edges for every two edges) and Force otherwise.
 	Auto Method = iota
 	// Layered puts the nodes in rows that follow the flow from reactants
 	// to products, ordered to cross few edges.
@@ -85,11 +86,16 @@ func Layout(d *Diagram, s Settings) Stats {
 		if maxFB == 0 {
 			maxFB = 0.3
 		}
-		if s.Method == Layered || s.Method == Auto && lg.feedback <= maxFB && lg.layers >= 3 {
+		if s.Method != Force {
 			st.Method = Layered
 			st.Crossings = lg.run()
-		} else {
-			st.Method = Force
+		}
+		// Auto keeps the rows for a network that flows mostly one way and
+		// crosses few edges (at most one crossing for every two edges).
+		tangled := lg.feedback > maxFB || lg.layers < 3 || st.Crossings > len(d.Edges)/2
+		if s.Method == Force || s.Method == Auto && tangled {
+			st.Method, st.Crossings = Force, 0
+			d.Bends = make([][]Point, len(d.Edges))
 			forceLayout(d)
 		}
 	case pinned < len(d.Nodes):
