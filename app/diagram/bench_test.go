@@ -3,6 +3,8 @@ package diagram
 import (
 	"fmt"
 	"math/rand/v2"
+	"os"
+	"path/filepath"
 	"testing"
 
 	"kinetarium/network"
@@ -98,3 +100,17 @@ func BenchmarkLayoutCascade50(b *testing.B) {
 }
 func BenchmarkLayoutGenerated200(b *testing.B) { benchLayout(b, generated(50)) }
 func BenchmarkLayoutTangled200(b *testing.B)   { benchLayout(b, tangled(200, 300)) }
+
+func TestDrawLarge(t *testing.T) {
+	dir := os.Getenv("DIAGRAM_OUT")
+	if dir == "" {
+		t.Skip("DIAGRAM_OUT not set")
+	}
+	for i, m := range []*network.Model{generated(50), tangled(200, 300), loadExample(t, "signalling-cascade-50.json")} {
+		d, _ := laidOut(t, m)
+		b := d.Bounds()
+		if err := saveFigure(pd.Plot(d, pd.Options{}), filepath.Join(dir, fmt.Sprintf("large-%d.png", i)), (b.Max.X-b.Min.X)/2, (b.Max.Y-b.Min.Y)/2); err != nil {
+			t.Fatal(err)
+		}
+	}
+}

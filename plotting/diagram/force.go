@@ -2,25 +2,19 @@ package diagram
 
 import (
 	"math"
-	"math/rand/v2"
 	"sort"
 
-	"gonum.org/v1/gonum/graph"
-	"gonum.org/v1/gonum/graph/iterator"
-	"gonum.org/v1/gonum/graph/layout"
-	"gonum.org/v1/gonum/graph/simple"
-	"gonum.org/v1/gonum/spatial/r2"
+	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat/mds"
 )
 
 // forceEdge is the length edges are scaled to, in points.
 const forceEdge = 64.0
 
-// forceLayout places the nodes by force direction: each connected part
-// of each region on its own with gonum's EadesR2 (started from a fixed
-// random seed over nodes in index order, so the result is always the
-// same), scaled to a readable edge length, moved apart until no two boxes
-// overlap; parts are packed in rows inside their region and regions are
-// put side by side.
+// forceLayout places the nodes by their graph distances: each connected
+// part of each region on its own (see stress), moved apart until no two
+// boxes overlap; parts are packed in rows inside their region and regions
+// are put side by side.
 func forceLayout(d *Diagram) {
 	adj := d.adjacency()
 	n := len(d.Nodes)
@@ -54,7 +48,7 @@ func forceLayout(d *Diagram) {
 	}
 	boxes := make([]Rect, len(parts))
 	for k, members := range parts {
-		eades(d, members, adj)
+		stress(d, members, adj)
 		separate(d, members)
 		boxes[k] = d.boundsOfList(members)
 	}
@@ -113,111 +107,98 @@ func forceLayout(d *Diagram) {
 	}
 }
 
-// orderedGraph is an undirected graph whose nodes iterate in ID order,
-// so that EadesR2 starts the same way every time.
-type orderedGraph struct {
-	nodes []graph.Node
-	adj   [][]int64 // by ID, ascending
-}
-
-func (g *orderedGraph) Node(id int64) graph.Node {
-	if id < 0 || int(id) >= len(g.nodes) {
-		return nil
-	}
-	return g.nodes[id]
-}
-func (g *orderedGraph) Nodes() graph.Nodes { return iterator.NewOrderedNodes(g.nodes) }
-func (g *orderedGraph) From(id int64) graph.Nodes {
-	out := make([]graph.Node, len(g.adj[id]))
-	for i, u := range g.adj[id] {
-		out[i] = g.nodes[u]
-	}
-	return iterator.NewOrderedNodes(out)
-}
-func (g *orderedGraph) HasEdgeBetween(x, y int64) bool {
-	for _, u := range g.adj[x] {
-		if u == y {
-			return true
-		}
-	}
-	return false
-}
-func (g *orderedGraph) Edge(u, v int64) graph.Edge {
-	if !g.HasEdgeBetween(u, v) {
-		return nil
-	}
-	return simple.Edge{F: g.nodes[u], T: g.nodes[v]}
-}
-
-// eades places members (one connected part) with EadesR2 and scales the
-// result so that the median edge is forceEdge long.
-func eades(d *Diagram, members []int, adj [][]int) {
-	if len(members) == 1 {
+// stress places members (one connected part) so that the distance of
+// every two nodes follows the number of edges between them times
+// forceEdge: classical (Torgerson) scaling of the graph distances with
+// gonum's stat/mds gives the start, and stress majorization (Gansner,
+// Koren and North, 2004) with weights 1/d² refines it. Both are
+// deterministic.
+func stress(d *Diagram, members []int, adj [][]int) {
+	n := len(members)
+	if n == 1 {
 		d.Nodes[members[0]].X, d.Nodes[members[0]].Y = 0, 0
 		return
 	}
-	local := make(map[int]int64, len(members))
-	g := &orderedGraph{}
+	local := make(map[int]int, n)
 	for k, v := range members {
-		local[v] = int64(k)
-		g.nodes = append(g.nodes, simple.Node(k))
+		local[v] = k
 	}
-	g.adj = make([][]int64, len(members))
-	for k, v := range members {
-		for _, u := range adj[v] {
-			if j, ok := local[u]; ok {
-				g.adj[k] = append(g.adj[k], j)
-			}
+	// Graph distances by breadth-first search from every node.
+	dist := make([]float64, n*n)
+	queue := make([]int, 0, n)
+	for s := 0; s < n; s++ {
+		row := dist[s*n : (s+1)*n]
+		for i := range row {
+			row[i] = -1
 		}
-	}
-	e := layout.EadesR2{Repulsion: 1, Rate: 0.05, Updates: 150, Theta: 0.2, Src: rand.NewPCG(1, 2)}
-	o := layout.NewOptimizerR2(g, e.Update)
-	// EadesR2 can drive two nodes onto one point, after which its
-	// forces are not numbers; keep the last positions that were, and
-	// stop there.
-	good := make([]r2.Vec, len(members))
-	for steps := 0; o.Update(); steps++ {
-		ok := true
-		for k := range members {
-			c := o.Coord2(int64(k))
-			if math.IsNaN(c.X) || math.IsNaN(c.Y) || math.IsInf(c.X, 0) || math.IsInf(c.Y, 0) || math.Abs(c.X) > 1e12 || math.Abs(c.Y) > 1e12 {
-				ok = false
-				break
-			}
-		}
-		if !ok {
-			if steps == 0 {
-				for k := range good {
-					good[k] = r2.Vec{X: float64(k % 8), Y: float64(k / 8)}
+		row[s] = 0
+		queue = append(queue[:0], s)
+		for len(queue) > 0 {
+			v := queue[0]
+			queue = queue[1:]
+			for _, u := range adj[members[v]] {
+				if j, ok := local[u]; ok && row[j] < 0 {
+					row[j] = row[v] + 1
+					queue = append(queue, j)
 				}
 			}
-			break
-		}
-		for k := range members {
-			good[k] = o.Coord2(int64(k))
 		}
 	}
-	var lengths []float64
-	for k := range members {
-		for _, j := range g.adj[k] {
-			if int64(k) < j {
-				a, b := good[k], good[j]
-				lengths = append(lengths, math.Hypot(a.X-b.X, a.Y-b.Y))
+	for i, x := range dist {
+		if x < 0 {
+			dist[i] = float64(n) // not reached: cannot happen within a part
+		}
+	}
+	sym := mat.NewSymDense(n, nil)
+	for i := 0; i < n; i++ {
+		for j := i; j < n; j++ {
+			sym.SetSym(i, j, dist[i*n+j]*forceEdge)
+		}
+	}
+	x := make([]float64, n)
+	y := make([]float64, n)
+	var v mat.Dense
+	if k, _ := mds.TorgersonScaling(&v, nil, sym); k >= 2 {
+		for i := 0; i < n; i++ {
+			x[i], y[i] = v.At(i, 0), v.At(i, 1)
+		}
+	} else {
+		for i := 0; i < n; i++ { // a path: along a line
+			x[i], y[i] = dist[i]*forceEdge, float64(i%2)*forceEdge/4
+		}
+	}
+	// Stress majorization.
+	nx, ny := make([]float64, n), make([]float64, n)
+	for it := 0; it < 60; it++ {
+		for i := 0; i < n; i++ {
+			sx, sy, sw := 0.0, 0.0, 0.0
+			for j := 0; j < n; j++ {
+				if i == j {
+					continue
+				}
+				dij := dist[i*n+j] * forceEdge
+				w := 1 / (dij * dij)
+				ex, ey := x[i]-x[j], y[i]-y[j]
+				l := math.Hypot(ex, ey)
+				if l < 1e-9 {
+					l = 1e-9
+					ex = 1e-9 * float64((i-j)%3)
+				}
+				sx += w * (x[j] + dij*ex/l)
+				sy += w * (y[j] + dij*ey/l)
+				sw += w
 			}
+			nx[i], ny[i] = sx/sw, sy/sw
 		}
+		x, nx = nx, x
+		y, ny = ny, y
 	}
-	sort.Float64s(lengths)
-	scale := 1.0
-	if len(lengths) > 0 && lengths[len(lengths)/2] > 0 {
-		scale = forceEdge / lengths[len(lengths)/2]
-	}
-	for k, v := range members {
-		c := good[k]
-		x, y := c.X*scale, c.Y*scale
-		if math.IsNaN(x) || math.IsInf(x, 0) || math.IsNaN(y) || math.IsInf(y, 0) {
-			x, y = float64(k)*forceEdge, 0
+	for k, m := range members {
+		xi, yi := x[k], y[k]
+		if math.IsNaN(xi) || math.IsInf(xi, 0) || math.IsNaN(yi) || math.IsInf(yi, 0) {
+			xi, yi = float64(k)*forceEdge, 0
 		}
-		d.Nodes[v].X, d.Nodes[v].Y = x, y
+		d.Nodes[m].X, d.Nodes[m].Y = xi, yi
 	}
 }
 

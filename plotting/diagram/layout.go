@@ -18,8 +18,10 @@ const (
 	// Layered puts the nodes in rows that follow the flow from reactants
 	// to products, ordered to cross few edges.
 	Layered
-	// Force places the nodes by a force-directed simulation (gonum's
-	// EadesR2), then moves them apart until no two overlap.
+	// Force places the nodes so that their distances follow the graph's
+	// (classical scaling, then stress majorization: the energy of springs
+	// as long as the paths between nodes), then moves them apart until no
+	// two overlap.
 	Force
 )
 
