@@ -1,6 +1,6 @@
 // Command batch runs Kinetarium models without the desktop program: one
 // simulation to a CSV table and a figure, parameter sweeps, virtual
-// populations and the merging of sharded runs. It is pure Go and builds
+// populations, the merging of sharded runs and the network's diagram. It is pure Go and builds
 // with CGO_ENABLED=0, for servers and clusters.
 //
 // Usage:
@@ -9,6 +9,7 @@
 //	batch sweep SPEC.json [flags]
 //	batch population SPEC.json [flags]
 //	batch merge PART.json... --out DIR
+//	batch diagram MODEL.json --out FILE [flags]
 //	batch help
 //
 // Run "batch help" for the flags. Exit status: 0 on success, 1 when a run
@@ -57,6 +58,16 @@ Commands:
 
   merge PART.json... --out DIR
       Join the partial results of a sharded sweep or population.
+
+  diagram MODEL.json --out FILE [flags]
+      Lay out and draw the model's network to FILE.png, .svg or .pdf:
+      species, reactions, modifiers, compartments. Positions saved in the
+      model's layout section are kept; the rest are placed automatically.
+        --style S          plain (default, or the model's) or sbgn
+        --layout L         auto (default), layered or force
+        --at T             simulate and colour species by concentration
+                           and lines by flux at time T
+        --store            save the positions into MODEL.json
 
   help
       Print this text.

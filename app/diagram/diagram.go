@@ -10,10 +10,14 @@ package diagram
 
 import (
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 
+	"gonum.org/v1/plot/vg"
+
 	"kinetarium/network"
+	"kinetarium/plotting"
 	pd "kinetarium/plotting/diagram"
 )
 
@@ -342,5 +346,49 @@ func Describe(net *network.Net, d *pd.Diagram, i int) string {
 
 // Summary says in words what the layout did, for a status line.
 func Summary(st pd.Stats, d *pd.Diagram) string {
-	return fmt.Sprintf("%d species and reactions, laid out %s in %v", len(d.Nodes), st.Method, st.Elapsed.Round(100_000))
+	ns, nr := 0, 0
+	for _, n := range d.Nodes {
+		switch n.Kind {
+		case pd.Species:
+			ns++
+		case pd.Reaction:
+			nr++
+		}
+	}
+	how := "laid out " + st.Method.String()
+	if st.Method == pd.Auto {
+		how = "placed as saved"
+		if st.Placed > 0 {
+			how = fmt.Sprintf("placed as saved, %d new", st.Placed)
+		}
+	}
+	return fmt.Sprintf("%d species, %d reactions; %s in %.1f ms", ns, nr, how, float64(st.Elapsed.Microseconds())/1000)
+}
+
+// NaturalSize returns the size, in points, at which d is drawn at its
+// natural scale with room for a title of the given number of lines: at
+// least 8 cm × 6 cm, at most 2 m a side.
+func NaturalSize(d *pd.Diagram, titleLines int) (w, h vg.Length) {
+	b := d.Bounds()
+	wp := math.Min(math.Max(b.Max.X-b.Min.X+24, 227), 5669)
+	hp := math.Min(math.Max(b.Max.Y-b.Min.Y+24+float64(titleLines)*16, 170), 5669)
+	return vg.Points(wp), vg.Points(hp)
+}
+
+// Save writes d drawn with o to path (.png, .svg or .pdf) at its natural
+// size, with the metadata meta (see plotting.Save).
+func Save(path string, d *pd.Diagram, o pd.Options, meta *plotting.Metadata) error {
+	lines := 0
+	if o.Title != "" {
+		lines++
+	}
+	if o.Caption != "" {
+		lines += 1 + strings.Count(o.Caption, "\n")
+	}
+	o.View = pd.View{}
+	w, h := NaturalSize(d, lines)
+	for _, line := range strings.Split(o.Title+"\n"+o.Caption, "\n") {
+		w = max(w, vg.Points(6.5*float64(len([]rune(line)))+24)) // the title font is 12 pt
+	}
+	return plotting.Save(pd.Plot(d, o), path, w, h, 0, meta)
 }

@@ -195,5 +195,5 @@ func (r *Replay) Caption(t float64) string {
 	if r.o.TimeUnit != "" {
 		u = " " + r.o.TimeUnit
 	}
-	return fmt.Sprintf("t = %.4g%s; colour: concentration from %.3g (dark) to %.3g (light), log scale; line width: flux", t, u, r.Lo, r.Hi)
+	return fmt.Sprintf("t = %.4g%s\ncolour: concentration %.3g (dark) to %.3g (light), log scale; width: flux", t, u, r.Lo, r.Hi)
 }
