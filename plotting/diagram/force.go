@@ -3,9 +3,6 @@ package diagram
 import (
 	"math"
 	"sort"
-
-	"gonum.org/v1/gonum/mat"
-	"gonum.org/v1/gonum/stat/mds"
 )
 
 // forceEdge is the length edges are scaled to, in points.
@@ -109,10 +106,9 @@ func forceLayout(d *Diagram) {
 
 // stress places members (one connected part) so that the distance of
 // every two nodes follows the number of edges between them times
-// forceEdge: classical (Torgerson) scaling of the graph distances with
-// gonum's stat/mds gives the start, and stress majorization (Gansner,
-// Koren and North, 2004) with weights 1/d² refines it. Both are
-// deterministic.
+// forceEdge: classical (Torgerson) scaling of the graph distances gives
+// the start, and stress majorization (Gansner, Koren and North, 2004)
+// with weights 1/d² refines it. Both are deterministic.
 func stress(d *Diagram, members []int, adj [][]int) {
 	n := len(members)
 	if n == 1 {
@@ -149,24 +145,7 @@ func stress(d *Diagram, members []int, adj [][]int) {
 			dist[i] = float64(n) // not reached: cannot happen within a part
 		}
 	}
-	sym := mat.NewSymDense(n, nil)
-	for i := 0; i < n; i++ {
-		for j := i; j < n; j++ {
-			sym.SetSym(i, j, dist[i*n+j]*forceEdge)
-		}
-	}
-	x := make([]float64, n)
-	y := make([]float64, n)
-	var v mat.Dense
-	if k, _ := mds.TorgersonScaling(&v, nil, sym); k >= 2 {
-		for i := 0; i < n; i++ {
-			x[i], y[i] = v.At(i, 0), v.At(i, 1)
-		}
-	} else {
-		for i := 0; i < n; i++ { // a path: along a line
-			x[i], y[i] = dist[i]*forceEdge, float64(i%2)*forceEdge/4
-		}
-	}
+	x, y := classicalScaling(dist, n)
 	// Stress majorization.
 	nx, ny := make([]float64, n), make([]float64, n)
 	for it := 0; it < 60; it++ {
@@ -279,4 +258,94 @@ func (d *Diagram) boundsOfList(members []int) Rect {
 		b = b.union(d.Box(v))
 	}
 	return b
+}
+
+// classicalScaling returns the two-dimensional classical (Torgerson)
+// scaling of the n×n distances dist (row-major), in points: the top two
+// eigenvectors of the double-centred matrix B = −½·J·D²·J, found by power
+// iteration from fixed start vectors, scaled by the square roots of their
+// eigenvalues. gonum's stat/mds computes the same with a full eigen
+// decomposition, which for 500 nodes took most of a second.
+func classicalScaling(dist []float64, n int) (x, y []float64) {
+	b := make([]float64, n*n)
+	row := make([]float64, n)
+	all := 0.0
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			d := dist[i*n+j] * forceEdge
+			b[i*n+j] = d * d
+			row[i] += d * d
+		}
+		all += row[i]
+		row[i] /= float64(n)
+	}
+	all /= float64(n * n)
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			b[i*n+j] = -0.5 * (b[i*n+j] - row[i] - row[j] + all)
+		}
+	}
+	vecs := make([][]float64, 2)
+	vals := make([]float64, 2)
+	next := make([]float64, n)
+	for k := 0; k < 2; k++ {
+		v := make([]float64, n)
+		for i := range v {
+			v[i] = math.Cos(float64(i*(k+1)) + 0.5*float64(k))
+		}
+		lambda := 0.0
+		for it := 0; it < 200; it++ {
+			for _, u := range vecs[:k] { // deflate: stay orthogonal to the first
+				dot := 0.0
+				for i := range v {
+					dot += v[i] * u[i]
+				}
+				for i := range v {
+					v[i] -= dot * u[i]
+				}
+			}
+			norm := 0.0
+			for _, vi := range v {
+				norm += vi * vi
+			}
+			norm = math.Sqrt(norm)
+			if norm == 0 {
+				break
+			}
+			for i := range v {
+				v[i] /= norm
+			}
+			lambda = 0
+			for i := 0; i < n; i++ {
+				s := 0.0
+				r := b[i*n : (i+1)*n]
+				for j, vj := range v {
+					s += r[j] * vj
+				}
+				next[i] = s
+				lambda += v[i] * s
+			}
+			copy(v, next)
+		}
+		norm := 0.0
+		for _, vi := range v {
+			norm += vi * vi
+		}
+		norm = math.Sqrt(norm)
+		for i := range v {
+			if norm > 0 {
+				v[i] /= norm
+			}
+		}
+		vecs[k], vals[k] = v, lambda
+	}
+	x, y = make([]float64, n), make([]float64, n)
+	for i := 0; i < n; i++ {
+		x[i] = vecs[0][i] * math.Sqrt(math.Max(vals[0], 0))
+		y[i] = vecs[1][i] * math.Sqrt(math.Max(vals[1], 0))
+		if vals[1] <= 0 { // a path: keep the nodes off one line
+			y[i] = float64(i%2) * forceEdge / 4
+		}
+	}
+	return x, y
 }
