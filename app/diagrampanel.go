@@ -130,6 +130,9 @@ func (p *diagramPanel) refresh() {
 	for i := range d.Nodes {
 		d.Nodes[i].Pinned = true // drawn where they are from now on
 	}
+	if p.d == nil {
+		p.view.fitTop = true
+	}
 	sel := -1
 	if old := p.view.Selected(); old >= 0 && p.d != nil && old < len(p.d.Nodes) {
 		sel = d.Find(p.d.Nodes[old].Kind, p.d.Nodes[old].Name)

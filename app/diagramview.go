@@ -39,6 +39,10 @@ type diagramView struct {
 	dirty bool
 	buf   *image.RGBA
 
+	// fitTop asks the next render to show a diagram much taller than
+	// the view at a readable size from its top, rather than whole.
+	fitTop bool
+
 	dragging  bool
 	dragNode  int
 	dragStart fyne.Position
@@ -133,6 +137,10 @@ func (v *diagramView) render() {
 		s = c.Scale()
 	}
 	w, h := int(math.Round(float64(size.Width*s))), int(math.Round(float64(size.Height*s)))
+	if v.fitTop && size.Width > 300 && size.Height > 200 {
+		v.fitTop = false
+		v.showTop(float64(w)*72/96, float64(h)*72/96)
+	}
 	p := pd.Plot(v.d, v.opts)
 	// A new image each time: the canvas may still be showing the last.
 	v.buf = image.NewRGBA(image.Rect(0, 0, max(w, 1), max(h, 1)))
@@ -143,6 +151,24 @@ func (v *diagramView) render() {
 	if v.OnDrawn != nil {
 		v.OnDrawn()
 	}
+}
+
+// showTop sets the view of a diagram much taller than a wpt × hpt view
+// (in points) to fill the view's width, at most at natural size, from
+// the diagram's top.
+func (v *diagramView) showTop(wpt, hpt float64) {
+	b := v.d.Bounds()
+	bw, bh := math.Max(b.Max.X-b.Min.X, 1), math.Max(b.Max.Y-b.Min.Y, 1)
+	if bh/bw < 1.5*hpt/wpt {
+		return
+	}
+	fitted := math.Min(math.Min((wpt-16)/bw, (hpt-16)/bh), 1.5)
+	want := math.Min((wpt-16)*0.9/bw, 1.2)
+	if want <= fitted {
+		return
+	}
+	c := pd.Point{X: (b.Min.X + b.Max.X) / 2, Y: b.Min.Y + (hpt/2-8)/want}
+	v.opts.View = pd.View{Scale: want, Centre: &c}
 }
 
 // Resize re-draws at the new size.

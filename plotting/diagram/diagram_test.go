@@ -63,16 +63,17 @@ func chain() *Diagram {
 	return d
 }
 
-// A chain is drawn in rows, top to bottom in the order of the flow.
+// A chain is drawn in layers in the order of the flow: a long, narrow
+// chain in columns from left to right.
 func TestLayeredChain(t *testing.T) {
 	d := chain()
 	st := Layout(d, Settings{})
-	if st.Method != Layered || st.Crossings != 0 {
-		t.Errorf("stats %+v", st)
+	if st.Method != Layered || st.Crossings != 0 || !st.Across {
+		t.Errorf("stats %+v, want layered across", st)
 	}
 	for _, p := range [][2]int{{0, 1}, {1, 2}, {2, 3}, {3, 4}} {
-		if !(d.Nodes[p[0]].Y < d.Nodes[p[1]].Y) {
-			t.Errorf("%s at y = %v is not above %s at y = %v", d.Nodes[p[0]].Name, d.Nodes[p[0]].Y, d.Nodes[p[1]].Name, d.Nodes[p[1]].Y)
+		if !(d.Box(p[0]).Max.X < d.Box(p[1]).Min.X) {
+			t.Errorf("%s (%v) is not left of %s (%v)", d.Nodes[p[0]].Name, d.Box(p[0]), d.Nodes[p[1]].Name, d.Box(p[1]))
 		}
 	}
 	if len(d.Labels) != 1 || d.Labels[0].Text != "2" {

@@ -40,6 +40,9 @@ func StyleNamed(name string) Style {
 type View struct {
 	// Zoom magnifies the fitted picture; zero means 1.
 	Zoom float64
+	// Scale, when above zero, replaces the fitted scale: canvas points
+	// per diagram point (before Zoom).
+	Scale float64
 	// Centre is the diagram point at the centre of the picture; nil
 	// means the centre of the diagram.
 	Centre *Point
@@ -99,6 +102,9 @@ func fit(d *Diagram, r vg.Rectangle, v View, maxScale float64) Transform {
 		maxScale = 1.5
 	}
 	s := math.Min(math.Min(w/bw, h/bh), maxScale)
+	if v.Scale > 0 {
+		s = v.Scale
+	}
 	if v.Zoom > 0 {
 		s *= v.Zoom
 	}

@@ -22,6 +22,7 @@ type layered struct {
 	layer    []int   // of every node, bends included
 	feedback float64 // fraction of edges turned round
 	layers   int
+	across   bool // rows run left to right (columns) instead of top to bottom
 
 	// Nodes of the rows: real nodes 0..n-1, then bends.
 	region []int
@@ -227,6 +228,9 @@ func (lg *layered) run() int {
 		d.Nodes[i].X, d.Nodes[i].Y = 0, 0
 		b := d.Box(i)
 		lg.left[i], lg.right[i] = -b.Min.X, b.Max.X
+		if lg.across {
+			lg.left[i], lg.right[i] = -b.Min.Y, b.Max.Y
+		}
 		lg.region[i] = d.Nodes[i].Region
 	}
 	lg.up = make([][]int, n)
@@ -274,25 +278,40 @@ func (lg *layered) run() int {
 	}
 	crossings := lg.order()
 	lg.place()
-	// Rows' heights and y.
-	y := 0.0
-	rowY := make([]float64, lg.layers)
+	// Rows' thickness and place: y for rows, x for columns.
+	at := 0.0
+	rowAt := make([]float64, lg.layers)
+	gap := layerGap
+	if lg.across {
+		gap = 1.5 * layerGap
+	}
 	for l, row := range lg.rows {
 		h := 0.0
 		for _, v := range row {
 			if v < n {
 				b := d.Box(v)
-				h = math.Max(h, b.Max.Y-b.Min.Y)
+				if lg.across {
+					h = math.Max(h, b.Max.X-b.Min.X)
+				} else {
+					h = math.Max(h, b.Max.Y-b.Min.Y)
+				}
 			}
 		}
 		if h == 0 {
 			h = speciesH / 2
 		}
-		rowY[l] = y + h/2
-		y += h + layerGap
+		rowAt[l] = at + h/2
+		at += h + gap
 	}
 	for v := 0; v < n; v++ {
-		d.Nodes[v].X, d.Nodes[v].Y = lg.x[v], rowY[lg.layer[v]]
+		if lg.across {
+			// Centre each box in its column.
+			b := d.Box(v) // at (0, 0)
+			d.Nodes[v].X = rowAt[lg.layer[v]] - (b.Min.X+b.Max.X)/2
+			d.Nodes[v].Y = lg.x[v]
+		} else {
+			d.Nodes[v].X, d.Nodes[v].Y = lg.x[v], rowAt[lg.layer[v]]
+		}
 	}
 	for ei, chain := range lg.chains {
 		if len(chain) == 0 {
@@ -300,7 +319,11 @@ func (lg *layered) run() int {
 		}
 		pts := make([]Point, len(chain))
 		for k, v := range chain {
-			pts[k] = Point{lg.x[v], rowY[lg.layer[v]]}
+			if lg.across {
+				pts[k] = Point{rowAt[lg.layer[v]], lg.x[v]}
+			} else {
+				pts[k] = Point{lg.x[v], rowAt[lg.layer[v]]}
+			}
 		}
 		d.Bends[ei] = pts
 	}

@@ -50,7 +50,8 @@ type Stats struct {
 	Method    Method // the method used (Layered or Force; Auto when every node was pinned)
 	Placed    int    // nodes placed (those not pinned)
 	Feedback  float64
-	Crossings int // crossings between layers, for a layered layout
+	Crossings int  // crossings between layers, for a layered layout
+	Across    bool // the layers run left to right
 	Elapsed   time.Duration
 }
 
@@ -91,12 +92,30 @@ func Layout(d *Diagram, s Settings) Stats {
 		if s.Method != Force {
 			st.Method = Layered
 			st.Crossings = lg.run()
+			// A tall, narrow picture (a long chain) may read better in
+			// columns from left to right: keep whichever is nearer a
+			// landscape page (3:2).
+			if b := d.Bounds(); b.Max.Y-b.Min.Y > 2*(b.Max.X-b.Min.X) {
+				down := saveNodes(d)
+				bends := d.Bends
+				tall := aspectMiss(b)
+				d.Bends = make([][]Point, len(d.Edges))
+				across := newLayered(d)
+				across.across = true
+				c := across.run()
+				if aspectMiss(d.Bounds()) < tall {
+					st.Crossings, st.Across = c, true
+				} else {
+					restoreNodes(d, down)
+					d.Bends = bends
+				}
+			}
 		}
 		// Auto keeps the rows for a network that flows mostly one way and
 		// crosses few edges (at most one crossing for every two edges).
 		tangled := lg.feedback > maxFB || lg.layers < 3 || st.Crossings > len(d.Edges)/2
 		if s.Method == Force || s.Method == Auto && tangled {
-			st.Method, st.Crossings = Force, 0
+			st.Method, st.Crossings, st.Across = Force, 0, false
 			d.Bends = make([][]Point, len(d.Edges))
 			forceLayout(d)
 		}
@@ -393,4 +412,24 @@ func clipToRect(p, c Point, r Rect) Point {
 		return c
 	}
 	return Point{c.X + dx*t, c.Y + dy*t}
+}
+
+// aspectMiss is how far r's shape is from 3:2 landscape, as |log|.
+func aspectMiss(r Rect) float64 {
+	w, h := math.Max(r.Max.X-r.Min.X, 1), math.Max(r.Max.Y-r.Min.Y, 1)
+	return math.Abs(math.Log(w / h / 1.5))
+}
+
+func saveNodes(d *Diagram) []Point {
+	out := make([]Point, len(d.Nodes))
+	for i, n := range d.Nodes {
+		out[i] = Point{n.X, n.Y}
+	}
+	return out
+}
+
+func restoreNodes(d *Diagram, p []Point) {
+	for i := range d.Nodes {
+		d.Nodes[i].X, d.Nodes[i].Y = p[i].X, p[i].Y
+	}
 }
