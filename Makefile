@@ -50,7 +50,7 @@ test-stochastic:
 
 # Work-precision report and the benchmarks of every package.
 bench:
-	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/... ./app/ensemble
+	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/... ./app/ensemble ./app/diagram
 	$(GO) run ./internal/workprecision -out bench
 
 FUZZTIME ?= 30s
@@ -58,7 +58,8 @@ fuzz:
 	$(GO) test ./network/expr -run '^$$' -fuzz FuzzParse -fuzztime $(FUZZTIME)
 	$(GO) test ./network/units -run '^$$' -fuzz FuzzParse -fuzztime $(FUZZTIME)
 	$(GO) test ./network -run '^$$' -fuzz FuzzParseEquation -fuzztime $(FUZZTIME)
-	$(GO) test ./network -run '^$$' -fuzz FuzzRead -fuzztime $(FUZZTIME)
+	$(GO) test ./network -run '^$$' -fuzz 'FuzzRead$$' -fuzztime $(FUZZTIME)
+	$(GO) test ./network -run '^$$' -fuzz FuzzLayout -fuzztime $(FUZZTIME)
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzReadPNGText -fuzztime $(FUZZTIME)
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzSVGMetadata -fuzztime $(FUZZTIME)
 	$(GO) test ./app/run -run '^$$' -fuzz FuzzReadProvenance -fuzztime $(FUZZTIME)

@@ -141,6 +141,24 @@ by the size of the first reactant's compartment. Parameters and species
 with an SBML rate rule are listed under the model file's ` + "`rates`" + `.
 **File ▸ Export SBML…** writes the model as SBML Level 3 Version 2.
 
+## The diagram
+
+The Diagram tab beside Time course draws the mechanism: species as boxes,
+each reaction as a dot (a ring when reversible) joined by lines from its
+reactants and arrows to its products, numbers on the lines for
+coefficients other than 1, ∅ for synthesis and degradation, and
+compartments as regions. Dashed lines show **modifiers**, species a rate
+reads but a reaction does not change: ending in a dot for an enzyme or a
+species that raises the rate, in a bar for one that lowers it. Choose the
+SBGN style for the standard's glyphs instead.
+
+Drag a node to move it (Undo moves it back; the place is saved with the
+model), drag the background to pan, scroll to zoom, type in Find to jump to
+a name. Clicking a node selects its row; point at a reaction to read its
+rate formula. After a run, Replay the last run colours species by
+concentration (dark low, light high, log scale) and makes lines as thick as
+the reaction's rate at the slider's time; Play runs through it.
+
 ## Caution
 
 ` + caution + `

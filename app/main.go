@@ -3,11 +3,12 @@
 //
 // Usage:
 //
-//	app [--model FILE] [--tab TAB] [--screenshot OUT.png]
+//	app [--model FILE] [--tab TAB] [--view diagram] [--screenshot OUT.png]
 //
 // Without --model it opens the default example; an SBML file (.xml or
-// .sbml) is imported as by File ▸ Import SBML…. With --screenshot it opens
-// the window, runs the model, waits until the plot is drawn, saves a
+// .sbml) is imported as by File ▸ Import SBML…. --view diagram shows the
+// network's diagram instead of the time course. With --screenshot it opens
+// the window, runs the model, waits until the plot (or diagram) is drawn, saves a
 // picture of the window to OUT.png and exits (status 1 with a message on
 // failure, after at most a minute).
 package main
@@ -16,6 +17,7 @@ import (
 	"flag"
 	"fmt"
 	"os"
+	"strings"
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/app"
@@ -30,6 +32,7 @@ func main() {
 	model := flag.String("model", "", "model `file` to open, or an SBML file (.xml, .sbml) to import (default: the default example)")
 	tab := flag.String("tab", "", "editor `tab` to show first: Reactions, Species, Parameters, Compartments or \"Run settings\"")
 	shot := flag.String("screenshot", "", "save a picture of the window to `file` (PNG) once the plot is drawn, then exit")
+	view := flag.String("view", "", "`view` to show first: \"time course\" (default) or diagram")
 	flag.Parse()
 	if flag.NArg() > 0 && *model == "" {
 		*model = flag.Arg(0)
@@ -57,6 +60,14 @@ func main() {
 	}
 	if *tab != "" {
 		w.ed.SelectTab(*tab)
+	}
+	switch strings.ToLower(*view) {
+	case "", "time course", "timecourse", "plot":
+	case "diagram":
+		w.showView(viewDiagram)
+	default:
+		fmt.Fprintf(os.Stderr, "app: unknown view %q; expected \"time course\" or diagram\n", *view)
+		os.Exit(2)
 	}
 	w.offerRecovery(recs)
 	w.win.Resize(fyne.NewSize(1280, 800))

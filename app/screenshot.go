@@ -31,9 +31,16 @@ func (w *mainWindow) screenshot(path string) {
 		time.AfterFunc(2*time.Second, func() {
 			fyne.Do(func() {
 				timer.Stop()
-				if err := capture(w.win, path); err != nil {
+				img, err := capture(w.win, path)
+				if err != nil {
 					fmt.Fprintln(os.Stderr, "app:", err)
 					w.exitCode = 1
+				} else if w.diagram.shown {
+					// Where the diagram is in the picture, for checks.
+					k := float32(img.Dx()) / w.win.Canvas().Size().Width
+					pos := fyne.CurrentApp().Driver().AbsolutePositionForObject(w.diagram.view)
+					size := w.diagram.view.Size()
+					fmt.Printf("app: diagram region %d %d %d %d\n", int(pos.X*k), int(pos.Y*k), int((pos.X+size.Width)*k), int((pos.Y+size.Height)*k))
 				}
 				w.app.Quit()
 			})
@@ -54,12 +61,13 @@ func (w *mainWindow) screenshot(path string) {
 	}
 }
 
-// capture writes a PNG picture of the window's canvas to path atomically.
+// capture writes a PNG picture of the window's canvas to path atomically
+// and returns its bounds.
 //
 // Some virtual displays (Xvfb with software OpenGL) read the window's
 // front buffer back blank; the window's content is then drawn again by
 // Fyne's software painter at the window's size.
-func capture(win fyne.Window, path string) error {
+func capture(win fyne.Window, path string) (image.Rectangle, error) {
 	img := win.Canvas().Capture()
 	if uniform(img) {
 		fmt.Fprintln(os.Stderr, "app: the window read back blank (usual on virtual displays); drawing it with the software painter instead")
@@ -74,12 +82,12 @@ func capture(win fyne.Window, path string) error {
 	}
 	var b bytes.Buffer
 	if err := png.Encode(&b, img); err != nil {
-		return fmt.Errorf("encoding screenshot: %w", err)
+		return image.Rectangle{}, fmt.Errorf("encoding screenshot: %w", err)
 	}
 	if err := atomicfile.Write(path, b.Bytes()); err != nil {
-		return fmt.Errorf("saving screenshot: %w", err)
+		return image.Rectangle{}, fmt.Errorf("saving screenshot: %w", err)
 	}
-	return nil
+	return img.Bounds(), nil
 }
 
 // uniform reports whether every pixel of img has the same colour.

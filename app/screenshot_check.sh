@@ -3,8 +3,9 @@
 # display (xvfb-run), runs the default example (or the model file $1),
 # saves a screenshot and checks it is a real picture: a PNG of at least
 # 800×500 pixels with more than 50 distinct colours, not nearly one colour.
-# Set SHOT=path to keep the picture.
+# It does the same with the Diagram view (--view diagram) and checks the
+# diagram's region. Set SHOT=path and SHOT_DIAGRAM=path to keep the pictures.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 if [[ $# -gt 0 ]]; then export MODEL=$(realpath "$1"); fi
-go test -count=1 -tags xvfb -run '^TestScreenshot$' ./app
+go test -count=1 -tags xvfb -run '^TestScreenshot(Diagram)?$' ./app

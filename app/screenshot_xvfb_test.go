@@ -3,11 +3,13 @@
 package main
 
 import (
+	"fmt"
 	"image"
 	"image/png"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -70,5 +72,69 @@ func checkPicture(t *testing.T, img image.Image) {
 	}
 	if most > b.Dx()*b.Dy()*95/100 {
 		t.Errorf("one colour covers %d of %d pixels: the picture is nearly blank", most, b.Dx()*b.Dy())
+	}
+}
+
+// TestScreenshotDiagram opens the window with --view diagram on the
+// two-compartment example, lets it simulate (the diagram then shows the
+// replay of the run's end), and checks that the region the program says
+// the diagram occupies holds a picture: more than 20 distinct colours and
+// no colour covering 95 % of it. Keep the picture with SHOT_DIAGRAM=path.
+func TestScreenshotDiagram(t *testing.T) {
+	if _, err := exec.LookPath("xvfb-run"); err != nil {
+		t.Skip("xvfb-run is not installed")
+	}
+	dir := t.TempDir()
+	bin := filepath.Join(dir, "kinetarium")
+	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		t.Fatalf("build: %v\n%s", err, out)
+	}
+	shot := os.Getenv("SHOT_DIAGRAM")
+	if shot == "" {
+		shot = filepath.Join(dir, "diagram.png")
+	}
+	model, _ := filepath.Abs("../examples/two-compartment-drug.json")
+	cmd := exec.Command("xvfb-run", "-a", "-s", "-screen 0 1400x900x24", bin, "--screenshot", shot, "--view", "diagram", "--model", model)
+	cmd.Env = append(os.Environ(), "LANG=en_US.UTF-8")
+	out, err := cmd.CombinedOutput()
+	if err != nil {
+		t.Fatalf("screenshot run: %v\n%s", err, out)
+	}
+	var r image.Rectangle
+	found := false
+	for _, line := range strings.Split(string(out), "\n") {
+		if _, err := fmt.Sscanf(line, "app: diagram region %d %d %d %d", &r.Min.X, &r.Min.Y, &r.Max.X, &r.Max.Y); err == nil {
+			found = true
+		}
+	}
+	if !found {
+		t.Fatalf("the program did not say where the diagram is:\n%s", out)
+	}
+	f, err := os.Open(shot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	img, err := png.Decode(f)
+	if err != nil {
+		t.Fatalf("screenshot is not a PNG: %v", err)
+	}
+	checkPicture(t, img)
+	if !r.In(img.Bounds()) || r.Dx() < 200 || r.Dy() < 150 {
+		t.Fatalf("diagram region %v in a %v picture", r, img.Bounds())
+	}
+	colours := map[[4]uint32]int{}
+	for y := r.Min.Y; y < r.Max.Y; y++ {
+		for x := r.Min.X; x < r.Max.X; x++ {
+			cr, cg, cb, ca := img.At(x, y).RGBA()
+			colours[[4]uint32{cr, cg, cb, ca}]++
+		}
+	}
+	most := 0
+	for _, n := range colours {
+		most = max(most, n)
+	}
+	if len(colours) <= 20 || most > r.Dx()*r.Dy()*95/100 {
+		t.Errorf("the diagram region %v has %d colours, the commonest covering %d of %d pixels: it looks blank", r, len(colours), most, r.Dx()*r.Dy())
 	}
 }

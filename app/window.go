@@ -33,9 +33,11 @@ type mainWindow struct {
 	ctrl *run.Controller
 
 	plot      *plotView
-	tune      *tunePanel   // sliders under the figure
-	current   *run.Outcome // shown
-	previous  *run.Outcome // the run before, for the overlay
+	diagram   *diagramPanel      // the Diagram view beside the time course
+	views     *container.AppTabs // Time course, Diagram
+	tune      *tunePanel         // sliders under the figure
+	current   *run.Outcome       // shown
+	previous  *run.Outcome       // the run before, for the overlay
 	hidden    map[string]bool
 	overlay   bool
 	autoRerun bool
@@ -160,7 +162,27 @@ func (w *mainWindow) build() {
 	side := container.NewBorder(container.NewVBox(speciesTitle, w.filter, container.NewGridWithColumns(2, all, none)), nil, nil, nil, w.speciesList)
 	plotArea := container.NewHSplit(w.plot, side)
 	plotArea.Offset = 0.8
-	right := container.NewBorder(container.NewPadded(bar), w.tune.content, nil, nil, plotArea)
+	w.diagram = newDiagramPanel(w)
+	w.diagram.view.OnDrawn = func() {
+		if w.onDrawn != nil && w.current != nil && w.diagram.shown {
+			f := w.onDrawn
+			w.onDrawn = nil
+			f()
+		}
+	}
+	w.views = container.NewAppTabs(container.NewTabItem(viewTimeCourse, plotArea), container.NewTabItem(viewDiagram, w.diagram.content))
+	w.views.OnSelected = func(t *container.TabItem) {
+		w.diagram.shown = t.Text == viewDiagram
+		if w.diagram.shown {
+			w.diagram.refresh()
+		}
+	}
+	w.ed.OnSelect = func(section string, row int) {
+		if w.diagram.shown {
+			w.diagram.selectedInTable(section, row)
+		}
+	}
+	right := container.NewBorder(container.NewPadded(bar), w.tune.content, nil, nil, w.views)
 
 	// Bottom: status line.
 	w.status = widget.NewLabel("Ready.")
@@ -298,6 +320,9 @@ func exampleTitle(name string) string {
 func (w *mainWindow) docChanged() {
 	w.updateTitle()
 	w.updateUndoItems()
+	if w.diagram != nil && w.diagram.shown {
+		w.diagram.refresh()
+	}
 	if w.autoRerun && !w.ed.HasErrors() && w.current != nil {
 		w.ctrl.Changed(func() *network.Model {
 			if w.ed.HasErrors() {
@@ -395,6 +420,16 @@ func (w *mainWindow) runDone(_ int, o *run.Outcome, err error) {
 	w.setStatus(line, err != nil)
 	w.refreshSpecies()
 	w.redraw()
+	w.diagram.runDone()
+}
+
+// showView shows the Time course or the Diagram view.
+func (w *mainWindow) showView(title string) {
+	for _, item := range w.views.Items {
+		if item.Text == title {
+			w.views.Select(item)
+		}
+	}
 }
 
 func roundDuration(d time.Duration) string {

@@ -219,3 +219,31 @@ func TestRenameUpdatesRates(t *testing.T) {
 		t.Errorf("rate after renaming k1 to kon: %+v", got)
 	}
 }
+
+// A renamed species or reaction keeps its place in the diagram, and Undo
+// gives the old name its place back.
+func TestRenameKeepsDiagramPlace(t *testing.T) {
+	m := enzymeModel()
+	m.Layout.Put(network.PlaceSpecies, "S", 10, 20)
+	m.Layout.Put(network.PlaceReaction, m.Reactions[0].Name, 30, 40)
+	d := NewDocument(m, "")
+	if _, err := d.Rename(KindSpecies, "S", "Sub", false); err != nil {
+		t.Fatal(err)
+	}
+	rx := d.Model().Reactions[0].Name
+	if _, err := d.Rename(KindReaction, rx, "binding", true); err != nil {
+		t.Fatal(err)
+	}
+	l := d.Model().Layout
+	if x, y, ok := l.Find(network.PlaceSpecies, "Sub"); !ok || x != 10 || y != 20 {
+		t.Errorf("Sub at (%v, %v, %v), want (10, 20)", x, y, ok)
+	}
+	if x, _, ok := l.Find(network.PlaceReaction, "binding"); !ok || x != 30 {
+		t.Errorf("binding at %v, %v", x, ok)
+	}
+	d.Undo()
+	d.Undo()
+	if _, _, ok := d.Model().Layout.Find(network.PlaceSpecies, "S"); !ok {
+		t.Error("after Undo S has no place")
+	}
+}

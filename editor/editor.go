@@ -54,6 +54,11 @@ type Editor struct {
 	// warnings after every change.
 	OnMessages func(errors, warnings int)
 
+	// OnSelect, when set, is called when a row is selected in a table
+	// (section is "species", "reactions", …), so that other views can
+	// follow the selection.
+	OnSelect func(section string, row int)
+
 	win       fyne.Window
 	tabs      *container.AppTabs
 	panes     map[string]*rowPane // by section

@@ -91,6 +91,9 @@ func newRowPane(ed *Editor, kind rowKind, form detailForm) *rowPane {
 	p.list.OnSelected = func(id widget.ListItemID) {
 		p.selected = id
 		p.showSelected()
+		if ed.OnSelect != nil && !p.selectCB {
+			ed.OnSelect(kind.section, id)
+		}
 	}
 	add := widget.NewButtonWithIcon("Add "+kind.noun, theme.ContentAddIcon(), p.add)
 	p.dupBtn = widget.NewButtonWithIcon("", theme.ContentCopyIcon(), p.duplicate)

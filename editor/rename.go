@@ -133,6 +133,7 @@ func renameInModel(m *network.Model, k Kind, old, new string, everywhere bool) i
 				m.Species[i].Name = new
 			}
 		}
+		m.Layout.Rename(network.PlaceSpecies, old, new)
 	case KindParameter:
 		for i := range m.Parameters {
 			if m.Parameters[i].Name == old {
@@ -156,6 +157,9 @@ func renameInModel(m *network.Model, k Kind, old, new string, everywhere bool) i
 			if m.Reactions[i].Name == old {
 				m.Reactions[i].Name = new
 			}
+		}
+		for _, k := range []network.PlaceKind{network.PlaceReaction, network.PlaceSource, network.PlaceSink} {
+			m.Layout.Rename(k, old, new)
 		}
 		return 0
 	}

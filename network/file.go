@@ -139,7 +139,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		d.errs[0].Field = ""
 		return nil, d.errs
 	}
-	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "events", "rates", "simulation")
+	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "events", "rates", "simulation", "layout")
 	if top == nil {
 		return nil, d.errs
 	}
@@ -309,6 +309,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			}
 		}
 	}
+	d.layout(top, m)
 	if d.errs.HasErrors() {
 		d.errs.Sort()
 		return nil, d.errs
@@ -489,6 +490,7 @@ type (
 		Events       []fileEvent       `json:"events,omitempty"`
 		Rates        []fileRateRule    `json:"rates,omitempty"`
 		Simulation   *fileSimulation   `json:"simulation,omitempty"`
+		Layout       *fileLayout       `json:"layout,omitempty"`
 	}
 	fileUnits struct {
 		Time               string  `json:"time,omitempty"`
@@ -710,6 +712,7 @@ func (m *Model) Write(w io.Writer) error {
 	if fs != (fileSimulation{}) {
 		f.Simulation = &fs
 	}
+	f.Layout = layoutForFile(m.Layout)
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)
 	enc.SetIndent("", "  ")

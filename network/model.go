@@ -41,6 +41,7 @@ type Model struct {
 	Events       []Event
 	Rates        []RateRule // time derivatives of species and parameters (see RateRule)
 	Simulation   Simulation
+	Layout       Layout // where the diagram draws each item; optional
 
 	source *sourceMap // where Read found each item; nil for models built in code
 }
@@ -330,6 +331,7 @@ func (m *Model) Clone() *Model {
 		e.Set = append([]Change(nil), e.Set...)
 		e.Infuse = append([]Change(nil), e.Infuse...)
 	}
+	c.Layout = m.Layout.clone()
 	if m.Simulation.NonNegative != nil {
 		b := *m.Simulation.NonNegative
 		c.Simulation.NonNegative = &b

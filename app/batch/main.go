@@ -1,6 +1,6 @@
 // Command batch runs Kinetarium models without the desktop program: one
 // simulation to a CSV table and a figure, parameter sweeps, virtual
-// populations and the merging of sharded runs. It is pure Go and builds
+// populations, the merging of sharded runs and the network's diagram. It is pure Go and builds
 // with CGO_ENABLED=0, for servers and clusters.
 //
 // Usage:
@@ -15,6 +15,7 @@
 //	batch export MODEL.json [--out FILE.xml]
 //	batch conformance DIR [--out report.csv]
 //	batch fit SPEC.json [flags]
+//	batch diagram MODEL.json --out FILE [flags]
 //	batch help
 //
 // Run "batch help" for the flags. Exit status: 0 on success, 1 when a run
@@ -123,6 +124,16 @@ Commands:
       fitted.csv, correlation.csv, starts.csv and figures to DIR (default:
       the spec's name with -results). --profiles adds profile-likelihood
       intervals. Exit status 1 when no start converged.
+
+  diagram MODEL.json --out FILE [flags]
+      Lay out and draw the model's network to FILE.png, .svg or .pdf:
+      species, reactions, modifiers, compartments. Positions saved in the
+      model's layout section are kept; the rest are placed automatically.
+        --style S          plain (default, or the model's) or sbgn
+        --layout L         auto (default), layered or force
+        --at T             simulate and colour species by concentration
+                           and lines by flux at time T
+        --store            save the positions into MODEL.json
 
   help
       Print this text.
