@@ -165,3 +165,29 @@ func TestContinueBrusselatorHopf(t *testing.T) {
 		}
 	}
 }
+
+// A Hill curve fitted to points of an exact Hill curve recovers its
+// numbers (common practice: exact data, zero residual), rising and
+// falling.
+func TestFitHillExact(t *testing.T) {
+	for _, want := range []Hill{{Bottom: 0.1, Top: 2, EC50: 3.5, N: 2.2}, {Bottom: 5, Top: 1, EC50: 0.02, N: 0.8}} {
+		var x, r []float64
+		for k := 0; k <= 30; k++ {
+			v := want.EC50 * math.Pow(10, -2+4*float64(k)/30)
+			x, r = append(x, v), append(r, want.At(v))
+		}
+		h, err := FitHill(x, r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if math.Abs(h.EC50/want.EC50-1) > 1e-6 || math.Abs(h.N-want.N) > 1e-6 || math.Abs(h.Top-want.Top) > 1e-6 || math.Abs(h.Bottom-want.Bottom) > 1e-6 {
+			t.Errorf("fitted %+v, want %+v", h, want)
+		}
+		if h.Falling() != (want.Top < want.Bottom) {
+			t.Errorf("falling %v", h.Falling())
+		}
+	}
+	if _, err := FitHill([]float64{1, 2, 3, 4}, []float64{1, 1, 1, 1}); err == nil {
+		t.Error("a flat response was fitted")
+	}
+}
