@@ -352,6 +352,9 @@ func TestSteadyAgainstLongIntegration(t *testing.T) {
 		if len(mod.Events) == 0 {
 			models[name] = mod
 		}
+		if strings.HasPrefix(name, "signalling-cascade") {
+			models[name+" dp×100"] = withClearableReporter(t, mod)
+		}
 	}
 	checked := 0
 	for name, mod := range models {
@@ -382,7 +385,7 @@ func TestSteadyAgainstLongIntegration(t *testing.T) {
 		}
 		checked++
 	}
-	if checked < 4 {
+	if checked < 6 {
 		t.Errorf("only %d models compared", checked)
 	}
 }
