@@ -138,7 +138,7 @@ func (a *Model) steadyFrom(ctx context.Context, sys *network.System, y0 []float6
 		}
 		return nil, err
 	}
-	s := &Steady{Result: r, Species: sys.Species(), Reactions: sys.Reactions(), Notes: a.Notes}
+	s := &Steady{Result: r, Species: sys.Species(), Reactions: sys.Reactions(), Notes: append([]string(nil), a.Notes...)}
 	for i := range s.Species {
 		s.Fixed = append(s.Fixed, sys.Fixed(i))
 	}
@@ -148,6 +148,12 @@ func (a *Model) steadyFrom(ctx context.Context, sys *network.System, y0 []float6
 		s.Totals = append(s.Totals, Total{Law: law.Text, Value: r.Totals[a.held+k]})
 	}
 	s.Verdict = r.Stability.Describe()
+	if r.Passed != nil {
+		s.Notes = append(s.Notes, "Newton's method from the initial state found an unstable steady state; integrating from the initial state settles here instead")
+	}
+	if r.Unsettled != nil {
+		s.Notes = append(s.Notes, "this steady state is unstable and the model does not settle there: integrating from the initial state, "+strings.TrimPrefix(r.Unsettled.Describe(a.name()), "no steady state: "))
+	}
 	return s, nil
 }
 

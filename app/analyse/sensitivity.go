@@ -6,6 +6,7 @@ import (
 	"time"
 
 	"kinetarium/app/study"
+	"kinetarium/plotting"
 	"kinetarium/solve/explore"
 )
 
@@ -162,4 +163,14 @@ func EffectRows(s *Sensitivity) [][]string {
 		}
 	}
 	return rows
+}
+
+// IndexIntervals returns readout r's first-order and total indices for
+// plotting.IndexBars.
+func IndexIntervals(s *Sensitivity, r int) (first, total []plotting.Interval) {
+	for _, x := range s.Indices[r] {
+		first = append(first, plotting.Interval{Value: x.First, Low: x.FirstLow, High: x.FirstHigh})
+		total = append(total, plotting.Interval{Value: x.Total, Low: x.TotalLow, High: x.TotalHigh})
+	}
+	return first, total
 }

@@ -416,6 +416,7 @@ func Continue(ctx context.Context, fam Family, p0 float64, y0 []float64, set Con
 			// Land on the bound by secant steps in the step length.
 			if last, ok := c.toBound(u, t, bound, hstep); ok {
 				copy(un, last)
+				un[n] = bound // within rounding of it already
 				if err := c.tangent(un, t, tn); err != nil {
 					copy(tn, t)
 				}

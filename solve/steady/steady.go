@@ -90,6 +90,13 @@ type Result struct {
 	// Link is L (n×(n−k)): dy = L·dy_I for changes that keep the totals.
 	Link *mat.Dense
 	Stability
+	// When Newton's method from the start found an unstable state, Find
+	// also integrates from the start: Passed is that unstable state when
+	// the integration settled elsewhere (and Y is where it settled), and
+	// Unsettled says why the integration did not settle when it did not
+	// (and Y is the unstable state).
+	Passed    []float64
+	Unsettled *NotFoundError
 	Stats
 }
 
@@ -369,6 +376,26 @@ func Find(ctx context.Context, sys solve.System, y0 []float64, set Settings) (*R
 	}
 	if err := res.finish(sys, red, nw, y, &set); err != nil {
 		return nil, err
+	}
+	if nerr == nil && !set.NoEigenvalues && !set.NoIntegration && !res.Stable && res.Class != Marginal {
+		// An unstable state is rarely where the system goes: see where
+		// the dynamics from the start lead.
+		y2, ierr := integrate(ctx, sys, nw, y0, &set, &res.Stats)
+		var nf *NotFoundError
+		switch {
+		case ierr == nil && !close(y2, y, 0):
+			passed := res.Y
+			stats := res.Stats
+			*res = Result{Stats: stats}
+			if err := res.finish(sys, red, nw, y2, &set); err != nil {
+				return nil, err
+			}
+			res.Passed = passed
+		case errors.As(ierr, &nf):
+			res.Unsettled = nf
+		case ierr != nil && ctx.Err() != nil:
+			return nil, ctx.Err()
+		}
 	}
 	res.Wall = time.Since(start)
 	return res, nil
