@@ -3,6 +3,8 @@ package analyse
 import (
 	"context"
 	"fmt"
+	"math"
+	"strings"
 	"time"
 
 	"kinetarium/app/study"
@@ -50,7 +52,9 @@ type Sensitivity struct {
 	// was undefined.
 	Runs, Failed int
 	Dropped      []int
-	Wall         time.Duration
+	// Notes name readouts whose indices are undefined, and why.
+	Notes []string
+	Wall  time.Duration
 }
 
 // GlobalSensitivity runs the design on the population runner (every
@@ -110,7 +114,12 @@ func GlobalSensitivity(ctx context.Context, p *study.Prepared, o SensitivityOpti
 		case Sobol:
 			idx, dropped, err := explore.SobolIndices(y, o.Samples, d, explore.IndexSettings{Bootstrap: o.Bootstrap, Level: o.Level, Seed: o.Seed})
 			if err != nil {
-				return s, fmt.Errorf("readout %s: %w", res.Readouts[r], err)
+				// The other readouts still have their indices.
+				s.Notes = append(s.Notes, fmt.Sprintf("%s: %v", res.Readouts[r], strings.TrimPrefix(err.Error(), "sensitivity: ")))
+				idx = make([]explore.SobolIndex, d)
+				for k := range idx {
+					idx[k] = explore.SobolIndex{First: math.NaN(), FirstLow: math.NaN(), FirstHigh: math.NaN(), Total: math.NaN(), TotalLow: math.NaN(), TotalHigh: math.NaN()}
+				}
 			}
 			s.Indices = append(s.Indices, idx)
 			s.Dropped = append(s.Dropped, dropped)

@@ -147,6 +147,9 @@ func sensitivity(args []string, stdout, stderr io.Writer) error {
 		}
 	}
 	fmt.Fprintf(stdout, "sensitivity (%s): %d runs, %d failed; wrote %d files in %s\n", s.Method, s.Runs, s.Failed, len(out.written), filepath.Clean(c.out))
+	for _, n := range s.Notes {
+		fmt.Fprintf(stdout, "  %s\n", n)
+	}
 	for r, d := range s.Dropped {
 		if d > 0 {
 			fmt.Fprintf(stdout, "  %s: %d left out (failed runs or undefined readouts)\n", s.Readouts[r], d)

@@ -128,7 +128,8 @@ func SobolIndices(y []float64, n, d int, set IndexSettings) (idx []SobolIndex, d
 			v += a*a + b*b
 		}
 		v /= 2*m - 1
-		if !(v > 0) {
+		// A variance within rounding of zero: the output does not vary.
+		if !(v > 1e-20*(mean*mean+1e-300)) {
 			return false
 		}
 		for i := 0; i < d; i++ {
