@@ -42,8 +42,8 @@ type ContinueSettings struct {
 	TotalsSlope []float64
 	// Step and MaxStep are the first and the largest step along the
 	// branch, in units where the parameter's range has length 1 and each
-	// variable is measured against its size on the branch; defaults 0.01
-	// and 0.05. MinStep (default 1e-7) stops a branch that cannot go on.
+	// variable is measured against its size on the branch; defaults 0.002
+	// and 0.01 (at least a hundred points across the range). MinStep (default 1e-7) stops a branch that cannot go on.
 	Step, MaxStep, MinStep float64
 	// Progress, when set, is called with the fraction of the range covered
 	// so far (by the farthest point), after every point.
@@ -260,7 +260,7 @@ func (c *cont) rescale(u []float64, qRange float64) {
 		top = math.Max(top, c.ymax[i])
 	}
 	for i := 0; i < c.n; i++ {
-		s := math.Max(math.Abs(u[i]), math.Max(1e-2*c.ymax[i], 1e-3*top))
+		s := math.Max(math.Abs(u[i]), math.Max(0.1*c.ymax[i], 1e-3*top))
 		if s == 0 {
 			s = 1
 		}
@@ -290,10 +290,10 @@ func Continue(ctx context.Context, fam Family, p0 float64, y0 []float64, set Con
 		set.MaxPoints = 1000
 	}
 	if set.Step <= 0 {
-		set.Step = 0.01
+		set.Step = 0.002
 	}
 	if set.MaxStep <= 0 {
-		set.MaxStep = 0.05
+		set.MaxStep = 0.01
 	}
 	if set.MinStep <= 0 {
 		set.MinStep = 1e-7

@@ -340,8 +340,43 @@ func nonFinite(v []float64) int {
 // When no steady state is found the error is a *NotFoundError that says
 // why; cancelling ctx returns ctx's error.
 func Find(ctx context.Context, sys solve.System, y0 []float64, set Settings) (*Result, error) {
-	start := time.Now()
+	f, err := NewFinder(sys, set)
+	if err != nil {
+		return nil, err
+	}
+	return f.Find(ctx, y0)
+}
+
+// Finder finds steady states of one system from one starting point after
+// another, keeping its work space from one call to the next: the analysis
+// of the conservation laws, the Jacobian, and the linear solver with its
+// ordering of the unknowns (for a sparse system, the larger part of the
+// cost of one Find). A Finder is used by one goroutine at a time.
+type Finder struct {
+	sys solve.System
+	set Settings
+	red *reduction
+	nw  *newton
+}
+
+// NewFinder prepares to find steady states of sys with settings set.
+func NewFinder(sys solve.System, set Settings) (*Finder, error) {
 	set.defaults()
+	f := &Finder{sys: sys, set: set}
+	red, err := newReduction(sys.Dim(), set.Laws)
+	if err != nil {
+		return nil, err
+	}
+	f.red = red
+	f.nw = newNewton(sys, red, &f.set, nil)
+	return f, nil
+}
+
+// Find looks for a steady state from y0, as the function Find does.
+func (f *Finder) Find(ctx context.Context, y0 []float64) (*Result, error) {
+	start := time.Now()
+	sys, red, nw := f.sys, f.red, f.nw
+	set := f.set
 	n := sys.Dim()
 	if len(y0) != n {
 		return nil, fmt.Errorf("steady: the starting state has %d values; the system has %d variables", len(y0), n)
@@ -349,12 +384,9 @@ func Find(ctx context.Context, sys solve.System, y0 []float64, set Settings) (*R
 	if i := nonFinite(y0); i >= 0 {
 		return nil, fmt.Errorf("steady: starting value of component %d is %v; a finite number is expected", i, y0[i])
 	}
-	red, err := newReduction(n, set.Laws)
-	if err != nil {
-		return nil, err
-	}
+	var err error
 	res := &Result{}
-	nw := newNewton(sys, red, &set, &res.Stats)
+	nw.stats = &res.Stats
 	nw.totals = red.totals(y0)
 	y := append([]float64(nil), y0...)
 	nerr := nw.solve(ctx, y)
