@@ -44,6 +44,7 @@ render-check: test-deps
 # Work-precision report and the benchmarks of every package.
 bench:
 	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/...
+	$(GO) test -run '^$$' -bench . -benchtime 1x ./app/analyse
 	$(GO) run ./internal/workprecision -out bench
 
 FUZZTIME ?= 30s
@@ -54,6 +55,8 @@ fuzz:
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzReadPNGText -fuzztime $(FUZZTIME)
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzSVGMetadata -fuzztime $(FUZZTIME)
 	$(GO) test ./app/run -run '^$$' -fuzz FuzzReadProvenance -fuzztime $(FUZZTIME)
+	$(GO) test ./app/batch -run '^$$' -fuzz FuzzContinuationSpec -fuzztime $(FUZZTIME)
+	$(GO) test ./app/batch -run '^$$' -fuzz FuzzSensitivitySpec -fuzztime $(FUZZTIME)
 
 clean:
 	rm -rf bin

@@ -48,6 +48,30 @@ type sensitivitySpec struct {
 	Simulation json.RawMessage `json:"simulation"`
 }
 
+// readSensitivitySpec reads and checks a sensitivity spec file (the
+// varied quantities and readouts are checked against the model later).
+func readSensitivitySpec(path string) (*sensitivitySpec, error) {
+	var spec sensitivitySpec
+	if err := readSpec(path, SensitivityFormat, &spec); err != nil {
+		return nil, err
+	}
+	switch {
+	case spec.Method != "" && spec.Method != analyse.Sobol && spec.Method != analyse.Morris:
+		return nil, fmt.Errorf("%s: method: expected %q or %q, got %q", path, analyse.Sobol, analyse.Morris, spec.Method)
+	case spec.Samples < 0:
+		return nil, fmt.Errorf("%s: samples: expected a positive number, got %d", path, spec.Samples)
+	case spec.Seed == nil:
+		return nil, fmt.Errorf("%s: seed: missing (a whole number ≥ 0; the same seed gives the same result)", path)
+	case spec.Level != 0 && !(spec.Level > 0 && spec.Level < 1):
+		return nil, fmt.Errorf("%s: level: expected a confidence between 0 and 1 (e.g. 0.95), got %g", path, spec.Level)
+	case spec.Method != analyse.Morris && spec.Levels != 0:
+		return nil, fmt.Errorf("%s: levels: only the morris method takes levels", path)
+	case spec.Method == analyse.Morris && (spec.Bootstrap != 0 || spec.Level != 0):
+		return nil, fmt.Errorf("%s: bootstrap and level: only the sobol method takes them", path)
+	}
+	return &spec, nil
+}
+
 // runSensitivity is the sensitivity subcommand.
 func runSensitivity(args []string, stdout, stderr io.Writer) int {
 	return exitStatus("sensitivity", sensitivity(args, stdout, stderr), stderr)
@@ -61,23 +85,9 @@ func sensitivity(args []string, stdout, stderr io.Writer) error {
 	if c.shard != (explore.Shard{}) {
 		return badInput(fmt.Errorf("--shard: a sensitivity analysis runs whole (its estimates need every run); use --workers"))
 	}
-	var spec sensitivitySpec
-	if err := readSpec(c.spec, SensitivityFormat, &spec); err != nil {
+	spec, err := readSensitivitySpec(c.spec)
+	if err != nil {
 		return badInput(err)
-	}
-	switch {
-	case spec.Method != "" && spec.Method != analyse.Sobol && spec.Method != analyse.Morris:
-		return badInput(fmt.Errorf("%s: method: expected %q or %q, got %q", c.spec, analyse.Sobol, analyse.Morris, spec.Method))
-	case spec.Samples < 0:
-		return badInput(fmt.Errorf("%s: samples: expected a positive number, got %d", c.spec, spec.Samples))
-	case spec.Seed == nil:
-		return badInput(fmt.Errorf("%s: seed: missing (a whole number ≥ 0; the same seed gives the same result)", c.spec))
-	case spec.Level != 0 && !(spec.Level > 0 && spec.Level < 1):
-		return badInput(fmt.Errorf("%s: level: expected a confidence between 0 and 1 (e.g. 0.95), got %g", c.spec, spec.Level))
-	case spec.Method != analyse.Morris && spec.Levels != 0:
-		return badInput(fmt.Errorf("%s: levels: only the morris method takes levels", c.spec))
-	case spec.Method == analyse.Morris && (spec.Bootstrap != 0 || spec.Level != 0):
-		return badInput(fmt.Errorf("%s: bootstrap and level: only the sobol method takes them", c.spec))
 	}
 	l, prov, err := loadModel("sensitivity", c.spec, spec.Model, spec.Simulation)
 	if err != nil {

@@ -289,6 +289,25 @@ type continuationSpec struct {
 	Response  string   `json:"response"`
 }
 
+// readContinuationSpec reads and checks a continuation spec file.
+func readContinuationSpec(path string) (*continuationSpec, error) {
+	var spec continuationSpec
+	if err := readSpec(path, ContinuationFormat, &spec); err != nil {
+		return nil, err
+	}
+	switch {
+	case spec.Knob == "":
+		return nil, fmt.Errorf("%s: knob: missing (a parameter name or init:SPECIES)", path)
+	case spec.From == nil:
+		return nil, fmt.Errorf("%s: from: missing (the knob's value where the branch starts)", path)
+	case spec.To == nil:
+		return nil, fmt.Errorf("%s: to: missing (the knob's value where the branch ends)", path)
+	case spec.MaxPoints < 0:
+		return nil, fmt.Errorf("%s: max_points: expected a positive number, got %d", path, spec.MaxPoints)
+	}
+	return &spec, nil
+}
+
 // runContinue is the continue subcommand.
 func runContinue(args []string, stdout, stderr io.Writer) int {
 	return exitStatus("continue", continueCmd(args, stdout, stderr), stderr)
@@ -299,19 +318,9 @@ func continueCmd(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return badInput(err)
 	}
-	var spec continuationSpec
-	if err := readSpec(c.spec, ContinuationFormat, &spec); err != nil {
+	spec, err := readContinuationSpec(c.spec)
+	if err != nil {
 		return badInput(err)
-	}
-	switch {
-	case spec.Knob == "":
-		return badInput(fmt.Errorf("%s: knob: missing (a parameter name or init:SPECIES)", c.spec))
-	case spec.From == nil:
-		return badInput(fmt.Errorf("%s: from: missing (the knob's value where the branch starts)", c.spec))
-	case spec.To == nil:
-		return badInput(fmt.Errorf("%s: to: missing (the knob's value where the branch ends)", c.spec))
-	case spec.MaxPoints < 0:
-		return badInput(fmt.Errorf("%s: max_points: expected a positive number, got %d", c.spec, spec.MaxPoints))
 	}
 	l, prov, err := loadModel("continuation", c.spec, spec.Model, nil)
 	if err != nil {

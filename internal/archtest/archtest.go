@@ -34,6 +34,7 @@ var Rules = []Rule{
 	{"kinetarium/app/run/...", fyne, "the run pipeline is a service without widgets"},
 	{"kinetarium/app/study/...", fyne, "studies are a service without widgets"},
 	{"kinetarium/app/sliders/...", fyne, "slider sessions are a service without widgets"},
+	{"kinetarium/app/analyse/...", fyne, "steady states, continuation and sensitivity are a service without widgets"},
 	{"kinetarium/solve/...", "kinetarium/network/...", "a network.System satisfies solve.System by its method set alone"},
 	{"kinetarium/network/...", "kinetarium/solve/...", "the model knows nothing of integrators"},
 }
