@@ -429,6 +429,12 @@ func Continue(ctx context.Context, fam Family, p0 float64, y0 []float64, set Con
 		if err := addPoint(un); err != nil {
 			return nil, err
 		}
+		switch un[n] { // a point landed on a bound has the bound's value exactly
+		case qmax:
+			br.Points[len(br.Points)-1].P = set.Max
+		case qmin:
+			br.Points[len(br.Points)-1].P = set.Min
+		}
 		cur := br.Points[len(br.Points)-1]
 		k := len(br.Points) - 2
 		// Fold: the parameter's direction along the branch changes sign.
@@ -463,7 +469,7 @@ func Continue(ctx context.Context, fam Family, p0 float64, y0 []float64, set Con
 			set.Progress(far)
 		}
 		if un[n] >= qmax || un[n] <= qmin {
-			br.Stop = fmt.Sprintf("reached the end of the range at p = %.6g", c.p(un[n]))
+			br.Stop = fmt.Sprintf("reached the end of the range at p = %.6g", br.Points[len(br.Points)-1].P)
 			break
 		}
 		if iters <= 3 {
