@@ -51,6 +51,7 @@ test-stochastic:
 # Work-precision report and the benchmarks of every package.
 bench:
 	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/... ./app/ensemble ./app/diagram
+	$(GO) test -run '^$$' -bench . -benchtime 1x ./app/analyse
 	$(GO) run ./internal/workprecision -out bench
 
 FUZZTIME ?= 30s
@@ -80,6 +81,8 @@ conformance:
 	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadData -fuzztime $(FUZZTIME)
 	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadSpec -fuzztime $(FUZZTIME)
 	$(GO) test ./solve/stochastic -run '^$$' -fuzz FuzzReadJSON -fuzztime $(FUZZTIME)
+	$(GO) test ./app/batch -run '^$$' -fuzz FuzzContinuationSpec -fuzztime $(FUZZTIME)
+	$(GO) test ./app/batch -run '^$$' -fuzz FuzzSensitivitySpec -fuzztime $(FUZZTIME)
 
 clean:
 	rm -rf bin

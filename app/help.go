@@ -159,6 +159,25 @@ rate formula. After a run, Replay the last run colours species by
 concentration (dark low, light high, log scale) and makes lines as thick as
 the reaction's rate at the slider's time; Play runs through it.
 
+## Analysing
+
+* **Analyse ▸ Steady state** finds where the model settles from its initial
+  state (conserved totals kept, held species held, events left out) and
+  says whether it is stable: stable node or focus, saddle, unstable,
+  marginal, with the slowest time scale. When there is none it says why: a
+  species that keeps growing, or oscillations that do not die down.
+* **Analyse ▸ Control coefficients** gives, at that steady state, how each
+  flux and concentration responds to each reaction's rate and to each
+  parameter (scaled: a 1 % change gives a C % change).
+* **Analyse ▸ Continuation…** follows the steady state as one quantity
+  changes, marking folds (the state turns back: a switch) and Hopf points
+  (oscillations begin); stable parts are solid, unstable parts dashed. The
+  Dose–response tab fits a Hill curve (EC50 or IC50, Hill coefficient).
+* **Analyse ▸ Global sensitivity…** varies uncertain quantities together
+  and ranks them by the share of a readout's variance they cause
+  (first-order and total indices with intervals), or screens them by their
+  elementary effects.
+
 ## Caution
 
 ` + caution + `

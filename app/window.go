@@ -284,7 +284,7 @@ func (w *mainWindow) buildMenus() {
 	help := fyne.NewMenu("Help",
 		fyne.NewMenuItem("Writing equations and rate laws", w.showHelp),
 		fyne.NewMenuItem("About and caution", w.showAbout))
-	w.mainMenu = fyne.NewMainMenu(file, edit, run, help)
+	w.mainMenu = fyne.NewMainMenu(file, edit, run, w.analyseMenu(), help)
 	w.win.SetMainMenu(w.mainMenu)
 	w.updateUndoItems()
 

@@ -68,11 +68,11 @@ type Options struct {
 
 	// Marks are times drawn as thin ticks rising from the time axis of a
 	// TrajectoryPlot, such as the events of a run.
-	Marks []Mark
+	Marks []TimeMark
 }
 
-// Mark is a labelled time on a TrajectoryPlot's time axis.
-type Mark struct {
+// TimeMark is a labelled time on a TrajectoryPlot's time axis.
+type TimeMark struct {
 	X     float64
 	Label string
 }

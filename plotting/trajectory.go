@@ -193,7 +193,7 @@ func indexOf(list []string, s string) int {
 // marks draws Options.Marks as short grey ticks rising from the bottom of
 // the data area; they do not change the axes' ranges.
 type marks struct {
-	xs   []Mark
+	xs   []TimeMark
 	logX bool
 }
 

@@ -3,15 +3,16 @@
 # they are missing: the C compiler and OpenGL/X11 headers that Fyne's cgo
 # build uses, and (with --test) Xvfb for the window check, poppler-utils
 # and Chromium for the checks of exported PDF and SVG figures, the
-# DejaVu fonts those checks show missing fonts in, and libSBML's Python
-# binding (python3-sbml5) for the consistency check of SBML exports.
+# DejaVu fonts those checks show missing fonts in, libSBML's Python
+# binding (python3-sbml5) for the consistency check of SBML exports, and
+# python3-numpy for the eigenvalue check against numpy (app/analyse).
 # As root it uses apt-get, otherwise sudo; when neither works it prints the
 # exact command to run and exits 1.
 set -euo pipefail
 
 pkgs=(gcc pkg-config libgl1-mesa-dev xorg-dev)
 if [[ "${1:-}" == "--test" ]]; then
-	pkgs+=(xvfb xauth poppler-utils chromium fonts-dejavu-core python3-sbml5)
+	pkgs+=(xvfb xauth poppler-utils chromium fonts-dejavu-core python3-sbml5 python3-numpy)
 fi
 
 missing=()

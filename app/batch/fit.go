@@ -120,8 +120,8 @@ func fnum(v float64) string {
 	return strconv.FormatFloat(v, 'g', -1, 64)
 }
 
-// jnum is a number for JSON, or nil where JSON has none.
-func jnum(v float64) any {
+// fitJSONNum is a number for JSON, or nil where JSON has none.
+func fitJSONNum(v float64) any {
 	if math.IsNaN(v) {
 		return nil
 	}
@@ -210,8 +210,8 @@ func writeFit(ctx context.Context, dir string, p *calibrate.Problem, rep *calibr
 	}
 	for _, e := range rep.Estimates {
 		est = append(est, []string{e.Name, fnum(e.Value), fnum(e.SE), fnum(e.Low), fnum(e.High), fnum(e.ProfileLow), fnum(e.ProfileHigh)})
-		sum.Estimates = append(sum.Estimates, map[string]any{"name": e.Name, "target": e.Target, "value": e.Value, "se": jnum(e.SE),
-			"ci95_low": jnum(e.Low), "ci95_high": jnum(e.High), "profile_low": jnum(e.ProfileLow), "profile_high": jnum(e.ProfileHigh),
+		sum.Estimates = append(sum.Estimates, map[string]any{"name": e.Name, "target": e.Target, "value": e.Value, "se": fitJSONNum(e.SE),
+			"ci95_low": fitJSONNum(e.Low), "ci95_high": fitJSONNum(e.High), "profile_low": fitJSONNum(e.ProfileLow), "profile_high": fitJSONNum(e.ProfileHigh),
 			"determined": e.Determined, "at_bound": e.AtBound, "unit": e.Unit})
 	}
 	if err := saveCSV(filepath.Join(dir, "estimates.csv"), est, prov); err != nil {

@@ -16,6 +16,9 @@
 //	batch conformance DIR [--out report.csv]
 //	batch fit SPEC.json [flags]
 //	batch diagram MODEL.json --out FILE [flags]
+//	batch steady MODEL.json [--json] [--control]
+//	batch continue SPEC.json [--out DIR]
+//	batch sensitivity SPEC.json [--out DIR] [--workers N]
 //	batch help
 //
 // Run "batch help" for the flags. Exit status: 0 on success, 1 when a run
@@ -134,6 +137,28 @@ Commands:
         --at T             simulate and colour species by concentration
                            and lines by flux at time T
         --store            save the positions into MODEL.json
+
+  steady MODEL.json [--json] [--control]
+      Find the steady state reached from the model's initial state: every
+      species, every reaction's flux, the conserved totals, the eigenvalues
+      of the Jacobian reduced by the conservation laws and the verdict
+      (stable node or focus, unstable, saddle, marginal). --json prints
+      one JSON object (keys species, fluxes, totals, eigenvalues as
+      [re, im] pairs, stable, classification); --control adds the scaled
+      elasticities, flux_control and concentration_control. Exit status 1
+      when there is no steady state (the message says why).
+
+  continue SPEC.json [--out DIR] [--quiet]
+      Follow the steady state as one knob moves from "from" to "to"
+      (spec format kinetarium.continuation/1), locating folds and Hopf
+      points; writes branch.csv, points.csv and diagram.png to DIR (and,
+      with "response", a Hill fit in hill.csv and dose-response.png).
+
+  sensitivity SPEC.json [--out DIR] [--workers N] [--quiet]
+      Global sensitivity of readouts to uncertain knobs (spec format
+      kinetarium.sensitivity/1): variance-based first-order and total
+      indices with bootstrap intervals (indices.csv, indices.png), or
+      Morris elementary effects (morris.csv).
 
   help
       Print this text.

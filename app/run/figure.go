@@ -71,7 +71,7 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 		opt.ColourIndex[j] = v.Slot(n, j)
 	}
 	for _, e := range o.Events {
-		opt.Marks = append(opt.Marks, plotting.Mark{X: e.T, Label: e.Name})
+		opt.Marks = append(opt.Marks, plotting.TimeMark{X: e.T, Label: e.Name})
 	}
 	if prev := sameUnits(v.Previous, o); prev != nil && len(prev.T) > 0 {
 		prev := prev.Trajectories()

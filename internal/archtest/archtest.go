@@ -38,6 +38,7 @@ var Rules = []Rule{
 	{"kinetarium/app/calibrate/...", fyne, "sensitivities and fits are a service without widgets"},
 	{"kinetarium/app/ensemble/...", fyne, "stochastic ensembles are a service without widgets"},
 	{"kinetarium/app/diagram/...", fyne, "the diagram is a service without widgets"},
+	{"kinetarium/app/analyse/...", fyne, "steady states, continuation and sensitivity are a service without widgets"},
 	{"kinetarium/solve/...", "kinetarium/network/...", "a network.System satisfies solve.System by its method set alone"},
 	{"kinetarium/network/...", "kinetarium/solve/...", "the model knows nothing of integrators"},
 	{"kinetarium/network/units", "kinetarium/network", "unit algebra is a leaf: the model reads units, not the other way round"},
