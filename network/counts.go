@@ -137,7 +137,11 @@ func (net *Net) Counts() (*Counts, error) {
 		probs = append(probs, err.(ErrorList)...)
 	}
 	c := &Counts{PerAmount: per, HowFound: how, sys: sys}
-	n := sys.n
+	for i, r := range m.Rates {
+		probs.Add(Pos{Section: "rates", Index: i, Item: r.Name}, Error,
+			"a rate (a continuous change of %s) cannot be simulated with counts of molecules; remove it for a stochastic run", r.Name)
+	}
+	n := sys.nSpecies // parameters carried in the state (set by events) stay concentrations
 	for i := 0; i < n; i++ {
 		om := sys.volumes[sys.spComp[i]] * per
 		x := m.Species[i].Initial * om
@@ -190,7 +194,11 @@ func (net *Net) Counts() (*Counts, error) {
 		c.Approximate = append(c.Approximate, cr.Name)
 		ch := CountChannel{Name: cr.Name, Reaction: cr.Index, Change: change, General: true,
 			TimeDependent: r.kind == kindExpr && sys.usesTime, rx: ri, inflow: -1}
-		ch.Reads = append(ch.Reads, sys.depSp[r.d0:r.d1]...)
+		for _, sp := range sys.depSp[r.d0:r.d1] {
+			if sp < sys.nSpecies { // parameters in the state are not counts
+				ch.Reads = append(ch.Reads, sp)
+			}
+		}
 		c.Channels = append(c.Channels, ch)
 	}
 	// Infusions: an inflow channel for each species an event infuses.
@@ -252,10 +260,21 @@ type CountDynamic struct {
 // one simulator.
 func (c *Counts) NewDynamic() *CountDynamic {
 	s := c.sys.Clone()
-	return &CountDynamic{c: c, sys: s, y: make([]float64, s.n), vars: s.vars}
+	d := &CountDynamic{c: c, sys: s, y: make([]float64, s.n), vars: s.vars}
+	d.resetState()
+	return d
 }
 
-// concentrations converts all counts x into d.y.
+// resetState puts the initial values of the parameters carried in the
+// System's state (those events set) after the species.
+func (d *CountDynamic) resetState() {
+	s := d.sys
+	copy(d.y[s.nSpecies:], s.initial[s.nSpecies:])
+	copy(d.vars[s.nSpecies:s.n], d.y[s.nSpecies:])
+}
+
+// concentrations converts all counts x into d.y (the species; the
+// parameters in the state keep their values).
 func (d *CountDynamic) concentrations(x []float64) {
 	for i, v := range x {
 		d.y[i] = v / d.c.Omega[i]
@@ -286,14 +305,22 @@ func (d *CountDynamic) Propensity(j int, t float64, x []float64) float64 {
 func (d *CountDynamic) Constants(cs []float64) {
 	for j := range d.c.Channels {
 		ch := &d.c.Channels[j]
-		if !ch.General {
-			cs[j] = d.sys.get(ch.k) * ch.factor
+		if ch.General {
+			continue
 		}
+		k := d.sys.get(ch.k)
+		if ch.k.p >= 0 && d.sys.parState[ch.k.p] >= 0 { // a parameter events set: its value is in the state
+			k = d.y[d.sys.parState[ch.k.p]]
+		}
+		cs[j] = k * ch.factor
 	}
 }
 
 // ResetEvents makes every event pending again (System.ResetEvents).
-func (d *CountDynamic) ResetEvents(t0 float64) { d.sys.ResetEvents(t0) }
+func (d *CountDynamic) ResetEvents(t0 float64) {
+	d.sys.ResetEvents(t0)
+	d.resetState()
+}
 
 // NextEvent returns the next scheduled event time (System.NextEvent).
 func (d *CountDynamic) NextEvent(t float64) float64 { return d.sys.NextEvent(t) }
@@ -320,6 +347,7 @@ func (d *CountDynamic) Fire(t float64, x []float64, rose []bool) []string {
 	for i := range x {
 		x[i] = math.Max(0, math.Round(d.y[i]*d.c.Omega[i]))
 	}
+	copy(d.vars[d.sys.nSpecies:d.sys.n], d.y[d.sys.nSpecies:]) // parameters events set
 	return names
 }
 

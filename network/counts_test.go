@@ -162,10 +162,19 @@ func TestCountEvents(t *testing.T) {
 	if names := d.Fire(2, x, nil); len(names) != 1 || x[0] != 17+30 {
 		t.Fatalf("fired %v, count %v; want 47 (3 amount units × 10 molecules)", names, x[0])
 	}
-	cs := make([]float64, 1)
-	d.Constants(cs)
-	if cs[0] != 5 {
-		t.Errorf("constant after the event %v, want 5", cs[0])
+	// k is now carried in the state (an event sets it), so the channel is
+	// a general one: its propensity is k·[A]·V·(molecules per amount) =
+	// 5 × 47 (first-order decay, common practice).
+	var got float64
+	if c.Channels[0].General {
+		got = d.Propensity(0, 2, x)
+	} else {
+		cs := make([]float64, 1)
+		d.Constants(cs)
+		got = cs[0] * x[0]
+	}
+	if math.Abs(got-5*47) > 1e-9 {
+		t.Errorf("propensity after the event %v, want %v", got, 5*47)
 	}
 }
 

@@ -32,6 +32,14 @@ func TestExportImport(t *testing.T) {
 	_, amt, _ := simRun(back, "--points", "5", "--t-end", "24", "--rtol", "1e-11", "--amounts")
 	h1, _, rows1 := parseTable(t, conc)
 	h2, _, rows2 := parseTable(t, amt)
+	// The headers name the same columns; the exported model's unit labels
+	// travel as notes (SBML unit definitions are not written), so the
+	// imported model's headers carry no units.
+	for _, h := range [][]string{h1, h2} {
+		for i, name := range h {
+			h[i], _, _ = strings.Cut(name, " (")
+		}
+	}
 	if strings.Join(h1, ",") != strings.Join(h2, ",") {
 		t.Fatalf("headers differ: %v and %v", h1, h2)
 	}
