@@ -75,7 +75,7 @@ const (
 // h^4 (order reduction, as in the Prothero–Robinson analysis of Hairer &
 // Wanner 1996, IV.15; section from memory), so the step count
 // rises faster than rtol^(−1/4). Both are properties of RODAS4 itself, not
-// of this transcription, which follows rodas.f statement by statement.
+// of this Go rendering, which follows rodas.f statement by statement.
 const (
 	rosSafe   = 0.9
 	rosFacMin = 0.2

@@ -66,9 +66,9 @@ type Result struct {
 var ErrNoStart = errors.New("fit: the residuals cannot be evaluated at the starting point")
 
 // Minimize minimizes ½‖r(x)‖² from x0 within the bounds, by the
-// Levenberg–Marquardt method in the trust-region form of Moré ("The
-// Levenberg–Marquardt algorithm: implementation and theory", Lecture
-// Notes in Mathematics 630, 1978; as in MINPACK's lmder): the step solves
+// Levenberg–Marquardt method in the trust-region form of Moré (in
+// Numerical Analysis, ed. Watson, Springer LNM 630, 1978; as in MINPACK's
+// lmder): the step solves
 // min ‖r + J p‖ subject to ‖D p‖ ≤ Δ, D the Jacobian's column norms (the
 // largest seen), Δ adapted from the ratio of actual to predicted
 // reduction. The trust-region subproblem is solved through the singular
