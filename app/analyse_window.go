@@ -35,31 +35,6 @@ func (w *mainWindow) analyseMenu() *fyne.Menu {
 		fyne.NewMenuItem("Global sensitivity…", w.openSensitivity))
 }
 
-// runAsync runs work on its own goroutine with the controls' progress bar
-// and Cancel, and gives its outcome to done on the UI goroutine.
-func runAsync[T any](c *runControls, work func(ctx context.Context, progress func(float64)) (T, error), done func(T, error)) {
-	if c.running {
-		return
-	}
-	ctx, stop := context.WithCancel(context.Background())
-	c.stop, c.running = stop, true
-	c.run.Disable()
-	c.cancel.Enable()
-	c.progress.SetValue(0)
-	c.status.SetText("Working…")
-	go func() {
-		res, err := work(ctx, func(f float64) { c.deliver(func() { c.progress.SetValue(f) }) })
-		stop()
-		c.deliver(func() {
-			c.running, c.stop = false, nil
-			c.run.Enable()
-			c.cancel.Disable()
-			c.progress.SetValue(1)
-			done(res, err)
-		})
-	}()
-}
-
 // textTable is a read-only table of strings with a header row.
 func textTable(rows [][]string) *widget.Table {
 	t := widget.NewTable(

@@ -184,27 +184,18 @@ func (s *stochasticWindow) start() {
 		s.ctl.status.SetText(countsError(err))
 		return
 	}
-	c := s.ctl
-	ctx, stop := context.WithCancel(context.Background())
-	c.stop, c.running = stop, true
-	c.run.Disable()
-	c.cancel.Enable()
-	c.progress.SetValue(0)
-	c.status.SetText("Running…")
-	go func() {
-		e, err := job.Run(ctx, func(f float64) { c.deliver(func() { c.progress.SetValue(f) }) })
+	type outcome struct {
+		e   *stochastic.Ensemble
+		ode [][]float64
+	}
+	runAsync(s.ctl, func(ctx context.Context, progress func(float64)) (outcome, error) {
+		e, err := job.Run(ctx, progress)
 		var ode [][]float64
 		if e != nil && ctx.Err() == nil {
 			ode, _ = job.ODE(ctx) // the figure leaves it out when it fails
 		}
-		stop()
-		c.deliver(func() {
-			c.running, c.stop = false, nil
-			c.run.Enable()
-			c.cancel.Disable()
-			s.finished(job, e, ode, err)
-		})
-	}()
+		return outcome{e, ode}, err
+	}, func(o outcome, err error) { s.finished(job, o.e, o.ode, err) })
 }
 
 // countsError writes err in a sentence; a problem of the conversion to

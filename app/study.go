@@ -347,10 +347,12 @@ func (c *runControls) stopRun() {
 	}
 }
 
-// begin starts work on its own goroutine: work gets a context and a
-// progress function safe to call from any goroutine; done is called on the
-// UI goroutine with work's outcome.
-func (c *runControls) begin(work func(ctx context.Context, progress func(float64)) (*explore.Result, error), done func(*explore.Result, error)) {
+// runAsync runs work on its own goroutine with the controls' progress bar
+// and Cancel: work gets a context and a progress function safe to call
+// from any goroutine; done is called on the UI goroutine with work's
+// outcome. Every study-like window (sweeps, populations, analyses,
+// stochastic ensembles) runs its work through it.
+func runAsync[T any](c *runControls, work func(ctx context.Context, progress func(float64)) (T, error), done func(T, error)) {
 	if c.running {
 		return
 	}
@@ -381,7 +383,7 @@ func (c *runControls) runJob(prepare func() (*study.Job, error), finished func(*
 		c.status.SetText(plainError(err))
 		return
 	}
-	c.begin(func(ctx context.Context, progress func(float64)) (*explore.Result, error) {
+	runAsync(c, func(ctx context.Context, progress func(float64)) (*explore.Result, error) {
 		return job.Run(ctx, 0, progress)
 	}, func(res *explore.Result, err error) { finished(job, res, err) })
 }
