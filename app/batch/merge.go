@@ -14,7 +14,6 @@ import (
 	"path/filepath"
 	"regexp"
 	"strconv"
-	"time"
 
 	"gonum.org/v1/plot"
 
@@ -152,11 +151,7 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 		}
 		// Parts are written at different times: compare all but that.
 		same := *p.Meta
-		if same.Provenance != nil {
-			pv := *same.Provenance
-			pv.Exported = time.Time{}
-			same.Provenance = &pv
-		}
+		same.Provenance = same.Provenance.WithoutTime()
 		mj, _ := json.Marshal(&same)
 		if meta == nil {
 			meta, metaJSON = p.Meta, mj

@@ -245,9 +245,7 @@ func mergeStochastic(files []string, out string, stdout io.Writer) error {
 			return badInput(fmt.Errorf("%s: format: expected %q with meta and ensemble, got %q", f, StochasticPartFormat, p.Format))
 		}
 		same := *p.Meta
-		pv := *same.Provenance
-		pv.Exported = time.Time{}
-		same.Provenance = &pv
+		same.Provenance = same.Provenance.WithoutTime()
 		mj, _ := json.Marshal(&same)
 		if meta == nil {
 			meta, metaJSON = p.Meta, mj

@@ -192,3 +192,15 @@ func ReadProvenance(data []byte) (*Provenance, error) {
 	}
 	return &p, nil
 }
+
+// WithoutTime returns a copy of p without its export time (nil for nil),
+// to compare the provenance of parts of one run written at different
+// times.
+func (p *Provenance) WithoutTime() *Provenance {
+	if p == nil {
+		return nil
+	}
+	c := *p
+	c.Exported = time.Time{}
+	return &c
+}
