@@ -80,6 +80,7 @@ type validator struct {
 	m        *Model
 	net      *Net
 	problems ErrorList
+	nerr     int // errors among problems
 	// kinds maps each declared name to where it is declared.
 	kinds     map[string]nameRef
 	speciesIx map[string]int
@@ -100,6 +101,9 @@ type nameRef struct {
 }
 
 func (v *validator) add(sev Severity, section string, index int, item, field string, col int, format string, args ...any) {
+	if sev == Error {
+		v.nerr++
+	}
 	v.problems.Add(Pos{Section: section, Index: index, Item: item, Field: field, Col: col}, sev, format, args...)
 }
 
@@ -259,7 +263,7 @@ func (v *validator) reaction(i int) {
 	r := &v.m.Reactions[i]
 	cr := CheckedReaction{Index: i, Name: r.Name, Rate: r.Rate}
 	defer func() { v.net.Reactions = append(v.net.Reactions, cr) }()
-	nerr := len(v.problems.Errors())
+	nerr := v.nerr
 	errf := func(field string, col int, format string, args ...any) {
 		v.add(Error, "reactions", i, r.Name, field, col, format, args...)
 	}
@@ -360,7 +364,7 @@ func (v *validator) reaction(i int) {
 	if !fields["expression"] && r.Rate.Expression != "" {
 		errf("rate.expression", 0, "%s does not use an expression; remove it or choose the expression law", law.Name())
 	}
-	if len(v.problems.Errors()) > nerr {
+	if v.nerr > nerr {
 		return
 	}
 	if tree == nil {
