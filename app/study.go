@@ -218,19 +218,6 @@ func (e *readoutEditor) specs() ([]study.ReadoutSpec, error) {
 	return out, nil
 }
 
-// readoutLabel describes readout r of a job in words, as figures title it.
-func readoutLabel(job *study.Job, r int) string { return job.Figures().ReadoutLabel(r) }
-
-// kindLabelOf returns the plain-words label of a readout kind.
-func kindLabelOf(k explore.Kind) (string, bool) {
-	for _, rk := range readoutKinds {
-		if rk.kind == k {
-			return rk.label, true
-		}
-	}
-	return string(k), false
-}
-
 // number reads a finite number typed into the named field.
 func number(s, name string) (float64, error) {
 	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)

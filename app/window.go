@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"path/filepath"
-	"sort"
 	"strings"
 	"time"
 
@@ -533,16 +532,6 @@ func (w *mainWindow) quit() {
 
 func (w *mainWindow) showError(err error) {
 	dialog.ShowError(err, w.win)
-}
-
-// sortedKeys returns the keys of m, sorted.
-func sortedKeys(m map[string]bool) []string {
-	var out []string
-	for k := range m {
-		out = append(out, k)
-	}
-	sort.Strings(out)
-	return out
 }
 
 // modelBytes returns the model file text of m.

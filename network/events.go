@@ -89,16 +89,6 @@ func (b *builder) compileEvents() error {
 	return nil
 }
 
-// EventNames returns the names of the model's events that compiled, in
-// model order.
-func (s *System) EventNames() []string {
-	names := make([]string, len(s.events))
-	for i := range s.events {
-		names[i] = s.events[i].name
-	}
-	return names
-}
-
 // ResetEvents makes every event pending again, stops every infusion and
 // gives parameters changed by events their values from before the run
 // (see solve.EventSystem).

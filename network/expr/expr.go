@@ -241,28 +241,6 @@ func isNil(n Node) bool {
 	return false
 }
 
-// dependsOn reports whether the variable name occurs in n.
-func dependsOn(n Node, name string) bool {
-	switch n := n.(type) {
-	case *Variable:
-		return n != nil && n.Name == name
-	case *Unary:
-		return n != nil && dependsOn(n.X, name)
-	case *Binary:
-		return n != nil && (dependsOn(n.L, name) || dependsOn(n.R, name))
-	case *Call:
-		if n == nil {
-			return false
-		}
-		for _, a := range n.Args {
-			if dependsOn(a, name) {
-				return true
-			}
-		}
-	}
-	return false
-}
-
 // sameNumber reports whether a and b are the same float64 value: equal, with
 // the same sign (so 0 and -0 differ), or both NaN.
 func sameNumber(a, b float64) bool {

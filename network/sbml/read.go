@@ -599,16 +599,3 @@ func (im *importer) read(model *node) {
 		}
 	}
 }
-
-// changer returns what changes s during a run, and a word for it.
-func changer(s *sym) (*node, string) {
-	switch {
-	case s.rr != nil:
-		return s.rr, "a rate rule"
-	case s.ar != nil:
-		return s.ar, "an assignment rule"
-	case s.eventTarget != nil:
-		return s.eventTarget, "an event"
-	}
-	return nil, ""
-}
