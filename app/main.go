@@ -30,7 +30,7 @@ const appID = "org.kinetarium.desktop"
 
 func main() {
 	model := flag.String("model", "", "model `file` to open, or an SBML file (.xml, .sbml) to import (default: the default example)")
-	tab := flag.String("tab", "", "editor `tab` to show first: Reactions, Species, Parameters, Compartments or \"Run settings\"")
+	tab := flag.String("tab", "", "editor `tab` to show first: Reactions, Species, Parameters, Assignments, Events, Compartments or \"Run settings\"")
 	shot := flag.String("screenshot", "", "save a picture of the window to `file` (PNG) once the plot is drawn, then exit")
 	view := flag.String("view", "", "`view` to show first: \"time course\" (default) or diagram")
 	flag.Parse()
