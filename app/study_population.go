@@ -343,7 +343,10 @@ func (p *populationWindow) readoutSummary() string {
 	if r < 0 {
 		return ""
 	}
-	vals, undefined := study.ReadoutValues(p.res, r)
+	vals, undefined, err := study.ReadoutValues(p.res, r)
+	if err != nil {
+		return plainError(err)
+	}
 	if len(vals) == 0 {
 		return fmt.Sprintf("No sample has a value (%d undefined).", undefined)
 	}
@@ -382,7 +385,11 @@ func (p *populationWindow) saveSamples(path string) error {
 	if p.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return saveTable(path, study.RunRows(p.res), "population", p.prep)
+	rows, err := study.RunRows(p.res)
+	if err != nil {
+		return err
+	}
+	return saveTable(path, rows, "population", p.prep)
 }
 
 // saveBands writes the percentile bands of every species (the batch

@@ -316,7 +316,11 @@ func (s *sweepWindow) saveRuns(path string) error {
 	if s.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return saveTable(path, study.RunRows(s.res), "sweep", s.prep)
+	rows, err := study.RunRows(s.res)
+	if err != nil {
+		return err
+	}
+	return saveTable(path, rows, "sweep", s.prep)
 }
 
 // fileSafe makes s usable in a file name.
@@ -403,7 +407,11 @@ func (f *failureList) save(path string) error {
 	if len(f.res.Failures) == 0 {
 		return fmt.Errorf("no %s failed; there is nothing to save", f.what)
 	}
-	return saveTable(path, study.FailureRows(f.res), f.kind, f.prep)
+	rows, err := study.FailureRows(f.res)
+	if err != nil {
+		return err
+	}
+	return saveTable(path, rows, f.kind, f.prep)
 }
 
 // exportAs asks for a file in win and saves the failed points there;

@@ -62,16 +62,8 @@ func finish(meta *runMeta, res *explore.Result, c *cmdFlags, stdout io.Writer) e
 		return fmt.Errorf("making the output folder: %w", err)
 	}
 	if c.shard.N > 1 {
-		var buf bytes.Buffer
-		if err := res.WriteJSON(&buf); err != nil {
-			return err
-		}
-		data, err := json.Marshal(partFile{Format: PartFormat, Meta: meta, Result: buf.Bytes()})
-		if err != nil {
-			return err
-		}
 		path := filepath.Join(c.out, fmt.Sprintf("part-%d-of-%d.json", c.shard.I, c.shard.N))
-		if err := atomicfile.Write(path, append(data, '\n')); err != nil {
+		if err := writePart(path, meta, res); err != nil {
 			return err
 		}
 		fmt.Fprintf(stdout, "%s shard %v: %d runs, %d failed; wrote %s (combine the shards with merge)\n",
@@ -79,6 +71,57 @@ func finish(meta *runMeta, res *explore.Result, c *cmdFlags, stdout io.Writer) e
 		return nil
 	}
 	return writeOutputs(meta, res, c.out, stdout)
+}
+
+// writePart writes a partial-result file, the points one at a time (from
+// the spill file when res has one), atomically.
+func writePart(path string, meta *runMeta, res *explore.Result) error {
+	mj, err := json.Marshal(meta)
+	if err != nil {
+		return err
+	}
+	f, err := atomicfile.Create(path)
+	if err != nil {
+		return err
+	}
+	defer f.Abort()
+	// The layout of json.Marshal(partFile{…}) with the result inside.
+	fmt.Fprintf(f, `{"format":%q,"meta":%s,"result":`, PartFormat, mj)
+	nl := &dropNewline{w: f}
+	if err := res.WriteJSON(nl); err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	if _, err := f.Write([]byte("}\n")); err != nil {
+		return err
+	}
+	return f.Commit()
+}
+
+// dropNewline passes writes on but holds back a final newline, so that a
+// JSON value written with its newline can be embedded in another.
+type dropNewline struct {
+	w       io.Writer
+	pending bool
+}
+
+func (d *dropNewline) Write(p []byte) (int, error) {
+	if len(p) == 0 {
+		return 0, nil
+	}
+	if d.pending {
+		if _, err := d.w.Write([]byte{'\n'}); err != nil {
+			return 0, err
+		}
+		d.pending = false
+	}
+	q := p
+	if q[len(q)-1] == '\n' {
+		q, d.pending = q[:len(q)-1], true
+	}
+	if _, err := d.w.Write(q); err != nil {
+		return 0, err
+	}
+	return len(p), nil
 }
 
 // runMerge is the merge subcommand.
@@ -117,26 +160,25 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	if isStochasticPart(files[0]) {
 		return mergeStochastic(files, *out, stdout)
 	}
+	if err := os.MkdirAll(*out, 0o755); err != nil {
+		return fmt.Errorf("making the output folder: %w", err)
+	}
+	// The parts' points go to a spill file as they are read, so that
+	// memory does not grow with the number of points.
+	sp, err := explore.NewSpill(*out)
+	if err != nil {
+		return err
+	}
+	defer sp.Close()
 	var (
 		meta     *runMeta
 		metaJSON []byte
 		parts    []*explore.Result
 	)
 	for _, f := range files {
-		data, err := readInput(f, maxPartSize)
+		p, r, err := readPart(f, sp)
 		if err != nil {
-			return badInput(fmt.Errorf("reading a part: %w", err))
-		}
-		if !json.Valid(data) {
-			var v any
-			return badInput(jsonError(f, data, json.Unmarshal(data, &v)))
-		}
-		var p partFile
-		if err := strict(data, &p, ""); err != nil {
-			return badInput(fmt.Errorf("%s: %w", f, err))
-		}
-		if p.Format != PartFormat || p.Meta == nil {
-			return badInput(fmt.Errorf("%s: format: expected %q with meta and result, got %q", f, PartFormat, p.Format))
+			return badInput(err)
 		}
 		if p.Meta.Fingerprint == nil {
 			return badInput(fmt.Errorf("%s: has no fingerprint of its spec and model (written by an earlier version); run that shard again", f))
@@ -158,18 +200,11 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 		} else if !bytes.Equal(mj, metaJSON) {
 			return badInput(fmt.Errorf("%s: comes from a different run than %s (spec, model or settings differ)", f, files[0]))
 		}
-		r, err := explore.ReadJSON(bytes.NewReader(p.Result))
-		if err != nil {
-			return badInput(fmt.Errorf("%s: %w", f, err))
-		}
 		parts = append(parts, r)
 	}
 	res, err := explore.Merge(parts...)
 	if err != nil {
 		return badInput(err)
-	}
-	if err := os.MkdirAll(*out, 0o755); err != nil {
-		return fmt.Errorf("making the output folder: %w", err)
 	}
 	return writeOutputs(meta, res, *out, stdout)
 }
@@ -188,6 +223,28 @@ type outputs struct {
 func (o *outputs) csv(name string, rows [][]string) error {
 	path := filepath.Join(o.dir, name)
 	if err := atomicfile.WriteCSV(path, rows); err != nil {
+		return err
+	}
+	if err := run.SaveProvenance(path, o.prov); err != nil {
+		return err
+	}
+	o.written = append(o.written, path, run.ProvenancePath(path))
+	return nil
+}
+
+// csvEach writes the rows that each gives for res to dir/name, one at a
+// time, atomically, with its provenance.
+func (o *outputs) csvEach(name string, res *explore.Result, each func(*explore.Result, func([]string) error) error) error {
+	path := filepath.Join(o.dir, name)
+	w, err := atomicfile.CreateCSV(path)
+	if err != nil {
+		return err
+	}
+	defer w.Abort()
+	if err := each(res, w.Row); err != nil {
+		return err
+	}
+	if err := w.Commit(); err != nil {
 		return err
 	}
 	if err := run.SaveProvenance(path, o.prov); err != nil {
@@ -221,15 +278,16 @@ func writeOutputs(meta *runMeta, res *explore.Result, dir string, stdout io.Writ
 	prov := *meta.Provenance
 	prov.Exported = run.ExportTime()
 	out := &outputs{dir: dir, prov: &prov, title: meta.Title}
-	// Per-point knob values and readouts.
+	// Per-point knob values and readouts, and the failures, a row at a
+	// time: a population's come from its spill file.
 	name := "samples.csv"
 	if meta.Kind == "sweep" {
 		name = "runs.csv"
 	}
-	if err := out.csv(name, study.RunRows(res)); err != nil {
+	if err := out.csvEach(name, res, study.EachRunRow); err != nil {
 		return err
 	}
-	if err := out.csv("failures.csv", study.FailureRows(res)); err != nil {
+	if err := out.csvEach("failures.csv", res, study.EachFailureRow); err != nil {
 		return err
 	}
 	var err error
@@ -246,9 +304,13 @@ func writeOutputs(meta *runMeta, res *explore.Result, dir string, stdout io.Writ
 		partial = fmt.Sprintf(" of %d (partial: true)", res.Size)
 	}
 	fmt.Fprintf(stdout, "%s: %d runs%s, %d failed; wrote %d files in %s\n", meta.Kind, res.Points, partial, res.Failed, len(out.written), dir)
-	for _, f := range res.Failures {
+	first, err := res.FirstFailures(11)
+	if err != nil {
+		return err
+	}
+	for _, f := range first {
 		fmt.Fprintf(stdout, "  failed %d %v: %s\n", f.Index, f.X, f.Err)
-		if f.Index >= 10 && len(res.Failures) > 10 {
+		if f.Index >= 10 && res.Failed > 10 {
 			fmt.Fprintf(stdout, "  … see failures.csv\n")
 			break
 		}
@@ -332,7 +394,10 @@ func writePopulation(meta *runMeta, res *explore.Result, out *outputs) error {
 	// are counted apart.
 	rows := [][]string{{"readout", "species", "n", "undefined", "p5", "p25", "p50", "p75", "p95"}}
 	for r, name := range res.Readouts {
-		vals, undefined := study.ReadoutValues(res, r)
+		vals, undefined, err := study.ReadoutValues(res, r)
+		if err != nil {
+			return err
+		}
 		row := []string{name, fig.ReadoutSpecies[r], strconv.Itoa(len(vals)), strconv.Itoa(undefined)}
 		for _, p := range study.Percentiles {
 			row = append(row, study.FormatNumber(study.EmpiricalQuantile(vals, p)))

@@ -12,6 +12,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"path/filepath"
 	"slices"
 	"strconv"
@@ -387,6 +388,19 @@ func (j *job) run(c *cmdFlags, stdout, stderr io.Writer) error {
 	s.Progress, s.ProgressEvery = progressPrinter(j.meta.Kind, stderr, c.quiet)
 	ctx, stop := signalContext()
 	defer stop()
+	if j.meta.Kind == "population" {
+		// Samples go to a spill file in the output folder as they finish,
+		// so that memory does not grow with the population.
+		if err := os.MkdirAll(c.out, 0o755); err != nil {
+			return fmt.Errorf("making the output folder: %w", err)
+		}
+		sp, err := explore.NewSpill(c.out)
+		if err != nil {
+			return err
+		}
+		defer sp.Close()
+		s.Spill = sp
+	}
 	res, err := explore.Run(ctx, j.Design, j.ODE.NewSimulator, s)
 	if err != nil && (ctx.Err() == nil || res == nil) {
 		return internal(err)
@@ -407,7 +421,11 @@ func (j *job) run(c *cmdFlags, stdout, stderr io.Writer) error {
 		return err
 	}
 	if res.Points > 0 && res.Failed == res.Points {
-		return fmt.Errorf("all %d runs failed; the first: %s", res.Failed, res.Failures[0].Err)
+		first, err := res.FirstFailures(1)
+		if err != nil || len(first) == 0 {
+			return fmt.Errorf("all %d runs failed", res.Failed)
+		}
+		return fmt.Errorf("all %d runs failed; the first: %s", res.Failed, first[0].Err)
 	}
 	return nil
 }

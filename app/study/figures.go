@@ -181,6 +181,9 @@ func (f Figures) Histogram(res *explore.Result, r int) (*plot.Plot, error) {
 	if r < 0 || r >= len(res.Readouts) || r >= len(f.Readouts) {
 		return nil, errors.New("no readout chosen; add one under Readouts and run again")
 	}
-	vals, _ := ReadoutValues(res, r)
+	vals, _, err := ReadoutValues(res, r)
+	if err != nil {
+		return nil, err
+	}
 	return plotting.Histogram(vals, 0, plotting.Options{Title: f.ReadoutLabel(r), XLabel: f.readoutWords(r), XUnit: f.readoutUnit(r), YLabel: "samples"})
 }

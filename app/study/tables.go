@@ -18,36 +18,63 @@ func FormatNumber(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64)
 // RunRows lays out every successful point of res, one row each: the point
 // number, the knob values and the readouts, under a header row "index",
 // knob names, readout names. It is the layout of the batch command's
-// runs.csv and samples.csv.
-func RunRows(res *explore.Result) [][]string {
+// runs.csv and samples.csv; EachRunRow gives the rows one at a time.
+func RunRows(res *explore.Result) ([][]string, error) {
+	return collect(res, EachRunRow)
+}
+
+// EachRunRow calls row with each row of RunRows' layout in turn, the
+// header first, reading the points from res's spill file when it has one:
+// memory does not grow with the number of points. The row passed is
+// reused for the next call.
+func EachRunRow(res *explore.Result, row func([]string) error) error {
 	head := append([]string{"index"}, res.Knobs...)
-	head = append(head, res.Readouts...)
-	rows := [][]string{head}
-	for _, s := range res.Samples {
-		row := []string{strconv.Itoa(s.Index)}
+	if err := row(append(head, res.Readouts...)); err != nil {
+		return err
+	}
+	var buf []string
+	return res.EachSample(func(s *explore.Sample) error {
+		buf = append(buf[:0], strconv.Itoa(s.Index))
 		for _, v := range s.X {
-			row = append(row, FormatNumber(v))
+			buf = append(buf, FormatNumber(v))
 		}
 		for _, v := range s.Readouts {
-			row = append(row, FormatNumber(v))
+			buf = append(buf, FormatNumber(v))
 		}
-		rows = append(rows, row)
-	}
-	return rows
+		return row(buf)
+	})
 }
 
 // FailureRows lays out the failed points of res: point number, knob values
 // and the reason, under a header row.
-func FailureRows(res *explore.Result) [][]string {
-	rows := [][]string{append(append([]string{"index"}, res.Knobs...), "error")}
-	for _, f := range res.Failures {
-		row := []string{strconv.Itoa(f.Index)}
-		for _, v := range f.X {
-			row = append(row, FormatNumber(v))
-		}
-		rows = append(rows, append(row, f.Err))
+func FailureRows(res *explore.Result) ([][]string, error) {
+	return collect(res, EachFailureRow)
+}
+
+// EachFailureRow calls row with each row of FailureRows' layout in turn,
+// as EachRunRow does.
+func EachFailureRow(res *explore.Result, row func([]string) error) error {
+	if err := row(append(append([]string{"index"}, res.Knobs...), "error")); err != nil {
+		return err
 	}
-	return rows
+	var buf []string
+	return res.EachFailure(func(f *explore.Failure) error {
+		buf = append(buf[:0], strconv.Itoa(f.Index))
+		for _, v := range f.X {
+			buf = append(buf, FormatNumber(v))
+		}
+		return row(append(buf, f.Err))
+	})
+}
+
+// collect gathers the rows that each gives.
+func collect(res *explore.Result, each func(*explore.Result, func([]string) error) error) ([][]string, error) {
+	var rows [][]string
+	err := each(res, func(r []string) error {
+		rows = append(rows, append([]string(nil), r...))
+		return nil
+	})
+	return rows, err
 }
 
 // BandRows lays out the bands b of the named species (one name per band
@@ -86,17 +113,20 @@ func BandCurves(b *explore.Bands, c int) [][]float64 {
 }
 
 // ReadoutValues returns the defined (not NaN) values of readout r over the
-// samples of res, sorted, and the number of undefined ones.
-func ReadoutValues(res *explore.Result, r int) (vals []float64, undefined int) {
-	for _, s := range res.Samples {
+// samples of res, sorted, and the number of undefined ones. It keeps one
+// float64 per sample (read from res's spill file when it has one), which
+// exact percentiles need.
+func ReadoutValues(res *explore.Result, r int) (vals []float64, undefined int, err error) {
+	err = res.EachSample(func(s *explore.Sample) error {
 		if v := s.Readouts[r]; math.IsNaN(v) {
 			undefined++
 		} else {
 			vals = append(vals, v)
 		}
-	}
+		return nil
+	})
 	slices.Sort(vals)
-	return vals, undefined
+	return vals, undefined, err
 }
 
 // EmpiricalQuantile is the k-th smallest of sorted values,

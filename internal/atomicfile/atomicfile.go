@@ -7,6 +7,7 @@
 package atomicfile
 
 import (
+	"bufio"
 	"bytes"
 	"encoding/csv"
 	"errors"
@@ -142,6 +143,131 @@ func write(path string, data []byte) error {
 	}
 	return syncDir(filepath.Dir(path))
 }
+
+// Pending is a file being written atomically a piece at a time, for
+// outputs too large to hold in memory: Create makes it, Write adds to it,
+// Commit puts it in place as Write does, and Abort drops it. Until Commit
+// the destination is untouched.
+type Pending struct {
+	path, target string
+	tmp          *os.File
+	w            *bufio.Writer
+	err          error
+}
+
+// Create starts writing path atomically (see Write: symbolic links are
+// followed and kept, stale temporaries removed).
+func Create(path string) (*Pending, error) {
+	target, err := resolveLinks(path)
+	if err != nil {
+		return nil, fmt.Errorf("writing %s: %w", path, err)
+	}
+	removeStale(target)
+	tmp, err := os.CreateTemp(filepath.Dir(target), tempPattern(target))
+	if err != nil {
+		return nil, fmt.Errorf("writing %s: %w", path, err)
+	}
+	return &Pending{path: path, target: target, tmp: tmp, w: bufio.NewWriterSize(tmp, 64<<10)}, nil
+}
+
+// Write adds p to the file. After an error every later call fails.
+func (f *Pending) Write(p []byte) (int, error) {
+	if f.err != nil {
+		return 0, f.err
+	}
+	n, err := f.w.Write(p)
+	if err != nil {
+		f.err = fmt.Errorf("writing %s: %w", f.path, err)
+	}
+	return n, f.err
+}
+
+// Commit syncs the file and renames it over the destination, then syncs
+// the folder. On failure the destination is untouched and the temporary
+// file is removed.
+func (f *Pending) Commit() error {
+	if f.tmp == nil {
+		return fmt.Errorf("writing %s: already finished", f.path)
+	}
+	name := f.tmp.Name()
+	err := f.err
+	if err == nil {
+		err = f.w.Flush()
+	}
+	if err == nil {
+		err = f.tmp.Sync()
+	}
+	if cerr := f.tmp.Close(); err == nil {
+		err = cerr
+	}
+	f.tmp = nil
+	if err == nil {
+		mode := os.FileMode(0o644)
+		if fi, serr := os.Stat(f.target); serr == nil {
+			mode = fi.Mode().Perm()
+		}
+		err = os.Chmod(name, mode)
+	}
+	if err == nil {
+		err = os.Rename(name, f.target)
+	}
+	if err != nil {
+		os.Remove(name)
+		return fmt.Errorf("writing %s: %w", f.path, err)
+	}
+	if err := syncDir(filepath.Dir(f.target)); err != nil {
+		return fmt.Errorf("writing %s: %w", f.path, err)
+	}
+	return nil
+}
+
+// Abort drops the file, leaving the destination untouched. It does
+// nothing after Commit, so that it can be deferred.
+func (f *Pending) Abort() {
+	if f.tmp == nil {
+		return
+	}
+	name := f.tmp.Name()
+	f.tmp.Close()
+	os.Remove(name)
+	f.tmp = nil
+}
+
+// CSVWriter writes a table row by row in WriteCSV's layout, atomically.
+type CSVWriter struct {
+	f  *Pending
+	cw *csv.Writer
+}
+
+// CreateCSV starts writing a table to path; Commit puts it in place.
+func CreateCSV(path string) (*CSVWriter, error) {
+	f, err := Create(path)
+	if err != nil {
+		return nil, err
+	}
+	return &CSVWriter{f: f, cw: csv.NewWriter(f)}, nil
+}
+
+// Row writes one row.
+func (c *CSVWriter) Row(row []string) error {
+	if err := c.cw.Write(row); err != nil {
+		return fmt.Errorf("writing %s: %w", c.f.path, err)
+	}
+	return nil
+}
+
+// Commit finishes the table and puts it in place (see Pending.Commit).
+func (c *CSVWriter) Commit() error {
+	c.cw.Flush()
+	if err := c.cw.Error(); err != nil {
+		c.f.Abort()
+		return fmt.Errorf("writing %s: %w", c.f.path, err)
+	}
+	return c.f.Commit()
+}
+
+// Abort drops the table (see Pending.Abort).
+func (c *CSVWriter) Abort() { c.f.Abort() }
 
 // WriteCSV writes rows to path atomically as CSV (RFC 4180, "\n" line
 // ends), the one layout of every table the program writes.

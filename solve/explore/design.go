@@ -255,14 +255,3 @@ func (s Shard) validate() error {
 
 // MaxShards is the largest number of shards of a run.
 const MaxShards = 100_000
-
-// indices lists the points of a design of size n that belong to s.
-func (s Shard) indices(n int) []int {
-	var idx []int
-	for i := range n {
-		if s.Has(i) {
-			idx = append(idx, i)
-		}
-	}
-	return idx
-}

@@ -34,6 +34,12 @@ type Settings struct {
 	// KeepTrajectories keeps a copy of every trajectory in the Result (for
 	// sweeps; populations keep only readouts and bands).
 	KeepTrajectories bool
+	// Spill, when not nil, receives every finished point, in order of
+	// index, instead of the Result's Samples and Failures, which stay
+	// empty: read the points back with EachSample and EachFailure. Memory
+	// then does not grow with the number of points. It cannot be combined
+	// with KeepTrajectories.
+	Spill *Spill
 
 	// Workers is the number of goroutines; default runtime.GOMAXPROCS(0).
 	// Results do not depend on it.
@@ -76,10 +82,72 @@ type Result struct {
 	Shard    Shard    // the part of the design covered; zero value: all
 	Knobs    []string // knob names
 	Readouts []string // readout names
-	Samples  []Sample // successful points, by increasing Index
+	Samples  []Sample // successful points, by increasing Index; empty when spilled
 	Failures []Failure
 	Bands    *Bands // nil when not requested
 	Stats
+
+	// sections hold the points instead of Samples and Failures when the
+	// result was spilled (Settings.Spill, ReadPart).
+	sections []*section
+}
+
+// Spilled reports whether the points of r are held in a spill file (read
+// them with EachSample and EachFailure) rather than in Samples and
+// Failures.
+func (r *Result) Spilled() bool { return len(r.sections) > 0 }
+
+// EachSample calls f for every successful point of r in increasing order
+// of index, from memory or from the spill file, and stops at f's first
+// error. The Sample passed may be reused for the next call: copy what is
+// kept.
+func (r *Result) EachSample(f func(*Sample) error) error {
+	if r.Spilled() {
+		return eachRecord(r.sections, f, nil)
+	}
+	for i := range r.Samples {
+		if err := f(&r.Samples[i]); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// EachFailure calls f for every failed point of r in increasing order of
+// index, as EachSample does for samples.
+func (r *Result) EachFailure(f func(*Failure) error) error {
+	if r.Spilled() {
+		return eachRecord(r.sections, nil, f)
+	}
+	for i := range r.Failures {
+		if err := f(&r.Failures[i]); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// errStop ends an iteration early.
+var errStop = errors.New("stop")
+
+// FirstFailures returns copies of up to n failures of r with the lowest
+// indices.
+func (r *Result) FirstFailures(n int) ([]Failure, error) {
+	var out []Failure
+	if n <= 0 {
+		return nil, nil
+	}
+	err := r.EachFailure(func(f *Failure) error {
+		out = append(out, Failure{Index: f.Index, X: append([]float64(nil), f.X...), Err: f.Err})
+		if len(out) == n {
+			return errStop
+		}
+		return nil
+	})
+	if err != nil && err != errStop {
+		return out, err
+	}
+	return out, nil
 }
 
 // Values returns readout r for every design point, indexed by point number,
@@ -90,9 +158,12 @@ func (r *Result) Values(readout int) []float64 {
 	for i := range v {
 		v[i] = math.NaN()
 	}
-	for _, s := range r.Samples {
+	// Errors come only from a spill file that cannot be read; the points
+	// not read stay NaN.
+	_ = r.EachSample(func(s *Sample) error {
 		v[s.Index] = s.Readouts[readout]
-	}
+		return nil
+	})
 	return v
 }
 
@@ -127,7 +198,18 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 			return nil, fmt.Errorf("explore: %w", err)
 		}
 	}
-	idx := s.Shard.indices(d.Len())
+	if s.Spill != nil && s.KeepTrajectories {
+		return nil, errors.New("explore: trajectories cannot be kept in a spill file")
+	}
+	sh := s.Shard
+	if sh.N <= 1 {
+		sh = Shard{I: 0, N: 1}
+	}
+	// Point k of the shard is design point sh.I + k·sh.N.
+	npts := 0
+	if sh.I < d.Len() {
+		npts = (d.Len()-sh.I-1)/sh.N + 1
+	}
 	res := &Result{
 		Size:  d.Len(),
 		Shard: s.Shard,
@@ -141,30 +223,80 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	workers = max(1, min(workers, len(idx)))
+	workers = max(1, min(workers, npts))
 	every := s.ProgressEvery
 	if every <= 0 {
 		every = 100 * time.Millisecond
 	}
 
-	// outcomes[k] is filled by whichever worker runs point idx[k].
+	// Finished points are delivered in order of k: to the spill, or to
+	// the Result. Those that finish before an earlier one wait in a ring
+	// of window slots; a worker does not start point k before point
+	// k − window has been delivered, so the ring never overflows and
+	// memory does not grow with the number of points.
+	var sec *section
+	if s.Spill != nil {
+		var err error
+		if sec, err = s.Spill.begin(); err != nil {
+			return nil, err
+		}
+		defer s.Spill.end()
+		res.sections = []*section{sec}
+	}
 	type outcome struct {
 		sample  *Sample
 		failure *Failure
 	}
-	outcomes := make([]outcome, len(idx))
+	window := max(64, 16*workers)
+	ring := make([]outcome, window)
 	// runCtx also stops the other workers when one cannot make a simulator.
 	runCtx, cancel := context.WithCancel(ctx)
 	defer cancel()
 	var (
-		next     atomic.Int64
-		done     atomic.Int64
-		mu       sync.Mutex // guards s.Bands and progress
-		lastProg time.Time
-		wg       sync.WaitGroup
-		setupErr error
-		errOnce  sync.Once
+		next      atomic.Int64
+		done      atomic.Int64
+		mu        sync.Mutex // guards s.Bands, progress, the ring and delivery
+		ready     = sync.NewCond(&mu)
+		delivered int // points k < delivered have been delivered or skipped
+		lastProg  time.Time
+		wg        sync.WaitGroup
+		setupErr  error
+		errOnce   sync.Once
 	)
+	stopWaiting := context.AfterFunc(runCtx, func() {
+		mu.Lock()
+		ready.Broadcast()
+		mu.Unlock()
+	})
+	defer stopWaiting()
+	fail := func(err error) {
+		errOnce.Do(func() { setupErr = err })
+		cancel()
+	}
+	// deliver hands point k's outcome on; mu is held.
+	deliver := func(o outcome) {
+		var err error
+		switch {
+		case o.sample != nil && sec != nil:
+			err = s.Spill.addSample(o.sample)
+		case o.failure != nil && sec != nil:
+			err = s.Spill.addFailure(o.failure)
+		case o.sample != nil:
+			res.Samples = append(res.Samples, *o.sample)
+		case o.failure != nil:
+			res.Failures = append(res.Failures, *o.failure)
+		default:
+			return
+		}
+		if err != nil {
+			fail(err)
+			return
+		}
+		if o.failure != nil {
+			res.Failed++
+		}
+		res.Points++
+	}
 	progress := func(final bool) {
 		if s.Progress == nil {
 			return
@@ -174,10 +306,10 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 		now := time.Now()
 		if final || now.Sub(lastProg) >= every {
 			lastProg = now
-			if len(idx) == 0 {
+			if npts == 0 {
 				s.Progress(1)
 			} else {
-				s.Progress(float64(done.Load()) / float64(len(idx)))
+				s.Progress(float64(done.Load()) / float64(npts))
 			}
 		}
 	}
@@ -191,23 +323,29 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 				// A panic is a bug, not a failed point: stop the run and
 				// report it with the point that caused it.
 				if r := recover(); r != nil {
-					errOnce.Do(func() { setupErr = &PanicError{Value: r, Point: point, Stack: debug.Stack()} })
-					cancel()
+					fail(&PanicError{Value: r, Point: point, Stack: debug.Stack()})
 				}
 			}()
 			sim, err := newSim()
 			if err != nil {
-				errOnce.Do(func() { setupErr = fmt.Errorf("explore: making a simulator: %w", err) })
-				cancel()
+				fail(fmt.Errorf("explore: making a simulator: %w", err))
 				return
 			}
 			x := make([]float64, nk)
 			for runCtx.Err() == nil {
 				k := int(next.Add(1) - 1)
-				if k >= len(idx) {
+				if k >= npts {
 					return
 				}
-				i := idx[k]
+				mu.Lock()
+				for k >= delivered+window && runCtx.Err() == nil {
+					ready.Wait()
+				}
+				mu.Unlock()
+				if runCtx.Err() != nil {
+					return
+				}
+				i := sh.I + k*sh.N
 				point = i
 				d.Point(i, x)
 				tr, err := sim.Simulate(runCtx, x)
@@ -229,18 +367,31 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 					}
 				}
 				xc := append([]float64(nil), x...)
+				var o outcome
 				if err != nil {
 					if runCtx.Err() != nil && errors.Is(err, runCtx.Err()) {
 						return // cancelled: the point was not done
 					}
-					outcomes[k].failure = &Failure{Index: i, X: xc, Err: err.Error()}
+					o.failure = &Failure{Index: i, X: xc, Err: err.Error()}
 				} else {
-					smp := &Sample{Index: i, X: xc, Readouts: vals}
+					o.sample = &Sample{Index: i, X: xc, Readouts: vals}
 					if s.KeepTrajectories {
-						smp.Traj = copyTrajectory(tr)
+						o.sample.Traj = copyTrajectory(tr)
 					}
-					outcomes[k].sample = smp
 				}
+				mu.Lock()
+				ring[k%window] = o
+				for delivered < npts {
+					slot := &ring[delivered%window]
+					if slot.sample == nil && slot.failure == nil {
+						break
+					}
+					deliver(*slot)
+					*slot = outcome{}
+					delivered++
+				}
+				ready.Broadcast()
+				mu.Unlock()
 				done.Add(1)
 				progress(false)
 			}
@@ -250,20 +401,18 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 	if setupErr != nil {
 		return nil, setupErr
 	}
-	for _, o := range outcomes {
-		switch {
-		case o.sample != nil:
-			res.Samples = append(res.Samples, *o.sample)
-		case o.failure != nil:
-			res.Failures = append(res.Failures, *o.failure)
-		}
+	// After a cancellation, points after one that was not done may be
+	// waiting in the ring: deliver them in order.
+	for k := delivered; k < min(npts, delivered+window); k++ {
+		deliver(ring[k%window])
 	}
-	res.Points = len(res.Samples) + len(res.Failures)
-	res.Failed = len(res.Failures)
+	if setupErr != nil {
+		return nil, setupErr
+	}
 	res.Wall = time.Since(start)
 	progress(true)
 	if err := ctx.Err(); err != nil {
-		return res, fmt.Errorf("explore: stopped after %d of %d points: %w", res.Points, len(idx), err)
+		return res, fmt.Errorf("explore: stopped after %d of %d points: %w", res.Points, npts, err)
 	}
 	return res, nil
 }
