@@ -183,3 +183,67 @@ func TestText(t *testing.T) {
 		}
 	}
 }
+
+// A file written a piece at a time is not in place until Commit: readers
+// see the old content meanwhile, Abort leaves the old content and no
+// temporary file, and a symbolic link is kept.
+func TestCreateCommitAbort(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "samples.csv")
+	if err := Write(path, []byte("old\n")); err != nil {
+		t.Fatal(err)
+	}
+	w, err := CreateCSV(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range 5000 {
+		if err := w.Row([]string{fmt.Sprint(i), "a,b"}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if b, _ := os.ReadFile(path); string(b) != "old\n" {
+		t.Fatalf("before Commit the file holds %d bytes, want the old content", len(b))
+	}
+	if err := w.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	rows, err := ReadCSV(path)
+	if err != nil || len(rows) != 5000 || rows[4999][0] != "4999" || rows[0][1] != "a,b" {
+		t.Fatalf("read back %d rows, %v", len(rows), err)
+	}
+	w.Abort() // after Commit: nothing happens
+
+	p, err := Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p.Write([]byte("half"))
+	p.Abort()
+	if rows2, _ := ReadCSV(path); len(rows2) != 5000 {
+		t.Errorf("after Abort the file has %d rows, want the 5000 committed", len(rows2))
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 1 {
+		t.Errorf("folder holds %d entries after Abort, want only the file", len(entries))
+	}
+
+	link := filepath.Join(dir, "link.csv")
+	if err := os.Symlink("samples.csv", link); err != nil {
+		t.Skip("no symbolic links here:", err)
+	}
+	p, err = Create(link)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p.Write([]byte("new\n"))
+	if err := p.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	if fi, err := os.Lstat(link); err != nil || fi.Mode()&os.ModeSymlink == 0 {
+		t.Errorf("the link was replaced: %v", err)
+	}
+	if b, _ := os.ReadFile(path); string(b) != "new\n" {
+		t.Errorf("the link's target holds %q, want %q", b, "new\n")
+	}
+}
