@@ -301,13 +301,13 @@ func newContinuationWindow(a fyne.App, m *network.Model, name string) (*continua
 			c.ctl.status.SetText("Nothing to export yet: press Run first.")
 			return
 		}
-		exportFigureAs(c.win, "diagram", "continuation", c.prep, c.figure, func(p string) { c.ctl.status.SetText("Figure saved to " + p) })
+		exportFigureAs(c.win, "diagram", "continuation", c.prep, false, c.figure, func(p string) { c.ctl.status.SetText("Figure saved to " + p) })
 	})
 	exportBranch := widget.NewButtonWithIcon("Branch (CSV)…", theme.DocumentSaveIcon(), func() {
-		c.ctl.exportTable(c.win, c.d != nil, "branch.csv", func(p string) error { return saveTable(p, analyse.BranchRows(c.d), "continuation", c.prep) })
+		c.ctl.exportTable(c.win, c.d != nil, "branch.csv", func(p string) error { return saveTable(p, analyse.BranchRows(c.d), "continuation", c.prep, false) })
 	})
 	exportPoints := widget.NewButtonWithIcon("Points (CSV)…", theme.DocumentSaveIcon(), func() {
-		c.ctl.exportTable(c.win, c.d != nil, "points.csv", func(p string) error { return saveTable(p, analyse.PointRows(c.d), "continuation", c.prep) })
+		c.ctl.exportTable(c.win, c.d != nil, "points.csv", func(p string) error { return saveTable(p, analyse.PointRows(c.d), "continuation", c.prep, false) })
 	})
 	c.tabs = container.NewAppTabs(
 		container.NewTabItem("Diagram", c.diagram),
@@ -497,7 +497,7 @@ func newSensitivityWindow(a fyne.App, m *network.Model, name string) (*sensitivi
 			if s.res.Method == analyse.Morris {
 				rows = analyse.EffectRows(s.res)
 			}
-			return saveTable(p, rows, "sensitivity", s.prep)
+			return saveTable(p, rows, "sensitivity", s.prep, false)
 		})
 	})
 	bar := container.NewHBox(widget.NewLabel("Readout"), container.NewGridWrap(fyne.NewSize(220, s.readoutSel.MinSize().Height), s.readoutSel), export)

@@ -93,14 +93,14 @@ func TestSweepWindowWritesTheBatchFiles(t *testing.T) {
 
 	// The figures: a family of curves and each readout against A₀.
 	onUI(func() { s.species.SetSelected("B") })
-	if err := saveStudyFigure(filepath.Join(dir, "family_B.png"), "sweep", s.prep, s.curveFigure); err != nil {
+	if err := saveStudyFigure(filepath.Join(dir, "family_B.png"), "sweep", s.prep, false, s.curveFigure); err != nil {
 		t.Fatal(err)
 	}
 	sameFigure(t, filepath.Join(dir, "family_B.png"), batchDir, "family_B.png")
 	for _, name := range s.res.Readouts {
 		onUI(func() { s.readoutSel.SetSelected(name) })
 		file := "readout_" + fileSafe(name) + ".png"
-		if err := saveStudyFigure(filepath.Join(dir, file), "sweep", s.prep, s.readoutFigure); err != nil {
+		if err := saveStudyFigure(filepath.Join(dir, file), "sweep", s.prep, false, s.readoutFigure); err != nil {
 			t.Fatal(err)
 		}
 		sameFigure(t, filepath.Join(dir, file), batchDir, file)
@@ -153,7 +153,7 @@ func TestPopulationWindowWritesTheBatchFiles(t *testing.T) {
 		p.ro.add(explore.CrossUp, "B", 5)
 	})
 	runAndWait(t, p.ctl)
-	if p.res == nil || len(p.res.Samples) != 60 {
+	if p.res == nil || p.res.Points-p.res.Failed != 60 || !p.res.Spilled() {
 		t.Fatalf("result %+v, status %q", p.res, p.ctl.status.Text)
 	}
 	dir := t.TempDir()
@@ -171,7 +171,7 @@ func TestPopulationWindowWritesTheBatchFiles(t *testing.T) {
 	for _, sp := range []string{"A", "B"} {
 		onUI(func() { p.species.SetSelected(sp) })
 		file := "bands_" + sp + ".png"
-		if err := saveStudyFigure(filepath.Join(dir, file), "population", p.prep, p.bandFigure); err != nil {
+		if err := saveStudyFigure(filepath.Join(dir, file), "population", p.prep, false, p.bandFigure); err != nil {
 			t.Fatal(err)
 		}
 		sameFigure(t, filepath.Join(dir, file), batchDir, file)
@@ -179,7 +179,7 @@ func TestPopulationWindowWritesTheBatchFiles(t *testing.T) {
 	for _, name := range p.res.Readouts {
 		onUI(func() { p.readoutSel.SetSelected(name) })
 		file := "hist_" + fileSafe(name) + ".png"
-		if err := saveStudyFigure(filepath.Join(dir, file), "population", p.prep, p.histogramFigure); err != nil {
+		if err := saveStudyFigure(filepath.Join(dir, file), "population", p.prep, false, p.histogramFigure); err != nil {
 			t.Fatal(err)
 		}
 		sameFigure(t, filepath.Join(dir, file), batchDir, file)

@@ -56,6 +56,8 @@ type stochasticWindow struct {
 	job *ensemble.Job
 	res *stochastic.Ensemble
 	ode [][]float64
+	// partial: res is of a run stopped by Cancel.
+	partial bool
 }
 
 // newStochasticWindow makes the Stochastic window for m in a.
@@ -220,9 +222,10 @@ func (s *stochasticWindow) finished(job *ensemble.Job, e *stochastic.Ensemble, o
 		return
 	}
 	s.job, s.res, s.ode = job, e, ode
+	s.partial = err != nil
 	line := fmt.Sprintf("%d of %d runs done in %s (%d firings).", e.Done, e.Runs, roundDuration(e.Wall), e.Stats.Firings)
 	if errors.Is(err, context.Canceled) {
-		line = fmt.Sprintf("Cancelled: %d of %d runs done; the results show those.", e.Done, e.Runs)
+		line = fmt.Sprintf("Cancelled: %d of %d runs done; the results show those (partial).", e.Done, e.Runs) + partialNote
 	} else if err != nil {
 		line = plainError(err)
 	}
@@ -296,6 +299,7 @@ func (s *stochasticWindow) provenance() (*run.Provenance, error) {
 		return nil, err
 	}
 	prov.Stochastic = &run.Stochastic{Method: string(s.res.Method), Runs: s.res.Runs, Seed: s.res.Seed, MoleculesPerAmount: s.job.Counts.PerAmount}
+	prov.Partial = s.partial
 	return prov, nil
 }
 
@@ -309,7 +313,7 @@ func (s *stochasticWindow) exportFigure() {
 	if s.tabs.Selected() != nil && s.tabs.Selected().Text == "Counts at a time" {
 		fig, base = s.histFigure, "hist_"+fileSafe(s.species.Selected)
 	}
-	exportFigureAs(s.win, base, "stochastic", s.prep, fig, func(path string) { s.ctl.status.SetText("Figure saved to " + path) })
+	exportFigureAs(s.win, base, "stochastic", s.prep, s.partial, fig, func(path string) { s.ctl.status.SetText("Figure saved to " + path) })
 }
 
 // exportTable asks for a CSV file and writes the table made by rows.

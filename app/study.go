@@ -399,15 +399,25 @@ func saveAs(win fyne.Window, name, ext string, save func(path string) error, sav
 
 // studyProvenance describes the outputs of a study of kind what ("sweep",
 // "population") on the prepared model: the model the window was opened
-// on, with its own run settings.
-func studyProvenance(what string, prep *study.Prepared) (*run.Provenance, error) {
-	return run.NewProvenance(what, prep.Model, prep.Sim, nil)
+// on, with its own run settings. partial marks the outputs of a run
+// stopped by Cancel, as the batch command marks those of a run stopped
+// by a signal.
+func studyProvenance(what string, prep *study.Prepared, partial bool) (*run.Provenance, error) {
+	prov, err := run.NewProvenance(what, prep.Model, prep.Sim, nil)
+	if err != nil {
+		return nil, err
+	}
+	prov.Partial = partial
+	return prov, nil
 }
 
+// partialNote is added to the status line of a run stopped by Cancel.
+const partialNote = " Exports from them are marked partial (partial: true in their provenance)."
+
 // saveTable writes rows to path as CSV, atomically, and the provenance of
-// a study of kind what on prep beside it.
-func saveTable(path string, rows [][]string, what string, prep *study.Prepared) error {
-	prov, err := studyProvenance(what, prep)
+// a study of kind what on prep beside it (partial: of a cancelled run).
+func saveTable(path string, rows [][]string, what string, prep *study.Prepared, partial bool) error {
+	prov, err := studyProvenance(what, prep, partial)
 	if err != nil {
 		return err
 	}
@@ -418,8 +428,9 @@ func saveTable(path string, rows [][]string, what string, prep *study.Prepared) 
 }
 
 // exportFigureAs asks for a format, then a file, and saves the figure made
-// by figure there, with the provenance of a study of kind what on prep.
-func exportFigureAs(win fyne.Window, base, what string, prep *study.Prepared, figure func() (*plot.Plot, error), saved func(path string)) {
+// by figure there, with the provenance of a study of kind what on prep
+// (partial: of a cancelled run).
+func exportFigureAs(win fyne.Window, base, what string, prep *study.Prepared, partial bool, figure func() (*plot.Plot, error), saved func(path string)) {
 	format := widget.NewSelect(figureFormats, nil)
 	format.SetSelected(figureFormats[0])
 	dialog.ShowForm("Export figure", "Choose file…", "Cancel",
@@ -429,20 +440,20 @@ func exportFigureAs(win fyne.Window, base, what string, prep *study.Prepared, fi
 			}
 			ext := formatExt(format.Selected)
 			saveAs(win, base+ext, ext, func(path string) error {
-				return saveStudyFigure(path, what, prep, figure)
+				return saveStudyFigure(path, what, prep, partial, figure)
 			}, saved)
 		}, win)
 }
 
 // saveStudyFigure saves the figure made by figure to path, at the size
 // and resolution the batch command uses, with the provenance of a study of
-// kind what on prep.
-func saveStudyFigure(path, what string, prep *study.Prepared, figure func() (*plot.Plot, error)) error {
+// kind what on prep (partial: of a cancelled run).
+func saveStudyFigure(path, what string, prep *study.Prepared, partial bool, figure func() (*plot.Plot, error)) error {
 	p, err := figure()
 	if err != nil {
 		return err
 	}
-	prov, err := studyProvenance(what, prep)
+	prov, err := studyProvenance(what, prep, partial)
 	if err != nil {
 		return err
 	}

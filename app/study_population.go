@@ -78,8 +78,11 @@ type populationWindow struct {
 	ro       *readoutEditor
 	ctl      *runControls
 
-	job *study.Job
-	res *explore.Result
+	job     *study.Job
+	res     *explore.Result
+	partial bool           // res is of a run stopped by Cancel
+	spill   *explore.Spill // holds res's samples
+	closed  bool           // the window was closed
 
 	tabs       *container.AppTabs
 	species    *widget.Select
@@ -162,6 +165,12 @@ func newPopulationWindow(a fyne.App, m *network.Model, name string) (*population
 	split := container.NewHSplit(left, container.NewPadded(right))
 	split.Offset = 0.38
 	p.win.SetContent(split)
+	p.win.SetOnClosed(func() {
+		// A run in progress is stopped; finished drops its spill file.
+		p.closed = true
+		p.ctl.stopRun()
+		p.spill.Close()
+	})
 	p.win.Resize(fyne.NewSize(1240, 780))
 	return p, nil
 }
@@ -263,7 +272,16 @@ func (p *populationWindow) prepare() (*study.Job, error) {
 	if err != nil {
 		return nil, err
 	}
-	return p.prep.Population(vary, n, seed, sampling, specs, p.prep.Quantities())
+	job, err := p.prep.Population(vary, n, seed, sampling, specs, p.prep.Quantities())
+	if err != nil {
+		return nil, err
+	}
+	// The samples go to a spill file as they finish, so that memory does
+	// not grow with the population; finished keeps it with the result.
+	if job.Settings.Spill, err = explore.NewSpill(""); err != nil {
+		return nil, err
+	}
+	return job, nil
 }
 
 // start reads the form and runs the population on every core, off the UI
@@ -272,19 +290,24 @@ func (p *populationWindow) start() { p.ctl.runJob(p.prepare, p.finished) }
 
 // finished shows the outcome of a run.
 func (p *populationWindow) finished(job *study.Job, res *explore.Result, err error) {
-	if res == nil {
+	if res == nil || p.closed {
+		job.Settings.Spill.Close()
 		p.ctl.status.SetText(plainError(err))
 		return
 	}
-	p.job, p.res = job, res
+	if p.spill != job.Settings.Spill {
+		p.spill.Close() // the previous result's samples
+	}
+	p.job, p.res, p.spill = job, res, job.Settings.Spill
+	p.partial = err != nil
 	line := fmt.Sprintf("%d of %d samples done in %s.", res.Points-res.Failed, res.Size, roundDuration(res.Wall))
 	if errors.Is(err, context.Canceled) {
-		line = fmt.Sprintf("Cancelled: %d of %d samples done; the results show those.", res.Points, res.Size)
+		line = fmt.Sprintf("Cancelled: %d of %d samples done; the results show those (partial).", res.Points, res.Size) + partialNote
 	} else if err != nil {
 		line = plainError(err)
 	}
 	p.ctl.status.SetText(line + failureText(res, "sample"))
-	p.failures.set(res)
+	p.failures.set(res, p.partial)
 	p.readoutSel.SetOptions(res.Readouts)
 	if len(res.Readouts) > 0 {
 		p.readoutSel.SetSelected(res.Readouts[0])
@@ -371,7 +394,7 @@ func (p *populationWindow) exportFigure() {
 	if p.tabs.Selected() != nil && p.tabs.Selected().Text == "Readouts" {
 		fig, base = p.histogramFigure, "hist_"+fileSafe(p.readoutSel.Selected)
 	}
-	exportFigureAs(p.win, base, "population", p.prep, fig, func(path string) { p.ctl.status.SetText("Figure saved to " + path) })
+	exportFigureAs(p.win, base, "population", p.prep, p.partial, fig, func(path string) { p.ctl.status.SetText("Figure saved to " + path) })
 }
 
 // exportTable asks for a file and saves a table there.
@@ -389,7 +412,7 @@ func (p *populationWindow) saveSamples(path string) error {
 	if err != nil {
 		return err
 	}
-	return saveTable(path, rows, "population", p.prep)
+	return saveTable(path, rows, "population", p.prep, p.partial)
 }
 
 // saveBands writes the percentile bands of every species (the batch
@@ -398,5 +421,5 @@ func (p *populationWindow) saveBands(path string) error {
 	if p.res == nil || p.res.Bands == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return saveTable(path, study.BandRows(p.res.Bands, p.prep.Quantities()), "population", p.prep)
+	return saveTable(path, study.BandRows(p.res.Bands, p.prep.Quantities()), "population", p.prep, p.partial)
 }

@@ -108,8 +108,9 @@ type sweepWindow struct {
 	ro     *readoutEditor
 	ctl    *runControls
 
-	job *study.Job
-	res *explore.Result
+	job     *study.Job
+	res     *explore.Result
+	partial bool // res is of a run stopped by Cancel
 
 	tabs       *container.AppTabs
 	species    *widget.Select
@@ -219,14 +220,15 @@ func (s *sweepWindow) finished(job *study.Job, res *explore.Result, err error) {
 		return
 	}
 	s.job, s.res = job, res
+	s.partial = err != nil
 	line := fmt.Sprintf("%d of %d runs done in %s.", res.Points-res.Failed, res.Size, roundDuration(res.Wall))
 	if errors.Is(err, context.Canceled) {
-		line = fmt.Sprintf("Cancelled: %d of %d runs done; the results show those.", res.Points, res.Size)
+		line = fmt.Sprintf("Cancelled: %d of %d runs done; the results show those (partial).", res.Points, res.Size) + partialNote
 	} else if err != nil {
 		line = plainError(err)
 	}
 	s.ctl.status.SetText(line + failureText(res, "run"))
-	s.failures.set(res)
+	s.failures.set(res, s.partial)
 	if len(job.Axes) == 2 {
 		var opts []string
 		for _, v := range job.Axes[1] {
@@ -303,7 +305,7 @@ func (s *sweepWindow) exportFigure() {
 	if s.tabs.Selected() != nil && s.tabs.Selected().Text == "Readouts" {
 		fig, base = s.readoutFigure, "readout_"+fileSafe(s.readoutSel.Selected)
 	}
-	exportFigureAs(s.win, base, "sweep", s.prep, fig, func(path string) { s.ctl.status.SetText("Figure saved to " + path) })
+	exportFigureAs(s.win, base, "sweep", s.prep, s.partial, fig, func(path string) { s.ctl.status.SetText("Figure saved to " + path) })
 }
 
 // exportTable saves every run's values and readouts as CSV.
@@ -320,7 +322,7 @@ func (s *sweepWindow) saveRuns(path string) error {
 	if err != nil {
 		return err
 	}
-	return saveTable(path, rows, "sweep", s.prep)
+	return saveTable(path, rows, "sweep", s.prep, s.partial)
 }
 
 // fileSafe makes s usable in a file name.
@@ -342,6 +344,7 @@ type failureList struct {
 	kind    string          // of the study: "sweep" or "population"
 	prep    *study.Prepared // the study's model, for the provenance
 	res     *explore.Result
+	partial bool // res is of a run stopped by Cancel
 	summary *widget.Label
 	lines   []string
 	list    *widget.List
@@ -368,11 +371,17 @@ func newFailureList(what string, export func()) *failureList {
 	return f
 }
 
-// set lists the failures of res and enables the export when there are any.
-func (f *failureList) set(res *explore.Result) {
-	f.res = res
+// set lists the failures of res (partial: of a run stopped by Cancel) and
+// enables the export when there are any. The list shows at most
+// maxListedFailures; the export has them all.
+func (f *failureList) set(res *explore.Result, partial bool) {
+	f.res, f.partial = res, partial
 	f.lines = f.lines[:0]
-	for _, fl := range res.Failures {
+	first, err := res.FirstFailures(maxListedFailures)
+	if err != nil {
+		f.lines = append(f.lines, plainError(err))
+	}
+	for _, fl := range first {
 		line := fmt.Sprintf("%s %d:", strings.ToUpper(f.what[:1])+f.what[1:], fl.Index)
 		for k, v := range fl.X {
 			line += fmt.Sprintf(" %s = %s", knobLabel(res.Knobs[k]), short(v))
@@ -390,7 +399,7 @@ func (f *failureList) set(res *explore.Result) {
 			"with their values and the reason, numbered from 0 as in the index column of the exported tables.",
 			res.Failed, res.Points, f.what))
 	}
-	if len(res.Failures) > 0 {
+	if res.Failed > 0 {
 		f.export.Enable()
 	} else {
 		f.export.Disable()
@@ -404,14 +413,14 @@ func (f *failureList) save(path string) error {
 	if f.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	if len(f.res.Failures) == 0 {
+	if f.res.Failed == 0 {
 		return fmt.Errorf("no %s failed; there is nothing to save", f.what)
 	}
 	rows, err := study.FailureRows(f.res)
 	if err != nil {
 		return err
 	}
-	return saveTable(path, rows, f.kind, f.prep)
+	return saveTable(path, rows, f.kind, f.prep, f.partial)
 }
 
 // exportAs asks for a file in win and saves the failed points there;
@@ -419,6 +428,10 @@ func (f *failureList) save(path string) error {
 func (f *failureList) exportAs(win fyne.Window, saved func(path string)) {
 	saveAs(win, "failures.csv", ".csv", f.save, saved)
 }
+
+// maxListedFailures bounds the failures listed in a window (the export
+// has them all).
+const maxListedFailures = 10_000
 
 // failureReason drops from a failure's message the knob number and value
 // that the list already shows.

@@ -183,7 +183,7 @@ func TestPopulationZeroSpread(t *testing.T) {
 		p.ro.add(explore.AUC, "B", 0)
 	})
 	runAndWait(t, p.ctl)
-	if p.res == nil || len(p.res.Samples) != 40 {
+	if p.res == nil || p.res.Points-p.res.Failed != 40 || !p.res.Spilled() {
 		t.Fatalf("result %+v, status %q", p.res, p.ctl.status.Text)
 	}
 	// The single run, solved directly.
@@ -203,12 +203,17 @@ func TestPopulationZeroSpread(t *testing.T) {
 	if math.Abs(want[0]-2*math.Exp(-0.7*5)) > 1e-6 {
 		t.Fatalf("the single run ends at A = %v, not at the closed form", want[0])
 	}
-	for _, smp := range p.res.Samples {
+	n := 0
+	if err := p.res.EachSample(func(smp *explore.Sample) error {
+		n++
 		for r := range want {
 			if smp.Readouts[r] != want[r] {
 				t.Fatalf("sample %d readout %d = %v, the single run gives %v", smp.Index, r, smp.Readouts[r], want[r])
 			}
 		}
+		return nil
+	}); err != nil || n != 40 {
+		t.Fatalf("read %d samples back from the spill file (%v), want 40", n, err)
 	}
 	for c := 0; c < 2; c++ {
 		q := study.BandCurves(p.res.Bands, c)
@@ -275,7 +280,7 @@ func runFailingPopulation(t *testing.T) (*populationWindow, int) {
 			negative++
 		}
 	}
-	if negative == 0 || p.res == nil || p.res.Failed != negative || len(p.res.Samples)+negative != 60 {
+	if negative == 0 || p.res == nil || p.res.Failed != negative || p.res.Points != 60 {
 		t.Fatalf("%d negative draws; result %+v", negative, p.res)
 	}
 	return p, negative
