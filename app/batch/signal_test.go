@@ -7,6 +7,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"syscall"
 	"testing"
@@ -108,6 +109,71 @@ func TestSignalDuringSweepWritesPartial(t *testing.T) {
 		if err := json.Unmarshal(data, &prov); err != nil || !prov.Partial {
 			t.Errorf("%v: provenance %s lacks partial: true (%v)", sig, data, err)
 		}
+	}
+}
+
+// SIGTERM during a population, whose samples go to a spill file as they
+// finish, writes the samples done so far from the spill, marked partial,
+// with their summaries, exits 1 and leaves no spill file behind.
+func TestSignalDuringPopulationWritesPartial(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a child process")
+	}
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "m.json"), []byte(robustModel), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	spec := filepath.Join(dir, "pop.json")
+	const body = `{"format": "kinetarium.population/1", "model": "m.json", "samples": 1000000, "seed": 2,
+ "vary": [{"target": "k", "distribution": "lognormal", "median": 0.5, "cv_percent": 30}],
+ "readouts": [{"name": "fin", "kind": "final", "species": "B"}], "bands": {"species": ["B"]},
+ "simulation": {"t_end": 1000, "points": 1000}}`
+	if err := os.WriteFile(spec, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "out")
+	cmd, progress := startBatch(t, "population", spec, "--out", out, "--workers", "1")
+	var lines []string
+	for progress.Scan() {
+		lines = append(lines, progress.Text())
+		if strings.HasSuffix(progress.Text(), "%") {
+			break
+		}
+	}
+	if err := cmd.Process.Signal(syscall.SIGTERM); err != nil {
+		t.Fatal(err)
+	}
+	for progress.Scan() {
+		lines = append(lines, progress.Text())
+	}
+	if rc := exitCode(t, cmd); rc != exitFailed {
+		t.Fatalf("exit %d, want 1; stderr:\n%s", rc, strings.Join(lines, "\n"))
+	}
+	rows := readCSV(t, filepath.Join(out, "samples.csv"))
+	n := len(rows) - 1
+	if n < 1 || n >= 1000000 {
+		t.Fatalf("samples.csv holds %d samples, want some but not all", n)
+	}
+	for i, r := range rows[1:] {
+		if r[0] != strconv.Itoa(i) {
+			t.Fatalf("row %d has index %s; want the samples in order from 0", i+1, r[0])
+		}
+	}
+	ro := readCSV(t, filepath.Join(out, "readouts.csv"))
+	if len(ro) != 2 || ro[1][2] != strconv.Itoa(n) {
+		t.Errorf("readouts.csv %v: want n = %d", ro, n)
+	}
+	for _, f := range []string{"samples", "readouts", "bands"} {
+		data, err := os.ReadFile(filepath.Join(out, f+".provenance.json"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(string(data), `"partial": true`) {
+			t.Errorf("%s.provenance.json lacks partial: true", f)
+		}
+	}
+	if left, _ := filepath.Glob(filepath.Join(out, ".kinetarium-spill-*")); len(left) > 0 {
+		t.Errorf("spill files left behind: %v", left)
 	}
 }
 
