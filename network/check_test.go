@@ -319,6 +319,14 @@ func TestOutputTimes(t *testing.T) {
 	if lg[5] != 1e4 {
 		t.Errorf("last time %v, want exactly 1e4", lg[5])
 	}
+	// Near the largest float64, tEnd·i overflowed to +Inf (issue 17: a
+	// sweep with t_end 1e308 failed every run).
+	huge := OutputTimes(1e308, Output{Points: 5})
+	for i, x := range huge {
+		if math.IsInf(x, 0) || (i > 0 && !(x > huge[i-1])) || huge[4] != 1e308 {
+			t.Fatalf("grid to 1e308: %v", huge)
+		}
+	}
 	tEnd := 50.0
 	if d := OutputTimes(tEnd, Output{Spacing: "log"}); len(d) != 201 || d[1] != tEnd*1e-6 || d[200] != 50 {
 		t.Errorf("default log grid: %d points from %v to %v", len(d), d[1], d[len(d)-1])
@@ -353,6 +361,7 @@ func FuzzOutputTimes(f *testing.F) {
 	f.Add(5000.0, 200, "log", 0.01)
 	f.Add(1e-300, 3, "log", 0.0)
 	f.Add(1e300, 1000, "linear", 0.0)
+	f.Add(1e308, 5, "linear", 0.0) // tEnd·i overflowed (issue 17)
 	f.Add(1.0, 2, "log", 0.999999)
 	f.Fuzz(func(t *testing.T, tEnd float64, points int, spacing string, first float64) {
 		m := &Model{Simulation: Simulation{TEnd: tEnd, Output: Output{Points: points, Spacing: spacing, First: first}}}

@@ -32,6 +32,11 @@ func OutputTimes(tEnd float64, o Output) []float64 {
 	ts := make([]float64, pts)
 	for i := range ts {
 		ts[i] = tEnd * float64(i) / float64(pts-1)
+		if math.IsInf(ts[i], 0) {
+			// tEnd·i overflows near the largest float64: divide first
+			// (issue 17: t_end 1e308 gave output times of +Inf).
+			ts[i] = tEnd * (float64(i) / float64(pts-1))
+		}
 	}
 	ts[pts-1] = tEnd
 	return ts

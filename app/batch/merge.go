@@ -200,6 +200,11 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 		} else if !bytes.Equal(mj, metaJSON) {
 			return badInput(fmt.Errorf("%s: comes from a different run than %s (spec, model or settings differ)", f, files[0]))
 		}
+		for k, q := range parts {
+			if q.Shard == r.Shard {
+				return badInput(fmt.Errorf("%s and %s are the same shard %v; give each shard once", files[k], f, r.Shard))
+			}
+		}
 		parts = append(parts, r)
 	}
 	res, err := explore.Merge(parts...)

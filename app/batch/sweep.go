@@ -11,6 +11,7 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
 	"os"
 	"path/filepath"
@@ -152,6 +153,11 @@ func loadModel(kind, specPath, model string, simRaw json.RawMessage) (*study.Pre
 		model = filepath.Join(filepath.Dir(specPath), model)
 	}
 	m, err := network.Load(model)
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		// The file cannot be opened: name the spec's key that points to it.
+		return nil, nil, fmt.Errorf("%s: model: cannot open %s (the model file, relative to the spec's folder): %w", specPath, model, pe.Err)
+	}
 	if err != nil {
 		return nil, nil, err
 	}
