@@ -61,6 +61,7 @@ func TestCancelMarksPopulationExportsPartial(t *testing.T) {
 	if p.res == nil || !p.partial || !strings.Contains(p.ctl.status.Text, "partial") {
 		t.Fatalf("after Cancel: partial %v, status %q", p.partial, p.ctl.status.Text)
 	}
+	saveShot(t, p.win, shotDir(t), "population-cancelled.png")
 	dir := t.TempDir()
 	check := func(wantPartial bool) {
 		t.Helper()
