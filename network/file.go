@@ -466,6 +466,12 @@ func (d *decoder) notZero(o *jnode, path, key, expected string, def any) {
 func (d *decoder) value(n *jnode, path string) (Value, bool) {
 	switch n.kind {
 	case '"':
+		if strings.TrimSpace(n.str) == "" {
+			// An empty name would read as the number 0 (issue 17: a
+			// rate constant of "" ran as 0 without a word).
+			d.fail(n, path, "empty; expected a parameter name in quotes or a number (leave the key out where the law does not need it)")
+			return Value{}, false
+		}
 		return Value{Name: n.str, Set: true}, true
 	case '0':
 		f, ok := d.num(n, path)

@@ -107,6 +107,10 @@ func TestReadErrors(t *testing.T) {
 		{head + `"simulation": {"output": {"first": 0}}}`, `simulation.output.first: 0 cannot be honoured`},
 		{head + `"simulation": {"output": {"points": 1000001}}}`, `not a whole number up to 1000000`},
 		{"\xff\xfe{\x00}\x00", `m.json: the file is UTF-16 text; save it as UTF-8`},
+		// Issue 17's probes again: an empty rate constant read as the
+		// number 0, and the reaction ran at rate 0 without a word.
+		{head + `"reactions": [{"rate": {"k": ""}}]}`, `m.json:1:63: reactions[0].rate.k: empty; expected a parameter name`},
+		{head + `"reactions": [{"rate": {"k": "  "}}]}`, `reactions[0].rate.k: empty`},
 	}
 	for _, c := range cases {
 		_, err := Read(strings.NewReader(c.in), "m.json")
