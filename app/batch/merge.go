@@ -170,6 +170,16 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	defer sp.Close()
+	meta, res, err := readParts(files, sp)
+	if err != nil {
+		return err
+	}
+	return writeOutputs(meta, res, *out, stdout)
+}
+
+// readParts reads the partial-result files (their points into sp), checks
+// that they belong together and cover the run once, and merges them.
+func readParts(files []string, sp *explore.Spill) (*runMeta, *explore.Result, error) {
 	var (
 		meta     *runMeta
 		metaJSON []byte
@@ -178,18 +188,18 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	for _, f := range files {
 		p, r, err := readPart(f, sp)
 		if err != nil {
-			return badInput(err)
+			return nil, nil, badInput(err)
 		}
 		if p.Meta.Fingerprint == nil {
-			return badInput(fmt.Errorf("%s: has no fingerprint of its spec and model (written by an earlier version); run that shard again", f))
+			return nil, nil, badInput(fmt.Errorf("%s: has no fingerprint of its spec and model (written by an earlier version); run that shard again", f))
 		}
 		if meta != nil {
 			if how := meta.Fingerprint.differ(p.Meta.Fingerprint); how != "" {
-				return badInput(fmt.Errorf("%s does not belong with %s: %s", f, files[0], how))
+				return nil, nil, badInput(fmt.Errorf("%s does not belong with %s: %s", f, files[0], how))
 			}
 		}
 		if p.Meta.Partial {
-			return badInput(fmt.Errorf("%s: this shard was stopped before it finished (partial: true); run it again, then merge", f))
+			return nil, nil, badInput(fmt.Errorf("%s: this shard was stopped before it finished (partial: true); run it again, then merge", f))
 		}
 		// Parts are written at different times: compare all but that.
 		same := *p.Meta
@@ -198,20 +208,20 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 		if meta == nil {
 			meta, metaJSON = p.Meta, mj
 		} else if !bytes.Equal(mj, metaJSON) {
-			return badInput(fmt.Errorf("%s: comes from a different run than %s (spec, model or settings differ)", f, files[0]))
+			return nil, nil, badInput(fmt.Errorf("%s: comes from a different run than %s (spec, model or settings differ)", f, files[0]))
 		}
 		for k, q := range parts {
 			if q.Shard == r.Shard {
-				return badInput(fmt.Errorf("%s and %s are the same shard %v; give each shard once", files[k], f, r.Shard))
+				return nil, nil, badInput(fmt.Errorf("%s and %s are the same shard %v; give each shard once", files[k], f, r.Shard))
 			}
 		}
 		parts = append(parts, r)
 	}
 	res, err := explore.Merge(parts...)
 	if err != nil {
-		return badInput(err)
+		return nil, nil, badInput(err)
 	}
-	return writeOutputs(meta, res, *out, stdout)
+	return meta, res, nil
 }
 
 // outputs writes the files of one result into a folder, each CSV table
