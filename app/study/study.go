@@ -442,7 +442,7 @@ func (p *Prepared) Population(vary []Vary, size int, seed uint64, sampling explo
 	if err := j.finish(knobs, readouts); err != nil {
 		return nil, err
 	}
-	pts, err := explore.Population{Vary: dists, Size: size, Seed: seed, Sampling: sampling}.Sample()
+	pts, err := explore.Population{Vary: dists, Size: size, Seed: seed, Sampling: sampling}.Table()
 	if err != nil {
 		return nil, err
 	}

@@ -118,30 +118,63 @@ type Population struct {
 // generator (math/rand/v2) keyed by the seed and the sample, and turned into
 // a knob value by the distribution's Quantile.
 func (p Population) Sample() (Points, error) {
+	t, err := p.Table()
+	if err != nil {
+		return nil, err
+	}
+	pts := make(Points, t.Len())
+	for i := range pts {
+		pts[i] = t.Values[i*t.Knobs : (i+1)*t.Knobs : (i+1)*t.Knobs]
+	}
+	return pts, nil
+}
+
+// Table is a design stored flat, Knobs values per point: point i is
+// Values[i·Knobs : (i+1)·Knobs]. It holds 8 bytes per knob and point and
+// nothing more, so a large population costs no memory beyond its values.
+type Table struct {
+	Knobs  int
+	Values []float64
+}
+
+// Len implements Design.
+func (t Table) Len() int {
+	if t.Knobs <= 0 {
+		return 0
+	}
+	return len(t.Values) / t.Knobs
+}
+
+// Dim implements Design.
+func (t Table) Dim() int { return t.Knobs }
+
+// Point implements Design.
+func (t Table) Point(i int, x []float64) { copy(x, t.Values[i*t.Knobs:(i+1)*t.Knobs]) }
+
+// Table draws the population as Sample does, stored flat.
+func (p Population) Table() (Table, error) {
 	if p.Size <= 0 {
-		return nil, fmt.Errorf("population: size must be positive, got %d", p.Size)
+		return Table{}, fmt.Errorf("population: size must be positive, got %d", p.Size)
 	}
 	for k, d := range p.Vary {
 		if d == nil {
-			return nil, fmt.Errorf("population: knob %d has no distribution", k)
+			return Table{}, fmt.Errorf("population: knob %d has no distribution", k)
 		}
 		if err := d.Validate(); err != nil {
-			return nil, fmt.Errorf("population: knob %d: %w", k, err)
+			return Table{}, fmt.Errorf("population: knob %d: %w", k, err)
 		}
 	}
 	switch p.Sampling {
 	case "", Random, LatinHypercube:
 	default:
-		return nil, fmt.Errorf("population: unknown sampling %q (expected %q or %q)", p.Sampling, Random, LatinHypercube)
+		return Table{}, fmt.Errorf("population: unknown sampling %q (expected %q or %q)", p.Sampling, Random, LatinHypercube)
 	}
 	nk := len(p.Vary)
 	back := make([]float64, p.Size*nk)
-	pts := make(Points, p.Size)
-	for i := range pts {
-		pts[i] = back[i*nk : (i+1)*nk : (i+1)*nk]
+	for i := range p.Size {
 		src := rand.NewPCG(p.Seed, mix64(uint64(i)))
 		for k := range nk {
-			pts[i][k] = unitOpen(src.Uint64())
+			back[i*nk+k] = unitOpen(src.Uint64())
 		}
 	}
 	if p.Sampling == LatinHypercube {
@@ -150,17 +183,17 @@ func (p Population) Sample() (Points, error) {
 			src := rand.NewPCG(p.Seed, mix64(uint64(k)^0x9e3779b97f4a7c15))
 			shuffle(src, perm)
 			n := float64(p.Size)
-			for i := range pts {
-				pts[i][k] = (float64(perm[i]) + pts[i][k]) / n
+			for i := range p.Size {
+				back[i*nk+k] = (float64(perm[i]) + back[i*nk+k]) / n
 			}
 		}
 	}
-	for i := range pts {
+	for i := range p.Size {
 		for k, d := range p.Vary {
-			pts[i][k] = d.Quantile(pts[i][k])
+			back[i*nk+k] = d.Quantile(back[i*nk+k])
 		}
 	}
-	return pts, nil
+	return Table{Knobs: nk, Values: back}, nil
 }
 
 // unitOpen maps 64 random bits to a float64 in the open interval (0, 1).

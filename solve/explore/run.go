@@ -185,6 +185,9 @@ func Run(ctx context.Context, d Design, newSim func() (Simulator, error), s Sett
 	if d.Len() < 0 {
 		return nil, fmt.Errorf("explore: the design has more points than can be counted (%d knobs); use fewer values per knob", d.Dim())
 	}
+	if t, ok := d.(Table); ok && (t.Knobs < 0 || (t.Knobs > 0 && len(t.Values)%t.Knobs != 0)) {
+		return nil, fmt.Errorf("explore: a table of %d values does not hold whole points of %d knobs", len(t.Values), t.Knobs)
+	}
 	if p, ok := d.(Points); ok {
 		if err := p.check(); err != nil {
 			return nil, fmt.Errorf("explore: %w", err)

@@ -313,3 +313,35 @@ func FuzzDecodeJSON(f *testing.F) {
 		}
 	})
 }
+
+// A population drawn as a flat Table has the points Sample draws, bit
+// for bit, for both samplings.
+func TestTableIsSample(t *testing.T) {
+	for _, s := range []Sampling{Random, LatinHypercube} {
+		p := Population{Vary: []Distribution{LogNormal{Median: 2, CVPercent: 40}, Uniform{1, 3}, LogUniform{0.1, 10}}, Size: 1001, Seed: 9, Sampling: s}
+		pts, err := p.Sample()
+		if err != nil {
+			t.Fatal(err)
+		}
+		tab, err := p.Table()
+		if err != nil {
+			t.Fatal(err)
+		}
+		if tab.Len() != len(pts) || tab.Dim() != 3 {
+			t.Fatalf("%s: table of %d × %d, want %d × 3", s, tab.Len(), tab.Dim(), len(pts))
+		}
+		x := make([]float64, 3)
+		for i, want := range pts {
+			tab.Point(i, x)
+			for k := range x {
+				if x[k] != want[k] {
+					t.Fatalf("%s: point %d knob %d: %v, Sample gives %v", s, i, k, x[k], want[k])
+				}
+			}
+		}
+	}
+	_, err := Run(context.Background(), Table{Knobs: 2, Values: []float64{1, 2, 3}}, newDecaySim(grid(3, 1), 1, 0), Settings{Knobs: []string{"k", "j"}})
+	if err == nil || !strings.Contains(err.Error(), "whole points") {
+		t.Errorf("a ragged table: error %v", err)
+	}
+}
