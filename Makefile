@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic probes
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -48,6 +48,12 @@ test-stochastic:
 	STOCHASTIC_FULL=1 $(GO) test -count=1 -v ./solve/stochastic -run 'Moments|Poisson|TimedEvent'
 	$(GO) test -count=1 -v ./app/ensemble -run LargeVolume
 
+# Issue 17's probes in their full form (300 kills during saves instead of
+# 30) and the table of every hostile-input probe (bench/robustness.md).
+probes:
+	KINETARIUM_PROBES=full $(GO) test -count=1 -v ./internal/atomicfile -run Kills
+	$(GO) test -count=1 ./app/batch -run HostileInputProbes -probe-report $(CURDIR)/bench/robustness-probes.md
+
 # Work-precision report and the benchmarks of every package.
 bench:
 	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/... ./app/ensemble ./app/diagram
@@ -69,6 +75,7 @@ fuzz:
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzSweepSpec -fuzztime $(FUZZTIME)
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzPopulationSpec -fuzztime $(FUZZTIME)
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzMergePart -fuzztime $(FUZZTIME)
+	$(GO) test ./solve/explore -run '^$$' -fuzz FuzzDecodeJSON -fuzztime $(FUZZTIME)
 	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzRead -fuzztime $(FUZZTIME)
 	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzMathML -fuzztime $(FUZZTIME)
 
