@@ -125,6 +125,10 @@ species lives in one compartment of volume 1.
   the window asks). Mass-action reactions are exact; Michaelis–Menten and
   expression laws are an approximation (rate × volume × molecules per
   amount). The same seed gives the same runs.
+* **Cancel** in these windows keeps what was done: the status line says the
+  results are partial, and every table and figure exported from them says
+  "partial": true in its provenance. Populations keep their samples in a
+  temporary file, so large ones do not fill the memory.
 * Readouts are read off the output grid with straight lines between points:
   value at a time, maximum and minimum (and when), final value, area under
   the curve (trapezoids), and the first time a level is crossed.
