@@ -284,6 +284,7 @@ func (p *populationWindow) finished(job *study.Job, res *explore.Result, err err
 		line = plainError(err)
 	}
 	p.ctl.status.SetText(line + failureText(res, "sample"))
+	p.failures.fig = job.Figures()
 	p.failures.set(res)
 	p.readoutSel.SetOptions(res.Readouts)
 	if len(res.Readouts) > 0 {
@@ -343,7 +344,8 @@ func (p *populationWindow) readoutSummary() string {
 	if r < 0 {
 		return ""
 	}
-	vals, undefined := study.ReadoutValues(p.res, r)
+	fig := p.job.Figures()
+	vals, undefined := fig.ReadoutValues(p.res, r)
 	if len(vals) == 0 {
 		return fmt.Sprintf("No sample has a value (%d undefined).", undefined)
 	}
@@ -352,6 +354,9 @@ func (p *populationWindow) readoutSummary() string {
 		parts = append(parts, fmt.Sprintf("%g %%: %s", math.Round(q*100), short(study.EmpiricalQuantile(vals, q))))
 	}
 	line := fmt.Sprintf("n = %d · ", len(vals)) + strings.Join(parts, " · ")
+	if u := fig.ReadoutUnit(r); u != "" {
+		line += " (" + u + ")"
+	}
 	if undefined > 0 {
 		line += fmt.Sprintf(" · undefined in %d %s", undefined, plural(undefined, "sample", "samples"))
 	}
@@ -382,7 +387,7 @@ func (p *populationWindow) saveSamples(path string) error {
 	if p.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return saveTable(path, study.RunRows(p.res), "population", p.prep)
+	return saveTable(path, p.job.Figures().RunRows(p.res), "population", p.prep)
 }
 
 // saveBands writes the percentile bands of every species (the batch
@@ -391,5 +396,5 @@ func (p *populationWindow) saveBands(path string) error {
 	if p.res == nil || p.res.Bands == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return saveTable(path, study.BandRows(p.res.Bands, p.prep.Quantities()), "population", p.prep)
+	return saveTable(path, p.job.Figures().BandRows(p.res.Bands, p.prep.Quantities()), "population", p.prep)
 }

@@ -226,6 +226,7 @@ func (s *sweepWindow) finished(job *study.Job, res *explore.Result, err error) {
 		line = plainError(err)
 	}
 	s.ctl.status.SetText(line + failureText(res, "run"))
+	s.failures.fig = job.Figures()
 	s.failures.set(res)
 	if len(job.Axes) == 2 {
 		var opts []string
@@ -316,7 +317,7 @@ func (s *sweepWindow) saveRuns(path string) error {
 	if s.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return saveTable(path, study.RunRows(s.res), "sweep", s.prep)
+	return saveTable(path, s.job.Figures().RunRows(s.res), "sweep", s.prep)
 }
 
 // fileSafe makes s usable in a file name.
@@ -338,6 +339,7 @@ type failureList struct {
 	kind    string          // of the study: "sweep" or "population"
 	prep    *study.Prepared // the study's model, for the provenance
 	res     *explore.Result
+	fig     study.Figures // the study's tables in its display units
 	summary *widget.Label
 	lines   []string
 	list    *widget.List
@@ -403,7 +405,7 @@ func (f *failureList) save(path string) error {
 	if len(f.res.Failures) == 0 {
 		return fmt.Errorf("no %s failed; there is nothing to save", f.what)
 	}
-	return saveTable(path, study.FailureRows(f.res), f.kind, f.prep)
+	return saveTable(path, f.fig.FailureRows(f.res), f.kind, f.prep)
 }
 
 // exportAs asks for a file in win and saves the failed points there;

@@ -57,10 +57,13 @@ type Units struct {
 }
 
 // Compartment is a well-mixed volume. Species concentrations are per
-// compartment volume.
+// compartment volume. Unit is the unit of Volume (L, mL, uL, fL; see
+// VolumeUnits); empty means the unit of the compartments that give one,
+// or no unit at all when none does.
 type Compartment struct {
 	Name   string
 	Volume float64
+	Unit   string
 	Note   string
 }
 
