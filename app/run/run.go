@@ -228,7 +228,7 @@ func (o *Outcome) Amounts(sys *network.System) *Outcome {
 	scale := func(row []float64) []float64 {
 		out := append([]float64(nil), row...)
 		for i := 0; i < nsp && i < len(out); i++ {
-			out[i] *= sys.Volume(sys.SpeciesCompartment(i))
+			out[i] *= sys.AmountVolume(sys.SpeciesCompartment(i))
 		}
 		return out
 	}

@@ -218,3 +218,6 @@ func Compose(conc string, a float64, time string, b float64) string {
 	}
 	return s
 }
+
+// IsVolume reports whether u is a unit of volume (L, mL, uL, fL).
+func (u Unit) IsVolume() bool { return u.SameDim(Unit{Dim: Dim{Length: 3}}) }
