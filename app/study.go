@@ -118,6 +118,32 @@ func newReadoutEditor(species []string) *readoutEditor {
 	return e
 }
 
+// noteUnits adds, below the readouts, which units their times and levels
+// are read in when the model shows results in other units: they are the
+// model's, like every value typed into the study.
+func (e *readoutEditor) noteUnits(m *network.Model) {
+	d, u := m.Simulation.Display, m.Units
+	differs := func(show, own string) bool {
+		return strings.TrimSpace(show) != "" && strings.TrimSpace(show) != strings.TrimSpace(own)
+	}
+	if !differs(d.Time, u.Time) && !differs(d.Concentration, u.Amount) {
+		return
+	}
+	l := widget.NewLabel(fmt.Sprintf("Times and levels are in the model's units (%s, %s); results are shown in %s and %s.",
+		u.Time, u.Amount, orOwn(d.Time, u.Time), orOwn(d.Concentration, u.Amount)))
+	l.Wrapping = fyne.TextWrapWord
+	l.Importance = widget.LowImportance
+	e.content.(*fyne.Container).Add(l)
+}
+
+// orOwn returns show, or own when show is empty.
+func orOwn(show, own string) string {
+	if strings.TrimSpace(show) == "" {
+		return own
+	}
+	return show
+}
+
 // kindLabels returns the labels of the readout kinds.
 func kindLabels() []string {
 	var out []string

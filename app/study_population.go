@@ -107,6 +107,7 @@ func newPopulationWindow(a fyne.App, m *network.Model, name string) (*population
 	p.sampling.SetSelected(samplingLHS)
 	species := prep.Quantities()
 	p.ro = newReadoutEditor(species)
+	p.ro.noteUnits(m)
 	p.ctl = newRunControls(p.start)
 	for i := 0; i < 2 && i < len(p.qs); i++ {
 		p.addRow(p.qs[i].label)

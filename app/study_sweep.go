@@ -140,6 +140,7 @@ func newSweepWindow(a fyne.App, m *network.Model, name string) (*sweepWindow, er
 	})
 	species := prep.Quantities()
 	s.ro = newReadoutEditor(species)
+	s.ro.noteUnits(m)
 	s.ctl = newRunControls(s.start)
 	if len(s.qs) > 0 {
 		s.first.quantity.SetSelected(s.qs[0].label)

@@ -462,3 +462,58 @@ func TestStudyScreenshots(t *testing.T) {
 	onUI(func() { p.tabs.SelectIndex(2) })
 	saveShot(t, p.win, dir, "kinetarium-population-failed.png")
 }
+
+// A sweep in the window of a model that shows results in min and nM
+// (seconds and uM in the model) saves runs.csv with units in the header
+// and its readouts converted: final A = A0·exp(−k T) (closed form of
+// first-order decay, common practice) × 1000 nM per uM, and the time A
+// falls past 1 uM, ln 2/k s, ÷ 60 s per min (SI prefixes and the
+// minute, common practice). The figures say the units shown.
+func TestSweepInDisplayUnits(t *testing.T) {
+	m := tuneDecayModel()
+	m.Units = network.Units{Time: "s", Amount: "uM"}
+	m.Simulation.Output.Points = 501
+	m.Simulation.Display = network.Display{Time: "min", Concentration: "nM"}
+	s := openSweep(t, m)
+	onUI(func() {
+		s.first.quantity.SetSelected("k (parameter)")
+		s.first.from.SetText("0.5")
+		s.first.to.SetText("2")
+		s.first.points.SetText("4")
+		s.ro.rows = nil
+		s.ro.list.RemoveAll()
+		s.ro.add(explore.Final, "A", 0)
+		s.ro.add(explore.CrossDown, "A", 1)
+	})
+	runAndWait(t, s.ctl)
+	if s.res == nil || s.res.Failed != 0 {
+		t.Fatalf("sweep: %q", s.ctl.status.Text)
+	}
+	path := filepath.Join(t.TempDir(), "runs.csv")
+	if err := s.saveRuns(path); err != nil {
+		t.Fatal(err)
+	}
+	rows := readCSV(t, path)
+	if got := strings.Join(rows[0], ","); got != "index,k (1/s),final_A (nM),cross_down_A@1 (min)" {
+		t.Fatalf("runs.csv header %q", got)
+	}
+	const a0, tEnd = 2.0, 5.0
+	for i, row := range rows[1:] {
+		k, _ := strconv.ParseFloat(row[1], 64)
+		v, _ := strconv.ParseFloat(row[2], 64)
+		c, _ := strconv.ParseFloat(row[3], 64)
+		if math.Abs(v-1000*a0*math.Exp(-k*tEnd)) > 1e-5*1000*a0 {
+			t.Errorf("row %d: final A %v nM, want %v", i+1, v, 1000*a0*math.Exp(-k*tEnd))
+		}
+		// Crossing interpolated on the 0.01 s grid: within 0.01 s.
+		if want := math.Ln2 / k / 60; math.Abs(c-want) > 0.01/60 {
+			t.Errorf("row %d: crossing at %v min, want %v", i+1, c, want)
+		}
+	}
+	if s.curves.plot == nil || !strings.Contains(s.curves.plot.X.Label.Text, "(min)") || !strings.Contains(s.curves.plot.Y.Label.Text, "(nM)") {
+		t.Errorf("curve axes do not say the units shown")
+	}
+	saveShot(t, s.win, shotDir(t), "kinetarium-sweep-display-units.png")
+	onUI(func() { s.tabs.SelectIndex(1) })
+	saveShot(t, s.win, shotDir(t), "kinetarium-sweep-display-units-readouts.png")
+}

@@ -125,7 +125,7 @@ func (f Figures) Family(res *explore.Result, species string, at int, logTime boo
 		}
 		curves, values = append(curves, c), append(values, s.X[0])
 	}
-	return plotting.FamilyPlot(times, curves, values, KnobLabel(res.Knobs[0]), plotting.Options{
+	return plotting.FamilyPlot(times, curves, values, plotting.AxisLabel(KnobLabel(res.Knobs[0]), f.knobUnit(0)), plotting.Options{
 		Title: title, XLabel: "time", XUnit: f.timeUnit(), YLabel: species, YUnit: f.quantityUnit(j), LogX: logTime,
 	})
 }
