@@ -375,12 +375,14 @@ func (uc *unitCheck) power(base, exponent expr.Node, b units.Unit, bok bool, e u
 
 // UnitHint returns, for the form of reaction i, the unit each parameter
 // field of its law should carry with the model's units, such as "Rate
-// constant in 1/(uM·s) for a second-order step", one field a line; "" when
-// the model declares no units or the law has no fixed field units.
+// constant in 1/(uM·s) for a second-order step", one field a line; in
+// words ("1/(concentration·time)") when the model declares no units; ""
+// when the law has no fixed field units.
 func (n *Net) UnitHint(i int) string {
 	m := n.Model
+	concText, timeText := m.Units.Amount, m.Units.Time
 	if _, _, ok := m.ModelUnits(); !ok {
-		return ""
+		concText, timeText = "concentration", "time"
 	}
 	cr := &n.Reactions[i]
 	if cr.Law == nil || !cr.EqOK {
@@ -398,7 +400,7 @@ func (n *Net) UnitHint(i int) string {
 			continue
 		}
 		label := fieldLabel(cr.Law, k, cr.Equation)
-		text := units.Compose(m.Units.Amount, d.C, m.Units.Time, d.T)
+		text := units.Compose(concText, d.C, timeText, d.T)
 		purpose := fieldPurpose(cr.Law, k, cr.Equation, d)
 		if strings.HasPrefix(purpose, "for ") {
 			lines = append(lines, label+" in "+text+" "+purpose)

@@ -195,3 +195,24 @@ func TestMoleculesPerAmountVolumeUnit(t *testing.T) {
 		t.Errorf("without a volume unit: %v, want 6.02214076e17 per uM·L", n)
 	}
 }
+
+// The model's unit of volume is that of the first compartment giving one,
+// and each compartment's factor to it follows the SI prefixes (1 L =
+// 1000 mL = 10⁶ uL = 10¹⁵ fL; common practice); a compartment without a
+// unit is read in the model's (factor 1).
+func TestVolumeUnitFactors(t *testing.T) {
+	m := &Model{Compartments: []Compartment{{Name: "a", Volume: 1}, {Name: "b", Volume: 1, Unit: "mL"},
+		{Name: "c", Volume: 1, Unit: "L"}, {Name: "d", Volume: 1, Unit: "uL"}, {Name: "e", Volume: 1, Unit: "fL"}, {Name: "f", Volume: 1, Unit: "bad"}}}
+	unit, scale := m.VolumeUnit()
+	if unit != "mL" {
+		t.Errorf("unit %q, want mL", unit)
+	}
+	for i, want := range []float64{1, 1, 1000, 1e-3, 1e-12, 1} {
+		if scale[i] != want {
+			t.Errorf("compartment %s: factor %v, want %v", m.Compartments[i].Name, scale[i], want)
+		}
+	}
+	if unit, scale := (&Model{Compartments: []Compartment{{Name: "a", Volume: 2}}}).VolumeUnit(); unit != "" || scale[0] != 1 {
+		t.Errorf("no units: %q %v", unit, scale)
+	}
+}
