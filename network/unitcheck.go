@@ -488,6 +488,18 @@ func (uc *unitCheck) events() {
 	}
 	for _, ce := range v.net.Events {
 		e := &v.m.Events[ce.Index]
+		// Times and intervals given by a parameter are in the time unit.
+		for _, tf := range []struct {
+			field string
+			val   Value
+		}{{"at", e.At}, {"every", e.Every}, {"from", e.From}, {"to", e.To}} {
+			j, ok := v.paramIx[tf.val.Name]
+			if !tf.val.Set || tf.val.Name == "" || !ok || uc.params[j] == nil || uc.params[j].Equal(uc.time) {
+				continue
+			}
+			v.add(Warning, "events", ce.Index, ce.Name, tf.field, 0, "%s is the parameter %s in %s, but times are in %s here; %s",
+				tf.field, tf.val.Name, v.m.Parameters[j].Unit, uc.timeText, uc.mismatch(*uc.params[j], uc.time))
+		}
 		if ce.Kind == Triggered {
 			warn := func(col int, format string, args ...any) {
 				v.add(Warning, "events", ce.Index, ce.Name, "when", col, format, args...)
