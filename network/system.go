@@ -35,6 +35,7 @@ type System struct {
 	volumes  []float64 // in the model's unit of volume (Model.VolumeUnit)
 	volModel []float64 // as the model gives them, each in its compartment's unit
 	volScale []float64 // volumes[i] = volModel[i]·volScale[i]
+	volUnit  string    // the model's unit of volume, "" when none is given
 
 	vars     []float64 // [y (n) | parameters | t]
 	hasExpr  bool
@@ -252,7 +253,8 @@ func (net *Net) Compile() (*System, error) {
 		s.volScale = []float64{1}
 		compIx[DefaultCompartment] = 0
 	}
-	_, volScale := m.VolumeUnit()
+	volUnit, volScale := m.VolumeUnit()
+	s.volUnit = volUnit
 	for i, c := range m.Compartments {
 		s.comps = append(s.comps, c.Name)
 		s.volumes = append(s.volumes, c.Volume*volScale[i])
@@ -673,6 +675,10 @@ func (s *System) SetVolume(i int, v float64) {
 // concentration times AmountVolume. It equals Volume when the
 // compartments give no units or all the same one.
 func (s *System) AmountVolume(i int) float64 { return s.volumes[i] }
+
+// VolumeUnit returns the unit of AmountVolume: the model's unit of
+// volume (Model.VolumeUnit), "" when the compartments give none.
+func (s *System) VolumeUnit() string { return s.volUnit }
 
 // VolumeScale returns AmountVolume(i)/Volume(i), the factor from
 // compartment i's own unit of volume to the model's.

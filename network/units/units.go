@@ -228,3 +228,15 @@ func Compose(conc string, a float64, time string, b float64) string {
 
 // IsVolume reports whether u is a unit of volume (L, mL, uL, fL).
 func (u Unit) IsVolume() bool { return u.SameDim(Unit{Dim: Dim{Length: 3}}) }
+
+// Symbol returns the unit symbol that equals u ("umol" for uM·L, "mg"
+// for mg/L·L), preferring the shortest, and whether there is one.
+func Symbol(u Unit) (string, bool) {
+	best := ""
+	for _, name := range Symbols() {
+		if v := symbols[name]; v.Equal(u) && (best == "" || len(name) < len(best)) {
+			best = name
+		}
+	}
+	return best, best != ""
+}
