@@ -129,7 +129,7 @@ func (e *readoutEditor) noteUnits(m *network.Model) {
 	if !differs(d.Time, u.Time) && !differs(d.Concentration, u.Amount) {
 		return
 	}
-	l := widget.NewLabel(fmt.Sprintf("Times and levels are in the model's units (%s, %s); results are shown in %s and %s.",
+	l := widget.NewLabel(fmt.Sprintf("Values typed here (quantities, times, levels) are in the model's units (%s, %s); results are shown in %s and %s.",
 		u.Time, u.Amount, orOwn(d.Time, u.Time), orOwn(d.Concentration, u.Amount)))
 	l.Wrapping = fyne.TextWrapWord
 	l.Importance = widget.LowImportance

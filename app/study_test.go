@@ -517,3 +517,69 @@ func TestSweepInDisplayUnits(t *testing.T) {
 	onUI(func() { s.tabs.SelectIndex(1) })
 	saveShot(t, s.win, shotDir(t), "kinetarium-sweep-display-units-readouts.png")
 }
+
+// A population in the window of a model shown in min and nM draws its
+// bands and histogram in those units and saves samples.csv and bands.csv
+// with them: every sample's final A, shown in nM, is 1000 × its value in
+// uM (SI prefixes, common practice), A0·exp(−k T) for its k (closed form).
+func TestPopulationInDisplayUnits(t *testing.T) {
+	m := tuneDecayModel()
+	m.Units = network.Units{Time: "s", Amount: "uM"}
+	m.Simulation.Display = network.Display{Time: "min", Concentration: "nM"}
+	p := openPopulation(t, m)
+	onUI(func() {
+		p.size.SetText("40")
+		p.species.SetSelected("A")
+		p.ro.rows = nil
+		p.ro.list.RemoveAll()
+		p.ro.add(explore.Final, "A", 0)
+	})
+	runAndWait(t, p.ctl)
+	if p.res == nil || p.res.Failed != 0 {
+		t.Fatalf("population: %q", p.ctl.status.Text)
+	}
+	if p.bands.plot == nil || !strings.Contains(p.bands.plot.X.Label.Text, "(min)") || !strings.Contains(p.bands.plot.Y.Label.Text, "(nM)") {
+		t.Error("band axes do not say the units shown")
+	}
+	path := filepath.Join(t.TempDir(), "samples.csv")
+	if err := p.saveSamples(path); err != nil {
+		t.Fatal(err)
+	}
+	rows := readCSV(t, path)
+	if rows[0][len(rows[0])-1] != "final_A (nM)" {
+		t.Fatalf("samples header %q", rows[0])
+	}
+	k := slicesIndex(rows[0], "k (1/s)")
+	if k < 0 {
+		t.Fatalf("no k column in %q", rows[0])
+	}
+	a0col := slicesIndex(rows[0], "init:A (uM)") // varied too when the window varies it
+	for _, row := range rows[1:] {
+		kv, _ := strconv.ParseFloat(row[k], 64)
+		v, _ := strconv.ParseFloat(row[len(row)-1], 64)
+		a0 := 2.0
+		if a0col >= 0 {
+			a0, _ = strconv.ParseFloat(row[a0col], 64)
+		}
+		if want := 1000 * a0 * math.Exp(-kv*5); math.Abs(v-want) > 1e-5*want {
+			t.Errorf("k = %v: final A %v nM, want %v", kv, v, want)
+		}
+	}
+	bp := filepath.Join(t.TempDir(), "bands.csv")
+	if err := p.saveBands(bp); err != nil {
+		t.Fatal(err)
+	}
+	if b := readCSV(t, bp); strings.Join(b[0][:3], ",") != "species,unit,time (min)" {
+		t.Errorf("bands header %q", b[0])
+	}
+	saveShot(t, p.win, shotDir(t), "kinetarium-population-display-units.png")
+}
+
+func slicesIndex(s []string, v string) int {
+	for i, x := range s {
+		if x == v {
+			return i
+		}
+	}
+	return -1
+}
