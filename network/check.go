@@ -232,7 +232,10 @@ func (v *validator) compartments() {
 			if e, ok := err.(*units.Error); ok {
 				col, msg = e.Col, e.Msg
 			}
-			v.add(Error, "compartments", i, c.Name, "unit", col, "the volume's unit %q does not read: %s; expected %s", c.Unit, msg, VolumeUnits)
+			if !strings.Contains(msg, "expected") {
+				msg += "; expected " + VolumeUnits
+			}
+			v.add(Error, "compartments", i, c.Name, "unit", col, "the volume's unit %q does not read: %s", c.Unit, msg)
 		case !u.IsVolume():
 			v.add(Error, "compartments", i, c.Name, "unit", 0, "%q is not a unit of volume (it is %s); expected %s", c.Unit, u.Kind(), VolumeUnits)
 		case withUnit < 0:
