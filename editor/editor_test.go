@@ -107,7 +107,7 @@ func TestLawSwitchShowsOnlyItsFields(t *testing.T) {
 	visible := func() map[string]bool {
 		out := map[string]bool{}
 		for _, f := range rf.fields() {
-			if strings.HasPrefix(f.name, "rate.") && f.name != "rate.law" && f.name != "rate.preview" && f.row.Visible() {
+			if strings.HasPrefix(f.name, "rate.") && f.name != "rate.law" && f.name != "rate.preview" && f.name != "rate.units" && f.row.Visible() {
 				out[f.name] = true
 			}
 		}
@@ -126,6 +126,11 @@ func TestLawSwitchShowsOnlyItsFields(t *testing.T) {
 		}
 	}
 	check("mass action, reversible", "rate.k", "rate.k_reverse")
+	// The Expected units hint shows even before the model has units, in
+	// words.
+	if !rf.unitsField.row.Visible() || !strings.Contains(rf.units.Text, "in 1/(concentration·time) for a second-order step") {
+		t.Errorf("units hint %q (visible %v)", rf.units.Text, rf.unitsField.row.Visible())
+	}
 
 	rf.law.SetSelected(LawTitle(network.MichaelisMenten))
 	if d.Model().Reactions[0].Rate.Law != network.MichaelisMenten {
@@ -137,6 +142,9 @@ func TestLawSwitchShowsOnlyItsFields(t *testing.T) {
 
 	rf.law.SetSelected(LawTitle(network.Expression))
 	check("expression", "rate.expression")
+	if rf.unitsField.row.Visible() {
+		t.Errorf("units hint shown for an expression: %q", rf.units.Text)
+	}
 
 	e.SelectRow("reactions", 2) // "-> 2S", irreversible mass action is not set; an expression
 	rf.law.SetSelected(LawTitle(network.MassAction))
