@@ -77,3 +77,28 @@ func TestStudyDisplayUnitRefused(t *testing.T) {
 		t.Errorf("exit %d, stderr %q", rc, errb.String())
 	}
 }
+
+// Shards of a study shown in other units merge into the same tables as
+// the whole run; a part shown in other units than the rest is refused.
+func TestShardsInDisplayUnits(t *testing.T) {
+	dir := t.TempDir()
+	flags := []string{"--quiet", "--time-unit", "s", "--concentration-unit", "nM"}
+	full, parts, other := filepath.Join(dir, "full"), filepath.Join(dir, "parts"), filepath.Join(dir, "other")
+	mustRun(t, sweepCmd, append([]string{testdata + "sweep.json", "--out", full}, flags...)...)
+	for _, s := range []string{"0/2", "1/2"} {
+		mustRun(t, sweepCmd, append([]string{testdata + "sweep.json", "--out", parts, "--shard", s}, flags...)...)
+	}
+	merged := filepath.Join(dir, "merged")
+	mustRun(t, mergeCmd, filepath.Join(parts, "part-0-of-2.json"), filepath.Join(parts, "part-1-of-2.json"), "--out", merged)
+	for _, f := range []string{"runs.csv", "trajectories.csv"} {
+		a, b := readCSV(t, filepath.Join(full, f)), readCSV(t, filepath.Join(merged, f))
+		if strings.Join(a[0], ",") != strings.Join(b[0], ",") || len(a) != len(b) || strings.Join(a[len(a)-1], ",") != strings.Join(b[len(b)-1], ",") {
+			t.Errorf("%s differs after merging: %q … vs %q …", f, a[0], b[0])
+		}
+	}
+	mustRun(t, sweepCmd, testdata+"sweep.json", "--out", other, "--shard", "1/2", "--quiet")
+	var out, errb bytes.Buffer
+	if rc := runMerge([]string{filepath.Join(parts, "part-0-of-2.json"), filepath.Join(other, "part-1-of-2.json"), "--out", filepath.Join(dir, "m2")}, &out, &errb); rc != exitBadInput {
+		t.Errorf("parts shown in different units merged: exit %d, %s", rc, errb.String())
+	}
+}
