@@ -47,7 +47,8 @@ type Model struct {
 }
 
 // Units name the units of time and amount (concentration) used by the
-// model. They are labels only; nothing is converted.
+// model. They are labels only; nothing is converted (the compartments'
+// units of volume, Compartment.Unit, are what make volumes comparable).
 // MoleculesPerAmount, when not zero, is the number of molecules in one
 // amount unit × one volume unit, for stochastic runs (see
 // MoleculesPerAmount, which also knows molar units).
