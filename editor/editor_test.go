@@ -222,3 +222,43 @@ func TestPreviewFormula(t *testing.T) {
 		}
 	}
 }
+
+// The Compartments tab edits a volume's unit: a unit that is not a volume
+// is an error at the field, a volume unit is accepted, the list says it,
+// and Undo restores the model.
+func TestCompartmentUnitField(t *testing.T) {
+	test.NewTempApp(t)
+	m := enzymeModel()
+	m.Compartments = []network.Compartment{{Name: "well", Volume: 2}}
+	d := NewDocument(m, "")
+	e := New(d, nil)
+	cf := e.panes["compartments"].form.(*compartmentForm)
+	e.SelectRow("compartments", 0)
+	var unit *widget.Entry
+	for _, f := range cf.fields() {
+		if f.name == "unit" {
+			unit = f.input.(*widget.Entry)
+		}
+	}
+	if unit == nil {
+		t.Fatal("the compartment form has no unit field")
+	}
+	test.Type(unit, "uM")
+	if got := d.Model().Compartments[0].Unit; got != "uM" {
+		t.Fatalf("unit in model = %q", got)
+	}
+	if !hasMessage(e, "compartments", 0, "unit", "is not a unit of volume") {
+		t.Errorf("no message at the unit: %v", e.Messages())
+	}
+	unit.SetText("mL")
+	if hasMessage(e, "compartments", 0, "unit", "") {
+		t.Errorf("mL still has a message: %v", e.Messages())
+	}
+	if got := compartmentKind.summary(d.Model(), 0); got != "volume 2 mL" {
+		t.Errorf("list summary %q", got)
+	}
+	d.Undo()
+	if got := d.Model().Compartments[0].Unit; got != "" {
+		t.Errorf("after Undo the unit is %q", got)
+	}
+}
