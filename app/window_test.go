@@ -25,7 +25,7 @@ func onUI(f func()) {
 // waitFor polls cond for up to 20 s.
 func waitFor(t *testing.T, what string, cond func() bool) {
 	t.Helper()
-	deadline := time.Now().Add(20 * time.Second)
+	deadline := time.Now().Add(2 * time.Minute)
 	for time.Now().Before(deadline) {
 		done := false
 		onUI(func() { done = cond() })
