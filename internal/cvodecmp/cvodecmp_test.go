@@ -304,3 +304,26 @@ func TestDigits(t *testing.T) {
 		t.Errorf("Digits of an exact answer = %g, want +Inf", d)
 	}
 }
+
+// BenchmarkKLUNet200 solves the generated 200-species network with
+// CVODE–KLU at rtol 1e-6, atol 1e-12, for profiling CVODE's side (for
+// example under callgrind with -test.benchtime=1x).
+func BenchmarkKLUNet200(b *testing.B) {
+	g, err := NetworkProblem("NET200", gennet.Signalling(50), 1000)
+	if err != nil {
+		b.Fatal(err)
+	}
+	k, err := NewKLU(g)
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer k.Close()
+	for b.Loop() {
+		if _, _, _, err := k.Solve(1e-6, 1e-12); err != nil {
+			b.Fatal(err)
+		}
+	}
+	st := k.Stages()
+	b.ReportMetric(float64(st.Factors), "LU/op")
+	b.ReportMetric(float64(st.Other().Nanoseconds())/float64(st.Total.Nanoseconds()), "other/total")
+}
