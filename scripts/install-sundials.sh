@@ -142,7 +142,7 @@ for p in ${missing[@]+"${missing[@]}"}; do
 			cp "$f" "$stage/lib/"
 			so=$(objdump -p "$f" 2>/dev/null | awk '/SONAME/ {print $2}' || true)
 			if [[ -n $so && ! -e $stage/lib/$so ]]; then ln -s "$(basename "$f")" "$stage/lib/$so"; fi
-		done < <(find "$work/root" -name "lib${p%[0-9]}.so.*" -type f)
+		done < <(find "$work/root" -name "${p%[0-9]}.so.*" -type f)
 		;;
 	esac
 done
@@ -187,7 +187,7 @@ int main(void) {
 }
 EOF
 	cc -o "$work/check" "$work/check.c" -I"$PREFIX/include" -I"$PREFIX/include/suitesparse" \
-		-L"$PREFIX/lib" -Wl,-rpath,"$PREFIX/lib" \
+		-L"$PREFIX/lib" -Wl,--disable-new-dtags -Wl,-rpath,"$PREFIX/lib" \
 		-lsundials_cvode -lsundials_sunlinsolklu -lsundials_sunmatrixsparse -lklu -lm
 	"$work/check"
 fi

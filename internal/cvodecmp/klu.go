@@ -4,7 +4,7 @@ package cvodecmp
 
 /*
 #cgo CFLAGS: -I/opt/sundials-dev/include -I/opt/sundials-dev/include/suitesparse -O2
-#cgo LDFLAGS: -L/opt/sundials-dev/lib -Wl,-rpath,/opt/sundials-dev/lib -lsundials_cvode -lsundials_sunlinsolklu -lsundials_sunmatrixsparse -lklu -lm
+#cgo LDFLAGS: -L/opt/sundials-dev/lib -Wl,--disable-new-dtags -Wl,-rpath,/opt/sundials-dev/lib -lsundials_cvode -lsundials_sunlinsolklu -lsundials_sunmatrixsparse -lklu -lm
 
 #include <stdint.h>
 #include <stdlib.h>
