@@ -64,7 +64,7 @@ CVODE_SIZES ?= 200,1000
 CVODE_FLAGS ?=
 cvode-compare:
 	@[ -e /opt/sundials-dev/lib/libsundials_sunlinsolklu.so ] || scripts/install-sundials.sh
-	$(GO) test -tags sundials -count=1 ./internal/cvodecmp
+	$(GO) test -tags sundials -count=1 ./internal/cvodecmp/...
 	$(GO) run -tags sundials ./internal/cvodecmp/cmd -sizes $(CVODE_SIZES) -out bench/cvode-comparison.md -profile bench/solve-stages.md $(CVODE_FLAGS)
 
 FUZZTIME ?= 30s
