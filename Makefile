@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic cvode-compare
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -53,6 +53,19 @@ bench:
 	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/... ./app/ensemble ./app/diagram
 	$(GO) test -run '^$$' -bench . -benchtime 1x ./app/analyse
 	$(GO) run ./internal/workprecision -out bench
+
+# Kinetarium against SUNDIALS CVODE, dense and KLU, at equal accuracy
+# (bench/cvode-comparison.md), and the 200- and 1,000-species solves by
+# stage beside CVODE–KLU's counters (bench/solve-stages.md and the CPU
+# profiles bench/profile-net*.pprof). Sets CVODE up with
+# scripts/install-sundials.sh (as root) when it is missing. Sizes of the
+# generated networks: make cvode-compare CVODE_SIZES=200,1000,5000
+CVODE_SIZES ?= 200,1000
+CVODE_FLAGS ?=
+cvode-compare:
+	@[ -e /opt/sundials-dev/lib/libsundials_sunlinsolklu.so ] || scripts/install-sundials.sh
+	$(GO) test -tags sundials -count=1 ./internal/cvodecmp/...
+	$(GO) run -tags sundials ./internal/cvodecmp/cmd -sizes $(CVODE_SIZES) -out bench/cvode-comparison.md -profile bench/solve-stages.md $(CVODE_FLAGS)
 
 FUZZTIME ?= 30s
 fuzz:
