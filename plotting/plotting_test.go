@@ -692,3 +692,35 @@ func TestHistogramOfConstant(t *testing.T) {
 		t.Errorf("edges %v counts %v, want 0.095…0.105 with both values in the middle bin", edges, counts)
 	}
 }
+
+// Measurements over a TrajectoryPlot take the colour slot of the series of
+// their name, are hidden with it, and a name the plot lacks takes the next
+// free slot (the window's overlay of loaded measurements).
+func TestMeasuredOverTrajectories(t *testing.T) {
+	tr := Trajectories{Times: []float64{0, 10}, Names: []string{"A"}, Values: [][]float64{{0}, {0}}}
+	data := []Measured{{T: 2, Y: 5, SD: 1, Name: "A"}, {T: 4, Y: 6, SD: 0.5, Name: "A"}, {T: 6, Y: 7, Name: "A"}, {T: 8, Y: 4, Name: "A"}}
+	count := func(o Options, slot int) int {
+		p, err := TrajectoryPlot(tr, o)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return countNear(Render(p, 640, 400), Colour(slot))
+	}
+	o := Options{ColourIndex: []int{4}, Measured: data, NoLegend: true}
+	without := count(Options{ColourIndex: []int{4}, NoLegend: true}, 4)
+	if with := count(o, 4); with < without+40 {
+		t.Errorf("measurements not drawn in slot 4: %d pixels with them, %d without", with, without)
+	}
+	o.Visible = []bool{false}
+	if n := count(o, 4); n != 0 {
+		t.Errorf("measurements of a hidden series drawn: %d pixels of its colour", n)
+	}
+	other := []Measured{{T: 3, Y: 3, Name: "B"}, {T: 5, Y: 4, Name: "B"}}
+	if n := count(Options{ColourIndex: []int{4}, Measured: other, NoLegend: true}, 5); n < 20 {
+		t.Errorf("a measured name the plot lacks is not drawn in the next slot (%d pixels)", n)
+	}
+	p, _ := TrajectoryPlot(tr, Options{LogX: true, Measured: []Measured{{T: 0, Y: 1, Name: "A"}, {T: 1, Y: 1, Name: "A"}}})
+	if !strings.Contains(p.Title.Text, "1 measurement a log axis cannot show") {
+		t.Errorf("title %q does not note the measurement at time 0", p.Title.Text)
+	}
+}
