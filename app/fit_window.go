@@ -106,6 +106,7 @@ type fitWindow struct {
 	// and says what it did.
 	writeBack func(knobs []sliders.Knob) string
 
+	plan    *fyne.Container // the left column's form
 	exps    []*fitExperiment
 	expList *fyne.Container
 	rows    []*estimateRow
@@ -119,7 +120,7 @@ type fitWindow struct {
 	ctl     *runControls
 
 	traceMu   sync.Mutex
-	trace     []float64 // the objective after each accepted step, in arrival order
+	trace     [][]float64 // per start, the objective after each accepted step
 	traceDrew time.Time
 	traceFig  *studyFigure
 
@@ -142,15 +143,23 @@ type fitWindow struct {
 // openFit opens the fit window on the model as it is now, with the
 // loaded measurements as its first experiment.
 func (w *mainWindow) openFit() {
+	if f := w.fitWindow(); f != nil {
+		f.win.Show()
+	}
+}
+
+// fitWindow makes the fit window on the model as it is now, or says on
+// the status line why it cannot.
+func (w *mainWindow) fitWindow() *fitWindow {
 	m, name, ok := w.studyModel()
 	if !ok {
-		return
+		return nil
 	}
 	f := newFitWindow(w.app, m, name, w.doc.Slots(), w.writeEstimates)
 	if w.meas.data != nil {
 		f.addExperiment(calibrate.Experiment{Name: "measurements", Data: w.meas.path}, measuredSummary(w.meas.data), true)
 	}
-	f.win.Show()
+	return f
 }
 
 // writeEstimates stores fitted values in the editor's model as one
@@ -209,11 +218,11 @@ func (f *fitWindow) build() {
 	f.ctl = newRunControls(f.start)
 	f.traceFig = newStudyFigure("The objective of every accepted step appears here while the fit runs.")
 
-	plan := container.NewVBox(caution,
+	f.plan = container.NewVBox(caution,
 		sectionTitle("Experiments"), f.expList, container.NewHBox(loadData, loadPlan),
 		sectionTitle("Quantities to estimate"), grid,
 		sectionTitle("Settings"), settings, f.profile, f.ctl.content)
-	left := container.NewVSplit(container.NewVScroll(plan), f.traceFig)
+	left := container.NewVSplit(container.NewVScroll(f.plan), f.traceFig)
 	left.Offset = 0.72
 
 	f.curveExp = widget.NewSelect(nil, func(string) { f.drawCurves() })
@@ -331,6 +340,9 @@ func (f *fitWindow) unitOf(k sliders.Knob) string {
 	return ""
 }
 
+// targetUnit returns the unit of the knob named ref.
+func (f *fitWindow) targetUnit(ref string) string { return f.unitOf(sliders.ParseRef(ref)) }
+
 // row returns the row of the knob named ref ("kon", "init:S").
 func (f *fitWindow) row(ref string) *estimateRow {
 	for _, r := range f.rows {
@@ -362,6 +374,9 @@ func (f *fitWindow) addExperiment(e calibrate.Experiment, note string, use bool)
 	x.use.SetChecked(use)
 	f.exps = append(f.exps, x)
 	f.expList.Add(x.use)
+	if f.plan != nil {
+		f.plan.Refresh()
+	}
 }
 
 func sortedKeys(m map[string]float64) []string {
@@ -528,12 +543,12 @@ func (f *fitWindow) spec() (*calibrate.Spec, error) {
 func (f *fitWindow) start() {
 	spec, err := f.spec()
 	if err != nil {
-		f.ctl.status.SetText(plainError(err))
+		f.ctl.status.SetText("Cannot run yet: " + err.Error()) // names first, as written
 		return
 	}
 	profiles := f.profile.Checked
 	f.traceMu.Lock()
-	f.trace = f.trace[:0]
+	f.trace = nil
 	f.traceMu.Unlock()
 	f.traceFig.set(nil, "Starting…")
 	runAsync(f.ctl, func(ctx context.Context, progress func(float64)) (*fitOutcome, error) {
@@ -564,9 +579,12 @@ func (f *fitWindow) start() {
 
 // traced keeps the objective of an accepted step and, a few times a
 // second, draws the trace. It is called from the fit's workers.
-func (f *fitWindow) traced(_ int, _ int, cost float64) {
+func (f *fitWindow) traced(start int, _ int, cost float64) {
 	f.traceMu.Lock()
-	f.trace = append(f.trace, cost)
+	for len(f.trace) <= start {
+		f.trace = append(f.trace, nil)
+	}
+	f.trace[start] = append(f.trace[start], cost)
 	draw := time.Since(f.traceDrew) > 250*time.Millisecond
 	if draw {
 		f.traceDrew = time.Now()
@@ -580,16 +598,15 @@ func (f *fitWindow) traced(_ int, _ int, cost float64) {
 // drawTrace draws the objective of every accepted step so far.
 func (f *fitWindow) drawTrace() {
 	f.traceMu.Lock()
-	ys := slices.Clone(f.trace)
+	runs := make([][]float64, len(f.trace))
+	for i, r := range f.trace {
+		runs[i] = slices.Clone(r)
+	}
 	f.traceMu.Unlock()
-	if len(ys) == 0 {
+	if len(runs) == 0 {
 		return
 	}
-	xs := make([]float64, len(ys))
-	for i := range xs {
-		xs[i] = float64(i + 1)
-	}
-	p, err := plotting.XYPlot(xs, ys, plotting.Options{Title: "Objective of each accepted step (all starts, in order)",
+	p, err := plotting.TracePlot(runs, plotting.Options{Title: "Objective after each accepted step of each start",
 		XLabel: "accepted step", YLabel: "½ weighted sum of squares", LogY: true})
 	if err == nil {
 		f.traceFig.set(p, "")
@@ -668,9 +685,10 @@ func inWords(e calibrate.Estimated) string {
 	return "determined"
 }
 
-// estimateRows lays out the estimate table (the batch command's
-// estimates.csv columns, with the unit and the verdict in words).
-func estimateRows(rep *calibrate.Report) [][]string {
+// estimateRows lays out the estimate table: the batch command's
+// estimates.csv columns with the unit (from the estimate, else from
+// unitOf when not nil) after the value and the verdict in words last.
+func estimateRows(rep *calibrate.Report, unitOf func(target string) string) [][]string {
 	rows := [][]string{{"name", "value", "unit", "se", "ci95_low", "ci95_high", "profile_low", "profile_high", "in_words"}}
 	num := func(v float64) string {
 		switch {
@@ -684,39 +702,48 @@ func estimateRows(rep *calibrate.Report) [][]string {
 		return strconv.FormatFloat(v, 'g', -1, 64)
 	}
 	for _, e := range rep.Estimates {
-		rows = append(rows, []string{e.Name, num(e.Value), e.Unit, num(e.SE), num(e.Low), num(e.High), num(e.ProfileLow), num(e.ProfileHigh), inWords(e)})
+		unit := e.Unit
+		if unit == "" && unitOf != nil {
+			unit = unitOf(e.Target)
+		}
+		rows = append(rows, []string{e.Name, num(e.Value), unit, num(e.SE), num(e.Low), num(e.High), num(e.ProfileLow), num(e.ProfileHigh), inWords(e)})
 	}
 	return rows
 }
 
-// showEstimates fills the Estimates tab.
+// showEstimates fills the Estimates tab: the verdict in words beside the
+// value, then the intervals.
 func (f *fitWindow) showEstimates() {
 	rep := f.out.rep
-	rows := estimateRows(rep)
-	shown := make([][]string, len(rows))
-	for i, r := range rows {
-		shown[i] = slices.Clone(r)
-		if i == 0 {
-			shown[i] = []string{"Estimate", "Value", "Unit", "Std. error", "95 % low", "95 % high", "Profile low", "Profile high", "In words"}
-			continue
-		}
-		for c := 1; c < len(r)-1; c++ {
-			if c == 2 {
-				continue
+	rows := estimateRows(rep, f.targetUnit)
+	// Columns of estimateRows shown, in order.
+	order := []int{0, 1, 2, 8, 3, 4, 5, 6, 7}
+	shown := [][]string{{"Estimate", "Value", "Unit", "In words", "Std. error", "95 % low", "95 % high", "Profile low", "Profile high"}}
+	for _, r := range rows[1:] {
+		var row []string
+		for _, c := range order {
+			v := r[c]
+			switch {
+			case c == 0 || c == 2 || c == 8:
+			case v == "":
+				v = "—"
+			case v == "inf":
+				v = "∞"
+			case v == "-inf":
+				v = "−∞"
+			default:
+				if x, err := strconv.ParseFloat(v, 64); err == nil {
+					v = cell(x)
+				}
 			}
-			if v, err := strconv.ParseFloat(r[c], 64); err == nil {
-				shown[i][c] = cell(v)
-			} else if r[c] == "" {
-				shown[i][c] = "—"
-			} else {
-				shown[i][c] = strings.Replace(strings.Replace(r[c], "-inf", "−∞", 1), "inf", "∞", 1)
-			}
+			row = append(row, v)
 		}
+		shown = append(shown, row)
 	}
 	t := textTable(shown)
-	t.SetColumnWidth(0, 130)
-	t.SetColumnWidth(2, 70)
-	t.SetColumnWidth(8, 330)
+	for c, w := range []float32{110, 80, 60, 250, 90, 80, 80, 90, 90} {
+		t.SetColumnWidth(c, w)
+	}
 	f.table.Objects = []fyne.CanvasObject{t}
 	f.table.Refresh()
 	var b strings.Builder
@@ -788,9 +815,15 @@ func (f *fitWindow) residualFigure(i int) (*plot.Plot, error) {
 	if f.logTime() && len(res.T) > 1 {
 		first = res.T[1]
 	}
-	zero := plotting.Trajectories{Times: []float64{first, res.T[len(res.T)-1]}, Names: []string{"zero"}, Values: [][]float64{{0}, {0}}}
+	// A zero line per measured quantity, in its colour: the model's
+	// curve, where every residual would lie for a perfect fit.
+	zero := plotting.Trajectories{Times: []float64{first, res.T[len(res.T)-1]}, Names: res.Names,
+		Values: [][]float64{make([]float64, len(res.Names)), make([]float64, len(res.Names))}}
 	o := plotting.Options{Title: "Residuals, " + name + " (observed − fitted)", XLabel: "time", XUnit: f.model.Units.Time,
-		YLabel: "residual", YUnit: f.model.Units.Amount, LogX: f.logTime(), ColourIndex: []int{7}}
+		YLabel: "residual", YUnit: f.model.Units.Amount, LogX: f.logTime(), ColourIndex: make([]int, len(res.Names))}
+	for j, n := range res.Names {
+		o.ColourIndex[j] = run.View{Slots: f.slots}.Slot(n, j)
+	}
 	return plotting.MeasuredPlot(zero, pts, o)
 }
 
@@ -984,7 +1017,7 @@ func (f *fitWindow) tableRows(name string) [][]string {
 		}
 		return rows
 	}
-	return estimateRows(rep)
+	return estimateRows(rep, f.targetUnit)
 }
 
 // provenance describes the fit's exports.

@@ -724,3 +724,24 @@ func TestMeasuredOverTrajectories(t *testing.T) {
 		t.Errorf("title %q does not note the measurement at time 0", p.Title.Text)
 	}
 }
+
+// TracePlot draws every run and the lowest value so far; an empty input
+// gives an empty figure with a note, not an error.
+func TestTracePlot(t *testing.T) {
+	p, err := TracePlot([][]float64{{100, 10, 1}, {50, 40, 30, 20}, nil}, Options{LogY: true, NoLegend: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	img := Render(p, 640, 400)
+	if n := countNear(img, Colour(1)); n < 100 {
+		t.Errorf("the lowest-so-far line is not drawn (%d pixels)", n)
+	}
+	p, _ = TracePlot(nil, Options{})
+	if !strings.Contains(p.Title.Text, "no data") {
+		t.Errorf("empty trace titled %q", p.Title.Text)
+	}
+	p, _ = TracePlot([][]float64{{1, 0, -1}}, Options{LogY: true})
+	if !strings.Contains(p.Title.Text, "2 values a log axis cannot show") {
+		t.Errorf("title %q does not note the values ≤ 0", p.Title.Text)
+	}
+}
