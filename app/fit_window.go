@@ -138,6 +138,7 @@ type fitWindow struct {
 	profName  *widget.Select
 	profiles  *studyFigure
 	writeBtn  *widget.Button
+	afterRun  func() // called when a run has ended and its results are shown
 }
 
 // openFit opens the fit window on the model as it is now, with the
@@ -615,6 +616,9 @@ func (f *fitWindow) drawTrace() {
 
 // done shows a finished (or stopped) fit.
 func (f *fitWindow) done(out *fitOutcome, err error) {
+	if f.afterRun != nil {
+		defer f.afterRun()
+	}
 	f.drawTrace()
 	if err != nil {
 		f.ctl.status.SetText("The fit did not finish: " + plainError(err))

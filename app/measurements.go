@@ -95,6 +95,8 @@ func (w *mainWindow) loadMeasurements(path string) bool {
 	switch {
 	case w.doc.Path == "":
 		line += " They will be remembered beside the model when it is saved."
+	case w.screenshotMode:
+		// A picture for checks leaves no file behind.
 	default:
 		if err := calibrate.SaveCompanion(w.doc.Path, path); err != nil {
 			w.showError(fmt.Errorf("the measurements are shown, but where they come from could not be remembered beside the model: %w", err))

@@ -34,13 +34,14 @@ type sensOutcome struct {
 // timeSensWindow shows the scaled sensitivities of a chosen output over
 // time.
 type timeSensWindow struct {
-	win     fyne.Window
-	model   *network.Model
-	output  *widget.Select
-	ctl     *runControls
-	fig     *studyFigure
-	out     *sensOutcome
-	targets []string
+	win      fyne.Window
+	model    *network.Model
+	output   *widget.Select
+	ctl      *runControls
+	fig      *studyFigure
+	out      *sensOutcome
+	targets  []string
+	afterRun func() // called when a run has ended and its results are shown
 }
 
 func (w *mainWindow) openTimeSensitivity() {
@@ -99,6 +100,9 @@ func (s *timeSensWindow) start() {
 		progress(1)
 		return &sensOutcome{res: res, targets: targets, base: ev.Base()}, nil
 	}, func(o *sensOutcome, err error) {
+		if s.afterRun != nil {
+			defer s.afterRun()
+		}
 		if err != nil {
 			s.ctl.status.SetText("The sensitivities could not be computed: " + plainError(err))
 			return
@@ -149,6 +153,9 @@ func (s *timeSensWindow) figure() (*plot.Plot, error) {
 	var xs []float64
 	var keep []int
 	for i, t := range ts {
+		if logX && t <= 0 {
+			continue // time 0 of a log grid has no place on the axis
+		}
 		if len(xs) > 0 && t <= xs[len(xs)-1] {
 			xs[len(xs)-1], keep[len(keep)-1] = t, i
 			continue

@@ -75,7 +75,8 @@ type mainWindow struct {
 	recoveryFile string
 	exitCode     int
 	onDrawn      func()
-	captureSoon  func() // in screenshot mode: capture the window shortly
+	captureSoon  func()      // in screenshot mode: capture the window shortly
+	shotTarget   fyne.Window // the window captured instead of this one (--view fit)
 }
 
 func newMainWindow(a fyne.App, screenshotMode bool) *mainWindow {
