@@ -182,52 +182,21 @@ func (w *mainWindow) showDataProblems(path string, err error) {
 }
 
 // measuredShown returns the measurements for the figure of outcome o, in
-// the units o is shown in: the file holds the model's units, and the
-// model's display units convert them as they convert the curves.
+// the units o is shown in (the file holds the model's units).
 func (w *mainWindow) measuredShown(o *run.Outcome) []plotting.Measured {
 	if w.meas.data == nil || o == nil {
 		return nil
 	}
-	ft, fy := displayFactors(w.doc.Model(), o)
-	out := make([]plotting.Measured, 0, len(w.meas.data.Points))
-	for _, p := range w.meas.data.Points {
-		f := 1.0
-		if k, ok := fy[p.Name]; ok {
-			f = k
-		}
-		out = append(out, plotting.Measured{T: p.Time * ft, Y: p.Value * f, SD: p.SD * f, Name: p.Name})
-	}
-	return out
+	return run.MeasuredShown(w.doc.Model(), o, measuredPoints(w.meas.data))
 }
 
-// displayFactors returns the factors from the model's units to those
-// outcome o is shown in: one for times and one per column, found by
-// converting an outcome of ones with the same columns as run.NewOutcome
-// converts every result (so that points and curves always agree).
-func displayFactors(m *network.Model, o *run.Outcome) (float64, map[string]float64) {
-	probe := &run.Outcome{TimeUnit: m.Units.Time, AmountUnit: m.Units.Amount, Names: o.Names, Species: o.Species,
-		Units: make([]string, len(o.Names)), T: []float64{1}, Y: [][]float64{make([]float64, len(o.Names))}}
-	for j := range o.Names {
-		probe.Y[0][j] = 1
-		if j < o.Species {
-			probe.Units[j] = m.Units.Amount
-			continue
-		}
-		for _, a := range m.Assignments {
-			if a.Name == o.Names[j] {
-				probe.Units[j] = a.Unit
-			}
-		}
+// measuredPoints returns the points of d for a figure.
+func measuredPoints(d *calibrate.Data) []plotting.Measured {
+	out := make([]plotting.Measured, len(d.Points))
+	for i, p := range d.Points {
+		out[i] = plotting.Measured{T: p.Time, Y: p.Value, SD: p.SD, Name: p.Name}
 	}
-	fy := map[string]float64{}
-	c, err := probe.Convert(m.Simulation.Display)
-	if err != nil || len(c.T) != 1 {
-		return 1, fy
-	}
-	for j, n := range o.Names {
-		fy[n] = c.Y[0][j]
-	}
-	return c.T[0], fy
+	return out
 }
 
 // measuredSummary describes the measurements for the fit window: "18

@@ -9,7 +9,6 @@ package main
 import (
 	"context"
 	"fmt"
-	"math"
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/container"
@@ -113,24 +112,6 @@ func (s *timeSensWindow) start() {
 	})
 }
 
-// scaledGrid returns the scaled sensitivities of output k: z[j][i] for
-// parameter j at time i (NaN where the output is zero).
-func scaledGrid(o *sensOutcome, k int) [][]float64 {
-	nq := len(o.targets)
-	z := make([][]float64, nq)
-	for j := range z {
-		z[j] = make([]float64, len(o.res.T))
-		for i := range o.res.T {
-			v, ok := calibrate.Scaled(o.res.Y[i][k], o.base[j], o.res.D[i][k*nq+j])
-			if !ok {
-				v = math.NaN()
-			}
-			z[j][i] = v
-		}
-	}
-	return z
-}
-
 // figure draws the heat map of the chosen output.
 func (s *timeSensWindow) figure() (*plot.Plot, error) {
 	if s.out == nil {
@@ -145,38 +126,13 @@ func (s *timeSensWindow) figure() (*plot.Plot, error) {
 	if k < 0 {
 		return nil, fmt.Errorf("no quantity %q", s.output.Selected)
 	}
-	ts := s.out.res.T
-	z := scaledGrid(s.out, k)
+	z := calibrate.ScaledGrid(s.out.res, k, s.out.base)
 	logX := s.model.Simulation.WithDefaults().Output.Spacing == "log"
-	// Times must ascend strictly for the cells: repeated times (an
-	// event's) keep their last value.
-	var xs []float64
-	var keep []int
-	for i, t := range ts {
-		if logX && t <= 0 {
-			continue // time 0 of a log grid has no place on the axis
-		}
-		if len(xs) > 0 && t <= xs[len(xs)-1] {
-			xs[len(xs)-1], keep[len(keep)-1] = t, i
-			continue
-		}
-		xs, keep = append(xs, t), append(keep, i)
-	}
-	zz := make([][]float64, len(z))
-	ys := make([]float64, len(z))
-	for j := range z {
-		ys[j] = float64(j)
-		zz[j] = make([]float64, len(keep))
-		for a, i := range keep {
-			zz[j][a] = z[j][i]
-		}
-	}
-	p, err := plotting.HeatMap(xs, ys, zz, plotting.Options{Title: "Scaled sensitivity of " + s.output.Selected,
+	p, err := plotting.SensitivityMap(s.out.res.T, s.out.targets, z, plotting.Options{Title: "Scaled sensitivity of " + s.output.Selected,
 		XLabel: "time", XUnit: s.model.Units.Time, YLabel: "parameter", LogX: logX}, "∂ln "+s.output.Selected+"/∂ln p")
 	if err != nil {
 		return nil, err
 	}
-	plotting.NameAxis(&p.Y, s.out.targets)
 	return p, nil
 }
 

@@ -745,3 +745,27 @@ func TestTracePlot(t *testing.T) {
 		t.Errorf("title %q does not note the values ≤ 0", p.Title.Text)
 	}
 }
+
+// SensitivityMap keeps the later row at a repeated time, leaves time 0
+// out of a log axis quietly, labels the rows by name, and refuses times
+// that descend or rows of the wrong length.
+func TestSensitivityMap(t *testing.T) {
+	z := [][]float64{{0, 1, 2, 3}, {0, -1, -2, -3}}
+	p, err := SensitivityMap([]float64{0, 1, 1, 2}, []string{"ka", "ke"}, z, Options{LogX: true}, "s")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(p.Title.Text, "not shown") {
+		t.Errorf("time 0 noted on a log axis: %q", p.Title.Text)
+	}
+	ticks := p.Y.Tick.Marker.Ticks(p.Y.Min, p.Y.Max)
+	if len(ticks) != 2 || ticks[0].Label != "ka" || ticks[1].Label != "ke" {
+		t.Errorf("row labels %+v", ticks)
+	}
+	if _, err := SensitivityMap([]float64{0, 2, 1}, []string{"a"}, [][]float64{{1, 2, 3}}, Options{}, "s"); err == nil {
+		t.Error("descending times accepted")
+	}
+	if _, err := SensitivityMap([]float64{0, 1}, []string{"a"}, [][]float64{{1}}, Options{}, "s"); err == nil {
+		t.Error("a short row accepted")
+	}
+}
