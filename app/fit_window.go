@@ -689,28 +689,18 @@ func inWords(e calibrate.Estimated) string {
 	return "determined"
 }
 
-// estimateRows lays out the estimate table: the batch command's
-// estimates.csv columns with the unit (from the estimate, else from
-// unitOf when not nil) after the value and the verdict in words last.
+// estimateRows lays out the estimate table: calibrate.EstimateRows (the
+// batch command's estimates.csv) with the unit (from the estimate, else
+// from unitOf when not nil) and the verdict in words added at the end.
 func estimateRows(rep *calibrate.Report, unitOf func(target string) string) [][]string {
-	rows := [][]string{{"name", "value", "unit", "se", "ci95_low", "ci95_high", "profile_low", "profile_high", "in_words"}}
-	num := func(v float64) string {
-		switch {
-		case math.IsNaN(v):
-			return ""
-		case math.IsInf(v, 1):
-			return "inf"
-		case math.IsInf(v, -1):
-			return "-inf"
-		}
-		return strconv.FormatFloat(v, 'g', -1, 64)
-	}
-	for _, e := range rep.Estimates {
+	rows := calibrate.EstimateRows(rep)
+	rows[0] = append(rows[0], "unit", "in_words")
+	for i, e := range rep.Estimates {
 		unit := e.Unit
 		if unit == "" && unitOf != nil {
 			unit = unitOf(e.Target)
 		}
-		rows = append(rows, []string{e.Name, num(e.Value), unit, num(e.SE), num(e.Low), num(e.High), num(e.ProfileLow), num(e.ProfileHigh), inWords(e)})
+		rows[i+1] = append(rows[i+1], unit, inWords(e))
 	}
 	return rows
 }
@@ -721,14 +711,14 @@ func (f *fitWindow) showEstimates() {
 	rep := f.out.rep
 	rows := estimateRows(rep, f.targetUnit)
 	// Columns of estimateRows shown, in order.
-	order := []int{0, 1, 2, 8, 3, 4, 5, 6, 7}
+	order := []int{0, 1, 7, 8, 2, 3, 4, 5, 6}
 	shown := [][]string{{"Estimate", "Value", "Unit", "In words", "Std. error", "95 % low", "95 % high", "Profile low", "Profile high"}}
 	for _, r := range rows[1:] {
 		var row []string
 		for _, c := range order {
 			v := r[c]
 			switch {
-			case c == 0 || c == 2 || c == 8:
+			case c == 0 || c >= 7:
 			case v == "":
 				v = "—"
 			case v == "inf":
@@ -985,41 +975,17 @@ func (f *fitWindow) write() {
 // fitTables are the tables the window exports, by name.
 var fitTables = []string{"Estimates", "Measured and fitted values", "Correlations", "Starts"}
 
-// tableRows returns the rows of the named table.
+// tableRows returns the rows of the named table, in the batch command's
+// layouts (estimates with the unit and the verdict in words added).
 func (f *fitWindow) tableRows(name string) [][]string {
 	rep := f.out.rep
-	num := func(v float64) string {
-		if math.IsNaN(v) {
-			return ""
-		}
-		return strconv.FormatFloat(v, 'g', -1, 64)
-	}
 	switch name {
 	case "Measured and fitted values":
-		rows := [][]string{{"experiment", "time", "name", "observed", "sd", "fitted", "residual"}}
-		for _, r := range rep.Residuals {
-			rows = append(rows, []string{r.Experiment, num(r.Time), r.Name, num(r.Observed), num(r.SD), num(r.Fitted), num(r.Residual)})
-		}
-		return rows
+		return calibrate.FittedRows(rep)
 	case "Correlations":
-		rows := [][]string{{"name"}}
-		for _, e := range rep.Estimates {
-			rows[0] = append(rows[0], e.Name)
-		}
-		for a, e := range rep.Estimates {
-			row := []string{e.Name}
-			for b := range rep.Estimates {
-				row = append(row, num(rep.Corr.At(a, b)))
-			}
-			rows = append(rows, row)
-		}
-		return rows
+		return calibrate.CorrelationRows(rep)
 	case "Starts":
-		rows := [][]string{{"start", "objective", "converged", "iterations", "reason"}}
-		for _, s := range rep.Starts {
-			rows = append(rows, []string{strconv.Itoa(s.Index + 1), num(s.Objective), strconv.FormatBool(s.Converged), strconv.Itoa(s.Iterations), s.Reason})
-		}
-		return rows
+		return calibrate.StartRows(rep)
 	}
 	return estimateRows(rep, f.targetUnit)
 }

@@ -95,7 +95,7 @@ func (w *mainWindow) loadMeasurements(path string) bool {
 	switch {
 	case w.doc.Path == "":
 		line += " They will be remembered beside the model when it is saved."
-	case w.screenshotMode:
+	case w.pictureOnly:
 		// A picture for checks leaves no file behind.
 	default:
 		if err := calibrate.SaveCompanion(w.doc.Path, path); err != nil {

@@ -21,6 +21,7 @@ const screenshotTimeout = 60 * time.Second
 // screenshot arranges for the window to be captured to path once the
 // first plot is drawn, and for the program to exit afterwards.
 func (w *mainWindow) screenshot(path string) {
+	w.pictureOnly = true
 	timer := time.AfterFunc(screenshotTimeout, func() {
 		fmt.Fprintf(os.Stderr, "app: no plot was drawn within %v; no screenshot saved\n", screenshotTimeout)
 		os.Exit(1)

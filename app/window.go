@@ -77,6 +77,7 @@ type mainWindow struct {
 	onDrawn      func()
 	captureSoon  func()      // in screenshot mode: capture the window shortly
 	shotTarget   fyne.Window // the window captured instead of this one (--view fit)
+	pictureOnly  bool        // a --screenshot run: leave no companion file behind
 }
 
 func newMainWindow(a fyne.App, screenshotMode bool) *mainWindow {
