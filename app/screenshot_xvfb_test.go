@@ -147,6 +147,15 @@ var (
 	buildErr  error
 )
 
+// TestMain removes the program built for the screenshot tests.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if builtBin != "" {
+		os.RemoveAll(filepath.Dir(builtBin))
+	}
+	os.Exit(code)
+}
+
 // shotOf runs the program under xvfb-run with args and --screenshot, and
 // returns the decoded picture; keep it with the environment variable env.
 func shotOf(t *testing.T, env string, args ...string) image.Image {
