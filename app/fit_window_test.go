@@ -213,6 +213,7 @@ func TestFitWindowRecoversAndWritesBack(t *testing.T) {
 		}
 	}
 	onUI(func() {
+		w.autoRerun = false // no re-run outliving the test
 		f.writeBtn.OnTapped()
 		got := w.doc.Model().Parameters[0].Value
 		if math.Abs(got-f.out.rep.Estimates[0].Value) != 0 {
@@ -236,7 +237,9 @@ func TestFitWindowRecoversAndWritesBack(t *testing.T) {
 // quantity, a log scale from 0, a start outside its bounds.
 func TestFitWindowFormErrors(t *testing.T) {
 	dir := t.TempDir()
-	f := newFitWindow(newStudyApp(t), conversionModel(1), "test", nil, func([]sliders.Knob) string { return "" })
+	a := newStudyApp(t)
+	var f *fitWindow
+	onUI(func() { f = newFitWindow(a, conversionModel(1), "test", nil, func([]sliders.Knob) string { return "" }) })
 	f.ctl.deliver = onUI
 	check := func(want string) {
 		t.Helper()
