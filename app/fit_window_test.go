@@ -239,7 +239,9 @@ func TestFitWindowFormErrors(t *testing.T) {
 	dir := t.TempDir()
 	a := newStudyApp(t)
 	var f *fitWindow
-	onUI(func() { f = newFitWindow(a, conversionModel(1), "test", nil, func([]sliders.Knob) string { return "" }) })
+	onUI(func() {
+		f = newFitWindow(a, conversionModel(1), "test", nil, func([]sliders.Knob) string { return "" })
+	})
 	f.ctl.deliver = onUI
 	check := func(want string) {
 		t.Helper()
