@@ -266,3 +266,68 @@ func TestFitWindowFormErrors(t *testing.T) {
 	check("k: the start 500 lies outside the bounds 0.01 to 100")
 	onUI(func() { f.win.Close() })
 }
+
+// A fit where the data determine only the product ka·kb (the invented
+// conversion at rate ka·kb·A of app/calibrate's tests: a structurally
+// non-identifiable pair, common practice) says so in words in the
+// estimate table and on the status line, rather than giving an interval.
+func TestFitWindowSaysNotDetermined(t *testing.T) {
+	dir := t.TempDir()
+	b, err := os.ReadFile("calibrate/testdata/product-model.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	model := filepath.Join(dir, "product.json")
+	os.WriteFile(model, b, 0o644)
+	var csv strings.Builder
+	csv.WriteString("time,B,sd_B\n")
+	for i, tt := range []float64{0.5, 1, 2, 3, 4, 5, 6, 8} {
+		fmt.Fprintf(&csv, "%g,%.8g,0.01\n", tt, 1-math.Exp(-0.5*tt)+0.005*float64(1-2*(i%2)))
+	}
+	data := filepath.Join(dir, "b.csv")
+	os.WriteFile(data, []byte(csv.String()), 0o644)
+	w := openedWindow(t, model)
+	var f *fitWindow
+	onUI(func() {
+		w.loadMeasurements(data)
+		f = w.fitWindow()
+		f.ctl.deliver = onUI
+		f.row("ka").use.SetChecked(true)
+		f.row("kb").use.SetChecked(true)
+		f.starts.SetText("1")
+	})
+	runAndWait(t, f.ctl)
+	if f.out == nil {
+		t.Fatalf("no result; status %q", f.ctl.status.Text)
+	}
+	rows := f.tableRows("Estimates")
+	for _, r := range rows[1:] {
+		if r[len(r)-1] != "not determined by the data" || r[3] != "-inf" || r[4] != "inf" {
+			t.Errorf("row %v: want “not determined by the data” and an unbounded interval", r)
+		}
+	}
+	if !strings.Contains(f.ctl.status.Text, "2 quantities are not determined by the data") {
+		t.Errorf("status %q does not say so", f.ctl.status.Text)
+	}
+	onUI(f.win.Close)
+}
+
+// inWords gives each verdict its words, the bound first.
+func TestInWords(t *testing.T) {
+	inf := math.Inf(1)
+	for _, c := range []struct {
+		e    calibrate.Estimated
+		want string
+	}{
+		{calibrate.Estimated{Value: 1, SE: 0.1, Determined: true, ProfileLow: math.NaN(), ProfileHigh: math.NaN()}, "determined"},
+		{calibrate.Estimated{Value: 1, AtBound: -1}, "on its lower bound: no interval"},
+		{calibrate.Estimated{Value: 1, AtBound: 1}, "on its upper bound: no interval"},
+		{calibrate.Estimated{Value: 1, SE: inf}, "not determined by the data"},
+		{calibrate.Estimated{Value: 1, SE: 0.1, Determined: true, ProfileLow: 0.5, ProfileHigh: inf}, "not bounded by the data on one side (open profile)"},
+		{calibrate.Estimated{Value: 1, SE: 20, Determined: true, ProfileLow: math.NaN(), ProfileHigh: math.NaN()}, "poorly determined (SE above ten times the value)"},
+	} {
+		if got := inWords(c.e); got != c.want {
+			t.Errorf("%+v: %q, want %q", c.e, got, c.want)
+		}
+	}
+}
