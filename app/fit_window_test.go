@@ -295,6 +295,7 @@ func TestFitWindowSaysNotDetermined(t *testing.T) {
 		f.row("ka").use.SetChecked(true)
 		f.row("kb").use.SetChecked(true)
 		f.starts.SetText("1")
+		f.profile.SetChecked(true)
 	})
 	runAndWait(t, f.ctl)
 	if f.out == nil {
@@ -308,6 +309,15 @@ func TestFitWindowSaysNotDetermined(t *testing.T) {
 	}
 	if !strings.Contains(f.ctl.status.Text, "2 quantities are not determined by the data") {
 		t.Errorf("status %q does not say so", f.ctl.status.Text)
+	}
+	// Asked for, the profiles are drawn, and open on at least one side.
+	if f.profiles.plot == nil || len(f.profName.Options) != 2 {
+		t.Errorf("profiles not drawn (%v, options %v)", f.profiles.plot != nil, f.profName.Options)
+	}
+	for _, r := range rows[1:] {
+		if r[5] != "-inf" && r[6] != "inf" {
+			t.Errorf("row %v: the profile interval is closed on both sides", r)
+		}
 	}
 	onUI(f.win.Close)
 }
@@ -330,4 +340,28 @@ func TestInWords(t *testing.T) {
 			t.Errorf("%+v: %q, want %q", c.e, got, c.want)
 		}
 	}
+}
+
+// The Sensitivity over time window draws the heat map of the chosen
+// quantity and exports the batch command's table.
+func TestTimeSensitivityWindow(t *testing.T) {
+	a := newStudyApp(t)
+	var s *timeSensWindow
+	var err error
+	onUI(func() { s, err = newTimeSensWindow(a, conversionModel(0.3), "test") })
+	if err != nil {
+		t.Fatal(err)
+	}
+	s.ctl.deliver = onUI
+	onUI(s.win.Show)
+	runAndWait(t, s.ctl)
+	if s.out == nil || s.fig.plot == nil {
+		t.Fatalf("no heat map; status %q", s.ctl.status.Text)
+	}
+	onUI(func() { s.output.SetSelected("B") })
+	if title := s.fig.plot.Title.Text; !strings.Contains(title, "Scaled sensitivity of B") {
+		t.Errorf("after choosing B the figure is %q", title)
+	}
+	saveShot(t, s.win, shotDir(t), "kinetarium-sensitivity-over-time.png")
+	onUI(s.win.Close)
 }
