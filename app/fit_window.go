@@ -445,6 +445,9 @@ func (f *fitWindow) loadPlanDialog() {
 // The plan's own model file is not used: the window fits the model it
 // was opened on.
 func (f *fitWindow) loadPlan(path string) error {
+	if abs, err := filepath.Abs(path); err == nil {
+		path = abs // the experiments' files are then found from anywhere
+	}
 	spec, err := calibrate.LoadSpec(path)
 	if err != nil {
 		return err

@@ -365,3 +365,45 @@ func TestTimeSensitivityWindow(t *testing.T) {
 	saveShot(t, s.win, shotDir(t), "kinetarium-sensitivity-over-time.png")
 	onUI(s.win.Close)
 }
+
+// Load fit plan… takes the example plan's experiments (ticked, with their
+// conditions), quantities, bounds and starts; Cancel stops the run it
+// starts, and the window says the fit did not finish.
+func TestFitWindowPlanAndCancel(t *testing.T) {
+	a := newStudyApp(t)
+	var f *fitWindow
+	var err error
+	onUI(func() {
+		f = newFitWindow(a, exampleModel(t, "protease-inhibitor.json"), "test", nil, func([]sliders.Knob) string { return "" })
+		err = f.loadPlan("../examples/fits/protease-fit.json")
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.ctl.deliver = onUI
+	var ticked []string
+	for _, r := range f.rows {
+		if r.use.Checked {
+			ticked = append(ticked, r.knob.Ref())
+		}
+	}
+	if strings.Join(ticked, ",") != "kon,kcat,kon_i,koff_i,klock" || len(f.exps) != 3 || f.starts.Text != "20" {
+		t.Fatalf("plan read as quantities %v, %d experiments, %s starts", ticked, len(f.exps), f.starts.Text)
+	}
+	if e := f.exps[2].exp; e.Initial["I"] != 0.05 || !filepath.IsAbs(e.Data) {
+		t.Errorf("third experiment %+v; want I starting at 0.05 and an absolute data path", e)
+	}
+	if r := f.row("kcat"); r.lower.Text != "0.5" || r.upper.Text != "100" || r.start.Text != "3" || !r.log.Checked {
+		t.Errorf("kcat's row: %s to %s from %s, log %v", r.lower.Text, r.upper.Text, r.start.Text, r.log.Checked)
+	}
+	onUI(func() { f.ctl.run.OnTapped() })
+	onUI(f.ctl.stopRun)
+	waitFor(t, "the run to stop", func() bool { return !f.ctl.running })
+	if !strings.Contains(f.ctl.status.Text, "did not finish") {
+		t.Errorf("after Cancel the status is %q", f.ctl.status.Text)
+	}
+	if err := f.loadPlan("../examples/fits/no-such-plan.json"); err == nil {
+		t.Error("a missing plan was accepted")
+	}
+	onUI(f.win.Close)
+}
