@@ -84,6 +84,7 @@ fuzz:
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzMergePart -fuzztime $(FUZZTIME)
 	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzRead -fuzztime $(FUZZTIME)
 	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzMathML -fuzztime $(FUZZTIME)
+	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadCompanion -fuzztime $(FUZZTIME)
 
 # Every case of the SBML Test Suite (make test runs every third): the
 # report and its summary by tag, from ../shared/reference/sbml-test-suite.

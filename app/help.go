@@ -185,6 +185,27 @@ the reaction's rate at the slider's time; Play runs through it.
   (first-order and total indices with intervals), or screens them by their
   elementary effects.
 
+## Measurements and fits
+
+**Data ▸ Load measurements…** reads a CSV or TSV file with a ` + "`time`" + ` column,
+one column per measured species or assignment and optional ` + "`sd_NAME`" + `
+columns of standard deviations, and draws the points with their SD bars
+over the curves in each species' colour. A file with mistakes is not shown:
+a dialog names each problem's line and column. The file's place is kept in
+` + "`MODEL.beside.json`" + ` next to the model (never in the model), and the points
+come back when the model is opened. **Data ▸ Clear measurements** forgets
+them. **Data ▸ Fit to measurements…** estimates the quantities you tick,
+within their bounds, from one or more experiments, with standard errors,
+95 % intervals and, when asked, profile intervals; it says in words when the
+data do not determine a quantity. **Write estimates into model** is one
+edit that Undo takes back. **Analyse ▸ Sensitivity over time…** shows how
+strongly each parameter moves a chosen quantity along the run (the scaled
+sensitivity ∂ln y/∂ln p).
+
+**Fitted values are research aids, not clinical or dosing advice.** An
+interval says how well these data determine a constant under this model,
+not whether the model is right.
+
 ## Caution
 
 ` + caution + `

@@ -446,6 +446,13 @@ func saveTable(path string, rows [][]string, what string, prep *study.Prepared) 
 // exportFigureAs asks for a format, then a file, and saves the figure made
 // by figure there, with the provenance of a study of kind what on prep.
 func exportFigureAs(win fyne.Window, base, what string, prep *study.Prepared, figure func() (*plot.Plot, error), saved func(path string)) {
+	exportPlot(win, base, func() (*run.Provenance, error) { return studyProvenance(what, prep) }, figure, saved)
+}
+
+// exportPlot asks for a format, then a file, and saves the figure made by
+// figure there, at the size and resolution the batch command uses, with
+// the provenance prov gives.
+func exportPlot(win fyne.Window, base string, prov func() (*run.Provenance, error), figure func() (*plot.Plot, error), saved func(path string)) {
 	format := widget.NewSelect(figureFormats, nil)
 	format.SetSelected(figureFormats[0])
 	dialog.ShowForm("Export figure", "Choose file…", "Cancel",
@@ -455,24 +462,30 @@ func exportFigureAs(win fyne.Window, base, what string, prep *study.Prepared, fi
 			}
 			ext := formatExt(format.Selected)
 			saveAs(win, base+ext, ext, func(path string) error {
-				return saveStudyFigure(path, what, prep, figure)
+				return savePlot(path, prov, figure)
 			}, saved)
 		}, win)
+}
+
+// savePlot saves the figure made by figure to path with the provenance
+// prov gives.
+func savePlot(path string, prov func() (*run.Provenance, error), figure func() (*plot.Plot, error)) error {
+	p, err := figure()
+	if err != nil {
+		return err
+	}
+	pv, err := prov()
+	if err != nil {
+		return err
+	}
+	return plotting.Save(p, path, 0, 0, 0, pv.Metadata(""))
 }
 
 // saveStudyFigure saves the figure made by figure to path, at the size
 // and resolution the batch command uses, with the provenance of a study of
 // kind what on prep.
 func saveStudyFigure(path, what string, prep *study.Prepared, figure func() (*plot.Plot, error)) error {
-	p, err := figure()
-	if err != nil {
-		return err
-	}
-	prov, err := studyProvenance(what, prep)
-	if err != nil {
-		return err
-	}
-	return plotting.Save(p, path, 0, 0, 0, prov.Metadata(""))
+	return savePlot(path, func() (*run.Provenance, error) { return studyProvenance(what, prep) }, figure)
 }
 
 // sectionTitle is a bold heading inside a study window.
