@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic probes
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic cvode-compare probes
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -60,6 +60,19 @@ bench:
 	$(GO) test -run '^$$' -bench . -benchtime 1x ./app/analyse
 	$(GO) run ./internal/workprecision -out bench
 
+# Kinetarium against SUNDIALS CVODE, dense and KLU, at equal accuracy
+# (bench/cvode-comparison.md), and the 200- and 1,000-species solves by
+# stage beside CVODE–KLU's counters (bench/solve-stages.md and the CPU
+# profiles bench/profile-net*.pprof). Sets CVODE up with
+# scripts/install-sundials.sh (as root) when it is missing. Sizes of the
+# generated networks: make cvode-compare CVODE_SIZES=200,1000,5000
+CVODE_SIZES ?= 200,1000
+CVODE_FLAGS ?=
+cvode-compare:
+	@[ -e /opt/sundials-dev/lib/libsundials_sunlinsolklu.so ] || scripts/install-sundials.sh
+	$(GO) test -tags sundials -count=1 ./internal/cvodecmp/...
+	$(GO) run -tags sundials ./internal/cvodecmp/cmd -sizes $(CVODE_SIZES) -out bench/cvode-comparison.md -profile bench/solve-stages.md $(CVODE_FLAGS)
+
 FUZZTIME ?= 30s
 fuzz:
 	$(GO) test ./network/expr -run '^$$' -fuzz FuzzParse -fuzztime $(FUZZTIME)
@@ -78,6 +91,7 @@ fuzz:
 	$(GO) test ./solve/explore -run '^$$' -fuzz FuzzDecodeJSON -fuzztime $(FUZZTIME)
 	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzRead -fuzztime $(FUZZTIME)
 	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzMathML -fuzztime $(FUZZTIME)
+	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadCompanion -fuzztime $(FUZZTIME)
 
 # Every case of the SBML Test Suite (make test runs every third): the
 # report and its summary by tag, from ../shared/reference/sbml-test-suite.

@@ -32,7 +32,8 @@ func (w *mainWindow) analyseMenu() *fyne.Menu {
 		fyne.NewMenuItem("Control coefficients", func() { w.openSteady(true) }),
 		fyne.NewMenuItemSeparator(),
 		fyne.NewMenuItem("Continuation…", w.openContinuation),
-		fyne.NewMenuItem("Global sensitivity…", w.openSensitivity))
+		fyne.NewMenuItem("Global sensitivity…", w.openSensitivity),
+		fyne.NewMenuItem("Sensitivity over time…", w.openTimeSensitivity))
 }
 
 // textTable is a read-only table of strings with a header row.

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -11,6 +12,7 @@ import (
 	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/storage"
 
+	"kinetarium/app/calibrate"
 	"kinetarium/examples"
 	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
@@ -49,6 +51,7 @@ func (w *mainWindow) loadFile(path string) error {
 	}
 	w.exampleOf = ""
 	w.setModel(m, path)
+	w.restoreMeasurements(path)
 	w.addRecent(path)
 	return nil
 }
@@ -71,6 +74,7 @@ func (w *mainWindow) loadExample(name string) error {
 func (w *mainWindow) setModel(m *network.Model, path string) {
 	w.ctrl.Cancel()
 	w.current, w.previous = nil, nil
+	w.meas = measurements{}
 	w.fresh = true
 	w.hidden = map[string]bool{}
 	w.plot.view.Zoom = nil
@@ -162,6 +166,11 @@ func (w *mainWindow) saveTo(path string) {
 	w.addRecent(path)
 	w.removeRecovery()
 	w.updateTitle()
+	if w.meas.data != nil {
+		if err := calibrate.SaveCompanion(path, w.meas.path); err != nil {
+			w.showError(fmt.Errorf("the model is saved, but its measurements could not be remembered beside it: %w", err))
+		}
+	}
 	w.setStatus("Saved "+path, false)
 }
 

@@ -57,14 +57,19 @@ reaction's rate must then come out in concentration per time; the form
 shows the unit each field needs ("Rate constant in 1/(uM·s) for a
 second-order step") and the messages name any field or part of a formula
 whose unit does not fit, with the factor when only the scale is off.
-Units are checked, never used to convert numbers in the calculation.
+Assignments are checked against their unit, and events too: both sides
+of a "when" alike, "add" an amount (concentration × volume), "set" the
+unit of what it sets. Units are checked, never used to convert numbers in
+the calculation — except volumes, which are compared in one unit.
 
 To see results in other units, choose them under Units of results in Run
 settings (Time in: h; Concentration in: nM). The plot, the
 pointer readout, Data… (headers such as "time (h)", "P (nM)") and
 Figure… follow; the model's own numbers do not change. An assignment is
 converted only when its unit is a concentration; the others stay as
-computed, and About the last run says so.
+computed, and About the last run says so. Sweeps and populations follow the
+same units in their figures and tables; the values you type there (from,
+to, times and levels of readouts) stay in the model's units.
 
 ## Expressions
 
@@ -105,7 +110,9 @@ A species' concentration is per volume of its own compartment. A reaction's
 rate is per volume of the compartment of its first reactant (of its first
 product when it has no reactants); a species in another compartment changes
 by that rate times the ratio of the two volumes. With no compartments, every
-species lives in one compartment of volume 1.
+species lives in one compartment of volume 1. A volume may carry a unit
+(L, mL, uL, nL, fL); volumes in different units are compared in one, so
+30000 mL and 30 L are the same.
 
 ## Exploring
 
@@ -181,6 +188,27 @@ the reaction's rate at the slider's time; Play runs through it.
   and ranks them by the share of a readout's variance they cause
   (first-order and total indices with intervals), or screens them by their
   elementary effects.
+
+## Measurements and fits
+
+**Data ▸ Load measurements…** reads a CSV or TSV file with a ` + "`time`" + ` column,
+one column per measured species or assignment and optional ` + "`sd_NAME`" + `
+columns of standard deviations, and draws the points with their SD bars
+over the curves in each species' colour. A file with mistakes is not shown:
+a dialog names each problem's line and column. The file's place is kept in
+` + "`MODEL.beside.json`" + ` next to the model (never in the model), and the points
+come back when the model is opened. **Data ▸ Clear measurements** forgets
+them. **Data ▸ Fit to measurements…** estimates the quantities you tick,
+within their bounds, from one or more experiments, with standard errors,
+95 % intervals and, when asked, profile intervals; it says in words when the
+data do not determine a quantity. **Write estimates into model** is one
+edit that Undo takes back. **Analyse ▸ Sensitivity over time…** shows how
+strongly each parameter moves a chosen quantity along the run (the scaled
+sensitivity ∂ln y/∂ln p).
+
+**Fitted values are research aids, not clinical or dosing advice.** An
+interval says how well these data determine a constant under this model,
+not whether the model is right.
 
 ## Caution
 

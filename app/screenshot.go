@@ -21,6 +21,7 @@ const screenshotTimeout = 60 * time.Second
 // screenshot arranges for the window to be captured to path once the
 // first plot is drawn, and for the program to exit afterwards.
 func (w *mainWindow) screenshot(path string) {
+	w.pictureOnly = true
 	timer := time.AfterFunc(screenshotTimeout, func() {
 		fmt.Fprintf(os.Stderr, "app: no plot was drawn within %v; no screenshot saved\n", screenshotTimeout)
 		os.Exit(1)
@@ -31,7 +32,11 @@ func (w *mainWindow) screenshot(path string) {
 		time.AfterFunc(2*time.Second, func() {
 			fyne.Do(func() {
 				timer.Stop()
-				img, err := capture(w.win, path)
+				target := w.win
+				if w.shotTarget != nil {
+					target = w.shotTarget
+				}
+				img, err := capture(target, path)
 				if err != nil {
 					fmt.Fprintln(os.Stderr, "app:", err)
 					w.exitCode = 1
@@ -106,4 +111,55 @@ func uniform(img image.Image) bool {
 		}
 	}
 	return true
+}
+
+// startFitView opens the fit window on the model and measurements at
+// start-up (--view fit), with the fit plan at plan when given; for a
+// screenshot it runs the fit and captures the fit window when it is done.
+func (w *mainWindow) startFitView(plan string, shot bool) error {
+	f := w.fitWindow()
+	if f == nil {
+		return fmt.Errorf("the fit window cannot open: %s", w.status.Text)
+	}
+	if plan != "" {
+		if err := f.loadPlan(plan); err != nil {
+			return err
+		}
+	}
+	f.win.Show()
+	if shot {
+		w.shotTarget, w.onDrawn = f.win, nil
+		f.afterRun = func() {
+			if w.captureSoon != nil {
+				w.captureSoon()
+			}
+		}
+		f.start()
+	}
+	return nil
+}
+
+// startSensitivityView opens the Sensitivity over time window at start-up
+// (--view sensitivity); for a screenshot it captures that window once the
+// heat map is drawn.
+func (w *mainWindow) startSensitivityView(shot bool) error {
+	m, name, ok := w.studyModel()
+	if !ok {
+		return fmt.Errorf("the sensitivity window cannot open: %s", w.status.Text)
+	}
+	s, err := newTimeSensWindow(w.app, m, name)
+	if err != nil {
+		return err
+	}
+	s.win.Show()
+	if shot {
+		w.shotTarget, w.onDrawn = s.win, nil
+		s.afterRun = func() {
+			if w.captureSoon != nil {
+				w.captureSoon()
+			}
+		}
+	}
+	s.start()
+	return nil
 }

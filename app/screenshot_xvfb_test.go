@@ -10,6 +10,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"strings"
+	"sync"
 	"testing"
 )
 
@@ -137,4 +138,98 @@ func TestScreenshotDiagram(t *testing.T) {
 	if len(colours) <= 20 || most > r.Dx()*r.Dy()*95/100 {
 		t.Errorf("the diagram region %v has %d colours, the commonest covering %d of %d pixels: it looks blank", r, len(colours), most, r.Dx()*r.Dy())
 	}
+}
+
+// The program built once for the screenshot tests below.
+var (
+	buildOnce sync.Once
+	builtBin  string
+	buildErr  error
+)
+
+// TestMain removes the program built for the screenshot tests.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if builtBin != "" {
+		os.RemoveAll(filepath.Dir(builtBin))
+	}
+	os.Exit(code)
+}
+
+// shotOf runs the program under xvfb-run with args and --screenshot, and
+// returns the decoded picture; keep it with the environment variable env.
+func shotOf(t *testing.T, env string, args ...string) image.Image {
+	t.Helper()
+	if _, err := exec.LookPath("xvfb-run"); err != nil {
+		t.Skip("xvfb-run is not installed")
+	}
+	dir := t.TempDir()
+	buildOnce.Do(func() {
+		bin, err := os.MkdirTemp("", "kinetarium-shots")
+		if err != nil {
+			buildErr = err
+			return
+		}
+		builtBin = filepath.Join(bin, "kinetarium")
+		if out, err := exec.Command("go", "build", "-o", builtBin, ".").CombinedOutput(); err != nil {
+			buildErr = fmt.Errorf("%v\n%s", err, out)
+		}
+	})
+	if buildErr != nil {
+		t.Fatalf("build: %v", buildErr)
+	}
+	bin := builtBin
+	shot := os.Getenv(env)
+	if shot == "" {
+		shot = filepath.Join(dir, "shot.png")
+	}
+	cmd := exec.Command("xvfb-run", append([]string{"-a", "-s", "-screen 0 1400x900x24", bin, "--screenshot", shot}, args...)...)
+	cmd.Env = append(os.Environ(), "LANG=en_US.UTF-8")
+	if out, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("screenshot run: %v\n%s", err, out)
+	}
+	f, err := os.Open(shot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	img, err := png.Decode(f)
+	if err != nil {
+		t.Fatalf("screenshot is not a PNG: %v", err)
+	}
+	checkPicture(t, img)
+	return img
+}
+
+// TestScreenshotMeasurements shows measurements over the protease
+// example's curves (--data) and leaves no companion file behind, as a
+// picture for checks should; keep the picture with SHOT_DATA=path.
+func TestScreenshotMeasurements(t *testing.T) {
+	dir := t.TempDir()
+	for _, f := range []string{"../examples/protease-inhibitor.json", "../examples/fits/no-inhibitor.csv"} {
+		b, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		os.WriteFile(filepath.Join(dir, filepath.Base(f)), b, 0o644)
+	}
+	shotOf(t, "SHOT_DATA", "--model", filepath.Join(dir, "protease-inhibitor.json"), "--data", filepath.Join(dir, "no-inhibitor.csv"))
+	if _, err := os.Stat(filepath.Join(dir, "protease-inhibitor.beside.json")); err == nil {
+		t.Error("the screenshot run wrote a companion file")
+	}
+}
+
+// TestScreenshotFit runs the example fit plan in the fit window (--view
+// fit) and captures that window; keep the picture with SHOT_FIT=path.
+func TestScreenshotFit(t *testing.T) {
+	model, _ := filepath.Abs("../examples/protease-inhibitor.json")
+	plan, _ := filepath.Abs("../examples/fits/protease-fit.json")
+	shotOf(t, "SHOT_FIT", "--model", model, "--view", "fit", "--plan", plan)
+}
+
+// TestScreenshotSensitivity captures the Sensitivity over time window
+// (--view sensitivity); keep the picture with SHOT_SENS=path.
+func TestScreenshotSensitivity(t *testing.T) {
+	model, _ := filepath.Abs("../examples/protease-inhibitor.json")
+	shotOf(t, "SHOT_SENS", "--model", model, "--view", "sensitivity")
 }

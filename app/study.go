@@ -118,6 +118,32 @@ func newReadoutEditor(species []string) *readoutEditor {
 	return e
 }
 
+// noteUnits adds, below the readouts, which units their times and levels
+// are read in when the model shows results in other units: they are the
+// model's, like every value typed into the study.
+func (e *readoutEditor) noteUnits(m *network.Model) {
+	d, u := m.Simulation.Display, m.Units
+	differs := func(show, own string) bool {
+		return strings.TrimSpace(show) != "" && strings.TrimSpace(show) != strings.TrimSpace(own)
+	}
+	if !differs(d.Time, u.Time) && !differs(d.Concentration, u.Amount) {
+		return
+	}
+	l := widget.NewLabel(fmt.Sprintf("Values typed here (quantities, times, levels) are in the model's units (%s, %s); results are shown in %s and %s.",
+		u.Time, u.Amount, orOwn(d.Time, u.Time), orOwn(d.Concentration, u.Amount)))
+	l.Wrapping = fyne.TextWrapWord
+	l.Importance = widget.LowImportance
+	e.content.(*fyne.Container).Add(l)
+}
+
+// orOwn returns show, or own when show is empty.
+func orOwn(show, own string) string {
+	if strings.TrimSpace(show) == "" {
+		return own
+	}
+	return show
+}
+
 // kindLabels returns the labels of the readout kinds.
 func kindLabels() []string {
 	var out []string
@@ -431,6 +457,13 @@ func saveTable(path string, rows [][]string, what string, prep *study.Prepared, 
 // by figure there, with the provenance of a study of kind what on prep
 // (partial: of a cancelled run).
 func exportFigureAs(win fyne.Window, base, what string, prep *study.Prepared, partial bool, figure func() (*plot.Plot, error), saved func(path string)) {
+	exportPlot(win, base, func() (*run.Provenance, error) { return studyProvenance(what, prep, partial) }, figure, saved)
+}
+
+// exportPlot asks for a format, then a file, and saves the figure made by
+// figure there, at the size and resolution the batch command uses, with
+// the provenance prov gives.
+func exportPlot(win fyne.Window, base string, prov func() (*run.Provenance, error), figure func() (*plot.Plot, error), saved func(path string)) {
 	format := widget.NewSelect(figureFormats, nil)
 	format.SetSelected(figureFormats[0])
 	dialog.ShowForm("Export figure", "Choose file…", "Cancel",
@@ -440,24 +473,30 @@ func exportFigureAs(win fyne.Window, base, what string, prep *study.Prepared, pa
 			}
 			ext := formatExt(format.Selected)
 			saveAs(win, base+ext, ext, func(path string) error {
-				return saveStudyFigure(path, what, prep, partial, figure)
+				return savePlot(path, prov, figure)
 			}, saved)
 		}, win)
+}
+
+// savePlot saves the figure made by figure to path with the provenance
+// prov gives.
+func savePlot(path string, prov func() (*run.Provenance, error), figure func() (*plot.Plot, error)) error {
+	p, err := figure()
+	if err != nil {
+		return err
+	}
+	pv, err := prov()
+	if err != nil {
+		return err
+	}
+	return plotting.Save(p, path, 0, 0, 0, pv.Metadata(""))
 }
 
 // saveStudyFigure saves the figure made by figure to path, at the size
 // and resolution the batch command uses, with the provenance of a study of
 // kind what on prep (partial: of a cancelled run).
 func saveStudyFigure(path, what string, prep *study.Prepared, partial bool, figure func() (*plot.Plot, error)) error {
-	p, err := figure()
-	if err != nil {
-		return err
-	}
-	prov, err := studyProvenance(what, prep, partial)
-	if err != nil {
-		return err
-	}
-	return plotting.Save(p, path, 0, 0, 0, prov.Metadata(""))
+	return savePlot(path, func() (*run.Provenance, error) { return studyProvenance(what, prep, partial) }, figure)
 }
 
 // sectionTitle is a bold heading inside a study window.

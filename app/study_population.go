@@ -110,6 +110,7 @@ func newPopulationWindow(a fyne.App, m *network.Model, name string) (*population
 	p.sampling.SetSelected(samplingLHS)
 	species := prep.Quantities()
 	p.ro = newReadoutEditor(species)
+	p.ro.noteUnits(m)
 	p.ctl = newRunControls(p.start)
 	for i := 0; i < 2 && i < len(p.qs); i++ {
 		p.addRow(p.qs[i].label)
@@ -307,6 +308,7 @@ func (p *populationWindow) finished(job *study.Job, res *explore.Result, err err
 		line = plainError(err)
 	}
 	p.ctl.status.SetText(line + failureText(res, "sample"))
+	p.failures.fig = job.Figures()
 	p.failures.set(res, p.partial)
 	p.readoutSel.SetOptions(res.Readouts)
 	if len(res.Readouts) > 0 {
@@ -366,7 +368,8 @@ func (p *populationWindow) readoutSummary() string {
 	if r < 0 {
 		return ""
 	}
-	vals, undefined, err := study.ReadoutValues(p.res, r)
+	fig := p.job.Figures()
+	vals, undefined, err := fig.ReadoutValues(p.res, r)
 	if err != nil {
 		return plainError(err)
 	}
@@ -378,6 +381,9 @@ func (p *populationWindow) readoutSummary() string {
 		parts = append(parts, fmt.Sprintf("%g %%: %s", math.Round(q*100), short(study.EmpiricalQuantile(vals, q))))
 	}
 	line := fmt.Sprintf("n = %d · ", len(vals)) + strings.Join(parts, " · ")
+	if u := fig.ReadoutUnit(r); u != "" {
+		line += " (" + u + ")"
+	}
 	if undefined > 0 {
 		line += fmt.Sprintf(" · undefined in %d %s", undefined, plural(undefined, "sample", "samples"))
 	}
@@ -408,7 +414,7 @@ func (p *populationWindow) saveSamples(path string) error {
 	if p.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	rows, err := study.RunRows(p.res)
+	rows, err := p.job.Figures().RunRows(p.res)
 	if err != nil {
 		return err
 	}
@@ -421,5 +427,5 @@ func (p *populationWindow) saveBands(path string) error {
 	if p.res == nil || p.res.Bands == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	return saveTable(path, study.BandRows(p.res.Bands, p.prep.Quantities()), "population", p.prep, p.partial)
+	return saveTable(path, p.job.Figures().BandRows(p.res.Bands, p.prep.Quantities()), "population", p.prep, p.partial)
 }

@@ -141,6 +141,7 @@ func newSweepWindow(a fyne.App, m *network.Model, name string) (*sweepWindow, er
 	})
 	species := prep.Quantities()
 	s.ro = newReadoutEditor(species)
+	s.ro.noteUnits(m)
 	s.ctl = newRunControls(s.start)
 	if len(s.qs) > 0 {
 		s.first.quantity.SetSelected(s.qs[0].label)
@@ -228,6 +229,7 @@ func (s *sweepWindow) finished(job *study.Job, res *explore.Result, err error) {
 		line = plainError(err)
 	}
 	s.ctl.status.SetText(line + failureText(res, "run"))
+	s.failures.fig = job.Figures()
 	s.failures.set(res, s.partial)
 	if len(job.Axes) == 2 {
 		var opts []string
@@ -318,7 +320,7 @@ func (s *sweepWindow) saveRuns(path string) error {
 	if s.res == nil {
 		return errors.New("nothing to save yet: press Run first")
 	}
-	rows, err := study.RunRows(s.res)
+	rows, err := s.job.Figures().RunRows(s.res)
 	if err != nil {
 		return err
 	}
@@ -344,7 +346,8 @@ type failureList struct {
 	kind    string          // of the study: "sweep" or "population"
 	prep    *study.Prepared // the study's model, for the provenance
 	res     *explore.Result
-	partial bool // res is of a run stopped by Cancel
+	partial bool          // res is of a run stopped by Cancel
+	fig     study.Figures // the study's tables in its display units
 	summary *widget.Label
 	lines   []string
 	list    *widget.List
@@ -416,7 +419,7 @@ func (f *failureList) save(path string) error {
 	if f.res.Failed == 0 {
 		return fmt.Errorf("no %s failed; there is nothing to save", f.what)
 	}
-	rows, err := study.FailureRows(f.res)
+	rows, err := f.fig.FailureRows(f.res)
 	if err != nil {
 		return err
 	}

@@ -467,3 +467,129 @@ func TestStudyScreenshots(t *testing.T) {
 	onUI(func() { p.tabs.SelectIndex(2) })
 	saveShot(t, p.win, dir, "kinetarium-population-failed.png")
 }
+
+// A sweep in the window of a model that shows results in min and nM
+// (seconds and uM in the model) saves runs.csv with units in the header
+// and its readouts converted: final A = A0·exp(−k T) (closed form of
+// first-order decay, common practice) × 1000 nM per uM, and the time A
+// falls past 1 uM, ln 2/k s, ÷ 60 s per min (SI prefixes and the
+// minute, common practice). The figures say the units shown.
+func TestSweepInDisplayUnits(t *testing.T) {
+	m := tuneDecayModel()
+	m.Units = network.Units{Time: "s", Amount: "uM"}
+	m.Simulation.Output.Points = 501
+	m.Simulation.Display = network.Display{Time: "min", Concentration: "nM"}
+	s := openSweep(t, m)
+	onUI(func() {
+		s.first.quantity.SetSelected("k (parameter)")
+		s.first.from.SetText("0.5")
+		s.first.to.SetText("2")
+		s.first.points.SetText("4")
+		s.ro.rows = nil
+		s.ro.list.RemoveAll()
+		s.ro.add(explore.Final, "A", 0)
+		s.ro.add(explore.CrossDown, "A", 1)
+	})
+	runAndWait(t, s.ctl)
+	if s.res == nil || s.res.Failed != 0 {
+		t.Fatalf("sweep: %q", s.ctl.status.Text)
+	}
+	path := filepath.Join(t.TempDir(), "runs.csv")
+	if err := s.saveRuns(path); err != nil {
+		t.Fatal(err)
+	}
+	rows := readCSV(t, path)
+	if got := strings.Join(rows[0], ","); got != "index,k (1/s),final_A (nM),cross_down_A@1 (min)" {
+		t.Fatalf("runs.csv header %q", got)
+	}
+	const a0, tEnd = 2.0, 5.0
+	for i, row := range rows[1:] {
+		k, _ := strconv.ParseFloat(row[1], 64)
+		v, _ := strconv.ParseFloat(row[2], 64)
+		c, _ := strconv.ParseFloat(row[3], 64)
+		if math.Abs(v-1000*a0*math.Exp(-k*tEnd)) > 1e-5*1000*a0 {
+			t.Errorf("row %d: final A %v nM, want %v", i+1, v, 1000*a0*math.Exp(-k*tEnd))
+		}
+		// Crossing interpolated on the 0.01 s grid: within 0.01 s.
+		if want := math.Ln2 / k / 60; math.Abs(c-want) > 0.01/60 {
+			t.Errorf("row %d: crossing at %v min, want %v", i+1, c, want)
+		}
+	}
+	if s.curves.plot == nil || !strings.Contains(s.curves.plot.X.Label.Text, "(min)") || !strings.Contains(s.curves.plot.Y.Label.Text, "(nM)") {
+		t.Errorf("curve axes do not say the units shown")
+	}
+	saveShot(t, s.win, shotDir(t), "kinetarium-sweep-display-units.png")
+	onUI(func() { s.tabs.SelectIndex(1) })
+	saveShot(t, s.win, shotDir(t), "kinetarium-sweep-display-units-readouts.png")
+}
+
+// A population in the window of a model shown in min and nM draws its
+// bands and histogram in those units and saves samples.csv and bands.csv
+// with them: every sample's final A, shown in nM, is 1000 × its value in
+// uM (SI prefixes, common practice), A0·exp(−k T) for its k (closed form).
+func TestPopulationInDisplayUnits(t *testing.T) {
+	m := tuneDecayModel()
+	m.Units = network.Units{Time: "s", Amount: "uM"}
+	m.Simulation.Display = network.Display{Time: "min", Concentration: "nM"}
+	p := openPopulation(t, m)
+	onUI(func() {
+		p.size.SetText("40")
+		p.species.SetSelected("A")
+		p.ro.rows = nil
+		p.ro.list.RemoveAll()
+		p.ro.add(explore.Final, "A", 0)
+	})
+	runAndWait(t, p.ctl)
+	if p.res == nil || p.res.Failed != 0 {
+		t.Fatalf("population: %q", p.ctl.status.Text)
+	}
+	if p.bands.plot == nil || !strings.Contains(p.bands.plot.X.Label.Text, "(min)") || !strings.Contains(p.bands.plot.Y.Label.Text, "(nM)") {
+		t.Error("band axes do not say the units shown")
+	}
+	path := filepath.Join(t.TempDir(), "samples.csv")
+	if err := p.saveSamples(path); err != nil {
+		t.Fatal(err)
+	}
+	rows := readCSV(t, path)
+	if rows[0][len(rows[0])-1] != "final_A (nM)" {
+		t.Fatalf("samples header %q", rows[0])
+	}
+	// The samples are read back from the population's spill file, with
+	// the readouts converted as they are read.
+	if len(rows) != 41 || !p.res.Spilled() {
+		t.Fatalf("samples.csv has %d rows (spilled %v), want a header and 40", len(rows), p.res.Spilled())
+	}
+	k := slicesIndex(rows[0], "k (1/s)")
+	if k < 0 {
+		t.Fatalf("no k column in %q", rows[0])
+	}
+	a0col := slicesIndex(rows[0], "init:A (uM)") // varied too when the window varies it
+	for _, row := range rows[1:] {
+		kv, _ := strconv.ParseFloat(row[k], 64)
+		v, _ := strconv.ParseFloat(row[len(row)-1], 64)
+		a0 := 2.0
+		if a0col >= 0 {
+			a0, _ = strconv.ParseFloat(row[a0col], 64)
+		}
+		if want := 1000 * a0 * math.Exp(-kv*5); math.Abs(v-want) > 1e-5*want {
+			t.Errorf("k = %v: final A %v nM, want %v", kv, v, want)
+		}
+	}
+	bp := filepath.Join(t.TempDir(), "bands.csv")
+	if err := p.saveBands(bp); err != nil {
+		t.Fatal(err)
+	}
+	if b := readCSV(t, bp); strings.Join(b[0][:3], ",") != "species,unit,time (min)" {
+		t.Errorf("bands header %q", b[0])
+	}
+	saveShot(t, p.win, shotDir(t), "kinetarium-population-display-units.png")
+}
+
+func slicesIndex(s []string, v string) int {
+	for i, x := range s {
+		if x == v {
+			return i
+		}
+	}
+	return -1
+}

@@ -41,6 +41,11 @@ type mainWindow struct {
 	overlay   bool
 	autoRerun bool
 	exampleOf string // name of the example the document came from, if any
+	// meas are the measurements shown over the curves (Data menu).
+	meas measurements
+	// lastDataProblems is the text of the last dialog about a
+	// measurements file, for tests.
+	lastDataProblems string
 
 	logX, logY   *widget.Check
 	fresh        bool // no run yet since the model was opened
@@ -70,7 +75,9 @@ type mainWindow struct {
 	recoveryFile string
 	exitCode     int
 	onDrawn      func()
-	captureSoon  func() // in screenshot mode: capture the window shortly
+	captureSoon  func()      // in screenshot mode: capture the window shortly
+	shotTarget   fyne.Window // the window captured instead of this one (--view fit)
+	pictureOnly  bool        // a --screenshot run: leave no companion file behind
 }
 
 func newMainWindow(a fyne.App, screenshotMode bool) *mainWindow {
@@ -283,7 +290,7 @@ func (w *mainWindow) buildMenus() {
 	help := fyne.NewMenu("Help",
 		fyne.NewMenuItem("Writing equations and rate laws", w.showHelp),
 		fyne.NewMenuItem("About and caution", w.showAbout))
-	w.mainMenu = fyne.NewMainMenu(file, edit, run, w.analyseMenu(), help)
+	w.mainMenu = fyne.NewMainMenu(file, edit, run, w.dataMenu(), w.analyseMenu(), help)
 	w.win.SetMainMenu(w.mainMenu)
 	w.updateUndoItems()
 
@@ -475,6 +482,7 @@ func (w *mainWindow) redraw() {
 	if ref := w.tune.reference(); ref != nil {
 		v.Previous, v.PreviousLabel = ref, "pinned reference (faint, dashed)"
 	}
+	v.Measured = w.measuredShown(w.current)
 	w.plot.Set(w.current, v)
 }
 

@@ -22,10 +22,10 @@ func onUI(f func()) {
 	f()
 }
 
-// waitFor polls cond for up to 20 s.
+// waitFor polls cond for up to 2 minutes (a guard against hangs, not a speed target).
 func waitFor(t *testing.T, what string, cond func() bool) {
 	t.Helper()
-	deadline := time.Now().Add(20 * time.Second)
+	deadline := time.Now().Add(2 * time.Minute)
 	for time.Now().Before(deadline) {
 		done := false
 		onUI(func() { done = cond() })

@@ -107,7 +107,7 @@ func TestLawSwitchShowsOnlyItsFields(t *testing.T) {
 	visible := func() map[string]bool {
 		out := map[string]bool{}
 		for _, f := range rf.fields() {
-			if strings.HasPrefix(f.name, "rate.") && f.name != "rate.law" && f.name != "rate.preview" && f.row.Visible() {
+			if strings.HasPrefix(f.name, "rate.") && f.name != "rate.law" && f.name != "rate.preview" && f.name != "rate.units" && f.row.Visible() {
 				out[f.name] = true
 			}
 		}
@@ -126,6 +126,11 @@ func TestLawSwitchShowsOnlyItsFields(t *testing.T) {
 		}
 	}
 	check("mass action, reversible", "rate.k", "rate.k_reverse")
+	// The Expected units hint shows even before the model has units, in
+	// words.
+	if !rf.unitsField.row.Visible() || !strings.Contains(rf.units.Text, "in 1/(concentration·time) for a second-order step") {
+		t.Errorf("units hint %q (visible %v)", rf.units.Text, rf.unitsField.row.Visible())
+	}
 
 	rf.law.SetSelected(LawTitle(network.MichaelisMenten))
 	if d.Model().Reactions[0].Rate.Law != network.MichaelisMenten {
@@ -137,6 +142,9 @@ func TestLawSwitchShowsOnlyItsFields(t *testing.T) {
 
 	rf.law.SetSelected(LawTitle(network.Expression))
 	check("expression", "rate.expression")
+	if rf.unitsField.row.Visible() {
+		t.Errorf("units hint shown for an expression: %q", rf.units.Text)
+	}
 
 	e.SelectRow("reactions", 2) // "-> 2S", irreversible mass action is not set; an expression
 	rf.law.SetSelected(LawTitle(network.MassAction))
@@ -212,5 +220,45 @@ func TestPreviewFormula(t *testing.T) {
 		if got := net.Formula(0); got != c.want {
 			t.Errorf("Formula(%q) = %q, want %q", c.r.Equation, got, c.want)
 		}
+	}
+}
+
+// The Compartments tab edits a volume's unit: a unit that is not a volume
+// is an error at the field, a volume unit is accepted, the list says it,
+// and Undo restores the model.
+func TestCompartmentUnitField(t *testing.T) {
+	test.NewTempApp(t)
+	m := enzymeModel()
+	m.Compartments = []network.Compartment{{Name: "well", Volume: 2}}
+	d := NewDocument(m, "")
+	e := New(d, nil)
+	cf := e.panes["compartments"].form.(*compartmentForm)
+	e.SelectRow("compartments", 0)
+	var unit *widget.Entry
+	for _, f := range cf.fields() {
+		if f.name == "unit" {
+			unit = f.input.(*widget.Entry)
+		}
+	}
+	if unit == nil {
+		t.Fatal("the compartment form has no unit field")
+	}
+	test.Type(unit, "uM")
+	if got := d.Model().Compartments[0].Unit; got != "uM" {
+		t.Fatalf("unit in model = %q", got)
+	}
+	if !hasMessage(e, "compartments", 0, "unit", "is not a unit of volume") {
+		t.Errorf("no message at the unit: %v", e.Messages())
+	}
+	unit.SetText("mL")
+	if hasMessage(e, "compartments", 0, "unit", "") {
+		t.Errorf("mL still has a message: %v", e.Messages())
+	}
+	if got := compartmentKind.summary(d.Model(), 0); got != "volume 2 mL" {
+		t.Errorf("list summary %q", got)
+	}
+	d.Undo()
+	if got := d.Model().Compartments[0].Unit; got != "" {
+		t.Errorf("after Undo the unit is %q", got)
 	}
 }

@@ -590,10 +590,14 @@ func newCompartmentForm(ed *Editor) *compartmentForm {
 		func(m *network.Model, i int, v float64) { m.Compartments[i].Volume = v })
 	f.addField("Volume", "volume", vol)
 	f.loads = append(f.loads, load)
+	unit, load := f.textInput("unit", "edit volume unit", func(m *network.Model, i int) *string { return &m.Compartments[i].Unit })
+	unit.SetPlaceHolder("L, mL, uL or fL")
+	f.addField("Unit", "unit", unit)
+	f.loads = append(f.loads, load)
 	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &m.Compartments[i].Note })
 	f.addField("Note", "note", note)
 	f.loads = append(f.loads, load)
-	rule := widget.NewLabel("Rule: a species' concentration is per volume of its own compartment. A reaction's rate is per volume of the compartment of its first reactant (of its first product when it has no reactants); a species in another compartment changes by that rate times the ratio of the two volumes.")
+	rule := widget.NewLabel("Rule: a species' concentration is per volume of its own compartment. A reaction's rate is per volume of the compartment of its first reactant (of its first product when it has no reactants); a species in another compartment changes by that rate times the ratio of the two volumes, compared in one unit when they are given in different ones (30 000 mL and 30 L are the same volume).")
 	rule.Wrapping = fyne.TextWrapWord
 	rule.Importance = widget.LowImportance
 	f.box.Add(rule)

@@ -101,7 +101,13 @@ var compartmentKind = rowKind{
 	emptyTip: "No compartments: every species lives in one implicit compartment of volume 1. Add compartments to give species different volumes.",
 	count:    func(m *network.Model) int { return len(m.Compartments) },
 	name:     func(m *network.Model, i int) string { return m.Compartments[i].Name },
-	summary:  func(m *network.Model, i int) string { return "volume " + formatNumber(m.Compartments[i].Volume) },
+	summary: func(m *network.Model, i int) string {
+		c := m.Compartments[i]
+		if u := strings.TrimSpace(c.Unit); u != "" {
+			return "volume " + formatNumber(c.Volume) + " " + u
+		}
+		return "volume " + formatNumber(c.Volume)
+	},
 	add: func(d *Document, m *network.Model, at int) {
 		m.Compartments = slices.Insert(m.Compartments, at, network.Compartment{Name: freshIn(m, "comp"), Volume: 1})
 	},

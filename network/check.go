@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"kinetarium/network/expr"
+	"kinetarium/network/units"
 )
 
 // isName reports whether s is an identifier [A-Za-z_][A-Za-z0-9_]*.
@@ -214,9 +215,40 @@ func (v *validator) names() {
 }
 
 func (v *validator) compartments() {
+	withUnit := -1
 	for i, c := range v.m.Compartments {
 		if !(c.Volume > 0) || !finite(c.Volume) {
 			v.add(Error, "compartments", i, c.Name, "volume", 0, "volume %v is not allowed; expected a positive number", c.Volume)
+		}
+		if strings.TrimSpace(c.Unit) == "" {
+			continue
+		}
+		// A volume's unit changes the numbers the equations use, so a
+		// unit that does not serve is an error, not advice.
+		u, err := units.Parse(c.Unit)
+		switch {
+		case err != nil:
+			col, msg := 0, err.Error()
+			if e, ok := err.(*units.Error); ok {
+				col, msg = e.Col, e.Msg
+			}
+			if !strings.Contains(msg, "expected") {
+				msg += "; expected " + VolumeUnits
+			}
+			v.add(Error, "compartments", i, c.Name, "unit", col, "the volume's unit %q does not read: %s", c.Unit, msg)
+		case !u.IsVolume():
+			v.add(Error, "compartments", i, c.Name, "unit", 0, "%q is not a unit of volume (it is %s); expected %s", c.Unit, u.Kind(), VolumeUnits)
+		case withUnit < 0:
+			withUnit = i
+		}
+	}
+	if withUnit < 0 {
+		return
+	}
+	ref := v.m.Compartments[withUnit]
+	for i, c := range v.m.Compartments {
+		if strings.TrimSpace(c.Unit) == "" {
+			v.add(Warning, "compartments", i, c.Name, "unit", 0, "the volume gives no unit, so it is read in %s, the unit of compartment %s; give its unit (%s) to be sure", strings.TrimSpace(ref.Unit), ref.Name, VolumeUnits)
 		}
 	}
 }

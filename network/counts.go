@@ -6,17 +6,31 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"kinetarium/network/units"
 )
 
 // Avogadro is the number of molecules in a mole (SI, exact since 2019).
 const Avogadro = 6.02214076e23
 
-// molarUnits are the amount units read as concentrations per litre, with
-// the moles per litre each stands for. Compartment volumes are then read
-// as litres.
-var molarUnits = map[string]float64{
-	"M": 1, "mM": 1e-3, "uM": 1e-6, "µM": 1e-6, "μM": 1e-6, "nM": 1e-9, "pM": 1e-12, "fM": 1e-15,
-	"mol/L": 1, "mmol/L": 1e-3, "umol/L": 1e-6, "µmol/L": 1e-6, "μmol/L": 1e-6, "nmol/L": 1e-9, "pmol/L": 1e-12,
+// molesPerLitre returns the moles per litre of a molar concentration
+// unit (M, mM, uM, nM, pM, fM, mol/L, …) as the units parser reads it.
+func molesPerLitre(unit string) (float64, bool) {
+	u, err := units.Parse(unit)
+	if err != nil || !u.SameDim(units.MustParse("M")) {
+		return 0, false
+	}
+	return wholeRatio(u.Factor / 1000), true // 1 M = 1000 mol/m³
+}
+
+// litres returns the litres in the model's unit of volume (1 when the
+// compartments give none: volumes are then read as litres).
+func litres(m *Model) (float64, string) {
+	unit, _ := m.VolumeUnit()
+	if unit == "" {
+		return 1, "litre"
+	}
+	return wholeRatio(units.MustParse(unit).Factor / 1e-3), unit
 }
 
 // countUnits are amount units that are already molecule counts.
@@ -32,8 +46,10 @@ const UnderstoodAmountUnits = "M, mM, µM (or uM), nM, pM, fM and mol/L, mmol/L,
 // it was found. It is the one place where amounts become molecules:
 //
 //   - the model states it: "units": {"molecules_per_amount": N};
-//   - a molar amount unit (M, mM, µM, nM, pM, fM, mol/L, …) with volumes
-//     read as litres: Avogadro's number times the unit's moles per litre;
+//   - a molar amount unit (M, mM, µM, nM, pM, fM, mol/L, …): Avogadro's
+//     number times the unit's moles per litre times the litres in the
+//     compartments' unit of volume (volumes read as litres when they give
+//     none);
 //   - an amount unit that counts molecules (molecules, count, copies): 1.
 //
 // Otherwise it returns an error that says what to add to the model.
@@ -47,9 +63,13 @@ func MoleculesPerAmount(m *Model) (float64, string, error) {
 		return n, fmt.Sprintf("%g molecules per amount unit × volume unit, as the model states", n), nil
 	}
 	unit := strings.TrimSpace(m.Units.Amount)
-	if f, ok := molarUnits[unit]; ok {
-		n := Avogadro * f
-		return n, fmt.Sprintf("%g molecules per %s × litre (Avogadro's number; volumes read as litres)", n, unit), nil
+	if f, ok := molesPerLitre(unit); ok {
+		l, vol := litres(m)
+		n := Avogadro * f * l
+		if vol == "litre" {
+			return n, fmt.Sprintf("%g molecules per %s × litre (Avogadro's number; volumes read as litres)", n, unit), nil
+		}
+		return n, fmt.Sprintf("%g molecules per %s × %s (Avogadro's number; the compartments' volumes in %s)", n, unit, vol, vol), nil
 	}
 	if countUnits[unit] {
 		return 1, "amounts are molecule counts", nil

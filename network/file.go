@@ -167,9 +167,9 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			m.Units.MoleculesPerAmount = d.optNum(o, "molecules_per_amount", "units")
 		}
 	}
-	d.items(top, "compartments", []string{"name", "volume", "note"}, func(i int, o *jnode, path string) {
+	d.items(top, "compartments", []string{"name", "volume", "unit", "note"}, func(i int, o *jnode, path string) {
 		m.Compartments = append(m.Compartments, Compartment{
-			Name: d.optStr(o, "name", path), Volume: d.optNum(o, "volume", path), Note: d.optStr(o, "note", path)})
+			Name: d.optStr(o, "name", path), Volume: d.optNum(o, "volume", path), Unit: d.optStr(o, "unit", path), Note: d.optStr(o, "note", path)})
 	})
 	d.items(top, "species", []string{"name", "initial", "compartment", "fixed", "note"}, func(i int, o *jnode, path string) {
 		s := Species{Name: d.optStr(o, "name", path), Initial: d.optNum(o, "initial", path),
@@ -506,6 +506,7 @@ type (
 	fileCompartment struct {
 		Name   string  `json:"name"`
 		Volume float64 `json:"volume"`
+		Unit   string  `json:"unit,omitempty"`
 		Note   string  `json:"note,omitempty"`
 	}
 	fileSpecies struct {

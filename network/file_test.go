@@ -189,6 +189,7 @@ func FuzzRead(f *testing.F) {
 	f.Add([]byte(`{`))
 	f.Add([]byte(`{"format": "kinetarium.model/1", "species": [{"name": "A", "initial": 1}], "parameters": [{"name": "k", "value": 1}], "reactions": [{"name": "r", "equation": "A ->", "rate": {"law": "mass_action", "k": "k"}}], "events": [{"name": "d", "at": 1, "every": 2, "count": 3, "add": {"A": 1}}, {"name": "w", "when": "A < 0.5", "once": true, "set": {"k": "k/2"}}, {"name": "i", "from": 0, "to": 1, "infuse": {"A": "k"}}]}`))
 	f.Add([]byte(`{"format": "kinetarium.model/1", "units": {"time": "s", "amount": "uM"}, "species": [{"name": "A"}], "reactions": [], "simulation": {"display": {"time": "h^(", "concentration": "mg/L"}}}`))
+	f.Add([]byte(`{"format": "kinetarium.model/1", "units": {"time": "s", "amount": "uM"}, "compartments": [{"name": "a", "volume": 2, "unit": "mL"}, {"name": "b", "volume": 1, "unit": "fL^(1"}], "species": [{"name": "A", "compartment": "a"}], "assignments": [{"name": "q", "expression": "A*t", "unit": "uM"}], "events": [{"name": "w", "when": "t > A", "add": {"A": "q"}}]}`))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		m, err := Read(bytes.NewReader(data), "fuzz")
 		if err != nil {

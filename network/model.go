@@ -47,7 +47,8 @@ type Model struct {
 }
 
 // Units name the units of time and amount (concentration) used by the
-// model. They are labels only; nothing is converted.
+// model. They are labels only; nothing is converted (the compartments'
+// units of volume, Compartment.Unit, are what make volumes comparable).
 // MoleculesPerAmount, when not zero, is the number of molecules in one
 // amount unit × one volume unit, for stochastic runs (see
 // MoleculesPerAmount, which also knows molar units).
@@ -57,10 +58,13 @@ type Units struct {
 }
 
 // Compartment is a well-mixed volume. Species concentrations are per
-// compartment volume.
+// compartment volume. Unit is the unit of Volume (L, mL, uL, fL; see
+// VolumeUnits); empty means the unit of the compartments that give one,
+// or no unit at all when none does.
 type Compartment struct {
 	Name   string
 	Volume float64
+	Unit   string
 	Note   string
 }
 

@@ -110,9 +110,12 @@ func (s *System) ParamJacobianCSC(t float64, y []float64, vals []float64) {
 			}
 			// f_i += cNet·V_r/V_i·rate: by V_r it is cNet/V_i·rate, by V_i
 			// it is −cNet·V_r/V_i²·rate.
-			vi := s.volumes[s.spComp[s.cSp[c]]]
-			vals[s.vpos[2*c]] += s.cNet[c] / vi * rate
-			vals[s.vpos[2*c+1]] -= s.cScale[c] / vi * rate
+			// The columns are by volumes in each compartment's own unit,
+			// V = v·volScale.
+			ci := s.spComp[s.cSp[c]]
+			vi := s.volumes[ci]
+			vals[s.vpos[2*c]] += s.cNet[c] / vi * rate * s.volScale[r.comp]
+			vals[s.vpos[2*c+1]] -= s.cScale[c] / vi * rate * s.volScale[ci]
 		}
 	}
 }

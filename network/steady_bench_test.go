@@ -22,7 +22,7 @@ func lawsOf(b *testing.B, m *Model, s *System) *mat.Dense {
 	g := mat.NewDense(len(laws), s.Dim(), nil)
 	for k, l := range laws {
 		for i, w := range l.Weights {
-			g.Set(k, i, float64(w)*s.Volume(s.SpeciesCompartment(i)))
+			g.Set(k, i, float64(w)*s.AmountVolume(s.SpeciesCompartment(i)))
 		}
 	}
 	return g

@@ -54,7 +54,7 @@ func checkLaws(t *testing.T, m *Model) []ConservationLaw {
 		for _, law := range laws {
 			sum, scale := 0.0, 0.0
 			for i, w := range law.Weights {
-				v := s.Volume(s.SpeciesCompartment(i))
+				v := s.AmountVolume(s.SpeciesCompartment(i))
 				sum += float64(w) * v * f[i]
 				scale += math.Abs(float64(w) * v * f[i])
 			}

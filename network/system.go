@@ -32,7 +32,10 @@ type System struct {
 	spIx     map[string]int
 	rxNames  []string
 	comps    []string
-	volumes  []float64
+	volumes  []float64 // in the model's unit of volume (Model.VolumeUnit)
+	volModel []float64 // as the model gives them, each in its compartment's unit
+	volScale []float64 // volumes[i] = volModel[i]·volScale[i]
+	volUnit  string    // the model's unit of volume, "" when none is given
 
 	vars     []float64 // [y (n) | parameters | t]
 	hasExpr  bool
@@ -247,12 +250,23 @@ func (net *Net) Compile() (*System, error) {
 	if len(m.Compartments) == 0 {
 		s.comps = []string{DefaultCompartment}
 		s.volumes = []float64{1}
+		s.volScale = []float64{1}
 		compIx[DefaultCompartment] = 0
 	}
+	volUnit, volScale := m.VolumeUnit()
+	s.volUnit = volUnit
 	for i, c := range m.Compartments {
 		s.comps = append(s.comps, c.Name)
-		s.volumes = append(s.volumes, c.Volume)
+		s.volumes = append(s.volumes, c.Volume*volScale[i])
+		s.volScale = append(s.volScale, volScale[i])
 		compIx[c.Name] = i
+	}
+	s.volModel = make([]float64, len(s.volumes))
+	for i := range s.volumes {
+		s.volModel[i] = 1
+	}
+	for i, c := range m.Compartments {
+		s.volModel[i] = c.Volume
 	}
 	for i, sp := range m.Species {
 		s.names = append(s.names, sp.Name)
@@ -645,20 +659,37 @@ func (s *System) CompartmentIndex(name string) (int, bool) {
 // SpeciesCompartment returns the compartment index of species i.
 func (s *System) SpeciesCompartment(i int) int { return s.spComp[i] }
 
-// Volume returns the volume of compartment i.
-func (s *System) Volume(i int) float64 { return s.volumes[i] }
+// Volume returns the volume of compartment i in its own unit, as the
+// model gives it.
+func (s *System) Volume(i int) float64 { return s.volModel[i] }
 
-// SetVolume sets the volume of compartment i.
+// SetVolume sets the volume of compartment i, in its own unit.
 func (s *System) SetVolume(i int, v float64) {
-	s.volumes[i] = v
+	s.volModel[i] = v
+	s.volumes[i] = v * s.volScale[i]
 	s.updateScales()
 }
+
+// AmountVolume returns the volume of compartment i in the model's unit of
+// volume (Model.VolumeUnit), the one amounts use: an amount is a
+// concentration times AmountVolume. It equals Volume when the
+// compartments give no units or all the same one.
+func (s *System) AmountVolume(i int) float64 { return s.volumes[i] }
+
+// VolumeUnit returns the unit of AmountVolume: the model's unit of
+// volume (Model.VolumeUnit), "" when the compartments give none.
+func (s *System) VolumeUnit() string { return s.volUnit }
+
+// VolumeScale returns AmountVolume(i)/Volume(i), the factor from
+// compartment i's own unit of volume to the model's.
+func (s *System) VolumeScale(i int) float64 { return s.volScale[i] }
 
 // Clone returns an independent copy of s for use by another goroutine.
 func (s *System) Clone() *System {
 	c := *s
 	c.initial = append([]float64(nil), s.initial...)
 	c.volumes = append([]float64(nil), s.volumes...)
+	c.volModel = append([]float64(nil), s.volModel...)
 	c.vars = append([]float64(nil), s.vars...)
 	c.cScale = append([]float64(nil), s.cScale...)
 	c.dr = make([]float64, len(s.dr))

@@ -113,7 +113,12 @@ func randomModel(rng *rand.Rand) *Model {
 	m := &Model{}
 	nc := 1 + rng.IntN(3)
 	for c := 0; c < nc; c++ {
-		m.Compartments = append(m.Compartments, Compartment{Name: fmt.Sprintf("c%d", c), Volume: 0.2 + 5*rng.Float64()})
+		vol := 0.2 + 5*rng.Float64()
+		// A unit of volume chosen from the volume's digits, so that the
+		// random stream is the same as without units: the compartment
+		// rule then compares volumes given in different units.
+		unit := []string{"", "L", "mL"}[int(vol*1000)%3]
+		m.Compartments = append(m.Compartments, Compartment{Name: fmt.Sprintf("c%d", c), Volume: vol, Unit: unit})
 	}
 	ns := 1 + rng.IntN(8)
 	for i := 0; i < ns; i++ {

@@ -25,6 +25,7 @@ type unitCheck struct {
 	params     []*units.Unit // nil: no unit, or one that does not read
 	asgs       map[string]*units.Unit
 	unitless   map[int]bool // parameters without a unit that a rate reads
+	inRate     bool         // checking a reaction's rate: count unitless parameters
 }
 
 // ModelUnits returns the model's units of concentration and time, parsed,
@@ -103,9 +104,13 @@ func (v *validator) units() {
 	if !declared {
 		return
 	}
+	uc.assignments()
+	uc.inRate = true
 	for i := range v.net.Reactions {
 		uc.reaction(&v.net.Reactions[i])
 	}
+	uc.inRate = false
+	uc.events()
 	if len(uc.unitless) > 0 {
 		var ix []int
 		for j := range uc.unitless {
@@ -248,7 +253,9 @@ func (uc *unitCheck) reaction(cr *CheckedReaction) {
 	if cr.Rate.Expression == "" {
 		return
 	}
-	found, known := uc.expr(cr, cr.Expr)
+	found, known := uc.expr(cr.Expr, func(col int, format string, args ...any) {
+		v.add(Warning, "reactions", cr.Index, cr.Name, "rate.expression", col, format, args...)
+	})
 	want := uc.want(dimRate)
 	if known && !found.Equal(want) {
 		v.add(Warning, "reactions", cr.Index, cr.Name, "rate.expression", 0,
@@ -259,13 +266,10 @@ func (uc *unitCheck) reaction(cr *CheckedReaction) {
 
 // expr returns the unit of n and whether it is known (every name in it
 // has a unit). Numbers are pure numbers. Sums whose terms differ, and
-// functions given a quantity that must be a pure number, are reported at
-// their column.
-func (uc *unitCheck) expr(cr *CheckedReaction, n expr.Node) (units.Unit, bool) {
+// functions given a quantity that must be a pure number, are reported
+// through warn at their column.
+func (uc *unitCheck) expr(n expr.Node, warn func(col int, format string, args ...any)) (units.Unit, bool) {
 	v := uc.v
-	warn := func(col int, format string, args ...any) {
-		v.add(Warning, "reactions", cr.Index, cr.Name, "rate.expression", col, format, args...)
-	}
 	switch n := n.(type) {
 	case *expr.Number:
 		return units.One, true
@@ -280,7 +284,7 @@ func (uc *unitCheck) expr(cr *CheckedReaction, n expr.Node) (units.Unit, bool) {
 			if u := uc.params[j]; u != nil {
 				return *u, true
 			}
-			if v.m.Parameters[j].Unit == "" {
+			if v.m.Parameters[j].Unit == "" && uc.inRate {
 				uc.unitless[j] = true
 			}
 			return units.Unit{}, false
@@ -290,10 +294,10 @@ func (uc *unitCheck) expr(cr *CheckedReaction, n expr.Node) (units.Unit, bool) {
 		}
 		return units.Unit{}, false
 	case *expr.Unary:
-		return uc.expr(cr, n.X)
+		return uc.expr(n.X, warn)
 	case *expr.Binary:
-		l, lok := uc.expr(cr, n.L)
-		r, rok := uc.expr(cr, n.R)
+		l, lok := uc.expr(n.L, warn)
+		r, rok := uc.expr(n.R, warn)
 		switch n.Op {
 		case expr.OpAdd, expr.OpSub:
 			if !lok || !rok {
@@ -316,7 +320,7 @@ func (uc *unitCheck) expr(cr *CheckedReaction, n expr.Node) (units.Unit, bool) {
 		oks := make([]bool, len(n.Args))
 		all := true
 		for i, a := range n.Args {
-			args[i], oks[i] = uc.expr(cr, a)
+			args[i], oks[i] = uc.expr(a, warn)
 			all = all && oks[i]
 		}
 		switch n.Func {
@@ -371,12 +375,14 @@ func (uc *unitCheck) power(base, exponent expr.Node, b units.Unit, bok bool, e u
 
 // UnitHint returns, for the form of reaction i, the unit each parameter
 // field of its law should carry with the model's units, such as "Rate
-// constant in 1/(uM·s) for a second-order step", one field a line; "" when
-// the model declares no units or the law has no fixed field units.
+// constant in 1/(uM·s) for a second-order step", one field a line; in
+// words ("1/(concentration·time)") when the model declares no units; ""
+// when the law has no fixed field units.
 func (n *Net) UnitHint(i int) string {
 	m := n.Model
+	concText, timeText := m.Units.Amount, m.Units.Time
 	if _, _, ok := m.ModelUnits(); !ok {
-		return ""
+		concText, timeText = "concentration", "time"
 	}
 	cr := &n.Reactions[i]
 	if cr.Law == nil || !cr.EqOK {
@@ -394,7 +400,7 @@ func (n *Net) UnitHint(i int) string {
 			continue
 		}
 		label := fieldLabel(cr.Law, k, cr.Equation)
-		text := units.Compose(m.Units.Amount, d.C, m.Units.Time, d.T)
+		text := units.Compose(concText, d.C, timeText, d.T)
 		purpose := fieldPurpose(cr.Law, k, cr.Equation, d)
 		if strings.HasPrefix(purpose, "for ") {
 			lines = append(lines, label+" in "+text+" "+purpose)
@@ -417,4 +423,126 @@ func fieldLabel(law Law, key string, eq Equation) string {
 		}
 	}
 	return keyLabel(key)
+}
+
+// constant reports whether n names nothing: a number, or numbers joined
+// by operators and functions. A constant takes the unit of what it is
+// compared with or assigned to ("P > 5", "add": {"D": 100}).
+func constant(n expr.Node) bool { return len(expr.Vars(n)) == 0 }
+
+// assignments works out the unit of every assignment from its expression,
+// in evaluation order: one with a declared unit is checked against it
+// (a warning naming the assignment), one without takes the unit found, so
+// that the rates and events that read it are checked through it.
+func (uc *unitCheck) assignments() {
+	v := uc.v
+	for _, ca := range v.net.Assignments {
+		if ca.Expr == nil {
+			continue
+		}
+		a := v.m.Assignments[ca.Index]
+		found, known := uc.expr(ca.Expr, func(col int, format string, args ...any) {
+			v.add(Warning, "assignments", ca.Index, ca.Name, "expression", col, format, args...)
+		})
+		if !known || constant(ca.Expr) {
+			continue
+		}
+		declared := uc.asgs[ca.Name]
+		if declared == nil {
+			if strings.TrimSpace(a.Unit) == "" {
+				u := found
+				uc.asgs[ca.Name] = &u
+			}
+			continue
+		}
+		if !found.Equal(*declared) {
+			v.add(Warning, "assignments", ca.Index, ca.Name, "unit", 0,
+				"assignment %s comes out in %s, but its unit is %s; %s", ca.Name, uc.describe(found), strings.TrimSpace(a.Unit), uc.mismatch(found, *declared))
+		}
+	}
+}
+
+// events checks the units of every sound event: the two sides of a
+// trigger's comparison must measure the same, and each action's value
+// must be in the unit of what it changes — an amount (concentration ×
+// the model's unit of volume; the concentration itself when the model
+// declares no compartments) for "add", an amount per time for "infuse",
+// a concentration for "set" of a species, the parameter's unit for "set"
+// of a parameter. Constants take the unit they are compared with or
+// assigned to; values with a name whose unit is unknown are not checked.
+func (uc *unitCheck) events() {
+	v := uc.v
+	volUnit, _ := v.m.VolumeUnit()
+	amount, amountExact := uc.conc, true
+	if len(v.m.Compartments) > 0 {
+		if volUnit != "" {
+			amount = uc.conc.Mul(units.MustParse(volUnit))
+		} else {
+			// Volumes without a unit: only the kind of quantity is known.
+			amount, amountExact = uc.conc.Mul(units.MustParse("L")), false
+		}
+	}
+	amountText := uc.concText
+	if len(v.m.Compartments) > 0 {
+		amountText = uc.concText + "·" + map[bool]string{true: volUnit, false: "volume"}[volUnit != ""]
+	}
+	for _, ce := range v.net.Events {
+		e := &v.m.Events[ce.Index]
+		// Times and intervals given by a parameter are in the time unit.
+		for _, tf := range []struct {
+			field string
+			val   Value
+		}{{"at", e.At}, {"every", e.Every}, {"from", e.From}, {"to", e.To}} {
+			j, ok := v.paramIx[tf.val.Name]
+			if !tf.val.Set || tf.val.Name == "" || !ok || uc.params[j] == nil || uc.params[j].Equal(uc.time) {
+				continue
+			}
+			v.add(Warning, "events", ce.Index, ce.Name, tf.field, 0, "%s is the parameter %s in %s, but times are in %s here; %s",
+				tf.field, tf.val.Name, v.m.Parameters[j].Unit, uc.timeText, uc.mismatch(*uc.params[j], uc.time))
+		}
+		if ce.Kind == Triggered {
+			warn := func(col int, format string, args ...any) {
+				v.add(Warning, "events", ce.Index, ce.Name, "when", col, format, args...)
+			}
+			l, lok := uc.expr(ce.Cond[0], warn)
+			r, rok := uc.expr(ce.Cond[1], warn)
+			if lok && rok && !constant(ce.Cond[0]) && !constant(ce.Cond[1]) && !l.Equal(r) {
+				left, _, _, _ := comparison(e.When)
+				warn(len(left)+1, "the two sides of %q compare %s with %s; %s", ce.Op, uc.describe(l), uc.describe(r), uc.mismatch(l, r))
+			}
+		}
+		check := func(kind string, cc CheckedChange, want units.Unit, exact bool, wantText, what string) {
+			field := kind + "." + cc.Target
+			if cc.Expr == nil || constant(cc.Expr) {
+				return
+			}
+			found, ok := uc.expr(cc.Expr, func(col int, format string, args ...any) {
+				v.add(Warning, "events", ce.Index, ce.Name, field, col, format, args...)
+			})
+			if !ok || found.Equal(want) || !exact && found.SameDim(want) {
+				return
+			}
+			how := uc.mismatch(found, want)
+			if !exact {
+				how = "they measure different kinds of quantity"
+			}
+			v.add(Warning, "events", ce.Index, ce.Name, field, 0,
+				"the value of %s comes out in %s, but %s is in %s here; %s", field, uc.describe(found), what, wantText, how)
+		}
+		for _, cc := range ce.Add {
+			check("add", cc, amount, amountExact, amountText, "an amount of "+cc.Target)
+		}
+		for _, cc := range ce.Infuse {
+			check("infuse", cc, amount.Div(uc.time), amountExact, amountText+"/"+uc.timeText, "an infusion rate of "+cc.Target)
+		}
+		for _, cc := range ce.Set {
+			if !cc.Parameter {
+				check("set", cc, uc.conc, true, uc.concText, "the concentration of "+cc.Target)
+				continue
+			}
+			if u := uc.params[cc.Index]; u != nil {
+				check("set", cc, *u, true, v.m.Parameters[cc.Index].Unit, "parameter "+cc.Target)
+			}
+		}
+	}
 }

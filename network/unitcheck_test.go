@@ -155,6 +155,11 @@ func TestUnitHint(t *testing.T) {
 		{unitModel("A -> C", NewRate(MichaelisMenten, "vmax", "k", "km", "k")), "Km in uM\nVmax in uM/s"},
 		{unitModel("A -> C", NewRate(HillRepression, "vmax", "k", "k_half", "k", "n", "k", "regulator", "B")), "Vmax in uM/s\nK (half effect) in uM\nHill coefficient n in 1"},
 		{unitModel("A -> C", expression("k*A")), ""},
+		{func() *Model {
+			m := unitModel("A + B -> C", NewRate(MassAction, "k", "k"))
+			m.Units = Units{}
+			return m
+		}(), "Rate constant in 1/(concentration·time) for a second-order step"},
 	} {
 		net, _ := Check(c.m)
 		if got := net.UnitHint(0); got != c.want {

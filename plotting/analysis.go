@@ -204,6 +204,11 @@ func IndexBars(names []string, first, total []Interval, o Options) (*plot.Plot, 
 	return p, nil
 }
 
+// NameAxis labels the whole numbers 0, 1, … of axis a with names, for
+// figures whose rows or columns are named things, such as a heat map of
+// estimates or parameters drawn at 0, 1, ….
+func NameAxis(a *plot.Axis, names []string) { a.Tick.Marker = nameTicks(names) }
+
 // nameTicks labels the whole numbers 0, 1, … with names.
 type nameTicks []string
 

@@ -41,19 +41,46 @@ func MeasuredPlot(tr Trajectories, data []Measured, o Options) (*plot.Plot, erro
 		p.Add(c)
 		legend.add(name+" (model)", c)
 	}
+	dropped := addMeasured(p, legend, data, slotOf, nil, o)
+	if !o.NoLegend {
+		p.Add(legend)
+	}
+	var ns notes
+	if len(data) == 0 && len(tr.Times) == 0 {
+		ns.addf("no data")
+	}
+	ns.count(dropped, "measurement a log axis cannot show", "measurements a log axis cannot show")
+	finish(p, o, ns)
+	limitDecades(p, o)
+	return p, nil
+}
+
+// addMeasured draws data as markers with ±SD bars, each name in its slot
+// of slotOf (names it lacks get the next free slots), leaving out the
+// names hidden says are hidden, and returns how many points a log axis
+// cannot show.
+func addMeasured(p *plot.Plot, legend *sideLegend, data []Measured, slotOf map[string]int, hidden func(string) bool, o Options) int {
 	byName := map[string][]Measured{}
 	var names []string
+	next := 0
+	for _, s := range slotOf {
+		next = max(next, s+1)
+	}
 	for _, d := range data {
 		if _, ok := byName[d.Name]; !ok {
 			names = append(names, d.Name)
 			if _, known := slotOf[d.Name]; !known {
-				slotOf[d.Name] = len(slotOf)
+				slotOf[d.Name] = next
+				next++
 			}
 		}
 		byName[d.Name] = append(byName[d.Name], d)
 	}
 	var dropped int
 	for _, name := range names {
+		if hidden != nil && hidden(name) {
+			continue
+		}
 		pts := byName[name]
 		col := Colour(slotOf[name])
 		xs, ys := make([]float64, len(pts)), make([]float64, len(pts))
@@ -76,15 +103,5 @@ func MeasuredPlot(tr Trajectories, data []Measured, o Options) (*plot.Plot, erro
 		p.Add(m)
 		legend.add(name+" (measured)", m)
 	}
-	if !o.NoLegend {
-		p.Add(legend)
-	}
-	var ns notes
-	if len(data) == 0 && len(tr.Times) == 0 {
-		ns.addf("no data")
-	}
-	ns.count(dropped, "measurement a log axis cannot show", "measurements a log axis cannot show")
-	finish(p, o, ns)
-	limitDecades(p, o)
-	return p, nil
+	return dropped
 }

@@ -69,6 +69,12 @@ type Options struct {
 	// Marks are times drawn as thin ticks rising from the time axis of a
 	// TrajectoryPlot, such as the events of a run.
 	Marks []TimeMark
+
+	// Measured are measurements drawn over a TrajectoryPlot as markers
+	// with ±SD bars, each in the colour slot of the series of its name
+	// and hidden with it (see Visible); measurements of a name the plot
+	// lacks take slots after its series.
+	Measured []Measured
 }
 
 // TimeMark is a labelled time on a TrajectoryPlot's time axis.

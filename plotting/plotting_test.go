@@ -692,3 +692,80 @@ func TestHistogramOfConstant(t *testing.T) {
 		t.Errorf("edges %v counts %v, want 0.095…0.105 with both values in the middle bin", edges, counts)
 	}
 }
+
+// Measurements over a TrajectoryPlot take the colour slot of the series of
+// their name, are hidden with it, and a name the plot lacks takes the next
+// free slot (the window's overlay of loaded measurements).
+func TestMeasuredOverTrajectories(t *testing.T) {
+	tr := Trajectories{Times: []float64{0, 10}, Names: []string{"A"}, Values: [][]float64{{0}, {0}}}
+	data := []Measured{{T: 2, Y: 5, SD: 1, Name: "A"}, {T: 4, Y: 6, SD: 0.5, Name: "A"}, {T: 6, Y: 7, Name: "A"}, {T: 8, Y: 4, Name: "A"}}
+	count := func(o Options, slot int) int {
+		p, err := TrajectoryPlot(tr, o)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return countNear(Render(p, 640, 400), Colour(slot))
+	}
+	o := Options{ColourIndex: []int{4}, Measured: data, NoLegend: true}
+	without := count(Options{ColourIndex: []int{4}, NoLegend: true}, 4)
+	if with := count(o, 4); with < without+40 {
+		t.Errorf("measurements not drawn in slot 4: %d pixels with them, %d without", with, without)
+	}
+	o.Visible = []bool{false}
+	if n := count(o, 4); n != 0 {
+		t.Errorf("measurements of a hidden series drawn: %d pixels of its colour", n)
+	}
+	other := []Measured{{T: 3, Y: 3, Name: "B"}, {T: 5, Y: 4, Name: "B"}}
+	if n := count(Options{ColourIndex: []int{4}, Measured: other, NoLegend: true}, 5); n < 20 {
+		t.Errorf("a measured name the plot lacks is not drawn in the next slot (%d pixels)", n)
+	}
+	p, _ := TrajectoryPlot(tr, Options{LogX: true, Measured: []Measured{{T: 0, Y: 1, Name: "A"}, {T: 1, Y: 1, Name: "A"}}})
+	if !strings.Contains(p.Title.Text, "1 measurement a log axis cannot show") {
+		t.Errorf("title %q does not note the measurement at time 0", p.Title.Text)
+	}
+}
+
+// TracePlot draws every run and the lowest value so far; an empty input
+// gives an empty figure with a note, not an error.
+func TestTracePlot(t *testing.T) {
+	p, err := TracePlot([][]float64{{100, 10, 1}, {50, 40, 30, 20}, nil}, Options{LogY: true, NoLegend: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	img := Render(p, 640, 400)
+	if n := countNear(img, Colour(1)); n < 100 {
+		t.Errorf("the lowest-so-far line is not drawn (%d pixels)", n)
+	}
+	p, _ = TracePlot(nil, Options{})
+	if !strings.Contains(p.Title.Text, "no data") {
+		t.Errorf("empty trace titled %q", p.Title.Text)
+	}
+	p, _ = TracePlot([][]float64{{1, 0, -1}}, Options{LogY: true})
+	if !strings.Contains(p.Title.Text, "2 values a log axis cannot show") {
+		t.Errorf("title %q does not note the values ≤ 0", p.Title.Text)
+	}
+}
+
+// SensitivityMap keeps the later row at a repeated time, leaves time 0
+// out of a log axis quietly, labels the rows by name, and refuses times
+// that descend or rows of the wrong length.
+func TestSensitivityMap(t *testing.T) {
+	z := [][]float64{{0, 1, 2, 3}, {0, -1, -2, -3}}
+	p, err := SensitivityMap([]float64{0, 1, 1, 2}, []string{"ka", "ke"}, z, Options{LogX: true}, "s")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(p.Title.Text, "not shown") {
+		t.Errorf("time 0 noted on a log axis: %q", p.Title.Text)
+	}
+	ticks := p.Y.Tick.Marker.Ticks(p.Y.Min, p.Y.Max)
+	if len(ticks) != 2 || ticks[0].Label != "ka" || ticks[1].Label != "ke" {
+		t.Errorf("row labels %+v", ticks)
+	}
+	if _, err := SensitivityMap([]float64{0, 2, 1}, []string{"a"}, [][]float64{{1, 2, 3}}, Options{}, "s"); err == nil {
+		t.Error("descending times accepted")
+	}
+	if _, err := SensitivityMap([]float64{0, 1}, []string{"a"}, [][]float64{{1}}, Options{}, "s"); err == nil {
+		t.Error("a short row accepted")
+	}
+}

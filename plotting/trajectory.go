@@ -137,6 +137,13 @@ func TrajectoryPlot(tr Trajectories, o Options) (*plot.Plot, error) {
 			}
 		}
 	}
+	droppedMeasured := 0
+	if len(o.Measured) > 0 {
+		droppedMeasured = addMeasured(p, legend, o.Measured, slotOf, func(name string) bool {
+			j := indexOf(tr.Names, name)
+			return j >= 0 && !visible(j)
+		}, o)
+	}
 	if len(o.Marks) > 0 {
 		p.Add(&marks{xs: o.Marks, logX: o.LogX})
 	}
@@ -161,6 +168,7 @@ func TrajectoryPlot(tr Trajectories, o Options) (*plot.Plot, error) {
 	}
 	ns.count(nonPositive, "value ≤ 0 on the log axis", "values ≤ 0 on the log axis")
 	ns.count(nonFinite, "NaN or infinite value", "NaN or infinite values")
+	ns.count(droppedMeasured, "measurement a log axis cannot show", "measurements a log axis cannot show")
 	finish(p, o, ns)
 	limitDecades(p, o)
 	return p, nil

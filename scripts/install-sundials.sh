@@ -1,9 +1,13 @@
 #!/usr/bin/env bash
 # install-sundials.sh puts the C library SUNDIALS CVODE (headers and shared
-# library) where the comparison harness internal/cvodecmp expects it:
+# libraries), with its sparse matrix and its KLU sparse direct solver
+# (SuiteSparse), where the comparison harness internal/cvodecmp expects them:
 #
 #	$PREFIX/include/   cvode/, sundials/, nvector/, sunmatrix/, sunlinsol/ ...
+#	$PREFIX/include/suitesparse/   klu.h and the headers it includes
 #	$PREFIX/lib/libsundials_cvode.so   (link-time name for -lsundials_cvode)
+#	$PREFIX/lib/libsundials_sunmatrixsparse.so, libsundials_sunlinsolklu.so,
+#	$PREFIX/lib/libklu.so
 #
 # PREFIX is /opt/sundials-dev unless given as the first argument; the cgo
 # flags in internal/cvodecmp/cvode.go name /opt/sundials-dev, so another
@@ -23,6 +27,13 @@
 #     libc only.
 #   - headers: taken from libsundials-dev with `apt-get download` and
 #     `dpkg -x` (unpacked, not installed, so its dependencies never come).
+#   - the KLU variant: the sparse SUNMatrix from libsundials-sunmatrix4
+#     (depends on libc6 and libgfortran5 only) and KLU from libklu1 (with
+#     libamd2, libbtf1, libcolamd2 and libsuitesparseconfig5, together under
+#     1 MB) are installed; SUNLinSol_KLU itself is in libsundials-sunlinsol3,
+#     which depends on PETSc and MPI, so only its libsundials_sunlinsolklu
+#     is unpacked from the .deb; klu.h comes unpacked from libsuitesparse-dev
+#     (whose dependencies, CHOLMOD, BLAS and LAPACK among them, never come).
 #
 # As root (or with password-less sudo) the runtime package is installed with
 # apt-get. Otherwise it too is unpacked into $PREFIX/lib, which the harness
@@ -31,8 +42,13 @@
 set -euo pipefail
 
 PREFIX=${1:-/opt/sundials-dev}
-RUNTIME_PKG=libsundials-cvode6
-DEV_PKG=libsundials-dev
+# Installed with apt-get as root, unpacked into $PREFIX/lib otherwise.
+RUNTIME_PKGS=(libsundials-cvode6 libsundials-sunmatrix4 libklu1 libamd2 libbtf1 libcolamd2 libsuitesparseconfig5)
+# Never installed: headers, and the one library of libsundials-sunlinsol3.
+UNPACK_PKGS=(libsundials-dev libsuitesparse-dev libsundials-sunlinsol3)
+# Link-time names the harness asks for (-l...), with the package holding each.
+LIBS=(sundials_cvode:libsundials-cvode6 sundials_sunmatrixsparse:libsundials-sunmatrix4
+	klu:libklu1 sundials_sunlinsolklu:libsundials-sunlinsol3)
 
 if ! command -v apt-get >/dev/null 2>&1 || ! command -v dpkg >/dev/null 2>&1; then
 	echo "install-sundials.sh: needs a Debian-like system (apt-get, dpkg)." >&2
@@ -52,29 +68,29 @@ work=$(mktemp -d)
 chmod 755 "$work" # apt-get download runs as _apt where it can
 trap 'rm -rf "$work"' EXIT
 
-# 1. Runtime library.
-runtime_so=""
-if dpkg-query -W -f='${Status}' "$RUNTIME_PKG" 2>/dev/null | grep -q "ok installed"; then
-	echo "$RUNTIME_PKG is already installed."
-elif [[ ${as_root[*]:-} != none ]]; then
+installed() { dpkg-query -W -f='${Status}' "$1" 2>/dev/null | grep -q "ok installed"; }
+
+# 1. Runtime libraries.
+missing=()
+for p in "${RUNTIME_PKGS[@]}"; do installed "$p" || missing+=("$p"); done
+if [[ ${#missing[@]} -gt 0 && ${as_root[*]:-} != none ]]; then
 	"${as_root[@]}" apt-get update -qq
 	"${as_root[@]}" env DEBIAN_FRONTEND=noninteractive \
-		apt-get install -y --no-install-recommends "$RUNTIME_PKG"
-fi
-if dpkg-query -W -f='${Status}' "$RUNTIME_PKG" 2>/dev/null | grep -q "ok installed"; then
-	runtime_so=$(dpkg -L "$RUNTIME_PKG" | grep '/libsundials_cvode\.so\.[0-9]*$' | head -n1)
+		apt-get install -y --no-install-recommends "${missing[@]}"
+	missing=()
+	for p in "${RUNTIME_PKGS[@]}"; do installed "$p" || missing+=("$p"); done
 fi
 
-# 2. Headers (and, without root, the runtime too) unpacked from the .deb files.
-(cd "$work" && apt-get download "$DEV_PKG" 2>&1 | grep -v '^W: Download is performed unsandboxed' || true)
-[[ -n $runtime_so ]] || (cd "$work" && apt-get download "$RUNTIME_PKG" 2>&1 | grep -v '^W: Download is performed unsandboxed' || true)
-shopt -s nullglob
-debs=("$work"/*.deb)
-if [[ ${#debs[@]} -eq 0 ]]; then
-	echo "install-sundials.sh: apt-get download $DEV_PKG failed (try apt-get update first)." >&2
-	exit 1
-fi
-for deb in "${debs[@]}"; do
+# 2. Headers, SUNLinSol_KLU and (without root) the runtime libraries,
+# unpacked from the .deb files.
+(cd "$work" && apt-get download "${UNPACK_PKGS[@]}" ${missing[@]+"${missing[@]}"} 2>&1 |
+	grep -v '^W: Download is performed unsandboxed' || true)
+for p in "${UNPACK_PKGS[@]}" ${missing[@]+"${missing[@]}"}; do
+	deb=$(ls "$work/${p}"_*.deb 2>/dev/null | head -n1 || true)
+	if [[ -z $deb ]]; then
+		echo "install-sundials.sh: apt-get download $p failed (try apt-get update first)." >&2
+		exit 1
+	fi
 	dpkg -x "$deb" "$work/root"
 done
 
@@ -88,21 +104,50 @@ fi
 stage="$work/stage"
 mkdir -p "$stage/lib"
 cp -a "$work/root/usr/include" "$stage/include"
-if [[ -n $runtime_so ]]; then
-	ln -s "$runtime_so" "$stage/lib/libsundials_cvode.so"
-else
-	real=$(find "$work/root" -name 'libsundials_cvode.so.*.*' -type f | head -n1)
+# Of SuiteSparse, only KLU's header and the ones it includes.
+rm -rf "$stage/include/suitesparse"
+mkdir -p "$stage/include/suitesparse"
+for h in klu.h amd.h btf.h colamd.h SuiteSparse_config.h; do
+	cp "$work/root/usr/include/suitesparse/$h" "$stage/include/suitesparse/"
+done
+
+# link NAME PKG makes $stage/lib/libNAME.so point at the installed library
+# of PKG, or at a copy of the one unpacked from PKG's .deb (with its soname).
+link() {
+	local name=$1 pkg=$2 real="" base soname
+	if installed "$pkg"; then
+		real=$(dpkg -L "$pkg" | grep "/lib$name\.so\.[0-9.]*$" | sort | head -n1 || true)
+	fi
+	if [[ -n $real ]]; then
+		ln -s "$real" "$stage/lib/lib$name.so"
+		return
+	fi
+	real=$(find "$work/root" -name "lib$name.so.*" -type f | sort | head -n1)
 	if [[ -z $real ]]; then
-		echo "install-sundials.sh: no libsundials_cvode.so in the downloaded $RUNTIME_PKG." >&2
+		echo "install-sundials.sh: no lib$name.so in the downloaded $pkg." >&2
 		exit 1
 	fi
 	cp "$real" "$stage/lib/"
-	base=$(basename "$real")        # libsundials_cvode.so.6.4.1
-	soname=${base%.*.*}             # libsundials_cvode.so.6
-	ln -s "$base" "$stage/lib/$soname"
-	ln -s "$soname" "$stage/lib/libsundials_cvode.so"
-fi
-cp -a "$work/root/usr/share/doc/$DEV_PKG/copyright" "$stage/COPYRIGHT" 2>/dev/null || true
+	base=$(basename "$real")
+	soname=$(objdump -p "$real" 2>/dev/null | awk '/SONAME/ {print $2}' || true)
+	if [[ -n $soname && $soname != "$base" ]]; then ln -s "$base" "$stage/lib/$soname"; fi
+	ln -s "$base" "$stage/lib/lib$name.so"
+}
+for l in "${LIBS[@]}"; do link "${l%%:*}" "${l#*:}"; done
+# Without root, KLU's own dependencies were unpacked too: put them beside it
+# with their sonames, so that the run path finds them.
+for p in ${missing[@]+"${missing[@]}"}; do
+	case $p in libamd2 | libbtf1 | libcolamd2 | libsuitesparseconfig5)
+		while IFS= read -r f; do
+			cp "$f" "$stage/lib/"
+			so=$(objdump -p "$f" 2>/dev/null | awk '/SONAME/ {print $2}' || true)
+			if [[ -n $so && ! -e $stage/lib/$so ]]; then ln -s "$(basename "$f")" "$stage/lib/$so"; fi
+		done < <(find "$work/root" -name "${p%[0-9]}.so.*" -type f)
+		;;
+	esac
+done
+cp -a "$work/root/usr/share/doc/libsundials-dev/copyright" "$stage/COPYRIGHT" 2>/dev/null || true
+cp -a "$work/root/usr/share/doc/libsuitesparse-dev/copyright" "$stage/COPYRIGHT-SuiteSparse" 2>/dev/null || true
 
 install_dir() {
 	rm -rf "$PREFIX/include" "$PREFIX/lib"
@@ -121,25 +166,30 @@ if command -v cc >/dev/null 2>&1; then
 #include <cvode/cvode.h>
 #include <nvector/nvector_serial.h>
 #include <sunmatrix/sunmatrix_dense.h>
+#include <sunmatrix/sunmatrix_sparse.h>
 #include <sunlinsol/sunlinsol_dense.h>
+#include <sunlinsol/sunlinsol_klu.h>
 int main(void) {
 	SUNContext ctx;
 	if (SUNContext_Create(NULL, &ctx) != 0) return 1;
 	N_Vector y = N_VNew_Serial(3, ctx);
 	SUNMatrix A = SUNDenseMatrix(3, 3, ctx);
 	SUNLinearSolver LS = SUNLinSol_Dense(y, A, ctx);
+	SUNMatrix S = SUNSparseMatrix(3, 3, 3, CSC_MAT, ctx);
+	SUNLinearSolver K = SUNLinSol_KLU(y, S, ctx);
 	void *mem = CVodeCreate(CV_BDF, ctx);
-	int ok = y && A && LS && mem;
-	printf("SUNDIALS %s (double precision %d): CVODE, dense matrix and solver %s\n",
+	int ok = y && A && LS && S && K && mem;
+	printf("SUNDIALS %s (double precision %d): CVODE, dense and sparse (KLU) solvers %s\n",
 	       SUNDIALS_VERSION, SUNDIALS_DOUBLE_PRECISION, ok ? "ok" : "FAILED");
-	CVodeFree(&mem); SUNLinSolFree(LS); SUNMatDestroy(A); N_VDestroy(y);
-	SUNContext_Free(&ctx);
+	CVodeFree(&mem); SUNLinSolFree(K); SUNMatDestroy(S); SUNLinSolFree(LS); SUNMatDestroy(A);
+	N_VDestroy(y); SUNContext_Free(&ctx);
 	return ok ? 0 : 1;
 }
 EOF
-	cc -o "$work/check" "$work/check.c" -I"$PREFIX/include" -L"$PREFIX/lib" \
-		-Wl,-rpath,"$PREFIX/lib" -lsundials_cvode -lm
+	cc -o "$work/check" "$work/check.c" -I"$PREFIX/include" -I"$PREFIX/include/suitesparse" \
+		-L"$PREFIX/lib" -Wl,--disable-new-dtags -Wl,-rpath,"$PREFIX/lib" \
+		-lsundials_cvode -lsundials_sunlinsolklu -lsundials_sunmatrixsparse -lklu -lm
 	"$work/check"
 fi
-echo "CVODE headers in $PREFIX/include, library in $PREFIX/lib."
-echo "Run the comparison with: go run -tags sundials ./internal/cvodecmp/cmd"
+echo "CVODE (dense and KLU) headers in $PREFIX/include, libraries in $PREFIX/lib."
+echo "Run the comparison with: make cvode-compare"

@@ -66,7 +66,7 @@ func Prepare(m *network.Model) (*Model, error) {
 	for _, law := range net.ConservationLaws() {
 		r := make([]float64, n)
 		for i, w := range law.Weights {
-			r[i] = float64(w) * sys.Volume(sys.SpeciesCompartment(i))
+			r[i] = float64(w) * sys.AmountVolume(sys.SpeciesCompartment(i))
 		}
 		rows = append(rows, r)
 		a.Laws = append(a.Laws, law)

@@ -15,7 +15,6 @@ import (
 	"os/signal"
 	"path/filepath"
 	"sort"
-	"strconv"
 	"strings"
 
 	"kinetarium/app/calibrate"
@@ -106,27 +105,13 @@ type fitSummary struct {
 	Estimates       []map[string]any `json:"estimates"`
 }
 
-// fnum writes a number for CSV: shortest form, "inf", "-inf", "nan" as
-// empty.
-func fnum(v float64) string {
-	switch {
-	case math.IsNaN(v):
-		return ""
-	case math.IsInf(v, 1):
-		return "inf"
-	case math.IsInf(v, -1):
-		return "-inf"
-	}
-	return strconv.FormatFloat(v, 'g', -1, 64)
-}
-
 // fitJSONNum is a number for JSON, or nil where JSON has none.
 func fitJSONNum(v float64) any {
 	if math.IsNaN(v) {
 		return nil
 	}
 	if math.IsInf(v, 0) {
-		return fnum(v)
+		return calibrate.Num(v)
 	}
 	return v
 }
@@ -168,7 +153,7 @@ func fitCmd(ctx context.Context, f *fitFlags, stdout, stderr io.Writer) error {
 	fmt.Fprintf(stdout, "fit: %d of %d starts converged; best objective %.6g (−log-likelihood), %d data, %d estimated\n",
 		rep.Converged, len(rep.Starts), rep.Objective, rep.NData, rep.NParams)
 	for _, e := range rep.Estimates {
-		fmt.Fprintf(stdout, "  %-24s %-14s SE %-12s 95%% [%s, %s]\n", e.Name, fnum(e.Value), fnum(e.SE), fnum(e.Low), fnum(e.High))
+		fmt.Fprintf(stdout, "  %-24s %-14s SE %-12s 95%% [%s, %s]\n", e.Name, calibrate.Num(e.Value), calibrate.Num(e.SE), calibrate.Num(e.Low), calibrate.Num(e.High))
 	}
 	for _, n := range rep.Notes {
 		fmt.Fprintf(stdout, "  note: %s\n", n)
@@ -179,11 +164,7 @@ func fitCmd(ctx context.Context, f *fitFlags, stdout, stderr io.Writer) error {
 
 // writeStarts writes starts.csv: every start's outcome.
 func writeStarts(dir string, rep *calibrate.Report, prov *run.Provenance) error {
-	rows := [][]string{{"start", "objective", "converged", "iterations", "reason"}}
-	for _, s := range rep.Starts {
-		rows = append(rows, []string{strconv.Itoa(s.Index + 1), fnum(s.Objective), strconv.FormatBool(s.Converged), strconv.Itoa(s.Iterations), s.Reason})
-	}
-	return saveCSV(filepath.Join(dir, "starts.csv"), rows, prov)
+	return saveCSV(filepath.Join(dir, "starts.csv"), calibrate.StartRows(rep), prov)
 }
 
 func saveCSV(path string, rows [][]string, prov *run.Provenance) error {
@@ -195,7 +176,6 @@ func saveCSV(path string, rows [][]string, prov *run.Provenance) error {
 
 // writeFit writes every table and figure of a fit.
 func writeFit(ctx context.Context, dir string, p *calibrate.Problem, rep *calibrate.Report, prov *run.Provenance) error {
-	est := [][]string{{"name", "value", "se", "ci95_low", "ci95_high", "profile_low", "profile_high"}}
 	sum := fitSummary{Objective: rep.Objective, WSSR: rep.WSSR, SSR: rep.SSR, NData: rep.NData, NParams: rep.NParams, DOF: rep.DOF,
 		AIC: rep.AIC, BIC: rep.BIC, Starts: len(rep.Starts), ConvergedStarts: rep.Converged, BestStart: rep.Best + 1,
 		Iterations: rep.Iterations, Seconds: rep.Seconds, Noise: rep.Noise, Notes: rep.Notes}
@@ -209,12 +189,11 @@ func writeFit(ctx context.Context, dir string, p *calibrate.Problem, rep *calibr
 		sum.Notes = []string{}
 	}
 	for _, e := range rep.Estimates {
-		est = append(est, []string{e.Name, fnum(e.Value), fnum(e.SE), fnum(e.Low), fnum(e.High), fnum(e.ProfileLow), fnum(e.ProfileHigh)})
 		sum.Estimates = append(sum.Estimates, map[string]any{"name": e.Name, "target": e.Target, "value": e.Value, "se": fitJSONNum(e.SE),
 			"ci95_low": fitJSONNum(e.Low), "ci95_high": fitJSONNum(e.High), "profile_low": fitJSONNum(e.ProfileLow), "profile_high": fitJSONNum(e.ProfileHigh),
 			"determined": e.Determined, "at_bound": e.AtBound, "unit": e.Unit})
 	}
-	if err := saveCSV(filepath.Join(dir, "estimates.csv"), est, prov); err != nil {
+	if err := saveCSV(filepath.Join(dir, "estimates.csv"), calibrate.EstimateRows(rep), prov); err != nil {
 		return err
 	}
 	js, err := json.MarshalIndent(sum, "", "  ")
@@ -224,25 +203,10 @@ func writeFit(ctx context.Context, dir string, p *calibrate.Problem, rep *calibr
 	if err := atomicfile.Write(filepath.Join(dir, "fit.json"), append(js, '\n')); err != nil {
 		return err
 	}
-	fitted := [][]string{{"experiment", "time", "name", "observed", "sd", "fitted", "residual"}}
-	for _, r := range rep.Residuals {
-		fitted = append(fitted, []string{r.Experiment, fnum(r.Time), r.Name, fnum(r.Observed), fnum(r.SD), fnum(r.Fitted), fnum(r.Residual)})
-	}
-	if err := saveCSV(filepath.Join(dir, "fitted.csv"), fitted, prov); err != nil {
+	if err := saveCSV(filepath.Join(dir, "fitted.csv"), calibrate.FittedRows(rep), prov); err != nil {
 		return err
 	}
-	corr := [][]string{{"name"}}
-	for _, e := range rep.Estimates {
-		corr[0] = append(corr[0], e.Name)
-	}
-	for a, e := range rep.Estimates {
-		row := []string{e.Name}
-		for b := range rep.Estimates {
-			row = append(row, fnum(rep.Corr.At(a, b)))
-		}
-		corr = append(corr, row)
-	}
-	if err := saveCSV(filepath.Join(dir, "correlation.csv"), corr, prov); err != nil {
+	if err := saveCSV(filepath.Join(dir, "correlation.csv"), calibrate.CorrelationRows(rep), prov); err != nil {
 		return err
 	}
 	if err := writeStarts(dir, rep, prov); err != nil {

@@ -71,6 +71,12 @@ Commands:
         --sens-out FILE    where to write them (default: beside --out, as
                            NAME-sensitivities.csv): time, output, quantity,
                            value, sensitivity (dy/dq), scaled (dln y/dln q)
+        --sens-map NAME    also draw the scaled sensitivities of species or
+                           assignment NAME as a heat map (time across, the
+                           knobs up) beside them, as ...-sensitivities-NAME.png
+        --data FILE        draw the measurements in FILE (CSV or TSV: time,
+                           one column per species or assignment, optional
+                           sd_NAME) over the curves of --figure
 
   sweep SPEC.json [--out DIR] [--shard i/n] [--workers N] [--quiet]
       Vary one or two parameters over a grid and write readouts, tables

@@ -13,7 +13,6 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
-	"strconv"
 
 	"gonum.org/v1/plot"
 
@@ -299,10 +298,10 @@ func writeOutputs(meta *runMeta, res *explore.Result, dir string, stdout io.Writ
 	if meta.Kind == "sweep" {
 		name = "runs.csv"
 	}
-	if err := out.csvEach(name, res, study.EachRunRow); err != nil {
+	if err := out.csvEach(name, res, meta.Figures.EachRunRow); err != nil {
 		return err
 	}
-	if err := out.csvEach("failures.csv", res, study.EachFailureRow); err != nil {
+	if err := out.csvEach("failures.csv", res, meta.Figures.EachFailureRow); err != nil {
 		return err
 	}
 	var err error
@@ -336,45 +335,12 @@ func writeOutputs(meta *runMeta, res *explore.Result, dir string, stdout io.Writ
 // writeSweep writes trajectories, readout matrices and the sweep figures.
 func writeSweep(meta *runMeta, res *explore.Result, out *outputs) error {
 	fig := meta.Figures
-	head := append([]string{"index"}, meta.Knobs...)
-	head = append(head, "time")
-	head = append(head, fig.Species...)
-	rows := [][]string{head}
-	for _, s := range res.Samples {
-		if s.Traj == nil {
-			continue
-		}
-		for i, t := range s.Traj.T {
-			row := []string{strconv.Itoa(s.Index)}
-			for _, v := range s.X {
-				row = append(row, study.FormatNumber(v))
-			}
-			row = append(row, study.FormatNumber(t))
-			for _, v := range s.Traj.Y[i] {
-				row = append(row, study.FormatNumber(v))
-			}
-			rows = append(rows, row)
-		}
-	}
-	if err := out.csv("trajectories.csv", rows); err != nil {
+	if err := out.csv("trajectories.csv", fig.TrajectoryRows(res)); err != nil {
 		return err
 	}
 	if len(fig.Axes) == 2 {
-		xs, ys := fig.Axes[1], fig.Axes[0]
 		for r, name := range res.Readouts {
-			vals := res.Values(r)
-			rows := [][]string{{meta.Knobs[0] + " \\ " + meta.Knobs[1]}}
-			for _, x := range xs {
-				rows[0] = append(rows[0], study.FormatNumber(x))
-			}
-			for i1 := range ys {
-				row := []string{study.FormatNumber(ys[i1])}
-				for _, v := range vals[i1*len(xs) : (i1+1)*len(xs)] {
-					row = append(row, study.FormatNumber(v))
-				}
-				rows = append(rows, row)
-			}
-			if err := out.csv("matrix_"+fileName(name)+".csv", rows); err != nil {
+			if err := out.csv("matrix_"+fileName(name)+".csv", fig.MatrixRows(res, r)); err != nil {
 				return err
 			}
 			p, err := fig.Readout(res, r)
@@ -407,23 +373,17 @@ func writePopulation(meta *runMeta, res *explore.Result, out *outputs) error {
 	fig := meta.Figures
 	// Readout percentiles, exact from the samples; NaN (undefined) values
 	// are counted apart.
-	rows := [][]string{{"readout", "species", "n", "undefined", "p5", "p25", "p50", "p75", "p95"}}
 	for r, name := range res.Readouts {
-		vals, undefined, err := study.ReadoutValues(res, r)
-		if err != nil {
-			return err
-		}
-		row := []string{name, fig.ReadoutSpecies[r], strconv.Itoa(len(vals)), strconv.Itoa(undefined)}
-		for _, p := range study.Percentiles {
-			row = append(row, study.FormatNumber(study.EmpiricalQuantile(vals, p)))
-		}
-		rows = append(rows, row)
 		pl, err := fig.Histogram(res, r)
 		if err := out.figure(pl, err, "hist_"+fileName(name)+".png"); err != nil {
 			return err
 		}
 	}
-	if err := out.csv("readouts.csv", rows); err != nil {
+	ro, err := fig.ReadoutSummaryRows(res)
+	if err != nil {
+		return err
+	}
+	if err := out.csv("readouts.csv", ro); err != nil {
 		return err
 	}
 	b := res.Bands
@@ -436,5 +396,5 @@ func writePopulation(meta *runMeta, res *explore.Result, out *outputs) error {
 			return err
 		}
 	}
-	return out.csv("bands.csv", study.BandRows(b, meta.BandSpecies))
+	return out.csv("bands.csv", fig.BandRows(b, meta.BandSpecies))
 }

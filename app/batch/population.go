@@ -112,7 +112,7 @@ func populationJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	case len(spec.Vary) == 0:
 		return nil, nil, fmt.Errorf("%s: vary: missing (the knobs to vary and their distributions)", c.spec)
 	}
-	l, prov, err := loadModel("population", c.spec, spec.Model, spec.Simulation)
+	l, prov, err := loadModel("population", c.spec, spec.Model, spec.Simulation, c.show)
 	if err != nil {
 		return nil, nil, err
 	}

@@ -65,3 +65,40 @@ func TestSimulateSensitivities(t *testing.T) {
 		t.Errorf("no output file: exit %d, %q", rc, stderr)
 	}
 }
+
+// simulate --sens-map draws the scaled sensitivities beside their CSV, and
+// --data draws measurements over --figure; a measurements file with a
+// mistake is bad input (exit 2) whose message names its line and column,
+// and an unknown map name or a flag without its partner is refused.
+func TestSimulateSensMapAndData(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "traj.csv")
+	fig := filepath.Join(dir, "traj.png")
+	data := filepath.Join(dir, "b.csv")
+	os.WriteFile(data, []byte("time,B,sd_B\n1,0.8,0.05\n2,1.3,0.05\n"), 0o644)
+	rc, _, stderr := simRun(simTestdata+"decay.json", "--out", out, "--figure", fig, "--data", data, "--sensitivities", "k,init:A", "--sens-map", "A")
+	if rc != 0 {
+		t.Fatalf("exit %d: %s", rc, stderr)
+	}
+	for _, p := range []string{fig, filepath.Join(dir, "traj-sensitivities-A.png")} {
+		if fi, err := os.Stat(p); err != nil || fi.Size() < 1000 {
+			t.Errorf("%s not drawn: %v", p, err)
+		}
+	}
+	os.WriteFile(data, []byte("time,B\n1,0.8\n2,x\n"), 0o644)
+	if rc, _, stderr := simRun(simTestdata+"decay.json", "--figure", fig, "--data", data); rc != 2 || !strings.Contains(stderr, `line 3, column 2 (B): "x" is not a number`) {
+		t.Errorf("bad data: exit %d, %q", rc, stderr)
+	}
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--out", out, "--sensitivities", "k", "--sens-map", "Z"}, `no species or assignment "Z"`},
+		{[]string{"--data", data}, "--data: give --figure too"},
+		{[]string{"--sens-map", "A"}, "--sens-map: give --sensitivities too"},
+	} {
+		if rc, _, stderr := simRun(append([]string{simTestdata + "decay.json"}, c.args...)...); rc != 2 || !strings.Contains(stderr, c.want) {
+			t.Errorf("%v: exit %d, %q; want 2 and %q", c.args, rc, stderr, c.want)
+		}
+	}
+}

@@ -14,6 +14,7 @@ import (
 	"kinetarium/app/analyse"
 	"kinetarium/app/run"
 	"kinetarium/app/study"
+	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
 )
@@ -89,7 +90,7 @@ func sensitivity(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return badInput(err)
 	}
-	l, prov, err := loadModel("sensitivity", c.spec, spec.Model, spec.Simulation)
+	l, prov, err := loadModel("sensitivity", c.spec, spec.Model, spec.Simulation, network.Display{})
 	if err != nil {
 		return badInput(err)
 	}

@@ -47,6 +47,8 @@ type simFlags struct {
 	timeUnit, concUnit string
 	sens               string // --sensitivities
 	sensOut            string // --sens-out
+	data               string // --data: measurements drawn over --figure
+	sensMap            string // --sens-map: the output whose scaled sensitivities are drawn
 	set                map[string]bool
 }
 
@@ -78,6 +80,8 @@ func parseSimFlags(args []string) (*simFlags, error) {
 	fs.StringVar(&f.concUnit, "concentration-unit", "", "")
 	fs.StringVar(&f.sens, "sensitivities", "", "")
 	fs.StringVar(&f.sensOut, "sens-out", "", "")
+	fs.StringVar(&f.data, "data", "", "")
+	fs.StringVar(&f.sensMap, "sens-map", "", "")
 	var pos []string
 	for {
 		if err := fs.Parse(args); err != nil {
@@ -126,6 +130,10 @@ func parseSimFlags(args []string) (*simFlags, error) {
 		return nil, simBadf("--sensitivities: give --sens-out FILE.csv (or --out, beside which FILE-sensitivities.csv is written)")
 	case f.set["sens-out"] && !f.set["sensitivities"]:
 		return nil, simBadf("--sens-out: give --sensitivities too")
+	case f.set["data"] && !f.set["figure"]:
+		return nil, simBadf("--data: give --figure too; the measurements are drawn over its curves")
+	case f.set["sens-map"] && !f.set["sensitivities"]:
+		return nil, simBadf("--sens-map: give --sensitivities too (the heat map shows their scaled values)")
 	}
 	if f.sens != "" && f.sensOut == "" {
 		f.sensOut = strings.TrimSuffix(f.out, filepath.Ext(f.out)) + "-sensitivities.csv"
@@ -227,6 +235,16 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 			}
 		}
 	}
+	var measured []plotting.Measured
+	if f.data != "" {
+		d, err := calibrate.LoadData(f.data, measuredNames(m))
+		if err != nil {
+			return badInput(fmt.Errorf("--data: %w", err))
+		}
+		for _, p := range d.Points {
+			measured = append(measured, plotting.Measured{T: p.Time, Y: p.Value, SD: p.SD, Name: p.Name})
+		}
+	}
 	m.Simulation = sim
 	prov, err := run.NewProvenance("simulation", saved, sim, nil)
 	if err != nil {
@@ -290,7 +308,8 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 		outErr = fmt.Errorf("writing the trajectories: %w", err)
 	}
 	if f.figure != "" && res != nil {
-		if err := drawFigure(f.figure, traj, run.View{LogX: sim.Output.Spacing == "log", LogY: f.logY}, prov); err != nil {
+		v := run.View{LogX: sim.Output.Spacing == "log", LogY: f.logY, Measured: run.MeasuredShown(m, traj, measured)}
+		if err := drawFigure(f.figure, traj, v, prov); err != nil {
 			outErr = errors.Join(outErr, fmt.Errorf("drawing the figure: %w", err))
 		}
 	}
@@ -380,5 +399,40 @@ func writeSensitivities(ctx context.Context, f *simFlags, m, saved *network.Mode
 	if err := atomicfile.WriteCSV(f.sensOut, calibrate.SensitivityRows(res, targets, ev.Base())); err != nil {
 		return fmt.Errorf("writing the sensitivities: %w", err)
 	}
-	return run.SaveProvenance(f.sensOut, prov)
+	if err := run.SaveProvenance(f.sensOut, prov); err != nil {
+		return err
+	}
+	if f.sensMap == "" {
+		return nil
+	}
+	k := slices.Index(res.Names, f.sensMap)
+	if k < 0 {
+		return badInput(fmt.Errorf("--sens-map: the model has no species or assignment %q (expected one of: %s)", f.sensMap, strings.Join(res.Names, ", ")))
+	}
+	p, err := plotting.SensitivityMap(res.T, targets, calibrate.ScaledGrid(res, k, ev.Base()), plotting.Options{
+		Title: "Scaled sensitivity of " + f.sensMap, XLabel: "time", XUnit: m.Units.Time, YLabel: "quantity",
+		LogX: m.Simulation.WithDefaults().Output.Spacing == "log"}, "∂ln "+f.sensMap+"/∂ln p")
+	if err != nil {
+		return fmt.Errorf("drawing the sensitivities: %w", err)
+	}
+	return plotting.Save(p, sensMapPath(f.sensOut, f.sensMap), 0, 0, 0, prov.Metadata(""))
+}
+
+// sensMapPath is where --sens-map draws: beside the sensitivities' CSV,
+// "NAME-sensitivities.csv" → "NAME-sensitivities-OUTPUT.png".
+func sensMapPath(sensOut, output string) string {
+	return strings.TrimSuffix(sensOut, filepath.Ext(sensOut)) + "-" + fileSafe(output) + ".png"
+}
+
+// measuredNames are the names a measurements file may use for m: its
+// species, then its assignments.
+func measuredNames(m *network.Model) []string {
+	var out []string
+	for _, s := range m.Species {
+		out = append(out, s.Name)
+	}
+	for _, a := range m.Assignments {
+		out = append(out, a.Name)
+	}
+	return out
 }

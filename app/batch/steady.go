@@ -322,7 +322,7 @@ func continueCmd(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return badInput(err)
 	}
-	l, prov, err := loadModel("continuation", c.spec, spec.Model, nil)
+	l, prov, err := loadModel("continuation", c.spec, spec.Model, nil, network.Display{})
 	if err != nil {
 		return badInput(err)
 	}

@@ -145,7 +145,11 @@ func readSpecData(path, format string, v any) ([]byte, error) {
 // folder), applies the simulation override and compiles it. The
 // provenance of the outputs (of the given kind) names the model as saved,
 // before the override.
-func loadModel(kind, specPath, model string, simRaw json.RawMessage) (*study.Prepared, *run.Provenance, error) {
+//
+// show, when a field is set, overrides the model's display units (the
+// --time-unit and --concentration-unit of sweep and population); a unit
+// that does not serve is an error naming the flag.
+func loadModel(kind, specPath, model string, simRaw json.RawMessage, show network.Display) (*study.Prepared, *run.Provenance, error) {
 	if model == "" {
 		return nil, nil, fmt.Errorf("%s: model: missing (the model file, relative to the spec)", specPath)
 	}
@@ -185,6 +189,21 @@ func loadModel(kind, specPath, model string, simRaw json.RawMessage) (*study.Pre
 		}
 		if o.Spacing != "" {
 			sim.Output.Spacing = o.Spacing
+		}
+	}
+	if show.Time != "" {
+		sim.Display.Time = show.Time
+	}
+	if show.Concentration != "" {
+		sim.Display.Concentration = show.Concentration
+	}
+	if show != (network.Display{}) {
+		flag := map[string]string{"display.time": "--time-unit", "display.concentration": "--concentration-unit"}
+		for _, p := range sim.Display.Check(m.Units) {
+			set := p.Pos.Field == "display.time" && show.Time != "" || p.Pos.Field == "display.concentration" && show.Concentration != ""
+			if set {
+				return nil, nil, fmt.Errorf("%s: %s", flag[p.Pos.Field], p.Message)
+			}
 		}
 	}
 	m.Simulation = sim
@@ -271,6 +290,7 @@ type cmdFlags struct {
 	shard   explore.Shard
 	workers int
 	quiet   bool
+	show    network.Display // --time-unit, --concentration-unit (sweep, population)
 }
 
 // parseCmd parses "SPEC [--shard i/n] [--out DIR] [--workers N] [--quiet]"
@@ -284,8 +304,14 @@ func parseCmd(name string, args []string, stderr io.Writer) (*cmdFlags, error) {
 	fs.StringVar(&shard, "shard", "", "run only part i of n (i/n, 0 ≤ i < n) and write a partial result for merge")
 	fs.IntVar(&c.workers, "workers", 0, "number of parallel workers (default: one per CPU)")
 	fs.BoolVar(&c.quiet, "quiet", false, "do not report progress")
+	usage := "usage: batch %s SPEC.json [--shard i/n] [--out DIR] [--workers N] [--quiet]\n"
+	if name == "sweep" || name == "population" {
+		fs.StringVar(&c.show.Time, "time-unit", "", "show times in this unit (s, min, h, day) instead of the model's display unit")
+		fs.StringVar(&c.show.Concentration, "concentration-unit", "", "show concentrations in this unit (such as nM or mg/L) instead of the model's display unit")
+		usage = "usage: batch %s SPEC.json [--shard i/n] [--out DIR] [--workers N] [--quiet] [--time-unit U] [--concentration-unit U]\n"
+	}
 	fs.Usage = func() {
-		fmt.Fprintf(stderr, "usage: batch %s SPEC.json [--shard i/n] [--out DIR] [--workers N] [--quiet]\n", name)
+		fmt.Fprintf(stderr, usage, name)
 		fs.PrintDefaults()
 	}
 	var pos []string
@@ -389,6 +415,11 @@ type job struct {
 // run runs the job and writes its outputs. It fails (exit status 1) when
 // every point failed.
 func (j *job) run(c *cmdFlags, stdout, stderr io.Writer) error {
+	if sh := j.meta.Figures.Shown; sh != nil {
+		for _, n := range sh.Notes {
+			fmt.Fprintf(stderr, "%s: note: %s\n", j.meta.Kind, n)
+		}
+	}
 	s := j.Settings
 	s.Workers, s.Shard = c.workers, c.shard
 	s.Progress, s.ProgressEvery = progressPrinter(j.meta.Kind, stderr, c.quiet)
@@ -450,7 +481,7 @@ func sweepJob(args []string, stderr io.Writer) (*cmdFlags, *job, error) {
 	if len(spec.Parameter) == 0 {
 		return nil, nil, fmt.Errorf("%s: parameter: missing (the knob to sweep)", c.spec)
 	}
-	l, prov, err := loadModel("sweep", c.spec, spec.Model, spec.Simulation)
+	l, prov, err := loadModel("sweep", c.spec, spec.Model, spec.Simulation, c.show)
 	if err != nil {
 		return nil, nil, err
 	}

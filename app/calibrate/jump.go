@@ -251,7 +251,7 @@ func (e *Evaluator) jump(t float64, fired []string, before, after []float64, s [
 			setVals[i] = e.value(&r.sets[i])
 		}
 		for i, a := range r.adds {
-			ynext[a.sp] += addVals[i] / sys.Volume(a.comp)
+			ynext[a.sp] += addVals[i] / sys.AmountVolume(a.comp)
 		}
 		for i, a := range r.sets {
 			ynext[a.sp] = setVals[i]
@@ -300,7 +300,7 @@ func (e *Evaluator) jump(t float64, fired []string, before, after []float64, s [
 				if a.val.dt != nil {
 					v += a.val.dt.Eval(e.vars)
 				}
-				corr[a.sp] += v / sys.Volume(a.comp)
+				corr[a.sp] += v / sys.AmountVolume(a.comp)
 			}
 			for _, a := range r.sets {
 				v := e.gradDot(a.val, e.fm)
@@ -318,10 +318,11 @@ func (e *Evaluator) jump(t float64, fired []string, before, after []float64, s [
 			sj, dj := s[j], e.ds[j]
 			copy(dj, sj)
 			for i, a := range r.adds {
-				v := sys.Volume(a.comp)
+				v := sys.AmountVolume(a.comp)
 				d := e.actionDeriv(&r.adds[i], j, sj) / v
 				if tg.Kind == sliders.Volume && tg.index == a.comp {
-					d -= addVals[i] / (v * v)
+					// The knob is the volume in its own unit, v/VolumeScale.
+					d -= addVals[i] / (v * v) * sys.VolumeScale(a.comp)
 				}
 				dj[a.sp] += d
 			}

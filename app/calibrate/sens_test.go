@@ -215,3 +215,33 @@ func TestJumpRuleMatters(t *testing.T) {
 		}
 	}
 }
+
+// ScaledGrid gives ∂ln A/∂ln k = −k·t for A → B at rate k·A (closed form
+// of first-order decay, ../shared/reference/analytic-checks.md) and NaN
+// where the output is zero (B at t = 0).
+func TestScaledGridDecay(t *testing.T) {
+	m := &network.Model{
+		Species:    []network.Species{{Name: "A", Initial: 2}, {Name: "B"}},
+		Parameters: []network.Parameter{{Name: "k", Value: 0.5}},
+		Reactions: []network.Reaction{{Name: "r", Equation: "A -> B",
+			Rate: network.NewRate(network.MassAction, "k", network.Named("k"))}},
+		Simulation: network.Simulation{TEnd: 4, Output: network.Output{Points: 9}, RTol: 1e-10, ATol: 1e-12},
+	}
+	ev, err := NewEvaluator(m, Options{Targets: []string{"k"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := ev.Solve(context.Background(), nil, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	z := ScaledGrid(res, 0, ev.Base())
+	for i, tt := range res.T {
+		if want := -0.5 * tt; math.Abs(z[0][i]-want) > 1e-6 {
+			t.Errorf("∂ln A/∂ln k at t = %g: %g, want %g", tt, z[0][i], want)
+		}
+	}
+	if b := ScaledGrid(res, 1, ev.Base()); !math.IsNaN(b[0][0]) {
+		t.Errorf("scaled sensitivity of B at t = 0 (B = 0) is %g, want NaN", b[0][0])
+	}
+}

@@ -37,3 +37,22 @@ func SensitivityRows(r *Result, targets []string, q []float64) [][]string {
 	}
 	return rows
 }
+
+// ScaledGrid returns the scaled sensitivities ∂ln y/∂ln q of output k of
+// r to every target: z[j][i] for target j at time r.T[i], NaN where the
+// output is zero. q holds the targets' values.
+func ScaledGrid(r *Result, k int, q []float64) [][]float64 {
+	nq := len(q)
+	z := make([][]float64, nq)
+	for j := range z {
+		z[j] = make([]float64, len(r.T))
+		for i := range r.T {
+			v, ok := Scaled(r.Y[i][k], q[j], r.D[i][k*nq+j])
+			if !ok {
+				v = math.NaN()
+			}
+			z[j][i] = v
+		}
+	}
+	return z
+}

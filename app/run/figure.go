@@ -38,6 +38,10 @@ type View struct {
 	// removed or moved (editor.Document.Slots); series not in it, and all
 	// when it is nil, take their position.
 	Slots map[string]int
+	// Measured are measurements drawn over the curves (markers with ±SD
+	// bars, in the colour of the series of their name), in the units the
+	// outcome is shown in.
+	Measured []plotting.Measured
 }
 
 // Slot returns the colour slot of series j, named name.
@@ -63,6 +67,7 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 		XLabel: "time", XUnit: o.TimeUnit,
 		YLabel: "concentration", YUnit: o.AmountUnit,
 		LogX: v.LogX, LogY: v.LogY,
+		Measured:    v.Measured,
 		Visible:     make([]bool, len(o.Names)),
 		ColourIndex: make([]int, len(o.Names)),
 	}

@@ -11,9 +11,11 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"strings"
 	"time"
 
 	"kinetarium/network"
+	"kinetarium/network/units"
 	"kinetarium/solve"
 )
 
@@ -220,15 +222,26 @@ func (o *Outcome) WithEventRows() *Outcome {
 
 // Amounts returns the outcome with each species' column in amounts: its
 // concentration times the volume of its compartment in sys, the system
-// the outcome was computed with. Parameters carried in the state and
-// assignments keep their values.
+// the outcome was computed with, in the model's unit of volume
+// (System.AmountVolume). Parameters carried in the state and assignments
+// keep their values. A species column's unit becomes the amount's
+// ("umol" for uM with volumes in L) when both units are known, and is
+// left out otherwise.
 func (o *Outcome) Amounts(sys *network.System) *Outcome {
 	c := *o
 	nsp := len(sys.Species()) - len(sys.StateParameters())
+	c.Units = make([]string, len(o.Names))
+	for j := range o.Names {
+		c.Units[j] = o.ColumnUnit(j)
+	}
+	amount := amountUnit(o.AmountUnit, sys.VolumeUnit())
+	for j := 0; j < nsp && j < len(c.Units); j++ {
+		c.Units[j] = amount
+	}
 	scale := func(row []float64) []float64 {
 		out := append([]float64(nil), row...)
 		for i := 0; i < nsp && i < len(out); i++ {
-			out[i] *= sys.Volume(sys.SpeciesCompartment(i))
+			out[i] *= sys.AmountVolume(sys.SpeciesCompartment(i))
 		}
 		return out
 	}
@@ -241,4 +254,19 @@ func (o *Outcome) Amounts(sys *network.System) *Outcome {
 		c.Jumps[i] = solve.Jump{T: j.T, Before: scale(j.Before), After: scale(j.After)}
 	}
 	return &c
+}
+
+// amountUnit writes the unit of concentration conc times volume vol: a
+// symbol when one fits ("umol", "mg"), else "conc·vol"; "" when either
+// is unknown.
+func amountUnit(conc, vol string) string {
+	c, err1 := units.Parse(conc)
+	v, err2 := units.Parse(vol)
+	if strings.TrimSpace(conc) == "" || strings.TrimSpace(vol) == "" || err1 != nil || err2 != nil {
+		return ""
+	}
+	if s, ok := units.Symbol(c.Mul(v)); ok {
+		return s
+	}
+	return conc + "·" + vol
 }

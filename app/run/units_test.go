@@ -198,3 +198,33 @@ func BenchmarkConvert(b *testing.B) {
 		}
 	}
 }
+
+// Amounts are concentration × volume in the compartments' unit: A in uM
+// in a 2 mL well is A·2 nmol (1 uM·mL = 1 nmol, SI prefixes, common
+// practice), and the header says nmol; without a unit of volume the
+// header gives no unit rather than the concentration's.
+func TestAmountsNameTheirUnit(t *testing.T) {
+	m := unitDecayModel()
+	m.Simulation.Display = network.Display{}
+	m.Compartments = []network.Compartment{{Name: "well", Volume: 2, Unit: "mL"}}
+	o, err := Run(context.Background(), m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sys, err := network.Compile(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a := o.Amounts(sys)
+	if h := strings.Join(Header(a), ","); h != "time (s),A (nmol),B (nmol),total (uM),flux (uM/s),frac" {
+		t.Errorf("header %q", h)
+	}
+	if got, want := a.Y[3][0], 2*o.Y[3][0]; got != want {
+		t.Errorf("amount of A %v, want 2 × %v", got, o.Y[3][0])
+	}
+	m.Compartments[0].Unit = ""
+	sys, _ = network.Compile(m)
+	if h := Header(o.Amounts(sys)); h[1] != "A" {
+		t.Errorf("without a volume unit the amount column is %q, want A", h[1])
+	}
+}

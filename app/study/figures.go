@@ -9,6 +9,7 @@ import (
 
 	"gonum.org/v1/plot"
 
+	"kinetarium/app/run"
 	"kinetarium/app/sliders"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
@@ -28,6 +29,11 @@ type Figures struct {
 	// is computed on.
 	Readouts       []explore.Readout `json:"readouts"`
 	ReadoutSpecies []string          `json:"readout_species"`
+	// Shown, when the model chooses display units, converts results for
+	// tables and figures; KnobUnits are then the units of the knobs'
+	// values in the model, for headers.
+	Shown     *run.Shown `json:"shown,omitempty"`
+	KnobUnits []string   `json:"knob_units,omitempty"`
 }
 
 // Figures returns the description of j's figures.
@@ -36,6 +42,7 @@ func (j *Job) Figures() Figures {
 	return Figures{
 		TimeUnit: u.Time, AmountUnit: u.Amount, Species: j.Prepared.Quantities(),
 		Axes: j.Axes, AxisLog: j.AxisLog, Readouts: j.Readouts, ReadoutSpecies: j.Species,
+		Shown: j.Shown, KnobUnits: j.KnobUnits,
 	}
 }
 
@@ -100,6 +107,7 @@ func (f Figures) Family(res *explore.Result, species string, at int, logTime boo
 	}
 	var curves [][]float64
 	var values, times []float64
+	ts, cs := f.timeScale(), f.colScale(j)
 	for _, s := range res.Samples {
 		if s.Traj == nil || (len(s.X) == 2 && s.X[1] != second) {
 			continue
@@ -109,10 +117,16 @@ func (f Figures) Family(res *explore.Result, species string, at int, logTime boo
 		for i := range c {
 			c[i] = s.Traj.Y[i][j]
 		}
+		if f.Shown != nil {
+			times = make([]float64, len(s.Traj.T))
+			for i, t := range s.Traj.T {
+				times[i], c[i] = ts.Of(t), cs.Of(c[i])
+			}
+		}
 		curves, values = append(curves, c), append(values, s.X[0])
 	}
-	return plotting.FamilyPlot(times, curves, values, KnobLabel(res.Knobs[0]), plotting.Options{
-		Title: title, XLabel: "time", XUnit: f.TimeUnit, YLabel: species, YUnit: f.AmountUnit, LogX: logTime,
+	return plotting.FamilyPlot(times, curves, values, plotting.AxisLabel(KnobLabel(res.Knobs[0]), f.knobUnit(0)), plotting.Options{
+		Title: title, XLabel: "time", XUnit: f.timeUnit(), YLabel: species, YUnit: f.quantityUnit(j), LogX: logTime,
 	})
 }
 
@@ -122,7 +136,7 @@ func (f Figures) Readout(res *explore.Result, r int) (*plot.Plot, error) {
 	if r < 0 || r >= len(res.Readouts) || r >= len(f.Readouts) {
 		return nil, errors.New("no readout chosen; add one under Readouts and run again")
 	}
-	vals := res.Values(r)
+	vals := f.Values(res, r)
 	name := res.Readouts[r]
 	if len(f.Axes) == 2 {
 		xs, ys := f.Axes[1], f.Axes[0]
@@ -131,12 +145,12 @@ func (f Figures) Readout(res *explore.Result, r int) (*plot.Plot, error) {
 			z[i] = vals[i*len(xs) : (i+1)*len(xs)]
 		}
 		return plotting.HeatMap(xs, ys, z, plotting.Options{
-			Title: f.ReadoutLabel(r), XLabel: KnobLabel(res.Knobs[1]), YLabel: KnobLabel(res.Knobs[0]),
+			Title: f.ReadoutLabel(r), XLabel: KnobLabel(res.Knobs[1]), XUnit: f.knobUnit(1), YLabel: KnobLabel(res.Knobs[0]), YUnit: f.knobUnit(0),
 			LogX: f.AxisLog[1], LogY: f.AxisLog[0],
-		}, name)
+		}, f.header(name, f.ReadoutUnit(r)))
 	}
 	return plotting.XYPlot(f.Axes[0], vals, plotting.Options{
-		Title: f.ReadoutLabel(r), XLabel: KnobLabel(res.Knobs[0]), YLabel: f.readoutWords(r), YUnit: f.readoutUnit(r), LogX: f.AxisLog[0],
+		Title: f.ReadoutLabel(r), XLabel: KnobLabel(res.Knobs[0]), XUnit: f.knobUnit(0), YLabel: f.readoutWords(r), YUnit: f.ReadoutUnit(r), LogX: f.AxisLog[0],
 	})
 }
 
@@ -169,9 +183,10 @@ func (f Figures) Bands(res *explore.Result, species string, logTime, logY bool) 
 	if res.Points == res.Failed {
 		return nil, errors.New("every sample failed; see the failures")
 	}
-	q := BandCurves(res.Bands, c)
-	return plotting.BandPlot(res.Bands.Times, q[2], q[0], q[4], q[1], q[3], species, plotting.Options{
-		Title: species + ": median, 25–75 % and 5–95 %", XLabel: "time", XUnit: f.TimeUnit, YLabel: species, YUnit: f.AmountUnit,
+	q, times := f.BandCurves(res.Bands, c)
+	comp := res.Bands.Components[c]
+	return plotting.BandPlot(times, q[2], q[0], q[4], q[1], q[3], species, plotting.Options{
+		Title: species + ": median, 25–75 % and 5–95 %", XLabel: "time", XUnit: f.timeUnit(), YLabel: species, YUnit: f.quantityUnit(comp),
 		LogX: logTime, LogY: logY,
 	})
 }
@@ -181,9 +196,38 @@ func (f Figures) Histogram(res *explore.Result, r int) (*plot.Plot, error) {
 	if r < 0 || r >= len(res.Readouts) || r >= len(f.Readouts) {
 		return nil, errors.New("no readout chosen; add one under Readouts and run again")
 	}
-	vals, _, err := ReadoutValues(res, r)
+	vals, _, err := f.ReadoutValues(res, r)
 	if err != nil {
 		return nil, err
 	}
-	return plotting.Histogram(vals, 0, plotting.Options{Title: f.ReadoutLabel(r), XLabel: f.readoutWords(r), XUnit: f.readoutUnit(r), YLabel: "samples"})
+	return plotting.Histogram(vals, 0, plotting.Options{Title: f.ReadoutLabel(r), XLabel: f.readoutWords(r), XUnit: f.ReadoutUnit(r), YLabel: "samples"})
+}
+
+// BandCurves returns BandCurves of component c of b and the output times,
+// both in the shown units.
+func (f Figures) BandCurves(b *explore.Bands, c int) (q [][]float64, times []float64) {
+	q, times = BandCurves(b, c), b.Times
+	if f.Shown == nil {
+		return q, times
+	}
+	cs, ts := f.colScale(b.Components[c]), f.timeScale()
+	for _, row := range q {
+		for i, v := range row {
+			row[i] = cs.Of(v)
+		}
+	}
+	times = make([]float64, len(b.Times))
+	for i, t := range b.Times {
+		times[i] = ts.Of(t)
+	}
+	return q, times
+}
+
+// knobUnit is the unit of knob k's values in headers and axis labels,
+// given only when the model chooses display units.
+func (f Figures) knobUnit(k int) string {
+	if f.Shown == nil || k >= len(f.KnobUnits) {
+		return ""
+	}
+	return f.KnobUnits[k]
 }

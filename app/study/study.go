@@ -370,6 +370,11 @@ type Job struct {
 	AxisLog  []bool      // a sweep's spacing, per knob
 	Readouts []explore.Readout
 	Species  []string // the species each readout is computed on
+	// Shown converts results to the model's display units for tables and
+	// figures (nil when it chooses none); KnobUnits are then the model's
+	// units of the knobs.
+	Shown     *run.Shown
+	KnobUnits []string
 }
 
 // Sweep prepares a sweep over one axis, or a grid over two. The values of
@@ -479,7 +484,7 @@ func (j *Job) finish(knobs []string, readouts []ReadoutSpec) error {
 	j.ODE = &explore.ODE{Target: tg, TEnd: p.Sim.TEnd, Settings: p.Settings}
 	j.Settings.Knobs = knobs
 	j.Settings.Readouts = ro
-	return nil
+	return j.show()
 }
 
 // Run runs the job on workers goroutines (0: one per CPU), reporting

@@ -7,6 +7,7 @@ package cvodecmp
 
 /*
 #include <stdint.h>
+#include <sundials/sundials_types.h>
 */
 import "C"
 
@@ -19,7 +20,7 @@ import (
 //
 //export cvcGoRHS
 func cvcGoRHS(h C.uintptr_t, t C.double, y, f *C.double) {
-	g := cgo.Handle(h).Value().(*goSystem)
+	g := handleSystem(h)
 	g.sys.RHS(float64(t), unsafe.Slice((*float64)(unsafe.Pointer(y)), g.n), unsafe.Slice((*float64)(unsafe.Pointer(f)), g.n))
 }
 
@@ -38,5 +39,32 @@ func cvcGoJac(h C.uintptr_t, t C.double, y, jac *C.double) {
 		for j, v := range row {
 			out[i+j*n] = v
 		}
+	}
+}
+
+// handleSystem returns the Go system behind handle h, for either variant.
+func handleSystem(h C.uintptr_t) *goSystem {
+	switch v := cgo.Handle(h).Value().(type) {
+	case *cscSystem:
+		return &v.goSystem
+	default:
+		return v.(*goSystem)
+	}
+}
+
+// cvcGoJacCSC writes the Jacobian of the Go system behind handle h into a
+// CVODE sparse matrix in compressed sparse columns: the pattern (colptrs,
+// rowvals) and the values (data), scattered from the network's CSR order.
+//
+//export cvcGoJacCSC
+func cvcGoJacCSC(h C.uintptr_t, t C.double, y, data *C.double, colptrs, rowvals *C.sunindextype) {
+	c := cgo.Handle(h).Value().(*cscSystem)
+	nnz := len(c.vals)
+	c.sys.JacobianCSR(float64(t), unsafe.Slice((*float64)(unsafe.Pointer(y)), c.n), c.vals)
+	copy(unsafe.Slice(colptrs, c.n+1), c.colPtr)
+	copy(unsafe.Slice(rowvals, nnz), c.rowIdx)
+	out := unsafe.Slice((*float64)(unsafe.Pointer(data)), nnz)
+	for k, v := range c.vals {
+		out[c.perm[k]] = v
 	}
 }

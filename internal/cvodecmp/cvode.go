@@ -320,16 +320,16 @@ func (c *CVODE) Close() {
 }
 
 // Solve integrates c's problem from 0 to its end time at relative tolerance
-// rtol and the problem's absolute tolerance. It returns the state at the end
+// rtol and absolute tolerance atol. It returns the state at the end
 // time (valid until the next Solve), the work done and the wall time of the
 // C call.
-func (c *CVODE) Solve(rtol float64) ([]float64, Work, time.Duration, error) {
+func (c *CVODE) Solve(rtol, atol float64) ([]float64, Work, time.Duration, error) {
 	y0 := c.p.Sys.Initial()
 	var st C.cvc_stats
 	var t C.double
 	start := time.Now()
 	flag := C.cvc_solve(c.s, (*C.double)(unsafe.Pointer(&y0[0])), C.double(c.p.TEnd), C.double(rtol),
-		C.double(c.p.ATol), (*C.double)(unsafe.Pointer(&c.y[0])), &t, &st)
+		C.double(atol), (*C.double)(unsafe.Pointer(&c.y[0])), &t, &st)
 	wall := time.Since(start)
 	w := Work{
 		Steps:          int(st.steps),

@@ -10,7 +10,8 @@
 //
 // With -quick it measures BDF and Auto at rtol 1e-6 and 1e-8 only and
 // prints the rows (a minute instead of many; nothing is written unless
-// -out is given).
+// -out is given). -problems, -methods and -rtols narrow the run, for
+// example to count instructions of a few solves under callgrind.
 //
 // Reference solutions: HIRES and POLLU from the Test Set for IVP Solvers
 // (F. Mazzia and C. Magherini, University of Bari, release 2.4); the
@@ -76,7 +77,15 @@ func main() {
 	quick := flag.Bool("quick", false, "BDF and Auto at rtol 1e-6 and 1e-8 only")
 	only := flag.String("methods", "", "comma-separated methods to measure instead (auto, rosenbrock, radau, bdf, explicit)")
 	rtolList := flag.String("rtols", "", "comma-separated relative tolerances to measure instead")
+	probList := flag.String("problems", "", "comma-separated problems to measure instead of all (HIRES, POLLU, CASC50, NET200)")
 	flag.Parse()
+	if *probList != "" {
+		want := map[string]bool{}
+		for _, n := range strings.Split(*probList, ",") {
+			want[strings.ToUpper(strings.TrimSpace(n))] = true
+		}
+		include = func(name string) bool { return want[name] }
+	}
 	if err := run(*out, *repeat, *quick, *only, *rtolList); err != nil {
 		fmt.Fprintln(os.Stderr, "workprecision:", err)
 		os.Exit(1)
@@ -154,8 +163,12 @@ func name(m solve.Method) string {
 // "." for `go run ./internal/workprecision`, "../.." for its test.
 var root = "."
 
+// include says whether a problem is measured (-problems).
+var include = func(name string) bool { return true }
+
 // problems loads HIRES and POLLU from network/testdata and the 50-species
-// cascade from examples/, and generates the 200-species network.
+// cascade from examples/, and generates the 200-species network (those of
+// them that include accepts).
 func problems() ([]problem, error) {
 	var ps []problem
 	for _, f := range []struct {
@@ -175,6 +188,9 @@ func problems() ([]problem, error) {
 			0.2087162882798630e-3, 0.1396921016840158e-4, 0.8964884856898295e-2, 0.4352846369330103e-17,
 			0.6899219696263405e-2, 0.1007803037365946e-3, 0.1772146513969984e-5, 0.5682943292316392e-4}},
 	} {
+		if !include(f.name) {
+			continue
+		}
 		m, err := network.Load(filepath.Join(root, f.file))
 		if err != nil {
 			return nil, err
@@ -185,28 +201,37 @@ func problems() ([]problem, error) {
 		}
 		ps = append(ps, problem{f.name, sys, f.tEnd, f.atol, []float64{f.tEnd}, [][]float64{f.ref}})
 	}
-	m, err := network.Load(filepath.Join(root, "examples/signalling-cascade-50.json"))
-	if err != nil {
-		return nil, err
+	if include("CASC50") {
+		m, err := network.Load(filepath.Join(root, "examples/signalling-cascade-50.json"))
+		if err != nil {
+			return nil, err
+		}
+		sys, err := network.Compile(m)
+		if err != nil {
+			return nil, err
+		}
+		// The example's own end time and atol (its simulation block).
+		c := problem{name: "CASC50", sys: sys, tEnd: 7200, atol: 1e-10, times: solve.LogTimes(1e-3, 7200, 200)}
+		if c.ref, err = reference(c, solve.Radau, 1e-12); err != nil {
+			return nil, fmt.Errorf("reference for the 50-species cascade: %w", err)
+		}
+		ps = append(ps, c)
 	}
-	sys, err := network.Compile(m)
-	if err != nil {
-		return nil, err
+	if include("NET200") {
+		sys, err := network.Compile(gennet.Signalling(50))
+		if err != nil {
+			return nil, fmt.Errorf("generated network: %w", err)
+		}
+		g := problem{name: "NET200", sys: sys, tEnd: 1000, atol: 1e-12, times: solve.LogTimes(1e-3, 1000, 200)}
+		if g.ref, err = reference(g, solve.Radau, 1e-12); err != nil {
+			return nil, fmt.Errorf("reference for the generated network: %w", err)
+		}
+		ps = append(ps, g)
 	}
-	// The example's own end time and atol (its simulation block).
-	c := problem{name: "CASC50", sys: sys, tEnd: 7200, atol: 1e-10, times: solve.LogTimes(1e-3, 7200, 200)}
-	if c.ref, err = reference(c, solve.Radau, 1e-12); err != nil {
-		return nil, fmt.Errorf("reference for the 50-species cascade: %w", err)
+	if len(ps) == 0 {
+		return nil, fmt.Errorf("-problems: none of HIRES, POLLU, CASC50, NET200 named")
 	}
-	sys, err = network.Compile(gennet.Signalling(50))
-	if err != nil {
-		return nil, fmt.Errorf("generated network: %w", err)
-	}
-	g := problem{name: "NET200", sys: sys, tEnd: 1000, atol: 1e-12, times: solve.LogTimes(1e-3, 1000, 200)}
-	if g.ref, err = reference(g, solve.Radau, 1e-12); err != nil {
-		return nil, fmt.Errorf("reference for the generated network: %w", err)
-	}
-	return append(ps, c, g), nil
+	return ps, nil
 }
 
 // reference solves p with method m at rtol and atol 1e-16 and returns the

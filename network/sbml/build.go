@@ -222,6 +222,24 @@ func (im *importer) build(model *node) *network.Model {
 			im.localVals[n] = rx.localVals[id]
 		}
 	}
+	// The compartments' unit of volume, kept when every compartment has
+	// the same one: the sizes are then used as they stand, as everywhere
+	// in the import.
+	volUnit, first := "", true
+	for _, s := range im.order {
+		if s.kind != kCompartment {
+			continue
+		}
+		switch {
+		case first:
+			volUnit, first = s.units, false
+		case s.units != volUnit && volUnit != "" && s.units != "":
+			im.warnAt(s.n, what(s), "the compartments' sizes are in different units (%s and %s); they are used as they stand, without units", volUnit, s.units)
+			volUnit = ""
+		case s.units != volUnit:
+			volUnit = ""
+		}
+	}
 	// Sizes of compartments, constant by now.
 	for _, s := range im.order {
 		if s.kind != kCompartment {
@@ -244,7 +262,7 @@ func (im *importer) build(model *node) *network.Model {
 			// Its size is a parameter (or assignment) named after it; its
 			// species are held as amounts in a compartment of volume 1.
 			s.unitComp = im.claim(s.id + "_amounts")
-			m.Compartments = append(m.Compartments, network.Compartment{Name: s.unitComp, Volume: 1,
+			m.Compartments = append(m.Compartments, network.Compartment{Name: s.unitComp, Volume: 1, Unit: volUnit,
 				Note: fmt.Sprintf("holds the amounts of the species of compartment %s, whose size changes during a run", s.id)})
 			sy := Symbol{Kind: "compartment", Name: s.name, Value: v, Assigned: s.ar != nil}
 			if s.ar == nil {
@@ -253,7 +271,7 @@ func (im *importer) build(model *node) *network.Model {
 			im.syms[s.id] = sy
 			continue
 		}
-		m.Compartments = append(m.Compartments, network.Compartment{Name: s.name, Volume: v, Note: noteOf(s.n, s.id)})
+		m.Compartments = append(m.Compartments, network.Compartment{Name: s.name, Volume: v, Unit: volUnit, Note: noteOf(s.n, s.id)})
 		im.syms[s.id] = Symbol{Kind: "compartment", Volume: v, Constant: true, Value: v}
 	}
 	if im.probs.HasErrors() {

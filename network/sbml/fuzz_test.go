@@ -11,6 +11,8 @@ import (
 // check without errors.
 func FuzzRead(f *testing.F) {
 	f.Add([]byte(doc(twoCompartments)))
+	f.Add([]byte(doc(`<listOfUnitDefinitions><unitDefinition id="u"><listOfUnits><unit kind="litre" exponent="1" scale="-6" multiplier="1"/></listOfUnits></unitDefinition></listOfUnitDefinitions>
+<listOfCompartments><compartment id="A" size="2" units="u" constant="true"/><compartment id="B" size="1" units="litre" constant="true"/></listOfCompartments>`)))
 	f.Add([]byte(doc(`<listOfParameters><parameter id="p" value="1" constant="false"/></listOfParameters>
 <listOfRules><rateRule variable="p"><math ` + mml + `><piecewise><piece><cn>1</cn><apply><lt/><ci>p</ci><cn>2</cn></apply></piece><otherwise><cn>0</cn></otherwise></piecewise></math></rateRule></listOfRules>`)))
 	f.Add([]byte("<sbml level=\"3\" version=\"2\"><model><listOfSpecies><species/></listOfSpecies></model></sbml>"))

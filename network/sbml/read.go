@@ -158,6 +158,7 @@ type sym struct {
 	boundary bool
 	constant bool
 	comp     string
+	units    string    // compartment: its volume unit in the model's words ("mL"), when SBML's maps to one
 	cf       string    // species conversion factor
 	rx       *reaction // species reference: its reaction
 	// what sets it
@@ -392,6 +393,9 @@ func (im *importer) read(model *node) {
 			s.value, s.valueSet = im.numAttr(c, what(s), "volume")
 		}
 		s.constant = im.boolAttr(c, what(s), "constant", true)
+		if u, ok := c.attr("units"); ok {
+			s.units = volumeUnit(model, u)
+		}
 		if _, ok := c.attr("outside"); ok && im.level < 3 {
 			// nesting carries no dynamics
 		}
@@ -598,4 +602,42 @@ func (im *importer) read(model *node) {
 			}
 		}
 	}
+}
+
+// volumeScales are the SBML scales of litre with the model's words for
+// them.
+var volumeScales = map[int]string{0: "L", -3: "mL", -6: "uL", -9: "nL", -15: "fL"}
+
+// volumeUnit returns the model's word for the SBML unit id of a
+// compartment's size: "litre", or a unit definition of one litre with
+// exponent 1, multiplier 1 and a scale of 0, −3, −6, −9 or −15; "" for
+// any other unit, whose sizes are then used as they stand.
+func volumeUnit(model *node, id string) string {
+	if id == "litre" || id == "liter" {
+		return "L"
+	}
+	for _, d := range model.kids("listOfUnitDefinitions", "unitDefinition") {
+		if did, _ := d.attr("id"); did != id {
+			continue
+		}
+		us := d.kids("listOfUnits", "unit")
+		if len(us) != 1 {
+			return ""
+		}
+		num := func(name, def string) string {
+			if v, ok := us[0].attr(name); ok {
+				return strings.TrimSpace(v)
+			}
+			return def
+		}
+		kind := num("kind", "")
+		exp, err1 := strconv.ParseFloat(num("exponent", "1"), 64)
+		mul, err2 := strconv.ParseFloat(num("multiplier", "1"), 64)
+		scale, err3 := strconv.Atoi(num("scale", "0"))
+		if (kind != "litre" && kind != "liter") || err1 != nil || err2 != nil || err3 != nil || exp != 1 || mul != 1 {
+			return ""
+		}
+		return volumeScales[scale]
+	}
+	return ""
 }

@@ -28,8 +28,10 @@ const MaxOccurrences = 10000
 // boundary species; assignments are assignment rules, rates rate rules;
 // timed events and infusions become events triggered by time (an infusion
 // a reaction feeding its species at a rate that two events switch on and
-// off). Notes become notes. Simulation settings and unit labels have no
-// place in SBML core and are left out.
+// off). Notes become notes. The compartments' unit of volume is written
+// as the compartments' units (litre, or a unit definition of a scaled
+// litre), sizes given in other units converted to it; simulation settings
+// and the other unit labels have no place in SBML core and are left out.
 func Write(w io.Writer, m *network.Model) error {
 	data, err := Encode(m)
 	if err != nil {
@@ -90,6 +92,25 @@ func (w *writer) id(want string) string {
 	return name
 }
 
+// volumeUnitID returns the SBML unit id of the model's unit of volume
+// ("litre", or a unit definition to write of litre at the given scale)
+// and whether there is one.
+func (w *writer) volumeUnitID(unit string) (id string, scale int, ok bool) {
+	names := map[string]struct {
+		id    string
+		scale int
+	}{"L": {"litre", 0}, "mL": {"millilitre", -3}, "uL": {"microlitre", -6}, "µL": {"microlitre", -6}, "μL": {"microlitre", -6},
+		"nL": {"nanolitre", -9}, "fL": {"femtolitre", -15}}
+	n, ok := names[strings.TrimSpace(unit)]
+	if !ok {
+		return "", 0, false
+	}
+	if n.scale == 0 {
+		return n.id, 0, true
+	}
+	return w.id(n.id), n.scale, true
+}
+
 func esc(s string) string {
 	var b bytes.Buffer
 	xml.EscapeText(&b, []byte(s))
@@ -137,12 +158,19 @@ func (w *writer) encode() ([]byte, error) {
 	for _, a := range m.Assignments {
 		w.ids[a.Name] = true
 	}
-	comps := m.Compartments
+	comps := append([]network.Compartment(nil), m.Compartments...)
 	if len(comps) == 0 {
 		comps = []network.Compartment{{Name: w.id(network.DefaultCompartment), Volume: 1}}
 	}
+	// Sizes are written in the model's unit of volume, the one its
+	// equations use, so that the numbers stand as they are in SBML too.
+	volUnit, volScale := m.VolumeUnit()
 	w.comp, w.vol = map[string]string{}, map[string]float64{}
-	for _, c := range comps {
+	for i, c := range comps {
+		if i < len(volScale) && len(m.Compartments) > 0 {
+			c.Volume *= volScale[i]
+			comps[i] = c
+		}
 		w.vol[c.Name] = c.Volume
 	}
 	for _, s := range m.Species {
@@ -178,9 +206,22 @@ func (w *writer) encode() ([]byte, error) {
 	}
 	w.line(1, `<model id="%s"%s>`, w.id("model"), title)
 	w.notes(2, m.Note)
+	unitsAttr := ""
+	if sid, scale, ok := w.volumeUnitID(volUnit); ok {
+		if scale != 0 {
+			w.line(2, "<listOfUnitDefinitions>")
+			w.line(3, `<unitDefinition id="%s">`, sid)
+			w.line(4, "<listOfUnits>")
+			w.line(5, `<unit kind="litre" exponent="1" scale="%d" multiplier="1"/>`, scale)
+			w.line(4, "</listOfUnits>")
+			w.line(3, "</unitDefinition>")
+			w.line(2, "</listOfUnitDefinitions>")
+		}
+		unitsAttr = fmt.Sprintf(` units="%s"`, sid)
+	}
 	w.line(2, "<listOfCompartments>")
 	for _, c := range comps {
-		w.elem(3, "compartment", fmt.Sprintf(`id="%s" spatialDimensions="3" size="%s" constant="true"`, c.Name, num(c.Volume)), c.Note)
+		w.elem(3, "compartment", fmt.Sprintf(`id="%s" spatialDimensions="3" size="%s"%s constant="true"`, c.Name, num(c.Volume), unitsAttr), c.Note)
 	}
 	w.line(2, "</listOfCompartments>")
 	if len(m.Species) > 0 {

@@ -73,7 +73,7 @@ func Symbols() []string {
 	return out
 }
 
-const symbolList = "s, min, h, day; mol, mmol, umol, nmol, pmol; M, mM, uM, nM, pM; g, mg, ug, ng; L, mL, uL, fL"
+const symbolList = "s, min, h, day; mol, mmol, umol, nmol, pmol; M, mM, uM, nM, pM; g, mg, ug, ng; L, mL, uL, nL, fL"
 
 // Parse reads a unit expression: symbols and positive numbers combined
 // with "*" (or "·"), "/" and "^" (a number, possibly negative, as the

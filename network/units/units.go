@@ -187,8 +187,15 @@ func powText(sym string, p float64) string {
 // Compose writes conc^a·time^b for reading, from the texts of a
 // concentration and a time unit: Compose("uM", -1, "s", -1) is
 // "1/(uM·s)", Compose("uM", 1, "s", -1) is "uM/s", Compose("mg/L", 0,
-// "h", -1) is "1/h". Composite texts are put in parentheses.
+// "h", -1) is "1/h". Composite texts are put in parentheses, except
+// when one stands alone: Compose("mg/L", 1, "h", 0) is "mg/L".
 func Compose(conc string, a float64, time string, b float64) string {
+	switch {
+	case a == 1 && b == 0:
+		return conc
+	case a == 0 && b == 1:
+		return time
+	}
 	var num, den []string
 	put := func(text string, p float64) {
 		if p == 0 {
@@ -217,4 +224,19 @@ func Compose(conc string, a float64, time string, b float64) string {
 		s += "/(" + strings.Join(den, "·") + ")"
 	}
 	return s
+}
+
+// IsVolume reports whether u is a unit of volume (L, mL, uL, fL).
+func (u Unit) IsVolume() bool { return u.SameDim(Unit{Dim: Dim{Length: 3}}) }
+
+// Symbol returns the unit symbol that equals u ("umol" for uM·L, "mg"
+// for mg/L·L), preferring the shortest, and whether there is one.
+func Symbol(u Unit) (string, bool) {
+	best := ""
+	for _, name := range Symbols() {
+		if v := symbols[name]; v.Equal(u) && (best == "" || len(name) < len(best)) {
+			best = name
+		}
+	}
+	return best, best != ""
 }

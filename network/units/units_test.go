@@ -54,6 +54,7 @@ func TestSIFactors(t *testing.T) {
 		{"mL", milli * litre, Dim{Length: 3}},
 		{"uL", micro * litre, Dim{Length: 3}},
 		{"fL", femto * litre, Dim{Length: 3}},
+		{"nL", nano * litre, Dim{Length: 3}},
 		{"mg/L", milli * milli / litre, Dim{Mass: 1, Length: -3}},
 		{"ug/mL", micro * milli / (milli * litre), Dim{Mass: 1, Length: -3}},
 		{"L/h", litre / 3600, Dim{Length: 3, Time: -1}},
@@ -253,4 +254,14 @@ func FuzzParse(f *testing.F) {
 			t.Fatalf("%q → %q → %v", src, s, v)
 		}
 	})
+}
+
+// IsVolume accepts the volumes and nothing else (common practice: a
+// volume is a length cubed).
+func TestIsVolume(t *testing.T) {
+	for src, want := range map[string]bool{"L": true, "mL": true, "uL": true, "nL": true, "fL": true, "m^3": true, "uM": false, "mol": false, "L/s": false, "1": false} {
+		if got := MustParse(src).IsVolume(); got != want {
+			t.Errorf("%s: IsVolume = %v, want %v", src, got, want)
+		}
+	}
 }
