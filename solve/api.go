@@ -51,6 +51,18 @@ type SparsePatternSystem interface {
 	JacobianPattern() (rowPtr, colIdx []int)
 }
 
+// SparseJacobianSystem is a SparsePatternSystem that writes the values of
+// its Jacobian on the pattern. When the driver chooses the sparse LU (see
+// NewSolver) the implicit methods then keep J in that form and assemble
+// their iteration matrices, real and complex, straight into the sparse
+// factorization, so that no n×n array exists for large systems.
+type SparseJacobianSystem interface {
+	SparsePatternSystem
+	// JacobianCSR writes ∂f/∂y at (t, y) into vals in the order of
+	// JacobianPattern (duplicate positions are summed).
+	JacobianCSR(t float64, y []float64, vals []float64)
+}
+
 // PartlyNonNegativeSystem is implemented by a System some of whose state
 // variables may take either sign (a reaction network's parameters carried
 // in its state, say): Settings.NonNegative keeps only the components for

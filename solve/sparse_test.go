@@ -407,11 +407,11 @@ func TestSparseBindingChain(t *testing.T) {
 			var ls LinearSolver
 			switch m {
 			case Rosenbrock:
-				ls = sv.ros.lu
+				ls = sv.ros.lu.solver()
 			case Radau:
-				ls = sv.radau.(*radau).lu
+				ls = sv.radau.(*radau).lu.solver()
 			case BDF:
-				ls = sv.bdf.(*bdf).lu
+				ls = sv.bdf.(*bdf).lu.solver()
 			}
 			sp, ok := ls.(*SparseLU)
 			if !ok {
@@ -451,7 +451,7 @@ func TestSparseSetSystem(t *testing.T) {
 	c := newBindingChain(148)
 	sv := NewSolver(c, Settings{Method: BDF})
 	p0 := sv.p
-	if _, ok := sv.bdf.(*bdf).lu.(*SparseLU); !ok {
+	if _, ok := sv.bdf.(*bdf).lu.solver().(*SparseLU); !ok {
 		t.Fatal("no sparse LU for the chain")
 	}
 	sv.SetSystem(newBindingChain(148))
@@ -463,7 +463,7 @@ func TestSparseSetSystem(t *testing.T) {
 	if sv.p == p0 {
 		t.Fatal("SetSystem kept the work space for a system with another pattern")
 	}
-	if f, ok := sv.bdf.(*bdf).lu.(*SparseLU); !ok || f.FactorNonzeros() != c.Dim() {
-		t.Errorf("after SetSystem the linear solver is %T, want a diagonal *SparseLU", sv.bdf.(*bdf).lu)
+	if f, ok := sv.bdf.(*bdf).lu.solver().(*SparseLU); !ok || f.FactorNonzeros() != c.Dim() {
+		t.Errorf("after SetSystem the linear solver is %T, want a diagonal *SparseLU", sv.bdf.(*bdf).lu.solver())
 	}
 }
