@@ -3,6 +3,7 @@ package gennet_test
 import (
 	"context"
 	"fmt"
+	"math"
 	"runtime"
 	"testing"
 
@@ -49,5 +50,131 @@ func BenchmarkCascade(b *testing.B) {
 			b.ReportMetric(float64(res.Factorizations), "LU")
 			b.ReportMetric(float64(ms1.TotalAlloc-ms0.TotalAlloc)/float64(b.N)/1e6, "MB-alloc/op")
 		})
+	}
+}
+
+// withFeedback adds to the generated network a reaction from the last
+// module back to the first (product inhibition-free recycling: D_last →
+// A0), which joins the modules into one strongly connected block, so that
+// the block triangular form does not split the Jacobian.
+func withFeedback(modules int) *network.Model {
+	m := gennet.Signalling(modules)
+	m.Parameters = append(m.Parameters, network.Parameter{Name: "krec", Value: 0.05})
+	m.Reactions = append(m.Reactions, network.Reaction{Name: "recycle",
+		Equation: fmt.Sprintf("D%d -> A0", modules-1), Rate: network.NewRate(network.MassAction, "k", network.Named("krec"))})
+	return m
+}
+
+// scaled is the largest |a − b| / (atol + rtol·|b|) over all outputs.
+func scaled(a, b [][]float64, rtol, atol float64) float64 {
+	var e float64
+	for i := range a {
+		for k := range a[i] {
+			e = max(e, math.Abs(a[i][k]-b[i][k])/(atol+rtol*math.Abs(b[i][k])))
+		}
+	}
+	return e
+}
+
+// TestSparseMatchesDense solves generated networks (feed-forward modules,
+// and the same with a feedback reaction) on the sparse path, where the
+// Jacobian stays in CSR form and the iteration matrices are assembled into
+// the sparse LU, and on the dense path (dense Jacobian and gonum-free dense
+// LU, forced through Settings.LinearSolver), with every implicit method,
+// forward sensitivities to two rate constants included. The two differ
+// only by rounding in the linear algebra. Radau IIA and RODAS4 then take
+// the same steps, and the results must agree to a hundredth of the
+// tolerance; BDF's step and order choices can part ways after a rounding
+// difference, and its results may then differ by up to its global error,
+// which at rtol 1e-6 is up to several times the tolerance (README's
+// Solvers section: at most 7.3 with the calibrated controller), so the
+// bound there is 10, that of BDF's calibration test.
+func TestSparseMatchesDense(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		m    *network.Model
+	}{{"cascade", gennet.Signalling(40)}, {"feedback", withFeedback(40)}} {
+		sys, err := network.Compile(c.m)
+		if err != nil {
+			t.Fatal(err)
+		}
+		kon, _ := sys.ParameterIndex("kon3")
+		kcat, _ := sys.ParameterIndex("kcat7")
+		for _, meth := range []solve.Method{solve.BDF, solve.Radau, solve.Rosenbrock} {
+			set := solve.Settings{Method: meth, RTol: 1e-6, ATol: 1e-12, NonNegative: true, Times: solve.LogTimes(1e-3, 1000, 40),
+				Sens: &solve.SensSettings{Quantities: []solve.Sensitivity{{Param: kon}, {Param: kcat}}}}
+			sp, err := solve.Solve(context.Background(), sys, 0, 1000, sys.Initial(), set)
+			if err != nil {
+				t.Fatalf("%s %s sparse: %v", c.name, meth, err)
+			}
+			set.LinearSolver = func(n int) solve.LinearSolver { return solve.NewLU(n) }
+			de, err := solve.Solve(context.Background(), sys, 0, 1000, sys.Initial(), set)
+			if err != nil {
+				t.Fatalf("%s %s dense: %v", c.name, meth, err)
+			}
+			dy := scaled(sp.Y, de.Y, 1e-6, 1e-12)
+			ds := scaled(sp.S, de.S, 1e-6, 1e-9)
+			t.Logf("%s %s: states differ by %.3g, sensitivities by %.3g (scaled); steps %d/%d, LU %d/%d, %v/%v",
+				c.name, meth, dy, ds, sp.Steps, de.Steps, sp.Factorizations, de.Factorizations, sp.Wall, de.Wall)
+			bound := 0.01
+			if meth == solve.BDF {
+				bound = 10
+			}
+			if dy > bound || ds > bound {
+				t.Errorf("%s %s: sparse and dense paths differ by %.3g (states) and %.3g (sensitivities), scaled; want ≤ %g", c.name, meth, dy, ds, bound)
+			}
+		}
+	}
+}
+
+// TestSparseMemory checks that the sparse path holds no n×n array: the
+// bytes allocated by NewSolver and Solve of the 5,000-species network
+// (4 modules of 1,250) stay below n²·8/10 = 20 MB, a tenth of one dense
+// n×n matrix (before the sparse path they were 813 MB), and that every
+// step is free of allocations: a solve with more output-free steps
+// allocates no more.
+func TestSparseMemory(t *testing.T) {
+	if testing.Short() {
+		t.Skip("5,000-species network")
+	}
+	sys, err := network.Compile(gennet.Signalling(1250))
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := sys.Dim()
+	var ms0, ms1 runtime.MemStats
+	runtime.GC()
+	runtime.ReadMemStats(&ms0)
+	sv := solve.NewSolver(sys, solve.Settings{RTol: 1e-6, ATol: 1e-12, NonNegative: true, Times: []float64{1000}})
+	res, err := sv.Solve(context.Background(), 0, 1000, sys.Initial())
+	if err != nil {
+		t.Fatal(err)
+	}
+	runtime.ReadMemStats(&ms1)
+	bytes := ms1.TotalAlloc - ms0.TotalAlloc
+	limit := uint64(n) * uint64(n) * 8 / 10
+	t.Logf("n %d: %.1f MB allocated by NewSolver+Solve (%d steps, %d factorizations); limit %.1f MB", n, float64(bytes)/1e6, res.Steps, res.Factorizations, float64(limit)/1e6)
+	if bytes > limit {
+		t.Errorf("%d bytes allocated, want < %d", bytes, limit)
+	}
+	// Steps without allocations: solves to t = 10 and t = 1000 (hundreds
+	// of steps more) allocate the same, the Result only.
+	allocs := func(tEnd float64) (float64, int) {
+		var steps int
+		sv := solve.NewSolver(sys, solve.Settings{RTol: 1e-6, ATol: 1e-12, NonNegative: true, Times: []float64{tEnd}})
+		a := testing.AllocsPerRun(2, func() {
+			r, err := sv.Solve(context.Background(), 0, tEnd, sys.Initial())
+			if err != nil {
+				t.Fatal(err)
+			}
+			steps = r.Steps
+		})
+		return a, steps
+	}
+	a1, s1 := allocs(10)
+	a2, s2 := allocs(1000)
+	t.Logf("allocations per solve: %v for %d steps, %v for %d steps", a1, s1, a2, s2)
+	if s2 <= s1 || a2 > a1 {
+		t.Errorf("%v allocations for %d steps, %v for %d steps: steps allocate", a1, s1, a2, s2)
 	}
 }
