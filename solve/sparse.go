@@ -8,10 +8,14 @@ import (
 
 // sparseMinSize is the system size from which the driver considers a
 // SparseLU for a SparsePatternSystem (when Settings.LinearSolver is nil).
-// Measured with BenchmarkLinearSolvers in package network on generated
-// networks: at 20 and 50 species the dense LU is faster (its loops are
-// contiguous), at 100 they are even, from 200 the sparse one wins.
-const sparseMinSize = 100
+// Measured with BenchmarkPaths in internal/gennet (whole BDF and RODAS4
+// solves of generated networks, sparse against dense path, on a shared
+// 2-core machine where repeated runs vary by up to 2×): at 20 species the
+// two are within that noise, at 48 the sparse path took 0.4–1.0 of the
+// dense one's time, at 100 0.2–0.3 and at 200 0.1–0.25. (With the earlier
+// sparse LU, which gathered from a dense matrix and refined every solve,
+// the break-even was 100.)
+const sparseMinSize = 40
 
 // sparseFlopRatio is how much more one floating-point operation of the
 // sparse factorization costs than one of the dense LU (indirect addressing;

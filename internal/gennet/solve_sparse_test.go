@@ -178,3 +178,33 @@ func TestSparseMemory(t *testing.T) {
 		t.Errorf("%v allocations for %d steps, %v for %d steps: steps allocate", a1, s1, a2, s2)
 	}
 }
+
+// BenchmarkPaths compares whole BDF and RODAS4 solves of small generated
+// networks on the automatic path (sparse from solve's sparseMinSize) and
+// on the dense path (dense Jacobian and LU, forced through
+// Settings.LinearSolver); it is how sparseMinSize was chosen.
+func BenchmarkPaths(b *testing.B) {
+	for _, modules := range []int{5, 12, 25, 50} {
+		sys, err := network.Compile(gennet.Signalling(modules))
+		if err != nil {
+			b.Fatal(err)
+		}
+		for _, meth := range []solve.Method{solve.BDF, solve.Rosenbrock} {
+			for _, path := range []string{"auto", "dense"} {
+				b.Run(fmt.Sprintf("n=%d/%s/%s", sys.Dim(), meth, path), func(b *testing.B) {
+					set := cascadeSettings(meth)
+					if path == "dense" {
+						set.LinearSolver = func(n int) solve.LinearSolver { return solve.NewLU(n) }
+					}
+					sv := solve.NewSolver(sys, set)
+					b.ReportAllocs()
+					for b.Loop() {
+						if _, err := sv.Solve(context.Background(), 0, 1000, sys.Initial()); err != nil {
+							b.Fatal(err)
+						}
+					}
+				})
+			}
+		}
+	}
+}
