@@ -140,12 +140,16 @@ type Stats struct {
 	JacobianEvals int // evaluations of the Jacobian
 	// ParamJacobianEvals counts evaluations of ∂f/∂q (sensitivities).
 	ParamJacobianEvals int
-	Factorizations     int           // LU factorizations
-	LinearSolves       int           // solves with a factorized matrix
-	NonNegFixes        int           // steps where the non-negativity projection acted
-	Methods            []Method      // methods used, in order of first use
-	Choice             string        // for Auto: what was chosen and why
-	Wall               time.Duration // wall time of the solve
+	Factorizations     int // LU factorizations
+	LinearSolves       int // solves with a factorized matrix
+	NonNegFixes        int // steps where the non-negativity projection acted
+	// FactorNonzeros is the number of entries of the largest sparse LU
+	// factors the solve kept (SparseLU.FactorNonzeros), 0 when every
+	// factorization was dense.
+	FactorNonzeros int
+	Methods        []Method      // methods used, in order of first use
+	Choice         string        // for Auto: what was chosen and why
+	Wall           time.Duration // wall time of the solve
 }
 
 // Result is the solution at the output times.

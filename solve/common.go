@@ -60,6 +60,9 @@ type problem struct {
 	// on which no n×n array exists.
 	sparse *luSymbolic
 	csr    SparseJacobianSystem
+	// sparseLUs are the real sparse factorizations of the steppers, for
+	// Stats.FactorNonzeros.
+	sparseLUs []*SparseLU
 
 	sens *sensWork // forward sensitivities, or nil
 

@@ -102,14 +102,18 @@ type iterMatrix struct {
 // sparse SparsePatternSystem (see sparseFor), else the dense LU.
 func (p *problem) newIterMatrix() *iterMatrix {
 	if p.csr != nil {
-		return &iterMatrix{n: p.n, sp: newSparseLUFrom(p.sparse)}
+		sp := newSparseLUFrom(p.sparse)
+		p.sparseLUs = append(p.sparseLUs, sp)
+		return &iterMatrix{n: p.n, sp: sp}
 	}
 	im := &iterMatrix{n: p.n, m: make([]float64, p.n*p.n)}
 	if p.linear != nil {
 		im.ls = p.linear(p.n)
 	}
 	if im.ls == nil && p.sparse != nil {
-		im.ls = newSparseLUFrom(p.sparse)
+		sp := newSparseLUFrom(p.sparse)
+		p.sparseLUs = append(p.sparseLUs, sp)
+		im.ls = sp
 	}
 	if im.ls == nil {
 		im.ls = NewLU(p.n)

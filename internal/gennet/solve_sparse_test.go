@@ -24,10 +24,22 @@ func cascadeSettings(m solve.Method) solve.Settings {
 // automatic method at rtol 1e-6, and reports the work, the bytes a solve
 // allocates and the peak heap (HeapInuse sampled after the solve is not a
 // peak; "MB-heap" is the live heap right after NewSolver+Solve).
+//
+// The feedback variants (withFeedback) join all modules into one strongly
+// connected block.
 func BenchmarkCascade(b *testing.B) {
-	for _, modules := range []int{50, 250, 1250, 5000} {
-		b.Run(fmt.Sprintf("n=%d", 4*modules), func(b *testing.B) {
-			sys, err := network.Compile(gennet.Signalling(modules))
+	for _, c := range []struct {
+		modules  int
+		feedback bool
+	}{{50, false}, {250, false}, {1250, false}, {5000, false}, {250, true}, {1250, true}} {
+		name := fmt.Sprintf("n=%d", 4*c.modules)
+		model := gennet.Signalling(c.modules)
+		if c.feedback {
+			name += "-feedback"
+			model = withFeedback(c.modules)
+		}
+		b.Run(name, func(b *testing.B) {
+			sys, err := network.Compile(model)
 			if err != nil {
 				b.Fatal(err)
 			}
@@ -48,6 +60,7 @@ func BenchmarkCascade(b *testing.B) {
 			b.ReportMetric(float64(res.RHSEvals), "rhs")
 			b.ReportMetric(float64(res.JacobianEvals), "jac")
 			b.ReportMetric(float64(res.Factorizations), "LU")
+			b.ReportMetric(float64(res.FactorNonzeros), "LU-nnz")
 			b.ReportMetric(float64(ms1.TotalAlloc-ms0.TotalAlloc)/float64(b.N)/1e6, "MB-alloc/op")
 		})
 	}
