@@ -269,9 +269,12 @@ func analyse(n int, rowPtr, colIdx []int) (*luSymbolic, error) {
 		}
 	}
 	// rows[i]: the distinct off-diagonal columns of row i.
+	// (One flat array holds them all: the analysis allocates O(1) times
+	// per matrix, plus a few times per block larger than 1×1.)
 	rows := make([][]int, n)
+	flat := slices.Clone(colIdx[:rowPtr[n]])
 	for i := range n {
-		r := slices.Clone(colIdx[rowPtr[i]:rowPtr[i+1]])
+		r := flat[rowPtr[i]:rowPtr[i+1]:rowPtr[i+1]]
 		slices.Sort(r)
 		r = slices.Compact(r)
 		if k, found := slices.BinarySearch(r, i); found {
@@ -280,13 +283,21 @@ func analyse(n int, rowPtr, colIdx []int) (*luSymbolic, error) {
 		rows[i] = r
 	}
 	s := &luSymbolic{n: n}
-	comps := strongComponents(n, rows)
+	order, ends := strongComponents(n, rows)
 	// Tarjan's algorithm emits a component after every component its rows
 	// reach; reversed, the order makes the matrix block upper triangular.
 	s.q = make([]int, 0, n)
-	s.bs = []int{0}
-	for c := len(comps) - 1; c >= 0; c-- {
-		s.q = append(s.q, orderBlock(comps[c], rows, &s.fill, &s.flops)...)
+	s.bs = make([]int, 1, len(ends)+1)
+	local := make([]int, n) // block-local index of a vertex, −1 outside the block
+	for i := range local {
+		local[i] = -1
+	}
+	for c := len(ends) - 1; c >= 0; c-- {
+		start := 0
+		if c > 0 {
+			start = ends[c-1]
+		}
+		s.q = append(s.q, orderBlock(order[start:ends[c]], rows, local, &s.fill, &s.flops)...)
 		s.bs = append(s.bs, len(s.q))
 	}
 	s.qinv = make([]int, n)
@@ -300,21 +311,35 @@ func analyse(n int, rowPtr, colIdx []int) (*luSymbolic, error) {
 		}
 	}
 	// Columns in the new order: rows (new indices), ascending.
-	cols := make([][]int, n)
-	for i := range n {
-		ni := s.qinv[i]
-		cols[ni] = append(cols[ni], ni)
-		for _, j := range rows[i] {
-			cols[s.qinv[j]] = append(cols[s.qinv[j]], ni)
-		}
-	}
 	s.aPtr = make([]int, n+1)
 	s.aMid = make([]int, n)
+	for i := range n {
+		s.aPtr[s.qinv[i]+1]++
+		for _, j := range rows[i] {
+			s.aPtr[s.qinv[j]+1]++
+		}
+	}
 	for k := range n {
-		slices.Sort(cols[k])
-		s.aPtr[k+1] = s.aPtr[k] + len(cols[k])
+		s.aPtr[k+1] += s.aPtr[k]
 	}
 	nnz := s.aPtr[n]
+	colFlat := make([]int, nnz)
+	next := slices.Clone(s.aPtr[:n])
+	for i := range n {
+		ni := s.qinv[i]
+		colFlat[next[ni]] = ni
+		next[ni]++
+		for _, j := range rows[i] {
+			nj := s.qinv[j]
+			colFlat[next[nj]] = ni
+			next[nj]++
+		}
+	}
+	cols := make([][]int, n)
+	for k := range n {
+		cols[k] = colFlat[s.aPtr[k]:s.aPtr[k+1]]
+		slices.Sort(cols[k])
+	}
 	s.aRow = make([]int, nnz)
 	s.aOff = make([]int, nnz)
 	s.aDiag = make([]int, n)
@@ -377,15 +402,16 @@ func (s *luSymbolic) entry(r, k int) int {
 // strongComponents returns the strongly connected components of the graph
 // with an edge i → j for every j in rows[i], in the order Tarjan's
 // algorithm completes them (Tarjan, SIAM J. Comput. 1, 1972): a component
-// comes after every component it reaches. The search is iterative.
-func strongComponents(n int, rows [][]int) [][]int {
+// comes after every component it reaches. Component c is
+// order[ends[c−1]:ends[c]] (ends[−1] = 0), sorted. The search is iterative.
+func strongComponents(n int, rows [][]int) (order, ends []int) {
 	index := make([]int, n)
 	low := make([]int, n)
 	onStack := make([]bool, n)
 	for i := range index {
 		index[i] = -1
 	}
-	var comps [][]int
+	order = make([]int, 0, n)
 	var st []int // Tarjan's stack
 	type frame struct{ v, next int }
 	var call []frame
@@ -422,41 +448,46 @@ func strongComponents(n int, rows [][]int) [][]int {
 				low[u] = min(low[u], low[v])
 			}
 			if low[v] == index[v] {
-				var comp []int
+				start := len(order)
 				for {
 					w := st[len(st)-1]
 					st = st[:len(st)-1]
 					onStack[w] = false
-					comp = append(comp, w)
+					order = append(order, w)
 					if w == v {
 						break
 					}
 				}
-				slices.Sort(comp)
-				comps = append(comps, comp)
+				slices.Sort(order[start:])
+				ends = append(ends, len(order))
 			}
 		}
 	}
-	return comps
+	return order, ends
 }
 
 // orderBlock orders the vertices of one strongly connected component by
 // the candidate with less measured fill and adds its fill and flops.
-func orderBlock(comp []int, rows [][]int, fill *int, flops *float64) []int {
+// local is −1 for every vertex on entry and on return.
+func orderBlock(comp []int, rows [][]int, local []int, fill *int, flops *float64) []int {
 	m := len(comp)
 	if m == 1 {
 		return comp
 	}
-	local := make(map[int]int, m)
 	for i, v := range comp {
 		local[v] = i
 	}
+	defer func() {
+		for _, v := range comp {
+			local[v] = -1
+		}
+	}()
 	// Local pattern by rows and by columns (off-diagonal, in-block).
 	lrows := make([][]int, m)
 	lcols := make([][]int, m)
 	for i, v := range comp {
 		for _, j := range rows[v] {
-			if lj, ok := local[j]; ok {
+			if lj := local[j]; lj >= 0 {
 				lrows[i] = append(lrows[i], lj)
 				lcols[lj] = append(lcols[lj], i)
 			}
@@ -518,7 +549,7 @@ func orderBlock(comp []int, rows [][]int, fill *int, flops *float64) []int {
 	for k, v := range cands[best] {
 		out[k] = comp[v]
 	}
-	return out
+	return out // comp is a slice of strongComponents' order: not reused
 }
 
 // symbolicFill counts the entries of L and U (diagonal included) of the

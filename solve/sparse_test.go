@@ -715,3 +715,66 @@ func TestSparseSetSystem(t *testing.T) {
 		t.Errorf("after SetSystem the linear solver is %T, want a diagonal *SparseLU", sv.bdf.(*bdf).lu.solver())
 	}
 }
+
+// FuzzSparseLU feeds NewSparseLU arbitrary patterns (well-formed or not)
+// and values: it must return an error or a factorization, never panic,
+// and a factorization that succeeds must solve the system (residual
+// checked against the matrix itself, relative to its size).
+func FuzzSparseLU(f *testing.F) {
+	f.Add([]byte{3, 1, 0, 2, 1, 0, 9, 7})
+	f.Add([]byte{5, 0, 1, 1, 2, 2, 3, 3, 4, 4, 0, 200, 7})
+	f.Fuzz(func(t *testing.T, data []byte) {
+		if len(data) < 2 {
+			return
+		}
+		n := int(data[0]%12) + 1
+		data = data[1:]
+		// Pairs (row, column); a column byte ≥ 240 is kept out of range to
+		// exercise the checks.
+		rows := make([][]int, n)
+		m := make([]float64, n*n)
+		for i := 0; i+2 < len(data); i += 3 {
+			r, c := int(data[i])%n, int(data[i+1])
+			if c < 240 {
+				c %= n
+			}
+			rows[r] = append(rows[r], c)
+			if c < n {
+				m[r*n+c] = float64(int(data[i+2])-128) / 16
+			}
+		}
+		rp, ci := []int{0}, []int{}
+		for _, r := range rows {
+			ci = append(ci, r...)
+			rp = append(rp, len(ci))
+		}
+		for i := range n {
+			m[i*n+i] += float64(i%3) - 1
+		}
+		lu, err := NewSparseLU(n, rp, ci)
+		if err != nil {
+			return
+		}
+		if lu.Factor(m) != nil {
+			return
+		}
+		b := make([]float64, n)
+		for i := range b {
+			b[i] = 1
+		}
+		x := append([]float64(nil), b...)
+		lu.Solve(x)
+		var res, scale float64
+		for i := range n {
+			s := -b[i]
+			for j := range n {
+				s += m[i*n+j] * x[j]
+				scale = math.Max(scale, math.Abs(m[i*n+j]*x[j]))
+			}
+			res = math.Max(res, math.Abs(s))
+		}
+		if res > 1e-8*(1+scale) {
+			t.Errorf("residual %.3g (scale %.3g) for n %d, pattern %v %v", res, scale, n, rp, ci)
+		}
+	})
+}
