@@ -18,10 +18,15 @@ import (
 const sparseMinSize = 40
 
 // sparseFlopRatio is how much more one floating-point operation of the
-// sparse factorization costs than one of the dense LU (indirect addressing;
-// measured 2–6 with BenchmarkLinearSolvers for n = 100 to 1000). The driver
-// uses the sparse LU only when it is cheaper by this measure.
-const sparseFlopRatio = 4
+// sparse numeric factorization costs than one of the dense LU (indirect
+// addressing). Measured with BenchmarkLinearSolvers in package network
+// (factorization and solve of the iteration matrix of random networks with
+// 3n reactions, whose factors fill to 20–250 entries per row): 0.8–1.8 for
+// n = 50 to 1,000, time per estimated flop, sparse over dense (it was 2–6
+// with the earlier sparse LU, which gathered from a dense matrix and
+// refined every solve). The driver uses the sparse LU only when it is
+// cheaper by this measure.
+const sparseFlopRatio = 2
 
 // pivotTol is the threshold of partial pivoting: the diagonal entry is the
 // pivot when it is at least pivotTol times the largest candidate in its
