@@ -221,3 +221,42 @@ func BenchmarkPaths(b *testing.B) {
 		}
 	}
 }
+
+// TestSparseStepAllocs checks that no step of any implicit method on the
+// sparse path allocates, with and without sensitivities: with a reused
+// Solver, a solve to t = 1000 (hundreds of steps more than one to t = 1)
+// allocates no more than the latter. It fails when a step allocates even
+// one byte-sized object, as the counts are per solve.
+func TestSparseStepAllocs(t *testing.T) {
+	sys, err := network.Compile(withFeedback(50))
+	if err != nil {
+		t.Fatal(err)
+	}
+	kon, _ := sys.ParameterIndex("kon3")
+	for _, meth := range []solve.Method{solve.BDF, solve.Radau, solve.Rosenbrock} {
+		for _, sens := range []bool{false, true} {
+			count := func(tEnd float64) (float64, int) {
+				set := solve.Settings{Method: meth, RTol: 1e-6, ATol: 1e-12, NonNegative: true, Times: []float64{tEnd}}
+				if sens {
+					set.Sens = &solve.SensSettings{Quantities: []solve.Sensitivity{{Param: kon}}}
+				}
+				sv := solve.NewSolver(sys, set)
+				var steps int
+				a := testing.AllocsPerRun(3, func() {
+					r, err := sv.Solve(context.Background(), 0, tEnd, sys.Initial())
+					if err != nil {
+						t.Fatal(err)
+					}
+					steps = r.Steps
+				})
+				return a, steps
+			}
+			a1, s1 := count(1)
+			a2, s2 := count(1000)
+			t.Logf("%s sens %v: %v allocations for %d steps, %v for %d", meth, sens, a1, s1, a2, s2)
+			if s2 <= s1 || a2 > a1 {
+				t.Errorf("%s sens %v: %v allocations for %d steps, %v for %d steps: steps allocate", meth, sens, a1, s1, a2, s2)
+			}
+		}
+	}
+}
