@@ -5,7 +5,9 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"syscall"
 	"testing"
+	"time"
 
 	"kinetarium/internal/gennet"
 	"kinetarium/network"
@@ -22,8 +24,9 @@ func cascadeSettings(m solve.Method) solve.Settings {
 // BenchmarkCascade times whole solves of the generated signalling network
 // of 200, 1,000, 5,000 and 20,000 species (50 to 5,000 modules) with the
 // automatic method at rtol 1e-6, and reports the work, the bytes a solve
-// allocates and the peak heap (HeapInuse sampled after the solve is not a
-// peak; "MB-heap" is the live heap right after NewSolver+Solve).
+// allocates ("MB-alloc/op") and the processor time per solve of all the
+// process's threads ("cpu-ms/op", getrusage), which a machine shared with
+// other work disturbs less than the wall time.
 //
 // The feedback variants (withFeedback) join all modules into one strongly
 // connected block.
@@ -48,6 +51,7 @@ func BenchmarkCascade(b *testing.B) {
 			var ms0, ms1 runtime.MemStats
 			runtime.GC()
 			runtime.ReadMemStats(&ms0)
+			cpu0 := cpuTime()
 			b.ReportAllocs()
 			for b.Loop() {
 				res, err = solve.NewSolver(sys, cascadeSettings(solve.Auto)).Solve(context.Background(), 0, 1000, y0)
@@ -56,6 +60,7 @@ func BenchmarkCascade(b *testing.B) {
 				}
 			}
 			runtime.ReadMemStats(&ms1)
+			b.ReportMetric((cpuTime()-cpu0).Seconds()*1e3/float64(b.N), "cpu-ms/op")
 			b.ReportMetric(float64(res.Steps), "steps")
 			b.ReportMetric(float64(res.RHSEvals), "rhs")
 			b.ReportMetric(float64(res.JacobianEvals), "jac")
@@ -64,6 +69,15 @@ func BenchmarkCascade(b *testing.B) {
 			b.ReportMetric(float64(ms1.TotalAlloc-ms0.TotalAlloc)/float64(b.N)/1e6, "MB-alloc/op")
 		})
 	}
+}
+
+// cpuTime is the processor time the process has used (user and system).
+func cpuTime() time.Duration {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }
 
 // withFeedback adds to the generated network a reaction from the last
