@@ -297,12 +297,13 @@ func analyse(n int, rowPtr, colIdx []int) (*luSymbolic, error) {
 	for i := range local {
 		local[i] = -1
 	}
+	var ow orderWork
 	for c := len(ends) - 1; c >= 0; c-- {
 		start := 0
 		if c > 0 {
 			start = ends[c-1]
 		}
-		s.q = append(s.q, orderBlock(order[start:ends[c]], rows, local, &s.fill, &s.flops)...)
+		s.q = append(s.q, orderBlock(order[start:ends[c]], rows, local, &ow, &s.fill, &s.flops)...)
 		s.bs = append(s.bs, len(s.q))
 	}
 	s.qinv = make([]int, n)
@@ -471,12 +472,37 @@ func strongComponents(n int, rows [][]int) (order, ends []int) {
 	return order, ends
 }
 
+// orderWork is work space that orderBlock and symbolicFill reuse from one
+// block to the next, so that the analysis allocates a few times per block
+// rather than per vertex.
+type orderWork struct {
+	rp, ri, cp, ci []int // the block's off-diagonal pattern by rows and by columns (local)
+	pp, pi         []int // a candidate's permuted columns
+	inv            []int
+	mark, stack    []int
+	reach          []int
+	lPtr, lIdx     []int // the pattern of L while counting fill
+}
+
+// grow returns s with length n, reusing its storage when it can.
+func grow(s []int, n int) []int {
+	if cap(s) < n {
+		return make([]int, n, max(n, 2*cap(s)))
+	}
+	return s[:n]
+}
+
 // orderBlock orders the vertices of one strongly connected component by
 // the candidate with less measured fill and adds its fill and flops.
 // local is −1 for every vertex on entry and on return.
-func orderBlock(comp []int, rows [][]int, local []int, fill *int, flops *float64) []int {
+func orderBlock(comp []int, rows [][]int, local []int, w *orderWork, fill *int, flops *float64) []int {
 	m := len(comp)
-	if m == 1 {
+	switch m {
+	case 1:
+		return comp
+	case 2: // both orders fill the 2×2 block: 4 entries, 3 flops
+		*fill += 4
+		*flops += 3
 		return comp
 	}
 	for i, v := range comp {
@@ -487,34 +513,56 @@ func orderBlock(comp []int, rows [][]int, local []int, fill *int, flops *float64
 			local[v] = -1
 		}
 	}()
-	// Local pattern by rows and by columns (off-diagonal, in-block).
-	lrows := make([][]int, m)
-	lcols := make([][]int, m)
+	// The block's pattern by rows and by columns (off-diagonal, local).
+	w.rp = grow(w.rp, m+1)
+	w.cp = grow(w.cp, m+1)
+	clear(w.cp)
+	w.ri = w.ri[:0]
+	w.rp[0] = 0
 	for i, v := range comp {
 		for _, j := range rows[v] {
 			if lj := local[j]; lj >= 0 {
-				lrows[i] = append(lrows[i], lj)
-				lcols[lj] = append(lcols[lj], i)
+				w.ri = append(w.ri, lj)
+				w.cp[lj+1]++
 			}
+		}
+		w.rp[i+1] = len(w.ri)
+	}
+	for j := range m {
+		w.cp[j+1] += w.cp[j]
+	}
+	w.ci = grow(w.ci, len(w.ri))
+	next := grow(w.pp, m) // borrowed for the scatter
+	copy(next, w.cp[:m])
+	for i := range m {
+		for _, j := range w.ri[w.rp[i]:w.rp[i+1]] {
+			w.ci[next[j]] = i
+			next[j]++
 		}
 	}
 	// Candidate 1: minimum degree on A + Aᵀ.
 	sym := make([][]int, m)
 	for i := range m {
-		a := append(slices.Clone(lrows[i]), lcols[i]...)
+		a := make([]int, 0, w.rp[i+1]-w.rp[i]+w.cp[i+1]-w.cp[i])
+		a = append(append(a, w.ri[w.rp[i]:w.rp[i+1]]...), w.ci[w.cp[i]:w.cp[i+1]]...)
 		slices.Sort(a)
 		sym[i] = slices.Compact(a)
 	}
 	cands := [][]int{minimumDegree(m, sym)}
 	// Candidate 2: minimum degree on AᵀA, without rows of many entries.
 	dense := max(16, int(10*math.Sqrt(float64(m))))
-	ata := make([][]int, m)
+	ata := sym // reuse the headers; minimumDegree copied what it needs
+	for i := range ata {
+		ata[i] = ata[i][:0]
+	}
 	for i := range m {
-		r := append(slices.Clone(lrows[i]), i)
-		if len(r) > dense {
+		r := w.ri[w.rp[i]:w.rp[i+1]]
+		if len(r)+1 > dense {
 			continue
 		}
 		for _, a := range r {
+			ata[a] = append(ata[a], i)
+			ata[i] = append(ata[i], a)
 			for _, b := range r {
 				if a != b {
 					ata[a] = append(ata[a], b)
@@ -528,22 +576,22 @@ func orderBlock(comp []int, rows [][]int, local []int, fill *int, flops *float64
 	}
 	cands = append(cands, minimumDegree(m, ata))
 	best, bestFill, bestFlops := -1, math.MaxInt, 0.0
+	w.inv = grow(w.inv, m)
 	for c, perm := range cands {
-		inv := make([]int, m)
 		for k, v := range perm {
-			inv[v] = k
+			w.inv[v] = k
 		}
-		colsOf := func(j int) []int {
-			// Column perm[j] of the block: its rows lcols plus itself.
-			v := perm[j]
-			out := make([]int, 0, len(lcols[v])+1)
-			out = append(out, j)
-			for _, r := range lcols[v] {
-				out = append(out, inv[r])
+		// Column j of the candidate is column perm[j] of the block.
+		w.pp = grow(w.pp, m+1)
+		w.pi = w.pi[:0]
+		for j, v := range perm {
+			w.pp[j] = len(w.pi)
+			for _, r := range w.ci[w.cp[v]:w.cp[v+1]] {
+				w.pi = append(w.pi, w.inv[r])
 			}
-			return out
 		}
-		f, fl := symbolicFill(m, colsOf, bestFill)
+		w.pp[m] = len(w.pi)
+		f, fl := symbolicFill(m, w.pp, w.pi, bestFill, w)
 		if f < bestFill {
 			best, bestFill, bestFlops = c, f, fl
 		}
@@ -554,56 +602,70 @@ func orderBlock(comp []int, rows [][]int, local []int, fill *int, flops *float64
 	for k, v := range cands[best] {
 		out[k] = comp[v]
 	}
-	return out // comp is a slice of strongComponents' order: not reused
+	return out
 }
 
 // symbolicFill counts the entries of L and U (diagonal included) of the
-// m×m matrix whose column j has the rows colsOf(j), factorized with
-// diagonal pivots, and the flops of a left-looking numeric factorization.
-// It stops early, returning a count above limit, once the count exceeds
-// limit ≥ 0.
-func symbolicFill(m int, colsOf func(j int) []int, limit int) (fill int, flops float64) {
-	lcol := make([][]int, m) // rows > j of L's column j
-	mark := make([]int, m)
-	for i := range mark {
-		mark[i] = -1
+// m×m matrix whose column j has the off-diagonal rows
+// colIdx[colPtr[j]:colPtr[j+1]] (and the diagonal), factorized with
+// diagonal pivots, and the flops of a left-looking numeric factorization
+// (Davis 2006, sections 4.2 and 6.2). It stops early, returning a count
+// above limit, once the count exceeds limit ≥ 0. w is work space (nil for
+// a fresh one).
+func symbolicFill(m int, colPtr, colIdx []int, limit int, w *orderWork) (fill int, flops float64) {
+	if w == nil {
+		w = &orderWork{}
 	}
-	stack := make([]int, 0, m)
+	w.mark = grow(w.mark, m)
+	for i := range w.mark {
+		w.mark[i] = -1
+	}
+	w.lPtr = grow(w.lPtr, m+1)
+	w.lPtr[0] = 0
+	w.lIdx = w.lIdx[:0]
+	lcol := func(v int) []int { return w.lIdx[w.lPtr[v]:w.lPtr[v+1]] }
 	for j := range m {
 		// Reach of the column's rows in the graph of L: row i < j leads to
 		// the rows of L's column i.
-		var reach []int
-		for _, r := range colsOf(j) {
-			if mark[r] == j {
-				continue
+		w.reach = w.reach[:0]
+		visit := func(r int) {
+			if w.mark[r] == j {
+				return
 			}
-			mark[r] = j
-			stack = append(stack[:0], r)
-			for len(stack) > 0 {
-				v := stack[len(stack)-1]
-				stack = stack[:len(stack)-1]
-				reach = append(reach, v)
+			w.mark[r] = j
+			w.stack = append(w.stack[:0], r)
+			for len(w.stack) > 0 {
+				v := w.stack[len(w.stack)-1]
+				w.stack = w.stack[:len(w.stack)-1]
+				w.reach = append(w.reach, v)
 				if v < j {
-					for _, w := range lcol[v] {
-						if mark[w] != j {
-							mark[w] = j
-							stack = append(stack, w)
+					for _, u := range lcol(v) {
+						if w.mark[u] != j {
+							w.mark[u] = j
+							w.stack = append(w.stack, u)
 						}
 					}
 				}
 			}
 		}
-		for _, v := range reach {
+		visit(j)
+		for _, r := range colIdx[colPtr[j]:colPtr[j+1]] {
+			visit(r)
+		}
+		nl := 0
+		for _, v := range w.reach {
 			switch {
 			case v < j:
 				fill++ // U
-				flops += 2 * float64(len(lcol[v]))
+				flops += 2 * float64(w.lPtr[v+1]-w.lPtr[v])
 			case v > j:
-				lcol[j] = append(lcol[j], v)
+				w.lIdx = append(w.lIdx, v)
+				nl++
 			}
 		}
-		fill += 1 + len(lcol[j])
-		flops += float64(len(lcol[j]))
+		w.lPtr[j+1] = len(w.lIdx)
+		fill += 1 + nl
+		flops += float64(nl)
 		if limit >= 0 && fill > limit {
 			return fill, flops
 		}

@@ -292,17 +292,18 @@ func TestSparseOrderingFill(t *testing.T) {
 		t.Errorf("numeric: %d entries in the factors, want %d", got, 3*n-2)
 	}
 	// symbolicFill with the hub first fills the whole matrix.
-	cols := func(j int) []int {
+	colPtr, colIdx := []int{0}, []int{}
+	for j := range n {
 		if j == 0 {
-			out := make([]int, n)
-			for i := range out {
-				out[i] = i
+			for i := 1; i < n; i++ {
+				colIdx = append(colIdx, i)
 			}
-			return out
+		} else {
+			colIdx = append(colIdx, 0)
 		}
-		return []int{0, j}
+		colPtr = append(colPtr, len(colIdx))
 	}
-	if fill, _ := symbolicFill(n, cols, -1); fill != n*n {
+	if fill, _ := symbolicFill(n, colPtr, colIdx, -1, nil); fill != n*n {
 		t.Errorf("hub first: %d entries, want n² = %d", fill, n*n)
 	}
 }
