@@ -274,3 +274,56 @@ func TestSparseStepAllocs(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkSparseLU times one numeric refactorization (FactorShifted of
+// I − 0.01·J, J at the initial state) and one solve with the sparse LU on
+// the generated networks, and reports the factors' size.
+func BenchmarkSparseLU(b *testing.B) {
+	for _, c := range []struct {
+		modules  int
+		feedback bool
+	}{{250, false}, {1250, false}, {1250, true}, {5000, false}} {
+		name := fmt.Sprintf("n=%d", 4*c.modules)
+		model := gennet.Signalling(c.modules)
+		if c.feedback {
+			name += "-feedback"
+			model = withFeedback(c.modules)
+		}
+		sys, err := network.Compile(model)
+		if err != nil {
+			b.Fatal(err)
+		}
+		rp, ci := sys.JacobianPattern()
+		vals := make([]float64, len(ci))
+		sys.JacobianCSR(0, sys.Initial(), vals)
+		lu, err := solve.NewSparseLU(sys.Dim(), rp, ci)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if err := lu.FactorShifted(1, -0.01, vals); err != nil {
+			b.Fatal(err)
+		}
+		x := make([]float64, sys.Dim())
+		b.Run(name+"/factor", func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				if err := lu.FactorShifted(1, -0.01, vals); err != nil {
+					b.Fatal(err)
+				}
+			}
+			blocks, largest := lu.Blocks()
+			b.ReportMetric(float64(lu.FactorNonzeros()), "LU-nnz")
+			b.ReportMetric(float64(blocks), "blocks")
+			b.ReportMetric(float64(largest), "largest")
+		})
+		b.Run(name+"/solve", func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				for i := range x {
+					x[i] = 1
+				}
+				lu.Solve(x)
+			}
+		})
+	}
+}
