@@ -79,6 +79,7 @@ fuzz:
 	$(GO) test ./app/run -run '^$$' -fuzz FuzzReadProvenance -fuzztime $(FUZZTIME)
 	$(GO) test ./network/expr -run '^$$' -fuzz FuzzCompile -fuzztime $(FUZZTIME)
 	$(GO) test ./network -run '^$$' -fuzz FuzzOutputTimes -fuzztime $(FUZZTIME)
+	$(GO) test ./solve -run '^$$' -fuzz FuzzSparseLU -fuzztime $(FUZZTIME)
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzSweepSpec -fuzztime $(FUZZTIME)
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzPopulationSpec -fuzztime $(FUZZTIME)
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzMergePart -fuzztime $(FUZZTIME)

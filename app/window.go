@@ -620,6 +620,9 @@ func runInfoText(o *run.Outcome) string {
 		"Right-hand side evaluations: %d\nJacobian evaluations: %d\nMatrix factorizations: %d\n"+
 		"Steps where a concentration was kept from going negative: %d",
 		roundDuration(o.Elapsed), st.Steps, st.Rejected, st.RHSEvals, st.JacobianEvals, st.Factorizations, st.NonNegFixes)
+	if st.FactorNonzeros > 0 {
+		text += fmt.Sprintf("\nSparse linear algebra: %d entries in the matrix factors (a full species × species table would hold %d)", st.FactorNonzeros, o.Species*o.Species)
+	}
 	if len(o.Notes) > 0 {
 		text += "\n\nUnits: " + strings.Join(o.Notes, ".\n") + "."
 	}

@@ -1,10 +1,6 @@
 package solve
 
-import (
-	"math"
-
-	"gonum.org/v1/gonum/mat"
-)
+import "math"
 
 // Variable-order (1–5) backward differentiation stepper.
 //
@@ -99,12 +95,11 @@ type bdf struct {
 	scale    []float64
 	clip     []float64
 	newtTol  float64
-	jac      *mat.Dense
+	jac      *jacobian
 	haveJac  bool
-	mtx      []float64 // I − c·J, row-major
-	lu       LinearSolver
-	luC      float64 // c of the current factorization; 0 when none
-	hWanted  float64 // natural step of the last step shortened to land on tLimit; 0 if none
+	lu       *iterMatrix // I − c·J
+	luC      float64     // c of the current factorization; 0 when none
+	hWanted  float64     // natural step of the last step shortened to land on tLimit; 0 if none
 	badComp  int
 	lastIter int
 
@@ -152,9 +147,8 @@ func newBDFKappa(p *problem, kappa [bdfMaxOrder + 1]float64, ctl bdfControl) *bd
 	vec := func() []float64 { return make([]float64, n) }
 	b.ypred, b.psi, b.corr, b.ynew = vec(), vec(), vec(), vec()
 	b.f, b.dy, b.scale, b.clip = vec(), vec(), vec(), vec()
-	b.jac = mat.NewDense(max(n, 1), max(n, 1), nil)
-	b.mtx = make([]float64, n*n)
-	b.lu = p.newLinear()
+	b.jac = p.newJacobian()
+	b.lu = p.newIterMatrix()
 	// Newton stops when its estimated remaining error is 3% of the
 	// error-test tolerance. SciPy asks for min(0.03, √rtol); the looser
 	// 0.03 needed 22% fewer RHS and 68% fewer Jacobians on HIRES at rtol
@@ -293,19 +287,9 @@ func bdfR(m *[bdfMaxOrder + 1][bdfMaxOrder + 1]float64, k int, rho float64) {
 
 // factor forms and factorizes I − c·J.
 func (b *bdf) factor(c float64) error {
-	n := b.n
-	jd := b.jac.RawMatrix()
-	for i := 0; i < n; i++ {
-		row := jd.Data[i*jd.Stride : i*jd.Stride+n]
-		m := b.mtx[i*n : (i+1)*n]
-		for j, v := range row {
-			m[j] = -c * v
-		}
-		m[i]++
-	}
 	b.luC = 0
 	b.p.stats.Factorizations++
-	if err := b.lu.Factor(b.mtx); err != nil {
+	if err := b.lu.factor(1, -c, b.jac); err != nil {
 		return err
 	}
 	b.luC = c
@@ -349,7 +333,7 @@ func (b *bdf) newton(tNew, c float64) bool {
 		for i, v := range b.f {
 			b.dy[i] = c*v - b.psi[i] - b.corr[i]
 		}
-		b.lu.Solve(b.dy)
+		b.lu.solve(b.dy)
 		b.p.stats.LinearSolves++
 		norm := wrms(b.dy, b.scale)
 		rate := -1.0

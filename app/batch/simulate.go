@@ -179,6 +179,7 @@ type simStats struct {
 	JacobianEvals  int      `json:"jacobian_evals"`
 	Factorizations int      `json:"factorizations"`
 	LinearSolves   int      `json:"linear_solves"`
+	FactorNonzeros int      `json:"factor_nonzeros,omitempty"` // entries of the sparse LU factors; absent when dense
 	NonNegFixes    int      `json:"nonneg_fixes"`
 	SolveSeconds   float64  `json:"solve_seconds"` // median over repeat solves
 	Repeat         int      `json:"repeat"`
@@ -328,6 +329,7 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 			s := res.Stats
 			st.Choice, st.Steps, st.Rejected, st.RHSEvals = s.Choice, s.Steps, s.Rejected, s.RHSEvals
 			st.JacobianEvals, st.Factorizations, st.LinearSolves, st.NonNegFixes = s.JacobianEvals, s.Factorizations, s.LinearSolves, s.NonNegFixes
+			st.FactorNonzeros = s.FactorNonzeros
 			for _, mm := range s.Methods {
 				st.Methods = append(st.Methods, string(mm))
 			}
