@@ -2,9 +2,7 @@ package network
 
 import (
 	"fmt"
-	"math"
 	"math/big"
-	"strconv"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
@@ -60,128 +58,48 @@ func (net *Net) Stoichiometry() (species []string, reactions []string, n *mat.De
 // ConservationLaw is a weighted sum of species amounts that no reaction
 // changes.
 type ConservationLaw struct {
-	// Weights has one integer per species of the model, in model order
-	// (zero for fixed species and species outside the law).
-	Weights []int
+	// Terms are the species of the law with their integer weights, in
+	// model order; fixed species and species outside the law are left
+	// out.
+	Terms []LawTerm
 	// Text is the law in words, e.g. "E + ES = constant" or
 	// "2 A + B = constant".
 	Text string
+}
+
+// LawTerm is one species of a conservation law and its weight.
+type LawTerm struct {
+	Species int // index in Model.Species
+	Weight  int // nonzero
+}
+
+// Weights returns the law's weights as one integer per species of a model
+// with n species (zero for species outside the law).
+func (l ConservationLaw) Weights(n int) []int {
+	w := make([]int, n)
+	for _, t := range l.Terms {
+		w[t.Species] = t.Weight
+	}
+	return w
 }
 
 // ConservationLaws returns an integer basis of the conserved totals of m:
 // the vectors w with w·N = 0, N the stoichiometry over the species that are
 // not fixed. The totals are in amounts (concentration × volume of each
 // species' compartment): Σ w_i·V_i·[i] stays constant. Their number is the
-// number of non-fixed species minus the rank of N. The basis is chosen with
-// few negative weights where simple combinations allow. Coefficients are
-// taken as the decimals they are written as (0.1 is 1/10). A law whose
-// integer weights do not fit in an int (coefficients spanning more than
-// about 18 orders of magnitude) is left out rather than listed wrongly.
+// number of non-fixed species minus the rank of N. The basis is the one
+// read from the reduced row echelon form of Nᵀ with the species in model
+// order, then changed with few negative weights where simple combinations
+// allow. Coefficients are taken as the decimals they are written as (0.1
+// is 1/10). A law whose integer weights do not fit in an int (coefficients
+// spanning more than about 18 orders of magnitude) is left out rather than
+// listed wrongly.
+//
+// The work grows with the number of nonzero stoichiometric coefficients,
+// not with the square of the number of species (see laws.go).
 func (m *Model) ConservationLaws() []ConservationLaw {
 	net, _ := Check(m)
 	return net.ConservationLaws()
-}
-
-// ConservationLaws returns the conserved totals of the checked network, as
-// Model.ConservationLaws describes.
-func (net *Net) ConservationLaws() []ConservationLaw {
-	m := net.Model
-	species, _, n := net.Stoichiometry()
-	var free []int // non-fixed species
-	for i, s := range m.Species {
-		if !s.Fixed {
-			free = append(free, i)
-		}
-	}
-	if len(free) == 0 {
-		return nil
-	}
-	nr := len(m.Reactions)
-	// A = Nᵀ restricted to free species, as rationals.
-	rows := make([][]*big.Rat, nr)
-	for j := range rows {
-		rows[j] = make([]*big.Rat, len(free))
-		for k, i := range free {
-			x := 0.0
-			if n != nil {
-				x = n.At(i, j)
-			}
-			r := new(big.Rat)
-			if !math.IsNaN(x) && !math.IsInf(x, 0) {
-				// The shortest decimal that reads back as x: a coefficient
-				// written 0.1 is the rational 1/10, not the binary
-				// fraction nearest to it.
-				r.SetString(strconv.FormatFloat(x, 'g', -1, 64))
-			}
-			rows[j][k] = r
-		}
-	}
-	// Reduced row echelon form.
-	var pivots []int
-	pr := 0
-	for col := 0; col < len(free) && pr < nr; col++ {
-		sel := -1
-		for r := pr; r < nr; r++ {
-			if rows[r][col].Sign() != 0 {
-				sel = r
-				break
-			}
-		}
-		if sel < 0 {
-			continue
-		}
-		rows[pr], rows[sel] = rows[sel], rows[pr]
-		inv := new(big.Rat).Inv(rows[pr][col])
-		for k := range rows[pr] {
-			rows[pr][k].Mul(rows[pr][k], inv)
-		}
-		for r := 0; r < nr; r++ {
-			if r == pr || rows[r][col].Sign() == 0 {
-				continue
-			}
-			f := new(big.Rat).Set(rows[r][col])
-			for k := range rows[r] {
-				rows[r][k].Sub(rows[r][k], new(big.Rat).Mul(f, rows[pr][k]))
-			}
-		}
-		pivots = append(pivots, col)
-		pr++
-	}
-	isPivot := make([]bool, len(free))
-	for _, p := range pivots {
-		isPivot[p] = true
-	}
-	var basis [][]*big.Int
-	for fc := range free {
-		if isPivot[fc] {
-			continue
-		}
-		w := make([]*big.Rat, len(free))
-		for k := range w {
-			w[k] = new(big.Rat)
-		}
-		w[fc].SetInt64(1)
-		for r, p := range pivots {
-			w[p].Neg(rows[r][fc])
-		}
-		basis = append(basis, integerVector(w))
-	}
-	improveSigns(basis)
-	shrink(basis)
-	var laws []ConservationLaw
-basis:
-	for _, b := range basis {
-		law := ConservationLaw{Weights: make([]int, len(m.Species))}
-		for k, i := range free {
-			if !b[k].IsInt64() || int64(int(b[k].Int64())) != b[k].Int64() {
-				continue basis // a weight too large for an int: not listed
-			}
-			law.Weights[i] = int(b[k].Int64())
-		}
-		law.Text = lawText(m, species, law.Weights)
-		laws = append(laws, law)
-	}
-	return laws
 }
 
 // integerVector scales w to coprime integers with a positive first nonzero
@@ -316,14 +234,13 @@ func zeros(v []*big.Int) int {
 	return c
 }
 
-func lawText(m *Model, species []string, w []int) string {
+// lawText writes the law with terms ts in words.
+func lawText(m *Model, ts []LawTerm) string {
 	var b strings.Builder
-	comps := map[string]bool{}
-	for i, x := range w {
-		if x == 0 {
-			continue
-		}
-		comps[m.Species[i].Compartment] = true
+	mixed := false
+	for _, t := range ts {
+		mixed = mixed || m.Species[t.Species].Compartment != m.Species[ts[0].Species].Compartment
+		x := t.Weight
 		a := x
 		switch {
 		case b.Len() == 0 && x < 0:
@@ -338,10 +255,10 @@ func lawText(m *Model, species []string, w []int) string {
 		if a != 1 {
 			fmt.Fprintf(&b, "%d ", a)
 		}
-		b.WriteString(species[i])
+		b.WriteString(m.Species[t.Species].Name)
 	}
 	b.WriteString(" = constant")
-	if len(comps) > 1 {
+	if mixed {
 		b.WriteString(" (in amounts: concentration × volume)")
 	}
 	return b.String()

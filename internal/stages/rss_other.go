@@ -1,0 +1,6 @@
+//go:build !(linux || darwin || freebsd || netbsd || openbsd)
+
+package stages
+
+// PeakRSS returns 0: the system's peak resident memory is not read here.
+func PeakRSS() int64 { return 0 }

@@ -1,0 +1,113 @@
+package network
+
+import (
+	"math"
+	"math/big"
+	"strconv"
+)
+
+// denseConservationLaws is the earlier method of Net.ConservationLaws,
+// kept as the reference of the sparse one: the reduced row echelon form
+// of the dense rational matrix Nᵀ, then improveSigns and shrink on the
+// whole basis. Its work grows as species²·reactions.
+func denseConservationLaws(net *Net) []ConservationLaw {
+	m := net.Model
+	_, _, n := net.Stoichiometry()
+	var free []int // non-fixed species
+	for i, s := range m.Species {
+		if !s.Fixed {
+			free = append(free, i)
+		}
+	}
+	if len(free) == 0 {
+		return nil
+	}
+	nr := len(m.Reactions)
+	// A = Nᵀ restricted to free species, as rationals.
+	rows := make([][]*big.Rat, nr)
+	for j := range rows {
+		rows[j] = make([]*big.Rat, len(free))
+		for k, i := range free {
+			x := 0.0
+			if n != nil {
+				x = n.At(i, j)
+			}
+			r := new(big.Rat)
+			if !math.IsNaN(x) && !math.IsInf(x, 0) {
+				// The shortest decimal that reads back as x: a coefficient
+				// written 0.1 is the rational 1/10, not the binary
+				// fraction nearest to it.
+				r.SetString(strconv.FormatFloat(x, 'g', -1, 64))
+			}
+			rows[j][k] = r
+		}
+	}
+	// Reduced row echelon form.
+	var pivots []int
+	pr := 0
+	for col := 0; col < len(free) && pr < nr; col++ {
+		sel := -1
+		for r := pr; r < nr; r++ {
+			if rows[r][col].Sign() != 0 {
+				sel = r
+				break
+			}
+		}
+		if sel < 0 {
+			continue
+		}
+		rows[pr], rows[sel] = rows[sel], rows[pr]
+		inv := new(big.Rat).Inv(rows[pr][col])
+		for k := range rows[pr] {
+			rows[pr][k].Mul(rows[pr][k], inv)
+		}
+		for r := 0; r < nr; r++ {
+			if r == pr || rows[r][col].Sign() == 0 {
+				continue
+			}
+			f := new(big.Rat).Set(rows[r][col])
+			for k := range rows[r] {
+				rows[r][k].Sub(rows[r][k], new(big.Rat).Mul(f, rows[pr][k]))
+			}
+		}
+		pivots = append(pivots, col)
+		pr++
+	}
+	isPivot := make([]bool, len(free))
+	for _, p := range pivots {
+		isPivot[p] = true
+	}
+	var basis [][]*big.Int
+	for fc := range free {
+		if isPivot[fc] {
+			continue
+		}
+		w := make([]*big.Rat, len(free))
+		for k := range w {
+			w[k] = new(big.Rat)
+		}
+		w[fc].SetInt64(1)
+		for r, p := range pivots {
+			w[p].Neg(rows[r][fc])
+		}
+		basis = append(basis, integerVector(w))
+	}
+	improveSigns(basis)
+	shrink(basis)
+	var laws []ConservationLaw
+basis:
+	for _, b := range basis {
+		var law ConservationLaw
+		for k, i := range free {
+			if !b[k].IsInt64() || int64(int(b[k].Int64())) != b[k].Int64() {
+				continue basis // a weight too large for an int: not listed
+			}
+			if w := int(b[k].Int64()); w != 0 {
+				law.Terms = append(law.Terms, LawTerm{Species: i, Weight: w})
+			}
+		}
+		law.Text = lawText(m, law.Terms)
+		laws = append(laws, law)
+	}
+	return laws
+}
