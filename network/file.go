@@ -8,6 +8,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -65,11 +66,14 @@ func lineCol(data []byte, off int64) (line, col int) {
 type sourceMap struct {
 	file string
 	data []byte
-	at   map[string]int64 // "section/index/field" to byte offset
+	at   map[sourceKey]int64 // where each item and field starts
 }
 
-func sourceKey(section string, index int, field string) string {
-	return fmt.Sprintf("%s/%d/%s", section, index, field)
+// sourceKey names a model item's field ("" for the whole item).
+type sourceKey struct {
+	section string
+	index   int
+	field   string
 }
 
 // locate fills in the file, line and column of each problem whose item or
@@ -80,10 +84,10 @@ func (sm *sourceMap) locate(l ErrorList) {
 	}
 	for i := range l {
 		p := &l[i].Pos
-		off, ok := sm.at[sourceKey(p.Section, p.Index, p.Field)]
+		off, ok := sm.at[sourceKey{p.Section, p.Index, p.Field}]
 		exact := ok
 		if !ok {
-			off, ok = sm.at[sourceKey(p.Section, p.Index, "")]
+			off, ok = sm.at[sourceKey{p.Section, p.Index, ""}]
 		}
 		if !ok {
 			continue
@@ -122,12 +126,14 @@ func (d *decoder) failAt(off int64, path, format string, args ...any) {
 // mark remembers where a model item's field starts.
 func (d *decoder) mark(section string, index int, field string, n *jnode) {
 	if n != nil {
-		d.src.at[sourceKey(section, index, field)] = n.off
+		d.src.at[sourceKey{section, index, field}] = n.off
 	}
 }
 
 func decodeModel(data []byte, file string) (*Model, ErrorList) {
-	d := &decoder{data: data, file: file, src: &sourceMap{file: file, data: data, at: map[string]int64{}}}
+	d := &decoder{data: data, file: file, src: &sourceMap{file: file, data: data,
+		// about one marked field in every 30 bytes of a model file
+		at: make(map[sourceKey]int64, len(data)/30)}}
 	root, err := parseJSON(data)
 	if err != nil {
 		var se *syntaxError
@@ -350,7 +356,7 @@ func (d *decoder) items(top *jnode, key string, allowed []string, item func(i in
 		return
 	}
 	for i, x := range d.array(v, key) {
-		path := fmt.Sprintf("%s[%d]", key, i)
+		path := key + "[" + strconv.Itoa(i) + "]"
 		d.mark(key, i, "", x)
 		o := d.object(x, path, allowed...)
 		if o == nil {
@@ -374,13 +380,22 @@ func (d *decoder) object(n *jnode, path string, allowed ...string) *jnode {
 		d.fail(n, path, "expected an object {...}, found %s", n.what())
 		return nil
 	}
-	seen := map[string]bool{}
+	var seen map[string]bool // for long objects; short ones are searched
+	if len(n.keys) > 16 {
+		seen = make(map[string]bool, len(n.keys))
+	}
 	for i, k := range n.keys {
-		if seen[k] {
+		twice := false
+		if seen != nil {
+			twice = seen[k]
+			seen[k] = true
+		} else {
+			twice = slices.Contains(n.keys[:i], k)
+		}
+		if twice {
 			d.failAt(n.kOffs[i], path, "the key %q appears twice; keep one", k)
 			continue
 		}
-		seen[k] = true
 		known := false
 		for _, a := range allowed {
 			known = known || k == a
