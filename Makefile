@@ -61,6 +61,7 @@ fuzz:
 	$(GO) test ./network -run '^$$' -fuzz FuzzParseEquation -fuzztime $(FUZZTIME)
 	$(GO) test ./network -run '^$$' -fuzz 'FuzzRead$$' -fuzztime $(FUZZTIME)
 	$(GO) test ./network -run '^$$' -fuzz FuzzLayout -fuzztime $(FUZZTIME)
+	$(GO) test ./network -run '^$$' -fuzz FuzzJSONTree -fuzztime $(FUZZTIME)
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzReadPNGText -fuzztime $(FUZZTIME)
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzSVGMetadata -fuzztime $(FUZZTIME)
 	$(GO) test ./app/run -run '^$$' -fuzz FuzzReadProvenance -fuzztime $(FUZZTIME)

@@ -3,6 +3,7 @@ package network
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 
@@ -313,18 +314,18 @@ func (v *validator) reaction(i int) {
 	if cr.EqOK {
 		c.Equation = &cr.Equation
 	}
-	uses := map[string]bool{}
+	// A law has a few fields: lists, not maps, for every reaction.
 	cr.uses = law.Check(c)
-	for _, k := range cr.uses {
-		uses[k] = true
+	uses := func(k string) bool { return slices.Contains(cr.uses, k) }
+	lawFields := law.Fields()
+	isField := func(k string) bool {
+		return slices.ContainsFunc(lawFields, func(f Field) bool { return f.Key == k })
 	}
-	fields := map[string]bool{}
 	var tree expr.Node
-	for _, f := range law.Fields() {
-		fields[f.Key] = true
+	for _, f := range lawFields {
 		field := "rate." + f.Key
 		if f.Kind == ExprField {
-			if !uses[f.Key] {
+			if !uses(f.Key) {
 				continue
 			}
 			tree = v.expression("reactions", i, r.Name, field, r.Rate.Expression, f)
@@ -332,7 +333,7 @@ func (v *validator) reaction(i int) {
 		}
 		val := r.Rate.Arg(f.Key)
 		if !val.Set {
-			if uses[f.Key] {
+			if uses(f.Key) {
 				if f.Missing != "" {
 					errf(field, 0, "%s", f.Missing)
 				} else {
@@ -341,7 +342,7 @@ func (v *validator) reaction(i int) {
 			}
 			continue
 		}
-		if !uses[f.Key] {
+		if !uses(f.Key) {
 			if f.Unused != "" {
 				errf(field, 0, "%s", f.Unused)
 			} else {
@@ -351,9 +352,9 @@ func (v *validator) reaction(i int) {
 		}
 		v.fieldValue(i, r.Name, field, f, val)
 	}
-	keys := make([]string, 0, len(r.Rate.Args))
+	var keys []string
 	for k := range r.Rate.Args {
-		if !fields[k] {
+		if !isField(k) {
 			keys = append(keys, k)
 		}
 	}
@@ -361,7 +362,7 @@ func (v *validator) reaction(i int) {
 	for _, k := range keys {
 		errf("rate."+k, 0, "%s is not used by the %s law; remove it", keyLabel(k), law.Title())
 	}
-	if !fields["expression"] && r.Rate.Expression != "" {
+	if !isField("expression") && r.Rate.Expression != "" {
 		errf("rate.expression", 0, "%s does not use an expression; remove it or choose the expression law", law.Name())
 	}
 	if v.nerr > nerr {

@@ -12,6 +12,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
 
 	"kinetarium/internal/atomicfile"
 )
@@ -62,11 +63,21 @@ func lineCol(data []byte, off int64) (line, col int) {
 	return line, col
 }
 
-// sourceMap remembers where the items of a model were in its file.
+// sourceMap remembers where the items of a model were in its file. The
+// reader appends the places to a list; the map to look them up is built
+// the first time a problem is to be located (most reads of large models
+// have none, and a map of every field would cost more than the read).
 type sourceMap struct {
-	file string
-	data []byte
-	at   map[sourceKey]int64 // where each item and field starts
+	file  string
+	data  []byte
+	marks []sourceMark
+	once  sync.Once
+	at    map[sourceKey]int64 // where each item and field starts
+}
+
+type sourceMark struct {
+	key sourceKey
+	off int64
 }
 
 // sourceKey names a model item's field ("" for the whole item).
@@ -79,9 +90,15 @@ type sourceKey struct {
 // locate fills in the file, line and column of each problem whose item or
 // field the file holds. A nil map locates nothing.
 func (sm *sourceMap) locate(l ErrorList) {
-	if sm == nil {
+	if sm == nil || len(l) == 0 {
 		return
 	}
+	sm.once.Do(func() {
+		sm.at = make(map[sourceKey]int64, len(sm.marks))
+		for _, mk := range sm.marks {
+			sm.at[mk.key] = mk.off // a later mark of the same field wins
+		}
+	})
 	for i := range l {
 		p := &l[i].Pos
 		off, ok := sm.at[sourceKey{p.Section, p.Index, p.Field}]
@@ -126,14 +143,14 @@ func (d *decoder) failAt(off int64, path, format string, args ...any) {
 // mark remembers where a model item's field starts.
 func (d *decoder) mark(section string, index int, field string, n *jnode) {
 	if n != nil {
-		d.src.at[sourceKey{section, index, field}] = n.off
+		d.src.marks = append(d.src.marks, sourceMark{sourceKey{section, index, field}, n.off})
 	}
 }
 
 func decodeModel(data []byte, file string) (*Model, ErrorList) {
 	d := &decoder{data: data, file: file, src: &sourceMap{file: file, data: data,
 		// about one marked field in every 30 bytes of a model file
-		at: make(map[sourceKey]int64, len(data)/30)}}
+		marks: make([]sourceMark, 0, len(data)/30)}}
 	root, err := parseJSON(data)
 	if err != nil {
 		var se *syntaxError

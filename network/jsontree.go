@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"strings"
+	"unicode/utf8"
 )
 
 // jnode is a JSON value with the byte offset where it starts, so that the
@@ -59,8 +60,20 @@ type syntaxError struct {
 func (e *syntaxError) Error() string { return e.msg }
 
 // parseJSON reads one JSON value from data into a tree, and refuses text
-// after it.
+// after it. A valid document (json.Valid) is read by a direct scan of the
+// bytes; any other is read token by token with encoding/json's decoder,
+// whose errors say what is wrong where.
 func parseJSON(data []byte) (*jnode, error) {
+	if json.Valid(data) {
+		f := fastParser{data: data}
+		f.space()
+		return f.value(), nil
+	}
+	return parseJSONTokens(data)
+}
+
+// parseJSONTokens is parseJSON by encoding/json's tokens.
+func parseJSONTokens(data []byte) (*jnode, error) {
 	p := &jparser{data: data, dec: json.NewDecoder(bytes.NewReader(data))}
 	p.dec.UseNumber()
 	tok, err := p.token()
@@ -161,4 +174,120 @@ func (p *jparser) value(tok json.Token) (*jnode, error) {
 		n.kind = 'n'
 	}
 	return n, nil
+}
+
+// fastParser reads a document that json.Valid accepted. It builds the
+// same tree as the token reader (offsets, keys in file order, repeated
+// keys kept, numbers as their text) in one pass over the bytes, several
+// times faster than encoding/json's Token for files of thousands of
+// items.
+type fastParser struct {
+	data []byte
+	pos  int
+}
+
+func (f *fastParser) space() {
+	for f.pos < len(f.data) {
+		switch f.data[f.pos] {
+		case ' ', '\t', '\r', '\n':
+			f.pos++
+		default:
+			return
+		}
+	}
+}
+
+func (f *fastParser) value() *jnode {
+	n := &jnode{off: int64(f.pos)}
+	switch c := f.data[f.pos]; c {
+	case '{':
+		n.kind = '{'
+		f.pos++
+		f.space()
+		if f.data[f.pos] == '}' {
+			f.pos++
+			return n
+		}
+		for {
+			f.space()
+			koff := int64(f.pos)
+			k := f.str()
+			f.space()
+			f.pos++ // ':'
+			f.space()
+			n.keys, n.kOffs, n.vals = append(n.keys, k), append(n.kOffs, koff), append(n.vals, f.value())
+			f.space()
+			c := f.data[f.pos]
+			f.pos++ // ',' or '}'
+			if c == '}' {
+				return n
+			}
+		}
+	case '[':
+		n.kind = '['
+		f.pos++
+		f.space()
+		if f.data[f.pos] == ']' {
+			f.pos++
+			return n
+		}
+		for {
+			f.space()
+			n.items = append(n.items, f.value())
+			f.space()
+			c := f.data[f.pos]
+			f.pos++ // ',' or ']'
+			if c == ']' {
+				return n
+			}
+		}
+	case '"':
+		n.kind, n.str = '"', f.str()
+	case 't':
+		n.kind, n.b = 'b', true
+		f.pos += 4
+	case 'f':
+		n.kind = 'b'
+		f.pos += 5
+	case 'n':
+		n.kind = 'n'
+		f.pos += 4
+	default:
+		start := f.pos
+		for f.pos < len(f.data) && strings.IndexByte("+-0123456789.eE", f.data[f.pos]) >= 0 {
+			f.pos++
+		}
+		n.kind, n.num = '0', json.Number(f.data[start:f.pos])
+	}
+	return n
+}
+
+// str reads a string at f.pos. One without escapes in valid UTF-8 is
+// taken as it is; others are decoded by encoding/json, so that escapes
+// and invalid bytes read as the token reader reads them.
+func (f *fastParser) str() string {
+	start := f.pos
+	f.pos++
+	plain := true
+	for {
+		c := f.data[f.pos]
+		if c == '"' {
+			break
+		}
+		if c == '\\' {
+			plain = false
+			f.pos++
+		} else if c >= utf8.RuneSelf {
+			plain = false
+		}
+		f.pos++
+	}
+	f.pos++
+	raw := f.data[start:f.pos]
+	if plain {
+		return string(raw[1 : len(raw)-1])
+	}
+	var s string
+	json.Unmarshal(raw, &s) // valid: json.Valid read it
+	return s
 }

@@ -241,7 +241,17 @@ func (net *Net) Compile() (*System, error) {
 	}
 	m := net.Model
 	statePars := net.stateParameters()
-	s := &System{n: len(m.Species) + len(statePars), nSpecies: len(m.Species), parIx: map[string]int{}, spIx: map[string]int{}}
+	s := &System{n: len(m.Species) + len(statePars), nSpecies: len(m.Species),
+		parIx: make(map[string]int, len(m.Parameters)), spIx: make(map[string]int, len(m.Species)+len(statePars))}
+	// Sized once: a large network would otherwise copy each list many
+	// times as it grows.
+	s.names = make([]string, 0, s.n)
+	s.initial = make([]float64, 0, s.n)
+	s.fixed = make([]bool, 0, s.n)
+	s.spComp = make([]int, 0, s.n)
+	s.parNames = make([]string, 0, len(m.Parameters))
+	s.rxNames = make([]string, 0, len(net.Reactions))
+	s.rx = make([]rxn, 0, len(net.Reactions)+len(net.Rates))
 	b := &builder{s: s, net: net}
 	n := s.n
 	compIx := map[string]int{}
