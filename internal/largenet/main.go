@@ -277,7 +277,7 @@ func markdown(results []result, limit time.Duration, solveMax int) string {
 	fmt.Fprintf(&b, "%s, %s/%s, %d CPUs). ", runtime.Version(), runtime.GOOS, runtime.GOARCH, runtime.NumCPU())
 	b.WriteString("Networks from `internal/gennet`: `cascade` is the stiff signalling cascade (`gennet.Cascade`), `feedback` the same with loops from each module back to one of the 8 before it (`gennet.Feedback`). ")
 	b.WriteString("Each model runs in a fresh child process: read the JSON file (`network.Load`), `network.Check`, `Net.Compile`, solve with the model's settings (automatic method, rtol 1e-6, atol 1e-12, t_end 1000, 200 log-spaced output times), write the CSV with provenance (`run.NewOutcome`, `run.SaveCSV`), and last `Net.ConservationLaws` (which the simulate path does not need, so that the peaks above it are the simulate path's). ")
-	fmt.Fprintf(&b, "Time is wall time; allocated is the bytes the stage allocated on the heap; peak is the process's peak resident memory (VmHWM) at the end of the stage, so it includes the stages before. A run is stopped after %v or at %.0f MB of resident memory; models above %d species are not solved.\n\n", limit, stages.MB(maxRSS), solveMax)
+	fmt.Fprintf(&b, "Time is wall time, with the processor time of the process (user and system, garbage collection included) in brackets, which varies less on a busy machine; allocated is the bytes the stage allocated on the heap; peak is the process's peak resident memory (VmHWM) at the end of the stage, so it includes the stages before. A run is stopped after %v or at %.0f MB of resident memory; models above %d species are not solved.\n\n", limit, stages.MB(maxRSS), solveMax)
 	for _, fam := range []string{"cascade", "feedback"} {
 		var rs []result
 		for _, r := range results {
@@ -305,7 +305,7 @@ func markdown(results []result, limit time.Duration, solveMax int) string {
 			}
 			b.WriteString("\n")
 		}
-		b.WriteString("\nEach cell: time · allocated · peak.")
+		b.WriteString("\nEach cell: wall time (processor time) · allocated · peak.")
 		for _, r := range rs {
 			if r.failed != "" && r.failed != "not solved" {
 				fmt.Fprintf(&b, " %d species: %s.", r.species, r.failed)
@@ -319,7 +319,7 @@ func markdown(results []result, limit time.Duration, solveMax int) string {
 func cell(r result, name string) string {
 	for _, s := range r.stages {
 		if s.Name == name {
-			return fmt.Sprintf("%s · %.1f MB · %.0f MB", dur(s.Seconds), stages.MB(int64(s.Alloc)), stages.MB(s.Peak))
+			return fmt.Sprintf("%s (%s) · %.1f MB · %.0f MB", dur(s.Seconds), dur(s.CPU), stages.MB(int64(s.Alloc)), stages.MB(s.Peak))
 		}
 	}
 	for i, s := range stageNames {

@@ -36,3 +36,13 @@ func PeakRSS() int64 {
 	}
 	return int64(ru.Maxrss) * 1024 // kilobytes elsewhere
 }
+
+// CPUTime returns the processor time the process has used, user and
+// system, in seconds.
+func CPUTime() float64 {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
+	}
+	return float64(ru.Utime.Nano()+ru.Stime.Nano()) / 1e9
+}
