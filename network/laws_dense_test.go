@@ -92,7 +92,7 @@ func denseConservationLaws(net *Net) []ConservationLaw {
 		}
 		basis = append(basis, integerVector(w))
 	}
-	improveSigns(basis)
+	improveSignsDense(basis)
 	shrink(basis)
 	var laws []ConservationLaw
 basis:
@@ -110,4 +110,48 @@ basis:
 		laws = append(laws, law)
 	}
 	return laws
+}
+
+// improveSignsDense is improveSigns as it was, for the reference: it
+// adds small multiples of the other basis vectors to each vector, and
+// flips signs, while that reduces its number of negative entries. The span is unchanged (unimodular steps).
+func improveSignsDense(basis [][]*big.Int) {
+	flip := func(v []*big.Int) {
+		if negatives(v) > len(v)-negatives(v)-zeros(v) {
+			for _, x := range v {
+				x.Neg(x)
+			}
+		}
+	}
+	for _, v := range basis {
+		flip(v)
+	}
+	for changed, rounds := true, 0; changed && rounds < 10; rounds++ {
+		changed = false
+		for a := range basis {
+			if negatives(basis[a]) == 0 {
+				continue
+			}
+			for b := range basis {
+				if a == b {
+					continue
+				}
+				for _, mult := range []int64{1, -1, 2, -2, 3, -3} {
+					cand := make([]*big.Int, len(basis[a]))
+					for k := range cand {
+						cand[k] = new(big.Int).Add(basis[a][k], new(big.Int).Mul(big.NewInt(mult), basis[b][k]))
+					}
+					if zeros(cand) == len(cand) {
+						continue
+					}
+					flip(cand)
+					if negatives(cand) < negatives(basis[a]) {
+						basis[a] = cand
+						changed = true
+						break
+					}
+				}
+			}
+		}
+	}
 }

@@ -160,6 +160,8 @@ func improveSigns(basis [][]*big.Int) {
 	for _, v := range basis {
 		flip(v)
 	}
+	mults := []*big.Int{big.NewInt(1), big.NewInt(-1), big.NewInt(2), big.NewInt(-2), big.NewInt(3), big.NewInt(-3)}
+	tmp := new(big.Int)
 	for changed, rounds := true, 0; changed && rounds < 10; rounds++ {
 		changed = false
 		for a := range basis {
@@ -170,24 +172,53 @@ func improveSigns(basis [][]*big.Int) {
 				if a == b {
 					continue
 				}
-				for _, mult := range []int64{1, -1, 2, -2, 3, -3} {
-					cand := make([]*big.Int, len(basis[a]))
-					for k := range cand {
-						cand[k] = new(big.Int).Add(basis[a][k], new(big.Int).Mul(big.NewInt(mult), basis[b][k]))
+				if !overlap(basis[a], basis[b]) {
+					continue // the sum has the negatives of both, or more
+				}
+				for _, mult := range mults {
+					// Count the signs of a + mult·b before building it.
+					neg, pos := 0, 0
+					for k, x := range basis[a] {
+						sg := x.Sign()
+						if basis[b][k].Sign() != 0 {
+							tmp.Mul(mult, basis[b][k])
+							sg = tmp.Add(tmp, x).Sign()
+						}
+						switch {
+						case sg < 0:
+							neg++
+						case sg > 0:
+							pos++
+						}
 					}
-					if zeros(cand) == len(cand) {
+					if neg == 0 && pos == 0 {
 						continue
 					}
-					flip(cand)
-					if negatives(cand) < negatives(basis[a]) {
-						basis[a] = cand
-						changed = true
-						break
+					if min(neg, pos) >= negatives(basis[a]) { // flip keeps the fewer
+						continue
 					}
+					cand := make([]*big.Int, len(basis[a]))
+					for k := range cand {
+						cand[k] = new(big.Int).Add(basis[a][k], new(big.Int).Mul(mult, basis[b][k]))
+					}
+					flip(cand)
+					basis[a] = cand
+					changed = true
+					break
 				}
 			}
 		}
 	}
+}
+
+// overlap reports whether a and b are both nonzero somewhere.
+func overlap(a, b []*big.Int) bool {
+	for k, x := range a {
+		if x.Sign() != 0 && b[k].Sign() != 0 {
+			return true
+		}
+	}
+	return false
 }
 
 // shrink subtracts one basis vector from another wherever the result stays
