@@ -44,6 +44,9 @@ type Net struct {
 	Problems ErrorList
 
 	speciesIx, paramIx, compIx, assignIx map[string]int
+	// checkedAsg maps the name of each sound assignment to its place in
+	// Assignments.
+	checkedAsg map[string]int
 }
 
 // CheckedReaction is a reaction as Check read it.
@@ -151,6 +154,10 @@ func Check(m *Model) (*Net, ErrorList) {
 	n := v.net
 	n.Problems = v.problems
 	n.speciesIx, n.paramIx, n.compIx, n.assignIx = v.speciesIx, v.paramIx, v.compIx, v.assignIx
+	n.checkedAsg = make(map[string]int, len(n.Assignments))
+	for k, a := range n.Assignments {
+		n.checkedAsg[a.Name] = k
+	}
 	return n, v.problems
 }
 

@@ -217,15 +217,21 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			rp := path + ".rate"
 			if ro := d.object(x, rp, keys...); ro != nil {
 				r.Rate.Law = d.optStr(ro, "law", rp)
+				// The reader owns this rate: its fields go straight into
+				// one map (Rate.With would copy the map for each).
+				args := make(map[string]Value, len(ro.keys))
 				for j, k := range ro.keys {
 					if k == "law" || k == "expression" {
 						d.mark("reactions", i, "rate."+k, ro.vals[j])
 						continue
 					}
-					if v, ok := d.value(ro.vals[j], rp+"."+k); ok {
-						r.Rate = r.Rate.With(k, v)
+					if v, ok := d.value(ro.vals[j], rp+"."+k); ok && v.Set {
+						args[k] = v
 					}
 					d.mark("reactions", i, "rate."+k, ro.vals[j])
+				}
+				if len(args) > 0 {
+					r.Rate.Args = args
 				}
 				r.Rate.Expression = d.optStr(ro, "expression", rp)
 				d.mark("reactions", i, "rate", x)

@@ -120,3 +120,44 @@ func TestCascadeConservation(t *testing.T) {
 		}
 	}
 }
+
+// The modifiers of every reaction (the diagram's arrows) cost the same per
+// reaction at 8,000 species as at 2,000 (bytes allocated within a factor
+// 1.5, as in TestStagesScaleLinearly; the earlier pass over every species
+// and assignment for each reaction made this quadratic). In the feedback
+// network, the product D of module i is the enzyme of the return in an
+// earlier module for odd i (∂rate/∂D > 0: activates) and represses it for
+// even i (∂/∂D of k·X/(1 + (D/K)²) < 0: inhibits).
+func TestModifiersScaleLinearly(t *testing.T) {
+	perReaction := func(n int) float64 {
+		net, _ := network.Check(gennet.Feedback(n))
+		var count int
+		b := allocated(func() {
+			for i := range net.Reactions {
+				ms := net.Modifiers(i)
+				r := net.Reactions[i]
+				var k int
+				if _, err := fmt.Sscanf(r.Name, "fb%d", &k); err != nil {
+					continue
+				}
+				want := network.Inhibits
+				if k%2 == 1 {
+					want = network.Activates
+				}
+				if len(ms) != 1 || ms[0].Species != fmt.Sprintf("D%d", k) || ms[0].Effect != want {
+					t.Fatalf("reaction %s: modifiers %+v, want D%d %v", r.Name, ms, k, want)
+				}
+				count++
+			}
+		})
+		if count != n/4-1 {
+			t.Fatalf("%d feedback reactions in %d species, want %d", count, n, n/4-1)
+		}
+		return float64(b) / float64(len(net.Reactions))
+	}
+	small, large := perReaction(2000), perReaction(8000)
+	t.Logf("%.0f bytes per reaction at 2,000 species, %.0f at 8,000", small, large)
+	if large > 1.5*small {
+		t.Errorf("modifiers: %.0f bytes per reaction at 8,000 species against %.0f at 2,000 (bound 1.5)", large, small)
+	}
+}
