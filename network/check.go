@@ -596,6 +596,12 @@ func (v *validator) simulation() {
 // usableInExpressions reports whether name reads as a variable in a rate
 // expression (function names such as exp do not).
 func usableInExpressions(name string) bool {
+	if isName(name) {
+		// A name reads as a variable unless it is a function (the
+		// parser's only objection to one): a lookup, not a parse, for
+		// each of a large model's names.
+		return !expr.IsFunction(name)
+	}
 	_, err := expr.Parse(name)
 	return err == nil
 }

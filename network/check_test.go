@@ -2,6 +2,7 @@ package network
 
 import (
 	"fmt"
+	"kinetarium/network/expr"
 	"math"
 	"strings"
 	"testing"
@@ -374,4 +375,33 @@ func FuzzOutputTimes(f *testing.F) {
 			}
 		}
 	})
+}
+
+// usableInExpressions answers as the expression parser does (the parser
+// is the reference) for every function name and for names that look like
+// numbers or constants.
+func TestUsableInExpressionsAgreesWithParser(t *testing.T) {
+	names := []string{"e", "pi", "inf", "nan", "Inf", "NaN", "t", "E1", "e1", "_", "x_1", "ifle", "exp2", "logx", "1a", "a b", ""}
+	for _, f := range funcs() {
+		names = append(names, f, f+"_", strings.ToUpper(f))
+	}
+	for _, n := range names {
+		_, err := expr.Parse(n)
+		if got, want := usableInExpressions(n), err == nil; got != want {
+			t.Errorf("usableInExpressions(%q) = %v, the parser says %v", n, got, want)
+		}
+	}
+}
+
+// funcs lists the function names the expression language knows, by
+// probing the parser with common names (exp, log, …) and the names of
+// README's function table.
+func funcs() []string {
+	var out []string
+	for _, n := range []string{"exp", "log", "log10", "sqrt", "abs", "sin", "cos", "tan", "min", "max", "pow", "ifle", "hill", "floor", "ceil", "sign", "tanh", "atan", "asin", "acos", "sinh", "cosh", "ln"} {
+		if expr.IsFunction(n) {
+			out = append(out, n)
+		}
+	}
+	return out
 }
