@@ -93,7 +93,7 @@ func denseConservationLaws(net *Net) []ConservationLaw {
 		basis = append(basis, integerVector(w))
 	}
 	improveSignsDense(basis)
-	shrink(basis)
+	shrinkDense(basis)
 	var laws []ConservationLaw
 basis:
 	for _, b := range basis {
@@ -151,6 +151,41 @@ func improveSignsDense(basis [][]*big.Int) {
 						break
 					}
 				}
+			}
+		}
+	}
+}
+
+// shrinkDense is shrink as it was, for the reference: it subtracts one
+// basis vector from another wherever the result stays non-negative, so
+// that laws such as "E + ES" do not carry others along.
+func shrinkDense(basis [][]*big.Int) {
+	for changed, rounds := true, 0; changed && rounds < 100; rounds++ {
+		changed = false
+		for a := range basis {
+			if negatives(basis[a]) > 0 {
+				continue
+			}
+			for b := range basis {
+				if a == b || negatives(basis[b]) > 0 {
+					continue
+				}
+				ok, same := true, true
+				for k := range basis[a] {
+					c := basis[a][k].Cmp(basis[b][k])
+					if c < 0 {
+						ok = false
+						break
+					}
+					same = same && c == 0
+				}
+				if !ok || same {
+					continue
+				}
+				for k := range basis[a] {
+					basis[a][k] = new(big.Int).Sub(basis[a][k], basis[b][k])
+				}
+				changed = true
 			}
 		}
 	}

@@ -148,42 +148,40 @@ func negatives(v []*big.Int) int {
 
 // improveSigns adds small multiples of the other basis vectors to each
 // vector, and flips signs, while that reduces its number of negative
-// entries. The span is unchanged (unimodular steps).
+// entries. The span is unchanged (unimodular steps). Vectors are taken in
+// order, and for each the others in order, the first multiple of 1, −1,
+// 2, −2, 3, −3 that helps being kept. The nonzero places and the number of
+// negative entries of each vector are kept beside it, so that a pair
+// without a species in common (whose sum never has fewer negatives) costs
+// a merge of two short lists, not a pass over the cluster.
 func improveSigns(basis [][]*big.Int) {
-	flip := func(v []*big.Int) {
-		if negatives(v) > len(v)-negatives(v)-zeros(v) {
+	lv := newLawVecs(basis)
+	for a, v := range basis {
+		if lv.neg[a] > len(lv.supp[a])-lv.neg[a] {
 			for _, x := range v {
 				x.Neg(x)
 			}
+			lv.update(a)
 		}
-	}
-	for _, v := range basis {
-		flip(v)
 	}
 	mults := []*big.Int{big.NewInt(1), big.NewInt(-1), big.NewInt(2), big.NewInt(-2), big.NewInt(3), big.NewInt(-3)}
 	tmp := new(big.Int)
 	for changed, rounds := true, 0; changed && rounds < 10; rounds++ {
 		changed = false
 		for a := range basis {
-			if negatives(basis[a]) == 0 {
+			if lv.neg[a] == 0 {
 				continue
 			}
 			for b := range basis {
-				if a == b {
-					continue
-				}
-				if !overlap(basis[a], basis[b]) {
+				if a == b || !overlapping(lv.supp[a], lv.supp[b]) {
 					continue // the sum has the negatives of both, or more
 				}
+				va, vb := basis[a], basis[b]
 				for _, mult := range mults {
-					// Count the signs of a + mult·b before building it.
+					// Count the signs of a + mult·b before building it:
+					// on a's places, then on b's places outside a's.
 					neg, pos := 0, 0
-					for k, x := range basis[a] {
-						sg := x.Sign()
-						if basis[b][k].Sign() != 0 {
-							tmp.Mul(mult, basis[b][k])
-							sg = tmp.Add(tmp, x).Sign()
-						}
+					count := func(sg int) {
 						switch {
 						case sg < 0:
 							neg++
@@ -191,18 +189,36 @@ func improveSigns(basis [][]*big.Int) {
 							pos++
 						}
 					}
+					for _, k := range lv.supp[a] {
+						sg := va[k].Sign()
+						if vb[k].Sign() != 0 {
+							tmp.Mul(mult, vb[k])
+							sg = tmp.Add(tmp, va[k]).Sign()
+						}
+						count(sg)
+					}
+					for _, k := range lv.supp[b] {
+						if va[k].Sign() == 0 {
+							count(vb[k].Sign() * mult.Sign())
+						}
+					}
 					if neg == 0 && pos == 0 {
 						continue
 					}
-					if min(neg, pos) >= negatives(basis[a]) { // flip keeps the fewer
+					if min(neg, pos) >= lv.neg[a] { // a flip keeps the fewer
 						continue
 					}
-					cand := make([]*big.Int, len(basis[a]))
+					cand := make([]*big.Int, len(va))
 					for k := range cand {
-						cand[k] = new(big.Int).Add(basis[a][k], new(big.Int).Mul(mult, basis[b][k]))
+						cand[k] = new(big.Int).Add(va[k], new(big.Int).Mul(mult, vb[k]))
 					}
-					flip(cand)
+					if neg > pos {
+						for _, x := range cand {
+							x.Neg(x)
+						}
+					}
 					basis[a] = cand
+					lv.update(a)
 					changed = true
 					break
 				}
@@ -211,31 +227,83 @@ func improveSigns(basis [][]*big.Int) {
 	}
 }
 
-// overlap reports whether a and b are both nonzero somewhere.
-func overlap(a, b []*big.Int) bool {
-	for k, x := range a {
-		if x.Sign() != 0 && b[k].Sign() != 0 {
+// lawVecs keeps, for each vector of a basis, its nonzero places in
+// increasing order and its number of negative entries.
+type lawVecs struct {
+	basis [][]*big.Int
+	supp  [][]int
+	neg   []int
+}
+
+func newLawVecs(basis [][]*big.Int) *lawVecs {
+	lv := &lawVecs{basis: basis, supp: make([][]int, len(basis)), neg: make([]int, len(basis))}
+	for a := range basis {
+		lv.update(a)
+	}
+	return lv
+}
+
+// update reads vector a again.
+func (lv *lawVecs) update(a int) {
+	lv.supp[a], lv.neg[a] = lv.supp[a][:0], 0
+	for k, x := range lv.basis[a] {
+		if sg := x.Sign(); sg != 0 {
+			lv.supp[a] = append(lv.supp[a], k)
+			if sg < 0 {
+				lv.neg[a]++
+			}
+		}
+	}
+}
+
+// overlapping reports whether two increasing lists share an element.
+func overlapping(a, b []int) bool {
+	for i, j := 0, 0; i < len(a) && j < len(b); {
+		switch {
+		case a[i] == b[j]:
 			return true
+		case a[i] < b[j]:
+			i++
+		default:
+			j++
 		}
 	}
 	return false
 }
 
+// subset reports whether the increasing list b is contained in a.
+func subset(b, a []int) bool {
+	i := 0
+	for _, x := range b {
+		for i < len(a) && a[i] < x {
+			i++
+		}
+		if i == len(a) || a[i] != x {
+			return false
+		}
+	}
+	return true
+}
+
 // shrink subtracts one basis vector from another wherever the result stays
 // non-negative, so that laws such as "E + ES" do not carry others along.
+// Vectors are taken in order, and for each the others in order. b fits
+// under a only where b's nonzero places are among a's, which is checked
+// first on the lists of places.
 func shrink(basis [][]*big.Int) {
+	lv := newLawVecs(basis)
 	for changed, rounds := true, 0; changed && rounds < 100; rounds++ {
 		changed = false
 		for a := range basis {
-			if negatives(basis[a]) > 0 {
+			if lv.neg[a] > 0 {
 				continue
 			}
 			for b := range basis {
-				if a == b || negatives(basis[b]) > 0 {
+				if a == b || lv.neg[b] > 0 || !subset(lv.supp[b], lv.supp[a]) {
 					continue
 				}
-				ok, same := true, true
-				for k := range basis[a] {
+				ok, same := true, len(lv.supp[a]) == len(lv.supp[b])
+				for _, k := range lv.supp[a] {
 					c := basis[a][k].Cmp(basis[b][k])
 					if c < 0 {
 						ok = false
@@ -246,9 +314,10 @@ func shrink(basis [][]*big.Int) {
 				if !ok || same {
 					continue
 				}
-				for k := range basis[a] {
+				for _, k := range lv.supp[b] {
 					basis[a][k] = new(big.Int).Sub(basis[a][k], basis[b][k])
 				}
+				lv.update(a)
 				changed = true
 			}
 		}
