@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic large-networks
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -53,6 +53,14 @@ bench:
 	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/... ./app/ensemble ./app/diagram
 	$(GO) test -run '^$$' -bench . -benchtime 1x ./app/analyse
 	$(GO) run ./internal/workprecision -out bench
+
+# Each stage of a run (read, check, compile, solve, write, conservation
+# laws) on the generated networks of 50 to 20,000 species, with time and
+# peak memory: bench/large-networks.md. Each model runs in its own
+# process, stopped after LARGE_LIMIT or at 8 GB.
+LARGE_LIMIT ?= 5m
+large-networks:
+	$(GO) run ./internal/largenet -limit $(LARGE_LIMIT) -out bench/large-networks.md
 
 FUZZTIME ?= 30s
 fuzz:
