@@ -283,7 +283,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 						*list = append(*list, Change{Target: target, Value: v.str})
 					case '0':
 						if _, ok := d.num(v, path+"."+key+"."+target); ok {
-							*list = append(*list, Change{Target: target, Value: v.num.String()})
+							*list = append(*list, Change{Target: target, Value: v.num().String()})
 						}
 					default:
 						d.fail(v, path+"."+key+"."+target, "expected a number, a parameter name or an expression in quotes, found %s", v.what())
@@ -441,6 +441,7 @@ func (d *decoder) array(n *jnode, path string) []*jnode {
 func (d *decoder) str(n *jnode, path string) string {
 	if n.kind != '"' {
 		d.fail(n, path, "expected text in quotes, found %s", n.what())
+		return "" // a number keeps its digits in str
 	}
 	return n.str
 }
@@ -450,9 +451,9 @@ func (d *decoder) num(n *jnode, path string) (float64, bool) {
 		d.fail(n, path, "expected a number, found %s", n.what())
 		return 0, false
 	}
-	f, err := n.num.Float64()
+	f, err := n.num().Float64()
 	if err != nil || math.IsInf(f, 0) {
-		d.fail(n, path, "%s is out of the range of numbers this program handles", n.num)
+		d.fail(n, path, "%s is out of the range of numbers this program handles", n.num())
 		return 0, false
 	}
 	return f, true
@@ -495,7 +496,7 @@ func (d *decoder) notZero(o *jnode, path, key, expected string, def any) {
 	if !ok || n.kind != '0' {
 		return
 	}
-	if f, err := n.num.Float64(); err == nil && f == 0 {
+	if f, err := n.num().Float64(); err == nil && f == 0 {
 		d.fail(n, join(path, key), "0 cannot be honoured; expected %s (leave the key out for the default, %v)", expected, def)
 	}
 }

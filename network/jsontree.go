@@ -14,15 +14,20 @@ import (
 // model reader can say on which line and column each problem is.
 type jnode struct {
 	kind  byte // '{' object, '[' list, '"' text, '0' number, 'b' true/false, 'n' null
+	b     bool
 	off   int64
 	keys  []string // object keys in file order
 	kOffs []int64  // where each key starts
 	vals  []*jnode // object values, in the order of keys
 	items []*jnode // list items
-	str   string
-	num   json.Number
-	b     bool
+	// str is the text of a string, or the digits of a number as written
+	// (num gives them as a json.Number). One field for both keeps the
+	// node at 128 bytes: a large model file has hundreds of thousands.
+	str string
 }
+
+// num returns a number node's digits.
+func (n *jnode) num() json.Number { return json.Number(n.str) }
 
 // get returns the value of key k of an object.
 func (n *jnode) get(k string) (*jnode, bool) {
@@ -167,7 +172,7 @@ func (p *jparser) value(tok json.Token) (*jnode, error) {
 	case string:
 		n.kind, n.str = '"', t
 	case json.Number:
-		n.kind, n.num = '0', t
+		n.kind, n.str = '0', string(t)
 	case bool:
 		n.kind, n.b = 'b', t
 	case nil:
@@ -257,7 +262,7 @@ func (f *fastParser) value() *jnode {
 		for f.pos < len(f.data) && strings.IndexByte("+-0123456789.eE", f.data[f.pos]) >= 0 {
 			f.pos++
 		}
-		n.kind, n.num = '0', json.Number(f.data[start:f.pos])
+		n.kind, n.str = '0', string(f.data[start:f.pos])
 	}
 	return n
 }

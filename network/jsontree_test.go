@@ -13,8 +13,8 @@ func sameTree(a, b *jnode, path string) string {
 	switch {
 	case a.kind != b.kind || a.off != b.off:
 		return fmt.Sprintf("%s: kind %c at %d, want %c at %d", path, a.kind, a.off, b.kind, b.off)
-	case a.str != b.str || a.num != b.num || a.b != b.b:
-		return fmt.Sprintf("%s: value %q %q %v, want %q %q %v", path, a.str, a.num, a.b, b.str, b.num, b.b)
+	case a.str != b.str || a.b != b.b:
+		return fmt.Sprintf("%s: value %q %v, want %q %v", path, a.str, a.b, b.str, b.b)
 	case len(a.keys) != len(b.keys) || len(a.items) != len(b.items):
 		return fmt.Sprintf("%s: %d keys %d items, want %d keys %d items", path, len(a.keys), len(a.items), len(b.keys), len(b.items))
 	}
