@@ -73,16 +73,6 @@ type LawTerm struct {
 	Weight  int // nonzero
 }
 
-// Weights returns the law's weights as one integer per species of a model
-// with n species (zero for species outside the law).
-func (l ConservationLaw) Weights(n int) []int {
-	w := make([]int, n)
-	for _, t := range l.Terms {
-		w[t.Species] = t.Weight
-	}
-	return w
-}
-
 // ConservationLaws returns an integer basis of the conserved totals of m:
 // the vectors w with w·N = 0, N the stoichiometry over the species that are
 // not fixed. The totals are in amounts (concentration × volume of each
