@@ -94,6 +94,7 @@ type validator struct {
 	usedSp    []bool
 	usedPar   []bool
 	usedAsg   []bool
+	suggested int // didYouMean searches made (see suggest)
 	// lawPar marks parameters used as a rate law's constant, whose sign
 	// fieldValue checks; others are used only in expressions.
 	lawPar []bool
@@ -293,7 +294,7 @@ func (v *validator) reaction(i int) {
 				if ref, ok := v.kinds[t.Species]; ok {
 					errf("equation", t.Col, "%q is a %s, not a species; only species can react", t.Species, sectionWord[ref.section])
 				} else {
-					errf("equation", t.Col, "unknown species %q;%s declare it under species or fix the name", t.Species, didYouMean(t.Species, v.speciesIx))
+					errf("equation", t.Col, "unknown species %q;%s declare it under species or fix the name", t.Species, v.suggest(t.Species, v.speciesIx))
 				}
 			}
 		}
@@ -435,7 +436,7 @@ func (v *validator) fieldValue(i int, item, field string, f Field, val Value) {
 	if ref, ok := v.kinds[val.Name]; ok {
 		errf("%q is a %s; %s needs a parameter name or a number", val.Name, sectionWord[ref.section], f.Label)
 	} else {
-		errf("unknown parameter %q;%s declare it under parameters or give a number", val.Name, didYouMean(val.Name, v.paramIx))
+		errf("unknown parameter %q;%s declare it under parameters or give a number", val.Name, v.suggest(val.Name, v.paramIx))
 	}
 }
 
@@ -483,7 +484,7 @@ func (v *validator) expression(section string, i int, item, field, src string, f
 		if ref, ok := v.kinds[name]; ok {
 			errf(col, "%q is a %s; an expression may use species, parameters, assignments and t", name, sectionWord[ref.section])
 		} else {
-			errf(col, "unknown name %q;%s declare it as a species, parameter or assignment, or fix the name", name, didYouMean(name, v.speciesIx, v.paramIx, v.assignIx))
+			errf(col, "unknown name %q;%s declare it as a species, parameter or assignment, or fix the name", name, v.suggest(name, v.speciesIx, v.paramIx, v.assignIx))
 		}
 	}
 	if len(v.problems) > nerr {
@@ -495,6 +496,20 @@ func (v *validator) expression(section string, i int, item, field, src string, f
 // didYouMean returns ` did you mean "NAME"? Otherwise` for the declared
 // name closest to name by edit distance, when it is at most 2 (and less
 // than the length of name), or "".
+// maxSuggestions bounds the "did you mean" searches of one Check: each
+// compares the name with every declared one, so a large model whose names
+// are all wrong would otherwise cost names × names comparisons.
+const maxSuggestions = 100
+
+// suggest is didYouMean for the first maxSuggestions unknown names.
+func (v *validator) suggest(name string, declared ...map[string]int) string {
+	if v.suggested >= maxSuggestions {
+		return ""
+	}
+	v.suggested++
+	return didYouMean(name, declared...)
+}
+
 func didYouMean(name string, declared ...map[string]int) string {
 	best, bestD := "", 3
 	for _, ix := range declared {

@@ -405,3 +405,29 @@ func funcs() []string {
 	}
 	return out
 }
+
+// A large model whose reactions all name unknown species is still checked
+// in linear work: every reaction gets its located error, and only the
+// first maxSuggestions of them search for a similar name.
+func TestManyUnknownNamesBoundTheSuggestions(t *testing.T) {
+	m := &Model{Parameters: []Parameter{{Name: "k", Value: 1}}}
+	const n = 3000
+	for i := range n {
+		m.Species = append(m.Species, Species{Name: fmt.Sprintf("S%d", i)})
+		m.Reactions = append(m.Reactions, Reaction{Name: fmt.Sprintf("r%d", i), Equation: fmt.Sprintf("X%d ->", i),
+			Rate: NewRate(MassAction, "k", "k")})
+	}
+	_, probs := Check(m)
+	unknown, suggested := 0, 0
+	for _, p := range probs {
+		if strings.Contains(p.Message, "unknown species") {
+			unknown++
+		}
+		if strings.Contains(p.Message, "did you mean") {
+			suggested++
+		}
+	}
+	if unknown != n || suggested != maxSuggestions {
+		t.Errorf("%d unknown-species errors with %d suggestions, want %d with %d", unknown, suggested, n, maxSuggestions)
+	}
+}
