@@ -149,8 +149,10 @@ func (d *decoder) mark(section string, index int, field string, n *jnode) {
 
 func decodeModel(data []byte, file string) (*Model, ErrorList) {
 	d := &decoder{data: data, file: file, src: &sourceMap{file: file, data: data,
-		// about one marked field in every 30 bytes of a model file
-		marks: make([]sourceMark, 0, len(data)/30)}}
+		// a place for each key and each item (an object): about one per
+		// ':' and '{' of the file, counted once so that the list does not
+		// grow by copies
+		marks: make([]sourceMark, 0, min(bytes.Count(data, []byte{':'})+bytes.Count(data, []byte{'{'})+16, len(data)))}}
 	root, err := parseJSON(data)
 	if err != nil {
 		var se *syntaxError

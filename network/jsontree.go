@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 	"unicode/utf8"
 )
@@ -189,6 +190,25 @@ func (p *jparser) value(tok json.Token) (*jnode, error) {
 type fastParser struct {
 	data []byte
 	pos  int
+	// Members and items are gathered on these stacks and copied into
+	// slices of their exact length when an object or list ends, instead
+	// of growing three slices per object.
+	keys  []string
+	kOffs []int64
+	vals  []*jnode
+	items []*jnode
+	slab  []jnode // nodes are carved from here, a block at a time
+}
+
+// node returns a new node starting at off.
+func (f *fastParser) node(off int) *jnode {
+	if len(f.slab) == 0 {
+		f.slab = make([]jnode, 256)
+	}
+	n := &f.slab[0]
+	f.slab = f.slab[1:]
+	n.off = int64(off)
+	return n
 }
 
 func (f *fastParser) space() {
@@ -203,7 +223,7 @@ func (f *fastParser) space() {
 }
 
 func (f *fastParser) value() *jnode {
-	n := &jnode{off: int64(f.pos)}
+	n := f.node(f.pos)
 	switch c := f.data[f.pos]; c {
 	case '{':
 		n.kind = '{'
@@ -213,6 +233,7 @@ func (f *fastParser) value() *jnode {
 			f.pos++
 			return n
 		}
+		base := len(f.keys)
 		for {
 			f.space()
 			koff := int64(f.pos)
@@ -220,14 +241,20 @@ func (f *fastParser) value() *jnode {
 			f.space()
 			f.pos++ // ':'
 			f.space()
-			n.keys, n.kOffs, n.vals = append(n.keys, k), append(n.kOffs, koff), append(n.vals, f.value())
+			v := f.value()
+			f.keys, f.kOffs, f.vals = append(f.keys, k), append(f.kOffs, koff), append(f.vals, v)
 			f.space()
 			c := f.data[f.pos]
 			f.pos++ // ',' or '}'
 			if c == '}' {
-				return n
+				break
 			}
 		}
+		n.keys = slices.Clone(f.keys[base:])
+		n.kOffs = slices.Clone(f.kOffs[base:])
+		n.vals = slices.Clone(f.vals[base:])
+		clear(f.vals[base:]) // no stale pointers on the stack
+		f.keys, f.kOffs, f.vals = f.keys[:base], f.kOffs[:base], f.vals[:base]
 	case '[':
 		n.kind = '['
 		f.pos++
@@ -236,16 +263,21 @@ func (f *fastParser) value() *jnode {
 			f.pos++
 			return n
 		}
+		base := len(f.items)
 		for {
 			f.space()
-			n.items = append(n.items, f.value())
+			v := f.value()
+			f.items = append(f.items, v)
 			f.space()
 			c := f.data[f.pos]
 			f.pos++ // ',' or ']'
 			if c == ']' {
-				return n
+				break
 			}
 		}
+		n.items = slices.Clone(f.items[base:])
+		clear(f.items[base:])
+		f.items = f.items[:base]
 	case '"':
 		n.kind, n.str = '"', f.str()
 	case 't':
