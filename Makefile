@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic cvode-compare probes
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic cvode-compare large-networks probes
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -73,6 +73,14 @@ cvode-compare:
 	$(GO) test -tags sundials -count=1 ./internal/cvodecmp/...
 	$(GO) run -tags sundials ./internal/cvodecmp/cmd -sizes $(CVODE_SIZES) -out bench/cvode-comparison.md -profile bench/solve-stages.md $(CVODE_FLAGS)
 
+# Each stage of a run (read, check, compile, solve, write, conservation
+# laws) on the generated networks of 50 to 20,000 species, with time and
+# peak memory: bench/large-networks.md. Each model runs in its own
+# process, stopped after LARGE_LIMIT or at 8 GB.
+LARGE_LIMIT ?= 5m
+large-networks:
+	$(GO) run ./internal/largenet -limit $(LARGE_LIMIT) -out bench/large-networks.md
+
 FUZZTIME ?= 30s
 fuzz:
 	$(GO) test ./network/expr -run '^$$' -fuzz FuzzParse -fuzztime $(FUZZTIME)
@@ -80,11 +88,13 @@ fuzz:
 	$(GO) test ./network -run '^$$' -fuzz FuzzParseEquation -fuzztime $(FUZZTIME)
 	$(GO) test ./network -run '^$$' -fuzz 'FuzzRead$$' -fuzztime $(FUZZTIME)
 	$(GO) test ./network -run '^$$' -fuzz FuzzLayout -fuzztime $(FUZZTIME)
+	$(GO) test ./network -run '^$$' -fuzz FuzzJSONTree -fuzztime $(FUZZTIME)
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzReadPNGText -fuzztime $(FUZZTIME)
 	$(GO) test ./plotting -run '^$$' -fuzz FuzzSVGMetadata -fuzztime $(FUZZTIME)
 	$(GO) test ./app/run -run '^$$' -fuzz FuzzReadProvenance -fuzztime $(FUZZTIME)
 	$(GO) test ./network/expr -run '^$$' -fuzz FuzzCompile -fuzztime $(FUZZTIME)
 	$(GO) test ./network -run '^$$' -fuzz FuzzOutputTimes -fuzztime $(FUZZTIME)
+	$(GO) test ./solve -run '^$$' -fuzz FuzzSparseLU -fuzztime $(FUZZTIME)
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzSweepSpec -fuzztime $(FUZZTIME)
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzPopulationSpec -fuzztime $(FUZZTIME)
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzMergePart -fuzztime $(FUZZTIME)

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"runtime"
 	"strings"
 	"testing"
 
@@ -49,5 +50,25 @@ func TestRunInfoFirstLineSaysWhy(t *testing.T) {
 	first, _, _ = strings.Cut(runInfoText(o), "\n")
 	if first != "Method: "+o.MethodSummary() {
 		t.Errorf("first line for a chosen method: %q", first)
+	}
+}
+
+// About the last run says how long checking and compiling took and, on
+// Linux, the program's peak memory.
+func TestRunInfoTimesAndMemory(t *testing.T) {
+	m, err := network.Load("../examples/protease-inhibitor.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	o, err := run.Run(context.Background(), m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := runInfoText(o)
+	if !strings.Contains(text, "checking and compiling the model: ") {
+		t.Errorf("no compile time in\n%s", text)
+	}
+	if runtime.GOOS == "linux" && !strings.Contains(text, "Peak memory of the program so far: ") {
+		t.Errorf("no peak memory in\n%s", text)
 	}
 }

@@ -18,6 +18,7 @@ import (
 	"kinetarium/app/run"
 	"kinetarium/editor"
 	"kinetarium/examples"
+	"kinetarium/internal/stages"
 	"kinetarium/network"
 	"kinetarium/solve"
 )
@@ -620,6 +621,15 @@ func runInfoText(o *run.Outcome) string {
 		"Right-hand side evaluations: %d\nJacobian evaluations: %d\nMatrix factorizations: %d\n"+
 		"Steps where a concentration was kept from going negative: %d",
 		roundDuration(o.Elapsed), st.Steps, st.Rejected, st.RHSEvals, st.JacobianEvals, st.Factorizations, st.NonNegFixes)
+	if st.FactorNonzeros > 0 {
+		text += fmt.Sprintf("\nSparse linear algebra: %d entries in the matrix factors (a full species × species table would hold %d)", st.FactorNonzeros, o.Species*o.Species)
+	}
+	if o.Compile > 0 {
+		text += fmt.Sprintf("\nOf the time taken, checking and compiling the model: %s", roundDuration(o.Compile))
+	}
+	if peak := stages.PeakRSS(); peak > 0 {
+		text += fmt.Sprintf("\nPeak memory of the program so far: %.0f MB", stages.MB(peak))
+	}
 	if len(o.Notes) > 0 {
 		text += "\n\nUnits: " + strings.Join(o.Notes, ".\n") + "."
 	}

@@ -3,6 +3,7 @@ package network
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 
@@ -44,6 +45,9 @@ type Net struct {
 	Problems ErrorList
 
 	speciesIx, paramIx, compIx, assignIx map[string]int
+	// checkedAsg maps the name of each sound assignment to its place in
+	// Assignments.
+	checkedAsg map[string]int
 }
 
 // CheckedReaction is a reaction as Check read it.
@@ -91,6 +95,7 @@ type validator struct {
 	usedSp    []bool
 	usedPar   []bool
 	usedAsg   []bool
+	suggested int // didYouMean searches made (see suggest)
 	// lawPar marks parameters used as a rate law's constant, whose sign
 	// fieldValue checks; others are used only in expressions.
 	lawPar []bool
@@ -151,6 +156,10 @@ func Check(m *Model) (*Net, ErrorList) {
 	n := v.net
 	n.Problems = v.problems
 	n.speciesIx, n.paramIx, n.compIx, n.assignIx = v.speciesIx, v.paramIx, v.compIx, v.assignIx
+	n.checkedAsg = make(map[string]int, len(n.Assignments))
+	for k, a := range n.Assignments {
+		n.checkedAsg[a.Name] = k
+	}
 	return n, v.problems
 }
 
@@ -317,7 +326,7 @@ func (v *validator) reaction(i int) {
 				if ref, ok := v.kinds[t.Species]; ok {
 					errf("equation", t.Col, "%q is a %s, not a species; only species can react", t.Species, sectionWord[ref.section])
 				} else {
-					errf("equation", t.Col, "unknown species %q;%s declare it under species or fix the name", t.Species, didYouMean(t.Species, v.speciesIx))
+					errf("equation", t.Col, "unknown species %q;%s declare it under species or fix the name", t.Species, v.suggest(t.Species, v.speciesIx))
 				}
 			}
 		}
@@ -345,18 +354,18 @@ func (v *validator) reaction(i int) {
 	if cr.EqOK {
 		c.Equation = &cr.Equation
 	}
-	uses := map[string]bool{}
+	// A law has a few fields: lists, not maps, for every reaction.
 	cr.uses = law.Check(c)
-	for _, k := range cr.uses {
-		uses[k] = true
+	uses := func(k string) bool { return slices.Contains(cr.uses, k) }
+	lawFields := law.Fields()
+	isField := func(k string) bool {
+		return slices.ContainsFunc(lawFields, func(f Field) bool { return f.Key == k })
 	}
-	fields := map[string]bool{}
 	var tree expr.Node
-	for _, f := range law.Fields() {
-		fields[f.Key] = true
+	for _, f := range lawFields {
 		field := "rate." + f.Key
 		if f.Kind == ExprField {
-			if !uses[f.Key] {
+			if !uses(f.Key) {
 				continue
 			}
 			tree = v.expression("reactions", i, r.Name, field, r.Rate.Expression, f)
@@ -364,7 +373,7 @@ func (v *validator) reaction(i int) {
 		}
 		val := r.Rate.Arg(f.Key)
 		if !val.Set {
-			if uses[f.Key] {
+			if uses(f.Key) {
 				if f.Missing != "" {
 					errf(field, 0, "%s", f.Missing)
 				} else {
@@ -373,7 +382,7 @@ func (v *validator) reaction(i int) {
 			}
 			continue
 		}
-		if !uses[f.Key] {
+		if !uses(f.Key) {
 			if f.Unused != "" {
 				errf(field, 0, "%s", f.Unused)
 			} else {
@@ -383,9 +392,9 @@ func (v *validator) reaction(i int) {
 		}
 		v.fieldValue(i, r.Name, field, f, val)
 	}
-	keys := make([]string, 0, len(r.Rate.Args))
+	var keys []string
 	for k := range r.Rate.Args {
-		if !fields[k] {
+		if !isField(k) {
 			keys = append(keys, k)
 		}
 	}
@@ -393,7 +402,7 @@ func (v *validator) reaction(i int) {
 	for _, k := range keys {
 		errf("rate."+k, 0, "%s is not used by the %s law; remove it", keyLabel(k), law.Title())
 	}
-	if !fields["expression"] && r.Rate.Expression != "" {
+	if !isField("expression") && r.Rate.Expression != "" {
 		errf("rate.expression", 0, "%s does not use an expression; remove it or choose the expression law", law.Name())
 	}
 	if v.nerr > nerr {
@@ -459,7 +468,7 @@ func (v *validator) fieldValue(i int, item, field string, f Field, val Value) {
 	if ref, ok := v.kinds[val.Name]; ok {
 		errf("%q is a %s; %s needs a parameter name or a number", val.Name, sectionWord[ref.section], f.Label)
 	} else {
-		errf("unknown parameter %q;%s declare it under parameters or give a number", val.Name, didYouMean(val.Name, v.paramIx))
+		errf("unknown parameter %q;%s declare it under parameters or give a number", val.Name, v.suggest(val.Name, v.paramIx))
 	}
 }
 
@@ -507,7 +516,7 @@ func (v *validator) expression(section string, i int, item, field, src string, f
 		if ref, ok := v.kinds[name]; ok {
 			errf(col, "%q is a %s; an expression may use species, parameters, assignments and t", name, sectionWord[ref.section])
 		} else {
-			errf(col, "unknown name %q;%s declare it as a species, parameter or assignment, or fix the name", name, didYouMean(name, v.speciesIx, v.paramIx, v.assignIx))
+			errf(col, "unknown name %q;%s declare it as a species, parameter or assignment, or fix the name", name, v.suggest(name, v.speciesIx, v.paramIx, v.assignIx))
 		}
 	}
 	if len(v.problems) > nerr {
@@ -519,6 +528,20 @@ func (v *validator) expression(section string, i int, item, field, src string, f
 // didYouMean returns ` did you mean "NAME"? Otherwise` for the declared
 // name closest to name by edit distance, when it is at most 2 (and less
 // than the length of name), or "".
+// maxSuggestions bounds the "did you mean" searches of one Check: each
+// compares the name with every declared one, so a large model whose names
+// are all wrong would otherwise cost names × names comparisons.
+const maxSuggestions = 100
+
+// suggest is didYouMean for the first maxSuggestions unknown names.
+func (v *validator) suggest(name string, declared ...map[string]int) string {
+	if v.suggested >= maxSuggestions {
+		return ""
+	}
+	v.suggested++
+	return didYouMean(name, declared...)
+}
+
 func didYouMean(name string, declared ...map[string]int) string {
 	best, bestD := "", 3
 	for _, ix := range declared {
@@ -620,6 +643,12 @@ func (v *validator) simulation() {
 // usableInExpressions reports whether name reads as a variable in a rate
 // expression (function names such as exp do not).
 func usableInExpressions(name string) bool {
+	if isName(name) {
+		// A name reads as a variable unless it is a function (the
+		// parser's only objection to one): a lookup, not a parse, for
+		// each of a large model's names.
+		return !expr.IsFunction(name)
+	}
 	_, err := expr.Parse(name)
 	return err == nil
 }

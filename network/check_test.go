@@ -2,6 +2,7 @@ package network
 
 import (
 	"fmt"
+	"kinetarium/network/expr"
 	"math"
 	"strings"
 	"testing"
@@ -383,4 +384,59 @@ func FuzzOutputTimes(f *testing.F) {
 			}
 		}
 	})
+}
+
+// usableInExpressions answers as the expression parser does (the parser
+// is the reference) for every function name and for names that look like
+// numbers or constants.
+func TestUsableInExpressionsAgreesWithParser(t *testing.T) {
+	names := []string{"e", "pi", "inf", "nan", "Inf", "NaN", "t", "E1", "e1", "_", "x_1", "ifle", "exp2", "logx", "1a", "a b", ""}
+	for _, f := range funcs() {
+		names = append(names, f, f+"_", strings.ToUpper(f))
+	}
+	for _, n := range names {
+		_, err := expr.Parse(n)
+		if got, want := usableInExpressions(n), err == nil; got != want {
+			t.Errorf("usableInExpressions(%q) = %v, the parser says %v", n, got, want)
+		}
+	}
+}
+
+// funcs lists the function names the expression language knows, by
+// probing the parser with common names (exp, log, …) and the names of
+// README's function table.
+func funcs() []string {
+	var out []string
+	for _, n := range []string{"exp", "log", "log10", "sqrt", "abs", "sin", "cos", "tan", "min", "max", "pow", "ifle", "hill", "floor", "ceil", "sign", "tanh", "atan", "asin", "acos", "sinh", "cosh", "ln"} {
+		if expr.IsFunction(n) {
+			out = append(out, n)
+		}
+	}
+	return out
+}
+
+// A large model whose reactions all name unknown species is still checked
+// in linear work: every reaction gets its located error, and only the
+// first maxSuggestions of them search for a similar name.
+func TestManyUnknownNamesBoundTheSuggestions(t *testing.T) {
+	m := &Model{Parameters: []Parameter{{Name: "k", Value: 1}}}
+	const n = 3000
+	for i := range n {
+		m.Species = append(m.Species, Species{Name: fmt.Sprintf("S%d", i)})
+		m.Reactions = append(m.Reactions, Reaction{Name: fmt.Sprintf("r%d", i), Equation: fmt.Sprintf("X%d ->", i),
+			Rate: NewRate(MassAction, "k", "k")})
+	}
+	_, probs := Check(m)
+	unknown, suggested := 0, 0
+	for _, p := range probs {
+		if strings.Contains(p.Message, "unknown species") {
+			unknown++
+		}
+		if strings.Contains(p.Message, "did you mean") {
+			suggested++
+		}
+	}
+	if unknown != n || suggested != maxSuggestions {
+		t.Errorf("%d unknown-species errors with %d suggestions, want %d with %d", unknown, suggested, n, maxSuggestions)
+	}
 }

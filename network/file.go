@@ -8,9 +8,11 @@ import (
 	"io"
 	"math"
 	"os"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
 
 	"kinetarium/internal/atomicfile"
 )
@@ -61,29 +63,48 @@ func lineCol(data []byte, off int64) (line, col int) {
 	return line, col
 }
 
-// sourceMap remembers where the items of a model were in its file.
+// sourceMap remembers where the items of a model were in its file. The
+// reader appends the places to a list; the map to look them up is built
+// the first time a problem is to be located (most reads of large models
+// have none, and a map of every field would cost more than the read).
 type sourceMap struct {
-	file string
-	data []byte
-	at   map[string]int64 // "section/index/field" to byte offset
+	file  string
+	data  []byte
+	marks []sourceMark
+	once  sync.Once
+	at    map[sourceKey]int64 // where each item and field starts
 }
 
-func sourceKey(section string, index int, field string) string {
-	return fmt.Sprintf("%s/%d/%s", section, index, field)
+type sourceMark struct {
+	key sourceKey
+	off int64
+}
+
+// sourceKey names a model item's field ("" for the whole item).
+type sourceKey struct {
+	section string
+	index   int
+	field   string
 }
 
 // locate fills in the file, line and column of each problem whose item or
 // field the file holds. A nil map locates nothing.
 func (sm *sourceMap) locate(l ErrorList) {
-	if sm == nil {
+	if sm == nil || len(l) == 0 {
 		return
 	}
+	sm.once.Do(func() {
+		sm.at = make(map[sourceKey]int64, len(sm.marks))
+		for _, mk := range sm.marks {
+			sm.at[mk.key] = mk.off // a later mark of the same field wins
+		}
+	})
 	for i := range l {
 		p := &l[i].Pos
-		off, ok := sm.at[sourceKey(p.Section, p.Index, p.Field)]
+		off, ok := sm.at[sourceKey{p.Section, p.Index, p.Field}]
 		exact := ok
 		if !ok {
-			off, ok = sm.at[sourceKey(p.Section, p.Index, "")]
+			off, ok = sm.at[sourceKey{p.Section, p.Index, ""}]
 		}
 		if !ok {
 			continue
@@ -122,12 +143,16 @@ func (d *decoder) failAt(off int64, path, format string, args ...any) {
 // mark remembers where a model item's field starts.
 func (d *decoder) mark(section string, index int, field string, n *jnode) {
 	if n != nil {
-		d.src.at[sourceKey(section, index, field)] = n.off
+		d.src.marks = append(d.src.marks, sourceMark{sourceKey{section, index, field}, n.off})
 	}
 }
 
 func decodeModel(data []byte, file string) (*Model, ErrorList) {
-	d := &decoder{data: data, file: file, src: &sourceMap{file: file, data: data, at: map[string]int64{}}}
+	d := &decoder{data: data, file: file, src: &sourceMap{file: file, data: data,
+		// a place for each key and each item (an object): about one per
+		// ':' and '{' of the file, counted once so that the list does not
+		// grow by copies
+		marks: make([]sourceMark, 0, min(bytes.Count(data, []byte{':'})+bytes.Count(data, []byte{'{'})+16, len(data)))}}
 	root, err := parseJSON(data)
 	if err != nil {
 		var se *syntaxError
@@ -194,15 +219,21 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			rp := path + ".rate"
 			if ro := d.object(x, rp, keys...); ro != nil {
 				r.Rate.Law = d.optStr(ro, "law", rp)
+				// The reader owns this rate: its fields go straight into
+				// one map (Rate.With would copy the map for each).
+				args := make(map[string]Value, len(ro.keys))
 				for j, k := range ro.keys {
 					if k == "law" || k == "expression" {
 						d.mark("reactions", i, "rate."+k, ro.vals[j])
 						continue
 					}
-					if v, ok := d.value(ro.vals[j], rp+"."+k); ok {
-						r.Rate = r.Rate.With(k, v)
+					if v, ok := d.value(ro.vals[j], rp+"."+k); ok && v.Set {
+						args[k] = v
 					}
 					d.mark("reactions", i, "rate."+k, ro.vals[j])
+				}
+				if len(args) > 0 {
+					r.Rate.Args = args
 				}
 				r.Rate.Expression = d.optStr(ro, "expression", rp)
 				d.mark("reactions", i, "rate", x)
@@ -254,7 +285,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 						*list = append(*list, Change{Target: target, Value: v.str})
 					case '0':
 						if _, ok := d.num(v, path+"."+key+"."+target); ok {
-							*list = append(*list, Change{Target: target, Value: v.num.String()})
+							*list = append(*list, Change{Target: target, Value: v.num().String()})
 						}
 					default:
 						d.fail(v, path+"."+key+"."+target, "expected a number, a parameter name or an expression in quotes, found %s", v.what())
@@ -350,7 +381,7 @@ func (d *decoder) items(top *jnode, key string, allowed []string, item func(i in
 		return
 	}
 	for i, x := range d.array(v, key) {
-		path := fmt.Sprintf("%s[%d]", key, i)
+		path := key + "[" + strconv.Itoa(i) + "]"
 		d.mark(key, i, "", x)
 		o := d.object(x, path, allowed...)
 		if o == nil {
@@ -374,13 +405,22 @@ func (d *decoder) object(n *jnode, path string, allowed ...string) *jnode {
 		d.fail(n, path, "expected an object {...}, found %s", n.what())
 		return nil
 	}
-	seen := map[string]bool{}
+	var seen map[string]bool // for long objects; short ones are searched
+	if len(n.keys) > 16 {
+		seen = make(map[string]bool, len(n.keys))
+	}
 	for i, k := range n.keys {
-		if seen[k] {
+		twice := false
+		if seen != nil {
+			twice = seen[k]
+			seen[k] = true
+		} else {
+			twice = slices.Contains(n.keys[:i], k)
+		}
+		if twice {
 			d.failAt(n.kOffs[i], path, "the key %q appears twice; keep one", k)
 			continue
 		}
-		seen[k] = true
 		known := false
 		for _, a := range allowed {
 			known = known || k == a
@@ -403,6 +443,7 @@ func (d *decoder) array(n *jnode, path string) []*jnode {
 func (d *decoder) str(n *jnode, path string) string {
 	if n.kind != '"' {
 		d.fail(n, path, "expected text in quotes, found %s", n.what())
+		return "" // a number keeps its digits in str
 	}
 	return n.str
 }
@@ -412,9 +453,9 @@ func (d *decoder) num(n *jnode, path string) (float64, bool) {
 		d.fail(n, path, "expected a number, found %s", n.what())
 		return 0, false
 	}
-	f, err := n.num.Float64()
+	f, err := n.num().Float64()
 	if err != nil || math.IsInf(f, 0) {
-		d.fail(n, path, "%s is out of the range of numbers this program handles", n.num)
+		d.fail(n, path, "%s is out of the range of numbers this program handles", n.num())
 		return 0, false
 	}
 	return f, true
@@ -457,7 +498,7 @@ func (d *decoder) notZero(o *jnode, path, key, expected string, def any) {
 	if !ok || n.kind != '0' {
 		return
 	}
-	if f, err := n.num.Float64(); err == nil && f == 0 {
+	if f, err := n.num().Float64(); err == nil && f == 0 {
 		d.fail(n, join(path, key), "0 cannot be honoured; expected %s (leave the key out for the default, %v)", expected, def)
 	}
 }

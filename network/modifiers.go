@@ -2,6 +2,7 @@ package network
 
 import (
 	"math"
+	"slices"
 
 	"kinetarium/network/expr"
 )
@@ -84,12 +85,24 @@ func (n *Net) Modifiers(i int) []Modifier {
 			}
 		}
 	}
-	var out []Modifier
-	for _, s := range n.Model.Species {
-		if _, ok := n.speciesIx[s.Name]; !ok || net[s.Name] != 0 {
-			continue
+	// The candidates are the species read or written on both sides (a
+	// few), in model order: not a pass over every species of the model.
+	var cands []int
+	for name := range read {
+		if j, ok := n.speciesIx[name]; ok {
+			cands = append(cands, j)
 		}
-		if !read[s.Name] && written[s.Name] != 3 {
+	}
+	for name, w := range written {
+		if j, ok := n.speciesIx[name]; ok && w == 3 && !read[name] {
+			cands = append(cands, j)
+		}
+	}
+	slices.Sort(cands)
+	var out []Modifier
+	for _, j := range cands {
+		s := n.Model.Species[j]
+		if net[s.Name] != 0 {
 			continue
 		}
 		out = append(out, Modifier{Species: s.Name, Effect: n.effect(rate, s.Name)})
@@ -97,22 +110,28 @@ func (n *Net) Modifiers(i int) []Modifier {
 	return out
 }
 
-// inlineAssignments writes the assignments out in e.
+// inlineAssignments writes the assignments out in e: only those e reads,
+// directly or through others, each once.
 func (n *Net) inlineAssignments(e expr.Node) expr.Node {
-	byName := map[string]expr.Node{}
-	for _, a := range n.Assignments { // each after those it reads
-		if a.Expr == nil {
-			continue
-		}
-		byName[a.Name] = expr.Substitute(a.Expr, func(name string) (expr.Node, bool) {
-			x, ok := byName[name]
-			return x, ok
-		})
+	if len(n.checkedAsg) == 0 {
+		return e
 	}
-	return expr.Substitute(e, func(name string) (expr.Node, bool) {
-		x, ok := byName[name]
-		return x, ok
-	})
+	done := map[string]expr.Node{}
+	var sub func(name string) (expr.Node, bool)
+	sub = func(name string) (expr.Node, bool) {
+		if x, ok := done[name]; ok {
+			return x, x != nil
+		}
+		k, ok := n.checkedAsg[name]
+		if !ok || n.Assignments[k].Expr == nil {
+			return nil, false
+		}
+		done[name] = nil // sound assignments have no cycles; this guards anyway
+		x := expr.Substitute(n.Assignments[k].Expr, sub)
+		done[name] = x
+		return x, true
+	}
+	return expr.Substitute(e, sub)
 }
 
 // effect finds the sign of ∂rate/∂species at the states Modifiers
@@ -122,37 +141,49 @@ func (n *Net) effect(rate expr.Node, species string) Effect {
 		return Modulates
 	}
 	m := n.Model
-	ns, np := len(m.Species), len(m.Parameters)
+	// Slots for the names the derivative reads only, so that each call
+	// costs the size of the rate, not of the model.
+	d := expr.Simplify(expr.Diff(rate, species))
+	names := expr.Vars(d)
+	local := make(map[string]int, len(names)+1)
+	for _, name := range names {
+		local[name] = len(local)
+	}
+	tslot := len(local)
 	slot := func(name string) (int, bool) {
 		if name == TimeName {
-			return ns + np, true
+			return tslot, true
 		}
-		if j, ok := n.speciesIx[name]; ok {
-			return j, true
-		}
-		if j, ok := n.paramIx[name]; ok {
-			return ns + j, true
-		}
-		return 0, false
+		_, sp := n.speciesIx[name]
+		_, par := n.paramIx[name]
+		k, ok := local[name]
+		return k, ok && (sp || par) // anything else: the effect is not told
 	}
-	prog, err := expr.Compile(expr.Simplify(expr.Diff(rate, species)), slot)
+	prog, err := expr.Compile(d, slot)
 	if err != nil {
 		return Modulates
 	}
-	vars := make([]float64, max(ns+np+1, prog.Slots()))
-	for j, p := range m.Parameters {
-		vars[ns+j] = p.Value
+	vars := make([]float64, max(tslot+1, prog.Slots()))
+	for _, name := range names {
+		if j, ok := n.paramIx[name]; ok {
+			vars[local[name]] = m.Parameters[j].Value
+		}
 	}
 	pos, neg := false, false
 	for state := 0; state < 3; state++ {
-		for j, s := range m.Species {
+		for _, name := range names {
+			j, ok := n.speciesIx[name]
+			if !ok {
+				continue
+			}
+			s := m.Species[j]
 			switch {
 			case state == 0:
-				vars[j] = s.Initial
+				vars[local[name]] = s.Initial
 			case state == 1 && s.Initial != 0:
-				vars[j] = s.Initial
+				vars[local[name]] = s.Initial
 			default:
-				vars[j] = 1
+				vars[local[name]] = 1
 			}
 		}
 		d := prog.Eval(vars)

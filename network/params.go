@@ -20,33 +20,20 @@ func (s *System) ParamDim() int { return len(s.parNames) + len(s.volumes) }
 // volume entries.
 func (s *System) buildParamPattern() {
 	np := len(s.parNames)
-	cols := make([]map[int]bool, s.ParamDim())
-	for j := range cols {
-		cols[j] = map[int]bool{}
-	}
+	var major, minor []int // column (parameter or volume), row (species)
 	for _, r := range s.rx {
 		for c := r.c0; c < r.c1; c++ {
 			i := s.cSp[c]
 			for d := r.p0; d < r.p1; d++ {
-				cols[s.depPar[d]][i] = true
+				major, minor = append(major, s.depPar[d]), append(minor, i)
 			}
 			if sc := s.spComp[i]; sc != r.comp {
-				cols[np+r.comp][i] = true
-				cols[np+sc][i] = true
+				major, minor = append(major, np+r.comp), append(minor, i)
+				major, minor = append(major, np+sc), append(minor, i)
 			}
 		}
 	}
-	s.pColPtr = make([]int, len(cols)+1)
-	s.pRowIdx = nil
-	for j, col := range cols {
-		rows := make([]int, 0, len(col))
-		for i := range col {
-			rows = append(rows, i)
-		}
-		sort.Ints(rows)
-		s.pRowIdx = append(s.pRowIdx, rows...)
-		s.pColPtr[j+1] = len(s.pRowIdx)
-	}
+	s.pColPtr, s.pRowIdx = compressed(s.ParamDim(), major, minor, false)
 	at := func(i, j int) int {
 		rows := s.pRowIdx[s.pColPtr[j]:s.pColPtr[j+1]]
 		return s.pColPtr[j] + sort.SearchInts(rows, i)

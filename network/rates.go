@@ -77,7 +77,7 @@ func (v *validator) rates() {
 			errf("name", "the rate needs the name of the species or parameter it changes")
 			ok = false
 		} else {
-			errf("name", "unknown species or parameter %q;%s declare it or fix the name", r.Name, didYouMean(r.Name, v.speciesIx, v.paramIx))
+			errf("name", "unknown species or parameter %q;%s declare it or fix the name", r.Name, v.suggest(r.Name, v.speciesIx, v.paramIx))
 			ok = false
 		}
 		cr.Expr = v.expression("rates", i, r.Name, "expression", r.Expression, f)

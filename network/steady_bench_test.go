@@ -21,7 +21,8 @@ func lawsOf(b *testing.B, m *Model, s *System) *mat.Dense {
 	}
 	g := mat.NewDense(len(laws), s.Dim(), nil)
 	for k, l := range laws {
-		for i, w := range l.Weights {
+		for _, lt := range l.Terms {
+			i, w := lt.Species, lt.Weight
 			g.Set(k, i, float64(w)*s.AmountVolume(s.SpeciesCompartment(i)))
 		}
 	}

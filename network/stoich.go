@@ -2,9 +2,7 @@ package network
 
 import (
 	"fmt"
-	"math"
 	"math/big"
-	"strconv"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
@@ -60,128 +58,38 @@ func (net *Net) Stoichiometry() (species []string, reactions []string, n *mat.De
 // ConservationLaw is a weighted sum of species amounts that no reaction
 // changes.
 type ConservationLaw struct {
-	// Weights has one integer per species of the model, in model order
-	// (zero for fixed species and species outside the law).
-	Weights []int
+	// Terms are the species of the law with their integer weights, in
+	// model order; fixed species and species outside the law are left
+	// out.
+	Terms []LawTerm
 	// Text is the law in words, e.g. "E + ES = constant" or
 	// "2 A + B = constant".
 	Text string
+}
+
+// LawTerm is one species of a conservation law and its weight.
+type LawTerm struct {
+	Species int // index in Model.Species
+	Weight  int // nonzero
 }
 
 // ConservationLaws returns an integer basis of the conserved totals of m:
 // the vectors w with w·N = 0, N the stoichiometry over the species that are
 // not fixed. The totals are in amounts (concentration × volume of each
 // species' compartment): Σ w_i·V_i·[i] stays constant. Their number is the
-// number of non-fixed species minus the rank of N. The basis is chosen with
-// few negative weights where simple combinations allow. Coefficients are
-// taken as the decimals they are written as (0.1 is 1/10). A law whose
-// integer weights do not fit in an int (coefficients spanning more than
-// about 18 orders of magnitude) is left out rather than listed wrongly.
+// number of non-fixed species minus the rank of N. The basis is the one
+// read from the reduced row echelon form of Nᵀ with the species in model
+// order, then changed with few negative weights where simple combinations
+// allow. Coefficients are taken as the decimals they are written as (0.1
+// is 1/10). A law whose integer weights do not fit in an int (coefficients
+// spanning more than about 18 orders of magnitude) is left out rather than
+// listed wrongly.
+//
+// The work grows with the number of nonzero stoichiometric coefficients,
+// not with the square of the number of species (see laws.go).
 func (m *Model) ConservationLaws() []ConservationLaw {
 	net, _ := Check(m)
 	return net.ConservationLaws()
-}
-
-// ConservationLaws returns the conserved totals of the checked network, as
-// Model.ConservationLaws describes.
-func (net *Net) ConservationLaws() []ConservationLaw {
-	m := net.Model
-	species, _, n := net.Stoichiometry()
-	var free []int // non-fixed species
-	for i, s := range m.Species {
-		if !s.Fixed {
-			free = append(free, i)
-		}
-	}
-	if len(free) == 0 {
-		return nil
-	}
-	nr := len(m.Reactions)
-	// A = Nᵀ restricted to free species, as rationals.
-	rows := make([][]*big.Rat, nr)
-	for j := range rows {
-		rows[j] = make([]*big.Rat, len(free))
-		for k, i := range free {
-			x := 0.0
-			if n != nil {
-				x = n.At(i, j)
-			}
-			r := new(big.Rat)
-			if !math.IsNaN(x) && !math.IsInf(x, 0) {
-				// The shortest decimal that reads back as x: a coefficient
-				// written 0.1 is the rational 1/10, not the binary
-				// fraction nearest to it.
-				r.SetString(strconv.FormatFloat(x, 'g', -1, 64))
-			}
-			rows[j][k] = r
-		}
-	}
-	// Reduced row echelon form.
-	var pivots []int
-	pr := 0
-	for col := 0; col < len(free) && pr < nr; col++ {
-		sel := -1
-		for r := pr; r < nr; r++ {
-			if rows[r][col].Sign() != 0 {
-				sel = r
-				break
-			}
-		}
-		if sel < 0 {
-			continue
-		}
-		rows[pr], rows[sel] = rows[sel], rows[pr]
-		inv := new(big.Rat).Inv(rows[pr][col])
-		for k := range rows[pr] {
-			rows[pr][k].Mul(rows[pr][k], inv)
-		}
-		for r := 0; r < nr; r++ {
-			if r == pr || rows[r][col].Sign() == 0 {
-				continue
-			}
-			f := new(big.Rat).Set(rows[r][col])
-			for k := range rows[r] {
-				rows[r][k].Sub(rows[r][k], new(big.Rat).Mul(f, rows[pr][k]))
-			}
-		}
-		pivots = append(pivots, col)
-		pr++
-	}
-	isPivot := make([]bool, len(free))
-	for _, p := range pivots {
-		isPivot[p] = true
-	}
-	var basis [][]*big.Int
-	for fc := range free {
-		if isPivot[fc] {
-			continue
-		}
-		w := make([]*big.Rat, len(free))
-		for k := range w {
-			w[k] = new(big.Rat)
-		}
-		w[fc].SetInt64(1)
-		for r, p := range pivots {
-			w[p].Neg(rows[r][fc])
-		}
-		basis = append(basis, integerVector(w))
-	}
-	improveSigns(basis)
-	shrink(basis)
-	var laws []ConservationLaw
-basis:
-	for _, b := range basis {
-		law := ConservationLaw{Weights: make([]int, len(m.Species))}
-		for k, i := range free {
-			if !b[k].IsInt64() || int64(int(b[k].Int64())) != b[k].Int64() {
-				continue basis // a weight too large for an int: not listed
-			}
-			law.Weights[i] = int(b[k].Int64())
-		}
-		law.Text = lawText(m, species, law.Weights)
-		laws = append(laws, law)
-	}
-	return laws
 }
 
 // integerVector scales w to coprime integers with a positive first nonzero
@@ -230,63 +138,162 @@ func negatives(v []*big.Int) int {
 
 // improveSigns adds small multiples of the other basis vectors to each
 // vector, and flips signs, while that reduces its number of negative
-// entries. The span is unchanged (unimodular steps).
+// entries. The span is unchanged (unimodular steps). Vectors are taken in
+// order, and for each the others in order, the first multiple of 1, −1,
+// 2, −2, 3, −3 that helps being kept. The nonzero places and the number of
+// negative entries of each vector are kept beside it, so that a pair
+// without a species in common (whose sum never has fewer negatives) costs
+// a merge of two short lists, not a pass over the cluster.
 func improveSigns(basis [][]*big.Int) {
-	flip := func(v []*big.Int) {
-		if negatives(v) > len(v)-negatives(v)-zeros(v) {
+	lv := newLawVecs(basis)
+	for a, v := range basis {
+		if lv.neg[a] > len(lv.supp[a])-lv.neg[a] {
 			for _, x := range v {
 				x.Neg(x)
 			}
+			lv.update(a)
 		}
 	}
-	for _, v := range basis {
-		flip(v)
-	}
+	mults := []*big.Int{big.NewInt(1), big.NewInt(-1), big.NewInt(2), big.NewInt(-2), big.NewInt(3), big.NewInt(-3)}
+	tmp := new(big.Int)
 	for changed, rounds := true, 0; changed && rounds < 10; rounds++ {
 		changed = false
 		for a := range basis {
-			if negatives(basis[a]) == 0 {
+			if lv.neg[a] == 0 {
 				continue
 			}
 			for b := range basis {
-				if a == b {
-					continue
+				if a == b || !overlapping(lv.supp[a], lv.supp[b]) {
+					continue // the sum has the negatives of both, or more
 				}
-				for _, mult := range []int64{1, -1, 2, -2, 3, -3} {
-					cand := make([]*big.Int, len(basis[a]))
-					for k := range cand {
-						cand[k] = new(big.Int).Add(basis[a][k], new(big.Int).Mul(big.NewInt(mult), basis[b][k]))
+				va, vb := basis[a], basis[b]
+				for _, mult := range mults {
+					// Count the signs of a + mult·b before building it:
+					// on a's places, then on b's places outside a's.
+					neg, pos := 0, 0
+					count := func(sg int) {
+						switch {
+						case sg < 0:
+							neg++
+						case sg > 0:
+							pos++
+						}
 					}
-					if zeros(cand) == len(cand) {
+					for _, k := range lv.supp[a] {
+						sg := va[k].Sign()
+						if vb[k].Sign() != 0 {
+							tmp.Mul(mult, vb[k])
+							sg = tmp.Add(tmp, va[k]).Sign()
+						}
+						count(sg)
+					}
+					for _, k := range lv.supp[b] {
+						if va[k].Sign() == 0 {
+							count(vb[k].Sign() * mult.Sign())
+						}
+					}
+					if neg == 0 && pos == 0 {
 						continue
 					}
-					flip(cand)
-					if negatives(cand) < negatives(basis[a]) {
-						basis[a] = cand
-						changed = true
-						break
+					if min(neg, pos) >= lv.neg[a] { // a flip keeps the fewer
+						continue
 					}
+					cand := make([]*big.Int, len(va))
+					for k := range cand {
+						cand[k] = new(big.Int).Add(va[k], new(big.Int).Mul(mult, vb[k]))
+					}
+					if neg > pos {
+						for _, x := range cand {
+							x.Neg(x)
+						}
+					}
+					basis[a] = cand
+					lv.update(a)
+					changed = true
+					break
 				}
 			}
 		}
 	}
 }
 
+// lawVecs keeps, for each vector of a basis, its nonzero places in
+// increasing order and its number of negative entries.
+type lawVecs struct {
+	basis [][]*big.Int
+	supp  [][]int
+	neg   []int
+}
+
+func newLawVecs(basis [][]*big.Int) *lawVecs {
+	lv := &lawVecs{basis: basis, supp: make([][]int, len(basis)), neg: make([]int, len(basis))}
+	for a := range basis {
+		lv.update(a)
+	}
+	return lv
+}
+
+// update reads vector a again.
+func (lv *lawVecs) update(a int) {
+	lv.supp[a], lv.neg[a] = lv.supp[a][:0], 0
+	for k, x := range lv.basis[a] {
+		if sg := x.Sign(); sg != 0 {
+			lv.supp[a] = append(lv.supp[a], k)
+			if sg < 0 {
+				lv.neg[a]++
+			}
+		}
+	}
+}
+
+// overlapping reports whether two increasing lists share an element.
+func overlapping(a, b []int) bool {
+	for i, j := 0, 0; i < len(a) && j < len(b); {
+		switch {
+		case a[i] == b[j]:
+			return true
+		case a[i] < b[j]:
+			i++
+		default:
+			j++
+		}
+	}
+	return false
+}
+
+// subset reports whether the increasing list b is contained in a.
+func subset(b, a []int) bool {
+	i := 0
+	for _, x := range b {
+		for i < len(a) && a[i] < x {
+			i++
+		}
+		if i == len(a) || a[i] != x {
+			return false
+		}
+	}
+	return true
+}
+
 // shrink subtracts one basis vector from another wherever the result stays
 // non-negative, so that laws such as "E + ES" do not carry others along.
+// Vectors are taken in order, and for each the others in order. b fits
+// under a only where b's nonzero places are among a's, which is checked
+// first on the lists of places.
 func shrink(basis [][]*big.Int) {
+	lv := newLawVecs(basis)
 	for changed, rounds := true, 0; changed && rounds < 100; rounds++ {
 		changed = false
 		for a := range basis {
-			if negatives(basis[a]) > 0 {
+			if lv.neg[a] > 0 {
 				continue
 			}
 			for b := range basis {
-				if a == b || negatives(basis[b]) > 0 {
+				if a == b || lv.neg[b] > 0 || !subset(lv.supp[b], lv.supp[a]) {
 					continue
 				}
-				ok, same := true, true
-				for k := range basis[a] {
+				ok, same := true, len(lv.supp[a]) == len(lv.supp[b])
+				for _, k := range lv.supp[a] {
 					c := basis[a][k].Cmp(basis[b][k])
 					if c < 0 {
 						ok = false
@@ -297,9 +304,10 @@ func shrink(basis [][]*big.Int) {
 				if !ok || same {
 					continue
 				}
-				for k := range basis[a] {
+				for _, k := range lv.supp[b] {
 					basis[a][k] = new(big.Int).Sub(basis[a][k], basis[b][k])
 				}
+				lv.update(a)
 				changed = true
 			}
 		}
@@ -316,14 +324,13 @@ func zeros(v []*big.Int) int {
 	return c
 }
 
-func lawText(m *Model, species []string, w []int) string {
+// lawText writes the law with terms ts in words.
+func lawText(m *Model, ts []LawTerm) string {
 	var b strings.Builder
-	comps := map[string]bool{}
-	for i, x := range w {
-		if x == 0 {
-			continue
-		}
-		comps[m.Species[i].Compartment] = true
+	mixed := false
+	for _, t := range ts {
+		mixed = mixed || m.Species[t.Species].Compartment != m.Species[ts[0].Species].Compartment
+		x := t.Weight
 		a := x
 		switch {
 		case b.Len() == 0 && x < 0:
@@ -338,10 +345,10 @@ func lawText(m *Model, species []string, w []int) string {
 		if a != 1 {
 			fmt.Fprintf(&b, "%d ", a)
 		}
-		b.WriteString(species[i])
+		b.WriteString(m.Species[t.Species].Name)
 	}
 	b.WriteString(" = constant")
-	if len(comps) > 1 {
+	if mixed {
 		b.WriteString(" (in amounts: concentration × volume)")
 	}
 	return b.String()

@@ -53,7 +53,8 @@ func checkLaws(t *testing.T, m *Model) []ConservationLaw {
 		s.RHS(0, y, f)
 		for _, law := range laws {
 			sum, scale := 0.0, 0.0
-			for i, w := range law.Weights {
+			for _, lt := range law.Terms {
+				i, w := lt.Species, lt.Weight
 				v := s.AmountVolume(s.SpeciesCompartment(i))
 				sum += float64(w) * v * f[i]
 				scale += math.Abs(float64(w) * v * f[i])
@@ -143,7 +144,8 @@ func TestConservationDecimalCoefficients(t *testing.T) {
 		var texts []string
 		for _, l := range laws {
 			texts = append(texts, l.Text)
-			for i, w := range l.Weights {
+			for _, lt := range l.Terms {
+				i, w := lt.Species, lt.Weight
 				if w > 1e6 || w < -1e6 {
 					t.Errorf("%s: law %q has weight %d for %s; expected small decimal-derived weights", tc.eq, l.Text, w, m.Species[i].Name)
 				}

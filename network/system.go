@@ -3,6 +3,7 @@ package network
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 
 	"gonum.org/v1/gonum/mat"
@@ -243,7 +244,17 @@ func (net *Net) Compile() (*System, error) {
 	}
 	m := net.Model
 	statePars := net.stateParameters()
-	s := &System{n: len(m.Species) + len(statePars), nSpecies: len(m.Species), parIx: map[string]int{}, spIx: map[string]int{}}
+	s := &System{n: len(m.Species) + len(statePars), nSpecies: len(m.Species),
+		parIx: make(map[string]int, len(m.Parameters)), spIx: make(map[string]int, len(m.Species)+len(statePars))}
+	// Sized once: a large network would otherwise copy each list many
+	// times as it grows.
+	s.names = make([]string, 0, s.n)
+	s.initial = make([]float64, 0, s.n)
+	s.fixed = make([]bool, 0, s.n)
+	s.spComp = make([]int, 0, s.n)
+	s.parNames = make([]string, 0, len(m.Parameters))
+	s.rxNames = make([]string, 0, len(net.Reactions))
+	s.rx = make([]rxn, 0, len(net.Reactions)+len(net.Rates))
 	b := &builder{s: s, net: net}
 	n := s.n
 	compIx := map[string]int{}
@@ -300,6 +311,8 @@ func (net *Net) Compile() (*System, error) {
 		s.parIx[p.Name] = i
 		s.vars[n+i] = p.Value
 	}
+	var order []int
+	var coefs []float64
 	for ci := range net.Reactions {
 		cr := &net.Reactions[ci]
 		s.rxNames = append(s.rxNames, cr.Name)
@@ -327,26 +340,26 @@ func (net *Net) Compile() (*System, error) {
 		r.d1, r.p1 = len(s.depSp), len(s.depPar)
 		// Contributions: net coefficient of each non-fixed species.
 		r.c0 = len(s.cSp)
-		net := map[int]float64{}
-		var order []int
-		for _, t := range eq.Reactants {
-			sp := s.spIx[t.Species]
-			if _, ok := net[sp]; !ok {
-				order = append(order, sp)
+		// A reaction names a few species: a list, not a map.
+		order, coefs = order[:0], coefs[:0]
+		addNet := func(name string, c float64) {
+			sp := s.spIx[name]
+			if k := slices.Index(order, sp); k >= 0 {
+				coefs[k] += c
+				return
 			}
-			net[sp] -= t.Coef
+			order, coefs = append(order, sp), append(coefs, c)
+		}
+		for _, t := range eq.Reactants {
+			addNet(t.Species, -t.Coef)
 		}
 		for _, t := range eq.Products {
-			sp := s.spIx[t.Species]
-			if _, ok := net[sp]; !ok {
-				order = append(order, sp)
-			}
-			net[sp] += t.Coef
+			addNet(t.Species, t.Coef)
 		}
-		for _, sp := range order {
-			if net[sp] != 0 && !s.fixed[sp] {
+		for k, sp := range order {
+			if coefs[k] != 0 && !s.fixed[sp] {
 				s.cSp = append(s.cSp, sp)
-				s.cNet = append(s.cNet, net[sp])
+				s.cNet = append(s.cNet, coefs[k])
 			}
 		}
 		r.c1 = len(s.cSp)
@@ -384,27 +397,17 @@ func (s *System) updateScales() {
 // buildPattern builds the CSR pattern of the Jacobian (every diagonal entry
 // included) and the position of each (contribution, dependency) pair.
 func (s *System) buildPattern() {
-	rows := make([]map[int]bool, s.n)
-	for i := range rows {
-		rows[i] = map[int]bool{i: true}
-	}
+	var major, minor []int
 	for _, r := range s.rx {
 		for c := r.c0; c < r.c1; c++ {
 			for d := r.d0; d < r.d1; d++ {
-				rows[s.cSp[c]][s.depSp[d]] = true
+				major = append(major, s.cSp[c])
+				minor = append(minor, s.depSp[d])
 			}
 		}
 	}
-	s.rowPtr = make([]int, s.n+1)
-	for i, row := range rows {
-		cols := make([]int, 0, len(row))
-		for j := range row {
-			cols = append(cols, j)
-		}
-		sort.Ints(cols)
-		s.colIdx = append(s.colIdx, cols...)
-		s.rowPtr[i+1] = len(s.colIdx)
-	}
+	s.rowPtr, s.colIdx = compressed(s.n, major, minor, true)
+	s.jpos = s.jpos[:0]
 	for ri := range s.rx {
 		r := &s.rx[ri]
 		r.j0 = len(s.jpos)

@@ -51,6 +51,18 @@ type SparsePatternSystem interface {
 	JacobianPattern() (rowPtr, colIdx []int)
 }
 
+// SparseJacobianSystem is a SparsePatternSystem that writes the values of
+// its Jacobian on the pattern. When the driver chooses the sparse LU (see
+// NewSolver) the implicit methods then keep J in that form and assemble
+// their iteration matrices, real and complex, straight into the sparse
+// factorization, so that no n×n array exists for large systems.
+type SparseJacobianSystem interface {
+	SparsePatternSystem
+	// JacobianCSR writes ∂f/∂y at (t, y) into vals in the order of
+	// JacobianPattern (duplicate positions are summed).
+	JacobianCSR(t float64, y []float64, vals []float64)
+}
+
 // PartlyNonNegativeSystem is implemented by a System some of whose state
 // variables may take either sign (a reaction network's parameters carried
 // in its state, say): Settings.NonNegative keeps only the components for
@@ -128,12 +140,16 @@ type Stats struct {
 	JacobianEvals int // evaluations of the Jacobian
 	// ParamJacobianEvals counts evaluations of ∂f/∂q (sensitivities).
 	ParamJacobianEvals int
-	Factorizations     int           // LU factorizations
-	LinearSolves       int           // solves with a factorized matrix
-	NonNegFixes        int           // steps where the non-negativity projection acted
-	Methods            []Method      // methods used, in order of first use
-	Choice             string        // for Auto: what was chosen and why
-	Wall               time.Duration // wall time of the solve
+	Factorizations     int // LU factorizations
+	LinearSolves       int // solves with a factorized matrix
+	NonNegFixes        int // steps where the non-negativity projection acted
+	// FactorNonzeros is the number of entries of the largest sparse LU
+	// factors the solve kept (SparseLU.FactorNonzeros), 0 when every
+	// factorization was dense.
+	FactorNonzeros int
+	Methods        []Method      // methods used, in order of first use
+	Choice         string        // for Auto: what was chosen and why
+	Wall           time.Duration // wall time of the solve
 }
 
 // Result is the solution at the output times.

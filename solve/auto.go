@@ -121,17 +121,5 @@ func methodTitle(m Method) string {
 func (sv *Solver) fastestRate(t float64, y []float64) float64 {
 	j := sv.ros.jac
 	sv.p.jac(t, y, j)
-	raw := j.RawMatrix()
-	var rate float64
-	for i := 0; i < sv.n; i++ {
-		var s float64
-		for _, v := range raw.Data[i*raw.Stride : i*raw.Stride+sv.n] {
-			s += math.Abs(v)
-		}
-		if math.IsNaN(s) {
-			return math.NaN()
-		}
-		rate = math.Max(rate, s)
-	}
-	return rate
+	return j.maxRowSum(sv.n)
 }

@@ -15,8 +15,6 @@ package solve
 import (
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/mat"
 )
 
 // stepper is one integration method. The driver (Solver) owns the output
@@ -56,8 +54,15 @@ type problem struct {
 	stats   *Stats
 	linear  func(n int) LinearSolver // nil: dense LU
 
-	sparse      *SparseLU // symbolic analysis shared by the steppers, or nil
-	sparseTried bool      // sparse has been decided
+	// sparse is the symbolic analysis of the Jacobian's pattern shared by
+	// the steppers' sparse factorizations, or nil for dense LU; csr, when
+	// not nil, is the system as a SparseJacobianSystem: the sparse path,
+	// on which no n×n array exists.
+	sparse *luSymbolic
+	csr    SparseJacobianSystem
+	// sparseLUs are the real sparse factorizations of the steppers, for
+	// Stats.FactorNonzeros.
+	sparseLUs []*SparseLU
 
 	sens *sensWork // forward sensitivities, or nil
 
@@ -70,6 +75,12 @@ func newProblem(sys System, s Settings, stats *Stats) *problem {
 	n := sys.Dim()
 	p := &problem{sys: sys, n: n, rtol: s.RTol, nonneg: s.NonNegative, maxStep: s.MaxStep, stats: stats, linear: s.LinearSolver}
 	p.setSystem(sys)
+	if p.linear == nil {
+		p.sparse = sparseFor(sys)
+		if sj, ok := sys.(SparseJacobianSystem); ok && p.sparse != nil {
+			p.csr = sj
+		}
+	}
 	if p.rtol <= 0 {
 		p.rtol = 1e-6
 	}
@@ -98,6 +109,9 @@ func (p *problem) setSystem(sys System) {
 	if a, ok := sys.(AutonomousSystem); ok {
 		p.autonomous = a.Autonomous()
 	}
+	if p.csr != nil {
+		p.csr = sys.(SparseJacobianSystem) // same pattern (Solver.SetSystem)
+	}
 }
 
 // isSigned reports whether component i may be negative although
@@ -108,12 +122,6 @@ func (p *problem) isSigned(i int) bool { return p.keep != nil && !p.keep[i] }
 func (p *problem) rhs(t float64, y, dy []float64) {
 	p.stats.RHSEvals++
 	p.sys.RHS(t, y, dy)
-}
-
-// jac evaluates the Jacobian and counts it.
-func (p *problem) jac(t float64, y []float64, j *mat.Dense) {
-	p.stats.JacobianEvals++
-	p.sys.Jacobian(t, y, j)
 }
 
 // errNorm is the weighted RMS norm of e with scale atol + rtol·max(|y0|, |y1|).
@@ -275,25 +283,6 @@ type LinearSolver interface {
 	Factor(m []float64) error
 	// Solve overwrites b with the solution of M x = b.
 	Solve(b []float64)
-}
-
-// newLinear returns the problem's linear solver for n×n systems: the one
-// of Settings.LinearSolver, else a SparseLU for a large, sparse
-// SparsePatternSystem (see sparseFor), else the dense LU.
-func (p *problem) newLinear() LinearSolver {
-	if p.linear != nil {
-		if ls := p.linear(p.n); ls != nil {
-			return ls
-		}
-	}
-	if p.sparse == nil && !p.sparseTried {
-		p.sparseTried = true
-		p.sparse = sparseFor(p.sys)
-	}
-	if p.sparse != nil {
-		return p.sparse.share()
-	}
-	return NewLU(p.n)
 }
 
 // LU is an allocation-free dense LU factorization with partial pivoting,

@@ -1,10 +1,6 @@
 package solve
 
-import (
-	"math"
-
-	"gonum.org/v1/gonum/mat"
-)
+import "math"
 
 // Radau IIA with three stages (order 5) after Hairer & Wanner, Solving
 // Ordinary Differential Equations II, 2nd ed., 1996, section IV.8, and the
@@ -94,14 +90,12 @@ type radau struct {
 	dc1, dc2 []float64 // dense output: y(tCur + s·hOld) = y + s(dc1 + (s−c2+1)(dc2 + (s−c1+1)dc3))
 	dc3      []float64
 
-	jac      *mat.Dense
-	e1       []float64 // γ/h·I − J, row-major
-	e2r, e2i []float64 // (α+iβ)/h·I − J
-	lu       LinearSolver
-	clu      *cLU
-	hFact    float64 // h of the current factorizations; 0 when none
-	jacFresh bool    // the Jacobian was evaluated at (t, y)
-	needJac  bool    // evaluate the Jacobian before the next attempt
+	jac      *jacobian
+	lu       *iterMatrix  // γ/h·I − J
+	clu      *cIterMatrix // (α+iβ)/h·I − J
+	hFact    float64      // h of the current factorizations; 0 when none
+	jacFresh bool         // the Jacobian was evaluated at (t, y)
+	needJac  bool         // evaluate the Jacobian before the next attempt
 
 	theta, faccon   float64
 	dynold, thqold  float64
@@ -132,10 +126,9 @@ func newRadau(p *problem) stepper {
 	r.w1, r.w2, r.w3 = vec(), vec(), vec()
 	r.tmp, r.ynw = vec(), vec()
 	r.dc1, r.dc2, r.dc3 = vec(), vec(), vec()
-	r.jac = mat.NewDense(max(n, 1), max(n, 1), nil)
-	r.e1, r.e2r, r.e2i = make([]float64, n*n), make([]float64, n*n), make([]float64, n*n)
-	r.lu = p.newLinear()
-	r.clu = newCLU(n)
+	r.jac = p.newJacobian()
+	r.lu = p.newIterMatrix()
+	r.clu = p.newCIterMatrix()
 
 	r.rtol = 0.1 * math.Pow(p.rtol, 2.0/3)
 	for i := range r.atol {
@@ -207,29 +200,13 @@ func (r *radau) dense(t float64, out []float64) {
 
 // factor forms and factorizes both iteration matrices for step h.
 func (r *radau) factor(h float64) error {
-	n := r.n
 	fac1, alphn, betan := radU1/h, radAlpha/h, radBeta/h
-	jd := r.jac.RawMatrix()
-	for i := 0; i < n; i++ {
-		row := jd.Data[i*jd.Stride : i*jd.Stride+n]
-		e1 := r.e1[i*n : (i+1)*n]
-		er := r.e2r[i*n : (i+1)*n]
-		ei := r.e2i[i*n : (i+1)*n]
-		for j, v := range row {
-			e1[j] = -v
-			er[j] = -v
-			ei[j] = 0
-		}
-		e1[i] += fac1
-		er[i] += alphn
-		ei[i] = betan
-	}
 	r.hFact = 0
 	r.p.stats.Factorizations += 2
-	if err := r.lu.Factor(r.e1); err != nil {
+	if err := r.lu.factor(fac1, -1, r.jac); err != nil {
 		return err
 	}
-	if err := r.clu.factor(r.e2r, r.e2i); err != nil {
+	if err := r.clu.factor(alphn, betan, -1, r.jac); err != nil {
 		return err
 	}
 	r.hFact = h
@@ -298,7 +275,7 @@ func (r *radau) newton(h float64) (ok bool, shrink float64) {
 			r.z2[i] = b2 + s2*alphn - s3*betan
 			r.z3[i] = b3 + s3*alphn + s2*betan
 		}
-		r.lu.Solve(r.z1)
+		r.lu.solve(r.z1)
 		r.clu.solve(r.z2, r.z3)
 		r.p.stats.LinearSolves += 2
 		var dyno float64
@@ -356,7 +333,7 @@ func (r *radau) estimate(h float64) float64 {
 		f2[i] = hee1*r.z1[i] + hee2*r.z2[i] + hee3*r.z3[i]
 		r.tmp[i] = f2[i] + r.f0[i]
 	}
-	r.lu.Solve(r.tmp)
+	r.lu.solve(r.tmp)
 	r.p.stats.LinearSolves++
 	err := math.Max(r.wnorm(r.tmp), 1e-10)
 	if err < 1 || !(r.first || r.reject) {
@@ -372,7 +349,7 @@ func (r *radau) estimate(h float64) float64 {
 	for i := 0; i < n; i++ {
 		r.tmp[i] = f1[i] + f2[i]
 	}
-	r.lu.Solve(r.tmp)
+	r.lu.solve(r.tmp)
 	r.p.stats.LinearSolves++
 	e := r.wnorm(r.tmp)
 	if math.IsNaN(e) {

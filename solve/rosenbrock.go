@@ -3,8 +3,6 @@ package solve
 import (
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/mat"
 )
 
 // RODAS4 coefficients: Hairer & Wanner, Solving Ordinary Differential
@@ -100,12 +98,11 @@ type rosenbrock struct {
 	cont   [2][]float64 // dense-output coefficients
 	errVec []float64
 
-	jac      *mat.Dense
-	m        []float64 // I/(γh) − J, row-major
-	lu       LinearSolver
-	haveJac  bool    // J, f0 (and ft) are valid at (t, y)
-	luH      float64 // step size the factorization belongs to, 0 if none
-	hAcc     float64 // last accepted step and its error, for the predictive controller
+	jac      *jacobian
+	lu       *iterMatrix // I/(γh) − J
+	haveJac  bool        // J, f0 (and ft) are valid at (t, y)
+	luH      float64     // step size the factorization belongs to, 0 if none
+	hAcc     float64     // last accepted step and its error, for the predictive controller
 	errAcc   float64
 	accepted int
 	rejected bool
@@ -117,7 +114,7 @@ type rosenbrock struct {
 // newRosenbrock allocates the work space of a RODAS4 stepper.
 func newRosenbrock(p *problem) *rosenbrock {
 	n := p.n
-	r := &rosenbrock{p: p, n: n, jac: mat.NewDense(n, n, nil), m: make([]float64, n*n), lu: p.newLinear()}
+	r := &rosenbrock{p: p, n: n, jac: p.newJacobian(), lu: p.newIterMatrix()}
 	vec := func() []float64 { return make([]float64, n) }
 	r.y, r.yOld, r.yNew, r.f0, r.ft, r.work, r.errVec = vec(), vec(), vec(), vec(), vec(), vec(), vec()
 	for i := range r.k {
@@ -184,19 +181,9 @@ func (r *rosenbrock) prepare() error {
 
 // factor forms M = I/(γh) − J and factorizes it.
 func (r *rosenbrock) factor(h float64) error {
-	n := r.n
-	raw := r.jac.RawMatrix()
 	d := 1 / (rosGamma * h)
-	for i := 0; i < n; i++ {
-		row := r.m[i*n : (i+1)*n]
-		jr := raw.Data[i*raw.Stride : i*raw.Stride+n]
-		for j, v := range jr {
-			row[j] = -v
-		}
-		row[i] += d
-	}
 	r.p.stats.Factorizations++
-	if err := r.lu.Factor(r.m); err != nil {
+	if err := r.lu.factor(d, -1, r.jac); err != nil {
 		r.luH = 0
 		return err
 	}
@@ -216,7 +203,7 @@ func (r *rosenbrock) check(f []float64) {
 // solve overwrites b with M⁻¹ b.
 func (r *rosenbrock) solve(b []float64) {
 	r.p.stats.LinearSolves++
-	r.lu.Solve(b)
+	r.lu.solve(b)
 }
 
 // attempt computes a step of size h from (t, y) into yNew and returns the

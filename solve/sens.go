@@ -208,22 +208,13 @@ func (w *sensWork) fq(t float64, y, out []float64) {
 
 // jacTimes writes J·s_j + add_j for every quantity into out (ns×n); add
 // may be nil. out must not alias s.
-func (w *sensWork) jacTimes(jac *mat.Dense, s, add, out []float64) {
-	n := w.n
-	raw := jac.RawMatrix()
+func (w *sensWork) jacTimes(jac *jacobian, s, add, out []float64) {
 	for j := 0; j < w.ns; j++ {
-		sj, oj := w.col(s, j), w.col(out, j)
-		for i := 0; i < n; i++ {
-			row := raw.Data[i*raw.Stride : i*raw.Stride+n]
-			var v float64
-			for k, a := range row {
-				v += a * sj[k]
-			}
-			if add != nil {
-				v += add[j*n+i]
-			}
-			oj[i] = v
+		var aj []float64
+		if add != nil {
+			aj = w.col(add, j)
 		}
+		jac.mulVec(w.col(s, j), aj, w.col(out, j))
 	}
 }
 

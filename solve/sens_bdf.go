@@ -1,10 +1,6 @@
 package solve
 
-import (
-	"math"
-
-	"gonum.org/v1/gonum/mat"
-)
+import "math"
 
 // bdfSens carries the sensitivities through the BDF/NDF stepper by the
 // staggered direct approach: after the state's corrector has converged,
@@ -23,11 +19,10 @@ type bdfSens struct {
 	res    []float64
 	fq     []float64
 	jv     []float64
-	jac    *mat.Dense // J at the new point
-	mtx    []float64  // I − c·J(new), for the fallback
-	lu     LinearSolver
-	vec    []float64 // one column's work space
-	direct int       // corrector solves that needed the exact matrix
+	jac    *jacobian   // J at the new point
+	lu     *iterMatrix // I − c·J(new), for the fallback
+	vec    []float64   // one column's work space
+	direct int         // corrector solves that needed the exact matrix
 }
 
 func newBDFSens(b *bdf) *bdfSens {
@@ -44,7 +39,7 @@ func newBDFSens(b *bdf) *bdfSens {
 	vec := func() []float64 { return make([]float64, m) }
 	return &bdfSens{b: b, w: w, d: rows(bdfDiffRows), dTmp: rows(bdfDiffRows), dD: rows(bdfDenseMaxRows),
 		pred: vec(), psi: vec(), snew: vec(), corr: vec(), res: vec(), fq: vec(), jv: vec(),
-		jac: mat.NewDense(max(n, 1), max(n, 1), nil), mtx: make([]float64, n*n), lu: b.p.newLinear(),
+		jac: b.p.newJacobian(), lu: b.p.newIterMatrix(),
 		vec: make([]float64, n)}
 }
 
@@ -70,7 +65,7 @@ func (sn *bdfSens) start(t float64, y []float64, h float64) {
 // matrix).
 func (sn *bdfSens) correct(tNew, c float64) (errNorm float64, ok bool) {
 	b, w := sn.b, sn.w
-	k, n := b.order, b.n
+	k := b.order
 	copy(sn.pred, sn.d[0])
 	for j := 1; j <= k; j++ {
 		for i, v := range sn.d[j] {
@@ -95,7 +90,7 @@ func (sn *bdfSens) correct(tNew, c float64) (errNorm float64, ok bool) {
 			sn.res[i] = c*sn.jv[i] - sn.psi[i] - (sn.snew[i] - sn.pred[i])
 		}
 		for j := 0; j < w.ns; j++ {
-			b.lu.Solve(w.col(sn.res, j))
+			b.lu.solve(w.col(sn.res, j))
 		}
 		b.p.stats.LinearSolves += w.ns
 		norm := w.norm(sn.res, sn.pred, sn.pred, b.p.atol, b.p.rtol)
@@ -125,24 +120,15 @@ func (sn *bdfSens) correct(tNew, c float64) (errNorm float64, ok bool) {
 		// The state's matrix is too far from I − c·J at the new point:
 		// factorize that one and solve directly.
 		sn.direct++
-		jd := sn.jac.RawMatrix()
-		for i := 0; i < n; i++ {
-			row := jd.Data[i*jd.Stride : i*jd.Stride+n]
-			m := sn.mtx[i*n : (i+1)*n]
-			for j, v := range row {
-				m[j] = -c * v
-			}
-			m[i]++
-		}
 		b.p.stats.Factorizations++
-		if err := sn.lu.Factor(sn.mtx); err != nil {
+		if err := sn.lu.factor(1, -c, sn.jac); err != nil {
 			return 0, false
 		}
 		for i := range sn.snew {
 			sn.snew[i] = sn.pred[i] - sn.psi[i] + c*sn.fq[i]
 		}
 		for j := 0; j < w.ns; j++ {
-			sn.lu.Solve(w.col(sn.snew, j))
+			sn.lu.solve(w.col(sn.snew, j))
 		}
 		b.p.stats.LinearSolves += w.ns
 		if nonFinite(sn.snew) >= 0 {

@@ -1,10 +1,6 @@
 package solve
 
-import (
-	"math"
-
-	"gonum.org/v1/gonum/mat"
-)
+import "math"
 
 // radauSens carries the sensitivities through the Radau IIA stepper by
 // internal differentiation: once the state's stages have converged, the
@@ -23,7 +19,7 @@ type radauSens struct {
 	z          [3][]float64
 	wt         [3][]float64 // transformed stages
 	dc         [3][]float64 // dense output
-	jk         [3]*mat.Dense
+	jk         [3]*jacobian
 	fqk        [3][]float64
 	u, est     []float64
 	y          []float64 // a stage's state
@@ -37,7 +33,7 @@ func newRadauSens(r *radau) *radauSens {
 	sn := &radauSens{r: r, w: w, s: vec(), snew: vec(), sf0: vec(), u: vec(), est: vec(), y: make([]float64, n)}
 	for k := 0; k < 3; k++ {
 		sn.z[k], sn.wt[k], sn.dc[k], sn.fqk[k] = vec(), vec(), vec(), vec()
-		sn.jk[k] = mat.NewDense(max(n, 1), max(n, 1), nil)
+		sn.jk[k] = r.p.newJacobian()
 	}
 	return sn
 }
@@ -96,7 +92,7 @@ func (sn *radauSens) stages(h float64) (errNorm float64, ok bool) {
 			z3[i] = b3 - w3[i]*alphn - w2[i]*betan
 		}
 		for j := 0; j < w.ns; j++ {
-			r.lu.Solve(w.col(z1, j))
+			r.lu.solve(w.col(z1, j))
 			r.clu.solve(w.col(z2, j), w.col(z3, j))
 		}
 		r.p.stats.LinearSolves += 2 * w.ns
@@ -142,7 +138,7 @@ func (sn *radauSens) stages(h float64) (errNorm float64, ok bool) {
 		sn.est[i] = hee1*z1[i] + hee2*z2[i] + hee3*z3[i] + sn.sf0[i]
 	}
 	for j := 0; j < w.ns; j++ {
-		r.lu.Solve(w.col(sn.est, j))
+		r.lu.solve(w.col(sn.est, j))
 	}
 	r.p.stats.LinearSolves += w.ns
 	return w.norm(sn.est, sn.s, sn.snew, r.atol, r.rtol), true

@@ -1,10 +1,6 @@
 package solve
 
-import (
-	"math"
-
-	"gonum.org/v1/gonum/mat"
-)
+import "math"
 
 // rosSens carries the sensitivities through RODAS4, which is applied to
 // state and sensitivities together. The combined Jacobian is
@@ -24,7 +20,7 @@ type rosSens struct {
 	fs1              []float64 // J·s + ∂f/∂q at the step's start
 	fq0              []float64
 	ft               []float64 // ∂(J·s + ∂f/∂q)/∂t (non-autonomous systems)
-	jw               *mat.Dense
+	jw               *jacobian
 	fqw, u, bv, rhs  []float64
 	yw, yp           []float64
 	haveDense        bool
@@ -36,7 +32,7 @@ func newRosSens(r *rosenbrock) *rosSens {
 	n, m := r.n, w.ns*r.n
 	vec := func() []float64 { return make([]float64, m) }
 	sn := &rosSens{r: r, w: w, s: vec(), sOld: vec(), sNew: vec(), fs1: vec(), fq0: vec(), ft: vec(),
-		jw: mat.NewDense(max(n, 1), max(n, 1), nil), fqw: vec(), u: vec(), bv: vec(), rhs: vec(),
+		jw: r.p.newJacobian(), fqw: vec(), u: vec(), bv: vec(), rhs: vec(),
 		yw: make([]float64, n), yp: make([]float64, n)}
 	for i := range sn.k {
 		sn.k[i] = vec()
@@ -167,7 +163,7 @@ func (sn *rosSens) attempt(h float64) (errNorm float64, ok bool) {
 			ks[i][m] = rhs[m] + sn.bv[m]
 		}
 		for j := 0; j < w.ns; j++ {
-			r.lu.Solve(w.col(ks[i], j))
+			r.lu.solve(w.col(ks[i], j))
 		}
 		r.p.stats.LinearSolves += w.ns
 	}

@@ -511,6 +511,9 @@ func (o *output) result(sv *Solver, start time.Time) *Result {
 		}
 	}
 	sv.stats.Wall = time.Since(start)
+	for _, f := range sv.p.sparseLUs {
+		sv.stats.FactorNonzeros = max(sv.stats.FactorNonzeros, f.FactorNonzeros())
+	}
 	r.Stats = sv.stats
 	if sv.ev != nil {
 		r.Events, r.Jumps = sv.ev.fired, sv.ev.jumps

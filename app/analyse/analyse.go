@@ -65,7 +65,8 @@ func Prepare(m *network.Model) (*Model, error) {
 	a.held = len(rows)
 	for _, law := range net.ConservationLaws() {
 		r := make([]float64, n)
-		for i, w := range law.Weights {
+		for _, lt := range law.Terms {
+			i, w := lt.Species, lt.Weight
 			r[i] = float64(w) * sys.AmountVolume(sys.SpeciesCompartment(i))
 		}
 		rows = append(rows, r)

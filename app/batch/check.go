@@ -4,7 +4,9 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"strings"
 
+	"kinetarium/internal/stages"
 	"kinetarium/network"
 )
 
@@ -14,13 +16,33 @@ func init() { register("check", runCheck) }
 // place: the reader's problems, the checked network's errors and
 // warnings, units included. Exit status 0 when there is no error
 // (warnings allowed), 2 otherwise.
+//
+// With --timings it also finds the conservation laws and compiles the
+// model, and prints each stage's time and memory to stderr.
 func runCheck(args []string, stdout, stderr io.Writer) int {
-	if len(args) != 1 || len(args[0]) > 0 && args[0][0] == '-' {
-		fmt.Fprint(stderr, "usage: batch check MODEL.json\n")
+	var path string
+	timings := false
+	for _, a := range args {
+		switch {
+		case a == "--timings" || a == "-timings":
+			timings = true
+		case path == "" && !strings.HasPrefix(a, "-"):
+			path = a
+		default:
+			path = ""
+			args = nil
+		}
+	}
+	if path == "" || args == nil {
+		fmt.Fprint(stderr, "usage: batch check MODEL.json [--timings]\n")
 		return exitBadInput
 	}
-	path := args[0]
-	m, err := network.Load(path)
+	var rec stages.Recorder
+	if timings {
+		defer writeTimings(stderr, "check", &rec)
+	}
+	var m *network.Model
+	err := rec.Do("read", func() (err error) { m, err = network.Load(path); return err })
 	if err != nil {
 		var l network.ErrorList
 		if errors.As(err, &l) {
@@ -33,7 +55,17 @@ func runCheck(args []string, stdout, stderr io.Writer) int {
 		}
 		return exitBadInput
 	}
-	_, probs := network.Check(m)
+	var (
+		net   *network.Net
+		probs network.ErrorList
+	)
+	rec.Do("check", func() error { net, probs = network.Check(m); return nil })
+	if timings && probs.Err() == nil {
+		var laws []network.ConservationLaw
+		rec.Do("conservation laws", func() error { laws = net.ConservationLaws(); return nil })
+		fmt.Fprintf(stderr, "%s: %d conservation laws\n", path, len(laws))
+		rec.Do("compile", func() error { _, err := net.Compile(); return err })
+	}
 	for _, p := range probs {
 		fmt.Fprintln(stdout, p.String())
 	}

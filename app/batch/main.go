@@ -10,7 +10,7 @@
 //	batch population SPEC.json [flags]
 //	batch stochastic MODEL.json --runs N --seed S --out DIR [flags]
 //	batch merge PART.json... --out DIR
-//	batch check MODEL.json
+//	batch check MODEL.json [--timings]
 //	batch import FILE.xml [--out MODEL.json]
 //	batch export MODEL.json [--out FILE.xml]
 //	batch conformance DIR [--out report.csv]
@@ -77,6 +77,9 @@ Commands:
         --data FILE        draw the measurements in FILE (CSV or TSV: time,
                            one column per species or assignment, optional
                            sd_NAME) over the curves of --figure
+        --timings          print to standard error the wall and processor
+                           time, memory allocated and peak memory of each
+                           stage: read, check, compile, solve, write
 
   sweep SPEC.json [--out DIR] [--shard i/n] [--workers N] [--quiet]
       Vary one or two parameters over a grid and write readouts, tables
@@ -108,10 +111,13 @@ Commands:
       Join the partial results of a sharded sweep, population or
       stochastic ensemble.
 
-  check MODEL.json
+  check MODEL.json [--timings]
       Print every error and warning of a model, units included, one a line
       with its place (file:line:column, item and field). Exit status 0 when
-      there is no error (warnings allowed), 2 otherwise.
+      there is no error (warnings allowed), 2 otherwise. --timings also
+      finds the conservation laws and prints to standard error how many,
+      and the time and memory of each stage (read, check, conservation
+      laws, compile).
   import FILE.xml [--out MODEL.json]
       Read an SBML model (Level 3 Version 1 or 2, Level 2 Version 4) and
       write it as a model file (to standard output unless --out is

@@ -21,6 +21,7 @@ import (
 	"kinetarium/app/calibrate"
 	"kinetarium/app/run"
 	"kinetarium/internal/atomicfile"
+	"kinetarium/internal/stages"
 	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve"
@@ -49,6 +50,7 @@ type simFlags struct {
 	sensOut            string // --sens-out
 	data               string // --data: measurements drawn over --figure
 	sensMap            string // --sens-map: the output whose scaled sensitivities are drawn
+	timings            bool   // --timings
 	set                map[string]bool
 }
 
@@ -82,6 +84,7 @@ func parseSimFlags(args []string) (*simFlags, error) {
 	fs.StringVar(&f.sensOut, "sens-out", "", "")
 	fs.StringVar(&f.data, "data", "", "")
 	fs.StringVar(&f.sensMap, "sens-map", "", "")
+	fs.BoolVar(&f.timings, "timings", false, "")
 	var pos []string
 	for {
 		if err := fs.Parse(args); err != nil {
@@ -179,6 +182,7 @@ type simStats struct {
 	JacobianEvals  int      `json:"jacobian_evals"`
 	Factorizations int      `json:"factorizations"`
 	LinearSolves   int      `json:"linear_solves"`
+	FactorNonzeros int      `json:"factor_nonzeros,omitempty"` // entries of the sparse LU factors; absent when dense
 	NonNegFixes    int      `json:"nonneg_fixes"`
 	SolveSeconds   float64  `json:"solve_seconds"` // median over repeat solves
 	Repeat         int      `json:"repeat"`
@@ -197,7 +201,12 @@ type simStats struct {
 // on the table (columns the display units leave as computed) go to
 // stderr.
 func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error {
-	m, err := network.Load(f.model)
+	var rec stages.Recorder
+	if f.timings {
+		defer writeTimings(stderr, "simulate", &rec)
+	}
+	var m *network.Model
+	err := rec.Do("read", func() (err error) { m, err = network.Load(f.model); return err })
 	if err != nil {
 		return badInput(err)
 	}
@@ -250,8 +259,17 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 	if err != nil {
 		return badInput(fmt.Errorf("%s: %w", f.model, err))
 	}
-	sys, err := network.Compile(m)
+	var net *network.Net
+	err = rec.Do("check", func() error {
+		var probs network.ErrorList
+		net, probs = network.Check(m)
+		return probs.Err()
+	})
 	if err != nil {
+		return badInput(fmt.Errorf("%s: %w", f.model, err))
+	}
+	var sys *network.System
+	if err := rec.Do("compile", func() (err error) { sys, err = net.Compile(); return err }); err != nil {
 		return badInput(fmt.Errorf("%s: %w", f.model, err))
 	}
 	settings, err := run.Settings(sim)
@@ -266,14 +284,17 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 		solveErr error
 		walls    []time.Duration
 	)
-	for range f.repeat {
-		start := time.Now()
-		res, solveErr = solver.Solve(ctx, 0, sim.TEnd, slices.Clone(y0))
-		walls = append(walls, time.Since(start))
-		if solveErr != nil {
-			break
+	rec.Do("solve", func() error {
+		for range f.repeat {
+			start := time.Now()
+			res, solveErr = solver.Solve(ctx, 0, sim.TEnd, slices.Clone(y0))
+			walls = append(walls, time.Since(start))
+			if solveErr != nil {
+				break
+			}
 		}
-	}
+		return nil
+	})
 	partial := ctx.Err() != nil
 	if partial {
 		// Stopped by Ctrl-C or SIGTERM: write what was computed, marked.
@@ -289,34 +310,40 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 
 	// Write what was computed, even after a failure.
 	var outErr error
-	traj, _ := run.NewOutcome(m, sys, res, nil, time.Now()) // species and assignments
-	for _, n := range traj.Notes {
-		fmt.Fprintf(stderr, "simulate: note: %s\n", n)
-	}
-	table := traj
-	if f.amounts {
-		table = traj.Amounts(sys)
-	}
-	if f.events {
-		table = table.WithEventRows()
-	}
-	if f.out != "" {
-		if err := run.SaveCSV(f.out, table, prov); err != nil {
+	rec.Do("write", func() error {
+		traj, _ := run.NewOutcome(m, sys, res, nil, time.Now()) // species and assignments
+		for _, n := range traj.Notes {
+			fmt.Fprintf(stderr, "simulate: note: %s\n", n)
+		}
+		table := traj
+		if f.amounts {
+			table = traj.Amounts(sys)
+		}
+		if f.events {
+			table = table.WithEventRows()
+		}
+		if f.out != "" {
+			if err := run.SaveCSV(f.out, table, prov); err != nil {
+				outErr = fmt.Errorf("writing the trajectories: %w", err)
+			}
+		} else if err := run.WriteCSV(stdout, table); err != nil {
 			outErr = fmt.Errorf("writing the trajectories: %w", err)
 		}
-	} else if err := run.WriteCSV(stdout, table); err != nil {
-		outErr = fmt.Errorf("writing the trajectories: %w", err)
-	}
-	if f.figure != "" && res != nil {
-		v := run.View{LogX: sim.Output.Spacing == "log", LogY: f.logY, Measured: run.MeasuredShown(m, traj, measured)}
-		if err := drawFigure(f.figure, traj, v, prov); err != nil {
-			outErr = errors.Join(outErr, fmt.Errorf("drawing the figure: %w", err))
+		if f.figure != "" && res != nil {
+			v := run.View{LogX: sim.Output.Spacing == "log", LogY: f.logY, Measured: run.MeasuredShown(m, traj, measured)}
+			if err := drawFigure(f.figure, traj, v, prov); err != nil {
+				outErr = errors.Join(outErr, fmt.Errorf("drawing the figure: %w", err))
+			}
 		}
-	}
+		return nil
+	})
 	if f.sens != "" && solveErr == nil {
-		if err := writeSensitivities(ctx, f, m, saved); err != nil {
-			outErr = errors.Join(outErr, err)
-		}
+		rec.Do("sensitivities", func() error {
+			if err := writeSensitivities(ctx, f, m, saved); err != nil {
+				outErr = errors.Join(outErr, err)
+			}
+			return nil
+		})
 	}
 	if f.stats {
 		st := simStats{
@@ -328,6 +355,7 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 			s := res.Stats
 			st.Choice, st.Steps, st.Rejected, st.RHSEvals = s.Choice, s.Steps, s.Rejected, s.RHSEvals
 			st.JacobianEvals, st.Factorizations, st.LinearSolves, st.NonNegFixes = s.JacobianEvals, s.Factorizations, s.LinearSolves, s.NonNegFixes
+			st.FactorNonzeros = s.FactorNonzeros
 			for _, mm := range s.Methods {
 				st.Methods = append(st.Methods, string(mm))
 			}
@@ -346,6 +374,13 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 		fmt.Fprintf(stdout, "%s\n", line)
 	}
 	return errors.Join(solveErr, outErr)
+}
+
+// writeTimings prints the stages of a command with their time, memory
+// allocated and the peak memory of the process (--timings), to w.
+func writeTimings(w io.Writer, cmd string, rec *stages.Recorder) {
+	fmt.Fprintf(w, "%s: time and memory of each stage (peak: the process's high-water mark at the stage's end)\n", cmd)
+	rec.Write(w)
 }
 
 // drawFigure saves the trajectories of o, drawn as the window draws them,

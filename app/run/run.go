@@ -98,11 +98,13 @@ func NewOutcome(m *network.Model, sys *network.System, res *solve.Result, err er
 	for j := range species {
 		out.Units[j] = m.Units.Amount
 	}
-	for k, name := range asg {
+	if len(asg) > 0 {
+		unit := make(map[string]string, len(m.Assignments))
 		for _, a := range m.Assignments {
-			if a.Name == name {
-				out.Units[len(species)+k] = a.Unit
-			}
+			unit[a.Name] = a.Unit // the last of a repeated name, as before
+		}
+		for k, name := range asg {
+			out.Units[len(species)+k] = unit[name]
 		}
 	}
 	sim := m.Simulation.WithDefaults()

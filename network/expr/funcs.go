@@ -74,6 +74,13 @@ var funcs = [numFuncs]funcInfo{
 }
 
 // lookupFunc returns the function called name that Parse accepts.
+// IsFunction reports whether name is a function of the expression
+// language (exp, log, ifle, …), which a bare name cannot stand for.
+func IsFunction(name string) bool {
+	_, ok := lookupFunc(name)
+	return ok
+}
+
 func lookupFunc(name string) (fnID, bool) {
 	id, ok := funcByName(name)
 	return id, ok && funcs[id].public

@@ -1,0 +1,82 @@
+package network
+
+import (
+	"encoding/json"
+	"fmt"
+	"testing"
+
+	"kinetarium/examples"
+)
+
+// sameTree reports where two trees differ ("" when they do not).
+func sameTree(a, b *jnode, path string) string {
+	switch {
+	case a.kind != b.kind || a.off != b.off:
+		return fmt.Sprintf("%s: kind %c at %d, want %c at %d", path, a.kind, a.off, b.kind, b.off)
+	case a.str != b.str || a.b != b.b:
+		return fmt.Sprintf("%s: value %q %v, want %q %v", path, a.str, a.b, b.str, b.b)
+	case len(a.keys) != len(b.keys) || len(a.items) != len(b.items):
+		return fmt.Sprintf("%s: %d keys %d items, want %d keys %d items", path, len(a.keys), len(a.items), len(b.keys), len(b.items))
+	}
+	for i := range a.keys {
+		if a.keys[i] != b.keys[i] || a.kOffs[i] != b.kOffs[i] {
+			return fmt.Sprintf("%s: key %q at %d, want %q at %d", path, a.keys[i], a.kOffs[i], b.keys[i], b.kOffs[i])
+		}
+		if d := sameTree(a.vals[i], b.vals[i], path+"."+a.keys[i]); d != "" {
+			return d
+		}
+	}
+	for i := range a.items {
+		if d := sameTree(a.items[i], b.items[i], fmt.Sprintf("%s[%d]", path, i)); d != "" {
+			return d
+		}
+	}
+	return ""
+}
+
+// compareParsers checks that the direct scan builds the tree that
+// encoding/json's tokens build, on a valid document.
+func compareParsers(t *testing.T, data []byte) {
+	t.Helper()
+	if !json.Valid(data) {
+		return
+	}
+	want, err := parseJSONTokens(data)
+	if err != nil {
+		t.Fatalf("the token reader refuses a valid document: %v", err)
+	}
+	got, err := parseJSON(data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d := sameTree(got, want, "$"); d != "" {
+		t.Errorf("%s", d)
+	}
+}
+
+// The direct scan of valid documents gives the tree of encoding/json's
+// tokens (the standard library's reader as the reference): on every
+// example model, and on escapes, invalid UTF-8, repeated keys, numbers in
+// every form and white space everywhere.
+func TestFastJSONMatchesTokens(t *testing.T) {
+	for _, name := range examples.Names() {
+		b, err := examples.Open(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		compareParsers(t, b)
+	}
+	for _, doc := range []string{
+		`{"a":1,"a":-2.5e+3,"b":[true,false,null,{}],"c":[],"d":"x\"y\\u00e9\n","e":"é","f":"` + "\xff" + `"}`,
+		" \t\r\n{ \"k\" : [ 1 , 2 ] , \"\" : { } } \n",
+		`"top"`, `0`, `-0.0E-0`, `[[[[]]]]`,
+	} {
+		compareParsers(t, []byte(doc))
+	}
+}
+
+func FuzzJSONTree(f *testing.F) {
+	f.Add([]byte(`{"a":1,"a":-2.5e+3,"b":[true,false,null,{}],"d":"x\"y\\u00e9\n"}`))
+	f.Add([]byte(`{"format": "kinetarium.model/1", "species": [{"name": "A", "initial": 1}]}`))
+	f.Fuzz(func(t *testing.T, data []byte) { compareParsers(t, data) })
+}
