@@ -205,7 +205,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		m.Species = append(m.Species, s)
 	})
 	d.items(top, "parameters", []string{"name", "value", "unit", "note"}, func(i int, o *jnode, path string) {
-		m.Parameters = append(m.Parameters, Parameter{Name: d.optStr(o, "name", path), Value: d.optNum(o, "value", path),
+		m.Parameters = append(m.Parameters, Parameter{Name: d.optStr(o, "name", path), Value: d.reqNum(o, "value", path),
 			Unit: d.optStr(o, "unit", path), Note: d.optStr(o, "note", path)})
 	})
 	d.items(top, "assignments", []string{"name", "expression", "unit", "note"}, func(i int, o *jnode, path string) {
@@ -481,6 +481,16 @@ func (d *decoder) optNum(o *jnode, key, path string) float64 {
 		return f
 	}
 	return 0
+}
+
+// reqNum reads the number at key, reporting a missing key: a parameter
+// without a value would otherwise run as 0 without a word.
+func (d *decoder) reqNum(o *jnode, key, path string) float64 {
+	if _, ok := o.get(key); !ok {
+		d.fail(o, path, "has no %q: expected a number", key)
+		return 0
+	}
+	return d.optNum(o, key, path)
 }
 
 func join(path, key string) string {

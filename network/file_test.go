@@ -84,6 +84,7 @@ func TestReadErrors(t *testing.T) {
 		{head + `"species": [{"name": 5}]}`, `species[0].name: expected text`},
 		{head + `"species": [{"name": "A", "initial": "lots"}]}`, `species[0].initial: expected a number, found text`},
 		{head + `"species": {"name": "A"}}`, `species: expected a list`},
+		{head + `"parameters": [{"name": "k", "unit": "1/s"}]}`, `parameters[0]: has no "value": expected a number`},
 		{head + `"species": [{"name": "A", "fixed": 1}]}`, `species[0].fixed: expected true or false`},
 		{head + `"reactions": [{"rate": {"k": true}}]}`, `reactions[0].rate.k: expected a parameter name in quotes or a number`},
 		{head + `"simulation": {"output": {"points": 2.5}}}`, `simulation.output.points: 2.5 is not a whole number`},
@@ -215,8 +216,9 @@ func FuzzRead(f *testing.F) {
 	})
 }
 
-// A file with three mistakes in three sections gives three messages at
-// once, each with its line and column.
+// A file with three mistakes in three sections gives a message for each at
+// once, each with its line and column (the misspelt "value" two: the
+// unknown key and the missing value).
 func TestReadReportsEveryProblem(t *testing.T) {
 	src := `{
   "format": "kinetarium.model/1",
@@ -232,6 +234,7 @@ func TestReadReportsEveryProblem(t *testing.T) {
 	want := []string{
 		`three.json:3:40: species[0].initial: expected a number, found text`,
 		`three.json:4:32: parameters[0]: unknown key "vlaue"`,
+		`three.json:4:18: parameters[0]: has no "value"`,
 		`three.json:5:87: reactions[0].rate.k: expected a parameter name in quotes or a number, found true/false`,
 	}
 	if len(l) != len(want) {
