@@ -266,7 +266,7 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 		return probs.Err()
 	})
 	if err != nil {
-		return badInput(fmt.Errorf("%s: %w", f.model, err))
+		return badInput(inFile(f.model, err))
 	}
 	var sys *network.System
 	if err := rec.Do("compile", func() (err error) { sys, err = net.Compile(); return err }); err != nil {
@@ -470,4 +470,13 @@ func measuredNames(m *network.Model) []string {
 		out = append(out, a.Name)
 	}
 	return out
+}
+
+// inFile prefixes err with path unless its message already starts with it
+// (the checked network's problems carry the file, line and column).
+func inFile(path string, err error) error {
+	if strings.HasPrefix(err.Error(), path+":") {
+		return err
+	}
+	return fmt.Errorf("%s: %w", path, err)
 }
