@@ -863,7 +863,7 @@ func (f *fitWindow) correlationFigure() (*plot.Plot, error) {
 			z[a][b] = rep.Corr.At(a, b)
 		}
 	}
-	p, err := plotting.HeatMap(idx, idx, z, plotting.Options{Title: "Correlation of the estimates"}, "correlation")
+	p, err := plotting.HeatMap(idx, idx, z, plotting.Options{Title: "Correlation of the estimates", Signed: true}, "correlation")
 	if err != nil {
 		return nil, err
 	}

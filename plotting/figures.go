@@ -117,6 +117,8 @@ func XYPlot(x, y []float64, o Options) (*plot.Plot, error) {
 
 // HeatMap draws a readout z[iy][ix] over a grid of two parameters, xs
 // across and ys up, as coloured cells with a colour bar labelled zLabel.
+// With o.Signed the colours diverge from 0 (DivergingColour) over a range
+// symmetric about 0.
 // xs and ys must ascend strictly. On log axes, cell edges lie at geometric
 // midpoints and grid lines at values ≤ 0 are left out and noted; NaN or
 // infinite z leave their cell blank, also noted.
@@ -178,15 +180,26 @@ func HeatMap(xs, ys []float64, z [][]float64, o Options, zLabel string) (*plot.P
 		}
 	}
 	ns.count(blank, "cell with a NaN or infinite value", "cells with NaN or infinite values")
+	scale := ScaleColour
+	if o.Signed && lo <= hi {
+		// Symmetric about 0, so that 0 is the scale's neutral middle.
+		m := math.Max(math.Abs(lo), math.Abs(hi))
+		if m == 0 {
+			m = 1
+		}
+		lo, hi, scale = -m, m, DivergingColour
+	}
 	colour := func(v float64) color.Color {
 		if hi == lo {
-			return ScaleColour(0.5)
+			return scale(0.5)
 		}
-		return ScaleColour((v - lo) / (hi - lo))
+		return scale((v - lo) / (hi - lo))
 	}
 	p.Add(&cells{xe: cellEdges(kx, o.LogX), ye: cellEdges(ky, o.LogY), z: kz, colour: colour})
 	if lo <= hi {
-		p.Add(newColourBar(lo, hi, false, zLabel))
+		bar := newColourBar(lo, hi, false, zLabel)
+		bar.signed = o.Signed
+		p.Add(bar)
 	}
 	finish(p, o, ns)
 	// Cells fill the data area edge to edge.

@@ -74,17 +74,45 @@ var scaleTable = [...]color.RGBA{
 // scale used for parameter families and heat maps: 0 is dark violet, 1 is
 // yellow. f is clamped to [0, 1]; NaN gives mid grey.
 func ScaleColour(f float64) color.Color {
+	return interpolate(scaleTable[:], f)
+}
+
+// divergingTable is our interpolation table of a diverging, colour-blind-
+// safe scale for signed values: purple below zero, near-white at zero,
+// orange above. The anchors are ColorBrewer's purple–orange scheme (PuOr,
+// Brewer 2003; seven classes, from memory).
+var divergingTable = [...]color.RGBA{
+	{0x54, 0x27, 0x88, 0xFF},
+	{0x99, 0x8E, 0xC3, 0xFF},
+	{0xD8, 0xDA, 0xEB, 0xFF},
+	{0xF7, 0xF7, 0xF7, 0xFF},
+	{0xFE, 0xE0, 0xB6, 0xFF},
+	{0xF1, 0xA3, 0x40, 0xFF},
+	{0xB3, 0x58, 0x06, 0xFF},
+}
+
+// DivergingColour returns the colour at fraction f of the diverging scale
+// used for signed heat maps (Options.Signed): 0 is dark purple (the most
+// negative), 0.5 near-white (zero), 1 dark orange. f is clamped to
+// [0, 1]; NaN gives mid grey.
+func DivergingColour(f float64) color.Color {
+	return interpolate(divergingTable[:], f)
+}
+
+// interpolate returns the colour at fraction f of the table, linear
+// between its anchors.
+func interpolate(table []color.RGBA, f float64) color.Color {
 	if math.IsNaN(f) {
 		return color.RGBA{0x99, 0x99, 0x99, 0xFF}
 	}
 	f = math.Max(0, math.Min(1, f))
-	pos := f * float64(len(scaleTable)-1)
+	pos := f * float64(len(table)-1)
 	i := int(pos)
-	if i >= len(scaleTable)-1 {
-		return scaleTable[len(scaleTable)-1]
+	if i >= len(table)-1 {
+		return table[len(table)-1]
 	}
 	w := pos - float64(i)
-	a, b := scaleTable[i], scaleTable[i+1]
+	a, b := table[i], table[i+1]
 	mix := func(u, v uint8) uint8 { return uint8(math.Round(float64(u)*(1-w) + float64(v)*w)) }
 	return color.RGBA{mix(a.R, b.R), mix(a.G, b.G), mix(a.B, b.B), 0xFF}
 }

@@ -366,6 +366,7 @@ func cellEdges(c []float64, log bool) []float64 {
 type colourBar struct {
 	lo, hi float64
 	log    bool
+	signed bool // the diverging scale (DivergingColour) instead of ScaleColour
 	label  string
 	ticks  []plot.Tick
 	tick   text.Style // tick label style
@@ -414,6 +415,14 @@ func newColourBar(lo, hi float64, log bool, label string) *colourBar {
 	return b
 }
 
+// colour returns the bar's colour at fraction f.
+func (b *colourBar) colour(f float64) color.Color {
+	if b.signed {
+		return DivergingColour(f)
+	}
+	return ScaleColour(f)
+}
+
 // norm maps v to its fraction of the bar.
 func (b *colourBar) norm(v float64) float64 {
 	if b.log {
@@ -451,7 +460,7 @@ func (b *colourBar) Plot(dc draw.Canvas, _ *plot.Plot) {
 	for i := range strips {
 		ya := y0 + h*vg.Length(i)/strips
 		yb := y0 + h*vg.Length(i+1)/strips + 0.3 // overlap hides seams
-		dc.FillPolygon(ScaleColour((float64(i)+0.5)/strips), []vg.Point{{X: x0, Y: ya}, {X: x0, Y: yb}, {X: x1, Y: yb}, {X: x1, Y: ya}})
+		dc.FillPolygon(b.colour((float64(i)+0.5)/strips), []vg.Point{{X: x0, Y: ya}, {X: x0, Y: yb}, {X: x1, Y: yb}, {X: x1, Y: ya}})
 	}
 	frame := draw.LineStyle{Color: color.Black, Width: vg.Points(0.5)}
 	dc.StrokeLines(frame, []vg.Point{{X: x0, Y: y0}, {X: x0, Y: y0 + h}, {X: x1, Y: y0 + h}, {X: x1, Y: y0}, {X: x0, Y: y0}})

@@ -60,6 +60,12 @@ type Options struct {
 	// hidden; nil colours series by position.
 	ColourIndex []int
 
+	// Signed colours a HeatMap of a signed quantity (a sensitivity, a
+	// correlation) on a diverging scale centred on 0, symmetric about it,
+	// instead of the sequential scale from the smallest to the largest
+	// value.
+	Signed bool
+
 	// NoLegend leaves out the legend of a TrajectoryPlot, giving its margin
 	// to the data. It suits a display that lists the series with their
 	// colours beside the figure; a figure saved for readers should keep its

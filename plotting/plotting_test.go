@@ -769,3 +769,32 @@ func TestSensitivityMap(t *testing.T) {
 		t.Error("a short row accepted")
 	}
 }
+
+// A signed heat map colours 0 with the diverging scale's neutral middle and
+// equal magnitudes of either sign with its two ends, whatever the range of
+// the data (here −1 … 3, so the scale runs −3 … 3); the sequential scale
+// would colour 0 a quarter of the way up.
+func TestSignedHeatMap(t *testing.T) {
+	z := [][]float64{{-3, 0}, {3, 1}}
+	p, err := HeatMap([]float64{1, 2}, []float64{1, 2}, z, Options{Signed: true}, "s")
+	if err != nil {
+		t.Fatal(err)
+	}
+	img := Render(p, 400, 400)
+	for _, c := range []struct {
+		what string
+		want color.Color
+	}{{"zero", DivergingColour(0.5)}, {"−3", DivergingColour(0)}, {"+3", DivergingColour(1)}} {
+		if n := countNear(img, c.want); n < 1000 {
+			t.Errorf("%s: %d pixels of %s, want ≥ 1000 (a cell)", c.what, n, hexOf(c.want))
+		}
+	}
+	// Without Signed, the same data use the sequential scale.
+	p, _ = HeatMap([]float64{1, 2}, []float64{1, 2}, z, Options{}, "s")
+	if n := countNear(Render(p, 400, 400), DivergingColour(0.5)); n >= 1000 {
+		t.Errorf("unsigned heat map drew a cell in the diverging scale's middle (%d pixels)", n)
+	}
+	if got := hexOf(DivergingColour(0.5)); got != "#F7F7F7" && got != "#f7f7f7" {
+		t.Errorf("diverging middle %s, want #F7F7F7 (PuOr's neutral, from memory)", got)
+	}
+}

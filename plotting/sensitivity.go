@@ -8,7 +8,8 @@ import (
 
 // SensitivityMap draws a quantity over time for each of several named
 // inputs as a heat map: z[j][i] for input names[j] at times[i], time
-// across and the inputs up, labelled by name, with a colour bar labelled
+// across and the inputs up, labelled by name, on the diverging scale
+// centred on 0 (Options.Signed), with a colour bar labelled
 // zLabel. Times need only ascend: at a repeated time (the two rows of an
 // event) the later value is drawn; on a log time axis times ≤ 0 are left
 // out without a note, as the first time of a log-spaced grid is.
@@ -43,6 +44,7 @@ func SensitivityMap(times []float64, names []string, z [][]float64, o Options, z
 			zz[j][a] = row[i]
 		}
 	}
+	o.Signed = true
 	p, err := HeatMap(xs, ys, zz, o, zLabel)
 	if err != nil {
 		return nil, err

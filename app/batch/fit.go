@@ -288,7 +288,7 @@ func fitFigures(ctx context.Context, dir string, p *calibrate.Problem, rep *cali
 				z[a][b] = rep.Corr.At(a, b)
 			}
 		}
-		o := plotting.Options{Title: "Correlation of the estimates (numbered as in estimates.csv)", XLabel: "estimate", YLabel: "estimate"}
+		o := plotting.Options{Title: "Correlation of the estimates (numbered as in estimates.csv)", XLabel: "estimate", YLabel: "estimate", Signed: true}
 		pl, err := plotting.HeatMap(idx, idx, z, o, "correlation")
 		if err != nil {
 			return err
