@@ -28,7 +28,21 @@ type bdfSens struct {
 	lu     LinearSolver
 	vec    []float64 // one column's work space
 	direct int       // corrector solves that needed the exact matrix
+	// always solves every step's corrector with the exact matrix I − c·J
+	// at the new point, factorized once, instead of iterating with the
+	// state's matrix: for small systems one factorization costs less than
+	// the iterations (see sensDirectBelow).
+	always bool
 }
+
+// sensDirectBelow: with n state variables and ns quantities the iteration
+// costs at least two rounds of ns solves and ns products with J (about
+// 2·ns·3n² flops; it needs two to test convergence, and took 3.4 on the
+// protease fit), a factorization of the exact matrix ⅔n³ and then one
+// round of ns solves: the direct solve is cheaper while n < 6·ns, and is
+// exact. Measured on the protease fit (n = 7, ns = 5): 3.7 ms per
+// sensitivity solve iterating, see bench/fit.md for the direct figure.
+const sensDirectBelow = 6
 
 func newBDFSens(b *bdf) *bdfSens {
 	w := b.p.sens
@@ -45,7 +59,7 @@ func newBDFSens(b *bdf) *bdfSens {
 	return &bdfSens{b: b, w: w, d: rows(bdfDiffRows), dTmp: rows(bdfDiffRows), dD: rows(bdfDenseMaxRows),
 		pred: vec(), psi: vec(), snew: vec(), corr: vec(), res: vec(), fq: vec(), jv: vec(),
 		jac: mat.NewDense(max(n, 1), max(n, 1), nil), mtx: make([]float64, n*n), lu: b.p.newLinear(),
-		vec: make([]float64, n)}
+		vec: make([]float64, n), always: n < sensDirectBelow*w.ns}
 }
 
 // start begins at (t, y) with the sensitivities of problem.sens.s and the
@@ -89,7 +103,7 @@ func (sn *bdfSens) correct(tNew, c float64) (errNorm float64, ok bool) {
 	copy(sn.snew, sn.pred)
 	converged := false
 	var normOld float64
-	for it := 0; it < 5; it++ {
+	for it := 0; it < 5 && !sn.always; it++ {
 		w.jacTimes(sn.jac, sn.snew, sn.fq, sn.jv)
 		for i := range sn.res {
 			sn.res[i] = c*sn.jv[i] - sn.psi[i] - (sn.snew[i] - sn.pred[i])
@@ -122,8 +136,9 @@ func (sn *bdfSens) correct(tNew, c float64) (errNorm float64, ok bool) {
 		normOld = norm
 	}
 	if !converged {
-		// The state's matrix is too far from I − c·J at the new point:
-		// factorize that one and solve directly.
+		// The state's matrix is too far from I − c·J at the new point
+		// (or the system is small): factorize that one and solve
+		// directly.
 		sn.direct++
 		jd := sn.jac.RawMatrix()
 		for i := 0; i < n; i++ {
