@@ -14,6 +14,7 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -101,6 +102,9 @@ type fitSummary struct {
 	Iterations      int              `json:"iterations"`
 	Seconds         float64          `json:"seconds"`
 	Sigma           *float64         `json:"sigma,omitempty"`
+	SigmaC          *float64         `json:"sigma_c,omitempty"` // proportional noise: σ = c·|fitted|
+	SigmaA          *float64         `json:"sigma_a,omitempty"` // combined noise: σ² = a² + (b·fitted)²
+	SigmaB          *float64         `json:"sigma_b,omitempty"`
 	Noise           string           `json:"noise"`
 	Notes           []string         `json:"notes"`
 	Estimates       []map[string]any `json:"estimates"`
@@ -208,7 +212,19 @@ func writeFit(ctx context.Context, dir string, p *calibrate.Problem, rep *calibr
 	if sum.Notes == nil {
 		sum.Notes = []string{}
 	}
-	for _, e := range rep.Estimates {
+	for _, e := range rep.NoiseEstimates {
+		v := e.Value
+		switch e.Name {
+		case calibrate.SigmaC:
+			sum.SigmaC = &v
+		case calibrate.SigmaA:
+			sum.SigmaA = &v
+		case calibrate.SigmaB:
+			sum.SigmaB = &v
+		}
+	}
+	all := append(slices.Clone(rep.Estimates), rep.NoiseEstimates...)
+	for _, e := range all {
 		est = append(est, []string{e.Name, fnum(e.Value), fnum(e.SE), fnum(e.Low), fnum(e.High), fnum(e.ProfileLow), fnum(e.ProfileHigh)})
 		sum.Estimates = append(sum.Estimates, map[string]any{"name": e.Name, "target": e.Target, "value": e.Value, "se": fitJSONNum(e.SE),
 			"ci95_low": fitJSONNum(e.Low), "ci95_high": fitJSONNum(e.High), "profile_low": fitJSONNum(e.ProfileLow), "profile_high": fitJSONNum(e.ProfileHigh),
@@ -232,12 +248,12 @@ func writeFit(ctx context.Context, dir string, p *calibrate.Problem, rep *calibr
 		return err
 	}
 	corr := [][]string{{"name"}}
-	for _, e := range rep.Estimates {
+	for _, e := range all {
 		corr[0] = append(corr[0], e.Name)
 	}
-	for a, e := range rep.Estimates {
+	for a, e := range all {
 		row := []string{e.Name}
-		for b := range rep.Estimates {
+		for b := range all {
 			row = append(row, fnum(rep.Corr.At(a, b)))
 		}
 		corr = append(corr, row)
@@ -314,7 +330,7 @@ func fitFigures(ctx context.Context, dir string, p *calibrate.Problem, rep *cali
 	if err := plotting.Save(pl, filepath.Join(dir, "starts.png"), 0, 0, 0, prov.Metadata(o.Title)); err != nil {
 		return err
 	}
-	if n := len(rep.Estimates); n > 1 {
+	if n := len(rep.Estimates) + len(rep.NoiseEstimates); n > 1 {
 		idx := make([]float64, n)
 		z := make([][]float64, n)
 		for a := range z {
@@ -333,8 +349,9 @@ func fitFigures(ctx context.Context, dir string, p *calibrate.Problem, rep *cali
 			return err
 		}
 	}
+	all := append(slices.Clone(rep.Estimates), rep.NoiseEstimates...)
 	for j, pr := range rep.Profiles {
-		e := rep.Estimates[j]
+		e := all[j]
 		o := plotting.Options{Title: fmt.Sprintf("Profile of %s (the 95%% interval is where it stays within 1.92 of the best)", e.Name),
 			XLabel: e.Name, XUnit: e.Unit, YLabel: "objective (−log-likelihood)", LogX: e.Log}
 		pl, err := plotting.XYPlot(pr.Values, pr.Objectives, o)
