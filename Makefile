@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench bench-fit fuzz build batch clean conformance test-stochastic
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -53,6 +53,13 @@ bench:
 	$(GO) test -run '^$$' -bench . -benchmem ./network/... ./solve/... ./plotting/... ./app/ensemble ./app/diagram
 	$(GO) test -run '^$$' -bench . -benchtime 1x ./app/analyse
 	$(GO) run ./internal/workprecision -out bench
+
+# The fitting benchmark (bench/fit.md): the protease fit by sensitivities
+# and by differences, one start and 20, and the same fit by SciPy's
+# least_squares on solve_ivp (scripts/protease_fit_peer.py, Debian's
+# python3-scipy) in the same run; about 5 minutes.
+bench-fit:
+	$(GO) run ./internal/fitbench -out bench
 
 FUZZTIME ?= 30s
 fuzz:
