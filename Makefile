@@ -78,6 +78,11 @@ fuzz:
 	$(GO) test ./app/batch -run '^$$' -fuzz FuzzMergePart -fuzztime $(FUZZTIME)
 	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzRead -fuzztime $(FUZZTIME)
 	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzMathML -fuzztime $(FUZZTIME)
+	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadData -fuzztime $(FUZZTIME)
+	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadSpec -fuzztime $(FUZZTIME)
+	$(GO) test ./solve/stochastic -run '^$$' -fuzz FuzzReadJSON -fuzztime $(FUZZTIME)
+	$(GO) test ./app/batch -run '^$$' -fuzz FuzzContinuationSpec -fuzztime $(FUZZTIME)
+	$(GO) test ./app/batch -run '^$$' -fuzz FuzzSensitivitySpec -fuzztime $(FUZZTIME)
 
 # Every case of the SBML Test Suite (make test runs every third): the
 # report and its summary by tag, from ../shared/reference/sbml-test-suite.
@@ -85,11 +90,6 @@ SBML_SUITE ?= ../shared/reference/sbml-test-suite/cases
 conformance:
 	SBML_CONFORMANCE=full $(GO) test ./app/conformance -run 'TestConformance$$' -count=1 -v
 	$(GO) run ./app/batch conformance $(SBML_SUITE) --out bench/sbml-conformance.csv --summary bench/sbml-conformance-summary.md --quiet
-	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadData -fuzztime $(FUZZTIME)
-	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadSpec -fuzztime $(FUZZTIME)
-	$(GO) test ./solve/stochastic -run '^$$' -fuzz FuzzReadJSON -fuzztime $(FUZZTIME)
-	$(GO) test ./app/batch -run '^$$' -fuzz FuzzContinuationSpec -fuzztime $(FUZZTIME)
-	$(GO) test ./app/batch -run '^$$' -fuzz FuzzSensitivitySpec -fuzztime $(FUZZTIME)
 
 clean:
 	rm -rf bin
