@@ -171,7 +171,7 @@ func fitCmd(ctx context.Context, f *fitFlags, stdout, stderr io.Writer) error {
 	}
 	fmt.Fprintf(stdout, "fit: %d of %d starts converged; best objective %.6g (−log-likelihood), %d data, %d estimated\n",
 		rep.Converged, len(rep.Starts), rep.Objective, rep.NData, rep.NParams)
-	for _, e := range rep.Estimates {
+	for _, e := range append(slices.Clone(rep.Estimates), rep.NoiseEstimates...) {
 		fmt.Fprintf(stdout, "  %-24s %-14s SE %-12s 95%% [%s, %s]\n", e.Name, fnum(e.Value), fnum(e.SE), fnum(e.Low), fnum(e.High))
 	}
 	for _, n := range rep.Notes {
