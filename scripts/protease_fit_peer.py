@@ -133,7 +133,8 @@ def main():
     wall = time.perf_counter() - t0
     best = min(results, key=lambda r: r["wssr"])
     print(json.dumps({"scipy": scipy.__version__, "numpy": np.__version__, "starts": starts, "workers": os.cpu_count() if starts > 1 else 1,
-                      "wall_seconds": wall, "first_start": results[0], "best": best,
+                      "wall_seconds": wall, "cpu_seconds_total": sum(r["cpu_seconds"] for r in results),
+                      "first_start": results[0], "best": best,
                       "n_data": int(sum(len(e[1]) for e in EXPS))}, indent=2))
 
 
