@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench fuzz build batch clean conformance test-stochastic cvode-compare large-networks probes
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench bench-fit fuzz build batch clean conformance test-stochastic cvode-compare large-networks probes
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -81,6 +81,13 @@ LARGE_LIMIT ?= 5m
 large-networks:
 	$(GO) run ./internal/largenet -limit $(LARGE_LIMIT) -out bench/large-networks.md
 
+# The fitting benchmark (bench/fit.md): the protease fit by sensitivities
+# and by differences, one start and 20, and the same fit by SciPy's
+# least_squares on solve_ivp (scripts/protease_fit_peer.py, Debian's
+# python3-scipy) in the same run; about 5 minutes.
+bench-fit:
+	$(GO) run ./internal/fitbench -out bench
+
 FUZZTIME ?= 30s
 fuzz:
 	$(GO) test ./network/expr -run '^$$' -fuzz FuzzParse -fuzztime $(FUZZTIME)
@@ -102,6 +109,11 @@ fuzz:
 	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzRead -fuzztime $(FUZZTIME)
 	$(GO) test ./network/sbml -run '^$$' -fuzz FuzzMathML -fuzztime $(FUZZTIME)
 	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadCompanion -fuzztime $(FUZZTIME)
+	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadData -fuzztime $(FUZZTIME)
+	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadSpec -fuzztime $(FUZZTIME)
+	$(GO) test ./solve/stochastic -run '^$$' -fuzz FuzzReadJSON -fuzztime $(FUZZTIME)
+	$(GO) test ./app/batch -run '^$$' -fuzz FuzzContinuationSpec -fuzztime $(FUZZTIME)
+	$(GO) test ./app/batch -run '^$$' -fuzz FuzzSensitivitySpec -fuzztime $(FUZZTIME)
 
 # Every case of the SBML Test Suite (make test runs every third): the
 # report and its summary by tag, from ../shared/reference/sbml-test-suite.
@@ -109,11 +121,6 @@ SBML_SUITE ?= ../shared/reference/sbml-test-suite/cases
 conformance:
 	SBML_CONFORMANCE=full $(GO) test ./app/conformance -run 'TestConformance$$' -count=1 -v
 	$(GO) run ./app/batch conformance $(SBML_SUITE) --out bench/sbml-conformance.csv --summary bench/sbml-conformance-summary.md --quiet
-	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadData -fuzztime $(FUZZTIME)
-	$(GO) test ./app/calibrate -run '^$$' -fuzz FuzzReadSpec -fuzztime $(FUZZTIME)
-	$(GO) test ./solve/stochastic -run '^$$' -fuzz FuzzReadJSON -fuzztime $(FUZZTIME)
-	$(GO) test ./app/batch -run '^$$' -fuzz FuzzContinuationSpec -fuzztime $(FUZZTIME)
-	$(GO) test ./app/batch -run '^$$' -fuzz FuzzSensitivitySpec -fuzztime $(FUZZTIME)
 
 clean:
 	rm -rf bin

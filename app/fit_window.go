@@ -698,7 +698,7 @@ func inWords(e calibrate.Estimated) string {
 func estimateRows(rep *calibrate.Report, unitOf func(target string) string) [][]string {
 	rows := calibrate.EstimateRows(rep)
 	rows[0] = append(rows[0], "unit", "in_words")
-	for i, e := range rep.Estimates {
+	for i, e := range rep.All() {
 		unit := e.Unit
 		if unit == "" && unitOf != nil {
 			unit = unitOf(e.Target)

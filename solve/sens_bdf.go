@@ -23,7 +23,21 @@ type bdfSens struct {
 	lu     *iterMatrix // I − c·J(new), for the fallback
 	vec    []float64   // one column's work space
 	direct int         // corrector solves that needed the exact matrix
+	// always solves every step's corrector with the exact matrix I − c·J
+	// at the new point, factorized once, instead of iterating with the
+	// state's matrix: for small systems one factorization costs less than
+	// the iterations (see sensDirectBelow).
+	always bool
 }
+
+// sensDirectBelow: with n state variables and ns quantities the iteration
+// costs at least two rounds of ns solves and ns products with J (about
+// 2·ns·3n² flops; it needs two to test convergence, and took 3.4 on the
+// protease fit), a factorization of the exact matrix ⅔n³ and then one
+// round of ns solves: the direct solve is cheaper while n < 6·ns, and is
+// exact. Measured on the protease fit (n = 7, ns = 5): 3.7 ms per
+// sensitivity solve iterating, see bench/fit.md for the direct figure.
+const sensDirectBelow = 6
 
 func newBDFSens(b *bdf) *bdfSens {
 	w := b.p.sens
@@ -40,7 +54,7 @@ func newBDFSens(b *bdf) *bdfSens {
 	return &bdfSens{b: b, w: w, d: rows(bdfDiffRows), dTmp: rows(bdfDiffRows), dD: rows(bdfDenseMaxRows),
 		pred: vec(), psi: vec(), snew: vec(), corr: vec(), res: vec(), fq: vec(), jv: vec(),
 		jac: b.p.newJacobian(), lu: b.p.newIterMatrix(),
-		vec: make([]float64, n)}
+		vec: make([]float64, n), always: n < sensDirectBelow*w.ns}
 }
 
 // start begins at (t, y) with the sensitivities of problem.sens.s and the
@@ -84,7 +98,7 @@ func (sn *bdfSens) correct(tNew, c float64) (errNorm float64, ok bool) {
 	copy(sn.snew, sn.pred)
 	converged := false
 	var normOld float64
-	for it := 0; it < 5; it++ {
+	for it := 0; it < 5 && !sn.always; it++ {
 		w.jacTimes(sn.jac, sn.snew, sn.fq, sn.jv)
 		for i := range sn.res {
 			sn.res[i] = c*sn.jv[i] - sn.psi[i] - (sn.snew[i] - sn.pred[i])
@@ -117,8 +131,9 @@ func (sn *bdfSens) correct(tNew, c float64) (errNorm float64, ok bool) {
 		normOld = norm
 	}
 	if !converged {
-		// The state's matrix is too far from I − c·J at the new point:
-		// factorize that one and solve directly.
+		// The state's matrix is too far from I − c·J at the new point
+		// (or the system is small): factorize that one and solve
+		// directly.
 		sn.direct++
 		b.p.stats.Factorizations++
 		if err := sn.lu.factor(1, -c, sn.jac); err != nil {

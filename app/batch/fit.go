@@ -14,6 +14,7 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 
@@ -100,6 +101,9 @@ type fitSummary struct {
 	Iterations      int              `json:"iterations"`
 	Seconds         float64          `json:"seconds"`
 	Sigma           *float64         `json:"sigma,omitempty"`
+	SigmaC          *float64         `json:"sigma_c,omitempty"` // proportional noise: σ = c·|fitted|
+	SigmaA          *float64         `json:"sigma_a,omitempty"` // combined noise: σ² = a² + (b·fitted)²
+	SigmaB          *float64         `json:"sigma_b,omitempty"`
 	Noise           string           `json:"noise"`
 	Notes           []string         `json:"notes"`
 	Estimates       []map[string]any `json:"estimates"`
@@ -152,7 +156,7 @@ func fitCmd(ctx context.Context, f *fitFlags, stdout, stderr io.Writer) error {
 	}
 	fmt.Fprintf(stdout, "fit: %d of %d starts converged; best objective %.6g (−log-likelihood), %d data, %d estimated\n",
 		rep.Converged, len(rep.Starts), rep.Objective, rep.NData, rep.NParams)
-	for _, e := range rep.Estimates {
+	for _, e := range rep.All() {
 		fmt.Fprintf(stdout, "  %-24s %-14s SE %-12s 95%% [%s, %s]\n", e.Name, calibrate.Num(e.Value), calibrate.Num(e.SE), calibrate.Num(e.Low), calibrate.Num(e.High))
 	}
 	for _, n := range rep.Notes {
@@ -188,7 +192,18 @@ func writeFit(ctx context.Context, dir string, p *calibrate.Problem, rep *calibr
 	if sum.Notes == nil {
 		sum.Notes = []string{}
 	}
-	for _, e := range rep.Estimates {
+	for _, e := range rep.NoiseEstimates {
+		v := e.Value
+		switch e.Name {
+		case calibrate.SigmaC:
+			sum.SigmaC = &v
+		case calibrate.SigmaA:
+			sum.SigmaA = &v
+		case calibrate.SigmaB:
+			sum.SigmaB = &v
+		}
+	}
+	for _, e := range rep.All() {
 		sum.Estimates = append(sum.Estimates, map[string]any{"name": e.Name, "target": e.Target, "value": e.Value, "se": fitJSONNum(e.SE),
 			"ci95_low": fitJSONNum(e.Low), "ci95_high": fitJSONNum(e.High), "profile_low": fitJSONNum(e.ProfileLow), "profile_high": fitJSONNum(e.ProfileHigh),
 			"determined": e.Determined, "at_bound": e.AtBound, "unit": e.Unit})
@@ -278,7 +293,7 @@ func fitFigures(ctx context.Context, dir string, p *calibrate.Problem, rep *cali
 	if err := plotting.Save(pl, filepath.Join(dir, "starts.png"), 0, 0, 0, prov.Metadata(o.Title)); err != nil {
 		return err
 	}
-	if n := len(rep.Estimates); n > 1 {
+	if n := len(rep.Estimates) + len(rep.NoiseEstimates); n > 1 {
 		idx := make([]float64, n)
 		z := make([][]float64, n)
 		for a := range z {
@@ -297,8 +312,9 @@ func fitFigures(ctx context.Context, dir string, p *calibrate.Problem, rep *cali
 			return err
 		}
 	}
+	all := append(slices.Clone(rep.Estimates), rep.NoiseEstimates...)
 	for j, pr := range rep.Profiles {
-		e := rep.Estimates[j]
+		e := all[j]
 		o := plotting.Options{Title: fmt.Sprintf("Profile of %s (the 95%% interval is where it stays within 1.92 of the best)", e.Name),
 			XLabel: e.Name, XUnit: e.Unit, YLabel: "objective (−log-likelihood)", LogX: e.Log}
 		pl, err := plotting.XYPlot(pr.Values, pr.Objectives, o)

@@ -90,3 +90,40 @@ func TestFitExitStatus(t *testing.T) {
 		t.Errorf("missing spec: exit %d, %q", rc, stderr)
 	}
 }
+
+// TestFitProportionalNoise runs fit with "noise": {"model":
+// "proportional"}: estimates.csv gains a sigma_c row after the model's
+// quantities, with a finite standard error and an interval around the
+// value, and fit.json a sigma_c number (and no constant-noise sigma).
+func TestFitProportionalNoise(t *testing.T) {
+	dir := t.TempDir()
+	rc, stdout, stderr := fitRun("testdata/fit/decay-proportional-fit.json", "--out", dir, "--quiet")
+	if rc != 0 {
+		t.Fatalf("exit %d: %s %s", rc, stdout, stderr)
+	}
+	rows, err := atomicfile.ReadCSV(filepath.Join(dir, "estimates.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 4 || rows[3][0] != "sigma_c" {
+		t.Fatalf("estimates.csv rows %q; want k, init:A, sigma_c", rows)
+	}
+	c, _ := strconv.ParseFloat(rows[3][1], 64)
+	se, _ := strconv.ParseFloat(rows[3][2], 64)
+	lo, _ := strconv.ParseFloat(rows[3][3], 64)
+	hi, _ := strconv.ParseFloat(rows[3][4], 64)
+	if !(c > 0 && se > 0 && lo < c && c < hi) {
+		t.Errorf("sigma_c row %q", rows[3])
+	}
+	b, _ := os.ReadFile(filepath.Join(dir, "fit.json"))
+	var sum map[string]any
+	if err := json.Unmarshal(b, &sum); err != nil {
+		t.Fatal(err)
+	}
+	if v, ok := sum["sigma_c"].(float64); !ok || v != c {
+		t.Errorf("fit.json sigma_c %v, estimates.csv %g", sum["sigma_c"], c)
+	}
+	if _, ok := sum["sigma"]; ok {
+		t.Error("fit.json has the constant model's sigma for proportional noise")
+	}
+}

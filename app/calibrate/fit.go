@@ -30,6 +30,9 @@ type Param struct {
 	Start        float64 // the given start, or the default (geometric mean or midpoint)
 	Log          bool
 	Unit         string // from the model, for reports
+	// Noise marks a parameter of the noise model (σ_c, σ_a, σ_b; see
+	// noise.go) rather than of the model; they come after the model's.
+	Noise bool
 }
 
 // Problem is a prepared fit: the model, the experiments with their data,
@@ -46,6 +49,10 @@ type Problem struct {
 	ByDifferences bool
 
 	opts []Options // one per experiment, for copies
+	// NModel counts the model's quantities in Params; the noise model's
+	// parameters follow them.
+	NModel int
+	sref   float64 // the data's scale, for the log σ residuals (noise.go)
 }
 
 // ExpData is one experiment prepared for fitting.
@@ -53,10 +60,11 @@ type ExpData struct {
 	Name   string
 	Data   *Data
 	ev     *Evaluator
-	pidx   []int // for each evaluator target, its index in Params
-	outIdx []int // per point: the evaluator output
-	tIdx   []int // per point: the evaluator time
-	row0   int   // first residual of this experiment
+	pidx   []int     // for each evaluator target, its index in Params
+	outIdx []int     // per point: the evaluator output
+	tIdx   []int     // per point: the evaluator time
+	row0   int       // first residual of this experiment
+	yhat   []float64 // the fitted values of the last Residuals
 }
 
 // NewProblem loads the model and the data of spec and resolves every name.
@@ -75,9 +83,9 @@ func NewProblem(spec *Spec) (*Problem, error) {
 // NewProblemModel is NewProblem with the model given.
 func NewProblemModel(spec *Spec, m *network.Model) (*Problem, error) {
 	switch spec.Noise.Model {
-	case NoiseSD, NoiseConstant, "":
+	case NoiseSD, NoiseConstant, NoiseProportional, NoiseCombined, "":
 	default:
-		return nil, fmt.Errorf("noise model %q is not available in this version; use %q (the data's sd_ columns) or %q (one σ, estimated)", spec.Noise.Model, NoiseSD, NoiseConstant)
+		return nil, fmt.Errorf("noise model %q is unknown; use %q (the data's sd_ columns), %q (one σ, estimated), %q (σ = c·|fitted|) or %q (σ² = a² + (b·fitted)²)", spec.Noise.Model, NoiseSD, NoiseConstant, NoiseProportional, NoiseCombined)
 	}
 	p := &Problem{Spec: spec, Model: m}
 	known := append(speciesNames(m), assignmentNames(m)...)
@@ -172,6 +180,8 @@ func NewProblemModel(spec *Spec, m *network.Model) (*Problem, error) {
 		p.Exps = append(p.Exps, ed)
 		p.opts = append(p.opts, o)
 	}
+	p.NModel = len(p.Params)
+	p.addNoiseParams()
 	if p.NData <= len(p.Params) {
 		return nil, fmt.Errorf("%d measured values for %d estimated quantities; a fit needs more values than quantities", p.NData, len(p.Params))
 	}
@@ -214,8 +224,11 @@ func (p *Problem) clone() (*Problem, error) {
 // standard deviations.
 func (p *Problem) Weighted() bool { return p.Spec.Noise.Model == NoiseSD || p.Spec.Noise.Model == "" }
 
-// Residuals is a fit.Func: the residuals fitted − observed (divided by the
-// SD for sd_column) at x and, when jac is not nil, their Jacobian.
+// Residuals is a fit.Func: the residuals (fitted − observed)/σ at x (σ
+// = 1 for the noise model constant, the data's SD for sd_column, the
+// noise model's σ for proportional and combined, which add a second block
+// of residuals for the log σ terms of the likelihood; see noise.go) and,
+// when jac is not nil, their Jacobian.
 func (p *Problem) Residuals(ctx context.Context, x, r []float64, jac *mat.Dense) error {
 	for _, e := range p.Exps {
 		q := make([]float64, len(e.pidx))
@@ -226,70 +239,66 @@ func (p *Problem) Residuals(ctx context.Context, x, r []float64, jac *mat.Dense)
 		if err != nil {
 			return fmt.Errorf("experiment %q: %w", e.Name, err)
 		}
-		p.fill(e, res, r)
-		if jac == nil {
-			continue
+		yhat := p.predictions(e, res)
+		e.yhat = yhat
+		var dyhat [][]float64 // per point, ∂ŷ/∂q_j
+		if jac != nil {
+			if p.ByDifferences {
+				if dyhat, err = p.differences(ctx, e, q); err != nil {
+					return err
+				}
+			} else {
+				nq := len(e.pidx)
+				dyhat = make([][]float64, len(e.Data.Points))
+				for k := range e.Data.Points {
+					d := res.D[e.tIdx[k]]
+					dyhat[k] = d[e.outIdx[k]*nq : (e.outIdx[k]+1)*nq]
+				}
+			}
 		}
-		if p.ByDifferences {
-			if err := p.differences(ctx, e, q, jac); err != nil {
-				return err
-			}
-			continue
-		}
-		nq := len(e.pidx)
-		for k, pt := range e.Data.Points {
-			row := e.row0 + k
-			for j := range x {
-				jac.Set(row, j, 0)
-			}
-			w := 1.0
-			if p.Weighted() {
-				w = 1 / pt.SD
-			}
-			d := res.D[e.tIdx[k]]
-			for j, pi := range e.pidx {
-				jac.Set(row, pi, w*d[e.outIdx[k]*nq+j])
-			}
+		if err := p.fill(e, x, yhat, dyhat, r, jac); err != nil {
+			return fmt.Errorf("experiment %q: %w", e.Name, err)
 		}
 	}
 	return nil
 }
 
-// fill writes the residuals of experiment e from a solve.
-func (p *Problem) fill(e *ExpData, res *Result, r []float64) {
-	for k, pt := range e.Data.Points {
-		v := res.Y[e.tIdx[k]][e.outIdx[k]] - pt.Value
-		if p.Weighted() {
-			v /= pt.SD
-		}
-		r[e.row0+k] = v
+// predictions returns experiment e's fitted values at its points.
+func (p *Problem) predictions(e *ExpData, res *Result) []float64 {
+	out := make([]float64, len(e.Data.Points))
+	for k := range e.Data.Points {
+		out[k] = res.Y[e.tIdx[k]][e.outIdx[k]]
 	}
+	return out
 }
 
-// differences fills experiment e's rows of jac by central differences.
-func (p *Problem) differences(ctx context.Context, e *ExpData, q []float64, jac *mat.Dense) error {
-	rp, rm := make([]float64, p.NData), make([]float64, p.NData)
-	for j, pi := range e.pidx {
+// differences returns ∂ŷ/∂q for experiment e's points by central
+// differences of whole solves.
+func (p *Problem) differences(ctx context.Context, e *ExpData, q []float64) ([][]float64, error) {
+	nq := len(q)
+	out := make([][]float64, len(e.Data.Points))
+	for k := range out {
+		out[k] = make([]float64, nq)
+	}
+	for j := range q {
 		h := 1e-6 * math.Max(math.Abs(q[j]), 1e-8)
 		qq := slices.Clone(q)
 		qq[j] = q[j] + h
 		res, err := e.ev.Solve(ctx, qq, false)
 		if err != nil {
-			return err
+			return nil, err
 		}
-		p.fill(e, res, rp)
+		yp := p.predictions(e, res)
 		qq[j] = q[j] - h
-		res, err = e.ev.Solve(ctx, qq, false)
-		if err != nil {
-			return err
+		if res, err = e.ev.Solve(ctx, qq, false); err != nil {
+			return nil, err
 		}
-		p.fill(e, res, rm)
-		for k := range e.Data.Points {
-			row := e.row0 + k
-			jac.Set(row, pi, (rp[row]-rm[row])/(2*h))
+		ym := p.predictions(e, res)
+		for k := range out {
+			out[k][j] = (yp[k] - ym[k]) / (2 * h)
 		}
 	}
-	return nil
+	return out, nil
 }
 
 // Settings control Run. The zero value of every field means a sensible
@@ -351,21 +360,31 @@ type Report struct {
 	Objective, WSSR, SSR float64
 	NData, NParams, DOF  int // NParams counts σ when it is estimated
 	AIC, AICc, BIC       float64
-	Sigma                float64 // the estimated σ, √(SSR/(n − p)); NaN when σ is known
+	Sigma                float64 // the estimated σ, √(SSR/(n − p)), of constant noise; NaN otherwise
 	Noise                string
-	Starts               []Start
-	Converged            int
-	Best                 int // index of the best start
-	Iterations           int // of the best start
-	Seconds              float64
-	Corr                 *mat.SymDense
-	Residuals            []Residual
+	// NoiseEstimates are the estimated parameters of proportional
+	// (sigma_c) and combined (sigma_a, sigma_b) noise, with their
+	// uncertainty; Corr's rows and columns are Estimates, then these.
+	NoiseEstimates []Estimated
+	Starts         []Start
+	Converged      int
+	Best           int // index of the best start
+	Iterations     int // of the best start
+	Seconds        float64
+	Corr           *mat.SymDense
+	Residuals      []Residual
 	// Notes say in words what the numbers cannot: parameters the data do
 	// not determine, estimates on a bound, open profile intervals,
 	// sensitivities taken by differences.
 	Notes []string
 	// Profiles holds the profile of each estimate when asked for.
 	Profiles []Profile
+}
+
+// All returns the estimates of the model's quantities, then those of the
+// noise model: the order of Corr's rows and columns.
+func (r *Report) All() []Estimated {
+	return append(slices.Clone(r.Estimates), r.NoiseEstimates...)
 }
 
 // internal coordinates: log or linear.
@@ -418,17 +437,18 @@ func (p *Problem) minimize(ctx context.Context, x0 []float64, maxIt int, progres
 		s.Upper = append(s.Upper, q.Upper)
 		s.Log = append(s.Log, q.Log)
 	}
-	return fit.Minimize(ctx, p.Residuals, p.NData, x0, s)
+	return fit.Minimize(ctx, p.Residuals, p.rows(), x0, s)
 }
 
 // objective is the negative log-likelihood for the residuals r.
 func (p *Problem) objective(r []float64) float64 {
-	n := float64(len(r))
+	n := float64(p.NData)
 	var ss float64
-	for _, v := range r {
+	for _, v := range r[:p.NData] {
 		ss += v * v
 	}
-	if p.Weighted() {
+	switch {
+	case p.Weighted():
 		nll := 0.5*ss + 0.5*n*math.Log(2*math.Pi)
 		for _, e := range p.Exps {
 			for _, pt := range e.Data.Points {
@@ -436,6 +456,8 @@ func (p *Problem) objective(r []float64) float64 {
 			}
 		}
 		return nll
+	case p.noiseModelled():
+		return 0.5*ss + p.sumLogSigma(r) + 0.5*n*math.Log(2*math.Pi)
 	}
 	if ss == 0 {
 		return math.Inf(-1)
@@ -563,25 +585,36 @@ func (e *NoConvergence) Error() string {
 // Fisher uncertainty, notes and, when asked, profiles.
 func (p *Problem) assess(ctx context.Context, rep *Report, x []float64, s Settings) error {
 	np := len(p.Params)
-	r := make([]float64, p.NData)
-	jac := mat.NewDense(p.NData, np, nil)
+	r := make([]float64, p.rows())
+	jac := mat.NewDense(p.rows(), np, nil)
 	if err := p.Residuals(ctx, x, r, jac); err != nil {
 		return fmt.Errorf("at the estimate: %w", err)
 	}
 	n := p.NData
 	var ss float64
-	for _, v := range r {
+	for _, v := range r[:n] {
 		ss += v * v
 	}
 	rep.NData = n
 	rep.DOF = n - np
 	k := np
-	sigma2 := 1.0
-	if p.Weighted() {
-		rep.WSSR = ss
-	} else {
+	rep.WSSR = ss
+	if !p.Weighted() && !p.noiseModelled() {
 		k++ // σ
-		sigma2 = ss / float64(n-np)
+	}
+	// Fisher information.
+	held := make([]bool, np)
+	atBound := make([]int, np)
+	for j, q := range p.Params {
+		switch {
+		case x[j] <= q.Lower:
+			held[j], atBound[j] = true, -1
+		case x[j] >= q.Upper:
+			held[j], atBound[j] = true, 1
+		}
+	}
+	u, sigma2 := p.fisher(r, jac, held)
+	if !p.Weighted() && !p.noiseModelled() {
 		rep.Sigma = math.Sqrt(sigma2)
 		rep.WSSR = ss / sigma2
 	}
@@ -598,36 +631,20 @@ func (p *Problem) assess(ctx context.Context, rep *Report, x []float64, s Settin
 	for _, e := range p.Exps {
 		for i, pt := range e.Data.Points {
 			w := r[e.row0+i]
-			res := w
-			if p.Weighted() {
-				res = w * pt.SD
-			}
-			fitted := pt.Value + res
+			fitted := e.yhat[i]
 			rr := Residual{Experiment: e.Name, Time: pt.Time, Name: pt.Name, Observed: pt.Value, SD: pt.SD,
 				Fitted: fitted, Residual: pt.Value - fitted, Weighted: -w}
-			if !p.Weighted() {
+			if !p.Weighted() && !p.noiseModelled() {
 				rr.Weighted = rr.Residual / math.Sqrt(sigma2)
 			}
 			rep.Residuals = append(rep.Residuals, rr)
 			rep.SSR += rr.Residual * rr.Residual
 		}
 	}
-	// Fisher information.
-	held := make([]bool, np)
-	atBound := make([]int, np)
-	for j, q := range p.Params {
-		switch {
-		case x[j] <= q.Lower:
-			held[j], atBound[j] = true, -1
-		case x[j] >= q.Upper:
-			held[j], atBound[j] = true, 1
-		}
-	}
-	u := fit.Fisher(jac, sigma2, held)
 	rep.Corr = u.Corr
 	dofQ := 0
 	if !p.Weighted() {
-		dofQ = rep.DOF
+		dofQ = rep.DOF // σ estimated: Student's t
 	}
 	qt := fit.Quantile97_5(dofQ)
 	for j, q := range p.Params {
@@ -652,7 +669,11 @@ func (p *Problem) assess(ctx context.Context, rep *Report, x []float64, s Settin
 		if e.Determined && e.SE > 10*math.Abs(x[j]) && x[j] != 0 {
 			rep.Notes = append(rep.Notes, fmt.Sprintf("%s is poorly determined: its standard error (%.3g) is more than ten times its value", q.Name, e.SE))
 		}
-		rep.Estimates = append(rep.Estimates, e)
+		if q.Noise {
+			rep.NoiseEstimates = append(rep.NoiseEstimates, e)
+		} else {
+			rep.Estimates = append(rep.Estimates, e)
+		}
 	}
 	for _, e := range p.Exps {
 		for j, why := range e.ev.Inexact() {
@@ -668,7 +689,12 @@ func (p *Problem) assess(ctx context.Context, rep *Report, x []float64, s Settin
 		}
 		rep.Profiles = profs
 		for j, pr := range profs {
-			rep.Estimates[j].ProfileLow, rep.Estimates[j].ProfileHigh = pr.Low, pr.High
+			est := &rep.Estimates
+			jj := j
+			if j >= p.NModel {
+				est, jj = &rep.NoiseEstimates, j-p.NModel
+			}
+			(*est)[jj].ProfileLow, (*est)[jj].ProfileHigh = pr.Low, pr.High
 			if math.IsInf(pr.Low, 0) || math.IsInf(pr.High, 0) {
 				rep.Notes = append(rep.Notes, fmt.Sprintf("%s: the profile likelihood does not rise by the 95 %% threshold within the bounds on the %s, so the interval is open there: the data do not bound %s in that direction", p.Params[j].Name, openSide(pr), p.Params[j].Name))
 			}

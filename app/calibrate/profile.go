@@ -37,20 +37,12 @@ type sideResult struct {
 func (p *Problem) profiles(ctx context.Context, x []float64, best float64, workers int) ([]Profile, error) {
 	np := len(p.Params)
 	// A first step from the Fisher standard errors in the internal scale.
-	r := make([]float64, p.NData)
-	jac := mat.NewDense(p.NData, np, nil)
+	r := make([]float64, p.rows())
+	jac := mat.NewDense(p.rows(), np, nil)
 	if err := p.Residuals(ctx, x, r, jac); err != nil {
 		return nil, err
 	}
-	sigma2 := 1.0
-	if !p.Weighted() {
-		var ss float64
-		for _, v := range r {
-			ss += v * v
-		}
-		sigma2 = ss / float64(p.NData-np)
-	}
-	u := fit.Fisher(jac, sigma2, nil)
+	u, _ := p.fisher(r, jac, nil)
 	steps := make([]float64, np)
 	for j, q := range p.Params {
 		span := p.toZ(j, q.Upper) - p.toZ(j, q.Lower)
@@ -203,7 +195,7 @@ func (p *Problem) refitFixed(ctx context.Context, j int, v float64, others []flo
 		full[j] = v
 		copy(full[j+1:], y[j:])
 	}
-	jfull := mat.NewDense(p.NData, np, nil)
+	jfull := mat.NewDense(p.rows(), np, nil)
 	f := func(ctx context.Context, y, r []float64, jac *mat.Dense) error {
 		expand(y)
 		var jj *mat.Dense
@@ -214,7 +206,7 @@ func (p *Problem) refitFixed(ctx context.Context, j int, v float64, others []flo
 			return err
 		}
 		if jac != nil {
-			for row := 0; row < p.NData; row++ {
+			for row := 0; row < p.rows(); row++ {
 				for c := 0; c < np-1; c++ {
 					src := c
 					if c >= j {
@@ -227,7 +219,7 @@ func (p *Problem) refitFixed(ctx context.Context, j int, v float64, others []flo
 		return nil
 	}
 	if np == 1 {
-		r := make([]float64, p.NData)
+		r := make([]float64, p.rows())
 		full[0] = v
 		if err := p.Residuals(ctx, full, r, nil); err != nil {
 			return 0, nil, false
@@ -243,7 +235,7 @@ func (p *Problem) refitFixed(ctx context.Context, j int, v float64, others []flo
 		s.Upper = append(s.Upper, q.Upper)
 		s.Log = append(s.Log, q.Log)
 	}
-	res, err := fit.Minimize(ctx, f, p.NData, others, s)
+	res, err := fit.Minimize(ctx, f, p.rows(), others, s)
 	if err != nil || res == nil {
 		return 0, nil, false
 	}

@@ -25,10 +25,10 @@ func Num(v float64) string {
 
 // EstimateRows lays out the estimates: name, value, se, ci95_low,
 // ci95_high, profile_low, profile_high (the profile cells empty when no
-// profiles were computed).
+// profiles were computed), the noise model's estimates last.
 func EstimateRows(rep *Report) [][]string {
 	rows := [][]string{{"name", "value", "se", "ci95_low", "ci95_high", "profile_low", "profile_high"}}
-	for _, e := range rep.Estimates {
+	for _, e := range rep.All() {
 		rows = append(rows, []string{e.Name, Num(e.Value), Num(e.SE), Num(e.Low), Num(e.High), Num(e.ProfileLow), Num(e.ProfileHigh)})
 	}
 	return rows
@@ -45,15 +45,17 @@ func FittedRows(rep *Report) [][]string {
 }
 
 // CorrelationRows lays out the correlation matrix of the estimates with
-// their names as the first row and column.
+// their names as the first row and column (the noise model's estimates
+// last).
 func CorrelationRows(rep *Report) [][]string {
+	all := rep.All()
 	rows := [][]string{{"name"}}
-	for _, e := range rep.Estimates {
+	for _, e := range all {
 		rows[0] = append(rows[0], e.Name)
 	}
-	for a, e := range rep.Estimates {
+	for a, e := range all {
 		row := []string{e.Name}
-		for b := range rep.Estimates {
+		for b := range all {
 			v := math.NaN()
 			if rep.Corr != nil {
 				v = rep.Corr.At(a, b)

@@ -69,14 +69,10 @@ type Evaluator struct {
 	vars    []float64 // [y | parameters | t] for the derivative programs
 	np      int
 
-	rules     []*eventRule
-	byName    map[string]*eventRule
-	exact     []bool   // per target
-	inexactBy []string // per target: why its sensitivities are taken by differences
-	overrides map[string]bool
-	ytmp      []float64
-	fm, fp    []float64
-	ds        [][]float64
+	jump      *network.SensJump // the events' jump rule for the sensitivities
+	exact     []bool            // per target
+	inexactBy []string          // per target: why its sensitivities are taken by differences
+	overrides map[string]bool   // event quantities given values from outside
 }
 
 // target is one resolved target knob.
@@ -90,21 +86,7 @@ type target struct {
 type output struct {
 	name    string
 	species int // ≥ 0 for a species
-	asg     *dexpr
-}
-
-// dexpr is a compiled expression over [y | parameters | t] with its
-// derivatives by the species and parameters it reads.
-type dexpr struct {
-	prog   *expr.Program
-	dy, dp []dterm
-	dt     *expr.Program // ∂/∂t, or nil
-	vars   []string
-}
-
-type dterm struct {
-	i    int
-	prog *expr.Program
+	asg     *network.DiffExpr
 }
 
 // Result is one solve of an Evaluator.
@@ -136,8 +118,7 @@ func NewEvaluator(m *network.Model, o Options) (*Evaluator, error) {
 	}
 	e := &Evaluator{model: m, net: net, sys: sys, opts: o, np: len(sys.Parameters()), overrides: map[string]bool{}}
 	n := sys.Dim()
-	e.vars = make([]float64, n+e.np+1)
-	e.ytmp, e.fm, e.fp = make([]float64, n), make([]float64, n), make([]float64, n)
+	e.vars = make([]float64, sys.VarsLen())
 	seen := map[string]bool{}
 	for _, ref := range o.Targets {
 		t, err := resolve(sys, ref)
@@ -215,7 +196,7 @@ func NewEvaluator(m *network.Model, o Options) (*Evaluator, error) {
 	}
 	set.Times = e.times
 	e.set = set
-	if err := e.buildRules(); err != nil {
+	if err := e.buildJump(); err != nil {
 		return nil, err
 	}
 	e.plain = solve.NewSolver(sys, set)
@@ -225,7 +206,6 @@ func NewEvaluator(m *network.Model, o Options) (*Evaluator, error) {
 		e.sensSv = solve.NewSolver(sys, ss)
 	}
 	e.y0 = make([]float64, n)
-	e.ds = make([][]float64, len(e.targets))
 	return e, nil
 }
 
@@ -318,7 +298,7 @@ func (e *Evaluator) buildOutputs() error {
 				node = a.Expr
 			}
 		}
-		d, err := e.compileD(node)
+		d, err := e.net.DiffExpr(e.sys, node)
 		if err != nil {
 			return fmt.Errorf("assignment %q: %w", name, err)
 		}
@@ -327,98 +307,52 @@ func (e *Evaluator) buildOutputs() error {
 	return nil
 }
 
-// inline writes every assignment out in n.
-func (e *Evaluator) inline(n expr.Node) expr.Node {
-	inlined := map[string]expr.Node{}
-	look := func(name string) (expr.Node, bool) { t, ok := inlined[name]; return t, ok }
-	for _, a := range e.net.Assignments {
-		if a.Expr != nil {
-			inlined[a.Name] = expr.Substitute(a.Expr, look)
+// buildJump prepares the events' jump rule for the targets and decides
+// which targets have exact sensitivities (network.SensJump).
+func (e *Evaluator) buildJump() error {
+	ts := make([]network.SensTarget, len(e.targets))
+	for j, t := range e.targets {
+		switch t.Kind {
+		case sliders.Initial:
+			ts[j] = network.SensTarget{Kind: network.SensInitial, Index: t.index}
+		case sliders.Volume:
+			ts[j] = network.SensTarget{Kind: network.SensVolume, Index: t.index}
+		case sliders.Event:
+			ts[j] = network.SensTarget{Kind: network.SensEvent, Event: t.Name}
+		default:
+			ts[j] = network.SensTarget{Kind: network.SensParameter, Index: t.index}
 		}
 	}
-	return expr.Substitute(n, look)
-}
-
-// slot maps a name to its place in e.vars.
-func (e *Evaluator) slot(name string) (int, bool) {
-	if name == "t" {
-		return len(e.vars) - 1, true
-	}
-	if i, ok := e.sys.SpeciesIndex(name); ok {
-		return i, true
-	}
-	if i, ok := e.sys.ParameterIndex(name); ok {
-		return e.sys.Dim() + i, true
-	}
-	return 0, false
-}
-
-// compileD compiles n (assignments written out) with its derivatives.
-func (e *Evaluator) compileD(n expr.Node) (*dexpr, error) {
-	if n == nil {
-		return nil, fmt.Errorf("not checked")
-	}
-	n = e.inline(n)
-	p, err := expr.Compile(n, e.slot)
+	jump, err := e.net.SensJump(e.sys, ts, e.overrides)
 	if err != nil {
-		return nil, err
+		return err
 	}
-	d := &dexpr{prog: p}
-	vs := expr.Vars(n)
-	d.vars = vs
-	for _, v := range vs {
-		dn := expr.Simplify(expr.Diff(n, v))
-		if c, ok := expr.Const(dn); ok && c == 0 {
-			continue
-		}
-		dp, err := expr.Compile(dn, e.slot)
-		if err != nil {
-			return nil, err
-		}
-		if i, ok := e.sys.SpeciesIndex(v); ok {
-			d.dy = append(d.dy, dterm{i, dp})
-		} else if i, ok := e.sys.ParameterIndex(v); ok {
-			d.dp = append(d.dp, dterm{i, dp})
-		} else if v == "t" {
-			d.dt = dp
-		}
+	e.jump = jump
+	e.inexactBy = jump.Inexact()
+	e.exact = make([]bool, len(e.targets))
+	for j, why := range e.inexactBy {
+		e.exact[j] = why == ""
 	}
-	return d, nil
+	return nil
 }
 
 // load puts t, y and the current parameter values into e.vars.
-func (e *Evaluator) load(t float64, y []float64) {
-	n := e.sys.Dim()
-	copy(e.vars, y)
-	for i := 0; i < e.np; i++ {
-		e.vars[n+i] = e.sys.Parameter(i)
-	}
-	e.vars[len(e.vars)-1] = t
-}
+func (e *Evaluator) load(t float64, y []float64) { e.sys.LoadVars(e.vars, t, y) }
 
 // deriv returns the derivative of d along target j, with the state's
 // sensitivities s (to target j), at the point loaded.
-func (e *Evaluator) deriv(d *dexpr, j int, s []float64) float64 {
-	var v float64
-	for _, dt := range d.dy {
-		if s != nil {
-			v += dt.prog.Eval(e.vars) * s[dt.i]
-		}
-	}
+func (e *Evaluator) deriv(d *network.DiffExpr, j int, s []float64) float64 {
+	p := -1
 	if t := e.targets[j]; t.Kind == sliders.Parameter {
-		for _, dt := range d.dp {
-			if dt.i == t.index {
-				v += dt.prog.Eval(e.vars)
-			}
-		}
+		p = t.index
 	}
-	return v
+	return d.Along(e.vars, s, p)
 }
 
 // sensSettings makes the solver's sensitivity settings for the targets.
 func (e *Evaluator) sensSettings() *solve.SensSettings {
 	n := e.sys.Dim()
-	ss := &solve.SensSettings{ErrorControl: e.opts.ErrorControl, Jump: e.jump}
+	ss := &solve.SensSettings{ErrorControl: e.opts.ErrorControl, Jump: e.jump.Jump}
 	for j, t := range e.targets {
 		q := solve.Sensitivity{Param: -1, Scale: math.Abs(e.base[j])}
 		switch t.Kind {
@@ -510,7 +444,7 @@ func (e *Evaluator) Solve(ctx context.Context, x []float64, sens bool) (*Result,
 	if sens && e.sensSv != nil {
 		sv = e.sensSv
 	}
-	e.resetRules()
+	e.jump.Reset()
 	res, err := sv.Solve(ctx, 0, e.tEnd, e.y0)
 	out := e.pack(res, sens && e.sensSv != nil)
 	if err != nil {
@@ -550,7 +484,7 @@ func (e *Evaluator) pack(res *solve.Result, sens bool) *Result {
 			if o.species >= 0 {
 				row[k] = y[o.species]
 			} else {
-				row[k] = o.asg.prog.Eval(e.vars)
+				row[k] = o.asg.Eval(e.vars)
 			}
 		}
 		out.Y[i] = row
@@ -593,7 +527,7 @@ func (e *Evaluator) differences(ctx context.Context, x []float64, out *Result) e
 			if err := e.setValues(xp); err != nil {
 				return err
 			}
-			e.resetRules()
+			e.jump.Reset()
 			res, err := e.plain.Solve(ctx, 0, e.tEnd, e.y0)
 			if err != nil {
 				return fmt.Errorf("differences for %s: %w", e.targets[j].Ref(), run.NameSpecies(err, e.sys.Species()))

@@ -181,41 +181,6 @@ func TestSensitivitiesAgainstDifferences(t *testing.T) {
 		}
 	}
 }
-
-// TestJumpRuleMatters shows that the comparison above can fail: without
-// the jump rule, the sensitivities to a dose's amount and interval stay
-// continuous across the doses, and differ from central differences by far
-// more than the bound.
-func TestJumpRuleMatters(t *testing.T) {
-	m := loadExample(t, "twice-daily-oral-dose.json")
-	ctx := context.Background()
-	targets := []string{"dose", "event:oral_dose.every"}
-	ev, err := NewEvaluator(m, Options{Targets: targets, RTol: 1e-9, ATol: 1e-14, Method: solve.BDF})
-	if err != nil {
-		t.Fatal(err)
-	}
-	with, err := ev.Solve(ctx, nil, true)
-	if err != nil {
-		t.Fatal(err)
-	}
-	ss := ev.set
-	ss.Sens = ev.sensSettings()
-	ss.Sens.Jump = nil
-	ev.sensSv = solve.NewSolver(ev.sys, ss)
-	without, err := ev.Solve(ctx, nil, true)
-	if err != nil {
-		t.Fatal(err)
-	}
-	i := len(with.T) - 1 // t = 168, after 14 doses
-	k := 1               // D_plasma
-	for j, tg := range targets {
-		a, b := with.D[i][k*len(targets)+j], without.D[i][k*len(targets)+j]
-		if math.Abs(a-b) < 1e-2*math.Abs(a) {
-			t.Errorf("∂D_plasma/∂%s with and without the jump rule: %g and %g; expected them to differ", tg, a, b)
-		}
-	}
-}
-
 // ScaledGrid gives ∂ln A/∂ln k = −k·t for A → B at rate k·A (closed form
 // of first-order decay, ../shared/reference/analytic-checks.md) and NaN
 // where the output is zero (B at t = 0).
