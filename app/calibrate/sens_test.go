@@ -181,6 +181,7 @@ func TestSensitivitiesAgainstDifferences(t *testing.T) {
 		}
 	}
 }
+
 // ScaledGrid gives ∂ln A/∂ln k = −k·t for A → B at rate k·A (closed form
 // of first-order decay, ../shared/reference/analytic-checks.md) and NaN
 // where the output is zero (B at t = 0).
