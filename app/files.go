@@ -102,9 +102,16 @@ func (w *mainWindow) newModel() {
 }
 
 func (w *mainWindow) openDialog() {
+	askOpen(w.win, []string{".json"}, w.lastDir(), w.showError, w.openPath)
+}
+
+// askOpen shows a file-open dialog in win for files ending in one of exts,
+// starting in dir when it is not nil, and calls open with the chosen path;
+// an error of the dialog goes to fail, and Cancel does nothing.
+func askOpen(win fyne.Window, exts []string, dir fyne.ListableURI, fail func(error), open func(path string)) {
 	d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
 		if err != nil {
-			w.showError(err)
+			fail(err)
 			return
 		}
 		if r == nil {
@@ -112,10 +119,10 @@ func (w *mainWindow) openDialog() {
 		}
 		path := r.URI().Path()
 		r.Close()
-		w.openPath(path)
-	}, w.win)
-	d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
-	if dir := w.lastDir(); dir != nil {
+		open(path)
+	}, win)
+	d.SetFilter(storage.NewExtensionFileFilter(exts))
+	if dir != nil {
 		d.SetLocation(dir)
 	}
 	d.Resize(fyne.NewSize(900, 600))

@@ -21,7 +21,6 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/dialog"
-	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
@@ -392,20 +391,7 @@ func sortedKeys(m map[string]float64) []string {
 // addDataDialog asks for a measurements file to add as an experiment
 // under the model's own conditions.
 func (f *fitWindow) addDataDialog() {
-	d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
-		if err != nil || r == nil {
-			if err != nil {
-				dialog.ShowError(err, f.win)
-			}
-			return
-		}
-		path := r.URI().Path()
-		r.Close()
-		f.addData(path)
-	}, f.win)
-	d.SetFilter(storage.NewExtensionFileFilter([]string{".csv", ".tsv", ".txt"}))
-	d.Resize(fyne.NewSize(900, 600))
-	d.Show()
+	askOpen(f.win, []string{".csv", ".tsv", ".txt"}, nil, f.showError, f.addData)
 }
 
 // addData reads a measurements file (to report its problems now, with
@@ -422,23 +408,15 @@ func (f *fitWindow) addData(path string) {
 
 // loadPlanDialog asks for a fit plan ("kinetarium.fit/1") and loads it.
 func (f *fitWindow) loadPlanDialog() {
-	d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
-		if err != nil || r == nil {
-			if err != nil {
-				dialog.ShowError(err, f.win)
-			}
-			return
-		}
-		path := r.URI().Path()
-		r.Close()
+	askOpen(f.win, []string{".json"}, nil, f.showError, func(path string) {
 		if err := f.loadPlan(path); err != nil {
-			dialog.ShowError(err, f.win)
+			f.showError(err)
 		}
-	}, f.win)
-	d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
-	d.Resize(fyne.NewSize(900, 600))
-	d.Show()
+	})
 }
+
+// showError shows err in a dialog over the fit window.
+func (f *fitWindow) showError(err error) { dialog.ShowError(err, f.win) }
 
 // loadPlan reads a fit plan: its experiments are added (ticked), and its
 // quantities, bounds, noise model, starts and seed replace the form's.

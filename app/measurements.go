@@ -15,7 +15,6 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/dialog"
-	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/widget"
 
 	"kinetarium/app/calibrate"
@@ -54,24 +53,7 @@ func measuredNames(m *network.Model) []string {
 
 // loadMeasurementsDialog asks for a measurements file and loads it.
 func (w *mainWindow) loadMeasurementsDialog() {
-	d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
-		if err != nil {
-			w.showError(err)
-			return
-		}
-		if r == nil {
-			return
-		}
-		path := r.URI().Path()
-		r.Close()
-		w.loadMeasurements(path)
-	}, w.win)
-	d.SetFilter(storage.NewExtensionFileFilter([]string{".csv", ".tsv", ".txt"}))
-	if dir := w.lastDir(); dir != nil {
-		d.SetLocation(dir)
-	}
-	d.Resize(fyne.NewSize(900, 600))
-	d.Show()
+	askOpen(w.win, []string{".csv", ".tsv", ".txt"}, w.lastDir(), w.showError, func(path string) { w.loadMeasurements(path) })
 }
 
 // loadMeasurements reads the measurements file at path against the model

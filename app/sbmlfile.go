@@ -12,7 +12,6 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/dialog"
-	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/widget"
 
 	"kinetarium/internal/atomicfile"
@@ -22,24 +21,7 @@ import (
 
 // importSBMLDialog asks for an SBML file and imports it.
 func (w *mainWindow) importSBMLDialog() {
-	d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
-		if err != nil {
-			w.showError(err)
-			return
-		}
-		if r == nil {
-			return
-		}
-		path := r.URI().Path()
-		r.Close()
-		w.importSBML(path)
-	}, w.win)
-	d.SetFilter(storage.NewExtensionFileFilter([]string{".xml", ".sbml"}))
-	if dir := w.lastDir(); dir != nil {
-		d.SetLocation(dir)
-	}
-	d.Resize(fyne.NewSize(900, 600))
-	d.Show()
+	askOpen(w.win, []string{".xml", ".sbml"}, w.lastDir(), w.showError, w.importSBML)
 }
 
 // importSBML reads path off the UI thread; the model opens as a new model
