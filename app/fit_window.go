@@ -397,7 +397,7 @@ func (f *fitWindow) addDataDialog() {
 // addData reads a measurements file (to report its problems now, with
 // their places) and lists it as an experiment.
 func (f *fitWindow) addData(path string) {
-	d, err := calibrate.LoadData(path, measuredNames(f.model))
+	d, err := calibrate.LoadData(path, calibrate.MeasurableNames(f.model))
 	if err != nil {
 		f.ctl.status.SetText(plainError(err))
 		return

@@ -19,7 +19,6 @@ import (
 
 	"kinetarium/app/calibrate"
 	"kinetarium/app/run"
-	"kinetarium/network"
 	"kinetarium/plotting"
 )
 
@@ -38,19 +37,6 @@ func (w *mainWindow) dataMenu() *fyne.Menu {
 		fyne.NewMenuItem("Fit to measurements…", w.openFit))
 }
 
-// measuredNames are the names a measurements file may use for the model
-// in the editor: its species, then its assignments.
-func measuredNames(m *network.Model) []string {
-	var out []string
-	for _, s := range m.Species {
-		out = append(out, s.Name)
-	}
-	for _, a := range m.Assignments {
-		out = append(out, a.Name)
-	}
-	return out
-}
-
 // loadMeasurementsDialog asks for a measurements file and loads it.
 func (w *mainWindow) loadMeasurementsDialog() {
 	askOpen(w.win, []string{".csv", ".tsv", ".txt"}, w.lastDir(), w.showError, func(path string) { w.loadMeasurements(path) })
@@ -64,7 +50,7 @@ func (w *mainWindow) loadMeasurements(path string) bool {
 	if abs, err := filepath.Abs(path); err == nil {
 		path = abs
 	}
-	d, err := calibrate.LoadData(path, measuredNames(w.doc.Model()))
+	d, err := calibrate.LoadData(path, calibrate.MeasurableNames(w.doc.Model()))
 	if err != nil {
 		w.showDataProblems(path, err)
 		w.setStatus("The measurements in "+filepath.Base(path)+" cannot be shown; see the message.", true)
@@ -126,7 +112,7 @@ func (w *mainWindow) restoreMeasurements(path string) {
 			filepath.Base(calibrate.CompanionPath(path)), dataPath))
 		return
 	}
-	d, err := calibrate.LoadData(dataPath, measuredNames(w.doc.Model()))
+	d, err := calibrate.LoadData(dataPath, calibrate.MeasurableNames(w.doc.Model()))
 	if err != nil {
 		w.showDataProblems(dataPath, err)
 		return

@@ -58,7 +58,7 @@ func (w *mainWindow) openTimeSensitivity() {
 }
 
 func newTimeSensWindow(a fyne.App, m *network.Model, name string) (*timeSensWindow, error) {
-	names := measuredNames(m)
+	names := calibrate.MeasurableNames(m)
 	if len(names) == 0 || len(m.Parameters) == 0 {
 		return nil, fmt.Errorf("sensitivities over time need a species and a parameter; the model has %d and %d", len(m.Species), len(m.Parameters))
 	}

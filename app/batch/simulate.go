@@ -246,7 +246,7 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 	}
 	var measured []plotting.Measured
 	if f.data != "" {
-		d, err := calibrate.LoadData(f.data, measuredNames(m))
+		d, err := calibrate.LoadData(f.data, calibrate.MeasurableNames(m))
 		if err != nil {
 			return badInput(fmt.Errorf("--data: %w", err))
 		}
@@ -457,19 +457,6 @@ func writeSensitivities(ctx context.Context, f *simFlags, m, saved *network.Mode
 // "NAME-sensitivities.csv" → "NAME-sensitivities-OUTPUT.png".
 func sensMapPath(sensOut, output string) string {
 	return strings.TrimSuffix(sensOut, filepath.Ext(sensOut)) + "-" + fileSafe(output) + ".png"
-}
-
-// measuredNames are the names a measurements file may use for m: its
-// species, then its assignments.
-func measuredNames(m *network.Model) []string {
-	var out []string
-	for _, s := range m.Species {
-		out = append(out, s.Name)
-	}
-	for _, a := range m.Assignments {
-		out = append(out, a.Name)
-	}
-	return out
 }
 
 // inFile prefixes err with path unless its message already starts with it

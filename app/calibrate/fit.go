@@ -204,6 +204,12 @@ func assignmentNames(m *network.Model) []string {
 	return out
 }
 
+// MeasurableNames are the names a measurements file may use for m (the
+// names LoadData takes): its species, then its assignments.
+func MeasurableNames(m *network.Model) []string {
+	return append(speciesNames(m), assignmentNames(m)...)
+}
+
 // clone returns a copy with its own evaluators.
 func (p *Problem) clone() (*Problem, error) {
 	c := *p
