@@ -40,6 +40,15 @@ type Diagram struct {
 	// Values[k][q] is quantity q at branch point k; SpecialValues[s][q]
 	// the same at special point s.
 	Values, SpecialValues [][]float64
+	// KnobUnit is the knob's unit in the model ("" when none is known);
+	// knob values are never converted.
+	KnobUnit string
+	// Shown is set when quantities, eigenvalues and periods are in
+	// display units (In), and Units then names each quantity's unit.
+	Shown *Shown
+	Units []string
+
+	columns []int // each quantity's column: state, then assignments
 }
 
 // family adapts a compiled network and one knob to steady.Family.
@@ -185,7 +194,7 @@ func (a *Model) Continue(ctx context.Context, o ContinueOptions) (*Diagram, erro
 	if err != nil {
 		return nil, err
 	}
-	d := &Diagram{Knob: o.Knob, Log: set.Log, Branch: br}
+	d := &Diagram{Knob: o.Knob, Log: set.Log, Branch: br, KnobUnit: a.knobUnit(o.Knob), columns: idx}
 	all := append(append([]string(nil), sys.Species()...), sys.Assignments()...)
 	for _, i := range idx {
 		d.Quantities = append(d.Quantities, all[i])
