@@ -605,7 +605,14 @@ func (s *sensitivityWindow) draw() {
 	s.table.RemoveAll()
 	name := s.res.Readouts[r]
 	if s.res.Method == analyse.Morris {
-		rows := [][]string{{"quantity", "μ*", "μ", "σ"}}
+		u := s.res.ReadoutUnit(r)
+		head := func(h string) string {
+			if u == "" {
+				return h
+			}
+			return h + " (" + u + ")"
+		}
+		rows := [][]string{{"quantity", head("μ*"), head("μ"), head("σ")}}
 		mu := make([]plotting.Interval, len(s.res.Knobs))
 		sd := make([]plotting.Interval, len(s.res.Knobs))
 		for k, e := range s.res.Effects[r] {
@@ -613,7 +620,7 @@ func (s *sensitivityWindow) draw() {
 			mu[k] = plotting.Interval{Value: e.MuStar, Low: math.NaN(), High: math.NaN()}
 			sd[k] = plotting.Interval{Value: e.Sigma, Low: math.NaN(), High: math.NaN()}
 		}
-		p, _ := plotting.IndexBars(s.res.Knobs, mu, sd, plotting.Options{Title: "Elementary effects on " + name + " (left μ*, right σ)", YLabel: "effect"})
+		p, _ := plotting.IndexBars(s.res.Knobs, mu, sd, plotting.Options{Title: "Elementary effects on " + name + " (left μ*, right σ)", YLabel: "effect", YUnit: u})
 		s.bars.set(p, "")
 		s.table.Add(container.NewGridWrap(fyne.NewSize(700, 200), textTable(rows)))
 		return
