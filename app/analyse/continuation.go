@@ -6,6 +6,7 @@ import (
 	"math"
 	"strings"
 
+	"kinetarium/app/run"
 	"kinetarium/app/sliders"
 	"kinetarium/app/study"
 	"kinetarium/network"
@@ -49,6 +50,10 @@ type Diagram struct {
 	Units []string
 
 	columns []int // each quantity's column: state, then assignments
+	// raw is the diagram as computed when this one is shown in display
+	// units, and scales each quantity's conversion from it.
+	raw    *Diagram
+	scales []run.Scale
 }
 
 // family adapts a compiled network and one knob to steady.Family.
@@ -213,7 +218,19 @@ func (a *Model) Continue(ctx context.Context, o ContinueOptions) (*Diagram, erro
 // Hill fits a Hill curve to quantity q of the diagram against the knob:
 // the dose–response curve. A branch with folds has more than one response
 // at some doses; it is refused with the range of the folds.
+//
+// A diagram shown in display units fits the values as computed and shows
+// the curve's bottom and top in the quantity's unit (the dose keeps the
+// knob's), so that the fit does not depend on the units it is shown in.
 func (d *Diagram) Hill(q int) (steady.Hill, error) {
+	if d.raw != nil {
+		h, err := d.raw.Hill(q)
+		if err == nil {
+			sc := d.scales[q]
+			h.Bottom, h.Top, h.RMS = sc.Of(h.Bottom), sc.Of(h.Top), sc.Of(h.RMS)
+		}
+		return h, err
+	}
 	var folds []float64
 	for _, s := range d.Specials {
 		if s.Kind == "fold" {

@@ -172,8 +172,9 @@ func (d *Diagram) In(sh *Shown) *Diagram {
 	}
 	c := *d
 	br := *d.Branch
-	c.Branch, c.Shown = &br, sh
+	c.Branch, c.Shown, c.raw = &br, sh, d
 	scales := make([]run.Scale, len(d.Quantities))
+	c.scales = scales
 	c.Units = make([]string, len(d.Quantities))
 	for q, i := range d.columns {
 		scales[q], c.Units[q] = sh.col(i)
