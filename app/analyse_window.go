@@ -300,7 +300,7 @@ func newContinuationWindow(a fyne.App, m *network.Model, name string) (*continua
 		widget.NewFormItem("From", c.from),
 		widget.NewFormItem("To", c.to),
 		widget.NewFormItem("At most points", c.maxPts))
-	help := widget.NewLabel("The branch starts at the steady state reached from the model's initial state at “From” and follows it towards “To”, around turning points. Stable parts are solid, unstable parts dashed; folds are triangles, Hopf points (where oscillations begin) squares.")
+	help := widget.NewLabel("The branch starts at the steady state reached from the model's initial state at “From” and follows it towards “To”, around turning points. Stable parts are solid, unstable parts dashed; folds are triangles, Hopf points (where oscillations begin) squares. “From” and “To” are in the quantity's own unit in the model; results follow the display units of Run settings.")
 	help.Wrapping = fyne.TextWrapWord
 	caution := widget.NewLabel("Results are research aids, not clinical or dosing advice.")
 	caution.Importance = widget.LowImportance
