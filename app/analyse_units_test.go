@@ -83,3 +83,40 @@ func TestSteadyWindowInDisplayUnits(t *testing.T) {
 		onUI(s.win.Close)
 	}
 }
+
+// The Continuation window in display units: the Brusselator in uM and s
+// shown in min and nM has its Hopf point at b = 1 + a² = 2 (1/s, the
+// knob's own unit) with X = a = 1 uM = 1000 nM and period 2π s = 0.10472
+// min (analytic-checks.md; 1 min = 60 s, 1 uM = 1000 nM, common
+// practice).
+func TestContinuationWindowInDisplayUnits(t *testing.T) {
+	m, err := network.Load("batch/testdata/units/brusselator.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Simulation.Display = network.Display{Time: "min", Concentration: "nM"}
+	c, err := newContinuationWindow(newStudyApp(t), m, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	c.ctl.deliver = onUI
+	c.win.Show()
+	onUI(func() {
+		c.quantity.SetSelected(c.qs[1].label) // b
+		c.from.SetText("0.5")
+		c.to.SetText("4")
+	})
+	runAndWait(t, c.ctl)
+	if c.d == nil || c.d.Knob != "b" || len(c.d.Specials) != 1 {
+		t.Fatalf("diagram %+v, status %q", c.d, c.ctl.status.Text)
+	}
+	text := c.points.Objects[0].(*widget.Label).Text
+	if want := "Hopf point at b = 2 1/s, X = 1000 nM, Y = 2000 nM: oscillations begin with period 0.10472 min"; text != want {
+		t.Errorf("special point %q, want %q", text, want)
+	}
+	if got := c.diagram.plot.X.Label.Text + " | " + c.diagram.plot.Y.Label.Text; got != "b (1/s) | steady-state concentration (nM)" {
+		t.Errorf("axes %q", got)
+	}
+	saveShot(t, c.win, shotDir(t), "kinetarium-continuation-units.png")
+	onUI(c.win.Close)
+}
