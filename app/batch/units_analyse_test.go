@@ -271,4 +271,19 @@ func TestStochasticInDisplayUnits(t *testing.T) {
 	if h := strings.Join(bands[0][:3], ","); h != "species,unit,time (h)" || bands[1][1] != "molecules" {
 		t.Errorf("bands.csv starts %v %v", bands[0], bands[1])
 	}
+	// Shards keep the display units to the merge, which writes what the
+	// whole run wrote.
+	parts := filepath.Join(t.TempDir(), "parts")
+	for _, sh := range []string{"0/2", "1/2"} {
+		mustRunCmd(t, runStochastic, stochasticUnitsArgs(parts, "--time-unit", "h", "--shard", sh)...)
+	}
+	merged := filepath.Join(t.TempDir(), "merged")
+	mustRunCmd(t, runMerge, filepath.Join(parts, "part-0-of-2.json"), filepath.Join(parts, "part-1-of-2.json"), "--out", merged)
+	for _, f := range []string{"mean.csv", "passages.csv", "histograms.csv"} {
+		a, _ := os.ReadFile(filepath.Join(dir, f))
+		b, err := os.ReadFile(filepath.Join(merged, f))
+		if err != nil || !bytes.Equal(a, b) {
+			t.Errorf("%s merged from shards differs from the whole run (%v)", f, err)
+		}
+	}
 }
