@@ -68,6 +68,7 @@ func cell(v float64) string {
 type steadyWindow struct {
 	win     fyne.Window
 	model   *analyse.Model
+	shown   *analyse.Shown // display units, nil for none
 	control bool
 	ctl     *runControls
 	verdict *widget.Label
@@ -95,11 +96,15 @@ func newSteadyWindow(a fyne.App, m *network.Model, name string, control bool) (*
 	if err != nil {
 		return nil, err
 	}
+	sh, err := am.Show()
+	if err != nil {
+		return nil, err
+	}
 	title := "Steady state — "
 	if control {
 		title = "Control coefficients — "
 	}
-	s := &steadyWindow{win: a.NewWindow(title + name), model: am, control: control}
+	s := &steadyWindow{win: a.NewWindow(title + name), model: am, shown: sh, control: control}
 	s.ctl = newRunControls(s.start)
 	s.ctl.run.SetText("Compute again")
 	s.verdict = widget.NewLabel("")
@@ -123,10 +128,10 @@ func (s *steadyWindow) start() {
 	runAsync(s.ctl, func(ctx context.Context, _ func(float64)) (steadyOutcome, error) {
 		st, err := s.model.FindSteady(ctx)
 		if err != nil || !s.control {
-			return steadyOutcome{st: st}, err
+			return steadyOutcome{st: st.In(s.shown)}, err
 		}
-		c, err := s.model.Control(st)
-		return steadyOutcome{st: st, ctl: c}, err
+		c, err := s.model.Control(st) // scaled: pure numbers
+		return steadyOutcome{st: st.In(s.shown), ctl: c}, err
 	}, s.show)
 }
 
@@ -144,7 +149,12 @@ func (s *steadyWindow) show(o steadyOutcome, err error) {
 	s.verdict.SetText(st.Summary() + "\n" + strings.Join(st.Notes, "\n"))
 	var items []*container.TabItem
 	if !s.control {
-		rows := [][]string{{"species", "concentration", "held"}}
+		sh := st.Shown
+		var conc, flux, total, eig string
+		if sh != nil {
+			conc, flux, total, eig = sh.Columns.AmountUnit, sh.RateUnit, sh.TotalUnit, sh.PerTimeUnit
+		}
+		rows := [][]string{{"species", sh.Header("concentration", conc), "held"}}
 		for i, n := range st.Species {
 			held := ""
 			if st.Fixed[i] {
@@ -153,17 +163,17 @@ func (s *steadyWindow) show(o steadyOutcome, err error) {
 			rows = append(rows, []string{n, cell(st.Y[i]), held})
 		}
 		items = append(items, container.NewTabItem("Species", textTable(rows)))
-		rows = [][]string{{"reaction", "flux"}}
+		rows = [][]string{{"reaction", sh.Header("flux", flux)}}
 		for j, n := range st.Reactions {
 			rows = append(rows, []string{n, cell(st.Fluxes[j])})
 		}
 		items = append(items, container.NewTabItem("Fluxes", textTable(rows)))
-		rows = [][]string{{"conserved total", "value"}}
+		rows = [][]string{{"conserved total", sh.Header("value", total)}}
 		for _, t := range st.Totals {
 			rows = append(rows, []string{t.Law, cell(t.Value)})
 		}
 		items = append(items, container.NewTabItem("Totals", textTable(rows)))
-		rows = [][]string{{"eigenvalue", "real part", "imaginary part"}}
+		rows = [][]string{{"eigenvalue", sh.Header("real part", eig), sh.Header("imaginary part", eig)}}
 		for k, v := range st.Eigenvalues {
 			rows = append(rows, []string{strconv.Itoa(k + 1), cell(real(v)), cell(imag(v))})
 		}
@@ -209,6 +219,7 @@ func (s *steadyWindow) show(o steadyOutcome, err error) {
 type continuationWindow struct {
 	win      fyne.Window
 	model    *analyse.Model
+	shown    *analyse.Shown // display units, nil for none
 	prep     *study.Prepared
 	qs       []quantity
 	quantity *widget.Select
@@ -259,7 +270,11 @@ func newContinuationWindow(a fyne.App, m *network.Model, name string) (*continua
 	if err != nil {
 		return nil, err
 	}
-	c := &continuationWindow{win: a.NewWindow("Continuation — " + name), model: am, prep: prep, qs: continuable(m),
+	sh, err := am.Show()
+	if err != nil {
+		return nil, err
+	}
+	c := &continuationWindow{win: a.NewWindow("Continuation — " + name), model: am, shown: sh, prep: prep, qs: continuable(m),
 		from: widget.NewEntry(), to: widget.NewEntry(), maxPts: widget.NewEntry()}
 	c.maxPts.SetText("500")
 	c.quantity = widget.NewSelect(quantityLabels(c.qs), func(label string) {
@@ -285,7 +300,7 @@ func newContinuationWindow(a fyne.App, m *network.Model, name string) (*continua
 		widget.NewFormItem("From", c.from),
 		widget.NewFormItem("To", c.to),
 		widget.NewFormItem("At most points", c.maxPts))
-	help := widget.NewLabel("The branch starts at the steady state reached from the model's initial state at “From” and follows it towards “To”, around turning points. Stable parts are solid, unstable parts dashed; folds are triangles, Hopf points (where oscillations begin) squares.")
+	help := widget.NewLabel("The branch starts at the steady state reached from the model's initial state at “From” and follows it towards “To”, around turning points. Stable parts are solid, unstable parts dashed; folds are triangles, Hopf points (where oscillations begin) squares. “From” and “To” are in the quantity's own unit in the model; results follow the display units of Run settings.")
 	help.Wrapping = fyne.TextWrapWord
 	caution := widget.NewLabel("Results are research aids, not clinical or dosing advice.")
 	caution.Importance = widget.LowImportance
@@ -352,13 +367,18 @@ func (c *continuationWindow) start() {
 	}
 	runAsync(c.ctl, func(ctx context.Context, progress func(float64)) (*analyse.Diagram, error) {
 		o.Progress = progress
-		return c.model.Continue(ctx, o)
+		d, err := c.model.Continue(ctx, o)
+		if d != nil {
+			d = d.In(c.shown)
+		}
+		return d, err
 	}, c.show)
 }
 
 func (c *continuationWindow) figure() (*plot.Plot, error) {
+	xu, yu := c.d.AxisUnits()
 	return plotting.BifurcationPlot(analyse.PlotBranch(c.d), plotting.Options{
-		Title: "Steady states against " + c.d.Knob, XLabel: c.d.Knob, YLabel: "steady-state concentration", LogX: c.d.Log})
+		Title: "Steady states against " + c.d.Knob, XLabel: c.d.Knob, XUnit: xu, YLabel: "steady-state concentration", YUnit: yu, LogX: c.d.Log})
 }
 
 func (c *continuationWindow) show(d *analyse.Diagram, err error) {
@@ -407,10 +427,11 @@ func (c *continuationWindow) fitHill() {
 		c.hill.SetText("No Hill curve: " + plainError(err))
 	} else {
 		fit = h.At
-		c.hill.SetText(analyse.DescribeHill(name, c.d.Knob, h))
+		c.hill.SetText(analyse.DescribeHill(c.d, q, h))
 	}
+	xu, _ := c.d.AxisUnits()
 	p, _ := plotting.DoseResponsePlot(x, r, fit, "Hill fit", plotting.Options{
-		Title: name + " at steady state", XLabel: c.d.Knob, YLabel: name, LogX: c.d.Log})
+		Title: name + " at steady state", XLabel: c.d.Knob, XUnit: xu, YLabel: name, YUnit: c.d.QuantityUnit(q), LogX: c.d.Log})
 	c.dose.set(p, "")
 }
 
@@ -584,7 +605,14 @@ func (s *sensitivityWindow) draw() {
 	s.table.RemoveAll()
 	name := s.res.Readouts[r]
 	if s.res.Method == analyse.Morris {
-		rows := [][]string{{"quantity", "μ*", "μ", "σ"}}
+		u := s.res.ReadoutUnit(r)
+		head := func(h string) string {
+			if u == "" {
+				return h
+			}
+			return h + " (" + u + ")"
+		}
+		rows := [][]string{{"quantity", head("μ*"), head("μ"), head("σ")}}
 		mu := make([]plotting.Interval, len(s.res.Knobs))
 		sd := make([]plotting.Interval, len(s.res.Knobs))
 		for k, e := range s.res.Effects[r] {
@@ -592,7 +620,7 @@ func (s *sensitivityWindow) draw() {
 			mu[k] = plotting.Interval{Value: e.MuStar, Low: math.NaN(), High: math.NaN()}
 			sd[k] = plotting.Interval{Value: e.Sigma, Low: math.NaN(), High: math.NaN()}
 		}
-		p, _ := plotting.IndexBars(s.res.Knobs, mu, sd, plotting.Options{Title: "Elementary effects on " + name + " (left μ*, right σ)", YLabel: "effect"})
+		p, _ := plotting.IndexBars(s.res.Knobs, mu, sd, plotting.Options{Title: "Elementary effects on " + name + " (left μ*, right σ)", YLabel: "effect", YUnit: u})
 		s.bars.set(p, "")
 		s.table.Add(container.NewGridWrap(fyne.NewSize(700, 200), textTable(rows)))
 		return

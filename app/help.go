@@ -69,7 +69,13 @@ Figure… follow; the model's own numbers do not change. An assignment is
 converted only when its unit is a concentration; the others stay as
 computed, and About the last run says so. Sweeps and populations follow the
 same units in their figures and tables; the values you type there (from,
-to, times and levels of readouts) stay in the model's units.
+to, times and levels of readouts) stay in the model's units. So do the
+analyses: steady states (fluxes in concentration per time, eigenvalues per
+time), continuation (the knob keeps its own unit) and screening effects;
+variance-based indices and control coefficients are pure numbers. The
+Stochastic window shows times in the display unit and counts in molecules.
+An assignment without a unit of its own converts in the unit its formula
+comes out in.
 
 ## Expressions
 

@@ -54,8 +54,10 @@ type stochasticWindow struct {
 	hist    *studyFigure
 
 	job *ensemble.Job
-	res *stochastic.Ensemble
-	ode [][]float64
+	// shown shows times in the model's display unit (nil: none chosen).
+	shown *ensemble.Shown
+	res   *stochastic.Ensemble
+	ode   [][]float64
 	// partial: res is of a run stopped by Cancel.
 	partial bool
 }
@@ -67,6 +69,9 @@ func newStochasticWindow(a fyne.App, m *network.Model, name string) (*stochastic
 		return nil, err
 	}
 	s := &stochasticWindow{win: a.NewWindow("Stochastic — " + name), model: m, prep: prep}
+	if sh, err := ensemble.Show(m); err == nil {
+		s.shown = sh // Check refuses display units that do not convert
+	}
 	s.runs = widget.NewEntry()
 	s.runs.SetText("1000")
 	s.seed = widget.NewEntry()
@@ -260,7 +265,7 @@ func (s *stochasticWindow) runsFigure() (*plot.Plot, error) {
 	if !s.showODE.Checked {
 		ode = nil
 	}
-	return ensemble.Figure(s.res, i, ode, s.model.Units.Time, s.logTime.Checked)
+	return ensemble.Figure(s.res, i, ode, s.model.Units.Time, s.logTime.Checked, s.shown)
 }
 
 // histFigure draws the chosen species' counts at the chosen time.
@@ -272,7 +277,7 @@ func (s *stochasticWindow) histFigure() (*plot.Plot, error) {
 	if i < 0 {
 		return nil, errors.New("choose a species")
 	}
-	return ensemble.HistogramFigure(s.res, 0, i)
+	return ensemble.HistogramFigure(s.res, 0, i, s.shown)
 }
 
 func (s *stochasticWindow) draw() {
@@ -317,13 +322,13 @@ func (s *stochasticWindow) exportFigure() {
 }
 
 // exportTable asks for a CSV file and writes the table made by rows.
-func (s *stochasticWindow) exportTable(name string, rows func(*stochastic.Ensemble) [][]string) {
+func (s *stochasticWindow) exportTable(name string, rows func(*stochastic.Ensemble, *ensemble.Shown) [][]string) {
 	s.ctl.exportTable(s.win, s.res != nil, name, func(path string) error {
 		prov, err := s.provenance()
 		if err != nil {
 			return err
 		}
-		if err := atomicfile.WriteCSV(path, rows(s.res)); err != nil {
+		if err := atomicfile.WriteCSV(path, rows(s.res, s.shown)); err != nil {
 			return err
 		}
 		return run.SaveProvenance(path, prov)

@@ -4,6 +4,7 @@ import (
 	"strings"
 	"testing"
 
+	"kinetarium/app/ensemble"
 	"kinetarium/network"
 )
 
@@ -79,4 +80,40 @@ func TestStochasticWindowAsks(t *testing.T) {
 	if s.res == nil || s.res.Done != 20 {
 		t.Errorf("with 50 molecules per amount: status %q", s.ctl.status.Text)
 	}
+}
+
+// With display units (the bursty reporter is in min; shown in h) the
+// Stochastic window's figure has its time axis in h and its last time at
+// t_end / 60 (1 h = 60 min, common practice), counts stay molecules, and
+// the exported mean table says both in its header.
+func TestStochasticWindowInDisplayUnits(t *testing.T) {
+	m := exampleModel(t, "bursty-reporter.json")
+	m.Simulation.Display = network.Display{Time: "h"}
+	s := openStochastic(t, m)
+	onUI(func() {
+		s.runs.SetText("20")
+		s.species.SetSelected("protein")
+	})
+	runAndWait(t, s.ctl)
+	if s.res == nil || s.fig.plot == nil {
+		t.Fatalf("no result or figure; status %q", s.ctl.status.Text)
+	}
+	if x, y := s.fig.plot.X.Label.Text, s.fig.plot.Y.Label.Text; x != "time (h)" || y != "molecules" {
+		t.Errorf("axes %q and %q, want time (h) and molecules", x, y)
+	}
+	tEnd := m.Simulation.WithDefaults().TEnd
+	if got := s.fig.plot.X.Max; got > tEnd/60*1.0001 || got < tEnd/60*0.9 {
+		t.Errorf("time axis ends at %v h, want about %v min / 60 = %v", got, tEnd, tEnd/60)
+	}
+	rows := ensembleMeanRows(s)
+	if !strings.HasPrefix(strings.Join(rows[0], ","), "time (h),gene_off (molecules)") {
+		t.Errorf("mean table header %v", rows[0])
+	}
+}
+
+// ensembleMeanRows is the mean table the window exports.
+func ensembleMeanRows(s *stochasticWindow) [][]string {
+	var rows [][]string
+	onUI(func() { rows = ensemble.MeanRows(s.res, s.shown) })
+	return rows
 }

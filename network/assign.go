@@ -45,6 +45,7 @@ func (b *builder) compileAssignments() error {
 			return fmt.Errorf("assignment %q: %w", a.Name, err)
 		}
 		s.asgNames = append(s.asgNames, a.Name)
+		s.asgUnits = append(s.asgUnits, ca.Unit)
 		s.asgProgs = append(s.asgProgs, p)
 	}
 	if len(s.asgProgs) > 0 {
@@ -56,6 +57,12 @@ func (b *builder) compileAssignments() error {
 // Assignments returns the names of the model's assigned quantities, in
 // model order. The caller must not modify the slice.
 func (s *System) Assignments() []string { return s.asgNames }
+
+// AssignmentUnits returns the unit of each assignment, in the order of
+// Assignments: the unit it declares, else the one its expression comes
+// out in (CheckedAssignment.Unit); "" where none is known. The caller
+// must not modify the slice.
+func (s *System) AssignmentUnits() []string { return s.asgUnits }
 
 // Assigned writes the value of every assignment at (t, y) into out, in the
 // order of Assignments. It allocates nothing.

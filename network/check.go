@@ -70,6 +70,12 @@ type CheckedAssignment struct {
 	Index int // in Model.Assignments
 	Name  string
 	Expr  expr.Node // nil when it has errors
+	// Unit is the assignment's unit: the one it declares, else the one
+	// its expression comes out in, written in the model's units ("uM",
+	// "uM/s"; UnitInferred is then true); "" when neither is known (the
+	// model declares no units, or a name in the expression has none).
+	Unit         string
+	UnitInferred bool
 }
 
 // SpeciesIndex returns the index of the named species in the model.
@@ -701,7 +707,7 @@ func (v *validator) assignments() {
 		path = path[:len(path)-1]
 		state[i] = 2
 		if ok {
-			v.net.Assignments = append(v.net.Assignments, CheckedAssignment{Index: i, Name: as[i].Name, Expr: trees[i]})
+			v.net.Assignments = append(v.net.Assignments, CheckedAssignment{Index: i, Name: as[i].Name, Expr: trees[i], Unit: strings.TrimSpace(as[i].Unit)})
 		}
 		return ok
 	}

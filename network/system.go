@@ -54,6 +54,7 @@ type System struct {
 	progs  []program
 
 	asgNames []string
+	asgUnits []string  // declared or inferred, per assignment
 	asgProgs []program // each assignment, inlined, over [y | parameters | t]
 
 	pbase      []float64 // parameter values set from outside, restored at ResetEvents

@@ -174,6 +174,24 @@ func (uc *unitCheck) describe(u units.Unit) string {
 	return text
 }
 
+// text writes u as a unit text that units.Parse reads back to an equal
+// unit: in the model's units when it is Conc^a·Time^b ("uM", "uM/s",
+// "1" for a pure number), else a unit symbol equal to it ("nM"), else in
+// SI base units.
+func (uc *unitCheck) text(u units.Unit) string {
+	a := u.Dim[units.Length] / uc.conc.Dim[units.Length]
+	rest := u.Div(uc.conc.Pow(a))
+	b := rest.Dim[units.Time]
+	rest = rest.Div(uc.time.Pow(b))
+	if rest.Dimensionless() && math.Abs(rest.Factor-1) <= 1e-12 {
+		return units.Compose(uc.concText, a, uc.timeText, b)
+	}
+	if s, ok := units.Symbol(u); ok {
+		return s
+	}
+	return u.String()
+}
+
 // mismatch says how found differs from want: by a factor, or in kind.
 func (uc *unitCheck) mismatch(found, want units.Unit) string {
 	if found.SameDim(want) {
@@ -436,7 +454,8 @@ func constant(n expr.Node) bool { return len(expr.Vars(n)) == 0 }
 // that the rates and events that read it are checked through it.
 func (uc *unitCheck) assignments() {
 	v := uc.v
-	for _, ca := range v.net.Assignments {
+	for i := range v.net.Assignments {
+		ca := &v.net.Assignments[i]
 		if ca.Expr == nil {
 			continue
 		}
@@ -452,6 +471,7 @@ func (uc *unitCheck) assignments() {
 			if strings.TrimSpace(a.Unit) == "" {
 				u := found
 				uc.asgs[ca.Name] = &u
+				ca.Unit, ca.UnitInferred = uc.text(found), true
 			}
 			continue
 		}

@@ -119,6 +119,9 @@ type Steady struct {
 	// Verdict says in a sentence what the eigenvalues mean.
 	Verdict string
 	Notes   []string
+	// Shown is set when the numbers are in display units (In); nil when
+	// they are in the model's units.
+	Shown *Shown
 }
 
 // FindSteady looks for a steady state from the model's initial state.
@@ -217,8 +220,12 @@ func (s *Steady) Summary() string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "Steady state: %s (%s).\n", s.Class, s.Verdict)
 	if !math.IsInf(s.SlowestTimeScale, 0) {
-		fmt.Fprintf(&b, "Slowest time scale: %.4g.\n", s.SlowestTimeScale)
+		fmt.Fprintf(&b, "Slowest time scale: %.4g%s.\n", s.SlowestTimeScale, s.Shown.unitAfter(s.Shown.TimeUnit()))
 	}
-	fmt.Fprintf(&b, "Largest rate of change left: %.3g.", s.Residual)
+	var rate string
+	if s.Shown != nil {
+		rate = s.Shown.unitAfter(s.Shown.RateUnit)
+	}
+	fmt.Fprintf(&b, "Largest rate of change left: %.3g%s.", s.Residual, rate)
 	return b.String()
 }

@@ -6,6 +6,7 @@ import (
 	"math"
 	"strings"
 
+	"kinetarium/app/run"
 	"kinetarium/app/sliders"
 	"kinetarium/app/study"
 	"kinetarium/network"
@@ -40,6 +41,19 @@ type Diagram struct {
 	// Values[k][q] is quantity q at branch point k; SpecialValues[s][q]
 	// the same at special point s.
 	Values, SpecialValues [][]float64
+	// KnobUnit is the knob's unit in the model ("" when none is known);
+	// knob values are never converted.
+	KnobUnit string
+	// Shown is set when quantities, eigenvalues and periods are in
+	// display units (In), and Units then names each quantity's unit.
+	Shown *Shown
+	Units []string
+
+	columns []int // each quantity's column: state, then assignments
+	// raw is the diagram as computed when this one is shown in display
+	// units, and scales each quantity's conversion from it.
+	raw    *Diagram
+	scales []run.Scale
 }
 
 // family adapts a compiled network and one knob to steady.Family.
@@ -185,7 +199,7 @@ func (a *Model) Continue(ctx context.Context, o ContinueOptions) (*Diagram, erro
 	if err != nil {
 		return nil, err
 	}
-	d := &Diagram{Knob: o.Knob, Log: set.Log, Branch: br}
+	d := &Diagram{Knob: o.Knob, Log: set.Log, Branch: br, KnobUnit: a.knobUnit(o.Knob), columns: idx}
 	all := append(append([]string(nil), sys.Species()...), sys.Assignments()...)
 	for _, i := range idx {
 		d.Quantities = append(d.Quantities, all[i])
@@ -204,7 +218,19 @@ func (a *Model) Continue(ctx context.Context, o ContinueOptions) (*Diagram, erro
 // Hill fits a Hill curve to quantity q of the diagram against the knob:
 // the dose–response curve. A branch with folds has more than one response
 // at some doses; it is refused with the range of the folds.
+//
+// A diagram shown in display units fits the values as computed and shows
+// the curve's bottom and top in the quantity's unit (the dose keeps the
+// knob's), so that the fit does not depend on the units it is shown in.
 func (d *Diagram) Hill(q int) (steady.Hill, error) {
+	if d.raw != nil {
+		h, err := d.raw.Hill(q)
+		if err == nil {
+			sc := d.scales[q]
+			h.Bottom, h.Top, h.RMS = sc.Of(h.Bottom), sc.Of(h.Top), sc.Of(h.RMS)
+		}
+		return h, err
+	}
 	var folds []float64
 	for _, s := range d.Specials {
 		if s.Kind == "fold" {

@@ -52,6 +52,10 @@ type Sensitivity struct {
 	// was undefined.
 	Runs, Failed int
 	Dropped      []int
+	// ReadoutUnits, set when the model chooses display units, name the
+	// unit each readout is shown in; Morris effects (μ*, μ, σ) are then in
+	// it. Sobol indices are pure numbers and never change.
+	ReadoutUnits []string
 	// Notes name readouts whose indices are undefined, and why.
 	Notes []string
 	Wall  time.Duration
@@ -108,6 +112,12 @@ func GlobalSensitivity(ctx context.Context, p *study.Prepared, o SensitivityOpti
 	if res.Points > 0 && res.Failed == res.Points {
 		return s, fmt.Errorf("all %d runs failed; the first: %s", res.Failed, res.Failures[0].Err)
 	}
+	fig := j.Figures()
+	if j.Shown != nil {
+		for r := range res.Readouts {
+			s.ReadoutUnits = append(s.ReadoutUnits, fig.ReadoutUnit(r))
+		}
+	}
 	for r := range res.Readouts {
 		y := res.Values(r)
 		switch o.Method {
@@ -124,6 +134,9 @@ func GlobalSensitivity(ctx context.Context, p *study.Prepared, o SensitivityOpti
 			s.Indices = append(s.Indices, idx)
 			s.Dropped = append(s.Dropped, dropped)
 		case Morris:
+			if j.Shown != nil {
+				y = fig.Values(res, r) // effects in the readout's shown unit
+			}
 			eff, err := explore.ElementaryEffects(y, steps, d)
 			if err != nil {
 				return s, err
@@ -160,18 +173,31 @@ func IndexRows(s *Sensitivity) [][]string {
 }
 
 // EffectRows lays out Morris effects as morris.csv:
-// readout,target,mu_star,mu,sigma,effects.
+// readout,target,mu_star,mu,sigma,effects. With display units the readout
+// column names the unit the effects are in ("cmax (nM)").
 func EffectRows(s *Sensitivity) [][]string {
 	rows := [][]string{{"readout", "target", "mu_star", "mu", "sigma", "effects"}}
 	for r, name := range s.Readouts {
 		if r >= len(s.Effects) {
 			break
 		}
+		if u := s.ReadoutUnit(r); u != "" {
+			name += " (" + u + ")"
+		}
 		for k, e := range s.Effects[r] {
 			rows = append(rows, []string{name, s.Knobs[k], num(e.MuStar), num(e.Mu), num(e.Sigma), fmt.Sprint(e.N)})
 		}
 	}
 	return rows
+}
+
+// ReadoutUnit returns the unit readout r is shown in: "" without display
+// units or when none is known.
+func (s *Sensitivity) ReadoutUnit(r int) string {
+	if r < len(s.ReadoutUnits) {
+		return s.ReadoutUnits[r]
+	}
+	return ""
 }
 
 // IndexIntervals returns readout r's first-order and total indices for

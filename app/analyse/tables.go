@@ -18,10 +18,12 @@ func num(v float64) string {
 }
 
 // BranchRows lays out a diagram as branch.csv: parameter, each quantity,
-// stable (true/false), max_real_eigenvalue.
+// stable (true/false), max_real_eigenvalue. A diagram shown in display
+// units (Diagram.In) names the units in the header: the knob's in the
+// model, each quantity's, and 1/time for the eigenvalue.
 func BranchRows(d *Diagram) [][]string {
-	head := append([]string{"parameter"}, d.Quantities...)
-	head = append(head, "stable", "max_real_eigenvalue")
+	head := append([]string{d.Shown.Header("parameter", d.KnobUnit)}, d.quantityHeaders()...)
+	head = append(head, "stable", d.Shown.Header("max_real_eigenvalue", d.perTimeUnit()))
 	rows := [][]string{head}
 	for k, p := range d.Points {
 		row := []string{num(p.P)}
@@ -34,10 +36,50 @@ func BranchRows(d *Diagram) [][]string {
 	return rows
 }
 
+// quantityHeaders are the quantities' names, with their units when the
+// diagram is shown in display units.
+func (d *Diagram) quantityHeaders() []string {
+	h := make([]string, len(d.Quantities))
+	for q, n := range d.Quantities {
+		u := ""
+		if q < len(d.Units) {
+			u = d.Units[q]
+		}
+		h[q] = d.Shown.Header(n, u)
+	}
+	return h
+}
+
+func (d *Diagram) perTimeUnit() string {
+	if d.Shown == nil {
+		return ""
+	}
+	return d.Shown.PerTimeUnit
+}
+
+// AxisUnits returns the units of a diagram's figure axes: the knob's and
+// the quantities' when they share one; both "" when it is not shown in
+// display units, so the figures stay as they were.
+func (d *Diagram) AxisUnits() (knob, quantity string) {
+	if d.Shown == nil {
+		return "", ""
+	}
+	for q, u := range d.Units {
+		if q == 0 {
+			quantity = u
+		} else if u != quantity {
+			quantity = ""
+			break
+		}
+	}
+	return d.KnobUnit, quantity
+}
+
 // PointRows lays out the special points as points.csv: kind ("fold" or
-// "hopf"), parameter, each quantity.
+// "hopf"), parameter, each quantity; with units in the header as
+// BranchRows has them.
 func PointRows(d *Diagram) [][]string {
-	head := append([]string{"kind", "parameter"}, d.Quantities...)
+	head := append([]string{"kind", d.Shown.Header("parameter", d.KnobUnit)}, d.quantityHeaders()...)
 	rows := [][]string{head}
 	for k, s := range d.Specials {
 		row := []string{s.Kind, num(s.P)}
@@ -66,17 +108,23 @@ func PlotBranch(d *Diagram) plotting.Branch {
 	return b
 }
 
-// DescribeSpecial says what special point k is, in a line.
+// DescribeSpecial says what special point k is, in a line (with units
+// when the diagram is shown in display units).
 func DescribeSpecial(d *Diagram, k int) string {
 	s := d.Specials[k]
 	state := ""
 	for q, n := range d.Quantities {
-		state += fmt.Sprintf(", %s = %.6g", n, d.SpecialValues[k][q])
+		u := ""
+		if q < len(d.Units) {
+			u = d.Units[q]
+		}
+		state += fmt.Sprintf(", %s = %.6g%s", n, d.SpecialValues[k][q], d.Shown.unitAfter(u))
 	}
+	knob := d.Shown.unitAfter(d.KnobUnit)
 	if s.Kind == "hopf" {
-		return fmt.Sprintf("Hopf point at %s = %.8g%s: oscillations begin with period %.6g", d.Knob, s.P, state, s.Period)
+		return fmt.Sprintf("Hopf point at %s = %.8g%s%s: oscillations begin with period %.6g%s", d.Knob, s.P, knob, state, s.Period, d.Shown.unitAfter(d.Shown.TimeUnit()))
 	}
-	return fmt.Sprintf("fold at %s = %.8g%s: the branch turns back", d.Knob, s.P, state)
+	return fmt.Sprintf("fold at %s = %.8g%s%s: the branch turns back", d.Knob, s.P, knob, state)
 }
 
 // Response returns the knob and quantity q along the branch.
@@ -87,23 +135,38 @@ func Response(d *Diagram, q int) (x, r []float64) {
 	return x, r
 }
 
-// HillRows lays out a Hill fit as hill.csv.
-func HillRows(response, knob string, h steady.Hill) [][]string {
+// HillRows lays out the Hill fit h of quantity q of d as hill.csv. With
+// display units the header names the units: bottom and top in the
+// response's, the half-effect dose in the knob's.
+func HillRows(d *Diagram, q int, h steady.Hill) [][]string {
 	half := "EC50"
 	if h.Falling() {
 		half = "IC50"
 	}
+	ru := d.unit(q)
 	return [][]string{
-		{"response", "knob", "kind", "bottom", "top", "half_effect", "hill_coefficient", "r_squared", "points"},
-		{response, knob, half, num(h.Bottom), num(h.Top), num(h.EC50), num(h.N), num(h.R2), strconv.Itoa(h.Points)},
+		{"response", "knob", "kind", d.Shown.Header("bottom", ru), d.Shown.Header("top", ru), d.Shown.Header("half_effect", d.KnobUnit), "hill_coefficient", "r_squared", "points"},
+		{d.Quantities[q], d.Knob, half, num(h.Bottom), num(h.Top), num(h.EC50), num(h.N), num(h.R2), strconv.Itoa(h.Points)},
 	}
 }
 
-// DescribeHill says the fit in a line.
-func DescribeHill(response, knob string, h steady.Hill) string {
+// QuantityUnit returns the unit quantity q is shown in: "" when the
+// diagram is not shown in display units or none is known.
+func (d *Diagram) QuantityUnit(q int) string { return d.unit(q) }
+
+func (d *Diagram) unit(q int) string {
+	if q < len(d.Units) {
+		return d.Units[q]
+	}
+	return ""
+}
+
+// DescribeHill says the Hill fit h of quantity q of d in a line.
+func DescribeHill(d *Diagram, q int, h steady.Hill) string {
 	half := "EC50"
 	if h.Falling() {
 		half = "IC50"
 	}
-	return fmt.Sprintf("Hill curve of %s against %s: %s = %.6g, Hill coefficient %.4g, from %.6g to %.6g (R² = %.6f)", response, knob, half, h.EC50, h.N, h.Bottom, h.Top, h.R2)
+	ru := d.Shown.unitAfter(d.unit(q))
+	return fmt.Sprintf("Hill curve of %s against %s: %s = %.6g%s, Hill coefficient %.4g, from %.6g%s to %.6g%s (R² = %.6f)", d.Quantities[q], d.Knob, half, h.EC50, d.Shown.unitAfter(d.KnobUnit), h.N, h.Bottom, ru, h.Top, ru, h.R2)
 }

@@ -105,6 +105,7 @@ Commands:
         --passage S=L      first-passage times of species S to L
                            molecules (repeatable; passages.csv)
         --no-ode           leave the ODE solution out of the figures
+        --time-unit U      show times in U; counts stay molecules
         --quiet            do not report progress
 
   merge PART.json... --out DIR
@@ -150,27 +151,32 @@ Commands:
                            and lines by flux at time T
         --store            save the positions into MODEL.json
 
-  steady MODEL.json [--json] [--control]
+  steady MODEL.json [--json] [--control] [--time-unit U] [--concentration-unit U]
       Find the steady state reached from the model's initial state: every
       species, every reaction's flux, the conserved totals, the eigenvalues
       of the Jacobian reduced by the conservation laws and the verdict
       (stable node or focus, unstable, saddle, marginal). --json prints
       one JSON object (keys species, fluxes, totals, eigenvalues as
       [re, im] pairs, stable, classification); --control adds the scaled
-      elasticities, flux_control and concentration_control. Exit status 1
-      when there is no steady state (the message says why).
+      elasticities, flux_control and concentration_control. With display
+      units (the model's, or the two unit flags) concentrations, fluxes,
+      eigenvalues and times are converted and named (JSON key units).
+      Exit status 1 when there is no steady state (the message says why).
 
-  continue SPEC.json [--out DIR] [--quiet]
+  continue SPEC.json [--out DIR] [--quiet] [--time-unit U] [--concentration-unit U]
       Follow the steady state as one knob moves from "from" to "to"
       (spec format kinetarium.continuation/1), locating folds and Hopf
       points; writes branch.csv, points.csv and diagram.png to DIR (and,
       with "response", a Hill fit in hill.csv and dose-response.png).
+      Display units convert the quantities, eigenvalues and periods; the
+      knob keeps the model's unit.
 
-  sensitivity SPEC.json [--out DIR] [--workers N] [--quiet]
+  sensitivity SPEC.json [--out DIR] [--workers N] [--quiet] [--time-unit U] [--concentration-unit U]
       Global sensitivity of readouts to uncertain knobs (spec format
       kinetarium.sensitivity/1): variance-based first-order and total
       indices with bootstrap intervals (indices.csv, indices.png), or
-      Morris elementary effects (morris.csv).
+      Morris elementary effects (morris.csv; in the readout's shown unit
+      with display units).
 
   help
       Print this text.

@@ -14,7 +14,6 @@ import (
 	"kinetarium/app/analyse"
 	"kinetarium/app/run"
 	"kinetarium/app/study"
-	"kinetarium/network"
 	"kinetarium/plotting"
 	"kinetarium/solve/explore"
 )
@@ -90,7 +89,7 @@ func sensitivity(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return badInput(err)
 	}
-	l, prov, err := loadModel("sensitivity", c.spec, spec.Model, spec.Simulation, network.Display{})
+	l, prov, err := loadModel("sensitivity", c.spec, spec.Model, spec.Simulation, c.show)
 	if err != nil {
 		return badInput(err)
 	}

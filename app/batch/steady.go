@@ -76,8 +76,11 @@ func runSteady(args []string, stdout, stderr io.Writer) int {
 	fs.SetOutput(stderr)
 	asJSON := fs.Bool("json", false, "print one JSON object instead of tables")
 	control := fs.Bool("control", false, "add the scaled elasticities and control coefficients")
+	var show network.Display
+	fs.StringVar(&show.Time, "time-unit", "", "show times in this unit (s, min, h, day) instead of the model's display unit")
+	fs.StringVar(&show.Concentration, "concentration-unit", "", "show concentrations in this unit (such as nM or mg/L) instead of the model's display unit")
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: batch steady MODEL.json [--json] [--control]")
+		fmt.Fprintln(stderr, "usage: batch steady MODEL.json [--json] [--control] [--time-unit U] [--concentration-unit U]")
 		fs.PrintDefaults()
 	}
 	var pos []string
@@ -98,7 +101,14 @@ func runSteady(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return exitStatus("steady", badInput(err), stderr)
 	}
+	if err := setDisplay(&m.Simulation, m.Units, show); err != nil {
+		return exitStatus("steady", badInput(err), stderr)
+	}
 	a, err := analyse.Prepare(m)
+	if err != nil {
+		return exitStatus("steady", badInput(fmt.Errorf("%s: %w", pos[0], err)), stderr)
+	}
+	sh, err := a.Show()
 	if err != nil {
 		return exitStatus("steady", badInput(fmt.Errorf("%s: %w", pos[0], err)), stderr)
 	}
@@ -114,6 +124,7 @@ func runSteady(args []string, stdout, stderr io.Writer) int {
 			return exitStatus("steady", fmt.Errorf("%s: control coefficients: %w", pos[0], err), stderr)
 		}
 	}
+	s = s.In(sh) // the control coefficients are scaled: pure numbers
 	if *asJSON {
 		return exitStatus("steady", writeSteadyJSON(stdout, s, c), stderr)
 	}
@@ -201,6 +212,15 @@ func steadyJSON(s *analyse.Steady, c *analyse.ControlTables) *orderedMap {
 	if len(s.Notes) > 0 {
 		out.set("notes", s.Notes)
 	}
+	if sh := s.Shown; sh != nil {
+		u := &orderedMap{}
+		u.set("concentration", sh.Columns.AmountUnit)
+		u.set("time", sh.TimeUnit())
+		u.set("flux", sh.RateUnit)
+		u.set("eigenvalue", sh.PerTimeUnit)
+		u.set("total", sh.TotalUnit)
+		out.set("units", u)
+	}
 	return out
 }
 
@@ -223,7 +243,12 @@ func fmtNum(v float64) string {
 
 // writeSteadyText prints the steady state as plain tables.
 func writeSteadyText(w io.Writer, s *analyse.Steady, c *analyse.ControlTables) {
-	fmt.Fprintf(w, "%s\n\nspecies\tconcentration\n", s.Summary())
+	sh := s.Shown
+	var conc, flux, total, eig string
+	if sh != nil {
+		conc, flux, total, eig = sh.Columns.AmountUnit, sh.RateUnit, sh.TotalUnit, sh.PerTimeUnit
+	}
+	fmt.Fprintf(w, "%s\n\nspecies\t%s\n", s.Summary(), sh.Header("concentration", conc))
 	for i, n := range s.Species {
 		held := ""
 		if s.Fixed[i] {
@@ -231,17 +256,17 @@ func writeSteadyText(w io.Writer, s *analyse.Steady, c *analyse.ControlTables) {
 		}
 		fmt.Fprintf(w, "%s\t%s%s\n", n, fmtNum(s.Y[i]), held)
 	}
-	fmt.Fprintf(w, "\nreaction\tflux\n")
+	fmt.Fprintf(w, "\nreaction\t%s\n", sh.Header("flux", flux))
 	for j, n := range s.Reactions {
 		fmt.Fprintf(w, "%s\t%s\n", n, fmtNum(s.Fluxes[j]))
 	}
 	if len(s.Totals) > 0 {
-		fmt.Fprintf(w, "\nconserved total\tvalue\n")
+		fmt.Fprintf(w, "\nconserved total\t%s\n", sh.Header("value", total))
 		for _, t := range s.Totals {
 			fmt.Fprintf(w, "%s\t%s\n", t.Law, fmtNum(t.Value))
 		}
 	}
-	fmt.Fprintf(w, "\neigenvalues of the reduced Jacobian\n")
+	fmt.Fprintf(w, "\n%s\n", sh.Header("eigenvalues of the reduced Jacobian", eig))
 	for _, v := range s.Eigenvalues {
 		fmt.Fprintf(w, "%s\n", analyse.FormatEigenvalue(v))
 	}
@@ -322,11 +347,15 @@ func continueCmd(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return badInput(err)
 	}
-	l, prov, err := loadModel("continuation", c.spec, spec.Model, nil, network.Display{})
+	l, prov, err := loadModel("continuation", c.spec, spec.Model, nil, c.show)
 	if err != nil {
 		return badInput(err)
 	}
 	a, err := analyse.Prepare(l.Model)
+	if err != nil {
+		return badInput(fmt.Errorf("%s: %w", c.spec, err))
+	}
+	sh, err := a.Show()
 	if err != nil {
 		return badInput(fmt.Errorf("%s: %w", c.spec, err))
 	}
@@ -341,6 +370,8 @@ func continueCmd(args []string, stdout, stderr io.Writer) error {
 		}
 		return badInput(fmt.Errorf("%s: %w", c.spec, err))
 	}
+	d = d.In(sh)
+	xu, yu := d.AxisUnits()
 	respIdx := -1
 	if spec.Response != "" {
 		for q, n := range d.Quantities {
@@ -365,7 +396,7 @@ func continueCmd(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	p, perr := plotting.BifurcationPlot(analyse.PlotBranch(d), plotting.Options{
-		Title: "Steady states against " + spec.Knob, XLabel: spec.Knob, YLabel: "steady-state concentration", LogX: d.Log})
+		Title: "Steady states against " + spec.Knob, XLabel: spec.Knob, XUnit: xu, YLabel: "steady-state concentration", YUnit: yu, LogX: d.Log})
 	if err := out.figure(p, perr, "diagram.png"); err != nil {
 		return err
 	}
@@ -378,16 +409,16 @@ func continueCmd(args []string, stdout, stderr io.Writer) error {
 		if err != nil {
 			fmt.Fprintf(stdout, "  no Hill curve: %v\n", err)
 		} else {
-			if err := out.csv("hill.csv", analyse.HillRows(spec.Response, spec.Knob, h)); err != nil {
+			if err := out.csv("hill.csv", analyse.HillRows(d, respIdx, h)); err != nil {
 				return err
 			}
 			x, r := analyse.Response(d, respIdx)
 			p, perr := plotting.DoseResponsePlot(x, r, h.At, "Hill fit", plotting.Options{
-				Title: spec.Response + " at steady state against " + spec.Knob, XLabel: spec.Knob, YLabel: spec.Response, LogX: d.Log})
+				Title: spec.Response + " at steady state against " + spec.Knob, XLabel: spec.Knob, XUnit: xu, YLabel: spec.Response, YUnit: d.QuantityUnit(respIdx), LogX: d.Log})
 			if err := out.figure(p, perr, "dose-response.png"); err != nil {
 				return err
 			}
-			fmt.Fprintf(stdout, "  %s\n", analyse.DescribeHill(spec.Response, spec.Knob, h))
+			fmt.Fprintf(stdout, "  %s\n", analyse.DescribeHill(d, respIdx, h))
 		}
 	}
 	fmt.Fprintf(stdout, "wrote %d files in %s\n", len(out.written), filepath.Clean(c.out))

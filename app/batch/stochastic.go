@@ -35,9 +35,11 @@ func init() { register("stochastic", runStochastic) }
 // stochasticMeta is what the outputs need besides the ensemble; it travels
 // in the parts so that merge writes the same outputs.
 type stochasticMeta struct {
-	Title      string          `json:"title"`
-	TimeUnit   string          `json:"time_unit"`
-	LogTime    bool            `json:"log_time,omitempty"`
+	Title    string `json:"title"`
+	TimeUnit string `json:"time_unit"`
+	LogTime  bool   `json:"log_time,omitempty"`
+	// Shown says how times are shown (display units); absent without.
+	Shown      *ensemble.Shown `json:"shown,omitempty"`
 	Notes      []string        `json:"notes"`
 	ODE        [][]float64     `json:"ode,omitempty"` // in molecules, row by time
 	Provenance *run.Provenance `json:"provenance"`
@@ -84,8 +86,10 @@ func stochasticCmd(args []string, stdout, stderr io.Writer) error {
 	fs.Var(&passageFlags, "passage", "SPECIES=LEVEL: first-passage times to LEVEL molecules (repeatable)")
 	fs.BoolVar(&noODE, "no-ode", false, "leave the ODE solution out of the figures")
 	fs.BoolVar(&quiet, "quiet", false, "do not report progress")
+	var show network.Display
+	fs.StringVar(&show.Time, "time-unit", "", "show times in this unit (s, min, h, day) instead of the model's display unit; counts stay molecules")
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: batch stochastic MODEL.json --runs N --seed S --out DIR [--method direct|next|tau] [--workers N] [--shard i/n]")
+		fmt.Fprintln(stderr, "usage: batch stochastic MODEL.json --runs N --seed S --out DIR [--method direct|next|tau] [--workers N] [--shard i/n] [--time-unit U]")
 		fs.PrintDefaults()
 	}
 	var pos []string
@@ -156,6 +160,13 @@ func stochasticCmd(args []string, stdout, stderr io.Writer) error {
 	if points > 0 {
 		model.Simulation.Output.Points = points
 	}
+	if err := setDisplay(&model.Simulation, model.Units, show); err != nil {
+		return badInput(err)
+	}
+	shown, err := ensemble.Show(model)
+	if err != nil {
+		return badInput(fmt.Errorf("%s: %w", pos[0], err))
+	}
 	job, err := ensemble.Prepare(model, spec)
 	if err != nil {
 		return badInput(fmt.Errorf("%s: %w", pos[0], err))
@@ -165,7 +176,7 @@ func stochasticCmd(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	prov.Stochastic = &run.Stochastic{Method: string(spec.Method), Runs: spec.Runs, Seed: spec.Seed, MoleculesPerAmount: job.Counts.PerAmount}
-	meta := &stochasticMeta{Title: model.Title, TimeUnit: model.Units.Time, LogTime: job.LogGrid, Notes: job.Notes(), Provenance: prov}
+	meta := &stochasticMeta{Title: model.Title, TimeUnit: model.Units.Time, LogTime: job.LogGrid, Notes: job.Notes(), Provenance: prov, Shown: shown}
 	ctx := context.Background()
 	if !noODE {
 		ode, err := job.ODE(ctx)
@@ -278,12 +289,12 @@ func writeStochastic(meta *stochasticMeta, e *stochastic.Ensemble, dir string, s
 		rows [][]string
 		skip bool
 	}{
-		{"mean.csv", ensemble.MeanRows(e), false},
-		{"sd.csv", ensemble.SDRows(e), false},
-		{"bands.csv", ensemble.BandRows(e), false},
-		{"runs.csv", ensemble.RunRows(e), false},
-		{"histograms.csv", ensemble.HistogramRows(e), len(e.HistTimes) == 0},
-		{"passages.csv", ensemble.PassageRows(e), len(e.Passages) == 0},
+		{"mean.csv", ensemble.MeanRows(e, meta.Shown), false},
+		{"sd.csv", ensemble.SDRows(e, meta.Shown), false},
+		{"bands.csv", ensemble.BandRows(e, meta.Shown), false},
+		{"runs.csv", ensemble.RunRows(e, meta.Shown), false},
+		{"histograms.csv", ensemble.HistogramRows(e, meta.Shown), len(e.HistTimes) == 0},
+		{"passages.csv", ensemble.PassageRows(e, meta.Shown), len(e.Passages) == 0},
 		{"failures.csv", failureRows(e), len(e.Failures) == 0},
 	} {
 		if t.skip {
@@ -294,14 +305,14 @@ func writeStochastic(meta *stochasticMeta, e *stochastic.Ensemble, dir string, s
 		}
 	}
 	for s, sp := range e.Species {
-		p, err := ensemble.Figure(e, s, meta.ODE, meta.TimeUnit, meta.LogTime)
+		p, err := ensemble.Figure(e, s, meta.ODE, meta.TimeUnit, meta.LogTime, meta.Shown)
 		if err := o.figure(p, err, "stochastic_"+fileName(sp)+".png"); err != nil {
 			return err
 		}
 	}
 	for h := range e.HistTimes {
 		for s, sp := range e.Species {
-			p, err := ensemble.HistogramFigure(e, h, s)
+			p, err := ensemble.HistogramFigure(e, h, s, meta.Shown)
 			name := fmt.Sprintf("hist_%s_t%s.png", fileName(sp), fileName(strconv.FormatFloat(e.Times[e.HistTimes[h]], 'g', -1, 64)))
 			if err := o.figure(p, err, name); err != nil {
 				return err
@@ -309,7 +320,7 @@ func writeStochastic(meta *stochasticMeta, e *stochastic.Ensemble, dir string, s
 		}
 	}
 	for k := range e.Passages {
-		p, err := ensemble.PassageFigure(e, k)
+		p, err := ensemble.PassageFigure(e, k, meta.Shown)
 		if err := o.figure(p, err, fmt.Sprintf("passage_%d.png", k+1)); err != nil {
 			return err
 		}

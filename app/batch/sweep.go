@@ -191,20 +191,8 @@ func loadModel(kind, specPath, model string, simRaw json.RawMessage, show networ
 			sim.Output.Spacing = o.Spacing
 		}
 	}
-	if show.Time != "" {
-		sim.Display.Time = show.Time
-	}
-	if show.Concentration != "" {
-		sim.Display.Concentration = show.Concentration
-	}
-	if show != (network.Display{}) {
-		flag := map[string]string{"display.time": "--time-unit", "display.concentration": "--concentration-unit"}
-		for _, p := range sim.Display.Check(m.Units) {
-			set := p.Pos.Field == "display.time" && show.Time != "" || p.Pos.Field == "display.concentration" && show.Concentration != ""
-			if set {
-				return nil, nil, fmt.Errorf("%s: %s", flag[p.Pos.Field], p.Message)
-			}
-		}
+	if err := setDisplay(&sim, m.Units, show); err != nil {
+		return nil, nil, err
 	}
 	m.Simulation = sim
 	p, err := study.Prepare(m)
@@ -293,6 +281,29 @@ type cmdFlags struct {
 	show    network.Display // --time-unit, --concentration-unit (sweep, population)
 }
 
+// setDisplay sets the display units the --time-unit and
+// --concentration-unit flags ask for (show; an empty field keeps the
+// model's choice) in sim, checked against the model's units u: a unit
+// that does not read or convert is an error naming its flag.
+func setDisplay(sim *network.Simulation, u network.Units, show network.Display) error {
+	if show.Time != "" {
+		sim.Display.Time = show.Time
+	}
+	if show.Concentration != "" {
+		sim.Display.Concentration = show.Concentration
+	}
+	if show != (network.Display{}) {
+		flag := map[string]string{"display.time": "--time-unit", "display.concentration": "--concentration-unit"}
+		for _, p := range sim.Display.Check(u) {
+			set := p.Pos.Field == "display.time" && show.Time != "" || p.Pos.Field == "display.concentration" && show.Concentration != ""
+			if set {
+				return fmt.Errorf("%s: %s", flag[p.Pos.Field], p.Message)
+			}
+		}
+	}
+	return nil
+}
+
 // parseCmd parses "SPEC [--shard i/n] [--out DIR] [--workers N] [--quiet]"
 // with flags before or after the spec.
 func parseCmd(name string, args []string, stderr io.Writer) (*cmdFlags, error) {
@@ -305,7 +316,7 @@ func parseCmd(name string, args []string, stderr io.Writer) (*cmdFlags, error) {
 	fs.IntVar(&c.workers, "workers", 0, "number of parallel workers (default: one per CPU)")
 	fs.BoolVar(&c.quiet, "quiet", false, "do not report progress")
 	usage := "usage: batch %s SPEC.json [--shard i/n] [--out DIR] [--workers N] [--quiet]\n"
-	if name == "sweep" || name == "population" {
+	if name == "sweep" || name == "population" || name == "continue" || name == "sensitivity" {
 		fs.StringVar(&c.show.Time, "time-unit", "", "show times in this unit (s, min, h, day) instead of the model's display unit")
 		fs.StringVar(&c.show.Concentration, "concentration-unit", "", "show concentrations in this unit (such as nM or mg/L) instead of the model's display unit")
 		usage = "usage: batch %s SPEC.json [--shard i/n] [--out DIR] [--workers N] [--quiet] [--time-unit U] [--concentration-unit U]\n"

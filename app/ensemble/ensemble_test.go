@@ -138,10 +138,10 @@ func TestModelEnsemble(t *testing.T) {
 		if got := e.Mean(10, 1); got < 40 { // just after the pulse of 50
 			t.Errorf("%s: mean P at the pulse %v", meth, got)
 		}
-		if rows := MeanRows(e); len(rows) != 22 || len(rows[0]) != 3 {
+		if rows := MeanRows(e, nil); len(rows) != 22 || len(rows[0]) != 3 {
 			t.Errorf("mean rows %d × %d", len(rows), len(rows[0]))
 		}
-		if rows := RunRows(e); len(rows) != 1+10*21 {
+		if rows := RunRows(e, nil); len(rows) != 1+10*21 {
 			t.Errorf("run rows %d", len(rows))
 		}
 		reached, missed := PassageSummary(e, 0)
@@ -156,13 +156,13 @@ func TestModelEnsemble(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if _, err := Figure(e, 1, ode, "h", false); err != nil {
+		if _, err := Figure(e, 1, ode, "h", false, nil); err != nil {
 			t.Error(err)
 		}
-		if _, err := HistogramFigure(e, 0, 1); err != nil {
+		if _, err := HistogramFigure(e, 0, 1, nil); err != nil {
 			t.Error(err)
 		}
-		if _, err := PassageFigure(e, 0); err != nil {
+		if _, err := PassageFigure(e, 0, nil); err != nil {
 			t.Error(err)
 		}
 	}

@@ -34,6 +34,11 @@ type Outcome struct {
 	// known: AmountUnit for species, and each assignment's declared unit
 	// (converted to AmountUnit when it is a concentration).
 	Units []string
+	// Inferred holds, for an assignment column without a declared unit,
+	// the unit its expression comes out in (network infers it; nil or ""
+	// where none is known). Convert converts such a column as if it were
+	// declared; tables name it only once it is shown in display units.
+	Inferred []string
 	// Notes say what the display units left as it was, such as an
 	// assignment whose unit is not a concentration.
 	Notes []string
@@ -105,6 +110,16 @@ func NewOutcome(m *network.Model, sys *network.System, res *solve.Result, err er
 		}
 		for k, name := range asg {
 			out.Units[len(species)+k] = unit[name]
+		}
+		// An assignment without a declared unit converts in the unit
+		// its expression comes out in.
+		for k, u := range sys.AssignmentUnits() {
+			if j := len(species) + k; strings.TrimSpace(out.Units[j]) == "" && u != "" {
+				if out.Inferred == nil {
+					out.Inferred = make([]string, len(out.Names))
+				}
+				out.Inferred[j] = u
+			}
 		}
 	}
 	sim := m.Simulation.WithDefaults()

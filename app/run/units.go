@@ -17,7 +17,8 @@ import (
 // o's unit. Times (output times, events, jumps, the end time) and species
 // are converted; an assignment column only when its declared unit is a
 // concentration of the display unit's kind — the others are left as they
-// are, and a line of Notes says so. Without any change it returns o
+// are, and a line of Notes says so. An assignment without a declared unit
+// converts in the unit its expression comes out in (Inferred). Without any change it returns o
 // itself; otherwise a new outcome that shares no rows with o. A unit that
 // does not read or does not convert from o's is an error, and o is
 // returned unchanged with it.
@@ -25,6 +26,9 @@ func (o *Outcome) Convert(d network.Display) (*Outcome, error) {
 	units := make([]string, len(o.Names))
 	for j := range o.Names {
 		units[j] = o.ColumnUnit(j)
+		if strings.TrimSpace(units[j]) == "" && j < len(o.Inferred) {
+			units[j] = o.Inferred[j]
+		}
 	}
 	sh, err := Show(o.TimeUnit, o.AmountUnit, o.Names, units, o.Species, d)
 	if err != nil {
@@ -34,6 +38,7 @@ func (o *Outcome) Convert(d network.Display) (*Outcome, error) {
 		return o, nil
 	}
 	c := *o
+	c.Inferred = nil
 	col := sh.Scales
 	c.Units = sh.Units
 	c.Notes = append(append([]string(nil), o.Notes...), sh.Notes...)
@@ -64,6 +69,31 @@ func (o *Outcome) Convert(d network.Display) (*Outcome, error) {
 	}
 	c.TEnd = ft.Of(o.TEnd)
 	return &c, nil
+}
+
+// ColumnUnits returns the unit of each column of a result of m compiled
+// as sys — the state (sys.Species()), then the assignments: the model's
+// concentration unit for a species, the declared unit of a parameter
+// carried in the state, and each assignment's unit, declared or inferred
+// from its expression (network.System.AssignmentUnits); "" where none is
+// known.
+func ColumnUnits(m *network.Model, sys *network.System) []string {
+	state, asg := sys.Species(), sys.AssignmentUnits()
+	out := make([]string, 0, len(state)+len(asg))
+	for i, n := range state {
+		u := ""
+		if i < len(m.Species) {
+			u = m.Units.Amount
+		} else {
+			for _, p := range m.Parameters {
+				if p.Name == n {
+					u = p.Unit
+				}
+			}
+		}
+		out = append(out, u)
+	}
+	return append(out, asg...)
 }
 
 // Shown is how results computed in a model's units are shown in display
@@ -118,6 +148,10 @@ func Show(timeUnit, amountUnit string, names, colUnits []string, species int, d 
 			switch {
 			case strings.TrimSpace(own) == "":
 				sh.Notes = append(sh.Notes, fmt.Sprintf("%s declares no unit, so it is shown as computed, not converted to %s; give it a concentration unit to convert it", names[j], d.Concentration))
+			case err == nil && u.Dimensionless():
+				// A pure number has no unit to name in a header.
+				sh.Units[j] = ""
+				sh.Notes = append(sh.Notes, fmt.Sprintf("%s is a pure number, so it is shown as it is", names[j]))
 			case err != nil || !u.SameDim(to):
 				sh.Notes = append(sh.Notes, fmt.Sprintf("%s is in %s, not a concentration of the kind of %s, so it is shown as it is", names[j], own, d.Concentration))
 			default:

@@ -23,15 +23,7 @@ func (j *Job) show() error {
 		return nil
 	}
 	names := p.Quantities()
-	colUnits := make([]string, len(names))
-	for i, n := range names {
-		switch {
-		case i < len(m.Species):
-			colUnits[i] = m.Units.Amount
-		default:
-			colUnits[i] = quantityUnit(m, n)
-		}
-	}
+	colUnits := run.ColumnUnits(m, p.Sys) // assignments' inferred units too
 	sh, err := run.Show(m.Units.Time, m.Units.Amount, names, colUnits, len(m.Species), d)
 	if err != nil || sh == nil {
 		return err
