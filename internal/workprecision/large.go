@@ -46,9 +46,10 @@ func resetPeak() bool {
 // (gennet.Cascade) and the networks with feedback (gennet.Feedback), those
 // of them that include accepts, as problems named CASCn and FBn with
 // output at 200 log-spaced times to t = 1000 and atol 1e-12 (the
-// generators' own settings), and records the stages of each: generate,
-// check, compile and the reference solve.
-func largeProblems(cascades, feedback []int) ([]problem, []stageRow, error) {
+// generators' own settings), records the stages of each (generate, check,
+// compile and the reference solve) and hands each to measure before the
+// next is generated, so that the peaks of one are not another's.
+func largeProblems(cascades, feedback []int, measure func(problem, *[]stageRow)) ([]problem, []stageRow, error) {
 	type gen struct {
 		name string
 		make func(int) *network.Model
@@ -106,7 +107,9 @@ func largeProblems(cascades, feedback []int) ([]problem, []stageRow, error) {
 			rows = append(rows, stageRow{g.name, s})
 		}
 		fmt.Fprintf(os.Stderr, "%s: %d species, prepared\n", g.name, sys.Dim())
-		ps = append(ps, p)
+		measure(p, &rows)
+		// The figures need the problem's name alone.
+		ps = append(ps, problem{name: p.name})
 	}
 	return ps, rows, nil
 }

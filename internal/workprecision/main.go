@@ -103,21 +103,6 @@ func run(out string, repeat int, quick bool, only, rtolList string) error {
 	if err != nil && !strings.HasPrefix(err.Error(), "-problems") {
 		return err
 	}
-	var large []problem
-	var stageRows []stageRow
-	if !quick {
-		cs, err1 := intList("large", largeSizes)
-		fs, err2 := intList("feedback", feedbackSizes)
-		if err1 != nil || err2 != nil {
-			return cmp.Or(err1, err2)
-		}
-		if large, stageRows, err = largeProblems(cs, fs); err != nil {
-			return err
-		}
-	}
-	if len(probs)+len(large) == 0 {
-		return fmt.Errorf("-problems: none of HIRES, POLLU, CASC50, NET200 or the large networks named")
-	}
 	methods := []solve.Method{solve.Auto, solve.Rosenbrock, solve.Radau, solve.BDF, solve.Explicit}
 	rtols := []float64{1e-4, 1e-5, 1e-6, 1e-7, 1e-8, 1e-9, 1e-10}
 	if quick {
@@ -154,13 +139,30 @@ func run(out string, repeat int, quick bool, only, rtolList string) error {
 			}
 		}
 	}
-	lrtols := largeRTols
-	if rtolList != "" {
-		lrtols = rtols
+	var large []problem
+	var stageRows []stageRow
+	var lrows []row
+	if !quick {
+		cs, err1 := intList("large", largeSizes)
+		fs, err2 := intList("feedback", feedbackSizes)
+		if err1 != nil || err2 != nil {
+			return cmp.Or(err1, err2)
+		}
+		lrtols := largeRTols
+		if rtolList != "" {
+			lrtols = rtols
+		}
+		large, stageRows, err = largeProblems(cs, fs, func(p problem, st *[]stageRow) {
+			lrows = append(lrows, measureLarge(p, lrtols, min(repeat, 3), st)...)
+		})
+		if err != nil {
+			return err
+		}
 	}
-	for _, p := range large {
-		rows = append(rows, measureLarge(p, lrtols, min(repeat, 3), &stageRows)...)
+	if len(probs)+len(large) == 0 {
+		return fmt.Errorf("-problems: none of HIRES, POLLU, CASC50, NET200, CASCn or FBn named")
 	}
+	rows = append(rows, lrows...)
 	probs = append(probs, large...)
 	if out == "" {
 		return nil
