@@ -66,6 +66,7 @@ bench:
 # profiles bench/profile-net*.pprof). Sets CVODE up with
 # scripts/install-sundials.sh (as root) when it is missing. Sizes of the
 # generated networks: make cvode-compare CVODE_SIZES=200,1000,5000
+# (networks with feedback: CVODE_FLAGS=-feedback-sizes=1000)
 CVODE_SIZES ?= 200,1000
 CVODE_FLAGS ?=
 cvode-compare:

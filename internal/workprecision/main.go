@@ -22,6 +22,7 @@
 package main
 
 import (
+	"cmp"
 	"context"
 	"flag"
 	"fmt"
@@ -77,7 +78,9 @@ func main() {
 	quick := flag.Bool("quick", false, "BDF and Auto at rtol 1e-6 and 1e-8 only")
 	only := flag.String("methods", "", "comma-separated methods to measure instead (auto, rosenbrock, radau, bdf, explicit)")
 	rtolList := flag.String("rtols", "", "comma-separated relative tolerances to measure instead")
-	probList := flag.String("problems", "", "comma-separated problems to measure instead of all (HIRES, POLLU, CASC50, NET200)")
+	probList := flag.String("problems", "", "comma-separated problems to measure instead of all (HIRES, POLLU, CASC50, NET200, CASCn, FBn)")
+	flag.StringVar(&largeSizes, "large", "5000,20000", "comma-separated species counts of the large generated cascades (CASCn; auto and BDF only); empty for none")
+	flag.StringVar(&feedbackSizes, "feedback", "5000", "comma-separated species counts of the large generated networks with feedback (FBn); empty for none")
 	flag.Parse()
 	if *probList != "" {
 		want := map[string]bool{}
@@ -92,9 +95,12 @@ func main() {
 	}
 }
 
+// largeSizes and feedbackSizes are the -large and -feedback lists.
+var largeSizes, feedbackSizes string
+
 func run(out string, repeat int, quick bool, only, rtolList string) error {
 	probs, err := problems()
-	if err != nil {
+	if err != nil && !strings.HasPrefix(err.Error(), "-problems") {
 		return err
 	}
 	methods := []solve.Method{solve.Auto, solve.Rosenbrock, solve.Radau, solve.BDF, solve.Explicit}
@@ -133,13 +139,38 @@ func run(out string, repeat int, quick bool, only, rtolList string) error {
 			}
 		}
 	}
+	var large []problem
+	var stageRows []stageRow
+	var lrows []row
+	if !quick {
+		cs, err1 := intList("large", largeSizes)
+		fs, err2 := intList("feedback", feedbackSizes)
+		if err1 != nil || err2 != nil {
+			return cmp.Or(err1, err2)
+		}
+		lrtols := largeRTols
+		if rtolList != "" {
+			lrtols = rtols
+		}
+		large, stageRows, err = largeProblems(cs, fs, func(p problem, st *[]stageRow) {
+			lrows = append(lrows, measureLarge(p, lrtols, min(repeat, 3), st)...)
+		})
+		if err != nil {
+			return err
+		}
+	}
+	if len(probs)+len(large) == 0 {
+		return fmt.Errorf("-problems: none of HIRES, POLLU, CASC50, NET200, CASCn or FBn named")
+	}
+	rows = append(rows, lrows...)
+	probs = append(probs, large...)
 	if out == "" {
 		return nil
 	}
 	if err := os.MkdirAll(out, 0o755); err != nil {
 		return err
 	}
-	if err := os.WriteFile(filepath.Join(out, "workprecision.md"), []byte(report(rows, repeat)), 0o644); err != nil {
+	if err := os.WriteFile(filepath.Join(out, "workprecision.md"), []byte(report(rows, repeat)+stageReport(stageRows, min(repeat, 3))), 0o644); err != nil {
 		return err
 	}
 	for _, p := range probs {
@@ -150,6 +181,22 @@ func run(out string, repeat int, quick bool, only, rtolList string) error {
 		}
 	}
 	return nil
+}
+
+// intList parses a comma-separated list of species counts.
+func intList(flagName, list string) ([]int, error) {
+	var v []int
+	for _, f := range strings.Split(list, ",") {
+		if f = strings.TrimSpace(f); f == "" {
+			continue
+		}
+		n, err := strconv.Atoi(f)
+		if err != nil || n < 4 || n > 1000000 {
+			return nil, fmt.Errorf("-%s: %q is not a species count from 4 to 10⁶", flagName, f)
+		}
+		v = append(v, n)
+	}
+	return v, nil
 }
 
 func name(m solve.Method) string {

@@ -38,6 +38,7 @@ type options struct {
 	denseMax, radauMax      int
 	profile                 string
 	profileSizes            string
+	feedbackSizes           string
 	profileRTol             float64
 	profileSeconds          float64
 }
@@ -49,6 +50,7 @@ func main() {
 	flag.StringVar(&o.examples, "examples", "examples", "folder with signalling-cascade-50.json")
 	flag.StringVar(&o.problems, "problems", "hires,pollu,casc50", "comma-separated fixed problems (hires, pollu, casc50); empty for none")
 	flag.StringVar(&o.sizes, "sizes", "200,1000", "comma-separated species counts of generated networks (internal/gennet, multiples of 4)")
+	flag.StringVar(&o.feedbackSizes, "feedback-sizes", "", "comma-separated species counts of generated networks with feedback loops (gennet.Feedback, multiples of 4); empty for none")
 	flag.StringVar(&o.methods, "methods", "auto,bdf", "comma-separated Kinetarium methods (auto, bdf, radau, rosenbrock)")
 	flag.StringVar(&o.rtols, "rtols", "1e-4,1e-5,1e-6,1e-7,1e-8,1e-9,1e-10", "comma-separated relative tolerances")
 	flag.Float64Var(&o.atolRatio, "atol-ratio", 1e-6, "atol = rtol × this")
@@ -116,6 +118,10 @@ func run(o options) error {
 	if err != nil {
 		return err
 	}
+	fbSizes, err := sizes("feedback-sizes", o.feedbackSizes)
+	if err != nil {
+		return err
+	}
 	var methods []solve.Method
 	for _, m := range strings.Split(o.methods, ",") {
 		switch m = strings.TrimSpace(m); m {
@@ -162,6 +168,13 @@ func run(o options) error {
 	}
 	for _, n := range genSizes {
 		p, err := generated(n)
+		if err != nil {
+			return err
+		}
+		probs = append(probs, p)
+	}
+	for _, n := range fbSizes {
+		p, err := cvodecmp.NetworkProblem(fmt.Sprintf("FB%d", n), gennet.Feedback(n), 1000)
 		if err != nil {
 			return err
 		}

@@ -1,0 +1,174 @@
+package main
+
+import (
+	"fmt"
+	"os"
+	"runtime"
+	"runtime/debug"
+	"strings"
+
+	"kinetarium/internal/gennet"
+	"kinetarium/internal/stages"
+	"kinetarium/network"
+	"kinetarium/solve"
+)
+
+// largeMethods and largeRTols are what the large networks are measured
+// with: every method at seven tolerances would take most of an hour at
+// 20,000 species, and these are the two a user's run picks from.
+var (
+	largeMethods = []solve.Method{solve.Auto, solve.BDF}
+	largeRTols   = []float64{1e-5, 1e-6, 1e-7, 1e-8}
+)
+
+// largeRefRTol is the tolerance of the large networks' references, from
+// RODAS4 (Radau IIA's complex systems cost too much at 20,000 species).
+const largeRefRTol = 1e-10
+
+// stageRow is one stage of preparing or solving a large network, with its
+// time and the process's peak memory since the network's first stage.
+type stageRow struct {
+	problem string
+	stages.Stage
+}
+
+// resetPeak collects the garbage, returns freed memory to the system and
+// resets the process's peak resident memory (Linux: /proc/self/clear_refs,
+// "5"), so that each large network's peaks are its own. Where the reset
+// is not possible the peaks include those of the networks before.
+func resetPeak() bool {
+	runtime.GC()
+	debug.FreeOSMemory()
+	return os.WriteFile("/proc/self/clear_refs", []byte("5"), 0) == nil
+}
+
+// largeProblems generates the cascades of the given species counts
+// (gennet.Cascade) and the networks with feedback (gennet.Feedback), those
+// of them that include accepts, as problems named CASCn and FBn with
+// output at 200 log-spaced times to t = 1000 and atol 1e-12 (the
+// generators' own settings), records the stages of each (generate, check,
+// compile and the reference solve) and hands each to measure before the
+// next is generated, so that the peaks of one are not another's.
+func largeProblems(cascades, feedback []int, measure func(problem, *[]stageRow)) ([]problem, []stageRow, error) {
+	type gen struct {
+		name string
+		make func(int) *network.Model
+		n    int
+	}
+	var gens []gen
+	for _, n := range cascades {
+		gens = append(gens, gen{fmt.Sprintf("CASC%d", n), gennet.Cascade, n})
+	}
+	for _, n := range feedback {
+		gens = append(gens, gen{fmt.Sprintf("FB%d", n), gennet.Feedback, n})
+	}
+	var ps []problem
+	var rows []stageRow
+	for _, g := range gens {
+		if !include(g.name) {
+			continue
+		}
+		resetPeak()
+		var rec stages.Recorder
+		var m *network.Model
+		var net *network.Net
+		var sys *network.System
+		steps := []struct {
+			name string
+			f    func() error
+		}{
+			{"generate", func() error { m = g.make(g.n); return nil }},
+			{"check", func() error {
+				var errs network.ErrorList
+				net, errs = network.Check(m)
+				return errs.Err()
+			}},
+			{"compile", func() error {
+				var err error
+				sys, err = net.Compile()
+				return err
+			}},
+		}
+		for _, s := range steps {
+			if err := rec.Do(s.name, s.f); err != nil {
+				return nil, nil, fmt.Errorf("%s: %s: %w", g.name, s.name, err)
+			}
+		}
+		p := problem{name: g.name, sys: sys, tEnd: 1000, atol: 1e-12, times: solve.LogTimes(1e-3, 1000, 200)}
+		err := rec.Do(fmt.Sprintf("reference (RODAS4, rtol %.0e)", largeRefRTol), func() error {
+			var err error
+			p.ref, err = reference(p, solve.Rosenbrock, largeRefRTol)
+			return err
+		})
+		if err != nil {
+			return nil, nil, fmt.Errorf("reference for %s: %w", g.name, err)
+		}
+		for _, s := range rec.Stages {
+			rows = append(rows, stageRow{g.name, s})
+		}
+		fmt.Fprintf(os.Stderr, "%s: %d species, prepared\n", g.name, sys.Dim())
+		measure(p, &rows)
+		// The figures need the problem's name alone.
+		ps = append(ps, problem{name: p.name})
+	}
+	return ps, rows, nil
+}
+
+// measureLarge measures one large problem with largeMethods at rtols and
+// adds a stage row for each solve: its median wall time and the peak
+// memory of the process since the problem was generated.
+func measureLarge(p problem, rtols []float64, repeat int, st *[]stageRow) []row {
+	var rows []row
+	for _, m := range largeMethods {
+		for _, rt := range rtols {
+			var r row
+			var rec stages.Recorder
+			rec.Do(fmt.Sprintf("solve, %s, rtol %.0e", name(m), rt), func() error {
+				r = measure(p, m, rt, repeat)
+				return nil
+			})
+			s := rec.Stages[0]
+			// The stage's times are those of all the repeats; report one.
+			s.Seconds = r.wall.Seconds()
+			s.CPU /= float64(repeat)
+			s.Alloc /= uint64(repeat)
+			*st = append(*st, stageRow{p.name, s})
+			rows = append(rows, r)
+			fmt.Fprintf(os.Stderr, "%-9s %-5s rtol %.0e: scaled error end %8.3g run %8.3g  %9.3f ms  %5d steps %5d LU %s\n",
+				p.name, name(m), rt, r.errEnd, r.err, float64(r.wall.Microseconds())/1000, r.stats.Steps, r.stats.Factorizations, r.failed)
+		}
+	}
+	return rows
+}
+
+// stageReport is the Markdown section with the stages of the large
+// networks.
+func stageReport(rows []stageRow, repeat int) string {
+	if len(rows) == 0 {
+		return ""
+	}
+	var b strings.Builder
+	fmt.Fprintf(&b, "\n## Large networks: stages\n\nGenerated by `internal/gennet` in this process: CASCn is the stiff signalling cascade of n species (`gennet.Cascade`), FBn the same with feedback loops that join it into one strongly connected block (`gennet.Feedback`); t_end 1000, atol 1e-12, 200 log-spaced output times. Their references come from RODAS4 at rtol %.0e, atol 1e-16, landing on every output time. Time is wall time with the processor time in brackets (solves: the median of %d, processor time and allocation per solve); peak is the process's peak resident memory since the network was generated (reset before each network where the system allows), so a solve's peak includes the network and its reference held in memory. The stages of a run from a file, each in its own process, are in `bench/large-networks.md`.\n\n", largeRefRTol, repeat)
+	b.WriteString("| network | stage | time | allocated (MB) | peak (MB) |\n|---|---|---:|---:|---:|\n")
+	for _, r := range rows {
+		fmt.Fprintf(&b, "| %s | %s | %s (%s) | %.1f | %s |\n", r.problem, r.Name, dur(r.Seconds), dur(r.CPU), stages.MB(int64(r.Alloc)), peak(r.Peak))
+	}
+	return b.String()
+}
+
+func dur(s float64) string {
+	switch {
+	case s >= 1:
+		return fmt.Sprintf("%.2f s", s)
+	case s >= 1e-3:
+		return fmt.Sprintf("%.1f ms", s*1e3)
+	}
+	return fmt.Sprintf("%.0f µs", s*1e6)
+}
+
+func peak(b int64) string {
+	if b <= 0 {
+		return "n/a"
+	}
+	return fmt.Sprintf("%.0f", stages.MB(b))
+}
