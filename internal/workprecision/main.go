@@ -134,8 +134,8 @@ func run(out string, repeat int, quick bool, only, rtolList string) error {
 			for _, rt := range rtols {
 				r := measure(p, m, rt, repeat)
 				rows = append(rows, r)
-				fmt.Fprintf(os.Stderr, "%-8s %-10s rtol %.0e: scaled error end %8.3g run %8.3g  %9.3f ms  %5d steps %5d LU %s\n",
-					p.name, name(m), rt, r.errEnd, r.err, float64(r.wall.Microseconds())/1000, r.stats.Steps, r.stats.Factorizations, r.failed)
+				fmt.Fprintf(os.Stderr, "%-8s %-10s rtol %.0e: scaled error end %8.3g run %8.3g  %9.3f ms  %5d steps %5d LU %6d RHS %4d Jac %4d rej %s\n",
+					p.name, name(m), rt, r.errEnd, r.err, float64(r.wall.Microseconds())/1000, r.stats.Steps, r.stats.Factorizations, r.stats.RHSEvals, r.stats.JacobianEvals, r.stats.Rejected, r.failed)
 			}
 		}
 	}
