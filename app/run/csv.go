@@ -1,7 +1,6 @@
 package run
 
 import (
-	"bytes"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -76,17 +75,18 @@ func WriteCSV(w io.Writer, o *Outcome) error {
 }
 
 // SaveCSV writes the rows of o to path atomically and, when prov is not
-// nil, its provenance beside it (see SaveProvenance).
+// nil, its provenance beside it (see SaveProvenance). The rows go to the
+// file as they are written, so the table of text is never held whole.
 func SaveCSV(path string, o *Outcome, prov *Provenance) error {
-	var buf bytes.Buffer
-	if len(o.T) > 0 {
-		// About 12 bytes a number: one allocation for most tables.
-		buf.Grow(len(o.T) * (len(o.Names) + 1) * 12)
+	f, err := atomicfile.Create(path)
+	if err != nil {
+		return err
 	}
-	if err := WriteCSV(&buf, o); err != nil {
+	defer f.Abort()
+	if err := WriteCSV(f, o); err != nil {
 		return fmt.Errorf("writing %s: %w", path, err)
 	}
-	if err := atomicfile.Write(path, buf.Bytes()); err != nil {
+	if err := f.Commit(); err != nil {
 		return err
 	}
 	if prov == nil {
