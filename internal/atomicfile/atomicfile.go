@@ -321,12 +321,20 @@ func ReadFile(path string, limit int64) ([]byte, error) {
 	return data, nil
 }
 
-// ReadLimited reads r to its end, refusing more than limit bytes.
+// ReadLimited reads r to its end, refusing more than limit bytes. A
+// regular file is read into a buffer of its size, read once (io.ReadAll
+// would grow its buffer by doubling, up to twice the file's size).
 func ReadLimited(r io.Reader, limit int64) ([]byte, error) {
-	data, err := io.ReadAll(io.LimitReader(r, limit+1))
-	if err != nil {
+	var buf bytes.Buffer
+	if f, ok := r.(*os.File); ok {
+		if fi, err := f.Stat(); err == nil && fi.Mode().IsRegular() && fi.Size() <= limit {
+			buf.Grow(int(fi.Size()) + bytes.MinRead)
+		}
+	}
+	if _, err := buf.ReadFrom(io.LimitReader(r, limit+1)); err != nil {
 		return nil, err
 	}
+	data := buf.Bytes()
 	if int64(len(data)) > limit {
 		return nil, fmt.Errorf("larger than %s, the most this program reads from one input file", Size(limit))
 	}
