@@ -41,20 +41,12 @@ func parseFitFlags(args []string) (*fitFlags, error) {
 	fs.IntVar(&f.workers, "workers", 0, "")
 	fs.BoolVar(&f.profiles, "profiles", false, "")
 	fs.BoolVar(&f.quiet, "quiet", false, "")
-	var pos []string
-	for {
-		if err := fs.Parse(args); err != nil {
-			if errors.Is(err, flag.ErrHelp) {
-				return nil, err
-			}
-			return nil, badInput(fmt.Errorf("%v (see batch help)", err))
+	pos, err := parseAnywhere(fs, args)
+	if err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return nil, err
 		}
-		args = fs.Args()
-		if len(args) == 0 {
-			break
-		}
-		pos = append(pos, args[0])
-		args = args[1:]
+		return nil, badInput(fmt.Errorf("%v (see batch help)", err))
 	}
 	if len(pos) != 1 {
 		return nil, badInput(fmt.Errorf("expected one fit specification, got %d arguments %q (see batch help)", len(pos), pos))

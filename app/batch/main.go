@@ -26,6 +26,7 @@
 package main
 
 import (
+	"flag"
 	"fmt"
 	"io"
 	"os"
@@ -245,4 +246,20 @@ func dispatch(args []string, stdout, stderr io.Writer) int {
 		return exitBadInput
 	}
 	return guard(args[0], args[1:], stderr, func() int { return run(args[1:], stdout, stderr) })
+}
+
+// parseAnywhere parses fs's flags wherever they stand among args (the flag
+// package stops at the first argument that is not a flag) and returns the
+// other arguments in order, or the error of fs.Parse.
+func parseAnywhere(fs *flag.FlagSet, args []string) ([]string, error) {
+	var pos []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			return pos, err
+		}
+		if args = fs.Args(); len(args) == 0 {
+			return pos, nil
+		}
+		pos, args = append(pos, args[0]), args[1:]
+	}
 }

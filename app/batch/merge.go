@@ -137,17 +137,9 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintln(stderr, "usage: batch merge PART.json... --out DIR")
 		fs.PrintDefaults()
 	}
-	var files []string
-	for {
-		if err := fs.Parse(args); err != nil {
-			return badInput(err)
-		}
-		args = fs.Args()
-		if len(args) == 0 {
-			break
-		}
-		files = append(files, args[0])
-		args = args[1:]
+	files, err := parseAnywhere(fs, args)
+	if err != nil {
+		return badInput(err)
 	}
 	if len(files) == 0 || *out == "" {
 		fs.Usage()

@@ -30,20 +30,12 @@ func init() {
 // fileArgs parses "FILE [flags]" with flags before or after the file.
 func fileArgs(name string, args []string, fs *flag.FlagSet) (string, error) {
 	fs.SetOutput(io.Discard)
-	var pos []string
-	for {
-		if err := fs.Parse(args); err != nil {
-			if errors.Is(err, flag.ErrHelp) {
-				return "", err
-			}
-			return "", badInput(fmt.Errorf("%v (see batch help)", err))
+	pos, err := parseAnywhere(fs, args)
+	if err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return "", err
 		}
-		args = fs.Args()
-		if len(args) == 0 {
-			break
-		}
-		pos = append(pos, args[0])
-		args = args[1:]
+		return "", badInput(fmt.Errorf("%v (see batch help)", err))
 	}
 	if len(pos) != 1 {
 		return "", badInput(fmt.Errorf("expected one %s, got %d arguments %q (see batch help)", name, len(pos), pos))

@@ -85,20 +85,12 @@ func parseSimFlags(args []string) (*simFlags, error) {
 	fs.StringVar(&f.data, "data", "", "")
 	fs.StringVar(&f.sensMap, "sens-map", "", "")
 	fs.BoolVar(&f.timings, "timings", false, "")
-	var pos []string
-	for {
-		if err := fs.Parse(args); err != nil {
-			if errors.Is(err, flag.ErrHelp) {
-				return nil, err
-			}
-			return nil, simBadf("%v (see batch help)", err)
+	pos, err := parseAnywhere(fs, args)
+	if err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return nil, err
 		}
-		args = fs.Args()
-		if len(args) == 0 {
-			break
-		}
-		pos = append(pos, args[0])
-		args = args[1:]
+		return nil, simBadf("%v (see batch help)", err)
 	}
 	fs.Visit(func(fl *flag.Flag) { f.set[fl.Name] = true })
 	if len(pos) != 1 {

@@ -83,15 +83,9 @@ func runSteady(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "usage: batch steady MODEL.json [--json] [--control] [--time-unit U] [--concentration-unit U]")
 		fs.PrintDefaults()
 	}
-	var pos []string
-	for {
-		if err := fs.Parse(args); err != nil {
-			return exitStatus("steady", badInput(err), stderr)
-		}
-		if args = fs.Args(); len(args) == 0 {
-			break
-		}
-		pos, args = append(pos, args[0]), args[1:]
+	pos, err := parseAnywhere(fs, args)
+	if err != nil {
+		return exitStatus("steady", badInput(err), stderr)
 	}
 	if len(pos) != 1 {
 		fs.Usage()

@@ -92,17 +92,9 @@ func stochasticCmd(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintln(stderr, "usage: batch stochastic MODEL.json --runs N --seed S --out DIR [--method direct|next|tau] [--workers N] [--shard i/n] [--time-unit U]")
 		fs.PrintDefaults()
 	}
-	var pos []string
-	for {
-		if err := fs.Parse(args); err != nil {
-			return badInput(err)
-		}
-		args = fs.Args()
-		if len(args) == 0 {
-			break
-		}
-		pos = append(pos, args[0])
-		args = args[1:]
+	pos, err := parseAnywhere(fs, args)
+	if err != nil {
+		return badInput(err)
 	}
 	switch {
 	case len(pos) != 1:

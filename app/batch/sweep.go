@@ -325,17 +325,9 @@ func parseCmd(name string, args []string, stderr io.Writer) (*cmdFlags, error) {
 		fmt.Fprintf(stderr, usage, name)
 		fs.PrintDefaults()
 	}
-	var pos []string
-	for {
-		if err := fs.Parse(args); err != nil {
-			return nil, err
-		}
-		args = fs.Args()
-		if len(args) == 0 {
-			break
-		}
-		pos = append(pos, args[0])
-		args = args[1:]
+	pos, err := parseAnywhere(fs, args)
+	if err != nil {
+		return nil, err
 	}
 	if len(pos) != 1 {
 		fs.Usage()
