@@ -210,6 +210,23 @@ func MeasurableNames(m *network.Model) []string {
 	return append(speciesNames(m), assignmentNames(m)...)
 }
 
+// copies returns a function that gives p itself the first time and a
+// clone of it every time after, for the workers of explore.Run; it is
+// safe for concurrent use.
+func (p *Problem) copies() func() (*Problem, error) {
+	var mu sync.Mutex
+	first := true
+	return func() (*Problem, error) {
+		mu.Lock()
+		defer mu.Unlock()
+		if first {
+			first = false
+			return p, nil
+		}
+		return p.clone()
+	}
+}
+
 // clone returns a copy with its own evaluators.
 func (p *Problem) clone() (*Problem, error) {
 	c := *p
@@ -534,18 +551,12 @@ func (p *Problem) Run(ctx context.Context, s Settings) (*Report, error) {
 	}
 	results := make([]Start, len(starts))
 	var mu sync.Mutex
-	first := true
+	copyOf := p.copies()
 	newSim := func() (explore.Simulator, error) {
-		mu.Lock()
-		defer mu.Unlock()
-		q := p
-		if !first {
-			var err error
-			if q, err = p.clone(); err != nil {
-				return nil, err
-			}
+		q, err := copyOf()
+		if err != nil {
+			return nil, err
 		}
-		first = false
 		return &startSim{p: q, maxIt: s.MaxIterations, results: results, mu: &mu, trace: s.Trace}, nil
 	}
 	_, runErr := explore.Run(ctx, design, newSim, explore.Settings{Knobs: knobs, Workers: s.Workers, Progress: s.Progress})

@@ -4,7 +4,6 @@ import (
 	"context"
 	"math"
 	"slices"
-	"sync"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -60,19 +59,12 @@ func (p *Problem) profiles(ctx context.Context, x []float64, best float64, worke
 	for i := range design {
 		design[i] = []float64{float64(i)}
 	}
-	var mu sync.Mutex
-	first := true
+	copyOf := p.copies()
 	newSim := func() (explore.Simulator, error) {
-		mu.Lock()
-		defer mu.Unlock()
-		q := p
-		if !first {
-			var err error
-			if q, err = p.clone(); err != nil {
-				return nil, err
-			}
+		q, err := copyOf()
+		if err != nil {
+			return nil, err
 		}
-		first = false
 		return &profileSim{p: q, x: x, best: best, steps: steps, out: results}, nil
 	}
 	if _, err := explore.Run(ctx, design, newSim, explore.Settings{Knobs: []string{"task"}, Workers: workers}); err != nil && ctx.Err() != nil {
