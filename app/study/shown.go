@@ -214,20 +214,7 @@ func (f Figures) EachRunRow(res *explore.Result, row func([]string) error) error
 		head = append(head, f.header(name, f.ReadoutUnit(r)))
 		scales[r] = f.readoutScale(r)
 	}
-	if err := row(head); err != nil {
-		return err
-	}
-	var buf []string
-	return res.EachSample(func(s *explore.Sample) error {
-		buf = append(buf[:0], strconv.Itoa(s.Index))
-		for _, v := range s.X {
-			buf = append(buf, FormatNumber(v))
-		}
-		for r, v := range s.Readouts {
-			buf = append(buf, FormatNumber(scales[r].Of(v)))
-		}
-		return row(buf)
-	})
+	return eachRunRow(res, head, scales, row)
 }
 
 // FailureRows is FailureRows with the knobs' units in the header when

@@ -5,6 +5,7 @@ import (
 	"slices"
 	"strconv"
 
+	"kinetarium/app/run"
 	"kinetarium/solve/explore"
 )
 
@@ -28,8 +29,15 @@ func RunRows(res *explore.Result) ([][]string, error) {
 // memory does not grow with the number of points. The row passed is
 // reused for the next call.
 func EachRunRow(res *explore.Result, row func([]string) error) error {
-	head := append([]string{"index"}, res.Knobs...)
-	if err := row(append(head, res.Readouts...)); err != nil {
+	head := append(append([]string{"index"}, res.Knobs...), res.Readouts...)
+	return eachRunRow(res, head, nil, row)
+}
+
+// eachRunRow calls row with head, then with each point's index, knob
+// values and readouts, the readouts multiplied by scales (nil: as
+// computed).
+func eachRunRow(res *explore.Result, head []string, scales []run.Scale, row func([]string) error) error {
+	if err := row(head); err != nil {
 		return err
 	}
 	var buf []string
@@ -38,7 +46,10 @@ func EachRunRow(res *explore.Result, row func([]string) error) error {
 		for _, v := range s.X {
 			buf = append(buf, FormatNumber(v))
 		}
-		for _, v := range s.Readouts {
+		for r, v := range s.Readouts {
+			if scales != nil {
+				v = scales[r].Of(v)
+			}
 			buf = append(buf, FormatNumber(v))
 		}
 		return row(buf)
