@@ -60,7 +60,11 @@ func (e *DataError) Error() string {
 // DataErrors are all the problems found in a data file, in file order.
 type DataErrors []*DataError
 
-func (l DataErrors) Error() string {
+func (l DataErrors) Error() string { return listed(l) }
+
+// listed describes the one problem of l, or lists them one a line after
+// "3 problems:".
+func listed[E error](l []E) string {
 	switch len(l) {
 	case 0:
 		return "no problems"

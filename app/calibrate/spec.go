@@ -99,18 +99,7 @@ func (e *SpecError) Error() string {
 // SpecErrors are the problems of one specification.
 type SpecErrors []*SpecError
 
-func (l SpecErrors) Error() string {
-	if len(l) == 1 {
-		return l[0].Error()
-	}
-	var b strings.Builder
-	fmt.Fprintf(&b, "%d problems:", len(l))
-	for _, e := range l {
-		b.WriteString("\n  ")
-		b.WriteString(e.Error())
-	}
-	return b.String()
-}
+func (l SpecErrors) Error() string { return listed(l) }
 
 // jnode is a JSON value with the offset where it starts.
 type jnode struct {
