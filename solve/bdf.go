@@ -18,13 +18,12 @@ import "math"
 
 // BDF step-control constants (as in SciPy's BDF).
 const (
-	bdfMaxOrder     = 5
-	bdfNewtonMaxIt  = 4
-	bdfMinFactor    = 0.2
-	bdfMaxFactor    = 10
-	bdfMaxTries     = 100 // consecutive failed attempts before giving up
-	bdfDiffRows     = bdfMaxOrder + 3
-	bdfDenseMaxRows = bdfMaxOrder + 1
+	bdfMaxOrder    = 5
+	bdfNewtonMaxIt = 4
+	bdfMinFactor   = 0.2
+	bdfMaxFactor   = 10
+	bdfMaxTries    = 100 // consecutive failed attempts before giving up
+	bdfDiffRows    = bdfMaxOrder + 3
 )
 
 // bdfControl is the calibration of the step and order controller.
@@ -106,11 +105,19 @@ type bdf struct {
 	badComp  int
 	lastIter int
 
-	// Dense output of the last accepted step.
-	tOld   float64
-	dOrder int
-	dH     float64
-	dD     [][]float64
+	// Dense output of the last accepted step: the rows 0…dOrder of d for
+	// step dH ending at t. The rescaling of d for the next step is
+	// deferred to its start (pending), so that d itself serves dense
+	// output without a copy.
+	tOld    float64
+	dOrder  int
+	dH      float64
+	pending float64 // step factor to apply to d when the next step starts; 0 for none
+
+	// growAt[it][q] and stayAt[it][q] are (growMin/safety)^(−q) and
+	// (keepAbove/safety)^(−q) for the safety after it Newton iterations
+	// (see keep).
+	growAt, stayAt [bdfNewtonMaxIt + 1][bdfMaxOrder + 3]float64
 
 	sn *bdfSens // sensitivities, or nil
 }
@@ -146,7 +153,7 @@ func newBDFKappa(p *problem, kappa [bdfMaxOrder + 1]float64, ctl bdfControl) *bd
 		}
 		return r
 	}
-	b.d, b.dTmp, b.dD = rows(bdfDiffRows), rows(bdfDiffRows), rows(bdfDenseMaxRows)
+	b.d, b.dTmp = rows(bdfDiffRows), rows(bdfDiffRows)
 	vec := func() []float64 { return make([]float64, n) }
 	b.ypred, b.psi, b.corr, b.ynew = vec(), vec(), vec(), vec()
 	b.f, b.dy, b.scale, b.clip = vec(), vec(), vec(), vec()
@@ -157,6 +164,16 @@ func newBDFKappa(p *problem, kappa [bdfMaxOrder + 1]float64, ctl bdfControl) *bd
 	// 0.03 needed 22% fewer RHS and 68% fewer Jacobians on HIRES at rtol
 	// 1e-8 with the same accuracy (measured).
 	b.newtTol = math.Max(10*eps/p.rtol, 0.03)
+	for it := 1; it <= bdfNewtonMaxIt; it++ {
+		safety := ctl.safety
+		if ctl.newtonSafety {
+			safety *= float64(2*bdfNewtonMaxIt+1) / float64(2*bdfNewtonMaxIt+it)
+		}
+		for q := 1; q < len(b.growAt[it]); q++ {
+			b.growAt[it][q] = math.Pow(ctl.growMin/safety, -float64(q))
+			b.stayAt[it][q] = math.Pow(ctl.keepAbove/safety, -float64(q))
+		}
+	}
 	if p.sens != nil {
 		b.sn = newBDFSens(b)
 	}
@@ -191,8 +208,7 @@ func (b *bdf) start(t float64, y []float64, h float64) error {
 	}
 	b.order, b.nEqual = 1, 0
 	b.haveJac, b.luC = false, 0
-	b.tOld, b.dOrder, b.dH = t, 0, h
-	copy(b.dD[0], y)
+	b.tOld, b.dOrder, b.dH, b.pending = t, 0, h, 0
 	b.badComp = -1
 	if b.sn != nil {
 		b.sn.start(t, y, h)
@@ -210,12 +226,12 @@ func (b *bdf) stepSize() float64 { return math.Max(b.hAbs, b.hWanted) }
 // dense evaluates the interpolating polynomial of the differences saved at
 // the last accepted step.
 func (b *bdf) dense(t float64, out []float64) {
-	copy(out, b.dD[0])
+	copy(out, b.d[0])
 	p := 1.0
 	for j := 1; j <= b.dOrder; j++ {
 		// x_j = (t − (tn − (j−1)h)) / (j·h)
 		p *= (t - (b.t - float64(j-1)*b.dH)) / (float64(j) * b.dH)
-		row := b.dD[j]
+		row := b.d[j]
 		for i := range out {
 			out[i] += p * row[i]
 		}
@@ -303,16 +319,13 @@ func (b *bdf) factor(c float64) error {
 func (b *bdf) predict() {
 	k := b.order
 	copy(b.ypred, b.d[0])
-	for j := 1; j <= k; j++ {
-		for i, v := range b.d[j] {
-			b.ypred[i] += v
-		}
-	}
 	clear(b.psi)
 	for j := 1; j <= k; j++ {
 		g := b.gamma[j] / b.alpha[k]
-		for i, v := range b.d[j] {
-			b.psi[i] += g * v
+		ypred, psi := b.ypred, b.psi[:len(b.ypred)]
+		for i, v := range b.d[j][:len(ypred)] {
+			ypred[i] += v
+			psi[i] += g * v
 		}
 	}
 	for i, v := range b.ypred {
@@ -329,29 +342,34 @@ func (b *bdf) newton(tNew, c float64) bool {
 	for it := 0; it < bdfNewtonMaxIt; it++ {
 		b.lastIter = it + 1
 		b.p.rhs(tNew, b.ynew, b.f)
-		if i := nonFinite(b.f); i >= 0 {
-			b.badComp = i
+		dy, psi, corr := b.dy, b.psi[:len(b.dy)], b.corr[:len(b.dy)]
+		for i, v := range b.f[:len(dy)] {
+			dy[i] = c*v - psi[i] - corr[i]
+		}
+		b.lu.solve(dy)
+		b.p.stats.LinearSolves++
+		norm := wrms(dy, b.scale)
+		if !(norm <= math.MaxFloat64) {
+			// A NaN or infinity came from f (name it) or from the solve.
+			b.badComp = nonFinite(b.f)
 			return false
 		}
-		for i, v := range b.f {
-			b.dy[i] = c*v - b.psi[i] - b.corr[i]
-		}
-		b.lu.solve(b.dy)
-		b.p.stats.LinearSolves++
-		norm := wrms(b.dy, b.scale)
 		rate := -1.0
 		if it > 0 {
 			rate = norm / normOld
-			if !(rate < 1) || math.Pow(rate, float64(bdfNewtonMaxIt-it))/(1-rate)*norm > b.newtTol {
+			// The error left after the remaining iterations, ρ^(m−it)/(1−ρ)·‖Δ‖.
+			left := norm / (1 - rate)
+			for range bdfNewtonMaxIt - it {
+				left *= rate
+			}
+			if !(rate < 1) || left > b.newtTol {
 				return false
 			}
 		}
-		if math.IsNaN(norm) {
-			return false
-		}
-		for i, v := range b.dy {
-			b.ynew[i] += v
-			b.corr[i] += v
+		ynew := b.ynew[:len(dy)]
+		for i, v := range dy {
+			ynew[i] += v
+			corr[i] += v
 		}
 		if norm == 0 || rate >= 0 && rate/(1-rate)*norm < b.newtTol {
 			return true
@@ -374,6 +392,10 @@ func wrms(v, scale []float64) float64 {
 func (b *bdf) step(tLimit float64) error {
 	b.badComp = -1
 	b.hWanted = 0
+	if b.pending != 0 {
+		b.changeH(b.pending)
+		b.pending = 0
+	}
 	if b.p.maxStep > 0 && b.hAbs > b.p.maxStep {
 		b.changeH(b.p.maxStep / b.hAbs)
 		b.hAbs = b.p.maxStep
@@ -424,13 +446,13 @@ func (b *bdf) step(tLimit float64) error {
 		if b.ctl.newtonSafety {
 			safety *= float64(2*bdfNewtonMaxIt+1) / float64(2*bdfNewtonMaxIt+b.lastIter)
 		}
-		for i, v := range b.ynew {
-			b.scale[i] = b.p.atol[i] + b.p.rtol*math.Abs(v)
-		}
 		ec := b.errConst[b.order]
 		var s float64
-		for i, v := range b.corr {
-			q := ec * v / b.scale[i]
+		atol, scale, corr := b.p.atol[:len(b.ynew)], b.scale[:len(b.ynew)], b.corr[:len(b.ynew)]
+		for i, v := range b.ynew {
+			sc := atol[i] + b.p.rtol*math.Abs(v)
+			scale[i] = sc
+			q := ec * corr[i] / sc
 			s += q * q
 		}
 		errNorm = math.Sqrt(s / float64(b.n))
@@ -485,12 +507,14 @@ func (b *bdf) step(tLimit float64) error {
 		return nil
 	}
 	// Choose order and step size from the estimates at k−1, k, k+1.
-	em, ep := math.Inf(1), math.Inf(1)
-	if k > 1 {
-		em = b.diffNorm(b.errConst[k-1], b.d[k])
-	}
-	if k < bdfMaxOrder {
-		ep = b.diffNorm(b.errConst[k+1], b.d[k+2])
+	em, ep := b.neighbourNorms(k)
+	if b.p.maxStep == 0 && b.keep(k, em, errNorm, ep) {
+		// Not worth a refactorization: keep h and the order. (The
+		// error test still guards every step.)
+		if !b.ctl.recheck {
+			b.nEqual = 0
+		}
+		return nil
 	}
 	fm := math.Pow(b.ctl.biasDown*em, -1/float64(k))
 	f0 := math.Pow(b.ctl.biasSame*errNorm, -1/float64(k+1))
@@ -507,17 +531,65 @@ func (b *bdf) step(tLimit float64) error {
 		factor = math.Min(factor, b.p.maxStep/b.hAbs)
 	}
 	if factor >= b.ctl.keepAbove && factor < b.ctl.growMin {
-		// Not worth a refactorization: keep h and the order. (The
-		// error test still guards every step.)
 		if !b.ctl.recheck {
 			b.nEqual = 0
 		}
 		return nil
 	}
+	// The differences are rescaled when the next step starts, so that
+	// until then they give this step's dense output.
 	b.order += dk
-	b.changeH(factor)
+	b.pending = factor
+	b.nEqual = 0
 	b.hAbs *= factor
 	return nil
+}
+
+// keep reports, without a power, whether the controller keeps h and the
+// order after a step with the error norms em, e0 and ep at orders k−1, k
+// and k+1: whether no proposed factor safety·(bias·e)^(−1/q) reaches
+// growMin and not all fall below keepAbove. It compares bias·e with the
+// thresholds (G/safety)^(−q), tabulated by newBDF for each Newton
+// iteration count (which sets safety) and q.
+func (b *bdf) keep(k int, em, e0, ep float64) bool {
+	grow, stay := &b.growAt[b.lastIter], &b.stayAt[b.lastIter]
+	xm, x0, xp := b.ctl.biasDown*em, b.ctl.biasSame*e0, b.ctl.biasUp*ep
+	if xm <= grow[k] || x0 <= grow[k+1] || xp <= grow[k+2] {
+		return false // some factor reaches growMin
+	}
+	return xm <= stay[k] || x0 <= stay[k+1] || xp <= stay[k+2]
+}
+
+// neighbourNorms returns the error estimates at orders k−1 and k+1
+// (+Inf where the order does not exist), in one pass over the state.
+func (b *bdf) neighbourNorms(k int) (em, ep float64) {
+	var vm, vp []float64
+	cm, cp := 0.0, 0.0
+	if k > 1 {
+		vm, cm = b.d[k], b.errConst[k-1]
+	}
+	if k < bdfMaxOrder {
+		vp, cp = b.d[k+2], b.errConst[k+1]
+	}
+	switch {
+	case vm == nil && vp == nil:
+		return math.Inf(1), math.Inf(1)
+	case vm == nil:
+		return math.Inf(1), b.diffNorm(cp, vp)
+	case vp == nil:
+		return b.diffNorm(cm, vm), math.Inf(1)
+	}
+	scale := b.scale[:len(vm)]
+	vp = vp[:len(vm)]
+	var sm, sp float64
+	for i, x := range vm {
+		qm := x / scale[i]
+		qp := vp[i] / scale[i]
+		sm += qm * qm
+		sp += qp * qp
+	}
+	n := float64(len(vm))
+	return cm * math.Sqrt(sm/n), cp * math.Sqrt(sp/n)
 }
 
 // diffNorm is the weighted RMS norm of c·v.
@@ -530,7 +602,7 @@ func (b *bdf) diffNorm(c float64, v []float64) float64 {
 	return math.Sqrt(s / float64(len(v)))
 }
 
-// accept updates the differences with the converged correction and saves
+// accept updates the differences with the converged correction; they are
 // the interpolating polynomial of the step for dense output.
 func (b *bdf) accept() {
 	b.nEqual++
@@ -540,19 +612,18 @@ func (b *bdf) accept() {
 		b.d[k+2][i] = v - b.d[k+1][i]
 		b.d[k+1][i] = v
 	}
-	for j := k; j >= 0; j-- {
-		for i, v := range b.d[j+1] {
-			b.d[j][i] += v
+	for j := k; j >= 1; j-- {
+		dj := b.d[j]
+		for i, v := range b.d[j+1][:len(dj)] {
+			dj[i] += v
 		}
 	}
-	// The sum above equals ynew up to rounding; take ynew itself, so that
-	// the projected (non-negative) solution is exactly the current state.
+	// D^0 y_n would be the sum of the above with D^1 y_n, which equals
+	// ynew up to rounding; take ynew itself, so that the projected
+	// (non-negative) solution is exactly the current state.
 	copy(b.d[0], b.ynew)
 	b.tOld = b.t - b.hAbs
 	b.dOrder, b.dH = k, b.hAbs
-	for j := 0; j <= k; j++ {
-		copy(b.dD[j], b.d[j])
-	}
 	if b.sn != nil {
 		b.sn.accept(k)
 	}

@@ -11,7 +11,6 @@ type bdfSens struct {
 	w      *sensWork
 	d      [][]float64 // backward differences of the sensitivities, rows of ns×n
 	dTmp   [][]float64
-	dD     [][]float64 // differences saved for dense output
 	pred   []float64
 	psi    []float64
 	snew   []float64
@@ -51,7 +50,7 @@ func newBDFSens(b *bdf) *bdfSens {
 		return r
 	}
 	vec := func() []float64 { return make([]float64, m) }
-	return &bdfSens{b: b, w: w, d: rows(bdfDiffRows), dTmp: rows(bdfDiffRows), dD: rows(bdfDenseMaxRows),
+	return &bdfSens{b: b, w: w, d: rows(bdfDiffRows), dTmp: rows(bdfDiffRows),
 		pred: vec(), psi: vec(), snew: vec(), corr: vec(), res: vec(), fq: vec(), jv: vec(),
 		jac: b.p.newJacobian(), lu: b.p.newIterMatrix(),
 		vec: make([]float64, n), always: n < sensDirectBelow*w.ns}
@@ -70,7 +69,6 @@ func (sn *bdfSens) start(t float64, y []float64, h float64) {
 	for i, v := range sn.jv {
 		sn.d[1][i] = h * v
 	}
-	copy(sn.dD[0], sn.d[0])
 }
 
 // correct solves the corrector for the sensitivities at the state's new
@@ -173,9 +171,6 @@ func (sn *bdfSens) accept(k int) {
 		}
 	}
 	copy(sn.d[0], sn.snew)
-	for j := 0; j <= k; j++ {
-		copy(sn.dD[j], sn.d[j])
-	}
 }
 
 func (b *bdf) currentSens() []float64 { return b.sn.d[0] }
@@ -184,11 +179,11 @@ func (b *bdf) currentSens() []float64 { return b.sn.d[0] }
 // differences saved at the last accepted step.
 func (b *bdf) denseSens(t float64, out []float64) {
 	sn := b.sn
-	copy(out, sn.dD[0])
+	copy(out, sn.d[0])
 	p := 1.0
 	for j := 1; j <= b.dOrder; j++ {
 		p *= (t - (b.t - float64(j-1)*b.dH)) / (float64(j) * b.dH)
-		row := sn.dD[j]
+		row := sn.d[j]
 		for i := range out {
 			out[i] += p * row[i]
 		}

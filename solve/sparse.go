@@ -1094,32 +1094,43 @@ func (nm *luNumeric[T]) solve(x []T) {
 // solve overwrites x (the block's part of the right-hand side, in local
 // rows) with the block's solution (in local columns).
 func (bk *luBlock[T]) solve(nm *luNumeric[T], x []T) {
-	w := nm.w[:bk.m]
+	m := bk.m
+	w := nm.w[:m]
+	x = x[:m]
 	for r, i := range bk.pinv {
 		w[i] = x[r]
 	}
-	for j := range bk.m {
-		wj := w[j]
-		if wj == 0 {
-			continue
+	// The columns are walked by one running position p over the whole
+	// factor (columns are stored in order), which costs less per column
+	// than slicing each: the columns of reaction networks' factors are
+	// short.
+	lPtr, lRow, lVal := bk.lPtr[:m+1], bk.lRow, bk.lVal
+	lVal = lVal[:len(lRow)]
+	p := lPtr[0]
+	for j, wj := range w {
+		p1 := lPtr[j+1]
+		if wj != 0 {
+			for ; p < p1; p++ {
+				w[lRow[p]] -= lVal[p] * wj
+			}
 		}
-		lv := bk.lVal[bk.lPtr[j]:bk.lPtr[j+1]]
-		for t, r := range bk.lRow[bk.lPtr[j]:bk.lPtr[j+1]] {
-			w[r] -= lv[t] * wj
-		}
+		p = p1
 	}
-	d := nm.diag[bk.b0 : bk.b0+bk.m]
-	for j := bk.m - 1; j >= 0; j-- {
+	uPtr, uRow, uVal := bk.uPtr[:m+1], bk.uRow, bk.uVal
+	uVal = uVal[:len(uRow)]
+	d := nm.diag[bk.b0 : bk.b0+m]
+	p = uPtr[m]
+	for j := m - 1; j >= 0; j-- {
 		wj := w[j] / d[j]
 		w[j] = 0
 		x[j] = wj
-		if wj == 0 {
-			continue
+		p0 := uPtr[j]
+		if wj != 0 {
+			for q := p0; q < p; q++ {
+				w[uRow[q]] -= uVal[q] * wj
+			}
 		}
-		uv := bk.uVal[bk.uPtr[j]:bk.uPtr[j+1]]
-		for t, i := range bk.uRow[bk.uPtr[j]:bk.uPtr[j+1]] {
-			w[i] -= uv[t] * wj
-		}
+		p = p0
 	}
 }
 
