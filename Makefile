@@ -2,7 +2,7 @@
 GO ?= go
 MODEL ?=
 
-.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench bench-fit fuzz build batch clean conformance test-stochastic cvode-compare large-networks probes
+.PHONY: run test deps test-deps fmt-check vet unit screenshot-check render-check bench bench-fit fuzz build batch clean conformance test-stochastic cvode-compare cvode-compare-large large-networks probes
 
 run: deps
 	$(GO) run ./app $(if $(MODEL),--model $(MODEL))
@@ -73,6 +73,13 @@ cvode-compare:
 	@[ -e /opt/sundials-dev/lib/libsundials_sunlinsolklu.so ] || scripts/install-sundials.sh
 	$(GO) test -tags sundials -count=1 ./internal/cvodecmp/...
 	$(GO) run -tags sundials ./internal/cvodecmp/cmd -sizes $(CVODE_SIZES) -out bench/cvode-comparison.md -profile bench/solve-stages.md $(CVODE_FLAGS)
+
+# The generated networks of 5,000 and 20,000 species (and 5,000 with
+# feedback) against CVODE–KLU, down to rtol 1e-11 so that both reach 7
+# correct digits: bench/cvode-comparison-large.md (about 15 minutes).
+cvode-compare-large:
+	@[ -e /opt/sundials-dev/lib/libsundials_sunlinsolklu.so ] || scripts/install-sundials.sh
+	$(GO) run -tags sundials ./internal/cvodecmp/cmd -problems "" -sizes 5000,20000 -feedback-sizes 5000 -methods auto -rtols 1e-4,1e-5,1e-6,1e-7,1e-8,1e-9,1e-10,1e-11 -repeat 2 -profile "" -out bench/cvode-comparison-large.md
 
 # Each stage of a run (read, check, compile, solve, write, conservation
 # laws) on the generated networks of 50 to 20,000 species, with time and

@@ -35,7 +35,7 @@ type options struct {
 	repeat                  int
 	atolRatio               float64
 	nonNeg                  bool
-	denseMax, radauMax      int
+	denseMax                int
 	profile                 string
 	profileSizes            string
 	feedbackSizes           string
@@ -57,7 +57,6 @@ func main() {
 	flag.IntVar(&o.repeat, "repeat", 5, "timed solves per point; the minimum and median are reported")
 	flag.BoolVar(&o.nonNeg, "nonneg", false, "turn on Kinetarium's non-negativity projection (CVODE runs without constraints)")
 	flag.IntVar(&o.denseMax, "dense-max", 200, "largest network (species) on which dense CVODE runs")
-	flag.IntVar(&o.radauMax, "radau-max", 250, "largest network (species) whose reference comes from Radau IIA (RODAS4 above)")
 	flag.StringVar(&o.profile, "profile", "", "Markdown file for the stage profiles (make cvode-compare: bench/solve-stages.md); empty for none")
 	flag.StringVar(&o.profileSizes, "profile-sizes", "200,1000", "generated networks to profile")
 	flag.Float64Var(&o.profileRTol, "profile-rtol", 1e-6, "relative tolerance of the profiled solves")
@@ -186,7 +185,7 @@ func run(o options) error {
 			notes = append(notes, fmt.Sprintf("%s: %d species, t from 0 to %g; reference: %s.", p.Name, p.Sys.Dim(), p.TEnd, p.RefNote))
 			continue
 		}
-		agree, err := cvodecmp.Reference(p, o.radauMax)
+		agree, err := cvodecmp.Reference(p)
 		if err != nil {
 			return err
 		}
