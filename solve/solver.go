@@ -98,9 +98,9 @@ func (sv *Solver) alloc(sys System) {
 		sv.bdf = newBDF(sv.p)
 		if sv.n < autoBDFSize {
 			sv.dp = newDopri(sv.p)
-			if sv.p.rtol < autoRadauRTol {
-				sv.radau = newRadau(sv.p)
-			}
+		}
+		if sv.p.rtol < autoRadauRTol || sv.sparseRadau() {
+			sv.radau = newRadau(sv.p)
 		}
 	}
 }

@@ -391,7 +391,7 @@ func Report(rows []Row, costs []EvalCost, rs ReportSettings) string {
 			solvers = append(solvers, r.Solver)
 		}
 	}
-	b.WriteString("\n## At equal accuracy\n\nWall time (ms, minimum of the repeats) for the number of correct digits, read off each solver's work-precision line by interpolating log wall time linearly in digits between neighbouring tolerances (≤: the loosest tolerance already gives more digits; –: no tolerance reached them). The last column divides Kinetarium's automatic choice by the faster CVODE variant.\n\n")
+	b.WriteString("\n## At equal accuracy\n\nWall time (ms, minimum of the repeats) for the number of correct digits, read off each solver's work-precision line by interpolating log wall time linearly in digits between neighbouring tolerances (≤: the loosest tolerance already gives more digits, so its time bounds the time for these; –: no tolerance reached them). The last column divides Kinetarium's automatic choice by the faster CVODE variant (≤ when auto's time is such a bound).\n\n")
 	b.WriteString("| problem | digits |")
 	for _, s := range solvers {
 		fmt.Fprintf(&b, " %s |", s)
@@ -405,7 +405,7 @@ func Report(rows []Row, costs []EvalCost, rs ReportSettings) string {
 		for _, d := range rs.Targets {
 			fmt.Fprintf(&b, "| %s | %g |", p, d)
 			var auto, best time.Duration
-			autoOK := false
+			autoOK, autoUpper := false, false
 			for _, s := range solvers {
 				w, upper, ok := AtDigits(rows, p, s, d)
 				if !ok {
@@ -426,14 +426,18 @@ func Report(rows []Row, costs []EvalCost, rs ReportSettings) string {
 				}
 				fmt.Fprintf(&b, " %s%.3g |", mark, ms(w))
 				if s == "auto" {
-					auto, autoOK = w, !upper
+					auto, autoOK, autoUpper = w, true, upper
 				}
 				if strings.HasPrefix(s, "cvode") && !upper && (best == 0 || w < best) {
 					best = w
 				}
 			}
 			if autoOK && best > 0 {
-				fmt.Fprintf(&b, " %.2f |\n", float64(auto)/float64(best))
+				mark := ""
+				if autoUpper {
+					mark = "≤"
+				}
+				fmt.Fprintf(&b, " %s%.2f |\n", mark, float64(auto)/float64(best))
 			} else {
 				b.WriteString(" – |\n")
 			}
