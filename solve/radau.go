@@ -280,8 +280,8 @@ func (r *radau) newton(h float64) (ok bool, shrink float64) {
 		r.p.stats.LinearSolves += 2
 		var dyno float64
 		for i := 0; i < n; i++ {
-			d := r.scal[i]
-			a, b, c := r.z1[i]/d, r.z2[i]/d, r.z3[i]/d
+			d := 1 / r.scal[i]
+			a, b, c := r.z1[i]*d, r.z2[i]*d, r.z3[i]*d
 			dyno += a*a + b*b + c*c
 		}
 		dyno = math.Sqrt(dyno / float64(3*n))

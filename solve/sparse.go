@@ -781,7 +781,7 @@ func minimumDegree(m int, adj [][]int) []int {
 type luNumeric[T scalar] struct {
 	sym    *luSymbolic
 	aVal   []T // the matrix entries, by luSymbolic's entries
-	diag   []T // U's diagonal, by new column
+	dinv   []T // reciprocals of U's diagonal, by new column (solves multiply)
 	blocks []*luBlock[T]
 	w      []T // work vector, all zero between calls
 
@@ -806,7 +806,7 @@ type luBlock[T scalar] struct {
 }
 
 func newNumeric[T scalar](sym *luSymbolic) *luNumeric[T] {
-	nm := &luNumeric[T]{sym: sym, aVal: make([]T, sym.aPtr[sym.n]), diag: make([]T, sym.n),
+	nm := &luNumeric[T]{sym: sym, aVal: make([]T, sym.aPtr[sym.n]), dinv: make([]T, sym.n),
 		blocks: make([]*luBlock[T], len(sym.bs)-1), w: make([]T, sym.n)}
 	for b := range nm.blocks {
 		b0, b1 := sym.bs[b], sym.bs[b+1]
@@ -852,7 +852,7 @@ func (nm *luNumeric[T]) factor() error {
 			if d == 0 || notFinite(d.mag()) {
 				return errSingular
 			}
-			nm.diag[k] = d
+			nm.dinv[k] = 1 / d
 			continue
 		}
 		if bk.done && bk.refactor(nm) {
@@ -915,10 +915,11 @@ func (bk *luBlock[T]) refactor(nm *luNumeric[T]) bool {
 			}
 			return false
 		}
-		nm.diag[k] = piv
+		ip := 1 / piv
+		nm.dinv[k] = ip
 		lv := bk.lVal[l0:l1]
 		for t, r := range bk.lRow[l0:l1] {
-			lv[t] = x[r] / piv
+			lv[t] = x[r] * ip
 			x[r] = 0
 		}
 	}
@@ -993,7 +994,8 @@ func (bk *luBlock[T]) pivot(nm *luNumeric[T]) error {
 			return errSingular
 		}
 		pv := x[piv]
-		nm.diag[k] = pv
+		ip := 1 / pv
+		nm.dinv[k] = ip
 		for _, r := range bk.reach {
 			switch i := bk.pinv[r]; {
 			case i >= 0:
@@ -1001,7 +1003,7 @@ func (bk *luBlock[T]) pivot(nm *luNumeric[T]) error {
 				bk.uVal = append(bk.uVal, x[r])
 			case r != piv:
 				bk.lRow = append(bk.lRow, r) // local row; made a position below
-				bk.lVal = append(bk.lVal, x[r]/pv)
+				bk.lVal = append(bk.lVal, x[r]*ip)
 			}
 			x[r] = 0
 		}
@@ -1075,7 +1077,7 @@ func (nm *luNumeric[T]) solve(x []T) {
 	for b := len(nm.blocks) - 1; b >= 0; b-- {
 		b0, b1 := s.bs[b], s.bs[b+1]
 		if bk := nm.blocks[b]; bk == nil {
-			x[b0] /= nm.diag[b0]
+			x[b0] *= nm.dinv[b0]
 		} else {
 			bk.solve(nm, x[b0:b1])
 		}
@@ -1118,10 +1120,10 @@ func (bk *luBlock[T]) solve(nm *luNumeric[T], x []T) {
 	}
 	uPtr, uRow, uVal := bk.uPtr[:m+1], bk.uRow, bk.uVal
 	uVal = uVal[:len(uRow)]
-	d := nm.diag[bk.b0 : bk.b0+m]
+	dinv := nm.dinv[bk.b0 : bk.b0+m]
 	p = uPtr[m]
 	for j := m - 1; j >= 0; j-- {
-		wj := w[j] / d[j]
+		wj := w[j] * dinv[j]
 		w[j] = 0
 		x[j] = wj
 		p0 := uPtr[j]
