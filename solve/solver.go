@@ -94,13 +94,16 @@ func (sv *Solver) alloc(sys System) {
 	case BDF:
 		sv.bdf = newBDF(sv.p)
 	case Auto:
-		sv.ros = newRosenbrock(sv.p) // its Jacobian is the work space of the stiffness test
-		sv.bdf = newBDF(sv.p)
+		// Only the methods Auto may choose get work space (see choose).
 		if sv.n < autoBDFSize {
+			sv.ros = newRosenbrock(sv.p) // its Jacobian is the work space of the stiffness test
 			sv.dp = newDopri(sv.p)
 		}
 		if sv.p.rtol < autoRadauRTol || sv.sparseRadau() {
 			sv.radau = newRadau(sv.p)
+		}
+		if !sv.sparseRadau() {
+			sv.bdf = newBDF(sv.p)
 		}
 	}
 }
