@@ -12,7 +12,6 @@ import (
 	"sort"
 	"strconv"
 	"strings"
-	"sync"
 
 	"kinetarium/internal/atomicfile"
 )
@@ -55,29 +54,23 @@ func Load(path string) (*Model, error) {
 }
 
 // lineCol converts a byte offset into a 1-based line and column.
-func lineCol(data []byte, off int64) (line, col int) {
-	off = max(0, min(off, int64(len(data))))
-	line = 1 + bytes.Count(data[:off], []byte("\n"))
-	last := bytes.LastIndexByte(data[:off], '\n')
+func lineCol(text string, off int64) (line, col int) {
+	off = max(0, min(off, int64(len(text))))
+	line = 1 + strings.Count(text[:off], "\n")
+	last := strings.LastIndexByte(text[:off], '\n')
 	col = int(off) - last // last = -1 gives off+1
 	return line, col
 }
 
-// sourceMap remembers where the items of a model were in its file. The
-// reader appends the places to a list; the map to look them up is built
-// the first time a problem is to be located (most reads of large models
-// have none, and a map of every field would cost more than the read).
+// sourceMap knows where the items of a model were in its file. It keeps
+// the file's text alone (the model's strings are slices of it, so it
+// costs nothing more) and no table of places: most reads of large models
+// have no problem to locate, and a table of every field would be larger
+// than the model. To locate problems it reads the text again, keeping
+// the places of just the fields the problems name.
 type sourceMap struct {
-	file  string
-	data  []byte
-	marks []sourceMark
-	once  sync.Once
-	at    map[sourceKey]int64 // where each item and field starts
-}
-
-type sourceMark struct {
-	key sourceKey
-	off int64
+	file string
+	text string
 }
 
 // sourceKey names a model item's field ("" for the whole item).
@@ -93,24 +86,33 @@ func (sm *sourceMap) locate(l ErrorList) {
 	if sm == nil || len(l) == 0 {
 		return
 	}
-	sm.once.Do(func() {
-		sm.at = make(map[sourceKey]int64, len(sm.marks))
-		for _, mk := range sm.marks {
-			sm.at[mk.key] = mk.off // a later mark of the same field wins
-		}
-	})
+	// Read the text again (it was read once without a problem, and reads
+	// the same), marking the fields the problems name; -1 is a field not
+	// found.
+	root, err := parseJSONText([]byte(sm.text), sm.text)
+	if err != nil {
+		return
+	}
+	want := make(map[sourceKey]int64, 2*len(l))
+	for _, e := range l {
+		p := e.Pos
+		want[sourceKey{p.Section, p.Index, p.Field}] = -1
+		want[sourceKey{p.Section, p.Index, ""}] = -1
+	}
+	d := &decoder{text: sm.text, file: sm.file, want: want}
+	d.decode(root)
 	for i := range l {
 		p := &l[i].Pos
-		off, ok := sm.at[sourceKey{p.Section, p.Index, p.Field}]
-		exact := ok
-		if !ok {
-			off, ok = sm.at[sourceKey{p.Section, p.Index, ""}]
+		off := want[sourceKey{p.Section, p.Index, p.Field}]
+		exact := off >= 0
+		if !exact {
+			off = want[sourceKey{p.Section, p.Index, ""}]
 		}
-		if !ok {
+		if off < 0 {
 			continue
 		}
 		p.File = sm.file
-		p.Line, p.Column = lineCol(sm.data, off)
+		p.Line, p.Column = lineCol(sm.text, off)
 		if exact && p.Col > 0 && p.Field != "" && p.Field != "name" {
 			p.Column += p.Col // the text starts after its opening quote
 		}
@@ -120,10 +122,13 @@ func (sm *sourceMap) locate(l ErrorList) {
 // decoder turns the JSON tree of a model file into a Model, collecting
 // every problem.
 type decoder struct {
-	data []byte
+	text string
 	file string
 	errs ErrorList
-	src  *sourceMap
+	// want, when not nil, holds the fields whose places are asked for;
+	// mark records each one's place there (a later mark of the same
+	// field wins).
+	want map[sourceKey]int64
 }
 
 // fail reports a problem at the place of n (or of the whole file when n is
@@ -133,27 +138,29 @@ func (d *decoder) fail(n *jnode, path, format string, args ...any) {
 }
 
 func (d *decoder) failAt(off int64, path, format string, args ...any) {
-	line, col := lineCol(d.data, off)
+	line, col := lineCol(d.text, off)
 	if path == "" {
 		path = "the top level"
 	}
 	d.errs.Add(Pos{File: d.file, Line: line, Column: col, Field: path}, Error, format, args...)
 }
 
-// mark remembers where a model item's field starts.
-func (d *decoder) mark(section string, index int, field string, n *jnode) {
-	if n != nil {
-		d.src.marks = append(d.src.marks, sourceMark{sourceKey{section, index, field}, n.off})
+// mark remembers where a model item's field, prefix+key, starts, when
+// its place is asked for.
+func (d *decoder) mark(section string, index int, prefix, key string, n *jnode) {
+	if d.want == nil || n == nil {
+		return
+	}
+	k := sourceKey{section, index, prefix + key}
+	if _, ok := d.want[k]; ok {
+		d.want[k] = n.off
 	}
 }
 
 func decodeModel(data []byte, file string) (*Model, ErrorList) {
-	d := &decoder{data: data, file: file, src: &sourceMap{file: file, data: data,
-		// a place for each key and each item (an object): about one per
-		// ':' and '{' of the file, counted once so that the list does not
-		// grow by copies
-		marks: make([]sourceMark, 0, min(bytes.Count(data, []byte{':'})+bytes.Count(data, []byte{'{'})+16, len(data)))}}
-	root, err := parseJSON(data)
+	text := string(data) // the model's strings are slices of it
+	d := &decoder{text: text, file: file}
+	root, err := parseJSONText(data, text)
 	if err != nil {
 		var se *syntaxError
 		if errors.As(err, &se) {
@@ -164,15 +171,26 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		d.errs[0].Field = ""
 		return nil, d.errs
 	}
-	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "events", "rates", "simulation", "layout")
-	if top == nil {
+	m := d.decode(root)
+	if m == nil {
 		return nil, d.errs
 	}
-	m := &Model{source: d.src}
+	m.source = &sourceMap{file: file, text: text}
+	return m, nil
+}
+
+// decode turns the tree of a model file into a Model; it returns nil with
+// d.errs holding the problems when there are any.
+func (d *decoder) decode(root *jnode) *Model {
+	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "events", "rates", "simulation", "layout")
+	if top == nil {
+		return nil
+	}
+	m := &Model{}
 	raw, ok := top.get("format")
 	if !ok {
 		d.fail(root, "", "missing key \"format\"; a model file starts with \"format\": %q", Format)
-		return nil, d.errs
+		return nil
 	}
 	format := d.str(raw, "format")
 	if format != Format && raw.kind == '"' {
@@ -181,7 +199,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		} else {
 			d.fail(raw, "format", "format %q is not a model file format; expected %q", format, Format)
 		}
-		return nil, d.errs
+		return nil
 	}
 	m.Title = d.optStr(top, "title", "")
 	m.Note = d.optStr(top, "note", "")
@@ -224,19 +242,19 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 				args := make(map[string]Value, len(ro.keys))
 				for j, k := range ro.keys {
 					if k == "law" || k == "expression" {
-						d.mark("reactions", i, "rate."+k, ro.vals[j])
+						d.mark("reactions", i, "rate.", k, ro.vals[j])
 						continue
 					}
 					if v, ok := d.value(ro.vals[j], rp+"."+k); ok && v.Set {
 						args[k] = v
 					}
-					d.mark("reactions", i, "rate."+k, ro.vals[j])
+					d.mark("reactions", i, "rate.", k, ro.vals[j])
 				}
 				if len(args) > 0 {
 					r.Rate.Args = args
 				}
 				r.Rate.Expression = d.optStr(ro, "expression", rp)
-				d.mark("reactions", i, "rate", x)
+				d.mark("reactions", i, "rate", "", x)
 			}
 		}
 		m.Reactions = append(m.Reactions, r)
@@ -278,7 +296,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 					continue
 				}
 				for j, target := range x.keys {
-					d.mark("events", i, key+"."+target, x.vals[j])
+					d.mark("events", i, key+".", target, x.vals[j])
 					v := x.vals[j]
 					switch v.kind {
 					case '"':
@@ -299,7 +317,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			Note: d.optStr(o, "note", path)})
 	})
 	if v, ok := top.get("simulation"); ok {
-		d.mark("simulation", 0, "", v)
+		d.mark("simulation", 0, "", "", v)
 		if o := d.object(v, "simulation", "t_end", "output", "rtol", "atol", "method", "non_negative", "display"); o != nil {
 			s := &m.Simulation
 			s.TEnd = d.optNum(o, "t_end", "simulation")
@@ -310,7 +328,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			d.notZero(o, "simulation", "atol", "a positive absolute tolerance such as 1e-12", DefaultATol)
 			s.Method = d.optStr(o, "method", "simulation")
 			for j, k := range o.keys {
-				d.mark("simulation", 0, k, o.vals[j])
+				d.mark("simulation", 0, "", k, o.vals[j])
 			}
 			if x, ok := o.get("non_negative"); ok {
 				b := d.boolean(x, "simulation.non_negative")
@@ -319,7 +337,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			if x, ok := o.get("output"); ok {
 				if oo := d.object(x, "simulation.output", "points", "spacing", "first"); oo != nil {
 					for j, k := range oo.keys {
-						d.mark("simulation", 0, "output."+k, oo.vals[j])
+						d.mark("simulation", 0, "output.", k, oo.vals[j])
 					}
 					if p, ok := oo.get("points"); ok {
 						f, ok := d.num(p, "simulation.output.points")
@@ -343,10 +361,10 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 	d.layout(top, m)
 	if d.errs.HasErrors() {
 		d.errs.Sort()
-		return nil, d.errs
+		return nil
 	}
 	m.Simulation = m.Simulation.WithDefaults()
-	return m, nil
+	return m
 }
 
 // display decodes the display units of the simulation settings, each of
@@ -359,7 +377,7 @@ func (d *decoder) display(x *jnode, out *Display) {
 		return
 	}
 	for j, k := range oo.keys {
-		d.mark("simulation", 0, "display."+k, oo.vals[j])
+		d.mark("simulation", 0, "display.", k, oo.vals[j])
 	}
 	out.Time = d.optStr(oo, "time", path)
 	out.Concentration = d.optStr(oo, "concentration", path)
@@ -382,13 +400,13 @@ func (d *decoder) items(top *jnode, key string, allowed []string, item func(i in
 	}
 	for i, x := range d.array(v, key) {
 		path := key + "[" + strconv.Itoa(i) + "]"
-		d.mark(key, i, "", x)
+		d.mark(key, i, "", "", x)
 		o := d.object(x, path, allowed...)
 		if o == nil {
 			o = &jnode{kind: '{'}
 		}
 		for j, k := range o.keys {
-			d.mark(key, i, k, o.vals[j])
+			d.mark(key, i, "", k, o.vals[j])
 		}
 		item(i, o, path)
 	}
@@ -771,14 +789,12 @@ func (m *Model) Write(w io.Writer) error {
 		f.Simulation = &fs
 	}
 	f.Layout = layoutForFile(m.Layout)
-	var buf bytes.Buffer
-	enc := json.NewEncoder(&buf)
+	// The encoder builds the whole text before it writes it, in one
+	// call, so a value it cannot encode writes nothing.
+	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	enc.SetEscapeHTML(false)
 	if err := enc.Encode(&f); err != nil {
-		return fmt.Errorf("writing model: %w", err)
-	}
-	if _, err := w.Write(buf.Bytes()); err != nil {
 		return fmt.Errorf("writing model: %w", err)
 	}
 	return nil

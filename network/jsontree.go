@@ -70,12 +70,24 @@ func (e *syntaxError) Error() string { return e.msg }
 // bytes; any other is read token by token with encoding/json's decoder,
 // whose errors say what is wrong where.
 func parseJSON(data []byte) (*jnode, error) {
+	return parseJSONText(data, string(data))
+}
+
+// parseJSONText is parseJSON on data whose text is also given as a
+// string: the strings of the tree are then slices of text, with no copy
+// of their own.
+func parseJSONText(data []byte, text string) (*jnode, error) {
 	if json.Valid(data) {
-		f := fastParser{data: data}
-		f.space()
-		return f.value(), nil
+		return parseValid(text), nil
 	}
 	return parseJSONTokens(data)
+}
+
+// parseValid reads text that json.Valid accepted.
+func parseValid(text string) *jnode {
+	f := fastParser{data: text}
+	f.space()
+	return f.value()
 }
 
 // parseJSONTokens is parseJSON by encoding/json's tokens.
@@ -188,7 +200,7 @@ func (p *jparser) value(tok json.Token) (*jnode, error) {
 // times faster than encoding/json's Token for files of thousands of
 // items.
 type fastParser struct {
-	data []byte
+	data string
 	pos  int
 	// Members and items are gathered on these stacks and copied into
 	// slices of their exact length when an object or list ends, instead
@@ -294,14 +306,15 @@ func (f *fastParser) value() *jnode {
 		for f.pos < len(f.data) && strings.IndexByte("+-0123456789.eE", f.data[f.pos]) >= 0 {
 			f.pos++
 		}
-		n.kind, n.str = '0', string(f.data[start:f.pos])
+		n.kind, n.str = '0', f.data[start:f.pos]
 	}
 	return n
 }
 
 // str reads a string at f.pos. One without escapes in valid UTF-8 is
-// taken as it is; others are decoded by encoding/json, so that escapes
-// and invalid bytes read as the token reader reads them.
+// taken as it is, a slice of the text; others are decoded by
+// encoding/json, so that escapes and invalid bytes read as the token
+// reader reads them.
 func (f *fastParser) str() string {
 	start := f.pos
 	f.pos++
@@ -322,9 +335,9 @@ func (f *fastParser) str() string {
 	f.pos++
 	raw := f.data[start:f.pos]
 	if plain {
-		return string(raw[1 : len(raw)-1])
+		return raw[1 : len(raw)-1]
 	}
 	var s string
-	json.Unmarshal(raw, &s) // valid: json.Valid read it
+	json.Unmarshal([]byte(raw), &s) // valid: json.Valid read it
 	return s
 }
