@@ -550,23 +550,8 @@ func (d *decoder) value(n *jnode, path string) (Value, bool) {
 	return Value{}, false
 }
 
-// The file form, in the key order Write uses.
+// The file form of each part of a model, in the key order Write uses.
 type (
-	fileModel struct {
-		Format       string            `json:"format"`
-		Title        string            `json:"title,omitempty"`
-		Note         string            `json:"note,omitempty"`
-		Units        *fileUnits        `json:"units,omitempty"`
-		Compartments []fileCompartment `json:"compartments,omitempty"`
-		Species      []fileSpecies     `json:"species"`
-		Parameters   []fileParameter   `json:"parameters,omitempty"`
-		Assignments  []fileAssignment  `json:"assignments,omitempty"`
-		Reactions    []fileReaction    `json:"reactions"`
-		Events       []fileEvent       `json:"events,omitempty"`
-		Rates        []fileRateRule    `json:"rates,omitempty"`
-		Simulation   *fileSimulation   `json:"simulation,omitempty"`
-		Layout       *fileLayout       `json:"layout,omitempty"`
-	}
 	fileUnits struct {
 		Time               string  `json:"time,omitempty"`
 		Amount             string  `json:"amount,omitempty"`
@@ -747,36 +732,40 @@ func contains(list []string, s string) bool {
 
 // Write encodes m as a model file: keys in a fixed order, two-space indent,
 // empty optional fields left out. Writing the same model twice gives the
-// same bytes. Numbers that JSON cannot hold (NaN, ±Inf) are an error.
+// same bytes. Numbers that JSON cannot hold (NaN, ±Inf) are an error; w
+// may then have received the part before the number (Save writes
+// nothing). The items of the lists are encoded one at a time, so that
+// writing a large model does not hold its whole text.
 func (m *Model) Write(w io.Writer) error {
-	f := fileModel{Format: Format, Title: m.Title, Note: m.Note,
-		Species: []fileSpecies{}, Reactions: []fileReaction{}}
-	if m.Units != (Units{}) {
-		f.Units = &fileUnits{Time: m.Units.Time, Amount: m.Units.Amount, MoleculesPerAmount: m.Units.MoleculesPerAmount}
+	if err := m.write(w); err != nil {
+		return fmt.Errorf("writing model: %w", err)
 	}
-	for _, c := range m.Compartments {
-		f.Compartments = append(f.Compartments, fileCompartment(c))
-	}
-	for _, s := range m.Species {
-		f.Species = append(f.Species, fileSpecies(s))
-	}
-	for _, p := range m.Parameters {
-		f.Parameters = append(f.Parameters, fileParameter(p))
-	}
-	for _, a := range m.Assignments {
-		f.Assignments = append(f.Assignments, fileAssignment(a))
-	}
-	for _, r := range m.Reactions {
-		f.Reactions = append(f.Reactions, fileReaction{Name: r.Name, Equation: r.Equation, Note: r.Note, Rate: fileRate(r.Rate)})
-	}
-	for _, e := range m.Events {
-		f.Events = append(f.Events, fileEvent{Name: e.Name, Note: e.Note, At: optValue(e.At), Every: optValue(e.Every),
+	return nil
+}
+
+func (m *Model) write(w io.Writer) error {
+	sw := &sectionWriter{w: w}
+	sw.enc = json.NewEncoder(&sw.buf)
+	sw.enc.SetEscapeHTML(false)
+	sw.raw("{")
+	sw.field("format", Format, false)
+	sw.field("title", m.Title, m.Title == "")
+	sw.field("note", m.Note, m.Note == "")
+	sw.field("units", &fileUnits{Time: m.Units.Time, Amount: m.Units.Amount, MoleculesPerAmount: m.Units.MoleculesPerAmount},
+		m.Units == (Units{}))
+	list(sw, "compartments", m.Compartments, true, func(c Compartment) any { return fileCompartment(c) })
+	list(sw, "species", m.Species, false, func(s Species) any { return fileSpecies(s) })
+	list(sw, "parameters", m.Parameters, true, func(p Parameter) any { return fileParameter(p) })
+	list(sw, "assignments", m.Assignments, true, func(a Assignment) any { return fileAssignment(a) })
+	list(sw, "reactions", m.Reactions, false, func(r Reaction) any {
+		return &fileReaction{Name: r.Name, Equation: r.Equation, Note: r.Note, Rate: fileRate(r.Rate)}
+	})
+	list(sw, "events", m.Events, true, func(e Event) any {
+		return &fileEvent{Name: e.Name, Note: e.Note, At: optValue(e.At), Every: optValue(e.Every),
 			Count: e.Count, When: e.When, Once: e.Once, From: optValue(e.From), To: optValue(e.To),
-			Add: e.Add, Set: e.Set, Infuse: e.Infuse})
-	}
-	for _, r := range m.Rates {
-		f.Rates = append(f.Rates, fileRateRule(r))
-	}
+			Add: e.Add, Set: e.Set, Infuse: e.Infuse}
+	})
+	list(sw, "rates", m.Rates, true, func(r RateRule) any { return fileRateRule(r) })
 	s := m.Simulation
 	fs := fileSimulation{TEnd: s.TEnd, RTol: s.RTol, ATol: s.ATol, Method: s.Method, NonNegative: s.NonNegative}
 	if s.Output != (Output{}) {
@@ -785,19 +774,84 @@ func (m *Model) Write(w io.Writer) error {
 	if s.Display != (Display{}) {
 		fs.Display = &fileDisplay{Time: s.Display.Time, Concentration: s.Display.Concentration}
 	}
-	if fs != (fileSimulation{}) {
-		f.Simulation = &fs
+	sw.field("simulation", &fs, fs == (fileSimulation{}))
+	l := layoutForFile(m.Layout)
+	sw.field("layout", l, l == nil)
+	sw.raw("\n}\n")
+	return sw.err
+}
+
+// sectionWriter writes the top-level object of a model file a field, and
+// a list item, at a time, each encoded by encoding/json with the indent
+// of its depth, so that the text is the one encoding/json gives for the
+// whole model with a two-space indent.
+type sectionWriter struct {
+	w      io.Writer
+	buf    bytes.Buffer
+	enc    *json.Encoder
+	fields int
+	err    error
+}
+
+// raw writes s as it is.
+func (sw *sectionWriter) raw(s string) {
+	if sw.err == nil {
+		_, sw.err = io.WriteString(sw.w, s)
 	}
-	f.Layout = layoutForFile(m.Layout)
-	// The encoder builds the whole text before it writes it, in one
-	// call, so a value it cannot encode writes nothing.
-	enc := json.NewEncoder(w)
-	enc.SetIndent("", "  ")
-	enc.SetEscapeHTML(false)
-	if err := enc.Encode(&f); err != nil {
-		return fmt.Errorf("writing model: %w", err)
+}
+
+// value writes v encoded at the depth whose lines start with prefix.
+func (sw *sectionWriter) value(v any, prefix string) {
+	if sw.err != nil {
+		return
 	}
-	return nil
+	sw.buf.Reset()
+	sw.enc.SetIndent(prefix, "  ")
+	if sw.err = sw.enc.Encode(v); sw.err != nil {
+		return
+	}
+	b := sw.buf.Bytes()
+	_, sw.err = sw.w.Write(b[:len(b)-1]) // without the encoder's newline
+}
+
+// key starts the next field of the top-level object.
+func (sw *sectionWriter) key(k string) {
+	if sw.fields > 0 {
+		sw.raw(",")
+	}
+	sw.fields++
+	sw.raw("\n  \"" + k + "\": ")
+}
+
+// field writes the field k: v unless omit.
+func (sw *sectionWriter) field(k string, v any, omit bool) {
+	if !omit {
+		sw.key(k)
+		sw.value(v, "  ")
+	}
+}
+
+// list writes the field k as a list of the items, each given to the
+// encoder as item returns it; an empty list is left out when omitEmpty,
+// else written as [].
+func list[T any](sw *sectionWriter, k string, items []T, omitEmpty bool, item func(T) any) {
+	if len(items) == 0 {
+		if !omitEmpty {
+			sw.key(k)
+			sw.raw("[]")
+		}
+		return
+	}
+	sw.key(k)
+	sw.raw("[")
+	for i, x := range items {
+		if i > 0 {
+			sw.raw(",")
+		}
+		sw.raw("\n    ")
+		sw.value(item(x), "    ")
+	}
+	sw.raw("\n  ]")
 }
 
 // Save writes m to path atomically: it writes a temporary file in the same
