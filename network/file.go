@@ -9,7 +9,6 @@ import (
 	"math"
 	"os"
 	"slices"
-	"sort"
 	"strconv"
 	"strings"
 
@@ -89,7 +88,7 @@ func (sm *sourceMap) locate(l ErrorList) {
 	// Read the text again (it was read once without a problem, and reads
 	// the same), marking the fields the problems name; -1 is a field not
 	// found.
-	root, err := parseJSONText([]byte(sm.text), sm.text)
+	root, err := parseModelJSON([]byte(sm.text), sm.text)
 	if err != nil {
 		return
 	}
@@ -160,7 +159,7 @@ func (d *decoder) mark(section string, index int, prefix, key string, n *jnode) 
 func decodeModel(data []byte, file string) (*Model, ErrorList) {
 	text := string(data) // the model's strings are slices of it
 	d := &decoder{text: text, file: file}
-	root, err := parseJSONText(data, text)
+	root, err := parseModelJSON(data, text)
 	if err != nil {
 		var se *syntaxError
 		if errors.As(err, &se) {
@@ -238,21 +237,22 @@ func (d *decoder) decode(root *jnode) *Model {
 			if ro := d.object(x, rp, keys...); ro != nil {
 				r.Rate.Law = d.optStr(ro, "law", rp)
 				// The reader owns this rate: its fields go straight into
-				// one map (Rate.With would copy the map for each).
-				args := make(map[string]Value, len(ro.keys))
+				// one list (Rate.With would copy it for each).
+				var args []Arg
 				for j, k := range ro.keys {
 					if k == "law" || k == "expression" {
 						d.mark("reactions", i, "rate.", k, ro.vals[j])
 						continue
 					}
 					if v, ok := d.value(ro.vals[j], rp+"."+k); ok && v.Set {
-						args[k] = v
+						if args == nil {
+							args = make([]Arg, 0, len(ro.keys)-1)
+						}
+						args = insertArg(args, k, v)
 					}
 					d.mark("reactions", i, "rate.", k, ro.vals[j])
 				}
-				if len(args) > 0 {
-					r.Rate.Args = args
-				}
+				r.Rate.Args = args
 				r.Rate.Expression = d.optStr(ro, "expression", rp)
 				d.mark("reactions", i, "rate", "", x)
 			}
@@ -398,7 +398,11 @@ func (d *decoder) items(top *jnode, key string, allowed []string, item func(i in
 	if !ok {
 		return
 	}
-	for i, x := range d.array(v, key) {
+	if v.kind != '[' {
+		d.fail(v, key, "expected a list [...], found %s", v.what())
+		return
+	}
+	eachItem(v, d.text, func(i int, x *jnode) {
 		path := key + "[" + strconv.Itoa(i) + "]"
 		d.mark(key, i, "", "", x)
 		o := d.object(x, path, allowed...)
@@ -409,7 +413,7 @@ func (d *decoder) items(top *jnode, key string, allowed []string, item func(i in
 			d.mark(key, i, "", k, o.vals[j])
 		}
 		item(i, o, path)
-	}
+	})
 }
 
 // object checks that n is an object with no repeated and no unknown keys,
@@ -448,14 +452,6 @@ func (d *decoder) object(n *jnode, path string, allowed ...string) *jnode {
 		}
 	}
 	return n
-}
-
-func (d *decoder) array(n *jnode, path string) []*jnode {
-	if n.kind != '[' {
-		d.fail(n, path, "expected a list [...], found %s", n.what())
-		return nil
-	}
-	return n.items
 }
 
 func (d *decoder) str(n *jnode, path string) string {
@@ -663,20 +659,19 @@ func (r fileRate) MarshalJSON() ([]byte, error) {
 	var order []string
 	if law, ok := LawNamed(r.Law); ok {
 		for _, f := range law.Fields() {
-			if _, ok := r.Args[f.Key]; ok {
+			if Rate(r).Arg(f.Key).Set {
 				order = append(order, f.Key)
 			}
 		}
 	}
 	var rest []string
-	for k := range r.Args {
-		if !contains(order, k) {
-			rest = append(rest, k)
+	for _, a := range r.Args { // in the order of the keys
+		if !contains(order, a.Key) {
+			rest = append(rest, a.Key)
 		}
 	}
-	sort.Strings(rest)
 	for _, k := range append(order, rest...) {
-		v := fileValue(r.Args[k])
+		v := fileValue(Rate(r).Arg(k))
 		if err := put(k, &v); err != nil {
 			return nil, err
 		}
