@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"slices"
-	"sort"
 	"strings"
 
 	"kinetarium/network/expr"
@@ -399,12 +398,11 @@ func (v *validator) reaction(i int) {
 		v.fieldValue(i, r.Name, field, f, val)
 	}
 	var keys []string
-	for k := range r.Rate.Args {
-		if !isField(k) {
-			keys = append(keys, k)
+	for _, a := range r.Rate.Args { // in the order of the keys
+		if !isField(a.Key) {
+			keys = append(keys, a.Key)
 		}
 	}
-	sort.Strings(keys)
 	for _, k := range keys {
 		errf("rate."+k, 0, "%s is not used by the %s law; remove it", keyLabel(k), law.Title())
 	}
