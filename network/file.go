@@ -209,10 +209,12 @@ func (d *decoder) decode(root *jnode) *Model {
 			m.Units.MoleculesPerAmount = d.optNum(o, "molecules_per_amount", "units")
 		}
 	}
+	m.Compartments = sized[Compartment](top, "compartments")
 	d.items(top, "compartments", []string{"name", "volume", "unit", "note"}, func(i int, o *jnode, path string) {
 		m.Compartments = append(m.Compartments, Compartment{
 			Name: d.optStr(o, "name", path), Volume: d.optNum(o, "volume", path), Unit: d.optStr(o, "unit", path), Note: d.optStr(o, "note", path)})
 	})
+	m.Species = sized[Species](top, "species")
 	d.items(top, "species", []string{"name", "initial", "compartment", "fixed", "note"}, func(i int, o *jnode, path string) {
 		s := Species{Name: d.optStr(o, "name", path), Initial: d.optNum(o, "initial", path),
 			Compartment: d.optStr(o, "compartment", path), Note: d.optStr(o, "note", path)}
@@ -221,15 +223,18 @@ func (d *decoder) decode(root *jnode) *Model {
 		}
 		m.Species = append(m.Species, s)
 	})
+	m.Parameters = sized[Parameter](top, "parameters")
 	d.items(top, "parameters", []string{"name", "value", "unit", "note"}, func(i int, o *jnode, path string) {
 		m.Parameters = append(m.Parameters, Parameter{Name: d.optStr(o, "name", path), Value: d.reqNum(o, "value", path),
 			Unit: d.optStr(o, "unit", path), Note: d.optStr(o, "note", path)})
 	})
+	m.Assignments = sized[Assignment](top, "assignments")
 	d.items(top, "assignments", []string{"name", "expression", "unit", "note"}, func(i int, o *jnode, path string) {
 		m.Assignments = append(m.Assignments, Assignment{Name: d.optStr(o, "name", path), Expression: d.optStr(o, "expression", path),
 			Unit: d.optStr(o, "unit", path), Note: d.optStr(o, "note", path)})
 	})
 	keys := rateKeys()
+	m.Reactions = sized[Reaction](top, "reactions")
 	d.items(top, "reactions", []string{"name", "equation", "rate", "note"}, func(i int, o *jnode, path string) {
 		r := Reaction{Name: d.optStr(o, "name", path), Equation: d.optStr(o, "equation", path), Note: d.optStr(o, "note", path)}
 		if x, ok := o.get("rate"); ok {
@@ -259,6 +264,7 @@ func (d *decoder) decode(root *jnode) *Model {
 		}
 		m.Reactions = append(m.Reactions, r)
 	})
+	m.Events = sized[Event](top, "events")
 	d.items(top, "events", []string{"name", "note", "at", "every", "count", "when", "once", "from", "to", "add", "set", "infuse"},
 		func(i int, o *jnode, path string) {
 			e := Event{Name: d.optStr(o, "name", path), Note: d.optStr(o, "note", path), When: d.optStr(o, "when", path)}
@@ -312,6 +318,7 @@ func (d *decoder) decode(root *jnode) *Model {
 			}
 			m.Events = append(m.Events, e)
 		})
+	m.Rates = sized[RateRule](top, "rates")
 	d.items(top, "rates", []string{"name", "expression", "note"}, func(i int, o *jnode, path string) {
 		m.Rates = append(m.Rates, RateRule{Name: d.optStr(o, "name", path), Expression: d.optStr(o, "expression", path),
 			Note: d.optStr(o, "note", path)})
@@ -389,6 +396,15 @@ func (d *decoder) display(x *jnode, out *Display) {
 		}
 		d.failAt(off, "simulation."+p.field, "%s", p.msg)
 	}
+}
+
+// sized returns an empty slice with room for the items of the list under
+// key of top, or nil when there are none.
+func sized[T any](top *jnode, key string) []T {
+	if v, ok := top.get(key); ok && v.kind == '[' && v.length() > 0 {
+		return make([]T, 0, v.length())
+	}
+	return nil
 }
 
 // items decodes the list under key of top, calling item for each object in

@@ -21,6 +21,7 @@ type jnode struct {
 	// eachItem. The model reader's long lists (species, reactions, …)
 	// are read so, so that the tree of the whole file is never in memory.
 	lazy  bool
+	count int // the number of items of a lazy list
 	off   int64
 	keys  []string // object keys in file order
 	kOffs []int64  // where each key starts
@@ -105,6 +106,14 @@ func parseModelJSON(data []byte, text string) (*jnode, error) {
 		return f.value(), nil
 	}
 	return parseJSONTokens(data)
+}
+
+// length returns the number of items of the list n.
+func (n *jnode) length() int {
+	if n.lazy {
+		return n.count
+	}
+	return len(n.items)
 }
 
 // eachItem calls fn with each item of the list n in order, and with its
@@ -281,15 +290,20 @@ func (f *fastParser) reuse() {
 	f.slab = f.first
 }
 
-// skipList moves past the list that starts at f.pos, in a valid document.
-func (f *fastParser) skipList() {
-	depth := 0
+// skipList moves past the list that starts at f.pos, in a valid
+// document, and returns the number of its items.
+func (f *fastParser) skipList() (items int) {
+	start, depth, commas := f.pos, 0, 0
 	for {
 		switch f.data[f.pos] {
 		case '[', '{':
 			depth++
 		case ']', '}':
 			depth--
+		case ',':
+			if depth == 1 {
+				commas++
+			}
 		case '"':
 			f.pos++
 			for f.data[f.pos] != '"' {
@@ -301,9 +315,13 @@ func (f *fastParser) skipList() {
 		}
 		f.pos++
 		if depth == 0 {
-			return
+			break
 		}
 	}
+	if strings.TrimSpace(f.data[start+1:f.pos-1]) == "" {
+		return 0
+	}
+	return commas + 1
 }
 
 func (f *fastParser) space() {
@@ -340,7 +358,7 @@ func (f *fastParser) value() *jnode {
 			if f.lazyLists && f.depth == 0 && f.data[f.pos] == '[' {
 				v = f.node(f.pos)
 				v.kind, v.lazy = '[', true
-				f.skipList()
+				v.count = f.skipList()
 				v.str = f.data[v.off:f.pos]
 			} else {
 				f.depth++

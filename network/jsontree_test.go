@@ -28,6 +28,9 @@ func sameTree(a, b *jnode, path, text string) string {
 			}
 			diff = sameTree(x, b.items[i], fmt.Sprintf("%s[%d]", path, i), text)
 		})
+		if diff == "" && a.count != len(b.items) {
+			diff = fmt.Sprintf("%s: counted %d items, want %d", path, a.count, len(b.items))
+		}
 		if diff == "" && n != len(b.items) {
 			diff = fmt.Sprintf("%s: %d items, want %d", path, n, len(b.items))
 		}
