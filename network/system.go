@@ -398,7 +398,11 @@ func (s *System) updateScales() {
 // buildPattern builds the CSR pattern of the Jacobian (every diagonal entry
 // included) and the position of each (contribution, dependency) pair.
 func (s *System) buildPattern() {
-	var major, minor []int
+	pairs := 0 // counted first, so that the lists are made at their size
+	for _, r := range s.rx {
+		pairs += (r.c1 - r.c0) * (r.d1 - r.d0)
+	}
+	major, minor := make([]int, 0, pairs), make([]int, 0, pairs)
 	for _, r := range s.rx {
 		for c := r.c0; c < r.c1; c++ {
 			for d := r.d0; d < r.d1; d++ {
@@ -408,7 +412,7 @@ func (s *System) buildPattern() {
 		}
 	}
 	s.rowPtr, s.colIdx = compressed(s.n, major, minor, true)
-	s.jpos = s.jpos[:0]
+	s.jpos = slices.Grow(s.jpos[:0], pairs)
 	for ri := range s.rx {
 		r := &s.rx[ri]
 		r.j0 = len(s.jpos)
