@@ -256,6 +256,14 @@ func (net *Net) Compile() (*System, error) {
 	s.parNames = make([]string, 0, len(m.Parameters))
 	s.rxNames = make([]string, 0, len(net.Reactions))
 	s.rx = make([]rxn, 0, len(net.Reactions)+len(net.Rates))
+	// The terms and contributions are at most one per species named by
+	// an equation: lists of that length do not grow by copies.
+	nterms := 0
+	for i := range net.Reactions {
+		nterms += len(net.Reactions[i].Equation.Reactants) + len(net.Reactions[i].Equation.Products)
+	}
+	s.terms = make([]term, 0, nterms)
+	s.cSp, s.cNet = make([]int, 0, nterms), make([]float64, 0, nterms)
 	b := &builder{s: s, net: net}
 	n := s.n
 	compIx := map[string]int{}
