@@ -245,8 +245,14 @@ func (net *Net) Compile() (*System, error) {
 	}
 	m := net.Model
 	statePars := net.stateParameters()
-	s := &System{n: len(m.Species) + len(statePars), nSpecies: len(m.Species),
-		parIx: make(map[string]int, len(m.Parameters)), spIx: make(map[string]int, len(m.Species)+len(statePars))}
+	// A network without errors names each parameter and species once, so
+	// the Net's maps of their places are the System's (read-only from
+	// here on); the species map is made anew when parameters join the
+	// state.
+	s := &System{n: len(m.Species) + len(statePars), nSpecies: len(m.Species), parIx: net.paramIx, spIx: net.speciesIx}
+	if len(statePars) > 0 {
+		s.spIx = make(map[string]int, len(m.Species)+len(statePars))
+	}
 	// Sized once: a large network would otherwise copy each list many
 	// times as it grows.
 	s.names = make([]string, 0, s.n)
@@ -293,7 +299,9 @@ func (net *Net) Compile() (*System, error) {
 		s.initial = append(s.initial, sp.Initial)
 		s.fixed = append(s.fixed, sp.Fixed)
 		s.spComp = append(s.spComp, compIx[sp.Compartment]) // "" gives 0, the first
-		s.spIx[sp.Name] = i
+		if len(statePars) > 0 {
+			s.spIx[sp.Name] = i
+		}
 	}
 	s.parState = make([]int, len(m.Parameters))
 	for i := range s.parState {
@@ -317,7 +325,6 @@ func (net *Net) Compile() (*System, error) {
 	s.vars = make([]float64, n+len(m.Parameters)+1)
 	for i, p := range m.Parameters {
 		s.parNames = append(s.parNames, p.Name)
-		s.parIx[p.Name] = i
 		s.vars[n+i] = p.Value
 	}
 	var order []int
