@@ -201,9 +201,9 @@ func renameInModel(m *network.Model, k Kind, old, new string, everywhere bool) i
 		var n int
 		r.Rate.Expression, n = ReplaceName(r.Rate.Expression, old, new)
 		uses += n
-		for key, v := range r.Rate.Args {
-			if v.Set && v.Name == old {
-				r.Rate = r.Rate.With(key, network.Named(new))
+		for _, a := range r.Rate.Args {
+			if v := a.Value; v.Set && v.Name == old {
+				r.Rate = r.Rate.With(a.Key, network.Named(new))
 				uses++
 			}
 		}

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"slices"
-	"sort"
 	"strings"
 
 	"kinetarium/network/expr"
@@ -126,11 +125,14 @@ func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 // (errors first, then warnings, each in model order; with file positions
 // when m was read from a file). It never panics. The Net is never nil.
 func Check(m *Model) (*Net, ErrorList) {
-	v := &validator{m: m, kinds: map[string]nameRef{}, speciesIx: map[string]int{},
-		paramIx: map[string]int{}, compIx: map[string]int{}, assignIx: map[string]int{},
+	// The maps and lists are made at their final sizes: grown by
+	// doubling, they would cost a large model several times their size.
+	v := &validator{m: m, kinds: make(map[string]nameRef, len(m.Compartments)+len(m.Species)+len(m.Parameters)+len(m.Assignments)),
+		speciesIx: make(map[string]int, len(m.Species)), paramIx: make(map[string]int, len(m.Parameters)),
+		compIx: make(map[string]int, len(m.Compartments)), assignIx: make(map[string]int, len(m.Assignments)),
 		usedSp: make([]bool, len(m.Species)), usedPar: make([]bool, len(m.Parameters)),
 		usedAsg: make([]bool, len(m.Assignments)), lawPar: make([]bool, len(m.Parameters))}
-	v.net = &Net{Model: m}
+	v.net = &Net{Model: m, Reactions: make([]CheckedReaction, 0, len(m.Reactions))}
 	v.names()
 	v.compartments()
 	v.species()
@@ -308,8 +310,10 @@ func (v *validator) parameters() {
 
 func (v *validator) reaction(i int) {
 	r := &v.m.Reactions[i]
-	cr := CheckedReaction{Index: i, Name: r.Name, Rate: r.Rate}
-	defer func() { v.net.Reactions = append(v.net.Reactions, cr) }()
+	// The reaction is filled in in its place in the list, which Check
+	// made long enough for every reaction.
+	v.net.Reactions = append(v.net.Reactions, CheckedReaction{Index: i, Name: r.Name, Rate: r.Rate})
+	cr := &v.net.Reactions[len(v.net.Reactions)-1]
 	nerr := v.nerr
 	errf := func(field string, col int, format string, args ...any) {
 		v.add(Error, "reactions", i, r.Name, field, col, format, args...)
@@ -399,12 +403,11 @@ func (v *validator) reaction(i int) {
 		v.fieldValue(i, r.Name, field, f, val)
 	}
 	var keys []string
-	for k := range r.Rate.Args {
-		if !isField(k) {
-			keys = append(keys, k)
+	for _, a := range r.Rate.Args { // in the order of the keys
+		if !isField(a.Key) {
+			keys = append(keys, a.Key)
 		}
 	}
-	sort.Strings(keys)
 	for _, k := range keys {
 		errf("rate."+k, 0, "%s is not used by the %s law; remove it", keyLabel(k), law.Title())
 	}

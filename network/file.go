@@ -9,10 +9,8 @@ import (
 	"math"
 	"os"
 	"slices"
-	"sort"
 	"strconv"
 	"strings"
-	"sync"
 
 	"kinetarium/internal/atomicfile"
 )
@@ -55,29 +53,23 @@ func Load(path string) (*Model, error) {
 }
 
 // lineCol converts a byte offset into a 1-based line and column.
-func lineCol(data []byte, off int64) (line, col int) {
-	off = max(0, min(off, int64(len(data))))
-	line = 1 + bytes.Count(data[:off], []byte("\n"))
-	last := bytes.LastIndexByte(data[:off], '\n')
+func lineCol(text string, off int64) (line, col int) {
+	off = max(0, min(off, int64(len(text))))
+	line = 1 + strings.Count(text[:off], "\n")
+	last := strings.LastIndexByte(text[:off], '\n')
 	col = int(off) - last // last = -1 gives off+1
 	return line, col
 }
 
-// sourceMap remembers where the items of a model were in its file. The
-// reader appends the places to a list; the map to look them up is built
-// the first time a problem is to be located (most reads of large models
-// have none, and a map of every field would cost more than the read).
+// sourceMap knows where the items of a model were in its file. It keeps
+// the file's text alone (the model's strings are slices of it, so it
+// costs nothing more) and no table of places: most reads of large models
+// have no problem to locate, and a table of every field would be larger
+// than the model. To locate problems it reads the text again, keeping
+// the places of just the fields the problems name.
 type sourceMap struct {
-	file  string
-	data  []byte
-	marks []sourceMark
-	once  sync.Once
-	at    map[sourceKey]int64 // where each item and field starts
-}
-
-type sourceMark struct {
-	key sourceKey
-	off int64
+	file string
+	text string
 }
 
 // sourceKey names a model item's field ("" for the whole item).
@@ -93,24 +85,33 @@ func (sm *sourceMap) locate(l ErrorList) {
 	if sm == nil || len(l) == 0 {
 		return
 	}
-	sm.once.Do(func() {
-		sm.at = make(map[sourceKey]int64, len(sm.marks))
-		for _, mk := range sm.marks {
-			sm.at[mk.key] = mk.off // a later mark of the same field wins
-		}
-	})
+	// Read the text again (it was read once without a problem, and reads
+	// the same), marking the fields the problems name; -1 is a field not
+	// found.
+	root, err := parseModelJSON([]byte(sm.text), sm.text)
+	if err != nil {
+		return
+	}
+	want := make(map[sourceKey]int64, 2*len(l))
+	for _, e := range l {
+		p := e.Pos
+		want[sourceKey{p.Section, p.Index, p.Field}] = -1
+		want[sourceKey{p.Section, p.Index, ""}] = -1
+	}
+	d := &decoder{text: sm.text, file: sm.file, want: want}
+	d.decode(root)
 	for i := range l {
 		p := &l[i].Pos
-		off, ok := sm.at[sourceKey{p.Section, p.Index, p.Field}]
-		exact := ok
-		if !ok {
-			off, ok = sm.at[sourceKey{p.Section, p.Index, ""}]
+		off := want[sourceKey{p.Section, p.Index, p.Field}]
+		exact := off >= 0
+		if !exact {
+			off = want[sourceKey{p.Section, p.Index, ""}]
 		}
-		if !ok {
+		if off < 0 {
 			continue
 		}
 		p.File = sm.file
-		p.Line, p.Column = lineCol(sm.data, off)
+		p.Line, p.Column = lineCol(sm.text, off)
 		if exact && p.Col > 0 && p.Field != "" && p.Field != "name" {
 			p.Column += p.Col // the text starts after its opening quote
 		}
@@ -120,10 +121,13 @@ func (sm *sourceMap) locate(l ErrorList) {
 // decoder turns the JSON tree of a model file into a Model, collecting
 // every problem.
 type decoder struct {
-	data []byte
+	text string
 	file string
 	errs ErrorList
-	src  *sourceMap
+	// want, when not nil, holds the fields whose places are asked for;
+	// mark records each one's place there (a later mark of the same
+	// field wins).
+	want map[sourceKey]int64
 }
 
 // fail reports a problem at the place of n (or of the whole file when n is
@@ -133,27 +137,29 @@ func (d *decoder) fail(n *jnode, path, format string, args ...any) {
 }
 
 func (d *decoder) failAt(off int64, path, format string, args ...any) {
-	line, col := lineCol(d.data, off)
+	line, col := lineCol(d.text, off)
 	if path == "" {
 		path = "the top level"
 	}
 	d.errs.Add(Pos{File: d.file, Line: line, Column: col, Field: path}, Error, format, args...)
 }
 
-// mark remembers where a model item's field starts.
-func (d *decoder) mark(section string, index int, field string, n *jnode) {
-	if n != nil {
-		d.src.marks = append(d.src.marks, sourceMark{sourceKey{section, index, field}, n.off})
+// mark remembers where a model item's field, prefix+key, starts, when
+// its place is asked for.
+func (d *decoder) mark(section string, index int, prefix, key string, n *jnode) {
+	if d.want == nil || n == nil {
+		return
+	}
+	k := sourceKey{section, index, prefix + key}
+	if _, ok := d.want[k]; ok {
+		d.want[k] = n.off
 	}
 }
 
 func decodeModel(data []byte, file string) (*Model, ErrorList) {
-	d := &decoder{data: data, file: file, src: &sourceMap{file: file, data: data,
-		// a place for each key and each item (an object): about one per
-		// ':' and '{' of the file, counted once so that the list does not
-		// grow by copies
-		marks: make([]sourceMark, 0, min(bytes.Count(data, []byte{':'})+bytes.Count(data, []byte{'{'})+16, len(data)))}}
-	root, err := parseJSON(data)
+	text := string(data) // the model's strings are slices of it
+	d := &decoder{text: text, file: file}
+	root, err := parseModelJSON(data, text)
 	if err != nil {
 		var se *syntaxError
 		if errors.As(err, &se) {
@@ -164,15 +170,26 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		d.errs[0].Field = ""
 		return nil, d.errs
 	}
-	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "events", "rates", "simulation", "layout")
-	if top == nil {
+	m := d.decode(root)
+	if m == nil {
 		return nil, d.errs
 	}
-	m := &Model{source: d.src}
+	m.source = &sourceMap{file: file, text: text}
+	return m, nil
+}
+
+// decode turns the tree of a model file into a Model; it returns nil with
+// d.errs holding the problems when there are any.
+func (d *decoder) decode(root *jnode) *Model {
+	top := d.object(root, "", "format", "title", "note", "units", "compartments", "species", "parameters", "assignments", "reactions", "events", "rates", "simulation", "layout")
+	if top == nil {
+		return nil
+	}
+	m := &Model{}
 	raw, ok := top.get("format")
 	if !ok {
 		d.fail(root, "", "missing key \"format\"; a model file starts with \"format\": %q", Format)
-		return nil, d.errs
+		return nil
 	}
 	format := d.str(raw, "format")
 	if format != Format && raw.kind == '"' {
@@ -181,7 +198,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		} else {
 			d.fail(raw, "format", "format %q is not a model file format; expected %q", format, Format)
 		}
-		return nil, d.errs
+		return nil
 	}
 	m.Title = d.optStr(top, "title", "")
 	m.Note = d.optStr(top, "note", "")
@@ -192,10 +209,12 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			m.Units.MoleculesPerAmount = d.optNum(o, "molecules_per_amount", "units")
 		}
 	}
+	m.Compartments = sized[Compartment](top, "compartments")
 	d.items(top, "compartments", []string{"name", "volume", "unit", "note"}, func(i int, o *jnode, path string) {
 		m.Compartments = append(m.Compartments, Compartment{
 			Name: d.optStr(o, "name", path), Volume: d.optNum(o, "volume", path), Unit: d.optStr(o, "unit", path), Note: d.optStr(o, "note", path)})
 	})
+	m.Species = sized[Species](top, "species")
 	d.items(top, "species", []string{"name", "initial", "compartment", "fixed", "note"}, func(i int, o *jnode, path string) {
 		s := Species{Name: d.optStr(o, "name", path), Initial: d.optNum(o, "initial", path),
 			Compartment: d.optStr(o, "compartment", path), Note: d.optStr(o, "note", path)}
@@ -204,15 +223,18 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 		}
 		m.Species = append(m.Species, s)
 	})
+	m.Parameters = sized[Parameter](top, "parameters")
 	d.items(top, "parameters", []string{"name", "value", "unit", "note"}, func(i int, o *jnode, path string) {
 		m.Parameters = append(m.Parameters, Parameter{Name: d.optStr(o, "name", path), Value: d.reqNum(o, "value", path),
 			Unit: d.optStr(o, "unit", path), Note: d.optStr(o, "note", path)})
 	})
+	m.Assignments = sized[Assignment](top, "assignments")
 	d.items(top, "assignments", []string{"name", "expression", "unit", "note"}, func(i int, o *jnode, path string) {
 		m.Assignments = append(m.Assignments, Assignment{Name: d.optStr(o, "name", path), Expression: d.optStr(o, "expression", path),
 			Unit: d.optStr(o, "unit", path), Note: d.optStr(o, "note", path)})
 	})
 	keys := rateKeys()
+	m.Reactions = sized[Reaction](top, "reactions")
 	d.items(top, "reactions", []string{"name", "equation", "rate", "note"}, func(i int, o *jnode, path string) {
 		r := Reaction{Name: d.optStr(o, "name", path), Equation: d.optStr(o, "equation", path), Note: d.optStr(o, "note", path)}
 		if x, ok := o.get("rate"); ok {
@@ -220,27 +242,29 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			if ro := d.object(x, rp, keys...); ro != nil {
 				r.Rate.Law = d.optStr(ro, "law", rp)
 				// The reader owns this rate: its fields go straight into
-				// one map (Rate.With would copy the map for each).
-				args := make(map[string]Value, len(ro.keys))
+				// one list (Rate.With would copy it for each).
+				var args []Arg
 				for j, k := range ro.keys {
 					if k == "law" || k == "expression" {
-						d.mark("reactions", i, "rate."+k, ro.vals[j])
+						d.mark("reactions", i, "rate.", k, ro.vals[j])
 						continue
 					}
 					if v, ok := d.value(ro.vals[j], rp+"."+k); ok && v.Set {
-						args[k] = v
+						if args == nil {
+							args = make([]Arg, 0, len(ro.keys)-1)
+						}
+						args = insertArg(args, k, v)
 					}
-					d.mark("reactions", i, "rate."+k, ro.vals[j])
+					d.mark("reactions", i, "rate.", k, ro.vals[j])
 				}
-				if len(args) > 0 {
-					r.Rate.Args = args
-				}
+				r.Rate.Args = args
 				r.Rate.Expression = d.optStr(ro, "expression", rp)
-				d.mark("reactions", i, "rate", x)
+				d.mark("reactions", i, "rate", "", x)
 			}
 		}
 		m.Reactions = append(m.Reactions, r)
 	})
+	m.Events = sized[Event](top, "events")
 	d.items(top, "events", []string{"name", "note", "at", "every", "count", "when", "once", "from", "to", "add", "set", "infuse"},
 		func(i int, o *jnode, path string) {
 			e := Event{Name: d.optStr(o, "name", path), Note: d.optStr(o, "note", path), When: d.optStr(o, "when", path)}
@@ -278,7 +302,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 					continue
 				}
 				for j, target := range x.keys {
-					d.mark("events", i, key+"."+target, x.vals[j])
+					d.mark("events", i, key+".", target, x.vals[j])
 					v := x.vals[j]
 					switch v.kind {
 					case '"':
@@ -294,12 +318,13 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			}
 			m.Events = append(m.Events, e)
 		})
+	m.Rates = sized[RateRule](top, "rates")
 	d.items(top, "rates", []string{"name", "expression", "note"}, func(i int, o *jnode, path string) {
 		m.Rates = append(m.Rates, RateRule{Name: d.optStr(o, "name", path), Expression: d.optStr(o, "expression", path),
 			Note: d.optStr(o, "note", path)})
 	})
 	if v, ok := top.get("simulation"); ok {
-		d.mark("simulation", 0, "", v)
+		d.mark("simulation", 0, "", "", v)
 		if o := d.object(v, "simulation", "t_end", "output", "rtol", "atol", "method", "non_negative", "display"); o != nil {
 			s := &m.Simulation
 			s.TEnd = d.optNum(o, "t_end", "simulation")
@@ -310,7 +335,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			d.notZero(o, "simulation", "atol", "a positive absolute tolerance such as 1e-12", DefaultATol)
 			s.Method = d.optStr(o, "method", "simulation")
 			for j, k := range o.keys {
-				d.mark("simulation", 0, k, o.vals[j])
+				d.mark("simulation", 0, "", k, o.vals[j])
 			}
 			if x, ok := o.get("non_negative"); ok {
 				b := d.boolean(x, "simulation.non_negative")
@@ -319,7 +344,7 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 			if x, ok := o.get("output"); ok {
 				if oo := d.object(x, "simulation.output", "points", "spacing", "first"); oo != nil {
 					for j, k := range oo.keys {
-						d.mark("simulation", 0, "output."+k, oo.vals[j])
+						d.mark("simulation", 0, "output.", k, oo.vals[j])
 					}
 					if p, ok := oo.get("points"); ok {
 						f, ok := d.num(p, "simulation.output.points")
@@ -343,10 +368,10 @@ func decodeModel(data []byte, file string) (*Model, ErrorList) {
 	d.layout(top, m)
 	if d.errs.HasErrors() {
 		d.errs.Sort()
-		return nil, d.errs
+		return nil
 	}
 	m.Simulation = m.Simulation.WithDefaults()
-	return m, nil
+	return m
 }
 
 // display decodes the display units of the simulation settings, each of
@@ -359,7 +384,7 @@ func (d *decoder) display(x *jnode, out *Display) {
 		return
 	}
 	for j, k := range oo.keys {
-		d.mark("simulation", 0, "display."+k, oo.vals[j])
+		d.mark("simulation", 0, "display.", k, oo.vals[j])
 	}
 	out.Time = d.optStr(oo, "time", path)
 	out.Concentration = d.optStr(oo, "concentration", path)
@@ -373,6 +398,15 @@ func (d *decoder) display(x *jnode, out *Display) {
 	}
 }
 
+// sized returns an empty slice with room for the items of the list under
+// key of top, or nil when there are none.
+func sized[T any](top *jnode, key string) []T {
+	if v, ok := top.get(key); ok && v.kind == '[' && v.length() > 0 {
+		return make([]T, 0, v.length())
+	}
+	return nil
+}
+
 // items decodes the list under key of top, calling item for each object in
 // it, and remembers where each item and each of its fields is.
 func (d *decoder) items(top *jnode, key string, allowed []string, item func(i int, o *jnode, path string)) {
@@ -380,18 +414,22 @@ func (d *decoder) items(top *jnode, key string, allowed []string, item func(i in
 	if !ok {
 		return
 	}
-	for i, x := range d.array(v, key) {
+	if v.kind != '[' {
+		d.fail(v, key, "expected a list [...], found %s", v.what())
+		return
+	}
+	eachItem(v, d.text, func(i int, x *jnode) {
 		path := key + "[" + strconv.Itoa(i) + "]"
-		d.mark(key, i, "", x)
+		d.mark(key, i, "", "", x)
 		o := d.object(x, path, allowed...)
 		if o == nil {
 			o = &jnode{kind: '{'}
 		}
 		for j, k := range o.keys {
-			d.mark(key, i, k, o.vals[j])
+			d.mark(key, i, "", k, o.vals[j])
 		}
 		item(i, o, path)
-	}
+	})
 }
 
 // object checks that n is an object with no repeated and no unknown keys,
@@ -430,14 +468,6 @@ func (d *decoder) object(n *jnode, path string, allowed ...string) *jnode {
 		}
 	}
 	return n
-}
-
-func (d *decoder) array(n *jnode, path string) []*jnode {
-	if n.kind != '[' {
-		d.fail(n, path, "expected a list [...], found %s", n.what())
-		return nil
-	}
-	return n.items
 }
 
 func (d *decoder) str(n *jnode, path string) string {
@@ -532,23 +562,8 @@ func (d *decoder) value(n *jnode, path string) (Value, bool) {
 	return Value{}, false
 }
 
-// The file form, in the key order Write uses.
+// The file form of each part of a model, in the key order Write uses.
 type (
-	fileModel struct {
-		Format       string            `json:"format"`
-		Title        string            `json:"title,omitempty"`
-		Note         string            `json:"note,omitempty"`
-		Units        *fileUnits        `json:"units,omitempty"`
-		Compartments []fileCompartment `json:"compartments,omitempty"`
-		Species      []fileSpecies     `json:"species"`
-		Parameters   []fileParameter   `json:"parameters,omitempty"`
-		Assignments  []fileAssignment  `json:"assignments,omitempty"`
-		Reactions    []fileReaction    `json:"reactions"`
-		Events       []fileEvent       `json:"events,omitempty"`
-		Rates        []fileRateRule    `json:"rates,omitempty"`
-		Simulation   *fileSimulation   `json:"simulation,omitempty"`
-		Layout       *fileLayout       `json:"layout,omitempty"`
-	}
 	fileUnits struct {
 		Time               string  `json:"time,omitempty"`
 		Amount             string  `json:"amount,omitempty"`
@@ -660,20 +675,19 @@ func (r fileRate) MarshalJSON() ([]byte, error) {
 	var order []string
 	if law, ok := LawNamed(r.Law); ok {
 		for _, f := range law.Fields() {
-			if _, ok := r.Args[f.Key]; ok {
+			if Rate(r).Arg(f.Key).Set {
 				order = append(order, f.Key)
 			}
 		}
 	}
 	var rest []string
-	for k := range r.Args {
-		if !contains(order, k) {
-			rest = append(rest, k)
+	for _, a := range r.Args { // in the order of the keys
+		if !contains(order, a.Key) {
+			rest = append(rest, a.Key)
 		}
 	}
-	sort.Strings(rest)
 	for _, k := range append(order, rest...) {
-		v := fileValue(r.Args[k])
+		v := fileValue(Rate(r).Arg(k))
 		if err := put(k, &v); err != nil {
 			return nil, err
 		}
@@ -729,36 +743,40 @@ func contains(list []string, s string) bool {
 
 // Write encodes m as a model file: keys in a fixed order, two-space indent,
 // empty optional fields left out. Writing the same model twice gives the
-// same bytes. Numbers that JSON cannot hold (NaN, ±Inf) are an error.
+// same bytes. Numbers that JSON cannot hold (NaN, ±Inf) are an error; w
+// may then have received the part before the number (Save writes
+// nothing). The items of the lists are encoded one at a time, so that
+// writing a large model does not hold its whole text.
 func (m *Model) Write(w io.Writer) error {
-	f := fileModel{Format: Format, Title: m.Title, Note: m.Note,
-		Species: []fileSpecies{}, Reactions: []fileReaction{}}
-	if m.Units != (Units{}) {
-		f.Units = &fileUnits{Time: m.Units.Time, Amount: m.Units.Amount, MoleculesPerAmount: m.Units.MoleculesPerAmount}
+	if err := m.write(w); err != nil {
+		return fmt.Errorf("writing model: %w", err)
 	}
-	for _, c := range m.Compartments {
-		f.Compartments = append(f.Compartments, fileCompartment(c))
-	}
-	for _, s := range m.Species {
-		f.Species = append(f.Species, fileSpecies(s))
-	}
-	for _, p := range m.Parameters {
-		f.Parameters = append(f.Parameters, fileParameter(p))
-	}
-	for _, a := range m.Assignments {
-		f.Assignments = append(f.Assignments, fileAssignment(a))
-	}
-	for _, r := range m.Reactions {
-		f.Reactions = append(f.Reactions, fileReaction{Name: r.Name, Equation: r.Equation, Note: r.Note, Rate: fileRate(r.Rate)})
-	}
-	for _, e := range m.Events {
-		f.Events = append(f.Events, fileEvent{Name: e.Name, Note: e.Note, At: optValue(e.At), Every: optValue(e.Every),
+	return nil
+}
+
+func (m *Model) write(w io.Writer) error {
+	sw := &sectionWriter{w: w}
+	sw.enc = json.NewEncoder(&sw.buf)
+	sw.enc.SetEscapeHTML(false)
+	sw.raw("{")
+	sw.field("format", Format, false)
+	sw.field("title", m.Title, m.Title == "")
+	sw.field("note", m.Note, m.Note == "")
+	sw.field("units", &fileUnits{Time: m.Units.Time, Amount: m.Units.Amount, MoleculesPerAmount: m.Units.MoleculesPerAmount},
+		m.Units == (Units{}))
+	list(sw, "compartments", m.Compartments, true, func(c Compartment) any { return fileCompartment(c) })
+	list(sw, "species", m.Species, false, func(s Species) any { return fileSpecies(s) })
+	list(sw, "parameters", m.Parameters, true, func(p Parameter) any { return fileParameter(p) })
+	list(sw, "assignments", m.Assignments, true, func(a Assignment) any { return fileAssignment(a) })
+	list(sw, "reactions", m.Reactions, false, func(r Reaction) any {
+		return &fileReaction{Name: r.Name, Equation: r.Equation, Note: r.Note, Rate: fileRate(r.Rate)}
+	})
+	list(sw, "events", m.Events, true, func(e Event) any {
+		return &fileEvent{Name: e.Name, Note: e.Note, At: optValue(e.At), Every: optValue(e.Every),
 			Count: e.Count, When: e.When, Once: e.Once, From: optValue(e.From), To: optValue(e.To),
-			Add: e.Add, Set: e.Set, Infuse: e.Infuse})
-	}
-	for _, r := range m.Rates {
-		f.Rates = append(f.Rates, fileRateRule(r))
-	}
+			Add: e.Add, Set: e.Set, Infuse: e.Infuse}
+	})
+	list(sw, "rates", m.Rates, true, func(r RateRule) any { return fileRateRule(r) })
 	s := m.Simulation
 	fs := fileSimulation{TEnd: s.TEnd, RTol: s.RTol, ATol: s.ATol, Method: s.Method, NonNegative: s.NonNegative}
 	if s.Output != (Output{}) {
@@ -767,21 +785,84 @@ func (m *Model) Write(w io.Writer) error {
 	if s.Display != (Display{}) {
 		fs.Display = &fileDisplay{Time: s.Display.Time, Concentration: s.Display.Concentration}
 	}
-	if fs != (fileSimulation{}) {
-		f.Simulation = &fs
+	sw.field("simulation", &fs, fs == (fileSimulation{}))
+	l := layoutForFile(m.Layout)
+	sw.field("layout", l, l == nil)
+	sw.raw("\n}\n")
+	return sw.err
+}
+
+// sectionWriter writes the top-level object of a model file a field, and
+// a list item, at a time, each encoded by encoding/json with the indent
+// of its depth, so that the text is the one encoding/json gives for the
+// whole model with a two-space indent.
+type sectionWriter struct {
+	w      io.Writer
+	buf    bytes.Buffer
+	enc    *json.Encoder
+	fields int
+	err    error
+}
+
+// raw writes s as it is.
+func (sw *sectionWriter) raw(s string) {
+	if sw.err == nil {
+		_, sw.err = io.WriteString(sw.w, s)
 	}
-	f.Layout = layoutForFile(m.Layout)
-	var buf bytes.Buffer
-	enc := json.NewEncoder(&buf)
-	enc.SetIndent("", "  ")
-	enc.SetEscapeHTML(false)
-	if err := enc.Encode(&f); err != nil {
-		return fmt.Errorf("writing model: %w", err)
+}
+
+// value writes v encoded at the depth whose lines start with prefix.
+func (sw *sectionWriter) value(v any, prefix string) {
+	if sw.err != nil {
+		return
 	}
-	if _, err := w.Write(buf.Bytes()); err != nil {
-		return fmt.Errorf("writing model: %w", err)
+	sw.buf.Reset()
+	sw.enc.SetIndent(prefix, "  ")
+	if sw.err = sw.enc.Encode(v); sw.err != nil {
+		return
 	}
-	return nil
+	b := sw.buf.Bytes()
+	_, sw.err = sw.w.Write(b[:len(b)-1]) // without the encoder's newline
+}
+
+// key starts the next field of the top-level object.
+func (sw *sectionWriter) key(k string) {
+	if sw.fields > 0 {
+		sw.raw(",")
+	}
+	sw.fields++
+	sw.raw("\n  \"" + k + "\": ")
+}
+
+// field writes the field k: v unless omit.
+func (sw *sectionWriter) field(k string, v any, omit bool) {
+	if !omit {
+		sw.key(k)
+		sw.value(v, "  ")
+	}
+}
+
+// list writes the field k as a list of the items, each given to the
+// encoder as item returns it; an empty list is left out when omitEmpty,
+// else written as [].
+func list[T any](sw *sectionWriter, k string, items []T, omitEmpty bool, item func(T) any) {
+	if len(items) == 0 {
+		if !omitEmpty {
+			sw.key(k)
+			sw.raw("[]")
+		}
+		return
+	}
+	sw.key(k)
+	sw.raw("[")
+	for i, x := range items {
+		if i > 0 {
+			sw.raw(",")
+		}
+		sw.raw("\n    ")
+		sw.value(item(x), "    ")
+	}
+	sw.raw("\n  ]")
 }
 
 // Save writes m to path atomically: it writes a temporary file in the same

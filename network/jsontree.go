@@ -14,8 +14,14 @@ import (
 // jnode is a JSON value with the byte offset where it starts, so that the
 // model reader can say on which line and column each problem is.
 type jnode struct {
-	kind  byte // '{' object, '[' list, '"' text, '0' number, 'b' true/false, 'n' null
-	b     bool
+	kind byte // '{' object, '[' list, '"' text, '0' number, 'b' true/false, 'n' null
+	b    bool
+	// lazy marks a list whose items are not in the tree: str holds its
+	// text (a slice of the document's), read an item at a time by
+	// eachItem. The model reader's long lists (species, reactions, …)
+	// are read so, so that the tree of the whole file is never in memory.
+	lazy  bool
+	count int // the number of items of a lazy list
 	off   int64
 	keys  []string // object keys in file order
 	kOffs []int64  // where each key starts
@@ -70,12 +76,70 @@ func (e *syntaxError) Error() string { return e.msg }
 // bytes; any other is read token by token with encoding/json's decoder,
 // whose errors say what is wrong where.
 func parseJSON(data []byte) (*jnode, error) {
+	return parseJSONText(data, string(data))
+}
+
+// parseJSONText is parseJSON on data whose text is also given as a
+// string: the strings of the tree are then slices of text, with no copy
+// of their own.
+func parseJSONText(data []byte, text string) (*jnode, error) {
 	if json.Valid(data) {
-		f := fastParser{data: data}
+		return parseValid(text), nil
+	}
+	return parseJSONTokens(data)
+}
+
+// parseValid reads text that json.Valid accepted.
+func parseValid(text string) *jnode {
+	f := fastParser{data: text}
+	f.space()
+	return f.value()
+}
+
+// parseModelJSON is parseJSONText for the model reader: on a valid
+// document, the lists that are members of the top-level object are left
+// lazy (see jnode.lazy), to be read an item at a time by eachItem.
+func parseModelJSON(data []byte, text string) (*jnode, error) {
+	if json.Valid(data) {
+		f := fastParser{data: text, lazyLists: true}
 		f.space()
 		return f.value(), nil
 	}
 	return parseJSONTokens(data)
+}
+
+// length returns the number of items of the list n.
+func (n *jnode) length() int {
+	if n.lazy {
+		return n.count
+	}
+	return len(n.items)
+}
+
+// eachItem calls fn with each item of the list n in order, and with its
+// index. The items of a lazy list are read from the document text (of
+// which n.str is a slice) one at a time, into nodes that are reused for
+// the next item: fn must not keep x or any node under it.
+func eachItem(n *jnode, text string, fn func(i int, x *jnode)) {
+	if !n.lazy {
+		for i, x := range n.items {
+			fn(i, x)
+		}
+		return
+	}
+	f := fastParser{data: text, pos: int(n.off) + 1}
+	for i := 0; ; i++ {
+		f.space()
+		if f.data[f.pos] == ']' {
+			return
+		}
+		f.reuse()
+		fn(i, f.value())
+		f.space()
+		if f.data[f.pos] == ',' {
+			f.pos++
+		}
+	}
 }
 
 // parseJSONTokens is parseJSON by encoding/json's tokens.
@@ -188,7 +252,7 @@ func (p *jparser) value(tok json.Token) (*jnode, error) {
 // times faster than encoding/json's Token for files of thousands of
 // items.
 type fastParser struct {
-	data []byte
+	data string
 	pos  int
 	// Members and items are gathered on these stacks and copied into
 	// slices of their exact length when an object or list ends, instead
@@ -198,17 +262,66 @@ type fastParser struct {
 	vals  []*jnode
 	items []*jnode
 	slab  []jnode // nodes are carved from here, a block at a time
+	first []jnode // the first block, which reuse hands out again
+	// lazyLists leaves the lists that are members of the top-level
+	// object unread (jnode.lazy); depth is the nesting of the value
+	// being read (0 at the top).
+	lazyLists bool
+	depth     int
 }
 
 // node returns a new node starting at off.
 func (f *fastParser) node(off int) *jnode {
 	if len(f.slab) == 0 {
 		f.slab = make([]jnode, 256)
+		if f.first == nil {
+			f.first = f.slab
+		}
 	}
 	n := &f.slab[0]
 	f.slab = f.slab[1:]
-	n.off = int64(off)
+	*n = jnode{off: int64(off)}
 	return n
+}
+
+// reuse hands out the nodes of the first block again, and drops the
+// blocks after it: the nodes read so far must no longer be in use.
+func (f *fastParser) reuse() {
+	f.slab = f.first
+}
+
+// skipList moves past the list that starts at f.pos, in a valid
+// document, and returns the number of its items.
+func (f *fastParser) skipList() (items int) {
+	start, depth, commas := f.pos, 0, 0
+	for {
+		switch f.data[f.pos] {
+		case '[', '{':
+			depth++
+		case ']', '}':
+			depth--
+		case ',':
+			if depth == 1 {
+				commas++
+			}
+		case '"':
+			f.pos++
+			for f.data[f.pos] != '"' {
+				if f.data[f.pos] == '\\' {
+					f.pos++
+				}
+				f.pos++
+			}
+		}
+		f.pos++
+		if depth == 0 {
+			break
+		}
+	}
+	if strings.TrimSpace(f.data[start+1:f.pos-1]) == "" {
+		return 0
+	}
+	return commas + 1
 }
 
 func (f *fastParser) space() {
@@ -241,7 +354,17 @@ func (f *fastParser) value() *jnode {
 			f.space()
 			f.pos++ // ':'
 			f.space()
-			v := f.value()
+			var v *jnode
+			if f.lazyLists && f.depth == 0 && f.data[f.pos] == '[' {
+				v = f.node(f.pos)
+				v.kind, v.lazy = '[', true
+				v.count = f.skipList()
+				v.str = f.data[v.off:f.pos]
+			} else {
+				f.depth++
+				v = f.value()
+				f.depth--
+			}
 			f.keys, f.kOffs, f.vals = append(f.keys, k), append(f.kOffs, koff), append(f.vals, v)
 			f.space()
 			c := f.data[f.pos]
@@ -266,7 +389,9 @@ func (f *fastParser) value() *jnode {
 		base := len(f.items)
 		for {
 			f.space()
+			f.depth++
 			v := f.value()
+			f.depth--
 			f.items = append(f.items, v)
 			f.space()
 			c := f.data[f.pos]
@@ -294,14 +419,15 @@ func (f *fastParser) value() *jnode {
 		for f.pos < len(f.data) && strings.IndexByte("+-0123456789.eE", f.data[f.pos]) >= 0 {
 			f.pos++
 		}
-		n.kind, n.str = '0', string(f.data[start:f.pos])
+		n.kind, n.str = '0', f.data[start:f.pos]
 	}
 	return n
 }
 
 // str reads a string at f.pos. One without escapes in valid UTF-8 is
-// taken as it is; others are decoded by encoding/json, so that escapes
-// and invalid bytes read as the token reader reads them.
+// taken as it is, a slice of the text; others are decoded by
+// encoding/json, so that escapes and invalid bytes read as the token
+// reader reads them.
 func (f *fastParser) str() string {
 	start := f.pos
 	f.pos++
@@ -322,9 +448,9 @@ func (f *fastParser) str() string {
 	f.pos++
 	raw := f.data[start:f.pos]
 	if plain {
-		return string(raw[1 : len(raw)-1])
+		return raw[1 : len(raw)-1]
 	}
 	var s string
-	json.Unmarshal(raw, &s) // valid: json.Valid read it
+	json.Unmarshal([]byte(raw), &s) // valid: json.Valid read it
 	return s
 }

@@ -11,7 +11,9 @@ package network
 
 import (
 	"fmt"
+	"slices"
 	"strconv"
+	"strings"
 )
 
 // Format is the value of the "format" key that model files must carry.
@@ -138,33 +140,63 @@ type Reaction struct {
 }
 
 // Rate is a rate law: the law's name and the values of its fields (see
-// Law.Fields). Args holds the parameter and species fields by their keys
-// in model files ("k", "k_reverse", "vmax", "km", "kcat", "enzyme", …);
-// treat it as read-only and change a field with With, so that copies of a
+// Law.Fields). Args holds the parameter and species fields with their
+// keys in model files ("k", "k_reverse", "vmax", "km", "kcat", "enzyme",
+// …), each key once, in the order of the keys (a law has a handful, so a
+// short list costs a fraction of a map); read a field with Arg, treat the
+// list as read-only and change a field with With, so that copies of a
 // Rate never share changes. Expression is the text of the expression law.
 type Rate struct {
 	Law        string
-	Args       map[string]Value
+	Args       []Arg
 	Expression string
 }
 
+// Arg is one field of a rate law: its key in model files and its value.
+type Arg struct {
+	Key   string
+	Value Value
+}
+
 // Arg returns the value of the field key (unset when absent).
-func (r Rate) Arg(key string) Value { return r.Args[key] }
+func (r Rate) Arg(key string) Value {
+	for _, a := range r.Args {
+		if a.Key == key {
+			return a.Value
+		}
+	}
+	return Value{}
+}
 
 // With returns a copy of r whose field key holds v (an unset v removes
 // it). r itself is not changed.
 func (r Rate) With(key string, v Value) Rate {
-	args := make(map[string]Value, len(r.Args)+1)
-	for k, x := range r.Args {
-		args[k] = x
+	args := make([]Arg, 0, len(r.Args)+1)
+	for _, a := range r.Args {
+		if a.Key != key {
+			args = append(args, a)
+		}
 	}
 	if v.Set {
-		args[key] = v
-	} else {
-		delete(args, key)
+		args = insertArg(args, key, v)
+	}
+	if len(args) == 0 {
+		args = nil
 	}
 	r.Args = args
 	return r
+}
+
+// insertArg sets the field key of the list args, which is in the order of
+// the keys, to v: in place when the key is there, else inserted where
+// the order puts it.
+func insertArg(args []Arg, key string, v Value) []Arg {
+	i, found := slices.BinarySearchFunc(args, key, func(a Arg, k string) int { return strings.Compare(a.Key, k) })
+	if found {
+		args[i].Value = v
+		return args
+	}
+	return slices.Insert(args, i, Arg{key, v})
 }
 
 // Equal reports whether r and o are the same law with the same fields.
@@ -172,8 +204,8 @@ func (r Rate) Equal(o Rate) bool {
 	if r.Law != o.Law || r.Expression != o.Expression || len(r.Args) != len(o.Args) {
 		return false
 	}
-	for k, v := range r.Args {
-		if w, ok := o.Args[k]; !ok || w != v {
+	for _, a := range r.Args {
+		if w := o.Arg(a.Key); w != a.Value {
 			return false
 		}
 	}
@@ -188,7 +220,7 @@ func NewRate(law string, kv ...any) Rate {
 	if len(kv)%2 != 0 {
 		panic("network.NewRate: odd number of key/value arguments")
 	}
-	r := Rate{Law: law, Args: map[string]Value{}}
+	r := Rate{Law: law}
 	for i := 0; i < len(kv); i += 2 {
 		k, ok := kv[i].(string)
 		if !ok {
@@ -197,14 +229,14 @@ func NewRate(law string, kv ...any) Rate {
 		switch v := kv[i+1].(type) {
 		case Value:
 			if v.Set {
-				r.Args[k] = v
+				r.Args = insertArg(r.Args, k, v)
 			}
 		case string:
-			r.Args[k] = Named(v)
+			r.Args = insertArg(r.Args, k, Named(v))
 		case float64:
-			r.Args[k] = Number(v)
+			r.Args = insertArg(r.Args, k, Number(v))
 		case int:
-			r.Args[k] = Number(float64(v))
+			r.Args = insertArg(r.Args, k, Number(float64(v)))
 		default:
 			panic(fmt.Sprintf("network.NewRate: value %v of %q is not a Value, name or number", v, k))
 		}
@@ -322,9 +354,7 @@ func (m *Model) Clone() *Model {
 	c.Parameters = append([]Parameter(nil), m.Parameters...)
 	c.Reactions = append([]Reaction(nil), m.Reactions...)
 	for i := range c.Reactions {
-		if c.Reactions[i].Rate.Args != nil {
-			c.Reactions[i].Rate = c.Reactions[i].Rate.With("", Value{}) // a map of its own
-		}
+		c.Reactions[i].Rate.Args = slices.Clone(c.Reactions[i].Rate.Args) // a list of its own
 	}
 	c.Assignments = append([]Assignment(nil), m.Assignments...)
 	c.Events = append([]Event(nil), m.Events...)

@@ -1,6 +1,7 @@
 package network
 
 import (
+	"slices"
 	"sort"
 
 	"gonum.org/v1/gonum/mat"
@@ -20,7 +21,17 @@ func (s *System) ParamDim() int { return len(s.parNames) + len(s.volumes) }
 // volume entries.
 func (s *System) buildParamPattern() {
 	np := len(s.parNames)
-	var major, minor []int // column (parameter or volume), row (species)
+	pairs, entries := 0, 0 // counted first, so that the lists are made at their size
+	for _, r := range s.rx {
+		for c := r.c0; c < r.c1; c++ {
+			pairs += r.p1 - r.p0
+			if s.spComp[s.cSp[c]] != r.comp {
+				entries += 2
+			}
+		}
+	}
+	// column (parameter or volume), row (species)
+	major, minor := make([]int, 0, pairs+entries), make([]int, 0, pairs+entries)
 	for _, r := range s.rx {
 		for c := r.c0; c < r.c1; c++ {
 			i := s.cSp[c]
@@ -38,7 +49,7 @@ func (s *System) buildParamPattern() {
 		rows := s.pRowIdx[s.pColPtr[j]:s.pColPtr[j+1]]
 		return s.pColPtr[j] + sort.SearchInts(rows, i)
 	}
-	s.ppos = s.ppos[:0]
+	s.ppos = slices.Grow(s.ppos[:0], pairs)
 	s.vpos = make([]int, 2*len(s.cSp))
 	for ri := range s.rx {
 		r := &s.rx[ri]

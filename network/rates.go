@@ -117,7 +117,8 @@ func (net *Net) stateParameters() []int {
 // parameter carried in the state; such a reaction is compiled through its
 // expression, so that its Jacobian follows the parameter.
 func (b *builder) readsStateParameter(cr *CheckedReaction) bool {
-	for _, v := range cr.Rate.Args {
+	for _, a := range cr.Rate.Args {
+		v := a.Value
 		if v.Name == "" {
 			continue
 		}

@@ -3,6 +3,7 @@ package network_test
 import (
 	"bytes"
 	"fmt"
+	"io"
 	"math"
 	"math/rand/v2"
 	"runtime"
@@ -23,7 +24,8 @@ func allocated(f func()) uint64 {
 }
 
 // pipeline reads the model file, checks, compiles and finds the
-// conservation laws, as the stages of a run do.
+// conservation laws, as the stages of a run do, and writes the model
+// again, as the provenance of a result does (into its hash).
 func pipeline(tb testing.TB, data []byte, laws func(*network.Net) []network.ConservationLaw) func() {
 	return func() {
 		m, err := network.Read(bytes.NewReader(data), "gen.json")
@@ -40,11 +42,14 @@ func pipeline(tb testing.TB, data []byte, laws func(*network.Net) []network.Cons
 		if len(laws(net)) == 0 {
 			tb.Fatal("no conservation laws")
 		}
+		if err := m.Write(io.Discard); err != nil {
+			tb.Fatal(err)
+		}
 	}
 }
 
 // perSpecies returns the bytes per species that reading, checking,
-// compiling and the conservation laws of gen(n) allocate.
+// compiling, the conservation laws and writing of gen(n) allocate.
 func perSpecies(tb testing.TB, gen func(int) *network.Model, n int, laws func(*network.Net) []network.ConservationLaw) float64 {
 	data := modelFile(tb, gen(n))
 	return float64(allocated(pipeline(tb, data, laws))) / float64(n)

@@ -245,8 +245,14 @@ func (net *Net) Compile() (*System, error) {
 	}
 	m := net.Model
 	statePars := net.stateParameters()
-	s := &System{n: len(m.Species) + len(statePars), nSpecies: len(m.Species),
-		parIx: make(map[string]int, len(m.Parameters)), spIx: make(map[string]int, len(m.Species)+len(statePars))}
+	// A network without errors names each parameter and species once, so
+	// the Net's maps of their places are the System's (read-only from
+	// here on); the species map is made anew when parameters join the
+	// state.
+	s := &System{n: len(m.Species) + len(statePars), nSpecies: len(m.Species), parIx: net.paramIx, spIx: net.speciesIx}
+	if len(statePars) > 0 {
+		s.spIx = make(map[string]int, len(m.Species)+len(statePars))
+	}
 	// Sized once: a large network would otherwise copy each list many
 	// times as it grows.
 	s.names = make([]string, 0, s.n)
@@ -256,6 +262,14 @@ func (net *Net) Compile() (*System, error) {
 	s.parNames = make([]string, 0, len(m.Parameters))
 	s.rxNames = make([]string, 0, len(net.Reactions))
 	s.rx = make([]rxn, 0, len(net.Reactions)+len(net.Rates))
+	// The terms and contributions are at most one per species named by
+	// an equation: lists of that length do not grow by copies.
+	nterms := 0
+	for i := range net.Reactions {
+		nterms += len(net.Reactions[i].Equation.Reactants) + len(net.Reactions[i].Equation.Products)
+	}
+	s.terms = make([]term, 0, nterms)
+	s.cSp, s.cNet = make([]int, 0, nterms), make([]float64, 0, nterms)
 	b := &builder{s: s, net: net}
 	n := s.n
 	compIx := map[string]int{}
@@ -285,7 +299,9 @@ func (net *Net) Compile() (*System, error) {
 		s.initial = append(s.initial, sp.Initial)
 		s.fixed = append(s.fixed, sp.Fixed)
 		s.spComp = append(s.spComp, compIx[sp.Compartment]) // "" gives 0, the first
-		s.spIx[sp.Name] = i
+		if len(statePars) > 0 {
+			s.spIx[sp.Name] = i
+		}
 	}
 	s.parState = make([]int, len(m.Parameters))
 	for i := range s.parState {
@@ -309,7 +325,6 @@ func (net *Net) Compile() (*System, error) {
 	s.vars = make([]float64, n+len(m.Parameters)+1)
 	for i, p := range m.Parameters {
 		s.parNames = append(s.parNames, p.Name)
-		s.parIx[p.Name] = i
 		s.vars[n+i] = p.Value
 	}
 	var order []int
@@ -398,7 +413,11 @@ func (s *System) updateScales() {
 // buildPattern builds the CSR pattern of the Jacobian (every diagonal entry
 // included) and the position of each (contribution, dependency) pair.
 func (s *System) buildPattern() {
-	var major, minor []int
+	pairs := 0 // counted first, so that the lists are made at their size
+	for _, r := range s.rx {
+		pairs += (r.c1 - r.c0) * (r.d1 - r.d0)
+	}
+	major, minor := make([]int, 0, pairs), make([]int, 0, pairs)
 	for _, r := range s.rx {
 		for c := r.c0; c < r.c1; c++ {
 			for d := r.d0; d < r.d1; d++ {
@@ -408,7 +427,7 @@ func (s *System) buildPattern() {
 		}
 	}
 	s.rowPtr, s.colIdx = compressed(s.n, major, minor, true)
-	s.jpos = s.jpos[:0]
+	s.jpos = slices.Grow(s.jpos[:0], pairs)
 	for ri := range s.rx {
 		r := &s.rx[ri]
 		r.j0 = len(s.jpos)

@@ -203,7 +203,14 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 		return badInput(err)
 	}
 	sim := m.Simulation.WithDefaults()
-	saved := m.Clone() // the model as saved, before the flags change its settings
+	// The model as saved, before the flags change its settings: the
+	// provenance is taken from m before they do, and a copy is kept only
+	// for the sensitivities (a large model's copy would be held
+	// through the whole run).
+	var saved *network.Model
+	if f.sens != "" {
+		saved = m.Clone()
+	}
 	if f.set["t-end"] {
 		sim.TEnd = f.tEnd
 	}
@@ -246,11 +253,11 @@ func simulate(ctx context.Context, f *simFlags, stdout, stderr io.Writer) error 
 			measured = append(measured, plotting.Measured{T: p.Time, Y: p.Value, SD: p.SD, Name: p.Name})
 		}
 	}
-	m.Simulation = sim
-	prov, err := run.NewProvenance("simulation", saved, sim, nil)
+	prov, err := run.NewProvenance("simulation", m, sim, nil)
 	if err != nil {
 		return badInput(fmt.Errorf("%s: %w", f.model, err))
 	}
+	m.Simulation = sim
 	var net *network.Net
 	err = rec.Do("check", func() error {
 		var probs network.ErrorList

@@ -93,12 +93,11 @@ type Change struct {
 
 // ModelSHA256 returns the SHA-256, in hex, of m as saved.
 func ModelSHA256(m *network.Model) (string, error) {
-	var buf bytes.Buffer
-	if err := m.Write(&buf); err != nil {
+	h := sha256.New()
+	if err := m.Write(h); err != nil { // straight into the hash
 		return "", err
 	}
-	sum := sha256.Sum256(buf.Bytes())
-	return hex.EncodeToString(sum[:]), nil
+	return hex.EncodeToString(h.Sum(nil)), nil
 }
 
 // NewProvenance describes a result of kind what computed from model m (as

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sync"
 )
 
 type opcode uint8
@@ -140,14 +141,28 @@ func Compile(n Node, slot func(name string) (int, bool)) (*Program, error) {
 	if !wellFormed(n) {
 		return nil, fmt.Errorf("compile: %w", check(n, false)[0])
 	}
-	c := &compiler{slot: slot, refs: newMemo[int](), temps: newMemo[uint32]()}
+	// The code is written into a reused buffer and copied out at its
+	// length: a model compiles thousands of short programs (a rate and
+	// its derivatives for each reaction), which would otherwise each
+	// grow their code by copies and keep the spare capacity.
+	buf := codeBuffers.Get().(*[]instr)
+	defer func() {
+		*buf = (*buf)[:0]
+		codeBuffers.Put(buf)
+	}()
+	c := &compiler{slot: slot, refs: newMemo[int](), temps: newMemo[uint32](), code: (*buf)[:0]}
 	n = simplify(n)
 	countRefs(n, c.refs)
-	if err := c.emit(n); err != nil {
+	err := c.emit(n)
+	*buf = c.code // keep the grown buffer for the next program
+	if err != nil {
 		return nil, err
 	}
-	return &Program{code: c.code, stack: make([]float64, c.maxDepth), temps: make([]float64, c.temps.len()), slots: c.slots}, nil
+	return &Program{code: slices.Clone(c.code), stack: make([]float64, c.maxDepth), temps: make([]float64, c.temps.len()), slots: c.slots}, nil
 }
+
+// codeBuffers holds the buffers Compile writes code into (*[]instr).
+var codeBuffers = sync.Pool{New: func() any { return new([]instr) }}
 
 // Clone returns a copy of p with its own scratch space, for use by another
 // goroutine.
@@ -601,7 +616,8 @@ type productForm struct {
 // is moved first, which changes no result since multiplication commutes
 // exactly, and B^2 is B*B as in emitPowConst.
 func (c *compiler) product(n Node) (productForm, error) {
-	var fs []Node // factors, last first
+	var buf [5]Node
+	fs := buf[:0] // factors, last first; at most 4 before it gives up
 	for {
 		b, isMul := n.(*Binary)
 		if !isMul || b.Op != OpMul {
