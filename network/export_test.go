@@ -61,14 +61,7 @@ func WholeDocument(m *Model) ([]byte, error) {
 	for _, r := range m.Rates {
 		f.Rates = append(f.Rates, fileRateRule(r))
 	}
-	s := m.Simulation
-	fs := fileSimulation{TEnd: s.TEnd, RTol: s.RTol, ATol: s.ATol, Method: s.Method, NonNegative: s.NonNegative}
-	if s.Output != (Output{}) {
-		fs.Output = &fileOutput{Points: s.Output.Points, Spacing: s.Output.Spacing, First: s.Output.First}
-	}
-	if s.Display != (Display{}) {
-		fs.Display = &fileDisplay{Time: s.Display.Time, Concentration: s.Display.Concentration}
-	}
+	fs := fileSimulationOf(m.Simulation)
 	if fs != (fileSimulation{}) {
 		f.Simulation = &fs
 	}

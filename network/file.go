@@ -777,14 +777,7 @@ func (m *Model) write(w io.Writer) error {
 			Add: e.Add, Set: e.Set, Infuse: e.Infuse}
 	})
 	list(sw, "rates", m.Rates, true, func(r RateRule) any { return fileRateRule(r) })
-	s := m.Simulation
-	fs := fileSimulation{TEnd: s.TEnd, RTol: s.RTol, ATol: s.ATol, Method: s.Method, NonNegative: s.NonNegative}
-	if s.Output != (Output{}) {
-		fs.Output = &fileOutput{Points: s.Output.Points, Spacing: s.Output.Spacing, First: s.Output.First}
-	}
-	if s.Display != (Display{}) {
-		fs.Display = &fileDisplay{Time: s.Display.Time, Concentration: s.Display.Concentration}
-	}
+	fs := fileSimulationOf(m.Simulation)
 	sw.field("simulation", &fs, fs == (fileSimulation{}))
 	l := layoutForFile(m.Layout)
 	sw.field("layout", l, l == nil)
@@ -874,4 +867,16 @@ func (m *Model) Save(path string) error {
 		return fmt.Errorf("saving %s: %w", path, err)
 	}
 	return atomicfile.Write(path, buf.Bytes())
+}
+
+// fileSimulationOf is the file form of a model's simulation settings.
+func fileSimulationOf(s Simulation) fileSimulation {
+	fs := fileSimulation{TEnd: s.TEnd, RTol: s.RTol, ATol: s.ATol, Method: s.Method, NonNegative: s.NonNegative}
+	if s.Output != (Output{}) {
+		fs.Output = &fileOutput{Points: s.Output.Points, Spacing: s.Output.Spacing, First: s.Output.First}
+	}
+	if s.Display != (Display{}) {
+		fs.Display = &fileDisplay{Time: s.Display.Time, Concentration: s.Display.Concentration}
+	}
+	return fs
 }
