@@ -93,13 +93,16 @@ func prod(ts []term, y []float64) float64 {
 }
 
 func (s *System) massActionRate(r *rxn, y []float64) float64 {
+	terms := s.terms
 	f := s.get(r.k)
-	for _, tm := range s.terms[r.f0:r.f1] {
+	for i := r.f0; i < r.f1; i++ {
+		tm := &terms[i]
 		f *= pw(y[tm.sp], tm.coef)
 	}
 	if r.reversible {
 		b := s.get(r.kr)
-		for _, tm := range s.terms[r.b0:r.b1] {
+		for i := r.b0; i < r.b1; i++ {
+			tm := &terms[i]
 			b *= pw(y[tm.sp], tm.coef)
 		}
 		f -= b

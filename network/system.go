@@ -448,11 +448,18 @@ func (s *System) get(v val) float64 {
 	return v.c
 }
 
-// pw returns x^c with fast paths for small whole c.
+// pw returns x^c with fast paths for small whole c. The first power,
+// by far the most common in mass action, is tested here so that pw
+// inlines into the rate loops; the others go through pwOther.
 func pw(x, c float64) float64 {
-	switch c {
-	case 1:
+	if c == 1 {
 		return x
+	}
+	return pwOther(x, c)
+}
+
+func pwOther(x, c float64) float64 {
+	switch c {
 	case 2:
 		return x * x
 	case 3:
@@ -546,14 +553,17 @@ func (s *System) Dim() int { return s.n }
 // RHS writes the time derivatives of the concentrations at (t, y) into dydt.
 func (s *System) RHS(t float64, y, dydt []float64) {
 	s.load(t, y)
-	for i := range dydt[:s.n] {
-		dydt[i] = 0
-	}
+	dydt = dydt[:s.n]
+	clear(dydt)
+	// Locals, so that the stores into dydt do not make the loop reload
+	// the System's slices.
+	cSp, cScale := s.cSp, s.cScale
+	cScale = cScale[:len(cSp)]
 	for ri := range s.rx {
 		r := &s.rx[ri]
 		v := s.rate(r, y)
 		for c := r.c0; c < r.c1; c++ {
-			dydt[s.cSp[c]] += s.cScale[c] * v
+			dydt[cSp[c]] += cScale[c] * v
 		}
 	}
 	if s.infusing > 0 {
