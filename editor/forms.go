@@ -314,6 +314,13 @@ func newReactionForm(ed *Editor) *reactionForm {
 
 	f.box.Add(f.addParamRow)
 
+	// The note, the last field a user types in, comes before the
+	// read-only preview and unit hint, so that it stays in view in a
+	// short form pane.
+	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &r(m, i).Note })
+	f.addField("Note", "note", note)
+	f.loads = append(f.loads, load)
+
 	f.preview = widget.NewLabel("")
 	f.preview.Wrapping = fyne.TextWrapWord
 	f.preview.TextStyle = fyne.TextStyle{Italic: true}
@@ -323,10 +330,6 @@ func newReactionForm(ed *Editor) *reactionForm {
 	f.units.Wrapping = fyne.TextWrapWord
 	f.units.Importance = widget.LowImportance
 	f.unitsField = f.addField("Expected units", "rate.units", f.units)
-
-	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &r(m, i).Note })
-	f.addField("Note", "note", note)
-	f.loads = append(f.loads, load)
 	return f
 }
 
