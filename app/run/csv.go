@@ -75,7 +75,8 @@ func WriteCSV(w io.Writer, o *Outcome) error {
 }
 
 // SaveCSV writes the rows of o to path atomically and, when prov is not
-// nil, its provenance beside it (see SaveProvenance). The rows go to the
+// nil, its provenance beside it (see SaveProvenance), with the methods the
+// solve used and, for the automatic choice, why. The rows go to the
 // file as they are written, so the table of text is never held whole.
 func SaveCSV(path string, o *Outcome, prov *Provenance) error {
 	f, err := atomicfile.Create(path)
@@ -92,5 +93,5 @@ func SaveCSV(path string, o *Outcome, prov *Provenance) error {
 	if prov == nil {
 		return nil
 	}
-	return SaveProvenance(path, prov)
+	return SaveProvenance(path, prov.withMethods(o.Stats))
 }

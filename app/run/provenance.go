@@ -15,6 +15,7 @@ import (
 	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/plotting"
+	"kinetarium/solve"
 )
 
 // Program names the program in the files it writes.
@@ -74,6 +75,27 @@ type Solver struct {
 	ATol        float64 `json:"atol"`
 	Method      string  `json:"method"`
 	NonNegative bool    `json:"non_negative"`
+	// Used lists the methods the solve used, in order (the automatic
+	// choice may switch), and Choice gives the automatic choice's reason;
+	// both are empty before a solve.
+	Used   []string `json:"used,omitempty"`
+	Choice string   `json:"choice,omitempty"`
+}
+
+// withMethods returns a copy of p whose solver settings name the methods
+// st reports and the automatic choice's reason (p itself when st names
+// none).
+func (p *Provenance) withMethods(st solve.Stats) *Provenance {
+	if len(st.Methods) == 0 {
+		return p
+	}
+	q := *p
+	q.Solver.Used = nil
+	for _, m := range st.Methods {
+		q.Solver.Used = append(q.Solver.Used, string(m))
+	}
+	q.Solver.Choice = st.Choice
+	return &q
 }
 
 // ShownIn is the display units of a result: empty fields are the

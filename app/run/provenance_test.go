@@ -87,8 +87,13 @@ func TestProvenanceCompanionRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(got, prov) {
-		t.Errorf("provenance read back as %+v, want %+v", got, prov)
+	// It names the methods used and why auto chose them.
+	want := prov.withMethods(o.Stats)
+	if !reflect.DeepEqual(got, want) {
+		t.Errorf("provenance read back as %+v, want %+v", got, want)
+	}
+	if len(got.Solver.Used) == 0 || got.Solver.Used[0] != string(o.Stats.Methods[0]) || got.Solver.Choice == "" {
+		t.Errorf("provenance solver %+v does not name the method used (%v) and the choice", got.Solver, o.Stats.Methods)
 	}
 	if got.Program != Program || got.ModelTitle != m.Title || got.Solver.RTol != m.Simulation.WithDefaults().RTol {
 		t.Errorf("provenance %+v lacks the program, title or settings", got)
