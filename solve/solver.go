@@ -256,7 +256,6 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 		return out.result(sv, start), err
 	}
 
-	land := out.fixed && sv.landsOnOutputs(st)
 	stops := set.StopTimes
 	for len(stops) > 0 && stops[0] <= t0 {
 		stops = stops[1:]
@@ -294,7 +293,7 @@ func (sv *Solver) Solve(ctx context.Context, t0, tEnd float64, y0 []float64) (*R
 		if atStop {
 			tLimit = stops[0]
 		}
-		if land && out.k < len(out.times) {
+		if out.fixed && out.k < len(out.times) && sv.landsOnOutputs(st) {
 			// Step onto the next output time rather than interpolate
 			// (landsOnOutputs); the stepper goes on without a restart.
 			if to := out.times[out.k]; to > t && to < tLimit {
