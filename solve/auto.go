@@ -59,19 +59,15 @@ func (sv *Solver) choose(t0, tEnd float64, y0 []float64) (stepper, error) {
 			sv.set.Method, Rosenbrock, Radau, BDF, Explicit)
 	}
 	if sv.n >= autoBDFSize {
-		if sv.radau != nil && sv.sparseRadau() {
+		// alloc built Radau IIA for a sparse system and BDF otherwise.
+		if sv.sparseRadau() {
 			st.Methods = append(st.Methods, Radau)
 			st.Choice = fmt.Sprintf("Radau IIA (order 5): %d state variables with a sparse Jacobian, where it keeps the error near the tolerance and BDF's grows with the size", sv.n)
 			return sv.radau, nil
 		}
-		if sv.bdf != nil {
-			st.Methods = append(st.Methods, BDF)
-			st.Choice = fmt.Sprintf("BDF: %d state variables, so the method that reuses its matrix factorization longest", sv.n)
-			return sv.bdf, nil
-		}
-		st.Methods = append(st.Methods, Rosenbrock)
-		st.Choice = fmt.Sprintf("Rosenbrock (RODAS4): %d state variables (BDF is not available)", sv.n)
-		return sv.ros, nil
+		st.Methods = append(st.Methods, BDF)
+		st.Choice = fmt.Sprintf("BDF: %d state variables, so the method that reuses its matrix factorization longest", sv.n)
+		return sv.bdf, nil
 	}
 	if sv.p.sens != nil {
 		s, m, why := sv.stiffStepper()
@@ -111,7 +107,7 @@ const autoRadauRTol = 1e-9
 // autoRadauSize). RODAS4 is the fallback when neither is built in.
 func (sv *Solver) stiffStepper() (stepper, Method, string) {
 	switch {
-	case sv.radau != nil && sv.sparseRadau():
+	case sv.sparseRadau():
 		return sv.radau, Radau, fmt.Sprintf("a network of %d state variables with a sparse Jacobian, where Radau IIA keeps the error near the tolerance and BDF's grows with the size", sv.n)
 	case sv.p.rtol < autoRadauRTol && sv.radau != nil:
 		return sv.radau, Radau, fmt.Sprintf("the tolerance (rtol %.0e) is tight, where the order-5 method is the most efficient", sv.p.rtol)
