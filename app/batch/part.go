@@ -116,15 +116,11 @@ func decodePart(dec *json.Decoder, sp *explore.Spill) (*partFile, *explore.Resul
 // path (the decoder's position, or the syntax error's own).
 func partError(path string, off int64, err error) error {
 	msg := strings.TrimPrefix(err.Error(), "json: ")
-	var se *json.SyntaxError
-	var te *json.UnmarshalTypeError
-	switch {
-	case errors.As(err, &se):
-		off = se.Offset
-	case errors.As(err, &te):
-		off = te.Offset
-	case errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF):
-		msg = "the file ends too early (truncated?): an object or list is not closed"
+	switch at, placed, eof := jsonErrorOffset(err); {
+	case placed:
+		off = at
+	case eof:
+		msg = truncatedJSON
 	}
 	line, col := 1, 1
 	if f, ferr := os.Open(path); ferr == nil {

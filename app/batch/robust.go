@@ -45,20 +45,34 @@ func readInput(path string, limit int64) ([]byte, error) {
 	return data, nil
 }
 
+// truncatedJSON is the message for a JSON file that ends too early.
+const truncatedJSON = "the file ends too early (truncated?): an object or list is not closed"
+
+// jsonErrorOffset returns the byte offset a JSON decoding error names
+// (placed, for syntax and type errors), or reports that the input ended
+// too early (eof).
+func jsonErrorOffset(err error) (off int64, placed, eof bool) {
+	var se *json.SyntaxError
+	var te *json.UnmarshalTypeError
+	switch {
+	case errors.As(err, &se):
+		return se.Offset, true, false
+	case errors.As(err, &te):
+		return te.Offset, true, false
+	case errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF):
+		return 0, false, true
+	}
+	return 0, false, false
+}
+
 // jsonAt returns the line and column of a JSON decoding error in data, and
 // whether the error has a place.
 func jsonAt(data []byte, err error) (line, col int, ok bool) {
-	var se *json.SyntaxError
-	var te *json.UnmarshalTypeError
-	var off int64
+	off, placed, eof := jsonErrorOffset(err)
 	switch {
-	case errors.As(err, &se):
-		off = se.Offset
-	case errors.As(err, &te):
-		off = te.Offset
-	case errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF):
+	case eof:
 		off = int64(len(data))
-	default:
+	case !placed:
 		return 0, 0, false
 	}
 	off = max(0, min(off, int64(len(data))))
@@ -72,7 +86,7 @@ func jsonAt(data []byte, err error) (line, col int, ok bool) {
 func jsonError(path string, data []byte, err error) error {
 	msg := strings.TrimPrefix(err.Error(), "json: ")
 	if msg == "unexpected end of JSON input" || errors.Is(err, io.ErrUnexpectedEOF) {
-		msg = "the file ends too early (truncated?): an object or list is not closed"
+		msg = truncatedJSON
 	}
 	if line, col, ok := jsonAt(data, err); ok {
 		return fmt.Errorf("%s:%d:%d: %s", path, line, col, msg)
