@@ -89,28 +89,24 @@ func (sv *Solver) choose(t0, tEnd float64, y0 []float64) (stepper, error) {
 	return sv.dp, nil
 }
 
-// autoRadauRTol is the relative tolerance below which Auto's stiff method
-// is Radau IIA rather than BDF.
-const autoRadauRTol = 1e-9
-
 // stiffStepper is Auto's stiff method for systems below autoBDFSize, with
 // the reason for the choice.
 //
 // Measured on HIRES and POLLU (internal/workprecision, and the CVODE
-// comparison in bench/cvode-comparison.md): at rtol 1e-6 to 1e-8 the
+// comparison in bench/cvode-comparison.md): from rtol 1e-4 to 1e-10 the
 // calibrated variable-order BDF reaches the Test Set's reference to a
-// scaled error of 0.1–2.7 with 48–94 LU factorizations, and in the least
-// wall time of our methods. At tighter tolerances its error grows (49 on
-// HIRES at 1e-10) while Radau IIA stays within 10 of the tolerance, so
-// Radau takes over there. On sparse networks of autoRadauSize species or
-// more Radau IIA is the stiff method at every tolerance (see
+// scaled error of at most 7.6, and at 1e-11 and 1e-12 to 0.4–15 where
+// Radau IIA measures 13–24 (bench/bdf-tight-tolerance.md). At equal
+// accuracy Radau IIA costs 0.9–1.2 times BDF's instructions at the tight
+// end, and between steps its solution is of order 3 only, so BDF is the
+// stiff method at every tolerance (Radau IIA took over below rtol 1e-9
+// while BDF's error there was 12–66). On sparse networks of
+// autoRadauSize species or more Radau IIA is the stiff method (see
 // autoRadauSize). RODAS4 is the fallback when neither is built in.
 func (sv *Solver) stiffStepper() (stepper, Method, string) {
 	switch {
 	case sv.sparseRadau():
 		return sv.radau, Radau, fmt.Sprintf("a network of %d state variables with a sparse Jacobian, where Radau IIA keeps the error near the tolerance and BDF's grows with the size", sv.n)
-	case sv.p.rtol < autoRadauRTol && sv.radau != nil:
-		return sv.radau, Radau, fmt.Sprintf("the tolerance (rtol %.0e) is tight, where the order-5 method is the most efficient", sv.p.rtol)
 	case sv.bdf != nil:
 		return sv.bdf, BDF, "variable-order BDF reuses one factorization over many steps"
 	case sv.radau != nil:

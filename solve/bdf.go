@@ -39,36 +39,50 @@ const (
 // order over a higher one by the larger bias, and keeps h and the order
 // unless the step can grow by a worthwhile factor (a step that must shrink
 // is shrunk at once), which saves refactorizations.
+//
+// The simplified Newton iteration's error adds up the same way: it is left
+// on the same side step after step, so its tolerance must be a small part
+// of the error the controller aims at, not of the error test's bound.
 type bdfControl struct {
 	biasDown, biasSame, biasUp float64 // multiply the estimates at orders k−1, k, k+1
 	keepAbove, growMin         float64 // a proposed factor in [keepAbove, growMin) keeps h and the order
 	safety                     float64 // multiplies every proposed factor
 	newtonSafety               bool    // scale safety by (2m+1)/(2m+iterations), m = Newton's maximum (SciPy)
 	recheck                    bool    // after keeping h, propose again after the next step, not k+1 steps later
+	// newtonTol is where Newton stops: its estimated remaining error, in
+	// the error test's weighted norm (the error test accepts up to 1).
+	newtonTol float64
 }
 
-// bdfCalibrated is the controller newBDF uses: biases 5, 5 and 8, h kept
-// unless it can grow by 1.5 or must shrink, on top of SciPy's safety
-// factors. Chosen among about 30 variants of these constants on the
-// work-precision problems (HIRES, POLLU, the 50-species cascade, the
-// 200-species network; rtol 1e-4 to 1e-10, internal/workprecision) as the
-// cheapest whose end-time scaled error stayed within 10 from rtol 1e-4 to
-// 1e-8 on all four (at most 7.3, against 60 for bdfUnbiased), with 40%
-// fewer factorizations and 5–8% more wall time than bdfUnbiased at equal
-// accuracy (the geometric mean over rtol; ±5% is the noise). CVODE's
-// biases 6, 6 and 10 gave errors at most 5.1 but cost 15–25% more wall
-// time at equal accuracy. README's Solvers section has the numbers;
-// TestBDFCalibration in internal/workprecision guards the bound. The
-// biases were 4, 4 and 6 until the sparse LU's rounding left the
-// 200-species network at 9.7–11 at rtol 1e-8; 5, 5 and 8 measure 7–9 there
-// for 5% more steps.
-var bdfCalibrated = bdfControl{biasDown: 5, biasSame: 5, biasUp: 8, keepAbove: 1, growMin: 1.5, safety: 0.9, newtonSafety: true, recheck: true}
+// bdfCalibrated is the controller newBDF uses: biases 20, 20 and 32, h
+// kept unless it can grow by 1.5 or must shrink, Newton stopped at 0.003
+// of the error test's bound, on top of SciPy's safety factors.
+//
+// Chosen on the work-precision problems (HIRES, POLLU, the 50-species
+// cascade, the 200-species network; rtol 1e-4 to 1e-10 four to a decade,
+// internal/workprecision; bench/bdf-tight-tolerance.md) among 40 variants
+// of biases 5·{1,2,3,4,6,8}, Newton tolerances 0.03, 0.01, 0.003 and 0.001,
+// growth 1.2, 1.3 and 1.5 and the shape of the biases. Its end-time
+// scaled error stays within 7.3 on all four at every tolerance, and within
+// 3.5 over the networks' 200 output times (bdfUnbiased: up to 191 and 80;
+// biases 5, 5, 8 with Newton at 0.03, the calibration before: up to 66 on
+// HIRES at 1e-10 and 12 over the run). Neither half does it alone: biases
+// 30, 30, 48 with Newton at 0.03 left 20 on HIRES at 1e-10, Newton at
+// 0.0003 with biases 5, 5, 8 left 28. At equal accuracy it costs 0.97,
+// 1.12, 1.08 and 1.06 times bdfUnbiased's instructions (callgrind; a
+// straight line fitted to each controller's 13 points): a uniform bias is
+// a tighter tolerance in disguise, so only its side effects (more Newton
+// iterations, fewer factorizations) can change the cost at equal accuracy.
+// TestBDFCalibration in internal/workprecision and TestBDFTestset guard
+// the bound.
+var bdfCalibrated = bdfControl{biasDown: 20, biasSame: 20, biasUp: 32, keepAbove: 1, growMin: 1.5, safety: 0.9, newtonSafety: true, recheck: true, newtonTol: 0.003}
 
 // bdfUnbiased is the controller of SciPy's BDF, which aims at the
 // tolerance with safety 0.9 and resizes whenever the controller proposes
 // it; it is what newBDF used before the calibration, kept for comparison
-// (TestBDFControllers).
-var bdfUnbiased = bdfControl{biasDown: 1, biasSame: 1, biasUp: 1, keepAbove: 1, growMin: 1, safety: 0.9, newtonSafety: true}
+// (TestBDFControllers). Its Newton tolerance is 0.03 (SciPy's is
+// min(0.03, √rtol), from memory), as it was then.
+var bdfUnbiased = bdfControl{biasDown: 1, biasSame: 1, biasUp: 1, keepAbove: 1, growMin: 1, safety: 0.9, newtonSafety: true, newtonTol: 0.03}
 
 // bdfKappa are the κ of the numerical differentiation formulas (NDF) of
 // Shampine & Reichelt (1997), Table 1; κ = 0 gives the classical BDF.
@@ -159,11 +173,9 @@ func newBDFKappa(p *problem, kappa [bdfMaxOrder + 1]float64, ctl bdfControl) *bd
 	b.f, b.dy, b.scale, b.clip = vec(), vec(), vec(), vec()
 	b.jac = p.newJacobian()
 	b.lu = p.newIterMatrix()
-	// Newton stops when its estimated remaining error is 3% of the
-	// error-test tolerance. SciPy asks for min(0.03, √rtol); the looser
-	// 0.03 needed 22% fewer RHS and 68% fewer Jacobians on HIRES at rtol
-	// 1e-8 with the same accuracy (measured).
-	b.newtTol = math.Max(10*eps/p.rtol, 0.03)
+	// Newton stops when its estimated remaining error is ctl.newtonTol of
+	// the error test's bound, or where rounding allows no less.
+	b.newtTol = math.Max(10*eps/p.rtol, ctl.newtonTol)
 	for it := 1; it <= bdfNewtonMaxIt; it++ {
 		safety := ctl.safety
 		if ctl.newtonSafety {

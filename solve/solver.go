@@ -99,7 +99,7 @@ func (sv *Solver) alloc(sys System) {
 			sv.ros = newRosenbrock(sv.p) // its Jacobian is the work space of the stiffness test
 			sv.dp = newDopri(sv.p)
 		}
-		if sv.p.rtol < autoRadauRTol || sv.sparseRadau() {
+		if sv.sparseRadau() {
 			sv.radau = newRadau(sv.p)
 		}
 		if !sv.sparseRadau() {

@@ -22,18 +22,17 @@ import (
 // 200-species network measured 60 at rtol 1e-8 (README, Solvers); solve's
 // TestBDFControllers compares the two controllers on the Test Set problems.
 //
-// The error at one end time and one tolerance moves with rounding: on the
-// 200-species network at rtol 1e-8 a change of rtol by one bit, or the
-// order of the sums in the sparse LU, moves it between 5 and 12 with the
-// same controller. So each tolerance is measured at five nearby ones
-// (×0.8, 0.9, 1, 1.12, 1.25): their median must be at most 10, and the
-// largest at most 20.
-//
-// The error over the whole run (200 output times) is larger on the two
-// networks, where a fast start-up relaxation of many short steps
-// accumulates error (13 at most after the calibration, 76 before); its
-// bound, 20, is above every value measured from rtol 1e-4 to 1e-10 after
-// the calibration and below every value at rtol 1e-6 and 1e-8 before it.
+// The error at one end time and one tolerance moves with rounding (a change
+// of rtol by one bit, or of the order of the sums in the sparse LU, moved
+// the 200-species network between 5 and 12 with the calibration before this
+// one), so each tolerance is measured at five nearby ones (×0.8, 0.9, 1,
+// 1.12, 1.25), and every one of them, at the end time and over the run
+// (200 output times on the networks), must be within 10. Measured with
+// bdfCalibrated: at most 3.2 at the end and 3.3 over the run. The
+// calibration before it (biases 5, 5, 8, Newton at 0.03 of the bound)
+// measured up to 12 at the end and 13 over the run on the 200-species
+// network, and the unbiased controller 60 and 76, so the test fails for
+// both.
 func TestBDFCalibration(t *testing.T) {
 	root = "../.."
 	probs, err := problems()
@@ -44,14 +43,11 @@ func TestBDFCalibration(t *testing.T) {
 		for _, rtol := range []float64{1e-6, 1e-8} {
 			t.Run(fmt.Sprintf("%s/rtol=%g", p.name, rtol), func(t *testing.T) {
 				med, worst, run := calibrationErrors(t, p, rtol)
-				if med > 10 {
-					t.Errorf("median scaled error at the end time %.3g > 10", med)
+				if worst > 10 {
+					t.Errorf("largest scaled error at the end time %.3g > 10 (median %.3g)", worst, med)
 				}
-				if worst > 20 {
-					t.Errorf("largest scaled error at the end time %.3g > 20", worst)
-				}
-				if run > 20 {
-					t.Errorf("scaled error over the run %.3g > 20", run)
+				if run > 10 {
+					t.Errorf("scaled error over the run %.3g > 10", run)
 				}
 			})
 		}
