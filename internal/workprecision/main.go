@@ -315,7 +315,7 @@ func measure(p problem, m solve.Method, rtol float64, repeat int) row {
 	for i := 0; i < repeat; i++ {
 		runtime.ReadMemStats(&ms0)
 		t0 := time.Now()
-		res, err := sv.Solve(context.Background(), 0, p.tEnd, y0)
+		res, err := oneSolve(sv, p.tEnd, y0)
 		walls = append(walls, time.Since(t0))
 		runtime.ReadMemStats(&ms1)
 		if err != nil {
@@ -337,6 +337,15 @@ func measure(p problem, m solve.Method, rtol float64, repeat int) row {
 	slices.Sort(walls)
 	r.wall = walls[len(walls)/2]
 	return r
+}
+
+// oneSolve is one timed solve, kept out of line so that an instruction
+// count can be limited to the solves (valgrind --tool=callgrind
+// --toggle-collect=main.oneSolve; bench/bdf-tight-tolerance.md).
+//
+//go:noinline
+func oneSolve(sv *solve.Solver, tEnd float64, y0 []float64) (*solve.Result, error) {
+	return sv.Solve(context.Background(), 0, tEnd, y0)
 }
 
 // errors returns the scaled error max |y − ref|/(atol + rtol·|ref|) and
