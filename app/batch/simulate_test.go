@@ -323,6 +323,26 @@ func TestSimulateFigures(t *testing.T) {
 	}
 }
 
+// The help carries the caution that results are research aids, not
+// clinical or dosing advice (README, top), and names the unit flags of
+// every command that takes them.
+func TestHelpCaution(t *testing.T) {
+	var out, errb bytes.Buffer
+	dispatch([]string{"help"}, &out, &errb)
+	for _, want := range []string{"research aids, not clinical or dosing advice", "qualified professionals", "local rules"} {
+		if !strings.Contains(out.String(), want) {
+			t.Errorf("help lacks %q", want)
+		}
+	}
+	for _, cmd := range []string{"sweep", "population", "continue", "sensitivity"} {
+		_, usage, _ := strings.Cut(out.String(), "\n  "+cmd+" SPEC.json")
+		usage, _, _ = strings.Cut(usage, "\n\n")
+		if !strings.Contains(usage, "--time-unit U") || !strings.Contains(usage, "--concentration-unit U") {
+			t.Errorf("help of %s lacks the unit flags: %q", cmd, usage)
+		}
+	}
+}
+
 func TestDispatch(t *testing.T) {
 	var out, errb bytes.Buffer
 	if rc := dispatch([]string{"help"}, &out, &errb); rc != 0 || !strings.Contains(out.String(), "simulate MODEL.json") {
