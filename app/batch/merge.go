@@ -13,6 +13,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"strings"
 
 	"gonum.org/v1/plot"
 
@@ -151,6 +152,8 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	if isStochasticPart(files[0]) {
 		return mergeStochastic(files, *out, stdout)
 	}
+	_, err = os.Stat(*out)
+	made := errors.Is(err, os.ErrNotExist)
 	if err := os.MkdirAll(*out, 0o755); err != nil {
 		return fmt.Errorf("making the output folder: %w", err)
 	}
@@ -163,6 +166,9 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	defer sp.Close()
 	meta, res, err := readParts(files, sp)
 	if err != nil {
+		if sp.Close(); made {
+			os.Remove(*out) // the folder made above, empty: parts refused leave nothing
+		}
 		return err
 	}
 	return writeOutputs(meta, res, *out, stdout)
@@ -210,7 +216,8 @@ func readParts(files []string, sp *explore.Spill) (*runMeta, *explore.Result, er
 	}
 	res, err := explore.Merge(parts...)
 	if err != nil {
-		return nil, nil, badInput(err)
+		// The command's name already leads the message.
+		return nil, nil, badInput(errors.New(strings.TrimPrefix(err.Error(), "merge: ")))
 	}
 	return meta, res, nil
 }

@@ -8,6 +8,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"strings"
 
@@ -113,14 +114,15 @@ func decodePart(dec *json.Decoder, sp *explore.Spill) (*partFile, *explore.Resul
 }
 
 // partError places err at the line and column of byte off of the file at
-// path (the decoder's position, or the syntax error's own).
+// path (the decoder's position, or the syntax error's own; for a file that
+// ends too early, its end).
 func partError(path string, off int64, err error) error {
 	msg := strings.TrimPrefix(err.Error(), "json: ")
 	switch at, placed, eof := jsonErrorOffset(err); {
 	case placed:
 		off = at
 	case eof:
-		msg = truncatedJSON
+		msg, off = truncatedJSON, math.MaxInt64 // where the file ends
 	}
 	line, col := 1, 1
 	if f, ferr := os.Open(path); ferr == nil {

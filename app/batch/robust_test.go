@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"io"
 	"os"
 	"path/filepath"
@@ -195,6 +196,55 @@ func TestMergeRefusesMismatchedParts(t *testing.T) {
 		var out, errb bytes.Buffer
 		if rc := runMerge([]string{a0, bad, "--out", filepath.Join(dir, "m-bad")}, &out, &errb); rc != exitBadInput || !strings.Contains(errb.String(), c.want) {
 			t.Errorf("sample %s: exit %d, stderr %q; want 2 and %q", c.name, rc, errb.String(), c.want)
+		}
+	}
+}
+
+// A merge that is refused names the problem once (not "merge: merge:"),
+// places a truncated part where the file ends (README, Limits), and leaves
+// no empty output folder behind.
+func TestMergeRefusalMessages(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "m.json"), []byte(robustModel), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	spec := filepath.Join(dir, "pop.json")
+	if err := os.WriteFile(spec, []byte(`{"format": "kinetarium.population/1", "model": "m.json", "samples": 6, "seed": 1,
+ "vary": [{"target": "k", "distribution": "lognormal", "median": 0.5, "cv_percent": 30}],
+ "readouts": [{"kind": "final", "species": "B"}]}`), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	parts := filepath.Join(dir, "parts")
+	mustRun(t, popCmd, spec, "--shard", "0/2", "--out", parts, "--quiet")
+	part0 := filepath.Join(parts, "part-0-of-2.json")
+	data, err := os.ReadFile(part0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cut := data[:len(data)/2]
+	if bytes.Contains(cut, []byte("\n")) {
+		t.Fatal("the part file is expected on one line")
+	}
+	trunc := filepath.Join(dir, "trunc.json")
+	if err := os.WriteFile(trunc, cut, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		name  string
+		parts []string
+		want  string
+	}{
+		{"missing shard", []string{part0}, "merge: shard 1/2 is missing"},
+		{"truncated", []string{trunc}, fmt.Sprintf("trunc.json:1:%d: the file ends too early", len(cut)+1)},
+	} {
+		out := filepath.Join(dir, "out-"+strings.ReplaceAll(c.name, " ", ""))
+		var stdout, stderr bytes.Buffer
+		rc := runMerge(append(c.parts, "--out", out), &stdout, &stderr)
+		if rc != exitBadInput || !strings.Contains(stderr.String(), c.want) || strings.Contains(stderr.String(), "merge: merge:") {
+			t.Errorf("%s: exit %d, stderr %q; want 2 and %q once", c.name, rc, stderr.String(), c.want)
+		}
+		if _, err := os.Stat(out); err == nil {
+			t.Errorf("%s: the refused merge left the folder %s", c.name, out)
 		}
 	}
 }
