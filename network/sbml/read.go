@@ -347,7 +347,14 @@ func (im *importer) checkPackages(n *node, core string) {
 // read collects every identifier, rule, initial assignment and event, and
 // refuses what cannot be represented.
 func (im *importer) read(model *node) {
+	first := map[string]*node{} // each list's first element: only it is read
 	for _, k := range model.Kids {
+		if f := first[k.Name]; f != nil && strings.HasPrefix(k.Name, "listOf") {
+			im.errAt(k, "", "<%s> appears a second time (first on line %d); SBML allows one per model", k.Name, f.Line)
+			continue
+		} else if f == nil {
+			first[k.Name] = k
+		}
 		switch k.Name {
 		case "listOfFunctionDefinitions", "listOfUnitDefinitions", "listOfCompartments", "listOfSpecies", "listOfParameters",
 			"listOfInitialAssignments", "listOfRules", "listOfReactions", "listOfEvents", "annotation", "notes":

@@ -195,6 +195,9 @@ func TestImportProblems(t *testing.T) {
 			`the SBML package "comp"`, 1},
 		{"undefined value", doc(sp + `<listOfParameters><parameter id="p" constant="true"/></listOfParameters><listOfRules><rateRule variable="S"><math ` + mml + `><ci>p</ci></math></rateRule></listOfRules>`),
 			`parameter "p": no value is given`, 6},
+		{"repeated list", doc(sp + `<listOfRules><rateRule variable="S"><math ` + mml + `><cn>1</cn></math></rateRule></listOfRules>
+<listOfRules><algebraicRule><math ` + mml + `><ci>S</ci></math></algebraicRule></listOfRules>`),
+			"<listOfRules> appears a second time (first on line 6)", 7},
 		{"delay symbol", doc(sp + `<listOfRules><rateRule variable="S"><math ` + mml + `><apply><csymbol encoding="text" definitionURL="http://www.sbml.org/sbml/symbols/delay">delay</csymbol><ci>S</ci><cn>1</cn></apply></math></rateRule></listOfRules>`),
 			"the function delay is not supported", 6},
 	}
