@@ -248,3 +248,27 @@ func TestMergeRefusalMessages(t *testing.T) {
 		}
 	}
 }
+
+// A continuation and a sensitivity run are not sharded (README, Global
+// sensitivity) and a continuation runs on one core: --shard, and
+// continue's --workers, are refused rather than ignored (a shard used to
+// run the whole study and write no part).
+func TestUnshardedCommandsRefuseShard(t *testing.T) {
+	dir := t.TempDir()
+	for i, args := range [][]string{
+		{"continue", "../../examples/studies/toggle-continuation.json", "--shard", "0/2"},
+		{"continue", "../../examples/studies/toggle-continuation.json", "--workers", "2"},
+		{"sensitivity", "../../examples/studies/drug-sensitivity.json", "--shard", "0/2"},
+	} {
+		var out, errb bytes.Buffer
+		res := filepath.Join(dir, fmt.Sprint(i))
+		rc := dispatch(append(args, "--out", res, "--quiet"), &out, &errb)
+		flag := args[2]
+		if rc != exitBadInput || !strings.Contains(errb.String(), flag+": a ") || !strings.Contains(errb.String(), "runs whole") && !strings.Contains(errb.String(), "one core") {
+			t.Errorf("%s %s: exit %d, stderr %q; want 2 refusing the flag with the reason", args[0], flag, rc, errb.String())
+		}
+		if _, err := os.Stat(res); err == nil {
+			t.Errorf("%s %s: wrote results", args[0], flag)
+		}
+	}
+}

@@ -15,7 +15,6 @@ import (
 	"kinetarium/app/run"
 	"kinetarium/app/study"
 	"kinetarium/plotting"
-	"kinetarium/solve/explore"
 )
 
 func init() { register("sensitivity", runSensitivity) }
@@ -81,9 +80,6 @@ func sensitivity(args []string, stdout, stderr io.Writer) error {
 	c, err := parseCmd("sensitivity", args, stderr)
 	if err != nil {
 		return badInput(err)
-	}
-	if c.shard != (explore.Shard{}) {
-		return badInput(fmt.Errorf("--shard: a sensitivity analysis runs whole (its estimates need every run); use --workers"))
 	}
 	spec, err := readSensitivitySpec(c.spec)
 	if err != nil {

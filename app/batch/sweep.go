@@ -304,25 +304,32 @@ func setDisplay(sim *network.Simulation, u network.Units, show network.Display) 
 	return nil
 }
 
-// parseCmd parses "SPEC [--shard i/n] [--out DIR] [--workers N] [--quiet]"
-// with flags before or after the spec.
+// parseCmd parses "SPEC [--shard i/n] [--out DIR] [--workers N] [--quiet]
+// [--time-unit U] [--concentration-unit U]" with flags before or after the
+// spec; only sweep and population take --shard, and continue takes no
+// --workers (they are refused with the reason).
 func parseCmd(name string, args []string, stderr io.Writer) (*cmdFlags, error) {
 	fs := flag.NewFlagSet(name, flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	var c cmdFlags
 	var shard string
-	fs.StringVar(&c.out, "out", "", "folder for the results (default: the spec's name with -results, beside it)")
-	fs.StringVar(&shard, "shard", "", "run only part i of n (i/n, 0 ≤ i < n) and write a partial result for merge")
-	fs.IntVar(&c.workers, "workers", 0, "number of parallel workers (default: one per CPU)")
-	fs.BoolVar(&c.quiet, "quiet", false, "do not report progress")
-	usage := "usage: batch %s SPEC.json [--shard i/n] [--out DIR] [--workers N] [--quiet]\n"
-	if name == "sweep" || name == "population" || name == "continue" || name == "sensitivity" {
-		fs.StringVar(&c.show.Time, "time-unit", "", "show times in this unit (s, min, h, day) instead of the model's display unit")
-		fs.StringVar(&c.show.Concentration, "concentration-unit", "", "show concentrations in this unit (such as nM or mg/L) instead of the model's display unit")
-		usage = "usage: batch %s SPEC.json [--shard i/n] [--out DIR] [--workers N] [--quiet] [--time-unit U] [--concentration-unit U]\n"
+	usage := "usage: batch " + name + " SPEC.json"
+	fs.StringVar(&shard, "shard", "", "run only part i of n (i/n, 0 ≤ i < n) and write a partial result for merge (sweep and population)")
+	if name == "sweep" || name == "population" {
+		usage += " [--shard i/n]"
 	}
+	fs.StringVar(&c.out, "out", "", "folder for the results (default: the spec's name with -results, beside it)")
+	usage += " [--out DIR]"
+	fs.IntVar(&c.workers, "workers", 0, "number of parallel workers (default: one per CPU; not continue)")
+	if name != "continue" {
+		usage += " [--workers N]"
+	}
+	fs.BoolVar(&c.quiet, "quiet", false, "do not report progress")
+	fs.StringVar(&c.show.Time, "time-unit", "", "show times in this unit (s, min, h, day) instead of the model's display unit")
+	fs.StringVar(&c.show.Concentration, "concentration-unit", "", "show concentrations in this unit (such as nM or mg/L) instead of the model's display unit")
+	usage += " [--quiet] [--time-unit U] [--concentration-unit U]"
 	fs.Usage = func() {
-		fmt.Fprintf(stderr, usage, name)
+		fmt.Fprintln(stderr, usage)
 		fs.PrintDefaults()
 	}
 	pos, err := parseAnywhere(fs, args)
@@ -334,6 +341,16 @@ func parseCmd(name string, args []string, stderr io.Writer) (*cmdFlags, error) {
 		return nil, fmt.Errorf("%s: expected one spec file, got %d arguments", name, len(pos))
 	}
 	c.spec = pos[0]
+	// A continuation follows one branch on one core, and a sensitivity
+	// analysis needs every run: they refuse what they cannot honour.
+	switch {
+	case shard != "" && name == "continue":
+		return nil, errors.New("--shard: a continuation follows one branch and runs whole")
+	case shard != "" && name == "sensitivity":
+		return nil, errors.New("--shard: a sensitivity analysis runs whole (its estimates need every run); use --workers")
+	case c.workers != 0 && name == "continue":
+		return nil, errors.New("--workers: a continuation follows one branch, one point after another, on one core")
+	}
 	if shard != "" {
 		s, err := explore.ParseShard(shard)
 		if err != nil {
