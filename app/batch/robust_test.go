@@ -272,3 +272,13 @@ func TestUnshardedCommandsRefuseShard(t *testing.T) {
 		}
 	}
 }
+
+// Progress is reported about once a second, not once per point of a
+// continuation's branch (hundreds of lines for the example).
+func TestContinueProgressEverySecond(t *testing.T) {
+	var out, errb bytes.Buffer
+	rc := dispatch([]string{"continue", "../../examples/studies/toggle-continuation.json", "--out", t.TempDir()}, &out, &errb)
+	if n := strings.Count(errb.String(), "continue: "); rc != exitOK || n > 5 {
+		t.Errorf("exit %d, %d progress lines on standard error; want 0 and a few", rc, n)
+	}
+}

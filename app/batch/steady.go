@@ -356,6 +356,7 @@ func continueCmd(args []string, stdout, stderr io.Writer) error {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	prog, _ := progressPrinter("continue", stderr, c.quiet)
+	prog = everySecond(prog) // the branch reports each point
 	d, err := a.Continue(ctx, analyse.ContinueOptions{Knob: spec.Knob, From: *spec.From, To: *spec.To,
 		MaxPoints: spec.MaxPoints, Quantities: spec.Species, Progress: prog})
 	if err != nil {

@@ -16,7 +16,6 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
-	"time"
 
 	"kinetarium/app/ensemble"
 	"kinetarium/app/run"
@@ -179,12 +178,9 @@ func stochasticCmd(args []string, stdout, stderr io.Writer) error {
 		}
 	}
 	progress, _ := progressPrinter("stochastic", stderr, quiet)
-	var last time.Time
-	prog := func(f float64) {
-		if progress != nil && (time.Since(last) >= time.Second || f == 1) {
-			last = time.Now()
-			progress(f)
-		}
+	prog := everySecond(progress)
+	if prog == nil {
+		prog = func(float64) {}
 	}
 	e, runErr := job.Run(ctx, prog)
 	if runErr != nil && e == nil {

@@ -378,6 +378,22 @@ func progressPrinter(name string, w io.Writer, quiet bool) (func(float64), time.
 	return func(f float64) { fmt.Fprintf(w, "%s: %3.0f %%\n", name, 100*f) }, time.Second
 }
 
+// everySecond passes progress on to f at most once a second, and when it
+// is complete, for runs that report every step (f may be nil). It is
+// called from one goroutine.
+func everySecond(f func(float64)) func(float64) {
+	if f == nil {
+		return nil
+	}
+	var last time.Time
+	return func(done float64) {
+		if time.Since(last) >= time.Second || done == 1 {
+			last = time.Now()
+			f(done)
+		}
+	}
+}
+
 // inputError marks an error in the command line or an input file (exit
 // status 2), as opposed to a run that failed (exit status 1).
 type inputError struct{ error }
