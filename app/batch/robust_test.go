@@ -79,7 +79,12 @@ func TestBadInputProbes(t *testing.T) {
 			name string
 			args []string
 			want string
-		}{"/dev/zero", []string{"simulate", "/dev/zero"}, "larger than 64 MiB"})
+		}{"/dev/zero", []string{"simulate", "/dev/zero"}, "larger than 64 MiB"},
+			struct {
+				name string
+				args []string
+				want string
+			}{"merge /dev/zero", []string{"merge", "/dev/zero", "--out", filepath.Join(dir, "m0")}, "/dev/zero:1:2: invalid character"})
 	}
 	for _, c := range cases {
 		var out, errb bytes.Buffer

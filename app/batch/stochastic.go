@@ -212,16 +212,23 @@ func stochasticCmd(args []string, stdout, stderr io.Writer) error {
 	return runErr
 }
 
-// isStochasticPart reports whether the file holds a stochastic part.
+// isStochasticPart reports whether the file holds a stochastic part: its
+// first key, as written, is the format. Only the head is read.
 func isStochasticPart(path string) bool {
-	data, err := os.ReadFile(path)
+	f, err := os.Open(path)
 	if err != nil {
 		return false
 	}
-	var head struct {
-		Format string `json:"format"`
+	defer f.Close()
+	dec := json.NewDecoder(io.LimitReader(f, 4<<10))
+	var format string
+	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+		return false
 	}
-	return json.Unmarshal(data, &head) == nil && head.Format == StochasticPartFormat
+	if t, err := dec.Token(); err != nil || t != "format" {
+		return false
+	}
+	return dec.Decode(&format) == nil && format == StochasticPartFormat
 }
 
 // mergeStochastic merges the shards of a stochastic ensemble.
@@ -232,7 +239,7 @@ func mergeStochastic(files []string, out string, stdout io.Writer) error {
 		parts    []*stochastic.Ensemble
 	)
 	for _, f := range files {
-		data, err := os.ReadFile(f)
+		data, err := readInput(f, maxPartSize)
 		if err != nil {
 			return badInput(fmt.Errorf("reading a part: %w", err))
 		}
