@@ -69,11 +69,16 @@ func jsonErrorOffset(err error) (off int64, placed, eof bool) {
 // whether the error has a place.
 func jsonAt(data []byte, err error) (line, col int, ok bool) {
 	off, placed, eof := jsonErrorOffset(err)
+	var se *json.SyntaxError
 	switch {
 	case eof:
 		off = int64(len(data))
 	case !placed:
 		return 0, 0, false
+	case errors.As(err, &se):
+		if at, ok := atomicfile.JSONSyntaxAt(data); ok {
+			off = at // the offending character (the error's offset is past it)
+		}
 	}
 	off = max(0, min(off, int64(len(data))))
 	line = 1 + bytes.Count(data[:off], []byte("\n"))

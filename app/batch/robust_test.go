@@ -57,6 +57,7 @@ func TestBadInputProbes(t *testing.T) {
 		{"simulate --out folder", []string{"simulate", model, "--out", dir}, "is an existing folder"},
 		{"truncated spec", []string{"sweep", put("trunc.json", "{\"format\": \"kinetarium.sweep/1\",\n \"parameter\": {\"target\": ")},
 			"trunc.json:2:26: the file ends too early"},
+		{"syntax error", []string{"sweep", put("sx.json", "{\"format\": x}")}, "sx.json:1:12: invalid character 'x'"},
 		{"sweep --out file", []string{"sweep", sweep, "--out", model}, "--out: " + model + " is an existing file"},
 		{"population --out file", []string{"population", pop, "--out", model}, "is an existing file"},
 		{"merge --out file", []string{"merge", model, "--out", model}, "is an existing file"},

@@ -65,7 +65,11 @@ func ReadCompanion(data []byte, source string) (*Companion, error) {
 		var se *json.SyntaxError
 		line, col := 0, 0
 		if errors.As(err, &se) {
-			line, col = lineCol(text, se.Offset)
+			at := se.Offset // a repeated key's value: valid JSON
+			if off, ok := atomicfile.JSONSyntaxAt(text); ok {
+				at = off
+			}
+			line, col = lineCol(text, at)
 		}
 		msg := err.Error()
 		if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {

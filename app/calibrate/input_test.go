@@ -36,6 +36,9 @@ func TestSpecAndDataInput(t *testing.T) {
 	if _, err := ReadSpec([]byte(cut), "fit.json"); err == nil || !strings.Contains(err.Error(), at) {
 		t.Errorf("truncated spec: %v; want it placed at %s, where it ends", err, at)
 	}
+	if _, err := ReadSpec([]byte("{\"format\": x}"), "fit.json"); err == nil || !strings.Contains(err.Error(), "fit.json:1:12: ") {
+		t.Errorf("syntax error: %v; want it at the x, 1:12", err)
+	}
 	const csv = "time,P,sd_P\n1,0.5,0.1\n"
 	if d, err := ReadData([]byte("\xef\xbb\xbf"+csv), "run.csv", nil); err != nil || len(d.Points) != 1 {
 		t.Errorf("data with a byte-order mark: %v", err)

@@ -304,7 +304,11 @@ func ReadSpec(data []byte, source string) (*Spec, error) {
 		var se *json.SyntaxError
 		line, col := 0, 0
 		if errors.As(err, &se) {
-			line, col = lineCol(data, se.Offset)
+			at := se.Offset // a repeated key's value: valid JSON
+			if off, ok := atomicfile.JSONSyntaxAt(data); ok {
+				at = off
+			}
+			line, col = lineCol(data, at)
 		}
 		msg := err.Error()
 		if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
