@@ -14,6 +14,7 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"path/filepath"
 	"runtime/debug"
 	"strings"
 	"syscall"
@@ -105,6 +106,19 @@ func checkOutDir(dir string) error {
 	fi, err := os.Stat(dir)
 	if err == nil && !fi.IsDir() {
 		return badInput(fmt.Errorf("--out: %s is an existing file; expected a folder for the results", dir))
+	}
+	return nil
+}
+
+// checkOutFile refuses, before any work, an output file named by flag
+// that is an existing folder or whose folder does not exist (the write
+// would otherwise fail only after the run, naming a temporary file).
+func checkOutFile(flag, path string) error {
+	if isDir(path) {
+		return badInput(fmt.Errorf("%s: %s is an existing folder; expected a file name", flag, path))
+	}
+	if dir := filepath.Dir(path); !isDir(dir) {
+		return badInput(fmt.Errorf("%s: the folder %s does not exist; make it first, or name a file in an existing folder", flag, dir))
 	}
 	return nil
 }

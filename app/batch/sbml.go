@@ -55,6 +55,11 @@ func sbmlImport(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	if *out != "" {
+		if err := checkOutFile("--out", *out); err != nil {
+			return err
+		}
+	}
 	f, err := os.Open(in)
 	if err != nil {
 		return badInput(err)
@@ -108,6 +113,11 @@ func sbmlExport(args []string, stdout io.Writer) error {
 	in, err := fileArgs("model file", args, fs)
 	if err != nil {
 		return err
+	}
+	if *out != "" {
+		if err := checkOutFile("--out", *out); err != nil {
+			return err
+		}
 	}
 	m, err := network.Load(in)
 	if err != nil {
