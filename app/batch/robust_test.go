@@ -293,3 +293,37 @@ func TestContinueProgressEverySecond(t *testing.T) {
 		t.Errorf("exit %d, %d progress lines on standard error; want 0 and a few", rc, n)
 	}
 }
+
+// A continuation spec's mistakes name the spec's own keys ("species", not
+// the analysis's word "quantities"), and the reason for no Hill curve
+// reads without the solver package's prefix.
+func TestContinueMessages(t *testing.T) {
+	dir := t.TempDir()
+	spec := func(extra string) string {
+		p := filepath.Join(dir, fmt.Sprintf("c%d.json", len(extra)))
+		src := `{"format": "kinetarium.continuation/1", "model": "` + filepath.ToSlash(mustAbs(t, "../../examples/toggle-repressors.json")) +
+			`", "knob": "Kx", "from": 0.01, "to": 100` + extra + `}`
+		if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	var out, errb bytes.Buffer
+	if rc := dispatch([]string{"continue", spec(`, "species": ["Q"]`), "--out", filepath.Join(dir, "a"), "--quiet"}, &out, &errb); rc != exitBadInput ||
+		!strings.Contains(errb.String(), `: species: `) || !strings.Contains(errb.String(), `"Q"`) {
+		t.Errorf("unknown species: exit %d, stderr %q; want 2 naming species and Q", rc, errb.String())
+	}
+	out.Reset()
+	if rc := dispatch([]string{"continue", spec(`, "response": "A"`), "--out", filepath.Join(dir, "b"), "--quiet"}, &out, &errb); rc != exitOK ||
+		!strings.Contains(out.String(), "no Hill curve: the response does not change") {
+		t.Errorf("flat response: exit %d, stdout %q; want the reason without a package prefix", rc, out.String())
+	}
+}
+
+func mustAbs(t *testing.T, p string) string {
+	a, err := filepath.Abs(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return a
+}
