@@ -170,6 +170,9 @@ func conformanceRun(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	if len(res) == 0 {
+		return badInput(fmt.Errorf("%s holds no case folders (named by five digits, such as 00001); expected the SBML Test Suite's cases folder", dir))
+	}
 	if *out != "" {
 		if err := conformance.WriteCSV(*out, res); err != nil {
 			return err
