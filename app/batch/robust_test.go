@@ -327,3 +327,27 @@ func mustAbs(t *testing.T, p string) string {
 	}
 	return a
 }
+
+// A sensitivity spec's bootstrap and levels are checked where they are
+// read and named by their keys: a negative bootstrap ran with the
+// default, odd levels were reported under another word ("screening").
+func TestSensitivitySpecChecks(t *testing.T) {
+	dir := t.TempDir()
+	model := filepath.ToSlash(mustAbs(t, "../../examples/two-compartment-drug.json"))
+	for extra, want := range map[string]string{
+		`"bootstrap": -1`:                 "bootstrap: expected a positive number of resamples, got -1",
+		`"method": "morris", "levels": 3`: "levels: expected an even number of levels, at least 2, got 3",
+	} {
+		p := filepath.Join(dir, fmt.Sprintf("s%d.json", len(extra)))
+		src := `{"format": "kinetarium.sensitivity/1", "model": "` + model + `", "samples": 8, "seed": 1, ` + extra + `,
+ "vary": [{"target": "Vmax", "distribution": "lognormal", "median": 6, "cv_percent": 30}],
+ "readouts": [{"kind": "max", "species": "D_plasma"}]}`
+		if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		var out, errb bytes.Buffer
+		if rc := dispatch([]string{"sensitivity", p, "--out", filepath.Join(dir, "out"), "--quiet"}, &out, &errb); rc != exitBadInput || !strings.Contains(errb.String(), want) {
+			t.Errorf("%s: exit %d, stderr %q; want 2 and %q", extra, rc, errb.String(), want)
+		}
+	}
+}
