@@ -199,8 +199,9 @@ Exit status: 0 on success; 1 when a run fails (the message names the time
 and the cause; what was computed is still written); 2 for bad input (the
 message names the file, the field and what is expected); 3 for an internal
 error (a bug: the message quotes the input that caused it). Ctrl-C or
-SIGTERM stops a run: what is complete is written, marked partial, and the
-status is 1.
+SIGTERM stops simulate, sweep and population: what is complete is
+written, marked partial, and the status is 1 (merge refuses a partial
+shard).
 `
 
 // command is a subcommand: it gets the arguments after its name and

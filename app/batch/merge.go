@@ -195,9 +195,6 @@ func readParts(files []string, sp *explore.Spill) (*runMeta, *explore.Result, er
 				return nil, nil, badInput(fmt.Errorf("%s does not belong with %s: %s", f, files[0], how))
 			}
 		}
-		if p.Meta.Partial {
-			return nil, nil, badInput(fmt.Errorf("%s: this shard was stopped before it finished (partial: true); run it again, then merge", f))
-		}
 		// Parts are written at different times: compare all but that.
 		same := *p.Meta
 		same.Provenance = same.Provenance.WithoutTime()

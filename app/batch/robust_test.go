@@ -240,12 +240,26 @@ func TestMergeRefusalMessages(t *testing.T) {
 	if err := os.WriteFile(trunc, cut, 0o644); err != nil {
 		t.Fatal(err)
 	}
+	// A shard stopped by a signal: marked partial, with points missing.
+	var p map[string]any
+	if err := json.Unmarshal(data, &p); err != nil {
+		t.Fatal(err)
+	}
+	p["meta"].(map[string]any)["partial"] = true
+	res := p["result"].(map[string]any)
+	res["samples"] = res["samples"].([]any)[:1]
+	b, _ := json.Marshal(p)
+	partial := filepath.Join(dir, "partial.json")
+	if err := os.WriteFile(partial, b, 0o644); err != nil {
+		t.Fatal(err)
+	}
 	for _, c := range []struct {
 		name  string
 		parts []string
 		want  string
 	}{
 		{"missing shard", []string{part0}, "merge: shard 1/2 is missing"},
+		{"partial shard", []string{partial}, "partial.json: this shard was stopped before it finished (partial: true); run it again, then merge"},
 		{"truncated", []string{trunc}, fmt.Sprintf("trunc.json:1:%d: the file ends too early", len(cut)+1)},
 	} {
 		out := filepath.Join(dir, "out-"+strings.ReplaceAll(c.name, " ", ""))
