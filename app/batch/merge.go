@@ -66,8 +66,12 @@ func finish(meta *runMeta, res *explore.Result, c *cmdFlags, stdout io.Writer) e
 		if err := writePart(path, meta, res); err != nil {
 			return err
 		}
-		fmt.Fprintf(stdout, "%s shard %v: %d runs, %d failed; wrote %s (combine the shards with merge)\n",
-			meta.Kind, c.shard, res.Points, res.Failed, path)
+		next := "combine the shards with merge"
+		if meta.Partial {
+			next = "partial: true; run this shard again before merging"
+		}
+		fmt.Fprintf(stdout, "%s shard %v: %d runs, %d failed; wrote %s (%s)\n",
+			meta.Kind, c.shard, res.Points, res.Failed, path, next)
 		return nil
 	}
 	return writeOutputs(meta, res, c.out, stdout)
