@@ -178,7 +178,7 @@ func (p *jparser) token() (json.Token, error) {
 		var se *json.SyntaxError
 		switch {
 		case err == io.EOF || err == io.ErrUnexpectedEOF || strings.Contains(err.Error(), "unexpected end"):
-			return nil, &syntaxError{int64(len(p.data)), "the file ends too early; is a closing brace or bracket missing?"}
+			return nil, &syntaxError{int64(len(p.data)), atomicfile.TruncatedJSON}
 		case errors.As(err, &se):
 			at := se.Offset
 			if off, ok := atomicfile.JSONSyntaxAt(p.data); ok {

@@ -131,7 +131,7 @@ func partError(path string, off int64, err error) error {
 	case placed:
 		off = at
 	case eof:
-		msg, off = truncatedJSON, math.MaxInt64 // where the file ends
+		msg, off = atomicfile.TruncatedJSON, math.MaxInt64 // where the file ends
 	}
 	line, col := 1, 1
 	if f, ferr := os.Open(path); ferr == nil {

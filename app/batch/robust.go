@@ -46,9 +46,6 @@ func readInput(path string, limit int64) ([]byte, error) {
 	return data, nil
 }
 
-// truncatedJSON is the message for a JSON file that ends too early.
-const truncatedJSON = "the file ends too early (truncated?): an object or list is not closed"
-
 // jsonErrorOffset returns the byte offset a JSON decoding error names
 // (placed, for syntax and type errors), or reports that the input ended
 // too early (eof).
@@ -92,7 +89,7 @@ func jsonAt(data []byte, err error) (line, col int, ok bool) {
 func jsonError(path string, data []byte, err error) error {
 	msg := strings.TrimPrefix(err.Error(), "json: ")
 	if msg == "unexpected end of JSON input" || errors.Is(err, io.ErrUnexpectedEOF) {
-		msg = truncatedJSON
+		msg = atomicfile.TruncatedJSON
 	}
 	if line, col, ok := jsonAt(data, err); ok {
 		return fmt.Errorf("%s:%d:%d: %s", path, line, col, msg)

@@ -73,7 +73,7 @@ func ReadCompanion(data []byte, source string) (*Companion, error) {
 		}
 		msg := err.Error()
 		if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
-			msg = "the file ends before the JSON object does"
+			msg = atomicfile.TruncatedJSON
 		}
 		return nil, SpecErrors{{File: source, Line: line, Col: col, Msg: "not valid JSON: " + msg}}
 	}

@@ -312,7 +312,7 @@ func ReadSpec(data []byte, source string) (*Spec, error) {
 		}
 		msg := err.Error()
 		if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
-			msg = "the file ends before the JSON object does"
+			msg = atomicfile.TruncatedJSON
 			line, col = lineCol(data, int64(len(data)))
 		}
 		return nil, SpecErrors{{File: source, Line: line, Col: col, Msg: "not valid JSON: " + msg}}

@@ -379,6 +379,10 @@ func Text(data []byte) ([]byte, error) {
 	return data, nil
 }
 
+// TruncatedJSON is the message for a JSON file that ends before its
+// objects and lists are closed, for every reader of JSON input.
+const TruncatedJSON = "the file ends too early (truncated?): an object or list is not closed"
+
 // JSONSyntaxAt returns the offset of the byte at which data stops being
 // valid JSON: the offending character, or len(data) when the text ends
 // too early; ok is false when data is valid JSON. The syntax errors of
