@@ -343,6 +343,20 @@ func TestHelpCaution(t *testing.T) {
 	}
 }
 
+// Every command answers -h with its usage and exit status 0 (import,
+// export and conformance printed nothing; check refused -h with status 2).
+func TestEveryCommandHelp(t *testing.T) {
+	for name := range commands {
+		if name == "test-panic" {
+			continue
+		}
+		var out, errb bytes.Buffer
+		if rc := dispatch([]string{name, "-h"}, &out, &errb); rc != exitOK || !strings.Contains(out.String()+errb.String(), "usage: batch") {
+			t.Errorf("%s -h: exit %d, stdout %q, stderr %q; want 0 and the usage", name, rc, out.String(), errb.String())
+		}
+	}
+}
+
 func TestDispatch(t *testing.T) {
 	var out, errb bytes.Buffer
 	if rc := dispatch([]string{"help"}, &out, &errb); rc != 0 || !strings.Contains(out.String(), "simulate MODEL.json") {
