@@ -28,6 +28,7 @@ import (
 	"strconv"
 	"strings"
 
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/network/expr"
 )
@@ -99,12 +100,9 @@ func (s Symbol) Amount(v, vol float64) float64 {
 // with its line and column in the document, and the Import (when not nil)
 // lists them too.
 func Read(r io.Reader, file string) (*Import, error) {
-	data, err := io.ReadAll(io.LimitReader(r, MaxSize+1))
+	data, err := atomicfile.ReadLimited(r, MaxSize)
 	if err != nil {
-		return nil, fmt.Errorf("reading %s: %w", file, err)
-	}
-	if len(data) > MaxSize {
-		return nil, network.ErrorList{problem(file, 0, 0, "", "the file is larger than %d MB, the most this reader accepts", MaxSize>>20)}
+		return nil, network.ErrorList{problem(file, 0, 0, "", "%v", err)}
 	}
 	return Parse(data, file)
 }

@@ -241,7 +241,7 @@ func TestFormulaTooLarge(t *testing.T) {
 func TestReadTooLarge(t *testing.T) {
 	r := io.MultiReader(strings.NewReader("<sbml>"), io.LimitReader(zeros{}, 100<<20))
 	_, err := Read(r, "big.xml")
-	if err == nil || !strings.Contains(err.Error(), "big.xml") || !strings.Contains(err.Error(), "larger than 64 MB") {
+	if err == nil || !strings.Contains(err.Error(), "big.xml") || !strings.Contains(err.Error(), "larger than 64 MiB") {
 		t.Errorf("a 100 MB file gives %v", err)
 	}
 }
