@@ -374,7 +374,7 @@ func Text(data []byte) ([]byte, error) {
 		enc = "UTF-16"
 	}
 	if enc != "" {
-		return nil, fmt.Errorf("the file is %s text; save it as UTF-8 (the usual encoding of JSON) and try again", enc)
+		return nil, fmt.Errorf("the file is %s text; save it as UTF-8 (the usual encoding of JSON, CSV and SBML) and try again", enc)
 	}
 	return data, nil
 }

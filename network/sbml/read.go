@@ -101,6 +101,9 @@ func (s Symbol) Amount(v, vol float64) float64 {
 // lists them too.
 func Read(r io.Reader, file string) (*Import, error) {
 	data, err := atomicfile.ReadLimited(r, MaxSize)
+	if err == nil {
+		data, err = atomicfile.Text(data) // UTF-16 named, not "invalid UTF-8"
+	}
 	if err != nil {
 		return nil, network.ErrorList{problem(file, 0, 0, "", "%v", err)}
 	}

@@ -1,6 +1,7 @@
 package sbml
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"io"
@@ -243,6 +244,23 @@ func TestReadTooLarge(t *testing.T) {
 	_, err := Read(r, "big.xml")
 	if err == nil || !strings.Contains(err.Error(), "big.xml") || !strings.Contains(err.Error(), "larger than 64 MiB") {
 		t.Errorf("a 100 MB file gives %v", err)
+	}
+}
+
+// A document saved as UTF-16 is named as such (README, Limits), and one
+// with a UTF-8 byte-order mark is read.
+func TestReadEncodings(t *testing.T) {
+	src := `<?xml version="1.0" encoding="UTF-16"?>` + "\n" + doc("")
+	var u16 []byte
+	u16 = append(u16, 0xFF, 0xFE)
+	for _, r := range src {
+		u16 = append(u16, byte(r), 0) // ASCII only
+	}
+	if _, err := Read(bytes.NewReader(u16), "u16.xml"); err == nil || !strings.Contains(err.Error(), "u16.xml: the file is UTF-16 text") {
+		t.Errorf("UTF-16: %v; want it named", err)
+	}
+	if _, err := Read(strings.NewReader("\xef\xbb\xbf"+doc("")), "bom.xml"); err != nil {
+		t.Errorf("byte-order mark: %v", err)
 	}
 }
 
