@@ -63,6 +63,8 @@ func TestBadInputProbes(t *testing.T) {
 		{"import --out in no folder", []string{"import", "../../network/sbml/testdata/none.xml", "--out", filepath.Join(dir, "none", "m.json")}, "--out: the folder"},
 		{"export --out in no folder", []string{"export", model, "--out", filepath.Join(dir, "none", "m.xml")}, "--out: the folder"},
 		{"diagram --out in no folder", []string{"diagram", model, "--out", filepath.Join(dir, "none", "d.svg")}, "--out: the folder"},
+		{"wrong kind of value", []string{"population", put("pk.json", popHead+` "samples": "many", `+lognormal+`}`)}, "samples: expected a whole number, found text"},
+		{"fraction for a count", []string{"population", put("pf.json", popHead+` "samples": 1.5, `+lognormal+`}`)}, "samples: expected a whole number, found the number 1.5"},
 		{"sweep --out file", []string{"sweep", sweep, "--out", model}, "--out: " + model + " is an existing file"},
 		{"population --out file", []string{"population", pop, "--out", model}, "is an existing file"},
 		{"merge --out file", []string{"merge", model, "--out", model}, "is an existing file"},

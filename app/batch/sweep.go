@@ -15,6 +15,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"slices"
 	"strconv"
 	"strings"
@@ -89,7 +90,7 @@ func strict(raw []byte, v any, path string) error {
 			} else if field == "" {
 				field = path
 			}
-			return fmt.Errorf("%s: expected %s, got a JSON %s", field, te.Type, te.Value)
+			return fmt.Errorf("%s: expected %s, found %s", field, typeWord(te.Type), valueWord(te.Value))
 		}
 		if path == "" {
 			return errors.New(msg)
@@ -100,6 +101,49 @@ func strict(raw []byte, v any, path string) error {
 		return fmt.Errorf("%s: unexpected data after the JSON value", orTop(path))
 	}
 	return nil
+}
+
+// typeWord says in words what a Go type holds, for messages about a JSON
+// value of the wrong kind ("a whole number", not "int").
+func typeWord(t reflect.Type) string {
+	switch t.Kind() {
+	case reflect.Pointer:
+		return typeWord(t.Elem())
+	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64,
+		reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64:
+		return "a whole number"
+	case reflect.Float32, reflect.Float64:
+		return "a number"
+	case reflect.String:
+		return "text"
+	case reflect.Bool:
+		return "true or false"
+	case reflect.Slice, reflect.Array:
+		return "a list"
+	case reflect.Map, reflect.Struct:
+		return "an object"
+	}
+	return t.String()
+}
+
+// valueWord says in words what kind of JSON value json.UnmarshalTypeError
+// found ("string", "number 1.5", …).
+func valueWord(v string) string {
+	switch {
+	case v == "string":
+		return "text"
+	case v == "number":
+		return "a number"
+	case strings.HasPrefix(v, "number "):
+		return "the number " + strings.TrimPrefix(v, "number ")
+	case v == "bool":
+		return "true or false"
+	case v == "array":
+		return "a list"
+	case v == "object":
+		return "an object"
+	}
+	return v
 }
 
 // orTop names an empty path "top level" in messages.
