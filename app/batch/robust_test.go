@@ -65,6 +65,7 @@ func TestBadInputProbes(t *testing.T) {
 		{"diagram --out in no folder", []string{"diagram", model, "--out", filepath.Join(dir, "none", "d.svg")}, "--out: the folder"},
 		{"wrong kind of value", []string{"population", put("pk.json", popHead+` "samples": "many", `+lognormal+`}`)}, "samples: expected a whole number, found text"},
 		{"fraction for a count", []string{"population", put("pf.json", popHead+` "samples": 1.5, `+lognormal+`}`)}, "samples: expected a whole number, found the number 1.5"},
+		{"negative seed", []string{"population", put("ps.json", strings.Replace(popHead, `"seed": 1`, `"seed": -1`, 1)+` "samples": 10, `+lognormal+`}`)}, "seed: expected a whole number ≥ 0, found the number -1"},
 		{"sweep --out file", []string{"sweep", sweep, "--out", model}, "--out: " + model + " is an existing file"},
 		{"population --out file", []string{"population", pop, "--out", model}, "is an existing file"},
 		{"merge --out file", []string{"merge", model, "--out", model}, "is an existing file"},

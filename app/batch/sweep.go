@@ -109,9 +109,10 @@ func typeWord(t reflect.Type) string {
 	switch t.Kind() {
 	case reflect.Pointer:
 		return typeWord(t.Elem())
-	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64,
-		reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64:
+	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64:
 		return "a whole number"
+	case reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64:
+		return "a whole number ≥ 0"
 	case reflect.Float32, reflect.Float64:
 		return "a number"
 	case reflect.String:
