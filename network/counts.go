@@ -54,7 +54,7 @@ const UnderstoodAmountUnits = "M, mM, µM (or uM), nM, pM, fM and mol/L, mmol/L,
 //
 // Otherwise it returns an error that says what to add to the model.
 func MoleculesPerAmount(m *Model) (float64, string, error) {
-	pos := Pos{Section: "units", Field: "molecules_per_amount"}
+	pos := Pos{Field: "units.molecules_per_amount"} // "units" is no list: no item number
 	if n := m.Units.MoleculesPerAmount; n != 0 {
 		if !(n > 0) || math.IsInf(n, 0) {
 			return 0, "", ErrorList{{Pos: pos, Severity: Error,

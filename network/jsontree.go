@@ -9,6 +9,8 @@ import (
 	"slices"
 	"strings"
 	"unicode/utf8"
+
+	"kinetarium/internal/atomicfile"
 )
 
 // jnode is a JSON value with the byte offset where it starts, so that the
@@ -176,9 +178,13 @@ func (p *jparser) token() (json.Token, error) {
 		var se *json.SyntaxError
 		switch {
 		case err == io.EOF || err == io.ErrUnexpectedEOF || strings.Contains(err.Error(), "unexpected end"):
-			return nil, &syntaxError{int64(len(p.data)), "the file ends too early; is a closing brace or bracket missing?"}
+			return nil, &syntaxError{int64(len(p.data)), atomicfile.TruncatedJSON}
 		case errors.As(err, &se):
-			return nil, &syntaxError{se.Offset, "invalid JSON: " + se.Error()}
+			at := se.Offset
+			if off, ok := atomicfile.JSONSyntaxAt(p.data); ok {
+				at = off
+			}
+			return nil, &syntaxError{at, "invalid JSON: " + se.Error()}
 		}
 		return nil, &syntaxError{off, "invalid JSON: " + err.Error()}
 	}

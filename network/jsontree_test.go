@@ -3,6 +3,7 @@ package network
 import (
 	"encoding/json"
 	"fmt"
+	"strings"
 	"testing"
 
 	"kinetarium/examples"
@@ -110,4 +111,18 @@ func FuzzJSONTree(f *testing.F) {
 	f.Add([]byte(`{"a":1,"a":-2.5e+3,"b":[true,false,null,{}],"d":"x\"y\\u00e9\n"}`))
 	f.Add([]byte(`{"format": "kinetarium.model/1", "species": [{"name": "A", "initial": 1}]}`))
 	f.Fuzz(func(t *testing.T, data []byte) { compareParsers(t, data) })
+}
+
+// A syntax error is placed at the offending character (the decoder's own
+// offset pointed at an earlier key: "2:4" for the x below).
+func TestSyntaxErrorPlace(t *testing.T) {
+	for _, c := range []struct{ src, at string }{
+		{"{\"format\": \"kinetarium.model/1\",\n \"title\": x}", "m.json:2:11: "},
+		{"{\"format\": \"kinetarium.model/1\",\n \"species\": [{\"name\": \"A\",, \"initial\": 1}]}", "m.json:2:27: "},
+	} {
+		_, err := Read(strings.NewReader(c.src), "m.json")
+		if err == nil || !strings.HasPrefix(err.Error(), c.at) || !strings.Contains(err.Error(), "invalid character") {
+			t.Errorf("%q: %v; want it at %s", c.src, err, c.at)
+		}
+	}
 }

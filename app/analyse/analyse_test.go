@@ -453,6 +453,12 @@ func TestDoseResponseHill(t *testing.T) {
 	if math.Abs(h.EC50-0.3) > 1e-4 || math.Abs(h.N-1) > 1e-4 || h.R2 < 0.999999 {
 		t.Errorf("Hill fit %+v, want EC50 0.3, N 1", h)
 	}
+	if s := DescribeHill(d, 0, h); strings.Contains(s, "extrapolated") {
+		t.Errorf("an EC50 inside the doses is called extrapolated: %s", s)
+	}
+	if h.EC50 = 1e4; !strings.Contains(DescribeHill(d, 0, h), "the EC50 lies outside the doses followed") {
+		t.Errorf("an EC50 outside the doses is not called extrapolated: %s", DescribeHill(d, 0, h))
+	}
 	if last := d.Points[len(d.Points)-1].P; math.Abs(last-100) > 1e-9 {
 		t.Errorf("last point at %g, want 100", last)
 	}

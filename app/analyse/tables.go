@@ -168,5 +168,10 @@ func DescribeHill(d *Diagram, q int, h steady.Hill) string {
 		half = "IC50"
 	}
 	ru := d.Shown.unitAfter(d.unit(q))
-	return fmt.Sprintf("Hill curve of %s against %s: %s = %.6g%s, Hill coefficient %.4g, from %.6g%s to %.6g%s (R² = %.6f)", d.Quantities[q], d.Knob, half, h.EC50, d.Shown.unitAfter(d.KnobUnit), h.N, h.Bottom, ru, h.Top, ru, h.R2)
+	ku := d.Shown.unitAfter(d.KnobUnit)
+	s := fmt.Sprintf("Hill curve of %s against %s: %s = %.6g%s, Hill coefficient %.4g, from %.6g%s to %.6g%s (R² = %.6f)", d.Quantities[q], d.Knob, half, h.EC50, ku, h.N, h.Bottom, ru, h.Top, ru, h.R2)
+	if h.Extrapolated() {
+		s += fmt.Sprintf("; the %s lies outside the doses followed (%.6g%s to %.6g%s), so it and the far plateau are extrapolated, not measured by the branch: widen the range", half, h.DoseMin, ku, h.DoseMax, ku)
+	}
+	return s
 }

@@ -24,6 +24,9 @@ func runCheck(args []string, stdout, stderr io.Writer) int {
 	timings := false
 	for _, a := range args {
 		switch {
+		case a == "-h" || a == "-help" || a == "--help":
+			fmt.Fprint(stdout, "usage: batch check MODEL.json [--timings]\n")
+			return exitOK
 		case a == "--timings" || a == "-timings":
 			timings = true
 		case path == "" && !strings.HasPrefix(a, "-"):

@@ -58,6 +58,11 @@ func drawDiagram(args []string, stdout io.Writer) error {
 	if *out != "" && !contains(plotting.Formats, strings.ToLower(filepath.Ext(*out))) {
 		return badInput(fmt.Errorf("--out %s: expected a file name ending in .png, .svg or .pdf", *out))
 	}
+	if *out != "" {
+		if err := checkOutFile("--out", *out); err != nil {
+			return err
+		}
+	}
 	var s pd.Settings
 	switch *method {
 	case "auto":

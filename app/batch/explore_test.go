@@ -219,7 +219,7 @@ func TestSpecErrorsNameTheKey(t *testing.T) {
 		{popCmd, `{"format":"kinetarium.population/1","model":"M","samples":5,"seed":1,"vary":[{"target":"kk","distribution":"uniform","low":1,"high":2}]}`, `vary[0].target: no parameter "kk"`},
 		{popCmd, `{"format":"kinetarium.population/1","model":"M","samples":5,"seed":1,"vary":[{"target":"k","distribution":"uniform","low":1}]}`, "vary[0].high: missing"},
 		{popCmd, `{"format":"kinetarium.population/1","model":"M","samples":5,"seed":1,"vary":[{"target":"volume:x","distribution":"uniform","low":1,"high":2}]}`, `no compartment "x"`},
-		{popCmd, `{"format":"kinetarium.population/1","model":"M","samples":"many","seed":1}`, "samples: expected int"},
+		{popCmd, `{"format":"kinetarium.population/1","model":"M","samples":"many","seed":1}`, "samples: expected a whole number, found text"},
 		{popCmd, `{"format":"kinetarium.sweep/1"}`, `format: expected "kinetarium.population/1"`},
 		{sweepCmd, `{"format":"kinetarium.sweep/1","model":"M","parameter":{"target":"k","from":1,"to":2,"points":3},"readouts":[{"kind":"value_at","species":"A"}]}`, "readouts[0].time: missing"},
 		{sweepCmd, `{"format":"kinetarium.sweep/1","model":"M","parameter":{"target":"k","from":0,"to":2,"points":3,"spacing":"log"}}`, "parameter.from: log spacing"},

@@ -38,6 +38,11 @@ import (
 // and with errors in the command line.
 const usageText = `usage: batch COMMAND [arguments]
 
+Caution: results are research aids, not clinical or dosing advice. Doses
+and schedules entered in a model, and any decision about treatment or
+dosing, rest with qualified professionals under local rules and
+regulations.
+
 Commands:
 
   simulate MODEL.json [flags]
@@ -83,12 +88,16 @@ Commands:
                            stage: read, check, compile, solve, write
 
   sweep SPEC.json [--out DIR] [--shard i/n] [--workers N] [--quiet]
+        [--time-unit U] [--concentration-unit U]
       Vary one or two parameters over a grid and write readouts, tables
-      and figures to DIR.
+      and figures to DIR (default: the spec's name with -results).
 
   population SPEC.json [--out DIR] [--shard i/n] [--workers N] [--quiet]
+        [--time-unit U] [--concentration-unit U]
       Simulate a virtual population with sampled parameters and write
-      samples, percentile bands and figures to DIR.
+      samples, percentile bands and figures to DIR (default: the spec's
+      name with -results). The unit flags show the tables and figures in
+      those units, as for simulate.
 
   stochastic MODEL.json --runs N --seed S --out DIR [flags]
       Run N stochastic simulations of the model in molecule counts and
@@ -120,6 +129,7 @@ Commands:
       finds the conservation laws and prints to standard error how many,
       and the time and memory of each stage (read, check, conservation
       laws, compile).
+
   import FILE.xml [--out MODEL.json]
       Read an SBML model (Level 3 Version 1 or 2, Level 2 Version 4) and
       write it as a model file (to standard output unless --out is
@@ -135,6 +145,7 @@ Commands:
       reading each case's file of that level and version (default l3v2),
       and write one row per case: case,status,max_error_ratio,message,
       status pass, fail or refused. Exit status 1 when a case fails.
+
   fit SPEC.json [--out DIR] [--workers N] [--profiles] [--quiet]
       Estimate model quantities from measured time courses (a
       kinetarium.fit/1 specification) and write estimates.csv, fit.json,
@@ -159,7 +170,9 @@ Commands:
       (stable node or focus, unstable, saddle, marginal). --json prints
       one JSON object (keys species, fluxes, totals, eigenvalues as
       [re, im] pairs, stable, classification); --control adds the scaled
-      elasticities, flux_control and concentration_control. With display
+      flux and concentration control coefficients (with --json also
+      elasticities, parameter_sensitivity_species and
+      parameter_sensitivity_fluxes). With display
       units (the model's, or the two unit flags) concentrations, fluxes,
       eigenvalues and times are converted and named (JSON key units).
       Exit status 1 when there is no steady state (the message says why).
@@ -175,7 +188,7 @@ Commands:
   sensitivity SPEC.json [--out DIR] [--workers N] [--quiet] [--time-unit U] [--concentration-unit U]
       Global sensitivity of readouts to uncertain knobs (spec format
       kinetarium.sensitivity/1): variance-based first-order and total
-      indices with bootstrap intervals (indices.csv, indices.png), or
+      indices with bootstrap intervals (indices.csv, indices-READOUT.png), or
       Morris elementary effects (morris.csv; in the readout's shown unit
       with display units).
 
@@ -186,8 +199,9 @@ Exit status: 0 on success; 1 when a run fails (the message names the time
 and the cause; what was computed is still written); 2 for bad input (the
 message names the file, the field and what is expected); 3 for an internal
 error (a bug: the message quotes the input that caused it). Ctrl-C or
-SIGTERM stops a run: what is complete is written, marked partial, and the
-status is 1.
+SIGTERM stops simulate, sweep and population: what is complete is
+written, marked partial, and the status is 1 (merge refuses a partial
+shard).
 `
 
 // command is a subcommand: it gets the arguments after its name and

@@ -13,6 +13,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"strings"
 
 	"gonum.org/v1/plot"
 
@@ -65,8 +66,12 @@ func finish(meta *runMeta, res *explore.Result, c *cmdFlags, stdout io.Writer) e
 		if err := writePart(path, meta, res); err != nil {
 			return err
 		}
-		fmt.Fprintf(stdout, "%s shard %v: %d runs, %d failed; wrote %s (combine the shards with merge)\n",
-			meta.Kind, c.shard, res.Points, res.Failed, path)
+		next := "combine the shards with merge"
+		if meta.Partial {
+			next = "partial: true; run this shard again before merging"
+		}
+		fmt.Fprintf(stdout, "%s shard %v: %d runs, %d failed; wrote %s (%s)\n",
+			meta.Kind, c.shard, res.Points, res.Failed, path, next)
 		return nil
 	}
 	return writeOutputs(meta, res, c.out, stdout)
@@ -151,6 +156,8 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	if isStochasticPart(files[0]) {
 		return mergeStochastic(files, *out, stdout)
 	}
+	_, err = os.Stat(*out)
+	made := errors.Is(err, os.ErrNotExist)
 	if err := os.MkdirAll(*out, 0o755); err != nil {
 		return fmt.Errorf("making the output folder: %w", err)
 	}
@@ -163,6 +170,9 @@ func mergeParts(args []string, stdout, stderr io.Writer) error {
 	defer sp.Close()
 	meta, res, err := readParts(files, sp)
 	if err != nil {
+		if sp.Close(); made {
+			os.Remove(*out) // the folder made above, empty: parts refused leave nothing
+		}
 		return err
 	}
 	return writeOutputs(meta, res, *out, stdout)
@@ -189,9 +199,6 @@ func readParts(files []string, sp *explore.Spill) (*runMeta, *explore.Result, er
 				return nil, nil, badInput(fmt.Errorf("%s does not belong with %s: %s", f, files[0], how))
 			}
 		}
-		if p.Meta.Partial {
-			return nil, nil, badInput(fmt.Errorf("%s: this shard was stopped before it finished (partial: true); run it again, then merge", f))
-		}
 		// Parts are written at different times: compare all but that.
 		same := *p.Meta
 		same.Provenance = same.Provenance.WithoutTime()
@@ -210,7 +217,8 @@ func readParts(files []string, sp *explore.Spill) (*runMeta, *explore.Result, er
 	}
 	res, err := explore.Merge(parts...)
 	if err != nil {
-		return nil, nil, badInput(err)
+		// The command's name already leads the message.
+		return nil, nil, badInput(errors.New(strings.TrimPrefix(err.Error(), "merge: ")))
 	}
 	return meta, res, nil
 }

@@ -8,6 +8,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"strings"
 
@@ -46,11 +47,17 @@ func readPart(path string, sp *explore.Spill) (*partFile, *explore.Result, error
 	if lr.N <= 0 {
 		return nil, nil, fmt.Errorf("reading a part: %s: larger than %s, the most this program reads from one input file", path, atomicfile.Size(maxPartSize))
 	}
+	if errors.Is(err, errPartialShard) {
+		return nil, nil, fmt.Errorf("%s: %w", path, err)
+	}
 	if err != nil {
 		return nil, nil, partError(path, int64(skip)+dec.InputOffset(), err)
 	}
 	return p, r, nil
 }
+
+// errPartialShard refuses a part whose run was stopped before it finished.
+var errPartialShard = errors.New("this shard was stopped before it finished (partial: true); run it again, then merge")
 
 // decodePart reads {"format": …, "meta": …, "result": …} from dec.
 func decodePart(dec *json.Decoder, sp *explore.Spill) (*partFile, *explore.Result, error) {
@@ -86,6 +93,9 @@ func decodePart(dec *json.Decoder, sp *explore.Spill) (*partFile, *explore.Resul
 			if err := dec.Decode(&p.Meta); err != nil {
 				return nil, nil, fmt.Errorf("meta: %w", err)
 			}
+			if p.Meta != nil && p.Meta.Partial {
+				return nil, nil, errPartialShard // its points are incomplete: say so first
+			}
 		case "result":
 			if p.Format == "" || p.Meta == nil {
 				return nil, nil, errors.New("result: comes before format and meta")
@@ -113,14 +123,15 @@ func decodePart(dec *json.Decoder, sp *explore.Spill) (*partFile, *explore.Resul
 }
 
 // partError places err at the line and column of byte off of the file at
-// path (the decoder's position, or the syntax error's own).
+// path (the decoder's position, or the syntax error's own; for a file that
+// ends too early, its end).
 func partError(path string, off int64, err error) error {
 	msg := strings.TrimPrefix(err.Error(), "json: ")
 	switch at, placed, eof := jsonErrorOffset(err); {
 	case placed:
 		off = at
 	case eof:
-		msg = truncatedJSON
+		msg, off = atomicfile.TruncatedJSON, math.MaxInt64 // where the file ends
 	}
 	line, col := 1, 1
 	if f, ferr := os.Open(path); ferr == nil {

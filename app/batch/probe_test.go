@@ -141,6 +141,11 @@ func TestHostileInputProbes(t *testing.T) {
 	if err := os.WriteFile(filepath.Join(dir, "m.json"), []byte(robustModel), 0o644); err != nil {
 		t.Fatal(err)
 	}
+	// The folder of every probe's --out (simulate's CSV must go into an
+	// existing folder; the other commands make theirs).
+	if err := os.Mkdir(filepath.Join(dir, "out"), 0o755); err != nil {
+		t.Fatal(err)
+	}
 	var probes []probe
 	add := func(name string, file string, args ...string) {
 		probes = append(probes, probe{name: name, args: append(args, "--out", filepath.Join(dir, "out", strconv.Itoa(len(probes)))), file: file})

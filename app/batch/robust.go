@@ -14,6 +14,7 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"path/filepath"
 	"runtime/debug"
 	"strings"
 	"syscall"
@@ -45,9 +46,6 @@ func readInput(path string, limit int64) ([]byte, error) {
 	return data, nil
 }
 
-// truncatedJSON is the message for a JSON file that ends too early.
-const truncatedJSON = "the file ends too early (truncated?): an object or list is not closed"
-
 // jsonErrorOffset returns the byte offset a JSON decoding error names
 // (placed, for syntax and type errors), or reports that the input ended
 // too early (eof).
@@ -69,11 +67,16 @@ func jsonErrorOffset(err error) (off int64, placed, eof bool) {
 // whether the error has a place.
 func jsonAt(data []byte, err error) (line, col int, ok bool) {
 	off, placed, eof := jsonErrorOffset(err)
+	var se *json.SyntaxError
 	switch {
 	case eof:
 		off = int64(len(data))
 	case !placed:
 		return 0, 0, false
+	case errors.As(err, &se):
+		if at, ok := atomicfile.JSONSyntaxAt(data); ok {
+			off = at // the offending character (the error's offset is past it)
+		}
 	}
 	off = max(0, min(off, int64(len(data))))
 	line = 1 + bytes.Count(data[:off], []byte("\n"))
@@ -86,7 +89,7 @@ func jsonAt(data []byte, err error) (line, col int, ok bool) {
 func jsonError(path string, data []byte, err error) error {
 	msg := strings.TrimPrefix(err.Error(), "json: ")
 	if msg == "unexpected end of JSON input" || errors.Is(err, io.ErrUnexpectedEOF) {
-		msg = truncatedJSON
+		msg = atomicfile.TruncatedJSON
 	}
 	if line, col, ok := jsonAt(data, err); ok {
 		return fmt.Errorf("%s:%d:%d: %s", path, line, col, msg)
@@ -100,6 +103,19 @@ func checkOutDir(dir string) error {
 	fi, err := os.Stat(dir)
 	if err == nil && !fi.IsDir() {
 		return badInput(fmt.Errorf("--out: %s is an existing file; expected a folder for the results", dir))
+	}
+	return nil
+}
+
+// checkOutFile refuses, before any work, an output file named by flag
+// that is an existing folder or whose folder does not exist (the write
+// would otherwise fail only after the run, naming a temporary file).
+func checkOutFile(flag, path string) error {
+	if isDir(path) {
+		return badInput(fmt.Errorf("%s: %s is an existing folder; expected a file name", flag, path))
+	}
+	if dir := filepath.Dir(path); !isDir(dir) {
+		return badInput(fmt.Errorf("%s: the folder %s does not exist; make it first, or name a file in an existing folder", flag, dir))
 	}
 	return nil
 }

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"io"
 	"os"
 	"path/filepath"
@@ -56,6 +57,15 @@ func TestBadInputProbes(t *testing.T) {
 		{"simulate --out folder", []string{"simulate", model, "--out", dir}, "is an existing folder"},
 		{"truncated spec", []string{"sweep", put("trunc.json", "{\"format\": \"kinetarium.sweep/1\",\n \"parameter\": {\"target\": ")},
 			"trunc.json:2:26: the file ends too early"},
+		{"syntax error", []string{"sweep", put("sx.json", "{\"format\": x}")}, "sx.json:1:12: invalid character 'x'"},
+		{"simulate --out in no folder", []string{"simulate", model, "--out", filepath.Join(dir, "none", "t.csv")}, "--out: the folder " + filepath.Join(dir, "none") + " does not exist"},
+		{"simulate --figure in no folder", []string{"simulate", model, "--figure", filepath.Join(dir, "none", "t.png")}, "--figure: the folder " + filepath.Join(dir, "none") + " does not exist"},
+		{"import --out in no folder", []string{"import", "../../network/sbml/testdata/none.xml", "--out", filepath.Join(dir, "none", "m.json")}, "--out: the folder"},
+		{"export --out in no folder", []string{"export", model, "--out", filepath.Join(dir, "none", "m.xml")}, "--out: the folder"},
+		{"diagram --out in no folder", []string{"diagram", model, "--out", filepath.Join(dir, "none", "d.svg")}, "--out: the folder"},
+		{"wrong kind of value", []string{"population", put("pk.json", popHead+` "samples": "many", `+lognormal+`}`)}, "samples: expected a whole number, found text"},
+		{"fraction for a count", []string{"population", put("pf.json", popHead+` "samples": 1.5, `+lognormal+`}`)}, "samples: expected a whole number, found the number 1.5"},
+		{"negative seed", []string{"population", put("ps.json", strings.Replace(popHead, `"seed": 1`, `"seed": -1`, 1)+` "samples": 10, `+lognormal+`}`)}, "seed: expected a whole number ≥ 0, found the number -1"},
 		{"sweep --out file", []string{"sweep", sweep, "--out", model}, "--out: " + model + " is an existing file"},
 		{"population --out file", []string{"population", pop, "--out", model}, "is an existing file"},
 		{"merge --out file", []string{"merge", model, "--out", model}, "is an existing file"},
@@ -78,7 +88,12 @@ func TestBadInputProbes(t *testing.T) {
 			name string
 			args []string
 			want string
-		}{"/dev/zero", []string{"simulate", "/dev/zero"}, "larger than 64 MiB"})
+		}{"/dev/zero", []string{"simulate", "/dev/zero"}, "larger than 64 MiB"},
+			struct {
+				name string
+				args []string
+				want string
+			}{"merge /dev/zero", []string{"merge", "/dev/zero", "--out", filepath.Join(dir, "m0")}, "/dev/zero:1:2: invalid character"})
 	}
 	for _, c := range cases {
 		var out, errb bytes.Buffer
@@ -195,6 +210,161 @@ func TestMergeRefusesMismatchedParts(t *testing.T) {
 		var out, errb bytes.Buffer
 		if rc := runMerge([]string{a0, bad, "--out", filepath.Join(dir, "m-bad")}, &out, &errb); rc != exitBadInput || !strings.Contains(errb.String(), c.want) {
 			t.Errorf("sample %s: exit %d, stderr %q; want 2 and %q", c.name, rc, errb.String(), c.want)
+		}
+	}
+}
+
+// A merge that is refused names the problem once (not "merge: merge:"),
+// places a truncated part where the file ends (README, Limits), and leaves
+// no empty output folder behind.
+func TestMergeRefusalMessages(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "m.json"), []byte(robustModel), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	spec := filepath.Join(dir, "pop.json")
+	if err := os.WriteFile(spec, []byte(`{"format": "kinetarium.population/1", "model": "m.json", "samples": 6, "seed": 1,
+ "vary": [{"target": "k", "distribution": "lognormal", "median": 0.5, "cv_percent": 30}],
+ "readouts": [{"kind": "final", "species": "B"}]}`), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	parts := filepath.Join(dir, "parts")
+	mustRun(t, popCmd, spec, "--shard", "0/2", "--out", parts, "--quiet")
+	part0 := filepath.Join(parts, "part-0-of-2.json")
+	data, err := os.ReadFile(part0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cut := data[:len(data)/2]
+	if bytes.Contains(cut, []byte("\n")) {
+		t.Fatal("the part file is expected on one line")
+	}
+	trunc := filepath.Join(dir, "trunc.json")
+	if err := os.WriteFile(trunc, cut, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	// A shard stopped by a signal: marked partial, with points missing.
+	var p map[string]any
+	if err := json.Unmarshal(data, &p); err != nil {
+		t.Fatal(err)
+	}
+	p["meta"].(map[string]any)["partial"] = true
+	res := p["result"].(map[string]any)
+	res["samples"] = res["samples"].([]any)[:1]
+	b, _ := json.Marshal(p)
+	partial := filepath.Join(dir, "partial.json")
+	if err := os.WriteFile(partial, b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		name  string
+		parts []string
+		want  string
+	}{
+		{"missing shard", []string{part0}, "merge: shard 1/2 is missing"},
+		{"partial shard", []string{partial}, "partial.json: this shard was stopped before it finished (partial: true); run it again, then merge"},
+		{"truncated", []string{trunc}, fmt.Sprintf("trunc.json:1:%d: the file ends too early", len(cut)+1)},
+	} {
+		out := filepath.Join(dir, "out-"+strings.ReplaceAll(c.name, " ", ""))
+		var stdout, stderr bytes.Buffer
+		rc := runMerge(append(c.parts, "--out", out), &stdout, &stderr)
+		if rc != exitBadInput || !strings.Contains(stderr.String(), c.want) || strings.Contains(stderr.String(), "merge: merge:") {
+			t.Errorf("%s: exit %d, stderr %q; want 2 and %q once", c.name, rc, stderr.String(), c.want)
+		}
+		if _, err := os.Stat(out); err == nil {
+			t.Errorf("%s: the refused merge left the folder %s", c.name, out)
+		}
+	}
+}
+
+// A continuation and a sensitivity run are not sharded (README, Global
+// sensitivity) and a continuation runs on one core: --shard, and
+// continue's --workers, are refused rather than ignored (a shard used to
+// run the whole study and write no part).
+func TestUnshardedCommandsRefuseShard(t *testing.T) {
+	dir := t.TempDir()
+	for i, args := range [][]string{
+		{"continue", "../../examples/studies/toggle-continuation.json", "--shard", "0/2"},
+		{"continue", "../../examples/studies/toggle-continuation.json", "--workers", "2"},
+		{"sensitivity", "../../examples/studies/drug-sensitivity.json", "--shard", "0/2"},
+	} {
+		var out, errb bytes.Buffer
+		res := filepath.Join(dir, fmt.Sprint(i))
+		rc := dispatch(append(args, "--out", res, "--quiet"), &out, &errb)
+		flag := args[2]
+		if rc != exitBadInput || !strings.Contains(errb.String(), flag+": a ") || !strings.Contains(errb.String(), "runs whole") && !strings.Contains(errb.String(), "one core") {
+			t.Errorf("%s %s: exit %d, stderr %q; want 2 refusing the flag with the reason", args[0], flag, rc, errb.String())
+		}
+		if _, err := os.Stat(res); err == nil {
+			t.Errorf("%s %s: wrote results", args[0], flag)
+		}
+	}
+}
+
+// Progress is reported about once a second, not once per point of a
+// continuation's branch (hundreds of lines for the example).
+func TestContinueProgressEverySecond(t *testing.T) {
+	var out, errb bytes.Buffer
+	rc := dispatch([]string{"continue", "../../examples/studies/toggle-continuation.json", "--out", t.TempDir()}, &out, &errb)
+	if n := strings.Count(errb.String(), "continue: "); rc != exitOK || n > 5 {
+		t.Errorf("exit %d, %d progress lines on standard error; want 0 and a few", rc, n)
+	}
+}
+
+// A continuation spec's mistakes name the spec's own keys ("species", not
+// the analysis's word "quantities"), and the reason for no Hill curve
+// reads without the solver package's prefix.
+func TestContinueMessages(t *testing.T) {
+	dir := t.TempDir()
+	spec := func(extra string) string {
+		p := filepath.Join(dir, fmt.Sprintf("c%d.json", len(extra)))
+		src := `{"format": "kinetarium.continuation/1", "model": "` + filepath.ToSlash(mustAbs(t, "../../examples/toggle-repressors.json")) +
+			`", "knob": "Kx", "from": 0.01, "to": 100` + extra + `}`
+		if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	var out, errb bytes.Buffer
+	if rc := dispatch([]string{"continue", spec(`, "species": ["Q"]`), "--out", filepath.Join(dir, "a"), "--quiet"}, &out, &errb); rc != exitBadInput ||
+		!strings.Contains(errb.String(), `: species: `) || !strings.Contains(errb.String(), `"Q"`) {
+		t.Errorf("unknown species: exit %d, stderr %q; want 2 naming species and Q", rc, errb.String())
+	}
+	out.Reset()
+	if rc := dispatch([]string{"continue", spec(`, "response": "A"`), "--out", filepath.Join(dir, "b"), "--quiet"}, &out, &errb); rc != exitOK ||
+		!strings.Contains(out.String(), "no Hill curve: the response does not change") {
+		t.Errorf("flat response: exit %d, stdout %q; want the reason without a package prefix", rc, out.String())
+	}
+}
+
+func mustAbs(t *testing.T, p string) string {
+	a, err := filepath.Abs(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return a
+}
+
+// A sensitivity spec's bootstrap and levels are checked where they are
+// read and named by their keys: a negative bootstrap ran with the
+// default, odd levels were reported under another word ("screening").
+func TestSensitivitySpecChecks(t *testing.T) {
+	dir := t.TempDir()
+	model := filepath.ToSlash(mustAbs(t, "../../examples/two-compartment-drug.json"))
+	for extra, want := range map[string]string{
+		`"bootstrap": -1`:                 "bootstrap: expected a positive number of resamples, got -1",
+		`"method": "morris", "levels": 3`: "levels: expected an even number of levels, at least 2, got 3",
+	} {
+		p := filepath.Join(dir, fmt.Sprintf("s%d.json", len(extra)))
+		src := `{"format": "kinetarium.sensitivity/1", "model": "` + model + `", "samples": 8, "seed": 1, ` + extra + `,
+ "vary": [{"target": "Vmax", "distribution": "lognormal", "median": 6, "cv_percent": 30}],
+ "readouts": [{"kind": "max", "species": "D_plasma"}]}`
+		if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		var out, errb bytes.Buffer
+		if rc := dispatch([]string{"sensitivity", p, "--out", filepath.Join(dir, "out"), "--quiet"}, &out, &errb); rc != exitBadInput || !strings.Contains(errb.String(), want) {
+			t.Errorf("%s: exit %d, stderr %q; want 2 and %q", extra, rc, errb.String(), want)
 		}
 	}
 }

@@ -28,11 +28,12 @@ func init() {
 }
 
 // fileArgs parses "FILE [flags]" with flags before or after the file.
-func fileArgs(name string, args []string, fs *flag.FlagSet) (string, error) {
+func fileArgs(name string, args []string, fs *flag.FlagSet, stdout io.Writer) (string, error) {
 	fs.SetOutput(io.Discard)
 	pos, err := parseAnywhere(fs, args)
 	if err != nil {
 		if errors.Is(err, flag.ErrHelp) {
+			fmt.Fprint(stdout, usageText) // -h: the help, as for simulate
 			return "", err
 		}
 		return "", badInput(fmt.Errorf("%v (see batch help)", err))
@@ -51,9 +52,14 @@ func runImport(args []string, stdout, stderr io.Writer) int {
 func sbmlImport(args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("import", flag.ContinueOnError)
 	out := fs.String("out", "", "")
-	in, err := fileArgs("SBML file", args, fs)
+	in, err := fileArgs("SBML file", args, fs, stdout)
 	if err != nil {
 		return err
+	}
+	if *out != "" {
+		if err := checkOutFile("--out", *out); err != nil {
+			return err
+		}
 	}
 	f, err := os.Open(in)
 	if err != nil {
@@ -105,9 +111,14 @@ func runExport(args []string, stdout, stderr io.Writer) int {
 func sbmlExport(args []string, stdout io.Writer) error {
 	fs := flag.NewFlagSet("export", flag.ContinueOnError)
 	out := fs.String("out", "", "")
-	in, err := fileArgs("model file", args, fs)
+	in, err := fileArgs("model file", args, fs, stdout)
 	if err != nil {
 		return err
+	}
+	if *out != "" {
+		if err := checkOutFile("--out", *out); err != nil {
+			return err
+		}
 	}
 	m, err := network.Load(in)
 	if err != nil {
@@ -136,7 +147,7 @@ func conformanceRun(args []string, stdout, stderr io.Writer) error {
 	workers := fs.Int("workers", 0, "")
 	quiet := fs.Bool("quiet", false, "")
 	level := fs.String("level", "l3v2", "")
-	dir, err := fileArgs("folder of cases", args, fs)
+	dir, err := fileArgs("folder of cases", args, fs, stdout)
 	if err != nil {
 		return err
 	}
@@ -159,6 +170,9 @@ func conformanceRun(args []string, stdout, stderr io.Writer) error {
 	res, err := conformance.Run(ctx, dir, conformance.Options{Level: *level, Workers: *workers, Progress: progress})
 	if err != nil {
 		return err
+	}
+	if len(res) == 0 {
+		return badInput(fmt.Errorf("%s holds no case folders (named by five digits, such as 00001); expected the SBML Test Suite's cases folder", dir))
 	}
 	if *out != "" {
 		if err := conformance.WriteCSV(*out, res); err != nil {

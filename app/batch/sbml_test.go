@@ -103,3 +103,12 @@ func TestConformanceCommand(t *testing.T) {
 		t.Errorf("report:\n%s", data)
 	}
 }
+
+// A folder without cases is bad input, not a report of 0 cases that
+// passes (a mistyped path to the suite gave exit status 0).
+func TestConformanceWithoutCases(t *testing.T) {
+	var out, errb bytes.Buffer
+	if rc := dispatch([]string{"conformance", t.TempDir(), "--quiet"}, &out, &errb); rc != exitBadInput || !strings.Contains(errb.String(), "holds no case folders") {
+		t.Errorf("exit %d, stderr %q; want 2 and a message", rc, errb.String())
+	}
+}

@@ -15,7 +15,6 @@ import (
 	"kinetarium/app/run"
 	"kinetarium/app/study"
 	"kinetarium/plotting"
-	"kinetarium/solve/explore"
 )
 
 func init() { register("sensitivity", runSensitivity) }
@@ -62,6 +61,10 @@ func readSensitivitySpec(path string) (*sensitivitySpec, error) {
 		return nil, fmt.Errorf("%s: samples: expected a positive number, got %d", path, spec.Samples)
 	case spec.Seed == nil:
 		return nil, fmt.Errorf("%s: seed: missing (a whole number ≥ 0; the same seed gives the same result)", path)
+	case spec.Bootstrap < 0:
+		return nil, fmt.Errorf("%s: bootstrap: expected a positive number of resamples, got %d", path, spec.Bootstrap)
+	case spec.Levels < 0 || spec.Levels%2 != 0:
+		return nil, fmt.Errorf("%s: levels: expected an even number of levels, at least 2, got %d", path, spec.Levels)
 	case spec.Level != 0 && !(spec.Level > 0 && spec.Level < 1):
 		return nil, fmt.Errorf("%s: level: expected a confidence between 0 and 1 (e.g. 0.95), got %g", path, spec.Level)
 	case spec.Method != analyse.Morris && spec.Levels != 0:
@@ -81,9 +84,6 @@ func sensitivity(args []string, stdout, stderr io.Writer) error {
 	c, err := parseCmd("sensitivity", args, stderr)
 	if err != nil {
 		return badInput(err)
-	}
-	if c.shard != (explore.Shard{}) {
-		return badInput(fmt.Errorf("--shard: a sensitivity analysis runs whole (its estimates need every run); use --workers"))
 	}
 	spec, err := readSensitivitySpec(c.spec)
 	if err != nil {

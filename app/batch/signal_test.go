@@ -215,3 +215,46 @@ func TestSignalDuringSimulateWritesPartial(t *testing.T) {
 		t.Errorf("provenance %s lacks partial: true (%v)", data, err)
 	}
 }
+
+// A shard stopped by SIGTERM says it is partial and must be run again,
+// instead of inviting a merge that will refuse it.
+func TestSignalDuringShardSaysPartial(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a child process")
+	}
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "m.json"), []byte(robustModel), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	spec := filepath.Join(dir, "pop.json")
+	const body = `{"format": "kinetarium.population/1", "model": "m.json", "samples": 1000000, "seed": 2,
+ "vary": [{"target": "k", "distribution": "lognormal", "median": 0.5, "cv_percent": 30}],
+ "readouts": [{"name": "fin", "kind": "final", "species": "B"}],
+ "simulation": {"t_end": 1000, "points": 1000}}`
+	if err := os.WriteFile(spec, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cmd := exec.Command(os.Args[0], "population", spec, "--out", filepath.Join(dir, "parts"), "--workers", "1", "--shard", "0/2")
+	cmd.Env = append(os.Environ(), "KINETARIUM_BATCH_MAIN=1")
+	var stdout strings.Builder
+	cmd.Stdout = &stdout
+	stderr, err := cmd.StderrPipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	progress := bufio.NewScanner(stderr)
+	for progress.Scan() && !strings.HasSuffix(progress.Text(), "%") {
+	}
+	if err := cmd.Process.Signal(syscall.SIGTERM); err != nil {
+		t.Fatal(err)
+	}
+	for progress.Scan() {
+	}
+	if rc := exitCode(t, cmd); rc != exitFailed || !strings.Contains(stdout.String(), "partial: true; run this shard again") ||
+		strings.Contains(stdout.String(), "combine the shards") {
+		t.Errorf("exit %d, stdout %q; want 1 and the shard called partial", rc, stdout.String())
+	}
+}

@@ -117,8 +117,6 @@ func parseSimFlags(args []string) (*simFlags, error) {
 		return nil, simBadf("--figure: cannot draw %q: expected a file name ending in %s", f.figure, strings.Join(plotting.Formats, ", "))
 	case f.set["out"] && f.out == "":
 		return nil, simBadf("--out: expected a file name")
-	case f.set["out"] && isDir(f.out):
-		return nil, simBadf("--out: %s is an existing folder; expected a file name for the CSV", f.out)
 	case f.set["sensitivities"] && strings.TrimSpace(f.sens) == "":
 		return nil, simBadf("--sensitivities: expected all or a comma-separated list such as kcat,init:S,volume:well")
 	case f.set["sensitivities"] && f.sensOut == "" && f.out == "":
@@ -132,6 +130,13 @@ func parseSimFlags(args []string) (*simFlags, error) {
 	}
 	if f.sens != "" && f.sensOut == "" {
 		f.sensOut = strings.TrimSuffix(f.out, filepath.Ext(f.out)) + "-sensitivities.csv"
+	}
+	for _, o := range [][2]string{{"--out", f.out}, {"--figure", f.figure}, {"--sens-out", f.sensOut}} {
+		if o[1] != "" {
+			if err := checkOutFile(o[0], o[1]); err != nil {
+				return nil, err
+			}
+		}
 	}
 	return f, nil
 }

@@ -323,6 +323,40 @@ func TestSimulateFigures(t *testing.T) {
 	}
 }
 
+// The help carries the caution that results are research aids, not
+// clinical or dosing advice (README, top), and names the unit flags of
+// every command that takes them.
+func TestHelpCaution(t *testing.T) {
+	var out, errb bytes.Buffer
+	dispatch([]string{"help"}, &out, &errb)
+	for _, want := range []string{"research aids, not clinical or dosing advice", "qualified professionals", "local rules"} {
+		if !strings.Contains(out.String(), want) {
+			t.Errorf("help lacks %q", want)
+		}
+	}
+	for _, cmd := range []string{"sweep", "population", "continue", "sensitivity"} {
+		_, usage, _ := strings.Cut(out.String(), "\n  "+cmd+" SPEC.json")
+		usage, _, _ = strings.Cut(usage, "\n\n")
+		if !strings.Contains(usage, "--time-unit U") || !strings.Contains(usage, "--concentration-unit U") {
+			t.Errorf("help of %s lacks the unit flags: %q", cmd, usage)
+		}
+	}
+}
+
+// Every command answers -h with its usage and exit status 0 (import,
+// export and conformance printed nothing; check refused -h with status 2).
+func TestEveryCommandHelp(t *testing.T) {
+	for name := range commands {
+		if name == "test-panic" {
+			continue
+		}
+		var out, errb bytes.Buffer
+		if rc := dispatch([]string{name, "-h"}, &out, &errb); rc != exitOK || !strings.Contains(out.String()+errb.String(), "usage: batch") {
+			t.Errorf("%s -h: exit %d, stdout %q, stderr %q; want 0 and the usage", name, rc, out.String(), errb.String())
+		}
+	}
+}
+
 func TestDispatch(t *testing.T) {
 	var out, errb bytes.Buffer
 	if rc := dispatch([]string{"help"}, &out, &errb); rc != 0 || !strings.Contains(out.String(), "simulate MODEL.json") {

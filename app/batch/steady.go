@@ -356,11 +356,15 @@ func continueCmd(args []string, stdout, stderr io.Writer) error {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	prog, _ := progressPrinter("continue", stderr, c.quiet)
+	prog = everySecond(prog) // the branch reports each point
 	d, err := a.Continue(ctx, analyse.ContinueOptions{Knob: spec.Knob, From: *spec.From, To: *spec.To,
 		MaxPoints: spec.MaxPoints, Quantities: spec.Species, Progress: prog})
 	if err != nil {
 		if strings.HasPrefix(err.Error(), "at ") || errors.Is(err, context.Canceled) {
 			return fmt.Errorf("%s: %w", c.spec, err)
+		}
+		if rest, ok := strings.CutPrefix(err.Error(), "quantities: "); ok {
+			return badInput(fmt.Errorf("%s: species: %s", c.spec, rest)) // the spec's key
 		}
 		return badInput(fmt.Errorf("%s: %w", c.spec, err))
 	}
@@ -401,7 +405,7 @@ func continueCmd(args []string, stdout, stderr io.Writer) error {
 	if respIdx >= 0 {
 		h, err := d.Hill(respIdx)
 		if err != nil {
-			fmt.Fprintf(stdout, "  no Hill curve: %v\n", err)
+			fmt.Fprintf(stdout, "  no Hill curve: %s\n", strings.TrimPrefix(err.Error(), "steady: "))
 		} else {
 			if err := out.csv("hill.csv", analyse.HillRows(d, respIdx, h)); err != nil {
 				return err

@@ -16,7 +16,6 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
-	"time"
 
 	"kinetarium/app/ensemble"
 	"kinetarium/app/run"
@@ -179,12 +178,9 @@ func stochasticCmd(args []string, stdout, stderr io.Writer) error {
 		}
 	}
 	progress, _ := progressPrinter("stochastic", stderr, quiet)
-	var last time.Time
-	prog := func(f float64) {
-		if progress != nil && (time.Since(last) >= time.Second || f == 1) {
-			last = time.Now()
-			progress(f)
-		}
+	prog := everySecond(progress)
+	if prog == nil {
+		prog = func(float64) {}
 	}
 	e, runErr := job.Run(ctx, prog)
 	if runErr != nil && e == nil {
@@ -216,16 +212,23 @@ func stochasticCmd(args []string, stdout, stderr io.Writer) error {
 	return runErr
 }
 
-// isStochasticPart reports whether the file holds a stochastic part.
+// isStochasticPart reports whether the file holds a stochastic part: its
+// first key, as written, is the format. Only the head is read.
 func isStochasticPart(path string) bool {
-	data, err := os.ReadFile(path)
+	f, err := os.Open(path)
 	if err != nil {
 		return false
 	}
-	var head struct {
-		Format string `json:"format"`
+	defer f.Close()
+	dec := json.NewDecoder(io.LimitReader(f, 4<<10))
+	var format string
+	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+		return false
 	}
-	return json.Unmarshal(data, &head) == nil && head.Format == StochasticPartFormat
+	if t, err := dec.Token(); err != nil || t != "format" {
+		return false
+	}
+	return dec.Decode(&format) == nil && format == StochasticPartFormat
 }
 
 // mergeStochastic merges the shards of a stochastic ensemble.
@@ -236,7 +239,7 @@ func mergeStochastic(files []string, out string, stdout io.Writer) error {
 		parts    []*stochastic.Ensemble
 	)
 	for _, f := range files {
-		data, err := os.ReadFile(f)
+		data, err := readInput(f, maxPartSize)
 		if err != nil {
 			return badInput(fmt.Errorf("reading a part: %w", err))
 		}

@@ -15,6 +15,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"slices"
 	"strconv"
 	"strings"
@@ -89,7 +90,7 @@ func strict(raw []byte, v any, path string) error {
 			} else if field == "" {
 				field = path
 			}
-			return fmt.Errorf("%s: expected %s, got a JSON %s", field, te.Type, te.Value)
+			return fmt.Errorf("%s: expected %s, found %s", field, typeWord(te.Type), valueWord(te.Value))
 		}
 		if path == "" {
 			return errors.New(msg)
@@ -100,6 +101,50 @@ func strict(raw []byte, v any, path string) error {
 		return fmt.Errorf("%s: unexpected data after the JSON value", orTop(path))
 	}
 	return nil
+}
+
+// typeWord says in words what a Go type holds, for messages about a JSON
+// value of the wrong kind ("a whole number", not "int").
+func typeWord(t reflect.Type) string {
+	switch t.Kind() {
+	case reflect.Pointer:
+		return typeWord(t.Elem())
+	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64:
+		return "a whole number"
+	case reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64:
+		return "a whole number ≥ 0"
+	case reflect.Float32, reflect.Float64:
+		return "a number"
+	case reflect.String:
+		return "text"
+	case reflect.Bool:
+		return "true or false"
+	case reflect.Slice, reflect.Array:
+		return "a list"
+	case reflect.Map, reflect.Struct:
+		return "an object"
+	}
+	return t.String()
+}
+
+// valueWord says in words what kind of JSON value json.UnmarshalTypeError
+// found ("string", "number 1.5", …).
+func valueWord(v string) string {
+	switch {
+	case v == "string":
+		return "text"
+	case v == "number":
+		return "a number"
+	case strings.HasPrefix(v, "number "):
+		return "the number " + strings.TrimPrefix(v, "number ")
+	case v == "bool":
+		return "true or false"
+	case v == "array":
+		return "a list"
+	case v == "object":
+		return "an object"
+	}
+	return v
 }
 
 // orTop names an empty path "top level" in messages.
@@ -304,25 +349,32 @@ func setDisplay(sim *network.Simulation, u network.Units, show network.Display) 
 	return nil
 }
 
-// parseCmd parses "SPEC [--shard i/n] [--out DIR] [--workers N] [--quiet]"
-// with flags before or after the spec.
+// parseCmd parses "SPEC [--shard i/n] [--out DIR] [--workers N] [--quiet]
+// [--time-unit U] [--concentration-unit U]" with flags before or after the
+// spec; only sweep and population take --shard, and continue takes no
+// --workers (they are refused with the reason).
 func parseCmd(name string, args []string, stderr io.Writer) (*cmdFlags, error) {
 	fs := flag.NewFlagSet(name, flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	var c cmdFlags
 	var shard string
-	fs.StringVar(&c.out, "out", "", "folder for the results (default: the spec's name with -results, beside it)")
-	fs.StringVar(&shard, "shard", "", "run only part i of n (i/n, 0 ≤ i < n) and write a partial result for merge")
-	fs.IntVar(&c.workers, "workers", 0, "number of parallel workers (default: one per CPU)")
-	fs.BoolVar(&c.quiet, "quiet", false, "do not report progress")
-	usage := "usage: batch %s SPEC.json [--shard i/n] [--out DIR] [--workers N] [--quiet]\n"
-	if name == "sweep" || name == "population" || name == "continue" || name == "sensitivity" {
-		fs.StringVar(&c.show.Time, "time-unit", "", "show times in this unit (s, min, h, day) instead of the model's display unit")
-		fs.StringVar(&c.show.Concentration, "concentration-unit", "", "show concentrations in this unit (such as nM or mg/L) instead of the model's display unit")
-		usage = "usage: batch %s SPEC.json [--shard i/n] [--out DIR] [--workers N] [--quiet] [--time-unit U] [--concentration-unit U]\n"
+	usage := "usage: batch " + name + " SPEC.json"
+	fs.StringVar(&shard, "shard", "", "run only part i of n (i/n, 0 ≤ i < n) and write a partial result for merge (sweep and population)")
+	if name == "sweep" || name == "population" {
+		usage += " [--shard i/n]"
 	}
+	fs.StringVar(&c.out, "out", "", "folder for the results (default: the spec's name with -results, beside it)")
+	usage += " [--out DIR]"
+	fs.IntVar(&c.workers, "workers", 0, "number of parallel workers (default: one per CPU; not continue)")
+	if name != "continue" {
+		usage += " [--workers N]"
+	}
+	fs.BoolVar(&c.quiet, "quiet", false, "do not report progress")
+	fs.StringVar(&c.show.Time, "time-unit", "", "show times in this unit (s, min, h, day) instead of the model's display unit")
+	fs.StringVar(&c.show.Concentration, "concentration-unit", "", "show concentrations in this unit (such as nM or mg/L) instead of the model's display unit")
+	usage += " [--quiet] [--time-unit U] [--concentration-unit U]"
 	fs.Usage = func() {
-		fmt.Fprintf(stderr, usage, name)
+		fmt.Fprintln(stderr, usage)
 		fs.PrintDefaults()
 	}
 	pos, err := parseAnywhere(fs, args)
@@ -334,6 +386,16 @@ func parseCmd(name string, args []string, stderr io.Writer) (*cmdFlags, error) {
 		return nil, fmt.Errorf("%s: expected one spec file, got %d arguments", name, len(pos))
 	}
 	c.spec = pos[0]
+	// A continuation follows one branch on one core, and a sensitivity
+	// analysis needs every run: they refuse what they cannot honour.
+	switch {
+	case shard != "" && name == "continue":
+		return nil, errors.New("--shard: a continuation follows one branch and runs whole")
+	case shard != "" && name == "sensitivity":
+		return nil, errors.New("--shard: a sensitivity analysis runs whole (its estimates need every run); use --workers")
+	case c.workers != 0 && name == "continue":
+		return nil, errors.New("--workers: a continuation follows one branch, one point after another, on one core")
+	}
 	if shard != "" {
 		s, err := explore.ParseShard(shard)
 		if err != nil {
@@ -359,6 +421,22 @@ func progressPrinter(name string, w io.Writer, quiet bool) (func(float64), time.
 		return nil, 0
 	}
 	return func(f float64) { fmt.Fprintf(w, "%s: %3.0f %%\n", name, 100*f) }, time.Second
+}
+
+// everySecond passes progress on to f at most once a second, and when it
+// is complete, for runs that report every step (f may be nil). It is
+// called from one goroutine.
+func everySecond(f func(float64)) func(float64) {
+	if f == nil {
+		return nil
+	}
+	var last time.Time
+	return func(done float64) {
+		if time.Since(last) >= time.Second || done == 1 {
+			last = time.Now()
+			f(done)
+		}
+	}
 }
 
 // inputError marks an error in the command line or an input file (exit

@@ -65,11 +65,15 @@ func ReadCompanion(data []byte, source string) (*Companion, error) {
 		var se *json.SyntaxError
 		line, col := 0, 0
 		if errors.As(err, &se) {
-			line, col = lineCol(text, se.Offset)
+			at := se.Offset // a repeated key's value: valid JSON
+			if off, ok := atomicfile.JSONSyntaxAt(text); ok {
+				at = off
+			}
+			line, col = lineCol(text, at)
 		}
 		msg := err.Error()
 		if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
-			msg = "the file ends before the JSON object does"
+			msg = atomicfile.TruncatedJSON
 		}
 		return nil, SpecErrors{{File: source, Line: line, Col: col, Msg: "not valid JSON: " + msg}}
 	}

@@ -7,11 +7,12 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"sort"
 	"strconv"
 	"strings"
+
+	"kinetarium/internal/atomicfile"
 )
 
 // Data is one file of measurements: time courses of species or
@@ -83,9 +84,12 @@ func listed[E error](l []E) string {
 // maxDataErrors bounds the problems listed for one file.
 const maxDataErrors = 25
 
+// maxDataSize bounds a measurement file read (README, Limits).
+const maxDataSize = 64 << 20
+
 // LoadData reads a data file (see ReadData).
 func LoadData(path string, known []string) (*Data, error) {
-	b, err := os.ReadFile(path)
+	b, err := atomicfile.ReadFile(path, maxDataSize)
 	if err != nil {
 		return nil, fmt.Errorf("reading measurements: %w", err)
 	}
@@ -107,7 +111,10 @@ func ReadData(b []byte, source string, known []string) (*Data, error) {
 			errs = append(errs, &DataError{File: source, Line: line, Column: col, Name: name, Msg: fmt.Sprintf(format, args...)})
 		}
 	}
-	b = bytes.TrimPrefix(b, []byte("\xef\xbb\xbf")) // a byte-order mark
+	b, err := atomicfile.Text(b) // a byte-order mark dropped, UTF-16 named
+	if err != nil {
+		return nil, DataErrors{{File: source, Msg: err.Error()}}
+	}
 	sep := ','
 	first, _, _ := bytes.Cut(b, []byte("\n"))
 	if strings.EqualFold(filepath.Ext(source), ".tsv") || bytes.ContainsRune(first, '\t') {

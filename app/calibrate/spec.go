@@ -7,12 +7,12 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"sort"
 	"strings"
 
 	"kinetarium/app/sliders"
+	"kinetarium/internal/atomicfile"
 )
 
 // SpecFormat is the format name of fit specifications.
@@ -273,9 +273,12 @@ func (r *specReader) values(n *jnode, path string) map[string]float64 {
 	return out
 }
 
+// maxSpecSize bounds a fit specification read (README, Limits).
+const maxSpecSize = 16 << 20
+
 // LoadSpec reads a fit specification from a file.
 func LoadSpec(path string) (*Spec, error) {
-	b, err := os.ReadFile(path)
+	b, err := atomicfile.ReadFile(path, maxSpecSize)
 	if err != nil {
 		return nil, fmt.Errorf("reading the fit specification: %w", err)
 	}
@@ -291,17 +294,26 @@ func LoadSpec(path string) (*Spec, error) {
 // line and column. It checks the spec's own consistency; names are checked
 // against the model by NewFit.
 func ReadSpec(data []byte, source string) (*Spec, error) {
+	data, err := atomicfile.Text(data)
+	if err != nil {
+		return nil, SpecErrors{{File: source, Msg: err.Error()}}
+	}
 	r := &specReader{file: source, data: data}
 	top, err := parseJSON(data)
 	if err != nil {
 		var se *json.SyntaxError
 		line, col := 0, 0
 		if errors.As(err, &se) {
-			line, col = lineCol(data, se.Offset)
+			at := se.Offset // a repeated key's value: valid JSON
+			if off, ok := atomicfile.JSONSyntaxAt(data); ok {
+				at = off
+			}
+			line, col = lineCol(data, at)
 		}
 		msg := err.Error()
 		if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
-			msg = "the file ends before the JSON object does"
+			msg = atomicfile.TruncatedJSON
+			line, col = lineCol(data, int64(len(data)))
 		}
 		return nil, SpecErrors{{File: source, Line: line, Col: col, Msg: "not valid JSON: " + msg}}
 	}

@@ -228,7 +228,7 @@ func (o *Outcome) WithEventRows() *Outcome {
 			c.Y = append(c.Y, j.Before, j.After)
 			k++
 		}
-		if len(c.T) > 0 && c.T[len(c.T)-1] == t && i > 0 {
+		if len(c.T) > 0 && c.T[len(c.T)-1] == t {
 			continue // the jump's pair stands for this row
 		}
 		c.T = append(c.T, t)

@@ -404,6 +404,25 @@ func TestRunEventRows(t *testing.T) {
 	}
 }
 
+// A dose at t = 0 gives two rows at t = 0, as at any other time: the
+// state before it (the initial state) and after it; the grid's first row,
+// which holds the state after, is not repeated.
+func TestRunEventRowsAtStart(t *testing.T) {
+	m := decayModel(0.7, 2, 5)
+	m.Events = []network.Event{{Name: "bolus", At: network.Number(0), Add: []network.Change{{Target: "A", Value: "10"}}}}
+	o, err := Run(context.Background(), m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	e := o.WithEventRows()
+	if len(e.T) != len(o.T)+1 {
+		t.Fatalf("%d rows with events, %d without; want one more (the row before the dose)", len(e.T), len(o.T))
+	}
+	if e.T[0] != 0 || e.T[1] != 0 || e.T[2] == 0 || e.Y[0][0] != 2 || e.Y[1][0] != 12 {
+		t.Errorf("first rows %v at %v; want A = 2 then 12 at t = 0, then a later time", e.Y[:3], e.T[:3])
+	}
+}
+
 // An event's mark on the time axis is found under the pointer, and not
 // away from it.
 func TestEventNearMark(t *testing.T) {

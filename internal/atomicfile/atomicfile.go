@@ -10,6 +10,7 @@ import (
 	"bufio"
 	"bytes"
 	"encoding/csv"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -373,7 +374,28 @@ func Text(data []byte) ([]byte, error) {
 		enc = "UTF-16"
 	}
 	if enc != "" {
-		return nil, fmt.Errorf("the file is %s text; save it as UTF-8 (the usual encoding of JSON) and try again", enc)
+		return nil, fmt.Errorf("the file is %s text; save it as UTF-8 (the usual encoding of JSON, CSV and SBML) and try again", enc)
 	}
 	return data, nil
+}
+
+// TruncatedJSON is the message for a JSON file that ends before its
+// objects and lists are closed, for every reader of JSON input.
+const TruncatedJSON = "the file ends too early (truncated?): an object or list is not closed"
+
+// JSONSyntaxAt returns the offset of the byte at which data stops being
+// valid JSON: the offending character, or len(data) when the text ends
+// too early; ok is false when data is valid JSON. The syntax errors of
+// json.Decoder.Token carry no reliable offset (they may point at an
+// earlier key), so the readers built on it place their syntax errors here.
+func JSONSyntaxAt(data []byte) (off int64, ok bool) {
+	var raw json.RawMessage
+	var se *json.SyntaxError
+	if err := json.Unmarshal(data, &raw); !errors.As(err, &se) {
+		return 0, false
+	}
+	if se.Offset >= int64(len(data)) && se.Error() == "unexpected end of JSON input" {
+		return int64(len(data)), true
+	}
+	return max(0, se.Offset-1), true // the offset counts the offending byte
 }

@@ -247,3 +247,25 @@ func TestCreateCommitAbort(t *testing.T) {
 		t.Errorf("the link's target holds %q, want %q", b, "new\n")
 	}
 }
+
+// JSONSyntaxAt points at the offending character, or at the end of a text
+// that ends too early; valid JSON has no such place.
+func TestJSONSyntaxAt(t *testing.T) {
+	for _, c := range []struct {
+		data string
+		at   int64
+		ok   bool
+	}{
+		{`{"format": x}`, 11, true},
+		{"{\"a\": 1,\n \"b\": [1, 2,, 3]}", 21, true},
+		{`{"a": {"b": tru}}`, 15, true},
+		{`{"a": [1, 2`, 11, true},
+		{`{"a": 1} x`, 9, true},
+		{`{"a": 1}`, 0, false},
+	} {
+		at, ok := JSONSyntaxAt([]byte(c.data))
+		if at != c.at || ok != c.ok {
+			t.Errorf("%q: %d, %v; want %d, %v", c.data, at, ok, c.at, c.ok)
+		}
+	}
+}

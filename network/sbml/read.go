@@ -28,6 +28,7 @@ import (
 	"strconv"
 	"strings"
 
+	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
 	"kinetarium/network/expr"
 )
@@ -99,12 +100,12 @@ func (s Symbol) Amount(v, vol float64) float64 {
 // with its line and column in the document, and the Import (when not nil)
 // lists them too.
 func Read(r io.Reader, file string) (*Import, error) {
-	data, err := io.ReadAll(io.LimitReader(r, MaxSize+1))
-	if err != nil {
-		return nil, fmt.Errorf("reading %s: %w", file, err)
+	data, err := atomicfile.ReadLimited(r, MaxSize)
+	if err == nil {
+		data, err = atomicfile.Text(data) // UTF-16 named, not "invalid UTF-8"
 	}
-	if len(data) > MaxSize {
-		return nil, network.ErrorList{problem(file, 0, 0, "", "the file is larger than %d MB, the most this reader accepts", MaxSize>>20)}
+	if err != nil {
+		return nil, network.ErrorList{problem(file, 0, 0, "", "%v", err)}
 	}
 	return Parse(data, file)
 }
@@ -347,7 +348,14 @@ func (im *importer) checkPackages(n *node, core string) {
 // read collects every identifier, rule, initial assignment and event, and
 // refuses what cannot be represented.
 func (im *importer) read(model *node) {
+	first := map[string]*node{} // each list's first element: only it is read
 	for _, k := range model.Kids {
+		if f := first[k.Name]; f != nil && strings.HasPrefix(k.Name, "listOf") {
+			im.errAt(k, "", "<%s> appears a second time (first on line %d); SBML allows one per model", k.Name, f.Line)
+			continue
+		} else if f == nil {
+			first[k.Name] = k
+		}
 		switch k.Name {
 		case "listOfFunctionDefinitions", "listOfUnitDefinitions", "listOfCompartments", "listOfSpecies", "listOfParameters",
 			"listOfInitialAssignments", "listOfRules", "listOfReactions", "listOfEvents", "annotation", "notes":

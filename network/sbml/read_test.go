@@ -1,6 +1,7 @@
 package sbml
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"io"
@@ -195,6 +196,9 @@ func TestImportProblems(t *testing.T) {
 			`the SBML package "comp"`, 1},
 		{"undefined value", doc(sp + `<listOfParameters><parameter id="p" constant="true"/></listOfParameters><listOfRules><rateRule variable="S"><math ` + mml + `><ci>p</ci></math></rateRule></listOfRules>`),
 			`parameter "p": no value is given`, 6},
+		{"repeated list", doc(sp + `<listOfRules><rateRule variable="S"><math ` + mml + `><cn>1</cn></math></rateRule></listOfRules>
+<listOfRules><algebraicRule><math ` + mml + `><ci>S</ci></math></algebraicRule></listOfRules>`),
+			"<listOfRules> appears a second time (first on line 6)", 7},
 		{"delay symbol", doc(sp + `<listOfRules><rateRule variable="S"><math ` + mml + `><apply><csymbol encoding="text" definitionURL="http://www.sbml.org/sbml/symbols/delay">delay</csymbol><ci>S</ci><cn>1</cn></apply></math></rateRule></listOfRules>`),
 			"the function delay is not supported", 6},
 	}
@@ -238,8 +242,25 @@ func TestFormulaTooLarge(t *testing.T) {
 func TestReadTooLarge(t *testing.T) {
 	r := io.MultiReader(strings.NewReader("<sbml>"), io.LimitReader(zeros{}, 100<<20))
 	_, err := Read(r, "big.xml")
-	if err == nil || !strings.Contains(err.Error(), "big.xml") || !strings.Contains(err.Error(), "larger than 64 MB") {
+	if err == nil || !strings.Contains(err.Error(), "big.xml") || !strings.Contains(err.Error(), "larger than 64 MiB") {
 		t.Errorf("a 100 MB file gives %v", err)
+	}
+}
+
+// A document saved as UTF-16 is named as such (README, Limits), and one
+// with a UTF-8 byte-order mark is read.
+func TestReadEncodings(t *testing.T) {
+	src := `<?xml version="1.0" encoding="UTF-16"?>` + "\n" + doc("")
+	var u16 []byte
+	u16 = append(u16, 0xFF, 0xFE)
+	for _, r := range src {
+		u16 = append(u16, byte(r), 0) // ASCII only
+	}
+	if _, err := Read(bytes.NewReader(u16), "u16.xml"); err == nil || !strings.Contains(err.Error(), "u16.xml: the file is UTF-16 text") {
+		t.Errorf("UTF-16: %v; want it named", err)
+	}
+	if _, err := Read(strings.NewReader("\xef\xbb\xbf"+doc("")), "bom.xml"); err != nil {
+		t.Errorf("byte-order mark: %v", err)
 	}
 }
 

@@ -3,6 +3,7 @@ package explore
 import (
 	"fmt"
 	"math"
+	"strings"
 )
 
 // Trajectory is a solution sampled on an output grid.
@@ -78,7 +79,11 @@ func (r Readout) Validate(dim int) error {
 	}
 	switch {
 	case !known:
-		return fmt.Errorf("readout %q: unknown kind %q (expected one of %v)", r.Name, r.Kind, Kinds)
+		names := make([]string, len(Kinds))
+		for i, k := range Kinds {
+			names[i] = string(k)
+		}
+		return fmt.Errorf("readout %q: unknown kind %q; expected one of %s", r.Name, r.Kind, strings.Join(names, ", "))
 	case r.Component < 0 || r.Component >= dim:
 		return fmt.Errorf("readout %q: component %d out of range [0, %d)", r.Name, r.Component, dim)
 	case r.Kind == ValueAt && (math.IsNaN(r.At) || math.IsInf(r.At, 0)):

@@ -2,6 +2,7 @@ package explore
 
 import (
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -104,6 +105,10 @@ func TestReadoutValidate(t *testing.T) {
 		if want := `readout "` + r.Name + `"`; len(err.Error()) < len(want) || err.Error()[:len(want)] != want {
 			t.Errorf("error %q does not name the readout", err)
 		}
+	}
+	// The kinds are listed as words, not as a Go list in brackets.
+	if err := (Readout{Name: "a", Kind: "peak"}).Validate(2); err == nil || !strings.HasSuffix(err.Error(), "expected one of value_at, max, time_of_max, min, time_of_min, final, auc, cross_up, cross_down") {
+		t.Errorf("unknown kind: %v", err)
 	}
 }
 

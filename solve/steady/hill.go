@@ -17,7 +17,14 @@ type Hill struct {
 	// mean square of the residuals, Points the number of points used.
 	R2, RMS float64
 	Points  int
+	// DoseMin and DoseMax are the smallest and largest dose fitted.
+	DoseMin, DoseMax float64
 }
+
+// Extrapolated reports whether the half-effect dose lies outside the
+// doses fitted: the points then do not reach the half effect, and the
+// EC50 and the far plateau are the curve's guess, not the data's.
+func (h Hill) Extrapolated() bool { return h.EC50 < h.DoseMin || h.EC50 > h.DoseMax }
 
 // At evaluates the curve.
 func (h Hill) At(x float64) float64 {
@@ -135,7 +142,7 @@ func FitHill(x, r []float64) (Hill, error) {
 			break
 		}
 	}
-	h := Hill{Bottom: p[0], Top: p[1], EC50: math.Exp(p[2]), N: p[3], Points: m}
+	h := Hill{Bottom: p[0], Top: p[1], EC50: math.Exp(p[2]), N: p[3], Points: m, DoseMin: xs[ilo], DoseMax: xs[ihi]}
 	if h.N < 0 { // the same curve with the ends swapped
 		h.N = -h.N
 		h.Bottom, h.Top = h.Top, h.Bottom

@@ -191,3 +191,26 @@ func TestFitHillExact(t *testing.T) {
 		t.Error("a flat response was fitted")
 	}
 }
+
+// A fit whose half-effect dose lies outside the doses it was given is
+// extrapolated, and says so; one over doses around it is not.
+func TestFitHillExtrapolated(t *testing.T) {
+	want := Hill{Bottom: 100, Top: 0, EC50: 50, N: 2}
+	for _, c := range []struct {
+		lo, hi float64
+		extra  bool
+	}{{0.1, 20, true}, {1, 2000, false}} {
+		var x, r []float64
+		for k := 0; k <= 30; k++ {
+			v := c.lo * math.Pow(c.hi/c.lo, float64(k)/30)
+			x, r = append(x, v), append(r, want.At(v))
+		}
+		h, err := FitHill(x, r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if h.DoseMin != c.lo || math.Abs(h.DoseMax/c.hi-1) > 1e-12 || h.Extrapolated() != c.extra {
+			t.Errorf("doses %v to %v: range [%v, %v], EC50 %v, extrapolated %v; want %v", c.lo, c.hi, h.DoseMin, h.DoseMax, h.EC50, h.Extrapolated(), c.extra)
+		}
+	}
+}
