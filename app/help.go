@@ -106,7 +106,7 @@ time axis mark when events fired (point at one for its name). Dose amounts,
 times and intervals can be put on sliders and varied in sweeps and
 populations.
 
-**Dosing simulations are research aids, not dosing advice.** Doses and
+**Dosing simulations are research aids, not clinical or dosing advice.** Doses and
 schedules for people or animals are decided by qualified professionals
 under local rules.
 

@@ -1,6 +1,7 @@
 package editor
 
 import (
+	"strings"
 	"testing"
 
 	"fyne.io/fyne/v2/test"
@@ -45,5 +46,22 @@ func TestEventForm(t *testing.T) {
 	ev = d.Model().Events[0]
 	if !ev.From.Set || !ev.To.Set || len(ev.Infuse) != 1 || len(ev.Add) != 0 || ev.At.Set {
 		t.Errorf("after switching to an infusion: %+v", ev)
+	}
+}
+
+// The event form, where doses are entered, opens with the caution, so that
+// it is in view before a dose is typed rather than below the fold; it says
+// what results are and defers to professionals and local rules.
+func TestEventFormOpensWithCaution(t *testing.T) {
+	e, _ := newTestEditor(t)
+	ef := e.panes["events"].form.(*eventForm)
+	first, ok := ef.box.Objects[0].(*widget.Label)
+	if !ok {
+		t.Fatalf("the event form starts with a %T, want the caution", ef.box.Objects[0])
+	}
+	for _, part := range []string{"research aids", "not clinical or dosing advice", "qualified professionals", "local rules"} {
+		if !strings.Contains(first.Text, part) {
+			t.Errorf("the caution %q does not say %q", first.Text, part)
+		}
 	}
 }
