@@ -110,11 +110,9 @@ func newSteadyWindow(a fyne.App, m *network.Model, name string, control bool) (*
 	s.verdict = widget.NewLabel("")
 	s.verdict.Wrapping = fyne.TextWrapWord
 	s.tabs = container.NewAppTabs(container.NewTabItem("…", widget.NewLabel("Computing the steady state…")))
-	caution := widget.NewLabel("Results are research aids, not clinical or dosing advice.")
-	caution.Importance = widget.LowImportance
 	split := container.NewVSplit(container.NewVScroll(container.NewPadded(s.verdict)), s.tabs)
 	split.Offset = 0.25
-	s.win.SetContent(container.NewBorder(s.ctl.content, caution, nil, nil, split))
+	s.win.SetContent(container.NewBorder(s.ctl.content, nil, nil, nil, split))
 	s.win.Resize(fyne.NewSize(820, 600))
 	return s, nil
 }
@@ -302,10 +300,8 @@ func newContinuationWindow(a fyne.App, m *network.Model, name string) (*continua
 		widget.NewFormItem("At most points", c.maxPts))
 	help := widget.NewLabel("The branch starts at the steady state reached from the model's initial state at “From” and follows it towards “To”, around turning points. Stable parts are solid, unstable parts dashed; folds are triangles, Hopf points (where oscillations begin) squares. “From” and “To” are in the quantity's own unit in the model; results follow the display units of Run settings.")
 	help.Wrapping = fyne.TextWrapWord
-	caution := widget.NewLabel("Results are research aids, not clinical or dosing advice.")
-	caution.Importance = widget.LowImportance
 	left := container.NewVScroll(container.NewPadded(container.NewVBox(sectionTitle("What varies"), form, help,
-		widget.NewSeparator(), c.ctl.content, caution)))
+		widget.NewSeparator(), c.ctl.content)))
 	c.diagram = newStudyFigure("Press Run to follow the steady state.")
 	c.points = container.NewVBox(widget.NewLabel("Special points appear here."))
 	c.response = widget.NewSelect(nil, func(string) { c.fitHill() })

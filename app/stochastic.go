@@ -105,7 +105,7 @@ func newStochasticWindow(a fyne.App, m *network.Model, name string) (*stochastic
 		s.notes.SetText("Counts from concentrations: " + how + ".")
 	}
 	form := widget.NewForm(items...)
-	caution := widget.NewLabel("Non-elementary rate laws (Michaelis–Menten, expressions) are approximated by rate × volume × molecules per amount. " + ensemble.Caution)
+	caution := widget.NewLabel("Non-elementary rate laws (Michaelis–Menten, expressions) are approximated by rate × volume × molecules per amount.")
 	caution.Wrapping = fyne.TextWrapWord
 	setup := container.NewVBox(sectionTitle("Stochastic runs in molecule counts"), form,
 		widget.NewSeparator(), s.ctl.content, widget.NewSeparator(), s.notes, caution)

@@ -327,13 +327,15 @@ func (f *studyFigure) CreateRenderer() fyne.WidgetRenderer {
 func (f *studyFigure) MinSize() fyne.Size { return fyne.NewSize(360, 240) }
 
 // runControls are the Run button, the progress bar and Cancel of a study
-// window. The work runs on its own goroutine; every widget update goes
+// window, with the status line and the caution (run.Caution) under them.
+// The work runs on its own goroutine; every widget update goes
 // through deliver (fyne.Do in the program).
 type runControls struct {
 	run      *widget.Button
 	cancel   *widget.Button
 	progress *widget.ProgressBar
 	status   *widget.Label
+	caution  *widget.Label
 	stop     context.CancelFunc
 	deliver  func(func())
 	running  bool
@@ -349,7 +351,10 @@ func newRunControls(start func()) *runControls {
 	c.progress = widget.NewProgressBar()
 	c.status = widget.NewLabel("")
 	c.status.Wrapping = fyne.TextWrapWord
-	c.content = container.NewVBox(container.NewBorder(nil, nil, c.run, c.cancel, c.progress), c.status)
+	c.caution = widget.NewLabel(run.Caution)
+	c.caution.Wrapping = fyne.TextWrapWord
+	c.caution.Importance = widget.LowImportance
+	c.content = container.NewVBox(container.NewBorder(nil, nil, c.run, c.cancel, c.progress), c.status, c.caution)
 	return c
 }
 
