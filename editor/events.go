@@ -125,7 +125,7 @@ func newEventForm(ed *Editor) *eventForm {
 	f.to = value("Ends at", "to", func(e *network.Event) *network.Value { return &e.To })
 	f.every = value("Repeat every", "every", func(e *network.Event) *network.Value { return &e.Every })
 	f.every.input.(*widget.Entry).SetPlaceHolder("interval (empty: once)")
-	cnt, load := f.numberInput("count", "edit event count",
+	cnt, load := f.countInput("count", "edit event count",
 		func(m *network.Model, i int) float64 { return float64(ev(m, i).Count) },
 		func(m *network.Model, i int, v float64) { ev(m, i).Count = int(v) })
 	cnt.SetPlaceHolder("number of times")

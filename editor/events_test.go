@@ -65,3 +65,40 @@ func TestEventFormOpensWithCaution(t *testing.T) {
 		}
 	}
 }
+
+// A count that is not a whole number (the event's number of times, the
+// run's output points) is kept as typed with a message naming the field,
+// and the model keeps its count, rather than being cut to a whole number
+// or, when negative, taken as a single dose.
+func TestCountsMustBeWholeNumbers(t *testing.T) {
+	e, d := newTestEditor(t)
+	ef := e.panes["events"].form.(*eventForm)
+	d.Apply("add event", func(m *network.Model) {
+		eventKind.add(d, m, 0)
+		m.Events[0].Every, m.Events[0].Count = network.Number(12), 3
+	})
+	e.SelectRow("events", 0)
+	count := ef.count.input.(*widget.Entry)
+	points := runField(t, e, "output.points").input.(*widget.Entry)
+	before := d.Model().Simulation.Output.Points
+	for _, typed := range []string{"2.5", "-1", "1e12"} {
+		count.SetText(typed)
+		if got := d.Model().Events[0].Count; got != 3 {
+			t.Errorf("count %q taken as %d", typed, got)
+		}
+		if !hasMessage(e, "events", 0, "count", "not a whole number") {
+			t.Errorf("count %q: no message; messages %v", typed, e.Messages())
+		}
+		points.SetText(typed)
+		if got := d.Model().Simulation.Output.Points; got != before {
+			t.Errorf("output points %q taken as %d", typed, got)
+		}
+		if !hasMessage(e, "simulation", 0, "output.points", "not a whole number") {
+			t.Errorf("output points %q: no message; messages %v", typed, e.Messages())
+		}
+	}
+	count.SetText("14")
+	if got := d.Model().Events[0].Count; got != 14 || hasMessage(e, "events", 0, "count", "") {
+		t.Errorf("count 14 taken as %d, messages %v", got, e.Messages())
+	}
+}

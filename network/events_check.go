@@ -134,7 +134,10 @@ func (v *validator) events() {
 				ok = false
 			}
 		}
-		if e.Every.Set && e.Count == 0 {
+		if e.Count < 0 || e.Count > MaxCount {
+			errf("count", 0, "count = %d is not allowed; expected a whole number from 1 to %d, the number of occurrences", e.Count, MaxCount)
+			ok = false
+		} else if e.Every.Set && e.Count == 0 {
 			errf("count", 0, "\"every\" needs \"count\", the number of occurrences")
 			ok = false
 		}

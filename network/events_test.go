@@ -112,6 +112,10 @@ func TestEventModelErrors(t *testing.T) {
 		{Event{Name: "h", Add: []Change{{"C", "1"}}}, "", "exactly one timing"},
 		{Event{Name: "i", At: Number(1), Add: []Change{{"k", "1"}}}, "add.k", "add takes species"},
 		{Event{Name: "j", From: Number(0), To: Number(1), Infuse: []Change{{"C", "C"}}}, "infuse.C", "numbers and parameters only"},
+		// A count the file reader refuses is refused by Check too, so that
+		// a model edited in the window saves as a file that reads back.
+		{Event{Name: "k", At: Number(0), Every: Number(1), Count: -1, Add: []Change{{"C", "1"}}}, "count", "count = -1 is not allowed"},
+		{Event{Name: "l", At: Number(0), Every: Number(1), Count: MaxCount + 1, Add: []Change{{"C", "1"}}}, "count", "expected a whole number from 1 to 1000000"},
 	}
 	for _, c := range cases {
 		m := pkModel(c.e)
