@@ -206,8 +206,15 @@ func (e *Editor) Describe(m Message) string {
 		fields = e.run.fields()
 	}
 	for _, f := range fields {
-		if f.name == p.Field && f.label != "" {
+		if f.label == "" {
+			continue
+		}
+		if f.name == p.Field {
 			p.Field = f.label
+			break
+		}
+		if line, ok := strings.CutPrefix(p.Field, f.name+"."); ok {
+			p.Field = f.label + " (" + line + ")"
 			break
 		}
 	}
@@ -412,8 +419,10 @@ func (e *Editor) markFields(section string, i int, fields []*field) {
 }
 
 // fieldMatches reports whether a message about field msgField belongs to
-// the input named name. Messages about the whole item go to the name, and
-// messages about the rate as a whole to the rate law.
+// the input named name. Messages about the whole item go to the name,
+// messages about the rate as a whole to the rate law, and messages about
+// one line of a list, such as "add.D_gut" (the line for D_gut in an
+// event's Add), to the list's input.
 func fieldMatches(name, msgField string) bool {
 	switch msgField {
 	case name:
@@ -423,7 +432,7 @@ func fieldMatches(name, msgField string) bool {
 	case "rate":
 		return name == "rate.law"
 	}
-	return false
+	return strings.HasPrefix(msgField, name+".")
 }
 
 func (e *Editor) markFieldsRun() {

@@ -102,3 +102,39 @@ func TestCountsMustBeWholeNumbers(t *testing.T) {
 		t.Errorf("count 14 taken as %d, messages %v", got, e.Messages())
 	}
 }
+
+// A mistake in one line of an event's Add is shown under the Add input
+// (not under the event's name) and named by the form's label and the
+// line's species, not by the file's key "add.S".
+func TestEventLineMessageAtItsInput(t *testing.T) {
+	e, d := newTestEditor(t)
+	formInWindow(t, e)
+	ef := e.panes["events"].form.(*eventForm)
+	d.Apply("add event", func(m *network.Model) {
+		eventKind.add(d, m, 0)
+		m.Events[0].Add = []network.Change{{Target: "S", Value: "1"}}
+	})
+	e.SelectRow("events", 0)
+	add := ef.add.input.(*widget.Entry)
+	add.SetText("S = dosee")
+	var msg *Message
+	for i, m := range e.Messages() {
+		if m.Section == "events" && strings.Contains(m.Message, `"dosee"`) {
+			msg = &e.Messages()[i]
+		}
+	}
+	if msg == nil {
+		t.Fatalf("no message about dosee: %v", e.Messages())
+	}
+	if got := e.Describe(*msg); !strings.Contains(got, `event "event1", Add (S)`) {
+		t.Errorf("described as %q, want the place named as the form names it", got)
+	}
+	if !ef.add.msg.Visible() || !strings.Contains(ef.add.msg.Text, "dosee") {
+		t.Errorf("the Add input shows %q", ef.add.msg.Text)
+	}
+	for _, f := range ef.fields() {
+		if f != ef.add && f.msg.Visible() && strings.Contains(f.msg.Text, "dosee") {
+			t.Errorf("the message is shown under %s too", f.label)
+		}
+	}
+}
