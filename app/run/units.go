@@ -166,7 +166,7 @@ func Show(timeUnit, amountUnit string, names, colUnits []string, species int, d 
 	return sh, nil
 }
 
-// unitOf returns the unit of column j: o.Units[j] when given, else the
+// ColumnUnit returns the unit of column j: o.Units[j] when given, else the
 // concentration unit for a species and "" for an assignment.
 func (o *Outcome) ColumnUnit(j int) string {
 	if j < len(o.Units) {
