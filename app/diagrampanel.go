@@ -238,7 +238,7 @@ func (p *diagramPanel) applyFrame() {
 	if p.w.current.TimeUnit != "" {
 		u = " " + p.w.current.TimeUnit
 	}
-	p.tLabel.SetText(fmt.Sprintf("t = %.4g%s   colour %.2g (dark) to %.2g (light)", p.t, u, p.replay.Lo, p.replay.Hi))
+	p.tLabel.SetText(fmt.Sprintf("t = %.4g%s   colour %s", p.t, u, p.replay.ColourRange()))
 }
 
 // togglePlay plays the replay from the slider's place to the end, or
