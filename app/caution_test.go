@@ -11,16 +11,15 @@ import (
 	"kinetarium/app/sliders"
 )
 
-// shownLabels returns the texts of the visible labels among o and what it
-// holds.
-func shownLabels(o fyne.CanvasObject) []string {
+// shownLabels returns the visible labels among o and what it holds.
+func shownLabels(o fyne.CanvasObject) []*widget.Label {
 	if !o.Visible() {
 		return nil
 	}
-	var out []string
+	var out []*widget.Label
 	switch x := o.(type) {
 	case *widget.Label:
-		return []string{x.Text}
+		return []*widget.Label{x}
 	case *fyne.Container:
 		for _, c := range x.Objects {
 			out = append(out, shownLabels(c)...)
@@ -39,6 +38,7 @@ func shownLabels(o fyne.CanvasObject) []string {
 // aids, not clinical or dosing advice, and that decisions rest with
 // qualified professionals under local rules; the sweep, population and
 // sensitivity-over-time windows, where doses can be varied, among them.
+// It is not in the faint grey of low importance.
 func TestResultWindowsCarryTheCaution(t *testing.T) {
 	a := newStudyApp(t)
 	drug := exampleModel(t, "two-compartment-drug.json")
@@ -83,10 +83,13 @@ func TestResultWindowsCarryTheCaution(t *testing.T) {
 			continue
 		}
 		found := false
-		for _, text := range shownLabels(win.Content()) {
-			if strings.Contains(text, "research aids, not clinical or dosing advice") &&
-				strings.Contains(text, "qualified professionals") && strings.Contains(text, "local rules") {
+		for _, l := range shownLabels(win.Content()) {
+			if strings.Contains(l.Text, "research aids, not clinical or dosing advice") &&
+				strings.Contains(l.Text, "qualified professionals") && strings.Contains(l.Text, "local rules") {
 				found = true
+				if l.Importance == widget.LowImportance {
+					t.Errorf("the %s window shows its caution faintly", name)
+				}
 			}
 		}
 		if !found {

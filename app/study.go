@@ -353,7 +353,7 @@ func newRunControls(start func()) *runControls {
 	c.status.Wrapping = fyne.TextWrapWord
 	c.caution = widget.NewLabel(run.Caution)
 	c.caution.Wrapping = fyne.TextWrapWord
-	c.caution.Importance = widget.LowImportance
+	c.caution.Importance = widget.WarningImportance // as legible as the event form's
 	c.content = container.NewVBox(container.NewBorder(nil, nil, c.run, c.cancel, c.progress), c.status, c.caution)
 	return c
 }
