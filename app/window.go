@@ -60,6 +60,9 @@ type mainWindow struct {
 	// (a run that failed or stopped, a model that cannot run), which
 	// notices such as the recovery file's do not replace.
 	statusProblem bool
+	// blocked is set while the status line says the model cannot be
+	// simulated because of its mistakes.
+	blocked bool
 	runInfo       *widget.Button // details of the last run
 	counts        *widget.Label
 	progress      *widget.ProgressBar
@@ -215,6 +218,7 @@ func (w *mainWindow) build() {
 func (w *mainWindow) setStatus(text string, problem bool) {
 	w.status.SetText(text)
 	w.statusProblem = problem
+	w.blocked = false
 }
 
 // notice puts text in the status line unless it tells of a problem.
@@ -327,6 +331,10 @@ func exampleTitle(name string) string {
 func (w *mainWindow) docChanged() {
 	w.updateTitle()
 	w.updateUndoItems()
+	if w.blocked && !w.ed.HasErrors() {
+		// The status line no longer stands: the mistakes it named are fixed.
+		w.setStatus("The model has no mistakes now; press Simulate to run it.", false)
+	}
 	if w.diagram != nil && w.diagram.shown {
 		w.diagram.refresh()
 	}
@@ -380,6 +388,7 @@ func (w *mainWindow) simulate() {
 		for _, m := range w.ed.Messages() {
 			if m.Severity == network.Error {
 				w.setStatus("Cannot simulate yet: "+w.ed.Describe(m), true)
+				w.blocked = true
 				w.ed.Focus(m.Problem)
 				if w.captureSoon != nil {
 					w.captureSoon()

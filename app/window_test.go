@@ -139,3 +139,25 @@ func TestStoppedRunGivesFullReason(t *testing.T) {
 		}
 	})
 }
+
+// A status line saying the model cannot be simulated gives way once the
+// mistake it names is fixed (here with re-run on edit off, and after an
+// Undo), rather than telling of a mistake that is gone.
+func TestBlockedStatusClearsWhenFixed(t *testing.T) {
+	a := test.NewTempApp(t)
+	w := newMainWindow(a, true)
+	defer w.win.Close()
+	w.autoRerun = false
+	onUI(func() {
+		w.setModel(tuneDecayModel(), "")
+		w.doc.Apply("break", func(m *network.Model) { m.Reactions[0].Rate = network.NewRate(network.MassAction, "k", network.Named("kk")) })
+		w.simulate()
+		if !strings.HasPrefix(w.status.Text, "Cannot simulate yet") || !strings.Contains(w.status.Text, `"kk"`) {
+			t.Fatalf("status %q, want the mistake named", w.status.Text)
+		}
+		w.doc.Undo()
+		if strings.Contains(w.status.Text, "Cannot simulate") || w.statusProblem {
+			t.Errorf("after the fix the status still says %q", w.status.Text)
+		}
+	})
+}
