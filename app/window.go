@@ -62,12 +62,12 @@ type mainWindow struct {
 	statusProblem bool
 	// blocked is set while the status line says the model cannot be
 	// simulated because of its mistakes.
-	blocked bool
-	runInfo       *widget.Button // details of the last run
-	counts        *widget.Label
-	progress      *widget.ProgressBar
-	cancelBtn     *widget.Button
-	runBtn        *widget.Button
+	blocked   bool
+	runInfo   *widget.Button // details of the last run
+	counts    *widget.Label
+	progress  *widget.ProgressBar
+	cancelBtn *widget.Button
+	runBtn    *widget.Button
 
 	rerunItem *fyne.MenuItem
 	undoItem  *fyne.MenuItem

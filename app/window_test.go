@@ -150,7 +150,9 @@ func TestBlockedStatusClearsWhenFixed(t *testing.T) {
 	w.autoRerun = false
 	onUI(func() {
 		w.setModel(tuneDecayModel(), "")
-		w.doc.Apply("break", func(m *network.Model) { m.Reactions[0].Rate = network.NewRate(network.MassAction, "k", network.Named("kk")) })
+		w.doc.Apply("break", func(m *network.Model) {
+			m.Reactions[0].Rate = network.NewRate(network.MassAction, "k", network.Named("kk"))
+		})
 		w.simulate()
 		if !strings.HasPrefix(w.status.Text, "Cannot simulate yet") || !strings.Contains(w.status.Text, `"kk"`) {
 			t.Fatalf("status %q, want the mistake named", w.status.Text)
