@@ -93,7 +93,7 @@ func newDiagramPanel(w *mainWindow) *diagramPanel {
 	replayBar := container.NewBorder(nil, nil, container.NewHBox(p.replayC, p.playBtn), p.tLabel, p.slider)
 	p.info = widget.NewLabel("")
 	p.info.Truncation = fyne.TextTruncateEllipsis
-	p.content = container.NewBorder(container.NewPadded(bar), container.NewVBox(replayBar, p.info), nil, nil, p.view)
+	p.content = container.NewBorder(container.NewPadded(container.NewHScroll(bar)), container.NewVBox(replayBar, p.info), nil, nil, p.view)
 	p.slider.SetValue(1000)
 	return p
 }

@@ -192,7 +192,8 @@ func (w *mainWindow) build() {
 			w.diagram.selectedInTable(section, row)
 		}
 	}
-	right := container.NewBorder(container.NewPadded(bar), w.tune.content, nil, nil, w.views)
+	// The bar scrolls sideways rather than keep the window wide.
+	right := container.NewBorder(container.NewPadded(container.NewHScroll(bar)), w.tune.content, nil, nil, w.views)
 
 	// Bottom: status line.
 	w.status = widget.NewLabel("Ready.")
@@ -208,7 +209,7 @@ func (w *mainWindow) build() {
 	statusBar := container.NewBorder(widget.NewSeparator(), nil, w.runInfo, container.NewHBox(prog, w.cancelBtn), w.status)
 
 	main := container.NewHSplit(left, right)
-	main.Offset = 0.4
+	main.Offset = 0.36 // the right pane is as wide as its bar in a window 1280 wide
 	w.win.SetContent(container.NewBorder(nil, statusBar, nil, nil, main))
 	w.buildMenus()
 }

@@ -7,7 +7,9 @@ import (
 	"testing"
 	"time"
 
+	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/test"
+	"fyne.io/fyne/v2/theme"
 
 	"kinetarium/network"
 )
@@ -160,6 +162,38 @@ func TestBlockedStatusClearsWhenFixed(t *testing.T) {
 		w.doc.Undo()
 		if strings.Contains(w.status.Text, "Cannot simulate") || w.statusProblem {
 			t.Errorf("after the fix the status still says %q", w.status.Text)
+		}
+	})
+}
+
+// The window fits a screen 1024 points wide (1280 pixels at 125 %), with
+// sliders open and on either view: its bars scroll sideways rather than
+// hold the window wider (they held it at 1243 points). At its opening
+// size the bar above the plot is whole.
+func TestWindowFitsSmallScreens(t *testing.T) {
+	a := newStudyApp(t)
+	w := newMainWindow(a, true)
+	defer w.win.Close()
+	w.autoRerun = false
+	onUI(func() {
+		w.setModel(exampleModel(t, "twice-daily-oral-dose.json"), "")
+		w.tune.setOpen(true)
+		w.tune.addChosen("dose (parameter)")
+		w.tune.addChosen("tau (parameter)")
+		for _, view := range []string{viewDiagram, viewTimeCourse} {
+			w.showView(view)
+			if got := w.win.Content().MinSize().Width; got > 1000 {
+				t.Errorf("%s: the window is at least %.0f points wide", view, got)
+			}
+		}
+		w.win.Resize(fyne.NewSize(1280, 800))
+		data := findButton(w.win.Content(), "Data…")
+		if data == nil {
+			t.Fatal("no Data… button")
+		}
+		pos := a.Driver().AbsolutePositionForObject(data)
+		if right := pos.X + data.Size().Width; right > 1280-theme.Padding() {
+			t.Errorf("at 1280 points the bar's last button ends at %.0f, cut off", right)
 		}
 	})
 }
