@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/canvas"
 	"fyne.io/fyne/v2/test"
 	"fyne.io/fyne/v2/widget"
 
@@ -29,6 +30,30 @@ func shownLabels(o fyne.CanvasObject) []*widget.Label {
 	if wd, ok := o.(fyne.Widget); ok {
 		for _, c := range test.WidgetRenderer(wd).Objects() {
 			out = append(out, shownLabels(c)...)
+		}
+	}
+	return out
+}
+
+// shownTexts returns the texts drawn among o and what it holds, such as
+// the labels of forms.
+func shownTexts(o fyne.CanvasObject) []string {
+	if !o.Visible() {
+		return nil
+	}
+	var out []string
+	switch x := o.(type) {
+	case *canvas.Text:
+		return []string{x.Text}
+	case *fyne.Container:
+		for _, c := range x.Objects {
+			out = append(out, shownTexts(c)...)
+		}
+		return out
+	}
+	if wd, ok := o.(fyne.Widget); ok {
+		for _, c := range test.WidgetRenderer(wd).Objects() {
+			out = append(out, shownTexts(c)...)
 		}
 	}
 	return out
