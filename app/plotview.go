@@ -193,12 +193,8 @@ func (v *plotView) MouseMoved(e *desktop.MouseEvent) {
 	v.marker.Show()
 	// Each column in its own unit: an assignment may be an amount or a
 	// ratio beside the species' concentrations.
-	u := o.ColumnUnit(p.Species)
-	if u == "" && p.Species < len(o.Inferred) {
-		u = o.Inferred[p.Species]
-	}
 	v.marker.Refresh()
-	v.showReadout(fmt.Sprintf("%s   t = %s%s   %s%s", o.Names[p.Species], short(p.T), unitSuffix(o.TimeUnit), short(p.Y), unitSuffix(u)))
+	v.showReadout(fmt.Sprintf("%s   t = %s%s   %s%s", o.Names[p.Species], short(p.T), unitSuffix(o.TimeUnit), short(p.Y), unitSuffix(o.UnitOf(p.Species))))
 }
 
 // unitSuffix is " UNIT", or "" without a unit.

@@ -178,6 +178,20 @@ func (o *Outcome) ColumnUnit(j int) string {
 	return ""
 }
 
+// UnitOf returns the unit of column j as people read it beside a value:
+// ColumnUnit, else the unit inferred for an assignment, and "" for a pure
+// number (inferred as "1") or where none is known.
+func (o *Outcome) UnitOf(j int) string {
+	u := o.ColumnUnit(j)
+	if u == "" && j < len(o.Inferred) {
+		u = o.Inferred[j]
+	}
+	if u == "1" {
+		return ""
+	}
+	return u
+}
+
 // Scale converts values between two units: x·Mul/Div. One of Mul and
 // Div is 1, and the other is the factor between the units rounded to 12
 // significant digits where that makes it a whole number (1000 from uM to
