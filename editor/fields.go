@@ -160,6 +160,18 @@ func parseCount(s string) (float64, string) {
 	return v, msg
 }
 
+// nonZero is parse refusing 0, for the run settings: a zero there means
+// the default in the model, so a typed 0 would run as something else.
+func nonZero(parse func(string) (float64, string)) func(string) (float64, string) {
+	return func(s string) (float64, string) {
+		v, msg := parse(s)
+		if msg == "" && v == 0 {
+			msg = "0 is not allowed here; expected a positive number"
+		}
+		return v, msg
+	}
+}
+
 // parseValue reads a rate-law field: a number or the name of a parameter
 // (or, for an enzyme, a species). An empty text leaves the field unset.
 func parseValue(s string) (network.Value, string) {

@@ -55,11 +55,11 @@ func newRunForm(ed *Editor) *runForm {
 		f.loads = append(f.loads, load)
 	}
 	number := func(label, name, desc string, get func(s network.Simulation) float64, set func(s *network.Simulation, v float64)) *field {
-		input := f.numberInput
+		parse := parseNumber
 		if name == "output.points" {
-			input = f.countInput
+			parse = parseCount
 		}
-		e, load := input(name, desc,
+		e, load := f.parsedInput(nonZero(parse), name, desc,
 			func(m *network.Model, _ int) float64 { return get(m.Simulation.WithDefaults()) },
 			func(m *network.Model, _ int, v float64) { set(sim(m), v) })
 		f.loads = append(f.loads, load)
