@@ -368,6 +368,12 @@ func (p *tunePanel) show(i int) {
 		}
 	case sliders.Initial:
 		unit = m.Units.Amount
+	case sliders.Volume:
+		for _, c := range m.Compartments {
+			if c.Name == k.Name {
+				unit = c.Unit
+			}
+		}
 	}
 	r.unit.SetText(unit)
 	r.setting = true
