@@ -141,7 +141,7 @@ func (s *steadyWindow) show(o steadyOutcome, err error) {
 			return
 		}
 	} else {
-		s.ctl.status.SetText(fmt.Sprintf("Found in %v (%d Newton iterations).", o.st.Wall.Round(1e5), o.st.Iterations))
+		s.ctl.status.SetText(fmt.Sprintf("Found in %s (%d Newton iterations).", roundDuration(o.st.Wall), o.st.Iterations))
 	}
 	st := o.st
 	s.verdict.SetText(st.Summary() + "\n" + strings.Join(st.Notes, "\n"))
@@ -385,7 +385,7 @@ func (c *continuationWindow) show(d *analyse.Diagram, err error) {
 		}
 	}
 	c.d = d
-	c.ctl.status.SetText(fmt.Sprintf("%d points, %d special points; %s (%v).", len(d.Points), len(d.Specials), d.Stop, d.Wall.Round(1e6)))
+	c.ctl.status.SetText(fmt.Sprintf("%d points, %d special points; %s (%s).", len(d.Points), len(d.Specials), d.Stop, roundDuration(d.Wall)))
 	p, perr := c.figure()
 	if perr != nil {
 		c.ctl.status.SetText(perr.Error())
@@ -579,7 +579,7 @@ func (s *sensitivityWindow) start() {
 				return
 			}
 		} else {
-			s.ctl.status.SetText(strings.Join(append([]string{fmt.Sprintf("%d runs, %d failed, in %v.", res.Runs, res.Failed, res.Wall.Round(1e6))}, res.Notes...), "\n"))
+			s.ctl.status.SetText(strings.Join(append([]string{fmt.Sprintf("%d runs, %d failed, in %s.", res.Runs, res.Failed, roundDuration(res.Wall))}, res.Notes...), "\n"))
 		}
 		s.res = res
 		s.readoutSel.Options = res.Readouts

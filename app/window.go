@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"time"
 
@@ -449,14 +450,21 @@ func (w *mainWindow) showView(title string) {
 	}
 }
 
+// roundDuration writes d for people, to about three digits, with a space
+// before the unit as the trade writes it: "454 µs", "2.6 ms", "1.23 s",
+// "2 min 5 s".
 func roundDuration(d time.Duration) string {
+	num := func(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
 	switch {
 	case d < time.Millisecond:
-		return d.Round(time.Microsecond).String()
+		return num(float64(d.Round(time.Microsecond)/time.Microsecond)) + " µs"
 	case d < time.Second:
-		return d.Round(100 * time.Microsecond).String()
+		return num(float64(d.Round(100*time.Microsecond))/1e6) + " ms"
+	case d < time.Minute:
+		return num(d.Round(10*time.Millisecond).Seconds()) + " s"
 	}
-	return d.Round(10 * time.Millisecond).String()
+	d = d.Round(time.Second)
+	return fmt.Sprintf("%d min %d s", d/time.Minute, d%time.Minute/time.Second)
 }
 
 // plainError writes err as one readable sentence.
