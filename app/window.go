@@ -537,12 +537,16 @@ func (w *mainWindow) setVisibleFiltered(on bool) {
 // confirmDiscard runs then at once when there are no unsaved changes, and
 // otherwise asks first.
 func (w *mainWindow) confirmDiscard(what string, then func()) {
-	if !w.doc.Dirty() {
+	if !w.doc.Dirty() && w.ed.Untaken() == 0 {
 		then()
 		return
 	}
+	text := "The model has changes that are not saved."
+	if !w.doc.Dirty() {
+		text = "Some fields hold typed text that could not be taken (see Messages)."
+	}
 	d := dialog.NewConfirm("Unsaved changes",
-		"The model has changes that are not saved.\nDiscard them before "+what+"?", func(ok bool) {
+		text+"\nDiscard them before "+what+"?", func(ok bool) {
 			if ok {
 				then()
 			}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"errors"
+	"path/filepath"
 	"strings"
 	"sync"
 	"testing"
@@ -10,6 +11,7 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/test"
 	"fyne.io/fyne/v2/theme"
+	"fyne.io/fyne/v2/widget"
 
 	"kinetarium/network"
 )
@@ -194,6 +196,61 @@ func TestWindowFitsSmallScreens(t *testing.T) {
 		pos := a.Driver().AbsolutePositionForObject(data)
 		if right := pos.X + data.Size().Width; right > 1280-theme.Padding() {
 			t.Errorf("at 1280 points the bar's last button ends at %.0f, cut off", right)
+		}
+	})
+}
+
+// findEntry returns the entry showing text among o and what it holds.
+func findEntry(o fyne.CanvasObject, text string) *widget.Entry {
+	switch x := o.(type) {
+	case *widget.Entry:
+		if x.Text == text {
+			return x
+		}
+	case *fyne.Container:
+		for _, c := range x.Objects {
+			if e := findEntry(c, text); e != nil {
+				return e
+			}
+		}
+		return nil
+	}
+	if wd, ok := o.(fyne.Widget); ok {
+		for _, c := range test.WidgetRenderer(wd).Objects() {
+			if e := findEntry(c, text); e != nil {
+				return e
+			}
+		}
+	}
+	return nil
+}
+
+// A value typed with a decimal comma ("1,5") is not taken; saving says
+// that the file has the earlier value, and closing asks first rather than
+// lose the typed text without a word.
+func TestSaveAndCloseTellOfUntakenText(t *testing.T) {
+	a := test.NewTempApp(t)
+	w := newMainWindow(a, true)
+	defer w.win.Close()
+	w.autoRerun = false
+	path := filepath.Join(t.TempDir(), "m.json")
+	onUI(func() {
+		w.setModel(tuneDecayModel(), "")
+		w.ed.SelectTab("Parameters")
+		w.ed.SelectRow("parameters", 0)
+		k := findEntry(w.ed.Tabs(), "0.7")
+		if k == nil {
+			t.Fatal("no entry shows k = 0.7")
+		}
+		k.SetText("1,5")
+		w.saveTo(path)
+		if !strings.Contains(w.status.Text, "could not be taken") || !w.statusProblem {
+			t.Errorf("after saving, the status says %q", w.status.Text)
+		}
+		quit := false
+		w.confirmDiscard("closing", func() { quit = true })
+		if quit {
+			t.Error("closing with untaken text does not ask first")
 		}
 	})
 }

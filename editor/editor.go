@@ -334,6 +334,10 @@ func (e *Editor) setPending(section string, index int, fld, text, msg string) {
 	}
 }
 
+// Untaken returns how many fields hold typed text that could not be
+// taken into the model (each has a message), which saving leaves out.
+func (e *Editor) Untaken() int { return len(e.pending) }
+
 // pendingText returns the untaken text of a field, if any.
 func (e *Editor) pendingText(section string, index int, fld string) (string, bool) {
 	s, ok := e.pending[pendingKey(section, index, fld)]
