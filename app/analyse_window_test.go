@@ -29,6 +29,9 @@ func TestSteadyWindows(t *testing.T) {
 		if !strings.Contains(s.verdict.Text, "stable node") {
 			t.Errorf("verdict %q", s.verdict.Text)
 		}
+		if v := s.ctl.progress.Value; v != 1 {
+			t.Errorf("finished, the progress bar shows %.0f %%", 100*v)
+		}
 		want := 4
 		if control {
 			want = 5

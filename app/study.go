@@ -387,6 +387,11 @@ func runAsync[T any](c *runControls, work func(ctx context.Context, progress fun
 			c.running, c.stop = false, nil
 			c.run.Enable()
 			c.cancel.Disable()
+			if err == nil {
+				// Finished: work that ends early (a steady state found at
+				// once, a branch that turns back) reports no last step.
+				c.progress.SetValue(1)
+			}
 			done(res, err)
 		})
 	}()
