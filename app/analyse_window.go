@@ -226,6 +226,7 @@ type continuationWindow struct {
 	ctl      *runControls
 
 	d        *analyse.Diagram
+	named    *analyse.Diagram // d for people: see forPeople
 	diagram  *studyFigure
 	points   *fyne.Container
 	response *widget.Select
@@ -372,9 +373,22 @@ func (c *continuationWindow) start() {
 }
 
 func (c *continuationWindow) figure() (*plot.Plot, error) {
-	xu, yu := c.d.AxisUnits()
-	return plotting.BifurcationPlot(analyse.PlotBranch(c.d), plotting.Options{
-		Title: "Steady states against " + c.d.Knob, XLabel: c.d.Knob, XUnit: xu, YLabel: "steady-state concentration", YUnit: yu, LogX: c.d.Log})
+	d := c.named
+	xu, yu := d.AxisUnits()
+	return plotting.BifurcationPlot(analyse.PlotBranch(d), plotting.Options{
+		Title: "Steady states against " + d.Knob, XLabel: d.Knob, XUnit: xu, YLabel: "steady-state concentration", YUnit: yu, LogX: d.Log})
+}
+
+// forPeople returns d with the quantity varied named in words ("X
+// initial", as the form offers it) rather than as the file's reference
+// ("init:X"), for the window's figures and sentences, and its stop
+// reason naming it rather than "p"; tables keep the reference, in the
+// batch command's layout.
+func forPeople(d *analyse.Diagram) *analyse.Diagram {
+	named := *d
+	named.Knob = study.KnobLabel(d.Knob)
+	named.Stop = strings.Replace(d.Stop, "p = ", named.Knob+" = ", 1)
+	return &named
 }
 
 func (c *continuationWindow) show(d *analyse.Diagram, err error) {
@@ -384,8 +398,8 @@ func (c *continuationWindow) show(d *analyse.Diagram, err error) {
 			return
 		}
 	}
-	c.d = d
-	c.ctl.status.SetText(fmt.Sprintf("%d points, %d special points; %s (%s).", len(d.Points), len(d.Specials), d.Stop, roundDuration(d.Wall)))
+	c.d, c.named = d, forPeople(d)
+	c.ctl.status.SetText(fmt.Sprintf("%d points, %d special %s; %s (%s).", len(d.Points), len(d.Specials), plural(len(d.Specials), "point", "points"), c.named.Stop, roundDuration(d.Wall)))
 	p, perr := c.figure()
 	if perr != nil {
 		c.ctl.status.SetText(perr.Error())
@@ -396,7 +410,7 @@ func (c *continuationWindow) show(d *analyse.Diagram, err error) {
 		c.points.Add(widget.NewLabel("No folds or Hopf points in this range."))
 	}
 	for k := range d.Specials {
-		l := widget.NewLabel(analyse.DescribeSpecial(d, k))
+		l := widget.NewLabel(analyse.DescribeSpecial(c.named, k))
 		l.Wrapping = fyne.TextWrapWord
 		c.points.Add(l)
 	}
@@ -423,11 +437,11 @@ func (c *continuationWindow) fitHill() {
 		c.hill.SetText("No Hill curve: " + plainError(err))
 	} else {
 		fit = h.At
-		c.hill.SetText(analyse.DescribeHill(c.d, q, h))
+		c.hill.SetText(analyse.DescribeHill(c.named, q, h))
 	}
 	xu, _ := c.d.AxisUnits()
 	p, _ := plotting.DoseResponsePlot(x, r, fit, "Hill fit", plotting.Options{
-		Title: name + " at steady state", XLabel: c.d.Knob, XUnit: xu, YLabel: name, YUnit: c.d.QuantityUnit(q), LogX: c.d.Log})
+		Title: name + " at steady state", XLabel: c.named.Knob, XUnit: xu, YLabel: name, YUnit: c.d.QuantityUnit(q), LogX: c.d.Log})
 	c.dose.set(p, "")
 }
 
