@@ -75,8 +75,12 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 	for j, n := range o.Names {
 		opt.Visible[j] = !v.Hidden[n]
 		opt.ColourIndex[j] = v.Slot(n, j)
-		if u := o.UnitOf(j); u != o.AmountUnit {
-			opt.SeriesUnits[j] = u // an amount among concentrations, say
+		u := o.UnitOf(j)
+		if o.Dimensionless(j) {
+			u = "dimensionless" // a fraction among concentrations, say
+		}
+		if u != o.AmountUnit {
+			opt.SeriesUnits[j] = u // or an amount
 		}
 	}
 	for _, e := range o.Events {

@@ -12,16 +12,16 @@ import (
 )
 
 // A column whose unit is not the concentration axis's names its unit in
-// the legend, so that an amount in mg is not read as mg/L; a pure number
-// (a fraction) and the species are named alone, and the readout's unit
-// (UnitOf) agrees.
+// the legend, so that an amount in mg is not read as mg/L nor a fraction
+// as uM; the species are named alone, and the readout's unit (UnitOf)
+// agrees.
 func TestFigureLegendNamesOtherUnits(t *testing.T) {
 	for _, c := range []struct {
 		example, column, want, unit string
 	}{
 		{"twice-daily-oral-dose.json", "body_amount", "body_amount (mg)", "mg"},
 		{"twice-daily-oral-dose.json", "D_plasma", "D_plasma", "mg/L"},
-		{"protease-inhibitor.json", "inhibited", "inhibited", ""},
+		{"protease-inhibitor.json", "inhibited", "inhibited (dimensionless)", ""},
 		{"protease-inhibitor.json", "E_total", "E_total", "uM"},
 	} {
 		o, err := Run(context.Background(), loadExample(t, c.example), nil)

@@ -180,16 +180,28 @@ func (o *Outcome) ColumnUnit(j int) string {
 
 // UnitOf returns the unit of column j as people read it beside a value:
 // ColumnUnit, else the unit inferred for an assignment, and "" for a pure
-// number (inferred as "1") or where none is known.
+// number (see Dimensionless) or where none is known.
 func (o *Outcome) UnitOf(j int) string {
+	if o.Dimensionless(j) {
+		return ""
+	}
+	if u := o.ColumnUnit(j); u != "" {
+		return u
+	}
+	if j < len(o.Inferred) {
+		return o.Inferred[j]
+	}
+	return ""
+}
+
+// Dimensionless reports whether column j is a pure number, such as a
+// fraction: declared or inferred in the unit "1".
+func (o *Outcome) Dimensionless(j int) bool {
 	u := o.ColumnUnit(j)
 	if u == "" && j < len(o.Inferred) {
 		u = o.Inferred[j]
 	}
-	if u == "1" {
-		return ""
-	}
-	return u
+	return u == "1"
 }
 
 // Scale converts values between two units: x·Mul/Div. One of Mul and
