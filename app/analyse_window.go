@@ -110,11 +110,9 @@ func newSteadyWindow(a fyne.App, m *network.Model, name string, control bool) (*
 	s.verdict = widget.NewLabel("")
 	s.verdict.Wrapping = fyne.TextWrapWord
 	s.tabs = container.NewAppTabs(container.NewTabItem("…", widget.NewLabel("Computing the steady state…")))
-	caution := widget.NewLabel("Results are research aids, not clinical or dosing advice.")
-	caution.Importance = widget.LowImportance
 	split := container.NewVSplit(container.NewVScroll(container.NewPadded(s.verdict)), s.tabs)
 	split.Offset = 0.25
-	s.win.SetContent(container.NewBorder(s.ctl.content, caution, nil, nil, split))
+	s.win.SetContent(container.NewBorder(s.ctl.content, nil, nil, nil, split))
 	s.win.Resize(fyne.NewSize(820, 600))
 	return s, nil
 }
@@ -143,7 +141,7 @@ func (s *steadyWindow) show(o steadyOutcome, err error) {
 			return
 		}
 	} else {
-		s.ctl.status.SetText(fmt.Sprintf("Found in %v (%d Newton iterations).", o.st.Wall.Round(1e5), o.st.Iterations))
+		s.ctl.status.SetText(fmt.Sprintf("Found in %s (%d Newton iterations).", roundDuration(o.st.Wall), o.st.Iterations))
 	}
 	st := o.st
 	s.verdict.SetText(st.Summary() + "\n" + strings.Join(st.Notes, "\n"))
@@ -228,6 +226,7 @@ type continuationWindow struct {
 	ctl      *runControls
 
 	d        *analyse.Diagram
+	named    *analyse.Diagram // d for people: see forPeople
 	diagram  *studyFigure
 	points   *fyne.Container
 	response *widget.Select
@@ -302,10 +301,8 @@ func newContinuationWindow(a fyne.App, m *network.Model, name string) (*continua
 		widget.NewFormItem("At most points", c.maxPts))
 	help := widget.NewLabel("The branch starts at the steady state reached from the model's initial state at “From” and follows it towards “To”, around turning points. Stable parts are solid, unstable parts dashed; folds are triangles, Hopf points (where oscillations begin) squares. “From” and “To” are in the quantity's own unit in the model; results follow the display units of Run settings.")
 	help.Wrapping = fyne.TextWrapWord
-	caution := widget.NewLabel("Results are research aids, not clinical or dosing advice.")
-	caution.Importance = widget.LowImportance
 	left := container.NewVScroll(container.NewPadded(container.NewVBox(sectionTitle("What varies"), form, help,
-		widget.NewSeparator(), c.ctl.content, caution)))
+		widget.NewSeparator(), c.ctl.content)))
 	c.diagram = newStudyFigure("Press Run to follow the steady state.")
 	c.points = container.NewVBox(widget.NewLabel("Special points appear here."))
 	c.response = widget.NewSelect(nil, func(string) { c.fitHill() })
@@ -376,9 +373,22 @@ func (c *continuationWindow) start() {
 }
 
 func (c *continuationWindow) figure() (*plot.Plot, error) {
-	xu, yu := c.d.AxisUnits()
-	return plotting.BifurcationPlot(analyse.PlotBranch(c.d), plotting.Options{
-		Title: "Steady states against " + c.d.Knob, XLabel: c.d.Knob, XUnit: xu, YLabel: "steady-state concentration", YUnit: yu, LogX: c.d.Log})
+	d := c.named
+	xu, yu := d.AxisUnits()
+	return plotting.BifurcationPlot(analyse.PlotBranch(d), plotting.Options{
+		Title: "Steady states against " + d.Knob, XLabel: d.Knob, XUnit: xu, YLabel: "steady-state concentration", YUnit: yu, LogX: d.Log})
+}
+
+// forPeople returns d with the quantity varied named in words ("X
+// initial", as the form offers it) rather than as the file's reference
+// ("init:X"), for the window's figures and sentences, and its stop
+// reason naming it rather than "p"; tables keep the reference, in the
+// batch command's layout.
+func forPeople(d *analyse.Diagram) *analyse.Diagram {
+	named := *d
+	named.Knob = study.KnobLabel(d.Knob)
+	named.Stop = strings.Replace(d.Stop, "p = ", named.Knob+" = ", 1)
+	return &named
 }
 
 func (c *continuationWindow) show(d *analyse.Diagram, err error) {
@@ -388,8 +398,8 @@ func (c *continuationWindow) show(d *analyse.Diagram, err error) {
 			return
 		}
 	}
-	c.d = d
-	c.ctl.status.SetText(fmt.Sprintf("%d points, %d special points; %s (%v).", len(d.Points), len(d.Specials), d.Stop, d.Wall.Round(1e6)))
+	c.d, c.named = d, forPeople(d)
+	c.ctl.status.SetText(fmt.Sprintf("%d points, %d special %s; %s (%s).", len(d.Points), len(d.Specials), plural(len(d.Specials), "point", "points"), c.named.Stop, roundDuration(d.Wall)))
 	p, perr := c.figure()
 	if perr != nil {
 		c.ctl.status.SetText(perr.Error())
@@ -400,7 +410,7 @@ func (c *continuationWindow) show(d *analyse.Diagram, err error) {
 		c.points.Add(widget.NewLabel("No folds or Hopf points in this range."))
 	}
 	for k := range d.Specials {
-		l := widget.NewLabel(analyse.DescribeSpecial(d, k))
+		l := widget.NewLabel(analyse.DescribeSpecial(c.named, k))
 		l.Wrapping = fyne.TextWrapWord
 		c.points.Add(l)
 	}
@@ -427,11 +437,11 @@ func (c *continuationWindow) fitHill() {
 		c.hill.SetText("No Hill curve: " + plainError(err))
 	} else {
 		fit = h.At
-		c.hill.SetText(analyse.DescribeHill(c.d, q, h))
+		c.hill.SetText(analyse.DescribeHill(c.named, q, h))
 	}
 	xu, _ := c.d.AxisUnits()
 	p, _ := plotting.DoseResponsePlot(x, r, fit, "Hill fit", plotting.Options{
-		Title: name + " at steady state", XLabel: c.d.Knob, XUnit: xu, YLabel: name, YUnit: c.d.QuantityUnit(q), LogX: c.d.Log})
+		Title: name + " at steady state", XLabel: c.named.Knob, XUnit: xu, YLabel: name, YUnit: c.d.QuantityUnit(q), LogX: c.d.Log})
 	c.dose.set(p, "")
 }
 
@@ -583,7 +593,7 @@ func (s *sensitivityWindow) start() {
 				return
 			}
 		} else {
-			s.ctl.status.SetText(strings.Join(append([]string{fmt.Sprintf("%d runs, %d failed, in %v.", res.Runs, res.Failed, res.Wall.Round(1e6))}, res.Notes...), "\n"))
+			s.ctl.status.SetText(strings.Join(append([]string{fmt.Sprintf("%d runs, %d failed, in %s.", res.Runs, res.Failed, roundDuration(res.Wall))}, res.Notes...), "\n"))
 		}
 		s.res = res
 		s.readoutSel.Options = res.Readouts

@@ -4,6 +4,8 @@ import (
 	"strings"
 	"testing"
 
+	"fyne.io/fyne/v2/widget"
+
 	"kinetarium/network"
 )
 
@@ -28,6 +30,9 @@ func TestSteadyWindows(t *testing.T) {
 		waitFor(t, "the steady state", func() bool { return !s.ctl.running })
 		if !strings.Contains(s.verdict.Text, "stable node") {
 			t.Errorf("verdict %q", s.verdict.Text)
+		}
+		if v := s.ctl.progress.Value; v != 1 {
+			t.Errorf("finished, the progress bar shows %.0f %%", 100*v)
 		}
 		want := 4
 		if control {
@@ -67,6 +72,17 @@ func TestContinuationWindow(t *testing.T) {
 	}
 	if c.diagram.plot == nil || !strings.Contains(c.hill.Text, "No Hill curve") {
 		t.Errorf("figure %v, Hill %q", c.diagram.plot != nil, c.hill.Text)
+	}
+	// The quantity varied is named as the form offers it, not as the
+	// file's reference init:X, in the figure, the special points and the
+	// status line (not "p").
+	text := c.ctl.status.Text + "\n" + c.diagram.plot.Title.Text + "\n" + c.diagram.plot.X.Label.Text
+	for _, o := range c.points.Objects {
+		text += "\n" + o.(*widget.Label).Text
+	}
+	if strings.Contains(text, "init:") || strings.Contains(text, "p = ") || !strings.Contains(text, "fold at X initial = ") ||
+		!strings.Contains(text, "1 special point;") {
+		t.Errorf("the window reads:\n%s", text)
 	}
 	saveShot(t, c.win, shotDir(t), "kinetarium-continuation.png")
 	onUI(c.win.Close)

@@ -93,7 +93,7 @@ func newDiagramPanel(w *mainWindow) *diagramPanel {
 	replayBar := container.NewBorder(nil, nil, container.NewHBox(p.replayC, p.playBtn), p.tLabel, p.slider)
 	p.info = widget.NewLabel("")
 	p.info.Truncation = fyne.TextTruncateEllipsis
-	p.content = container.NewBorder(container.NewPadded(bar), container.NewVBox(replayBar, p.info), nil, nil, p.view)
+	p.content = container.NewBorder(container.NewPadded(container.NewHScroll(bar)), container.NewVBox(replayBar, p.info), nil, nil, p.view)
 	p.slider.SetValue(1000)
 	return p
 }
@@ -238,7 +238,7 @@ func (p *diagramPanel) applyFrame() {
 	if p.w.current.TimeUnit != "" {
 		u = " " + p.w.current.TimeUnit
 	}
-	p.tLabel.SetText(fmt.Sprintf("t = %.4g%s   colour %.2g (dark) to %.2g (light)", p.t, u, p.replay.Lo, p.replay.Hi))
+	p.tLabel.SetText(fmt.Sprintf("t = %.4g%s   colour %s", p.t, u, p.replay.ColourRange()))
 }
 
 // togglePlay plays the replay from the slider's place to the end, or

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"strings"
 	"testing"
 
 	"fyne.io/fyne/v2"
@@ -78,6 +79,11 @@ func TestDiagramView(t *testing.T) {
 		if n.Kind == pd.Species && n.Fill == nil {
 			t.Errorf("species %q is not coloured by the replay", n.Name)
 		}
+	}
+	// Its colour scale names the concentrations' unit, in plain numbers.
+	_, scale, _ := strings.Cut(p.tLabel.Text, "colour")
+	if !strings.HasSuffix(scale, "(light) "+w.current.AmountUnit) || strings.Contains(scale, "e+") {
+		t.Errorf("the replay's scale reads %q, want its ends in plain numbers and the unit %s", p.tLabel.Text, w.current.AmountUnit)
 	}
 	// The style is part of the model.
 	p.style.SetSelected(styleSBGN)

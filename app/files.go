@@ -178,6 +178,11 @@ func (w *mainWindow) saveTo(path string) {
 			w.showError(fmt.Errorf("the model is saved, but its measurements could not be remembered beside it: %w", err))
 		}
 	}
+	if n := w.ed.Untaken(); n > 0 {
+		w.setStatus(fmt.Sprintf("Saved %s, but %d %s typed text that could not be taken (see Messages); the file has the earlier %s.",
+			path, n, plural(n, "field holds", "fields hold"), plural(n, "value", "values")), true)
+		return
+	}
 	w.setStatus("Saved "+path, false)
 }
 

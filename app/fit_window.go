@@ -35,7 +35,7 @@ import (
 
 // fitCaution is the caution the fit window repeats above its results.
 const fitCaution = "Fitted values and their intervals are research aids, not clinical or dosing advice. " +
-	"Check them against independent data before they inform any decision about people's health."
+	"Check them against independent data; decisions about treatment or dosing rest with qualified professionals and must follow local rules."
 
 // noiseChoices are the noise models in plain words, with their names in
 // fit plans.
@@ -216,6 +216,7 @@ func (f *fitWindow) build() {
 		widget.NewFormItem("Starts", f.starts),
 		widget.NewFormItem("Seed", f.seed))
 	f.ctl = newRunControls(f.start)
+	f.ctl.caution.Hide() // the window's own caution, above, says it for fits
 	f.traceFig = newStudyFigure("The objective of every accepted step appears here while the fit runs.")
 
 	f.plan = container.NewVBox(caution,

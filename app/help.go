@@ -5,11 +5,12 @@ import (
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/widget"
+
+	"kinetarium/app/run"
 )
 
 // caution is shown in the About box and at the end of the guide.
-const caution = "Simulation results are research aids, not clinical or dosing advice. " +
-	"Decisions about treatment or dosing rest with qualified professionals and local regulations."
+const caution = run.Caution
 
 // guide is the short guide to writing models, in Markdown.
 const guide = `## Equations
@@ -106,7 +107,7 @@ time axis mark when events fired (point at one for its name). Dose amounts,
 times and intervals can be put on sliders and varied in sweeps and
 populations.
 
-**Dosing simulations are research aids, not dosing advice.** Doses and
+**Dosing simulations are research aids, not clinical or dosing advice.** Doses and
 schedules for people or animals are decided by qualified professionals
 under local rules.
 

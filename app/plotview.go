@@ -184,22 +184,17 @@ func (v *plotView) MouseMoved(e *desktop.MouseEvent) {
 	}
 	px, py, _ := v.frame.ToPixel(p.T, p.Y)
 	x, y := float32(px)/s, float32(py)/s
-	col := plotting.Colour(p.Species)
+	o := v.outcome
+	col := plotting.Colour(v.view.Slot(o.Names[p.Species], p.Species))
 	v.marker.StrokeColor = col
 	v.marker.FillColor = color.NRGBA{R: 0xff, G: 0xff, B: 0xff, A: 0xc0}
 	v.marker.Resize(fyne.NewSize(10, 10))
 	v.marker.Move(fyne.NewPos(x-5, y-5))
 	v.marker.Show()
-	o := v.outcome
-	tu, au := "", ""
-	if o.TimeUnit != "" {
-		tu = " " + o.TimeUnit
-	}
-	if o.AmountUnit != "" {
-		au = " " + o.AmountUnit
-	}
+	// Each column in its own unit: an assignment may be an amount or a
+	// ratio beside the species' concentrations.
 	v.marker.Refresh()
-	v.showReadout(fmt.Sprintf("%s   t = %s%s   %s%s", o.Names[p.Species], short(p.T), tu, short(p.Y), au))
+	v.showReadout(fmt.Sprintf("%s   t = %s%s   %s%s", o.Names[p.Species], short(p.T), unitSuffix(o.TimeUnit), short(p.Y), unitSuffix(o.UnitOf(p.Species))))
 }
 
 // unitSuffix is " UNIT", or "" without a unit.

@@ -11,6 +11,7 @@ import (
 
 	"kinetarium/app/run"
 	"kinetarium/network"
+	"kinetarium/plotting"
 )
 
 // decayOutcome simulates A -> B at rate k·A; A(t) = exp(−t) is the closed
@@ -79,5 +80,44 @@ func TestPlotViewReadoutAndZoom(t *testing.T) {
 	near := func(a, b float64) bool { return a-b < 0.02 && b-a < 0.02 }
 	if !near(z.XMin, 1) || !near(z.XMax, 3) || !near(z.YMin, 0.1) || !near(z.YMax, 0.6) {
 		t.Errorf("zoom = %+v, want about t 1–3, value 0.1–0.6", *z)
+	}
+}
+
+// The readout gives each column its own unit: in the twice-daily example
+// the assignment body_amount is an amount in mg beside concentrations in
+// mg/L, and the marker takes the series' colour slot.
+func TestPlotViewReadoutColumnUnit(t *testing.T) {
+	test.NewTempApp(t)
+	v := newPlotView()
+	w := test.NewWindow(v)
+	defer w.Close()
+	w.Resize(fyne.NewSize(640, 420))
+	o, err := run.Run(context.Background(), exampleModel(t, "twice-daily-oral-dose.json"), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	hidden := map[string]bool{}
+	j := len(o.Names) - 1
+	for _, n := range o.Names[:j] {
+		hidden[n] = true
+	}
+	if o.Names[j] != "body_amount" {
+		t.Fatalf("last column %s, want body_amount", o.Names[j])
+	}
+	slots := map[string]int{"body_amount": 2}
+	v.Set(o, run.View{Hidden: hidden, Slots: slots})
+	v.Resize(fyne.NewSize(600, 400))
+	i := len(o.T) / 2
+	px, py, ok := v.frame.ToPixel(o.T[i], o.Y[i][j])
+	if !ok {
+		t.Fatal("ToPixel failed")
+	}
+	s := v.scale
+	v.MouseMoved(&desktop.MouseEvent{PointEvent: fyne.PointEvent{Position: fyne.NewPos(float32(px)/s, float32(py)/s)}})
+	if !strings.HasPrefix(v.readout.Text, "body_amount ") || !strings.HasSuffix(v.readout.Text, " mg") {
+		t.Errorf("readout %q, want body_amount in mg", v.readout.Text)
+	}
+	if v.marker.StrokeColor != plotting.Colour(2) {
+		t.Errorf("marker colour %v, want slot 2's %v", v.marker.StrokeColor, plotting.Colour(2))
 	}
 }

@@ -5,6 +5,7 @@ import (
 	"runtime"
 	"strings"
 	"testing"
+	"time"
 
 	"kinetarium/app/run"
 	"kinetarium/network"
@@ -70,5 +71,23 @@ func TestRunInfoTimesAndMemory(t *testing.T) {
 	}
 	if runtime.GOOS == "linux" && !strings.Contains(text, "Peak memory of the program so far: ") {
 		t.Errorf("no peak memory in\n%s", text)
+	}
+}
+
+// Times read as the trade writes them, a space before the unit and no
+// Go notation such as 1m5s.
+func TestRoundDuration(t *testing.T) {
+	for _, c := range []struct {
+		d    time.Duration
+		want string
+	}{
+		{454 * time.Microsecond, "454 µs"},
+		{2567 * time.Microsecond, "2.6 ms"},
+		{1234 * time.Millisecond, "1.23 s"},
+		{125400 * time.Millisecond, "2 min 5 s"},
+	} {
+		if got := roundDuration(c.d); got != c.want {
+			t.Errorf("roundDuration(%v) = %q, want %q", c.d, got, c.want)
+		}
 	}
 }

@@ -23,6 +23,7 @@ import (
 	"kinetarium/app/study"
 	"kinetarium/internal/atomicfile"
 	"kinetarium/network"
+	"kinetarium/plotting"
 	"kinetarium/solve/stochastic"
 )
 
@@ -95,7 +96,7 @@ func newStochasticWindow(a fyne.App, m *network.Model, name string) (*stochastic
 		widget.NewFormItem("Runs", s.runs),
 		widget.NewFormItem("Random seed", s.seed),
 		widget.NewFormItem("Method", s.method),
-		widget.NewFormItem("Counts at time", s.histAt),
+		widget.NewFormItem(plotting.AxisLabel("Counts at time", m.Units.Time), s.histAt), // in the model's unit, as Spec.HistTimes
 	}
 	perAmtText := "Molecules per amount"
 	if _, how, err := network.MoleculesPerAmount(m); err != nil {
@@ -105,7 +106,7 @@ func newStochasticWindow(a fyne.App, m *network.Model, name string) (*stochastic
 		s.notes.SetText("Counts from concentrations: " + how + ".")
 	}
 	form := widget.NewForm(items...)
-	caution := widget.NewLabel("Non-elementary rate laws (Michaelis–Menten, expressions) are approximated by rate × volume × molecules per amount. " + ensemble.Caution)
+	caution := widget.NewLabel("Non-elementary rate laws (Michaelis–Menten, expressions) are approximated by rate × volume × molecules per amount.")
 	caution.Wrapping = fyne.TextWrapWord
 	setup := container.NewVBox(sectionTitle("Stochastic runs in molecule counts"), form,
 		widget.NewSeparator(), s.ctl.content, widget.NewSeparator(), s.notes, caution)

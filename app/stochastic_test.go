@@ -57,6 +57,14 @@ func TestStochasticWindow(t *testing.T) {
 	if s.fig.plot == nil || s.hist.plot == nil {
 		t.Error("figures not drawn")
 	}
+	// The time of the counts is asked for in the model's unit, named.
+	found := false
+	for _, text := range shownTexts(s.win.Content()) {
+		found = found || text == "Counts at time (min)"
+	}
+	if !found {
+		t.Error("the form does not ask for the time of the counts in min")
+	}
 	saveShot(t, s.win, shotDir(t), "stochastic-window.png")
 }
 

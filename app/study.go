@@ -327,13 +327,15 @@ func (f *studyFigure) CreateRenderer() fyne.WidgetRenderer {
 func (f *studyFigure) MinSize() fyne.Size { return fyne.NewSize(360, 240) }
 
 // runControls are the Run button, the progress bar and Cancel of a study
-// window. The work runs on its own goroutine; every widget update goes
+// window, with the status line and the caution (run.Caution) under them.
+// The work runs on its own goroutine; every widget update goes
 // through deliver (fyne.Do in the program).
 type runControls struct {
 	run      *widget.Button
 	cancel   *widget.Button
 	progress *widget.ProgressBar
 	status   *widget.Label
+	caution  *widget.Label
 	stop     context.CancelFunc
 	deliver  func(func())
 	running  bool
@@ -349,7 +351,10 @@ func newRunControls(start func()) *runControls {
 	c.progress = widget.NewProgressBar()
 	c.status = widget.NewLabel("")
 	c.status.Wrapping = fyne.TextWrapWord
-	c.content = container.NewVBox(container.NewBorder(nil, nil, c.run, c.cancel, c.progress), c.status)
+	c.caution = widget.NewLabel(run.Caution)
+	c.caution.Wrapping = fyne.TextWrapWord
+	c.caution.Importance = widget.WarningImportance // as legible as the event form's
+	c.content = container.NewVBox(container.NewBorder(nil, nil, c.run, c.cancel, c.progress), c.status, c.caution)
 	return c
 }
 
@@ -382,6 +387,11 @@ func runAsync[T any](c *runControls, work func(ctx context.Context, progress fun
 			c.running, c.stop = false, nil
 			c.run.Enable()
 			c.cancel.Disable()
+			if err == nil {
+				// Finished: work that ends early (a steady state found at
+				// once, a branch that turns back) reports no last step.
+				c.progress.SetValue(1)
+			}
 			done(res, err)
 		})
 	}()

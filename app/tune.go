@@ -95,9 +95,9 @@ func newTunePanel(w *mainWindow) *tunePanel {
 	addBox := container.NewGridWrap(fyne.NewSize(190, p.add.MinSize().Height), p.add)
 	p.tools = container.NewHBox(addBox, p.pin, p.reset, p.write)
 	p.tools.Hide()
-	header := container.NewBorder(nil, nil, p.toggle, p.tools, p.note)
+	header := container.NewHScroll(container.NewBorder(nil, nil, p.toggle, p.tools, p.note))
 	p.captions = captionRow()
-	scroll := container.NewVScroll(container.NewVBox(p.hint, p.captions, p.list))
+	scroll := container.NewScroll(container.NewVBox(p.hint, p.captions, p.list))
 	scroll.SetMinSize(fyne.NewSize(0, 168))
 	p.body = container.NewBorder(nil, p.info, nil, nil, scroll)
 	p.body.Hide()
@@ -368,6 +368,12 @@ func (p *tunePanel) show(i int) {
 		}
 	case sliders.Initial:
 		unit = m.Units.Amount
+	case sliders.Volume:
+		for _, c := range m.Compartments {
+			if c.Name == k.Name {
+				unit = c.Unit
+			}
+		}
 	}
 	r.unit.SetText(unit)
 	r.setting = true

@@ -459,3 +459,21 @@ func TestSaveKeepsSliderValues(t *testing.T) {
 		}
 	})
 }
+
+// Each slider names the unit of its value: a parameter's own, the
+// concentration unit for an initial value, the compartment's for a volume.
+func TestTuneRowsNameUnits(t *testing.T) {
+	w := openTuneWindow(t, exampleModel(t, "twice-daily-oral-dose.json"))
+	onUI(func() {
+		p := w.tune
+		p.addChosen("dose (parameter)")
+		p.addChosen("D_gut (initial concentration)")
+		p.addChosen("plasma (volume)")
+		want := map[string]string{"dose": "mg", "D_gut initial": "mg/L", "plasma volume": "L"}
+		for label, unit := range want {
+			if got := p.rows[knobIndex(t, p, label)].unit.Text; got != unit {
+				t.Errorf("the %s slider names the unit %q, want %q", label, got, unit)
+			}
+		}
+	})
+}

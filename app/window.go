@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"time"
 
@@ -60,11 +61,14 @@ type mainWindow struct {
 	// (a run that failed or stopped, a model that cannot run), which
 	// notices such as the recovery file's do not replace.
 	statusProblem bool
-	runInfo       *widget.Button // details of the last run
-	counts        *widget.Label
-	progress      *widget.ProgressBar
-	cancelBtn     *widget.Button
-	runBtn        *widget.Button
+	// blocked is set while the status line says the model cannot be
+	// simulated because of its mistakes.
+	blocked   bool
+	runInfo   *widget.Button // details of the last run
+	counts    *widget.Label
+	progress  *widget.ProgressBar
+	cancelBtn *widget.Button
+	runBtn    *widget.Button
 
 	rerunItem *fyne.MenuItem
 	undoItem  *fyne.MenuItem
@@ -189,7 +193,8 @@ func (w *mainWindow) build() {
 			w.diagram.selectedInTable(section, row)
 		}
 	}
-	right := container.NewBorder(container.NewPadded(bar), w.tune.content, nil, nil, w.views)
+	// The bar scrolls sideways rather than keep the window wide.
+	right := container.NewBorder(container.NewPadded(container.NewHScroll(bar)), w.tune.content, nil, nil, w.views)
 
 	// Bottom: status line.
 	w.status = widget.NewLabel("Ready.")
@@ -205,7 +210,7 @@ func (w *mainWindow) build() {
 	statusBar := container.NewBorder(widget.NewSeparator(), nil, w.runInfo, container.NewHBox(prog, w.cancelBtn), w.status)
 
 	main := container.NewHSplit(left, right)
-	main.Offset = 0.4
+	main.Offset = 0.36 // the right pane is as wide as its bar in a window 1280 wide
 	w.win.SetContent(container.NewBorder(nil, statusBar, nil, nil, main))
 	w.buildMenus()
 }
@@ -215,6 +220,7 @@ func (w *mainWindow) build() {
 func (w *mainWindow) setStatus(text string, problem bool) {
 	w.status.SetText(text)
 	w.statusProblem = problem
+	w.blocked = false
 }
 
 // notice puts text in the status line unless it tells of a problem.
@@ -327,6 +333,10 @@ func exampleTitle(name string) string {
 func (w *mainWindow) docChanged() {
 	w.updateTitle()
 	w.updateUndoItems()
+	if w.blocked && !w.ed.HasErrors() {
+		// The status line no longer stands: the mistakes it named are fixed.
+		w.setStatus("The model has no mistakes now; press Simulate to run it.", false)
+	}
 	if w.diagram != nil && w.diagram.shown {
 		w.diagram.refresh()
 	}
@@ -380,6 +390,7 @@ func (w *mainWindow) simulate() {
 		for _, m := range w.ed.Messages() {
 			if m.Severity == network.Error {
 				w.setStatus("Cannot simulate yet: "+w.ed.Describe(m), true)
+				w.blocked = true
 				w.ed.Focus(m.Problem)
 				if w.captureSoon != nil {
 					w.captureSoon()
@@ -439,14 +450,21 @@ func (w *mainWindow) showView(title string) {
 	}
 }
 
+// roundDuration writes d for people, to about three digits, with a space
+// before the unit as the trade writes it: "454 µs", "2.6 ms", "1.23 s",
+// "2 min 5 s".
 func roundDuration(d time.Duration) string {
+	num := func(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
 	switch {
 	case d < time.Millisecond:
-		return d.Round(time.Microsecond).String()
+		return num(float64(d.Round(time.Microsecond)/time.Microsecond)) + " µs"
 	case d < time.Second:
-		return d.Round(100 * time.Microsecond).String()
+		return num(float64(d.Round(100*time.Microsecond))/1e6) + " ms"
+	case d < time.Minute:
+		return num(d.Round(10*time.Millisecond).Seconds()) + " s"
 	}
-	return d.Round(10 * time.Millisecond).String()
+	d = d.Round(time.Second)
+	return fmt.Sprintf("%d min %d s", d/time.Minute, d%time.Minute/time.Second)
 }
 
 // plainError writes err as one readable sentence.
@@ -519,12 +537,16 @@ func (w *mainWindow) setVisibleFiltered(on bool) {
 // confirmDiscard runs then at once when there are no unsaved changes, and
 // otherwise asks first.
 func (w *mainWindow) confirmDiscard(what string, then func()) {
-	if !w.doc.Dirty() {
+	if !w.doc.Dirty() && w.ed.Untaken() == 0 {
 		then()
 		return
 	}
+	text := "The model has changes that are not saved."
+	if !w.doc.Dirty() {
+		text = "Some fields hold typed text that could not be taken (see Messages)."
+	}
 	d := dialog.NewConfirm("Unsaved changes",
-		"The model has changes that are not saved.\nDiscard them before "+what+"?", func(ok bool) {
+		text+"\nDiscard them before "+what+"?", func(ok bool) {
 			if ok {
 				then()
 			}

@@ -2,12 +2,16 @@ package main
 
 import (
 	"errors"
+	"path/filepath"
 	"strings"
 	"sync"
 	"testing"
 	"time"
 
+	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/test"
+	"fyne.io/fyne/v2/theme"
+	"fyne.io/fyne/v2/widget"
 
 	"kinetarium/network"
 )
@@ -136,6 +140,117 @@ func TestStoppedRunGivesFullReason(t *testing.T) {
 		}
 		if w.plot.outcome != o {
 			t.Error("the figure does not show the part computed")
+		}
+	})
+}
+
+// A status line saying the model cannot be simulated gives way once the
+// mistake it names is fixed (here with re-run on edit off, and after an
+// Undo), rather than telling of a mistake that is gone.
+func TestBlockedStatusClearsWhenFixed(t *testing.T) {
+	a := test.NewTempApp(t)
+	w := newMainWindow(a, true)
+	defer w.win.Close()
+	w.autoRerun = false
+	onUI(func() {
+		w.setModel(tuneDecayModel(), "")
+		w.doc.Apply("break", func(m *network.Model) {
+			m.Reactions[0].Rate = network.NewRate(network.MassAction, "k", network.Named("kk"))
+		})
+		w.simulate()
+		if !strings.HasPrefix(w.status.Text, "Cannot simulate yet") || !strings.Contains(w.status.Text, `"kk"`) {
+			t.Fatalf("status %q, want the mistake named", w.status.Text)
+		}
+		w.doc.Undo()
+		if strings.Contains(w.status.Text, "Cannot simulate") || w.statusProblem {
+			t.Errorf("after the fix the status still says %q", w.status.Text)
+		}
+	})
+}
+
+// The window fits a screen 1024 points wide (1280 pixels at 125 %), with
+// sliders open and on either view: its bars scroll sideways rather than
+// hold the window wider (they held it at 1243 points). At its opening
+// size the bar above the plot is whole.
+func TestWindowFitsSmallScreens(t *testing.T) {
+	a := newStudyApp(t)
+	w := newMainWindow(a, true)
+	defer w.win.Close()
+	w.autoRerun = false
+	onUI(func() {
+		w.setModel(exampleModel(t, "twice-daily-oral-dose.json"), "")
+		w.tune.setOpen(true)
+		w.tune.addChosen("dose (parameter)")
+		w.tune.addChosen("tau (parameter)")
+		for _, view := range []string{viewDiagram, viewTimeCourse} {
+			w.showView(view)
+			if got := w.win.Content().MinSize().Width; got > 1000 {
+				t.Errorf("%s: the window is at least %.0f points wide", view, got)
+			}
+		}
+		w.win.Resize(fyne.NewSize(1280, 800))
+		data := findButton(w.win.Content(), "Data…")
+		if data == nil {
+			t.Fatal("no Data… button")
+		}
+		pos := a.Driver().AbsolutePositionForObject(data)
+		if right := pos.X + data.Size().Width; right > 1280-theme.Padding() {
+			t.Errorf("at 1280 points the bar's last button ends at %.0f, cut off", right)
+		}
+	})
+}
+
+// findEntry returns the entry showing text among o and what it holds.
+func findEntry(o fyne.CanvasObject, text string) *widget.Entry {
+	switch x := o.(type) {
+	case *widget.Entry:
+		if x.Text == text {
+			return x
+		}
+	case *fyne.Container:
+		for _, c := range x.Objects {
+			if e := findEntry(c, text); e != nil {
+				return e
+			}
+		}
+		return nil
+	}
+	if wd, ok := o.(fyne.Widget); ok {
+		for _, c := range test.WidgetRenderer(wd).Objects() {
+			if e := findEntry(c, text); e != nil {
+				return e
+			}
+		}
+	}
+	return nil
+}
+
+// A value typed with a decimal comma ("1,5") is not taken; saving says
+// that the file has the earlier value, and closing asks first rather than
+// lose the typed text without a word.
+func TestSaveAndCloseTellOfUntakenText(t *testing.T) {
+	a := test.NewTempApp(t)
+	w := newMainWindow(a, true)
+	defer w.win.Close()
+	w.autoRerun = false
+	path := filepath.Join(t.TempDir(), "m.json")
+	onUI(func() {
+		w.setModel(tuneDecayModel(), "")
+		w.ed.SelectTab("Parameters")
+		w.ed.SelectRow("parameters", 0)
+		k := findEntry(w.ed.Tabs(), "0.7")
+		if k == nil {
+			t.Fatal("no entry shows k = 0.7")
+		}
+		k.SetText("1,5")
+		w.saveTo(path)
+		if !strings.Contains(w.status.Text, "could not be taken") || !w.statusProblem {
+			t.Errorf("after saving, the status says %q", w.status.Text)
+		}
+		quit := false
+		w.confirmDiscard("closing", func() { quit = true })
+		if quit {
+			t.Error("closing with untaken text does not ask first")
 		}
 	})
 }

@@ -206,8 +206,15 @@ func (e *Editor) Describe(m Message) string {
 		fields = e.run.fields()
 	}
 	for _, f := range fields {
-		if f.name == p.Field && f.label != "" {
+		if f.label == "" {
+			continue
+		}
+		if f.name == p.Field {
 			p.Field = f.label
+			break
+		}
+		if line, ok := strings.CutPrefix(p.Field, f.name+"."); ok {
+			p.Field = f.label + " (" + line + ")"
 			break
 		}
 	}
@@ -327,6 +334,10 @@ func (e *Editor) setPending(section string, index int, fld, text, msg string) {
 	}
 }
 
+// Untaken returns how many fields hold typed text that could not be
+// taken into the model (each has a message), which saving leaves out.
+func (e *Editor) Untaken() int { return len(e.pending) }
+
 // pendingText returns the untaken text of a field, if any.
 func (e *Editor) pendingText(section string, index int, fld string) (string, bool) {
 	s, ok := e.pending[pendingKey(section, index, fld)]
@@ -412,8 +423,10 @@ func (e *Editor) markFields(section string, i int, fields []*field) {
 }
 
 // fieldMatches reports whether a message about field msgField belongs to
-// the input named name. Messages about the whole item go to the name, and
-// messages about the rate as a whole to the rate law.
+// the input named name. Messages about the whole item go to the name,
+// messages about the rate as a whole to the rate law, and messages about
+// one line of a list, such as "add.D_gut" (the line for D_gut in an
+// event's Add), to the list's input.
 func fieldMatches(name, msgField string) bool {
 	switch msgField {
 	case name:
@@ -423,7 +436,7 @@ func fieldMatches(name, msgField string) bool {
 	case "rate":
 		return name == "rate.law"
 	}
-	return false
+	return strings.HasPrefix(msgField, name+".")
 }
 
 func (e *Editor) markFieldsRun() {

@@ -262,3 +262,18 @@ func TestCompartmentUnitField(t *testing.T) {
 		t.Errorf("after Undo the unit is %q", got)
 	}
 }
+
+// A species' row names its starting value with the model's concentration
+// unit, as parameters' and compartments' rows name theirs.
+func TestSpeciesSummaryNamesUnit(t *testing.T) {
+	m := enzymeModel()
+	m.Units.Amount = "uM"
+	m.Species[0].Initial, m.Species[0].Fixed = 0.5, true
+	if got := speciesKind.summary(m, 0); got != "start 0.5 uM, held constant" {
+		t.Errorf("summary %q", got)
+	}
+	m.Units.Amount = ""
+	if got := speciesKind.summary(m, 0); got != "start 0.5, held constant" {
+		t.Errorf("without a unit, summary %q", got)
+	}
+}

@@ -12,8 +12,9 @@ import (
 	"kinetarium/network"
 )
 
-// DosingCaution is shown wherever doses are entered.
-const DosingCaution = "Dosing simulations are research aids, not dosing advice: doses and schedules for people or animals are decided by qualified professionals under local rules."
+// DosingCaution is shown wherever doses are entered: at the top of the
+// event form, where it is seen before a dose is typed.
+const DosingCaution = "Dosing simulations are research aids, not clinical or dosing advice: doses and schedules for people or animals are decided by qualified professionals under local rules."
 
 var eventKind = rowKind{
 	section: "events", noun: "event", newName: "event",
@@ -94,6 +95,10 @@ type eventForm struct {
 
 func newEventForm(ed *Editor) *eventForm {
 	f := &eventForm{formBase: formBase{ed: ed, section: "events", box: container.NewVBox()}}
+	caution := widget.NewLabel("Caution: " + DosingCaution)
+	caution.Wrapping = fyne.TextWrapWord
+	caution.Importance = widget.WarningImportance
+	f.box.Add(caution)
 	ev := func(m *network.Model, i int) *network.Event { return &m.Events[i] }
 	name, load := f.textInput("name", "rename event", func(m *network.Model, i int) *string { return &ev(m, i).Name })
 	f.addField("Name", "name", name)
@@ -120,7 +125,7 @@ func newEventForm(ed *Editor) *eventForm {
 	f.to = value("Ends at", "to", func(e *network.Event) *network.Value { return &e.To })
 	f.every = value("Repeat every", "every", func(e *network.Event) *network.Value { return &e.Every })
 	f.every.input.(*widget.Entry).SetPlaceHolder("interval (empty: once)")
-	cnt, load := f.numberInput("count", "edit event count",
+	cnt, load := f.countInput("count", "edit event count",
 		func(m *network.Model, i int) float64 { return float64(ev(m, i).Count) },
 		func(m *network.Model, i int, v float64) { ev(m, i).Count = int(v) })
 	cnt.SetPlaceHolder("number of times")
@@ -152,10 +157,6 @@ func newEventForm(ed *Editor) *eventForm {
 	note, load := f.textInput("note", "edit note", func(m *network.Model, i int) *string { return &ev(m, i).Note })
 	f.addField("Note", "note", note)
 	f.loads = append(f.loads, load)
-	caution := widget.NewLabel("Caution: " + DosingCaution)
-	caution.Wrapping = fyne.TextWrapWord
-	caution.Importance = widget.WarningImportance
-	f.box.Add(caution)
 	return f
 }
 

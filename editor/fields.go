@@ -1,6 +1,7 @@
 package editor
 
 import (
+	"math"
 	"strconv"
 	"strings"
 
@@ -145,6 +146,30 @@ func parseNumber(s string) (float64, string) {
 		return 0, "“" + s + "” is not a number; write it like 0.5, 12 or 1e-3"
 	}
 	return v, ""
+}
+
+// parseCount reads a whole number of things, such as the number of
+// doses, as parseNumber reads a number; it returns a message in plain words
+// when s is not a whole number from 0 up. Larger counts than the model
+// allows are taken, for network.Check to name the limit.
+func parseCount(s string) (float64, string) {
+	v, msg := parseNumber(s)
+	if msg == "" && (v != math.Trunc(v) || v < 0 || v > math.MaxInt32) {
+		msg = "“" + s + "” is not a whole number; write a count such as 14"
+	}
+	return v, msg
+}
+
+// nonZero is parse refusing 0, for the run settings: a zero there means
+// the default in the model, so a typed 0 would run as something else.
+func nonZero(parse func(string) (float64, string)) func(string) (float64, string) {
+	return func(s string) (float64, string) {
+		v, msg := parse(s)
+		if msg == "" && v == 0 {
+			msg = "0 is not allowed here; expected a positive number"
+		}
+		return v, msg
+	}
 }
 
 // parseValue reads a rate-law field: a number or the name of a parameter

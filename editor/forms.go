@@ -98,13 +98,23 @@ func (f *formBase) nameInput(kind Kind, get func(m *network.Model, i int) string
 // numberInput is a number field of the row, taken on every keystroke when
 // it reads as a number and otherwise kept as typed with a message.
 func (f *formBase) numberInput(name, desc string, get func(m *network.Model, i int) float64, set func(m *network.Model, i int, v float64)) (*widget.Entry, func(m *network.Model, i int)) {
+	return f.parsedInput(parseNumber, name, desc, get, set)
+}
+
+// countInput is numberInput for a whole number of things (parseCount).
+func (f *formBase) countInput(name, desc string, get func(m *network.Model, i int) float64, set func(m *network.Model, i int, v float64)) (*widget.Entry, func(m *network.Model, i int)) {
+	return f.parsedInput(parseCount, name, desc, get, set)
+}
+
+// parsedInput is a number field read by parse.
+func (f *formBase) parsedInput(parse func(string) (float64, string), name, desc string, get func(m *network.Model, i int) float64, set func(m *network.Model, i int, v float64)) (*widget.Entry, func(m *network.Model, i int)) {
 	e := widget.NewEntry()
 	e.OnChanged = func(text string) {
 		if f.loading {
 			return
 		}
 		i := f.row
-		v, msg := parseNumber(text)
+		v, msg := parse(text)
 		f.ed.setPending(f.section, i, name, text, msg)
 		if msg == "" {
 			f.ed.editMerged(fmt.Sprintf("%s/%d/%s", f.section, i, name), desc, func(m *network.Model) { set(m, i, v) })

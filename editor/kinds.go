@@ -35,6 +35,9 @@ var speciesKind = rowKind{
 	summary: func(m *network.Model, i int) string {
 		s := m.Species[i]
 		t := "start " + formatNumber(s.Initial)
+		if u := strings.TrimSpace(m.Units.Amount); u != "" {
+			t += " " + u // as parameters and compartments name theirs
+		}
 		if s.Fixed {
 			t += ", held constant"
 		}

@@ -55,7 +55,11 @@ func newRunForm(ed *Editor) *runForm {
 		f.loads = append(f.loads, load)
 	}
 	number := func(label, name, desc string, get func(s network.Simulation) float64, set func(s *network.Simulation, v float64)) *field {
-		e, load := f.numberInput(name, desc,
+		parse := parseNumber
+		if name == "output.points" {
+			parse = parseCount
+		}
+		e, load := f.parsedInput(nonZero(parse), name, desc,
 			func(m *network.Model, _ int) float64 { return get(m.Simulation.WithDefaults()) },
 			func(m *network.Model, _ int, v float64) { set(sim(m), v) })
 		f.loads = append(f.loads, load)

@@ -76,3 +76,25 @@ func TestRunSettingsDisplayUnits(t *testing.T) {
 		t.Errorf("after clearing: display %+v, errors %v", d.Model().Simulation.Display, errorsOf(e))
 	}
 }
+
+// A 0 typed in End time, Output points or a tolerance is refused with a
+// message at the field: in the model a zero means the default, so it would
+// run as something other than what the field shows.
+func TestRunSettingsRefuseZero(t *testing.T) {
+	e, d := newTestEditor(t)
+	d.Apply("set run", func(m *network.Model) {
+		m.Simulation.TEnd, m.Simulation.Output.Points = 50, 200
+		m.Simulation.RTol, m.Simulation.ATol = 1e-8, 1e-12
+	})
+	before := d.Model().Simulation
+	for _, name := range []string{"t_end", "output.points", "rtol", "atol"} {
+		in := runField(t, e, name).input.(*widget.Entry)
+		in.SetText("0")
+		if got := d.Model().Simulation; got != before {
+			t.Errorf("%s: 0 taken: %+v", name, got)
+		}
+		if !hasMessage(e, "simulation", 0, name, "0 is not allowed") {
+			t.Errorf("%s: no message; messages %v", name, e.Messages())
+		}
+	}
+}

@@ -107,8 +107,10 @@ func (v *validator) events() {
 			if !val.Set {
 				return
 			}
-			x, named := v.timeValue(i, e.Name, field, val)
+			x, named, known := v.timeValue(i, e.Name, field, val)
 			switch {
+			case !known:
+				ok = false // reported, with no value to judge
 			case !named && x < 0:
 				errf(field, 0, "%s = %v is not allowed; expected a time of 0 or later", field, x)
 				ok = false
@@ -129,12 +131,15 @@ func (v *validator) events() {
 			if !e.From.Set || !e.To.Set {
 				errf("", 0, "an infusion needs both \"from\" and \"to\"")
 				ok = false
-			} else if f, t := v.valueOf(e.From), v.valueOf(e.To); !(t > f) {
+			} else if f, t := v.valueOf(e.From), v.valueOf(e.To); ok && !(t > f) {
 				errf("to", 0, "the infusion ends (to = %v) before it starts (from = %v); expected to > from", t, f)
 				ok = false
 			}
 		}
-		if e.Every.Set && e.Count == 0 {
+		if e.Count < 0 || e.Count > MaxCount {
+			errf("count", 0, "count = %d is not allowed; expected a whole number from 1 to %d, the number of occurrences", e.Count, MaxCount)
+			ok = false
+		} else if e.Every.Set && e.Count == 0 {
 			errf("count", 0, "\"every\" needs \"count\", the number of occurrences")
 			ok = false
 		}
@@ -235,21 +240,22 @@ func (v *validator) changes(i int, e *Event, kind string, cs []Change, params bo
 }
 
 // timeValue returns the value of a time field (a number or a parameter)
-// and whether it is named; an unknown name is reported.
-func (v *validator) timeValue(i int, item, field string, val Value) (float64, bool) {
+// and whether it is named and known; an unknown name is reported, with
+// the declared name it is closest to.
+func (v *validator) timeValue(i int, item, field string, val Value) (x float64, named, known bool) {
 	if val.Name == "" {
 		if !finite(val.Num) {
 			v.add(Error, "events", i, item, field, 0, "%s = %v is not allowed; expected a finite time", field, val.Num)
 		}
-		return val.Num, false
+		return val.Num, false, true
 	}
 	j, ok := v.paramIx[val.Name]
 	if !ok {
-		v.add(Error, "events", i, item, field, 0, "unknown parameter %q; declare it under parameters or give a number", val.Name)
-		return 0, true
+		v.add(Error, "events", i, item, field, 0, "unknown parameter %q;%s declare it under parameters or give a number", val.Name, v.suggest(val.Name, v.paramIx))
+		return 0, true, false
 	}
 	v.usedPar[j] = true
-	return v.m.Parameters[j].Value, true
+	return v.m.Parameters[j].Value, true, true
 }
 
 // valueOf returns the value of a number or a known parameter (0 for an

@@ -112,6 +112,11 @@ func TestEventModelErrors(t *testing.T) {
 		{Event{Name: "h", Add: []Change{{"C", "1"}}}, "", "exactly one timing"},
 		{Event{Name: "i", At: Number(1), Add: []Change{{"k", "1"}}}, "add.k", "add takes species"},
 		{Event{Name: "j", From: Number(0), To: Number(1), Infuse: []Change{{"C", "C"}}}, "infuse.C", "numbers and parameters only"},
+		// A count the file reader refuses is refused by Check too, so that
+		// a model edited in the window saves as a file that reads back.
+		{Event{Name: "k", At: Number(0), Every: Number(1), Count: -1, Add: []Change{{"C", "1"}}}, "count", "count = -1 is not allowed"},
+		{Event{Name: "l", At: Number(0), Every: Number(1), Count: MaxCount + 1, Add: []Change{{"C", "1"}}}, "count", "expected a whole number from 1 to 1000000"},
+		{Event{Name: "m", At: Number(0), Every: Named("tauu"), Count: 2, Add: []Change{{"C", "1"}}}, "every", `unknown parameter "tauu"; did you mean "tau"?`},
 	}
 	for _, c := range cases {
 		m := pkModel(c.e)
@@ -125,6 +130,18 @@ func TestEventModelErrors(t *testing.T) {
 		}
 		if !found {
 			t.Errorf("event %q: no error at %q containing %q; got %v", c.e.Name, c.field, c.want, l)
+		}
+	}
+
+	// An unknown name in a time field is one error: it has no value for
+	// a second message to judge (the value 0 of a name not declared, or
+	// an infusion ending before it starts).
+	for _, e := range []Event{
+		{Name: "every", At: Number(0), Every: Named("tauu"), Count: 2, Add: []Change{{"C", "1"}}},
+		{Name: "drip", From: Number(1), To: Named("t_stop"), Infuse: []Change{{"C", "1"}}},
+	} {
+		if _, l := Check(pkModel(e)); len(l.Errors()) != 1 {
+			t.Errorf("event %s: %d errors, want 1: %v", e.Name, len(l.Errors()), l.Errors())
 		}
 	}
 }

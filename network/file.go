@@ -278,8 +278,8 @@ func (d *decoder) decode(root *jnode) *Model {
 			}
 			if x, ok := o.get("count"); ok {
 				if f, ok := d.num(x, path+".count"); ok {
-					if f != math.Trunc(f) || f < 1 || f > 1e6 {
-						d.fail(x, path+".count", "%v is not a whole number from 1 to 1000000; expected the number of occurrences", f)
+					if f != math.Trunc(f) || f < 1 || f > MaxCount {
+						d.fail(x, path+".count", "%v is not a whole number from 1 to %d; expected the number of occurrences", f, MaxCount)
 					} else {
 						e.Count = int(f)
 					}

@@ -8,6 +8,8 @@ const (
 	MaxFileSize = 64 << 20
 	// MaxPoints is the largest number of output times of a simulation.
 	MaxPoints = 1_000_000
+	// MaxCount is the largest number of occurrences of a repeated event.
+	MaxCount = 1_000_000
 	// MaxOutputValues bounds the output grid's values: output times times
 	// species and assignments (8 bytes each, so 400 MB).
 	MaxOutputValues = 50_000_000

@@ -55,6 +55,11 @@ type Options struct {
 	// zero means 12, a negative value means no limit.
 	Decades int
 
+	// SeriesUnits name a unit after a series of a TrajectoryPlot in its
+	// legend ("body_amount (mg)") where not empty: for a series whose
+	// unit is not the value axis's. nil names every series alone.
+	SeriesUnits []string
+
 	// ColourIndex gives each series of a TrajectoryPlot a stable colour slot
 	// (see Colour), so that a species keeps its colour when others are
 	// hidden; nil colours series by position.

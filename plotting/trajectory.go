@@ -124,7 +124,11 @@ func TrajectoryPlot(tr Trajectories, o Options) (*plot.Plot, error) {
 			line: draw.LineStyle{Color: Colour(slot), Width: vg.Points(lineWidth), Dashes: Dashes(slot)},
 		}
 		p.Add(c)
-		legend.add(name, c)
+		label := name
+		if j < len(o.SeriesUnits) && o.SeriesUnits[j] != "" {
+			label = AxisLabel(name, o.SeriesUnits[j])
+		}
+		legend.add(label, c)
 		for i, t := range tr.Times {
 			if !usable(t, o.LogX) {
 				continue

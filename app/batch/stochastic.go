@@ -320,7 +320,7 @@ func writeStochastic(meta *stochasticMeta, e *stochastic.Ensemble, dir string, s
 			return err
 		}
 	}
-	notes := append(append([]string(nil), meta.Notes...), ensemble.Caution)
+	notes := append(append([]string(nil), meta.Notes...), run.Caution)
 	path := filepath.Join(dir, "notes.txt")
 	if err := atomicfile.Write(path, []byte(strings.Join(notes, "\n")+"\n")); err != nil {
 		return err

@@ -195,5 +195,15 @@ func (r *Replay) Caption(t float64) string {
 	if r.o.TimeUnit != "" {
 		u = " " + r.o.TimeUnit
 	}
-	return fmt.Sprintf("t = %.4g%s\ncolour: concentration %.3g (dark) to %.3g (light), log scale; width: flux", t, u, r.Lo, r.Hi)
+	return fmt.Sprintf("t = %.4g%s\ncolour: concentration %s, log scale; width: flux", t, u, r.ColourRange())
+}
+
+// ColourRange says which concentrations the colours span, with their
+// unit: "0.00414 (dark) to 200 (light) mg/L".
+func (r *Replay) ColourRange() string {
+	s := fmt.Sprintf("%.3g (dark) to %.3g (light)", r.Lo, r.Hi)
+	if r.o.AmountUnit != "" {
+		s += " " + r.o.AmountUnit
+	}
+	return s
 }

@@ -183,6 +183,3 @@ func plural(n int, one, many string) string {
 	}
 	return many
 }
-
-// Caution is the caution every result carries.
-const Caution = "Results are research aids, not clinical or dosing advice."

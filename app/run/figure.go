@@ -70,10 +70,18 @@ func Figure(o *Outcome, v View) (*plot.Plot, error) {
 		Measured:    v.Measured,
 		Visible:     make([]bool, len(o.Names)),
 		ColourIndex: make([]int, len(o.Names)),
+		SeriesUnits: make([]string, len(o.Names)),
 	}
 	for j, n := range o.Names {
 		opt.Visible[j] = !v.Hidden[n]
 		opt.ColourIndex[j] = v.Slot(n, j)
+		u := o.UnitOf(j)
+		if o.Dimensionless(j) {
+			u = "dimensionless" // a fraction among concentrations, say
+		}
+		if u != o.AmountUnit {
+			opt.SeriesUnits[j] = u // or an amount
+		}
 	}
 	for _, e := range o.Events {
 		opt.Marks = append(opt.Marks, plotting.TimeMark{X: e.T, Label: e.Name})

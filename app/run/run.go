@@ -19,6 +19,12 @@ import (
 	"kinetarium/solve"
 )
 
+// Caution is the one caution that results carry, in the window's result
+// windows, its Help and the headless command's outputs: what results are,
+// and who decides about treatment and doses.
+const Caution = "Results are research aids, not clinical or dosing advice. " +
+	"Decisions about treatment or dosing rest with qualified professionals and must follow local rules."
+
 // Outcome is the result of one simulation of a model, in the units it is
 // shown in: the model's display units (network.Display) where it has them,
 // else its own (see Convert).

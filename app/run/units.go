@@ -166,7 +166,7 @@ func Show(timeUnit, amountUnit string, names, colUnits []string, species int, d 
 	return sh, nil
 }
 
-// unitOf returns the unit of column j: o.Units[j] when given, else the
+// ColumnUnit returns the unit of column j: o.Units[j] when given, else the
 // concentration unit for a species and "" for an assignment.
 func (o *Outcome) ColumnUnit(j int) string {
 	if j < len(o.Units) {
@@ -176,6 +176,32 @@ func (o *Outcome) ColumnUnit(j int) string {
 		return o.AmountUnit
 	}
 	return ""
+}
+
+// UnitOf returns the unit of column j as people read it beside a value:
+// ColumnUnit, else the unit inferred for an assignment, and "" for a pure
+// number (see Dimensionless) or where none is known.
+func (o *Outcome) UnitOf(j int) string {
+	if o.Dimensionless(j) {
+		return ""
+	}
+	if u := o.ColumnUnit(j); u != "" {
+		return u
+	}
+	if j < len(o.Inferred) {
+		return o.Inferred[j]
+	}
+	return ""
+}
+
+// Dimensionless reports whether column j is a pure number, such as a
+// fraction: declared or inferred in the unit "1".
+func (o *Outcome) Dimensionless(j int) bool {
+	u := o.ColumnUnit(j)
+	if u == "" && j < len(o.Inferred) {
+		u = o.Inferred[j]
+	}
+	return u == "1"
 }
 
 // Scale converts values between two units: x·Mul/Div. One of Mul and

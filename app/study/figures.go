@@ -30,8 +30,8 @@ type Figures struct {
 	Readouts       []explore.Readout `json:"readouts"`
 	ReadoutSpecies []string          `json:"readout_species"`
 	// Shown, when the model chooses display units, converts results for
-	// tables and figures; KnobUnits are then the units of the knobs'
-	// values in the model, for headers.
+	// tables and figures. KnobUnits are the units of the knobs' values in
+	// the model, for figures' axes, and for headers with display units.
 	Shown     *run.Shown `json:"shown,omitempty"`
 	KnobUnits []string   `json:"knob_units,omitempty"`
 }
@@ -223,10 +223,10 @@ func (f Figures) BandCurves(b *explore.Bands, c int) (q [][]float64, times []flo
 	return q, times
 }
 
-// knobUnit is the unit of knob k's values in headers and axis labels,
-// given only when the model chooses display units.
+// knobUnit is the unit of knob k's values on an axis, as the readouts'
+// axes name theirs.
 func (f Figures) knobUnit(k int) string {
-	if f.Shown == nil || k >= len(f.KnobUnits) {
+	if k >= len(f.KnobUnits) {
 		return ""
 	}
 	return f.KnobUnits[k]

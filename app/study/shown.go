@@ -12,12 +12,16 @@ import (
 
 // show works out how a job's results are shown when the model chooses
 // display units (network.Display): nil when it chooses none, so that the
-// tables and figures stay as they were. Knob values are never converted
-// (they are the model's stored values); their headers name the model's
-// unit of each.
+// tables stay as they were. Knob values are never converted (they are the
+// model's stored values); figures name the model's unit of each on their
+// axes, and with display units the tables' headers do too.
 func (j *Job) show() error {
 	p := j.Prepared
 	m := p.Model
+	j.KnobUnits = make([]string, len(j.Settings.Knobs))
+	for k, ref := range j.Settings.Knobs {
+		j.KnobUnits[k] = KnobUnit(m, ref)
+	}
 	d := m.Simulation.Display
 	if strings.TrimSpace(d.Time) == "" && strings.TrimSpace(d.Concentration) == "" {
 		return nil
@@ -29,10 +33,6 @@ func (j *Job) show() error {
 		return err
 	}
 	j.Shown = sh
-	j.KnobUnits = make([]string, len(j.Settings.Knobs))
-	for k, ref := range j.Settings.Knobs {
-		j.KnobUnits[k] = KnobUnit(m, ref)
-	}
 	return nil
 }
 

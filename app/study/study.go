@@ -371,8 +371,8 @@ type Job struct {
 	Readouts []explore.Readout
 	Species  []string // the species each readout is computed on
 	// Shown converts results to the model's display units for tables and
-	// figures (nil when it chooses none); KnobUnits are then the model's
-	// units of the knobs.
+	// figures (nil when it chooses none); KnobUnits are the model's units
+	// of the knobs (in headers only with Shown).
 	Shown     *run.Shown
 	KnobUnits []string
 }

@@ -176,12 +176,14 @@ func TestReadoutWindowOnDoses(t *testing.T) {
 }
 
 // A readout's axis says what it is in words with its unit, not the code
-// name (a review found "t_up_P@5" on the axis).
+// name (a review found "t_up_P@5" on the axis), and the varied quantity's
+// axis names its unit too, without display units as with them (a review
+// found "I initial" beside "final value of P (uM)").
 func TestReadoutAxisInWords(t *testing.T) {
 	m := &network.Model{
 		Units:      network.Units{Time: "s", Amount: "uM"},
 		Species:    []network.Species{{Name: "A", Initial: 10}, {Name: "P"}},
-		Parameters: []network.Parameter{{Name: "k", Value: 1}},
+		Parameters: []network.Parameter{{Name: "k", Value: 1, Unit: "1/s"}},
 		Reactions:  []network.Reaction{{Name: "r", Equation: "A -> P", Rate: network.NewRate(network.MassAction, "k", "k")}},
 		Simulation: network.Simulation{TEnd: 5},
 	}
@@ -204,5 +206,8 @@ func TestReadoutAxisInWords(t *testing.T) {
 	}
 	if got := fig.Y.Label.Text; got != "time P rises past 5 (s)" {
 		t.Errorf("readout axis %q, want %q", got, "time P rises past 5 (s)")
+	}
+	if got := fig.X.Label.Text; got != "k (1/s)" {
+		t.Errorf("varied quantity's axis %q, want %q", got, "k (1/s)")
 	}
 }
