@@ -32,17 +32,16 @@ import (
 	"os"
 	"sort"
 	"strings"
+
+	"kinetarium/app/run"
 )
 
 // usageText is the help of every subcommand, printed by "batch help", by -h
 // and with errors in the command line.
-const usageText = `usage: batch COMMAND [arguments]
+// The caution is run.Caution, the one wording of the window and its Help.
+const usageText = "usage: batch COMMAND [arguments]\n\nCaution: " + run.Caution + "\n" + usageCommands
 
-Caution: results are research aids, not clinical or dosing advice. Doses
-and schedules entered in a model, and any decision about treatment or
-dosing, rest with qualified professionals under local rules and
-regulations.
-
+const usageCommands = `
 Commands:
 
   simulate MODEL.json [flags]
