@@ -64,15 +64,10 @@ func (sv *Solver) choose(t0, tEnd float64, y0 []float64) (stepper, error) {
 			sv.set.Method, Rosenbrock, Radau, BDF, Explicit)
 	}
 	if sv.n >= autoBDFSize {
-		// alloc built Radau IIA for a sparse system and BDF otherwise.
-		if sv.sparseRadau() {
-			st.Methods = append(st.Methods, Radau)
-			st.Choice = fmt.Sprintf("Radau IIA (order 5): %d state variables with a sparse Jacobian, where its few long steps keep the error near the tolerance on every time scale", sv.n)
-			return sv.radau, nil
-		}
-		st.Methods = append(st.Methods, BDF)
-		st.Choice = fmt.Sprintf("BDF: %d state variables, so the method that reuses its matrix factorization longest", sv.n)
-		return sv.bdf, nil
+		s, m, why := sv.stiffStepper()
+		st.Methods = append(st.Methods, m)
+		st.Choice = fmt.Sprintf("%s: %d state variables, too many for the explicit method's test to pay; %s", methodTitle(m), sv.n, why)
+		return s, nil
 	}
 	if sv.p.sens != nil {
 		s, m, why := sv.stiffStepper()
@@ -94,8 +89,9 @@ func (sv *Solver) choose(t0, tEnd float64, y0 []float64) (stepper, error) {
 	return sv.dp, nil
 }
 
-// stiffStepper is Auto's stiff method for systems below autoBDFSize, with
-// the reason for the choice.
+// stiffStepper is Auto's stiff method, with the reason for the choice:
+// Radau IIA for a sparse system of autoRadauSize variables or more, BDF
+// otherwise (alloc builds exactly the one of the two this picks).
 //
 // Measured on HIRES and POLLU (internal/workprecision, and the CVODE
 // comparison in bench/cvode-comparison.md): from rtol 1e-4 to 1e-10 the
@@ -105,18 +101,12 @@ func (sv *Solver) choose(t0, tEnd float64, y0 []float64) (stepper, error) {
 // accuracy Radau IIA costs 0.9–1.2 times BDF's instructions at the tight
 // end, and between steps its solution is of order 3 only, so below
 // autoRadauSize BDF is the stiff method at every tolerance (Radau IIA took
-// over below rtol 1e-9 while BDF's error there was 12–66). RODAS4 is the
-// fallback when neither is built in.
+// over below rtol 1e-9 while BDF's error there was 12–66).
 func (sv *Solver) stiffStepper() (stepper, Method, string) {
-	switch {
-	case sv.sparseRadau():
-		return sv.radau, Radau, fmt.Sprintf("a network of %d state variables with a sparse Jacobian, where Radau IIA's few long steps keep the error near the tolerance on every time scale", sv.n)
-	case sv.bdf != nil:
-		return sv.bdf, BDF, "variable-order BDF reuses one factorization over many steps"
-	case sv.radau != nil:
-		return sv.radau, Radau, "BDF is not available"
+	if sv.sparseRadau() {
+		return sv.radau, Radau, "a network with a sparse Jacobian, where Radau IIA's few long steps keep the error near the tolerance on every time scale"
 	}
-	return sv.ros, Rosenbrock, "no other stiff method is available"
+	return sv.bdf, BDF, "variable-order BDF reuses one factorization over many steps"
 }
 
 // landsOnOutputs reports whether the solve steps onto every output time

@@ -69,7 +69,7 @@ type bdfControl struct {
 // HIRES at 1e-10 and 12 over the run). Neither half does it alone: biases
 // 30, 30, 48 with Newton at 0.03 left 20 on HIRES at 1e-10, Newton at
 // 0.0003 with biases 5, 5, 8 left 28. At equal accuracy it costs 0.97,
-// 1.12, 1.08 and 1.06 times bdfUnbiased's instructions (callgrind; a
+// 1.11, 1.07 and 1.05 times bdfUnbiased's instructions (callgrind; a
 // straight line fitted to each controller's 13 points): a uniform bias is
 // a tighter tolerance in disguise, so only its side effects (more Newton
 // iterations, fewer factorizations) can change the cost at equal accuracy.

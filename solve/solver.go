@@ -99,10 +99,9 @@ func (sv *Solver) alloc(sys System) {
 			sv.ros = newRosenbrock(sv.p) // its Jacobian is the work space of the stiffness test
 			sv.dp = newDopri(sv.p)
 		}
-		if sv.sparseRadau() {
+		if sv.sparseRadau() { // stiffStepper's choice
 			sv.radau = newRadau(sv.p)
-		}
-		if !sv.sparseRadau() {
+		} else {
 			sv.bdf = newBDF(sv.p)
 		}
 	}
