@@ -16,6 +16,7 @@ import (
 
 	"kinetarium/app/run"
 	"kinetarium/app/sliders"
+	"kinetarium/app/study"
 	"kinetarium/network"
 )
 
@@ -357,25 +358,7 @@ func (p *tunePanel) show(i int) {
 	r.min.SetText(short(k.Min))
 	r.max.SetText(short(k.Max))
 	r.value.SetText(short(k.Value))
-	unit := ""
-	m := p.w.doc.Model()
-	switch k.Kind {
-	case sliders.Parameter:
-		for _, par := range m.Parameters {
-			if par.Name == k.Name {
-				unit = par.Unit
-			}
-		}
-	case sliders.Initial:
-		unit = m.Units.Amount
-	case sliders.Volume:
-		for _, c := range m.Compartments {
-			if c.Name == k.Name {
-				unit = c.Unit
-			}
-		}
-	}
-	r.unit.SetText(unit)
+	r.unit.SetText(study.KnobUnit(p.w.doc.Model(), k.Ref()))
 	r.setting = true
 	r.slider.SetValue(math.Round(k.Position(k.Value) * sliderSteps))
 	r.setting = false
