@@ -180,11 +180,7 @@ func (p *jparser) token() (json.Token, error) {
 		case err == io.EOF || err == io.ErrUnexpectedEOF || strings.Contains(err.Error(), "unexpected end"):
 			return nil, &syntaxError{int64(len(p.data)), atomicfile.TruncatedJSON}
 		case errors.As(err, &se):
-			at := se.Offset
-			if off, ok := atomicfile.JSONSyntaxAt(p.data); ok {
-				at = off
-			}
-			return nil, &syntaxError{at, "invalid JSON: " + se.Error()}
+			return nil, &syntaxError{atomicfile.JSONSyntaxOffset(p.data, se), "invalid JSON: " + se.Error()}
 		}
 		return nil, &syntaxError{off, "invalid JSON: " + err.Error()}
 	}

@@ -74,9 +74,7 @@ func jsonAt(data []byte, err error) (line, col int, ok bool) {
 	case !placed:
 		return 0, 0, false
 	case errors.As(err, &se):
-		if at, ok := atomicfile.JSONSyntaxAt(data); ok {
-			off = at // the offending character (the error's offset is past it)
-		}
+		off = atomicfile.JSONSyntaxOffset(data, se) // the offending character (the error's offset is past it)
 	}
 	off = max(0, min(off, int64(len(data))))
 	line = 1 + bytes.Count(data[:off], []byte("\n"))

@@ -4,7 +4,6 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -62,20 +61,7 @@ func ReadCompanion(data []byte, source string) (*Companion, error) {
 	r.data = text
 	top, err := parseJSON(text)
 	if err != nil {
-		var se *json.SyntaxError
-		line, col := 0, 0
-		if errors.As(err, &se) {
-			at := se.Offset // a repeated key's value: valid JSON
-			if off, ok := atomicfile.JSONSyntaxAt(text); ok {
-				at = off
-			}
-			line, col = lineCol(text, at)
-		}
-		msg := err.Error()
-		if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
-			msg = atomicfile.TruncatedJSON
-		}
-		return nil, SpecErrors{{File: source, Line: line, Col: col, Msg: "not valid JSON: " + msg}}
+		return nil, jsonErrors(source, text, err)
 	}
 	if top.kind != 'o' {
 		r.fail(top, "", "expected a JSON object with \"format\": %q", CompanionFormat)

@@ -290,6 +290,23 @@ func LoadSpec(path string) (*Spec, error) {
 	return s, nil
 }
 
+// jsonErrors is parseJSON's error err on data, placed at its line and
+// column: the offending character, or the end of a file that ends too
+// early.
+func jsonErrors(source string, data []byte, err error) SpecErrors {
+	var se *json.SyntaxError
+	line, col := 0, 0
+	if errors.As(err, &se) {
+		line, col = lineCol(data, atomicfile.JSONSyntaxOffset(data, se))
+	}
+	msg := err.Error()
+	if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
+		msg = atomicfile.TruncatedJSON
+		line, col = lineCol(data, int64(len(data)))
+	}
+	return SpecErrors{{File: source, Line: line, Col: col, Msg: "not valid JSON: " + msg}}
+}
+
 // ReadSpec reads a fit specification; every problem is reported with its
 // line and column. It checks the spec's own consistency; names are checked
 // against the model by NewFit.
@@ -301,21 +318,7 @@ func ReadSpec(data []byte, source string) (*Spec, error) {
 	r := &specReader{file: source, data: data}
 	top, err := parseJSON(data)
 	if err != nil {
-		var se *json.SyntaxError
-		line, col := 0, 0
-		if errors.As(err, &se) {
-			at := se.Offset // a repeated key's value: valid JSON
-			if off, ok := atomicfile.JSONSyntaxAt(data); ok {
-				at = off
-			}
-			line, col = lineCol(data, at)
-		}
-		msg := err.Error()
-		if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
-			msg = atomicfile.TruncatedJSON
-			line, col = lineCol(data, int64(len(data)))
-		}
-		return nil, SpecErrors{{File: source, Line: line, Col: col, Msg: "not valid JSON: " + msg}}
+		return nil, jsonErrors(source, data, err)
 	}
 	if top.kind != 'o' {
 		r.fail(top, "", "expected a JSON object with \"format\": %q", SpecFormat)

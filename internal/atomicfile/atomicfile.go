@@ -399,3 +399,13 @@ func JSONSyntaxAt(data []byte) (off int64, ok bool) {
 	}
 	return max(0, se.Offset-1), true // the offset counts the offending byte
 }
+
+// JSONSyntaxOffset is where a syntax error se found in data is: at the
+// offending character (JSONSyntaxAt), or se's own offset where data is
+// valid JSON as a whole (a reader's own rule, such as a repeated key).
+func JSONSyntaxOffset(data []byte, se *json.SyntaxError) int64 {
+	if off, ok := JSONSyntaxAt(data); ok {
+		return off
+	}
+	return se.Offset
+}
