@@ -12,50 +12,45 @@ import (
 	"kinetarium/app/sliders"
 )
 
-// shownLabels returns the visible labels among o and what it holds.
-func shownLabels(o fyne.CanvasObject) []*widget.Label {
-	if !o.Visible() {
-		return nil
+// walkObjects calls visit for o and everything it holds, containers' and
+// widgets' parts alike; with shownOnly it skips what is hidden.
+func walkObjects(o fyne.CanvasObject, shownOnly bool, visit func(fyne.CanvasObject)) {
+	if shownOnly && !o.Visible() {
+		return
 	}
-	var out []*widget.Label
+	visit(o)
 	switch x := o.(type) {
-	case *widget.Label:
-		return []*widget.Label{x}
 	case *fyne.Container:
 		for _, c := range x.Objects {
-			out = append(out, shownLabels(c)...)
+			walkObjects(c, shownOnly, visit)
 		}
-		return out
-	}
-	if wd, ok := o.(fyne.Widget); ok {
-		for _, c := range test.WidgetRenderer(wd).Objects() {
-			out = append(out, shownLabels(c)...)
+	case fyne.Widget:
+		for _, c := range test.WidgetRenderer(x).Objects() {
+			walkObjects(c, shownOnly, visit)
 		}
 	}
+}
+
+// shownLabels returns the visible labels among o and what it holds.
+func shownLabels(o fyne.CanvasObject) []*widget.Label {
+	var out []*widget.Label
+	walkObjects(o, true, func(c fyne.CanvasObject) {
+		if l, ok := c.(*widget.Label); ok {
+			out = append(out, l)
+		}
+	})
 	return out
 }
 
 // shownTexts returns the texts drawn among o and what it holds, such as
 // the labels of forms.
 func shownTexts(o fyne.CanvasObject) []string {
-	if !o.Visible() {
-		return nil
-	}
 	var out []string
-	switch x := o.(type) {
-	case *canvas.Text:
-		return []string{x.Text}
-	case *fyne.Container:
-		for _, c := range x.Objects {
-			out = append(out, shownTexts(c)...)
+	walkObjects(o, true, func(c fyne.CanvasObject) {
+		if t, ok := c.(*canvas.Text); ok {
+			out = append(out, t.Text)
 		}
-		return out
-	}
-	if wd, ok := o.(fyne.Widget); ok {
-		for _, c := range test.WidgetRenderer(wd).Objects() {
-			out = append(out, shownTexts(c)...)
-		}
-	}
+	})
 	return out
 }
 

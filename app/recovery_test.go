@@ -13,29 +13,16 @@ import (
 	"kinetarium/network"
 )
 
-// findButton returns the button labelled text among o and what it holds.
+// findButton returns the first button labelled text among o and what it
+// holds.
 func findButton(o fyne.CanvasObject, text string) *widget.Button {
-	switch x := o.(type) {
-	case *widget.Button:
-		if x.Text == text {
-			return x
+	var found *widget.Button
+	walkObjects(o, false, func(c fyne.CanvasObject) {
+		if b, ok := c.(*widget.Button); ok && b.Text == text && found == nil {
+			found = b
 		}
-	case *fyne.Container:
-		for _, c := range x.Objects {
-			if b := findButton(c, text); b != nil {
-				return b
-			}
-		}
-		return nil
-	}
-	if wd, ok := o.(fyne.Widget); ok {
-		for _, c := range test.WidgetRenderer(wd).Objects() {
-			if b := findButton(c, text); b != nil {
-				return b
-			}
-		}
-	}
-	return nil
+	})
+	return found
 }
 
 // The whole path of crash recovery, headless: edit, autosave, a crash (the

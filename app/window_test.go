@@ -200,29 +200,16 @@ func TestWindowFitsSmallScreens(t *testing.T) {
 	})
 }
 
-// findEntry returns the entry showing text among o and what it holds.
+// findEntry returns the first entry showing text among o and what it
+// holds.
 func findEntry(o fyne.CanvasObject, text string) *widget.Entry {
-	switch x := o.(type) {
-	case *widget.Entry:
-		if x.Text == text {
-			return x
+	var found *widget.Entry
+	walkObjects(o, false, func(c fyne.CanvasObject) {
+		if e, ok := c.(*widget.Entry); ok && e.Text == text && found == nil {
+			found = e
 		}
-	case *fyne.Container:
-		for _, c := range x.Objects {
-			if e := findEntry(c, text); e != nil {
-				return e
-			}
-		}
-		return nil
-	}
-	if wd, ok := o.(fyne.Widget); ok {
-		for _, c := range test.WidgetRenderer(wd).Objects() {
-			if e := findEntry(c, text); e != nil {
-				return e
-			}
-		}
-	}
-	return nil
+	})
+	return found
 }
 
 // A value typed with a decimal comma ("1,5") is not taken; saving says
